@@ -1,0 +1,225 @@
+/**
+ * The validated plant file, as plain data. Every time is in seconds, every rate per second:
+ * units written in the file ("90 s", "1.5 min") are converted by the loader.
+ *
+ * This file is the contract between the loader (model/), the engine (sim/), the controller
+ * laws (control/) and everything above them. Keep it free of behaviour.
+ */
+
+/** Source span of a value in the plant file: byte offsets [start, end). */
+export type Span = readonly [number, number];
+
+// ---------------------------------------------------------------- expressions
+
+/** Checked expression tree of the plant file's expression language. */
+export type Expr =
+  | { kind: 'num'; value: number; span: Span }
+  | { kind: 'name'; name: string; span: Span }
+  | { kind: 'unary'; op: '-' | '+' | '!'; arg: Expr; span: Span }
+  | {
+      kind: 'binary';
+      op: '+' | '-' | '*' | '/' | '^' | '<' | '<=' | '>' | '>=' | '==' | '!=' | '&&' | '||';
+      left: Expr;
+      right: Expr;
+      span: Span;
+    }
+  | { kind: 'cond'; test: Expr; then: Expr; else: Expr; span: Span }
+  | { kind: 'call'; fn: string; args: Expr[]; span: Span };
+
+// ---------------------------------------------------------------- model kinds
+
+export interface OdeModel {
+  type: 'ode';
+  params: Record<string, number>;
+  /** Ordered: the state vector x follows this order. */
+  states: { name: string; initial: number }[];
+  /** Name of the manipulated variable as used in the expressions. */
+  input: string;
+  /** Named disturbances and their initial values, in order. */
+  disturbances: { name: string; initial: number }[];
+  /** One expression per state, same order as `states`. */
+  derivatives: Expr[];
+  /** The controlled variable. */
+  output: Expr;
+  /** Further named measurements (e.g. the inner variable of a cascade). */
+  measurements: Record<string, Expr>;
+  /** Transport delay on the manipulated input, s. */
+  delay: number;
+}
+
+/** Linear kinds. Each has one implicit input disturbance `load` added to the input at the plant. */
+export interface TransferModel {
+  type: 'transfer';
+  /** Descending powers of s. */
+  numerator: number[];
+  denominator: number[];
+  delay: number;
+}
+export interface FirstOrderModel {
+  type: 'first_order';
+  gain: number;
+  timeConstant: number;
+  delay: number;
+}
+export interface SecondOrderModel {
+  type: 'second_order';
+  gain: number;
+  /** Either two real lags ... */
+  timeConstants: [number, number] | null;
+  /** ... or natural frequency (rad/s) and damping ratio. */
+  naturalFrequency: number | null;
+  damping: number | null;
+  delay: number;
+}
+export interface IntegratingModel {
+  type: 'integrating';
+  /** Rate of change of the output per unit input, 1/s. */
+  gain: number;
+  delay: number;
+  /** Optional extra lag, s (0 = none). */
+  timeConstant: number;
+}
+export interface StateSpaceModel {
+  type: 'state_space';
+  a: number[][];
+  b: number[];
+  c: number[];
+  d: number;
+  delay: number;
+}
+
+export type ModelSpec =
+  | OdeModel
+  | TransferModel
+  | FirstOrderModel
+  | SecondOrderModel
+  | IntegratingModel
+  | StateSpaceModel;
+
+export type ModelType = ModelSpec['type'];
+
+// ---------------------------------------------------------------- loop parts
+
+export interface ActuatorSpec {
+  /** Output limits (−Infinity / Infinity when absent). */
+  min: number;
+  max: number;
+  /** Maximum |du/dt| in units per second, Infinity when absent. */
+  rateLimit: number;
+}
+
+export interface SensorSpec {
+  /** Measurement transport delay, s. */
+  delay: number;
+  /** Standard deviation of additive white measurement noise (output units). */
+  noiseStd: number;
+  /** First-order measurement filter time constant, s (0 = none). */
+  filterTime: number;
+  /** Quantisation step (0 = none). */
+  resolution: number;
+  /** Seed of the noise generator: same seed, same trace, bit for bit. */
+  seed: number;
+  /** Measurement span for proportional-band conversions [lo, hi] (null = unknown). */
+  span: [number, number] | null;
+}
+
+export type ControllerStructure = 'p' | 'pi' | 'pd' | 'pid';
+export type PidForm = 'ideal' | 'parallel' | 'series';
+export type AntiWindup = 'none' | 'clamp' | 'back_calculation';
+
+/**
+ * A gain set in the ideal (ISA) form, the one form the controller law runs internally:
+ * C(s) = kc (b r − y + (r − y)/(ti s) + td s (c r − y)/(1 + s td/n)).
+ * ti = Infinity means no integral action; td = 0 means no derivative action.
+ */
+export interface GainSet {
+  kc: number;
+  ti: number;
+  td: number;
+  /** Derivative filter divisor N (filter time td/n). */
+  n: number;
+  /** Setpoint weight on the proportional term. */
+  b: number;
+  /** Setpoint weight on the derivative term (0 = derivative on measurement). */
+  c: number;
+  antiWindup: AntiWindup;
+  /** Tracking time for back-calculation, s (NaN = default sqrt(ti*td) or ti/2). */
+  trackingTime: number;
+}
+
+/** The controller block of the plant file, in the form the file uses. */
+export interface ControllerSpec {
+  structure: ControllerStructure;
+  form: PidForm;
+  /** The parameters as written, in the file's form: kc/ti/td (ideal, series) or kp/ki/kd (parallel). */
+  values: Record<string, number>;
+  /** The same controller converted to the ideal form. */
+  gains: GainSet;
+  /** Controller output limits; default the actuator limits. */
+  outputMin: number;
+  outputMax: number;
+}
+
+// ---------------------------------------------------------------- trial
+
+export type TrialEvent =
+  | { kind: 'setpoint'; at: number; value: number }
+  /** Ramp from the current setpoint to `to`, reaching it after `duration` seconds. */
+  | { kind: 'setpoint_ramp'; at: number; to: number; duration: number }
+  | { kind: 'disturbance'; at: number; name: string; value: number }
+  /** Manual: hold the controller output at `output` (or where it is); auto: bumpless return. */
+  | { kind: 'mode'; at: number; mode: 'manual' | 'auto'; output: number | null }
+  /** Switch to another gain set at this instant (rehearsing a retune), bumplessly. */
+  | { kind: 'gains'; at: number; gains: GainSet; label: string };
+
+export interface TrialSpec {
+  duration: number;
+  /** Setpoint before the first event (default: the plant output at t = 0). */
+  initialSetpoint: number | null;
+  /** Controller output at t = 0 (bumpless start); null = computed from the initial state. */
+  initialOutput: number | null;
+  /** Sorted by `at`. */
+  events: TrialEvent[];
+}
+
+/** Limits a trial must meet. Absent = not required. Times in s. */
+export interface Requirements {
+  overshootPct?: number;
+  riseTime?: number;
+  settlingTime?: number;
+  steadyStateError?: number;
+  iae?: number;
+  maxOutput?: number;
+  saturatedTime?: number;
+  maxSensitivity?: number;
+  gainMargin?: number;
+  phaseMarginDeg?: number;
+  bandwidth?: number;
+  dampingRatio?: number;
+  /** Settling band as a fraction of the step (default 0.02). */
+  settlingBand?: number;
+}
+
+export type IntegratorName = 'rk4' | 'heun' | 'euler';
+
+export interface LoopSpec {
+  /** Controller sample time, s. */
+  sampleTime: number;
+  /** Integration step, s; null = chosen automatically. */
+  step: number | null;
+  integrator: IntegratorName;
+  controller: ControllerSpec;
+  trial: TrialSpec;
+  requirements: Requirements;
+}
+
+/** One validated plant file. */
+export interface PlantSpec {
+  name: string;
+  model: ModelSpec;
+  actuator: ActuatorSpec;
+  sensor: SensorSpec;
+  /** Parameter name -> [low, high] for robustness sweeps (ode params, or gain/time_constant/delay of linear kinds). */
+  uncertainty: Record<string, [number, number]>;
+  loop: LoopSpec;
+}
