@@ -1,0 +1,533 @@
+/**
+ * Time-domain metrics of one closed-loop trial, computed from its trace.
+ *
+ * Definitions (reference sheet section 11, "Step-response metrics"):
+ * - rise time: 10 % -> 90 % of the setpoint change (Franklin, Powell & Emami-Naeini; Dorf & Bishop;
+ *   Nise). Ogata uses 0 -> 100 % for underdamped second-order responses; that is a different
+ *   definition, not used here.
+ * - percent overshoot: 100 (y_peak - r_new)/(r_new - r_old), sign-aware, clamped at 0.
+ * - settling time: last time |y - r_new| > band |r_new - r_old| (band 2 % by default; the 5 % band
+ *   is also common), measured from the step instant.
+ * - IAE = integral |e| dt, ISE = integral e^2 dt, ITAE = integral t |e| dt (e = r - y).
+ *
+ * Choices made here (not fixed by the sources):
+ * - Metrics use the TRUE plant output `trace.y`, never the measured `trace.ym`: sensor noise,
+ *   delay and filtering belong to the instrument, not to the loop's performance, and the noise
+ *   would make peak and settling figures depend on the seed.
+ * - Integrals use the trapezoidal rule on the trace's sample grid. A setpoint step is a jump at
+ *   the sample where it takes effect: the interval before that sample uses the old setpoint at both
+ *   ends (the left limit), so the jump is not smeared over one sample interval.
+ * - Crossing instants (rise, settling, recovery) are interpolated linearly between the two samples
+ *   that bracket the level; peak value and peak time are those of the largest sample (so the peak
+ *   time is exact to within half a sample interval).
+ * - Each event's segment runs from its instant to the next event of any kind (or the trial end).
+ * - Steady-state error = r_new - mean(y) over the last 5 % of the segment's duration, using at least
+ *   the last 3 samples (fewer only if the segment has fewer).
+ * - Whole-trial ITAE measures t from the trial start (the first trace sample, t = 0); per-step and per-disturbance ITAE
+ *   measure t from the event instant.
+ * - Disturbance recovery band: `settlingBand` times the first non-zero setpoint change of the trial;
+ *   if the trial has no setpoint step, `settlingBand` times |setpoint|; if that is 0 too,
+ *   `settlingBand` times the peak deviation itself.
+ * - Time in saturation: a sample flagged `sat` counts for the interval up to the next sample (the
+ *   actuator output is held between samples).
+ * - max_output requirement: the peak |u| of the applied actuator output `trace.u`.
+ */
+import type { Requirements, TrialEvent, TrialSpec } from '../model/types.js';
+import type { Trace } from '../sim/types.js';
+
+/** Default settling band as a fraction of the step (sheet section 11: 2 %). */
+export const DEFAULT_SETTLING_BAND = 0.02;
+
+/** Fraction of a segment's duration averaged for the steady-state error. */
+const STEADY_FRACTION = 0.05;
+/** Minimum number of samples averaged for the steady-state error. */
+const STEADY_MIN_SAMPLES = 3;
+
+/** Metrics of one setpoint step. Times in s from the step instant; NaN = not reached. */
+export interface StepMetrics {
+  /** Step instant, s from trial start. */
+  at: number;
+  /** End of the evaluated segment (next event or trial end), s from trial start. */
+  end: number;
+  /** Setpoint before and after the step. */
+  from: number;
+  to: number;
+  /** to - from. */
+  change: number;
+  /** 10 % -> 90 % rise time, s; NaN when 90 % is never reached in the segment. */
+  riseTime: number;
+  /** Percent overshoot, >= 0. */
+  overshootPct: number;
+  /** Time of the peak (largest excursion in the direction of the step), s from the step. */
+  peakTime: number;
+  /** Output value at the peak. */
+  peakValue: number;
+  /** Settling time into the band, s from the step; NaN when still outside at the segment end. */
+  settlingTime: number;
+  /** Absolute settling band used, output units. */
+  band: number;
+  /** r_new - mean(y) over the segment's tail (see module comment). */
+  steadyStateError: number;
+  /** Integrals of e = r_new - y over the segment; ITAE with t from the step instant. */
+  iae: number;
+  ise: number;
+  itae: number;
+}
+
+/** Metrics of one setpoint ramp. */
+export interface RampMetrics {
+  at: number;
+  end: number;
+  from: number;
+  to: number;
+  /** Ramp duration, s. */
+  duration: number;
+  /** Tracking error r - y at the ramp end (at + duration); NaN when the trace stops earlier. */
+  endError: number;
+  /** Largest |r - y| over the segment. */
+  maxAbsError: number;
+  /** IAE of e = r - y over the segment. */
+  iae: number;
+}
+
+/** Metrics of one disturbance step. Times in s from the event instant; NaN = not reached. */
+export interface DisturbanceMetrics {
+  at: number;
+  end: number;
+  /** Disturbance name and its value before (NaN if unknown) and after the event. */
+  name: string;
+  from: number;
+  to: number;
+  /** Setpoint in force at the event. */
+  setpoint: number;
+  /** Signed largest deviation y - setpoint over the segment. */
+  peakDeviation: number;
+  /** Time of that peak, s from the event. */
+  peakTime: number;
+  /** Time after which |y - setpoint| stays within `band`, s from the event; NaN if it never does. */
+  recoveryTime: number;
+  /** Absolute recovery band used, output units. */
+  band: number;
+  /** Integrals of e = setpoint - y over the segment; ITAE with t from the event. */
+  iae: number;
+  ise: number;
+  itae: number;
+}
+
+/** Whole-trial figures. */
+export interface OverallMetrics {
+  /** Time span covered by the trace, s. */
+  duration: number;
+  /** Integrals of e = r - y over the whole trace; ITAE with t from trial start. */
+  iae: number;
+  ise: number;
+  itae: number;
+  /** Sum of |u[k] - u[k-1]| of the applied actuator output. */
+  uTotalVariation: number;
+  /** Time with the actuator at a position or rate limit, s. */
+  saturatedTime: number;
+  /** Peak |u|, max u and min u of the applied actuator output. */
+  maxAbsOutput: number;
+  maxOutput: number;
+  minOutput: number;
+}
+
+export interface TrialMetrics {
+  overall: OverallMetrics;
+  /** Setpoint steps with a non-zero change, in time order. */
+  steps: StepMetrics[];
+  ramps: RampMetrics[];
+  disturbances: DisturbanceMetrics[];
+  /** The first setpoint step, or null when the trial has none. */
+  firstStep: StepMetrics | null;
+}
+
+/** One time-domain requirement checked against a trial. */
+export interface RequirementResult {
+  /** The plant-file name of the requirement (snake_case). */
+  name: string;
+  measured: number;
+  limit: number;
+  pass: boolean;
+  /** Instant of the setpoint step that gave the measured (worst) value, or null for whole-trial figures. */
+  at: number | null;
+}
+
+/**
+ * Compute the metrics of a trial from its trace.
+ * @param trace recorded trial (times in s)
+ * @param trial the trial that produced it (events give the segments)
+ * @param requirements only `settlingBand` is read here (fraction, default 0.02)
+ */
+export function trialMetrics(trace: Trace, trial: TrialSpec, requirements: Requirements = {}): TrialMetrics {
+  const band = requirements.settlingBand ?? DEFAULT_SETTLING_BAND;
+  if (!(band > 0)) throw new RangeError('settlingBand must be > 0');
+  const n = trace.length;
+  const t = trace.t;
+  const y = trace.y;
+  const tEnd = n > 0 ? t[n - 1] : 0;
+  const events = trial.events;
+
+  // Samples at which a setpoint step takes effect: the interval ending there still had the old
+  // setpoint, so the trapezoid must not smear the jump over it.
+  const jumpAt = new Uint8Array(n);
+  for (const ev of events) {
+    if (ev.kind !== 'setpoint') continue;
+    const i = firstIndexAtOrAfter(t, n, ev.at);
+    if (i > 0 && i < n) jumpAt[i] = 1;
+  }
+  const overall = overallMetrics(trace, jumpAt);
+  const steps: StepMetrics[] = [];
+  const ramps: RampMetrics[] = [];
+  const disturbances: DisturbanceMetrics[] = [];
+
+  // Setpoint level as scripted by the events, walked in order.
+  let level = trial.initialSetpoint ?? (n > 0 ? y[0] : 0);
+  let ramp: { at: number; from: number; to: number; duration: number } | null = null;
+  const setpointAt = (time: number): number => {
+    if (ramp === null) return level;
+    if (time >= ramp.at + ramp.duration) return ramp.to;
+    return ramp.from + ((ramp.to - ramp.from) * (time - ramp.at)) / ramp.duration;
+  };
+  const lastDisturbance = new Map<string, number>();
+  let firstChange = NaN;
+  const pendingDisturbances: { ev: TrialEvent & { kind: 'disturbance' }; segEnd: number; r0: number; from: number }[] = [];
+
+  for (let k = 0; k < events.length; k++) {
+    const ev = events[k];
+    const segEnd = nextEventTime(events, k, tEnd);
+    if (ev.kind === 'setpoint') {
+      const from = setpointAt(ev.at);
+      ramp = null;
+      level = ev.value;
+      const change = ev.value - from;
+      if (change !== 0 && n > 0 && ev.at <= tEnd) {
+        if (Number.isNaN(firstChange)) firstChange = change;
+        steps.push(stepMetrics(trace, ev.at, segEnd, from, ev.value, band));
+      }
+    } else if (ev.kind === 'setpoint_ramp') {
+      const from = setpointAt(ev.at);
+      ramp = { at: ev.at, from, to: ev.to, duration: ev.duration };
+      level = ev.to;
+      if (n > 0 && ev.at <= tEnd) ramps.push(rampMetrics(trace, ev.at, segEnd, from, ev.to, ev.duration));
+    } else if (ev.kind === 'disturbance') {
+      const col = trace.disturbanceNames.indexOf(ev.name);
+      let from = lastDisturbance.get(ev.name) ?? NaN;
+      if (Number.isNaN(from) && col >= 0) {
+        const i0 = firstIndexAtOrAfter(t, n, ev.at);
+        if (i0 > 0) from = trace.d[col][i0 - 1];
+      }
+      lastDisturbance.set(ev.name, ev.value);
+      if (n > 0 && ev.at <= tEnd) pendingDisturbances.push({ ev, segEnd, r0: setpointAt(ev.at), from });
+    }
+  }
+  // The recovery band needs the first setpoint change, known only after the walk.
+  for (const p of pendingDisturbances) {
+    disturbances.push(disturbanceMetrics(trace, p.ev, p.segEnd, p.r0, p.from, band, firstChange));
+  }
+  return { overall, steps, ramps, disturbances, firstStep: steps.length > 0 ? steps[0] : null };
+}
+
+/**
+ * Check the time-domain requirements against trial metrics. Overshoot, rise time, settling time
+ * and steady-state error are checked on EVERY setpoint step and the worst one is reported (with
+ * its instant); iae and saturated_time are whole-trial figures; max_output is the peak |u|.
+ * A metric that was never reached (NaN) fails. Frequency-domain requirements are not checked here.
+ */
+export function checkRequirements(metrics: TrialMetrics, requirements: Requirements): RequirementResult[] {
+  const out: RequirementResult[] = [];
+  const worstOverSteps = (name: string, limit: number | undefined, pick: (s: StepMetrics) => number): void => {
+    if (limit === undefined) return;
+    let measured = NaN;
+    let at: number | null = null;
+    for (const s of metrics.steps) {
+      const v = pick(s);
+      if (Number.isNaN(v)) {
+        measured = Infinity;
+        at = s.at;
+        break;
+      }
+      if (Number.isNaN(measured) || v > measured) {
+        measured = v;
+        at = s.at;
+      }
+    }
+    if (measured === Infinity) measured = NaN;
+    out.push({ name, measured, limit, pass: Number.isFinite(measured) && measured <= limit, at });
+  };
+  worstOverSteps('overshoot_pct', requirements.overshootPct, (s) => s.overshootPct);
+  worstOverSteps('rise_time', requirements.riseTime, (s) => s.riseTime);
+  worstOverSteps('settling_time', requirements.settlingTime, (s) => s.settlingTime);
+  worstOverSteps('steady_state_error', requirements.steadyStateError, (s) => Math.abs(s.steadyStateError));
+  const whole = (name: string, limit: number | undefined, measured: number): void => {
+    if (limit === undefined) return;
+    out.push({ name, measured, limit, pass: Number.isFinite(measured) && measured <= limit, at: null });
+  };
+  whole('iae', requirements.iae, metrics.overall.iae);
+  whole('max_output', requirements.maxOutput, metrics.overall.maxAbsOutput);
+  whole('saturated_time', requirements.saturatedTime, metrics.overall.saturatedTime);
+  return out;
+}
+
+// ---------------------------------------------------------------- segments
+
+function nextEventTime(events: readonly TrialEvent[], k: number, tEnd: number): number {
+  const at = events[k].at;
+  for (let j = k + 1; j < events.length; j++) {
+    if (events[j].at > at + timeEps(at)) return Math.min(events[j].at, tEnd);
+  }
+  return tEnd;
+}
+
+function timeEps(time: number): number {
+  return 1e-9 * Math.max(1, Math.abs(time));
+}
+
+/** First index with t[i] >= time (within rounding), or n. */
+function firstIndexAtOrAfter(t: Float64Array, n: number, time: number): number {
+  const eps = timeEps(time);
+  let lo = 0;
+  let hi = n;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (t[mid] < time - eps) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Last index with t[i] <= time (within rounding), or -1. */
+function lastIndexAtOrBefore(t: Float64Array, n: number, time: number): number {
+  const eps = timeEps(time);
+  let lo = 0;
+  let hi = n;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (t[mid] <= time + eps) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo - 1;
+}
+
+/** Trapezoidal integrals of |e|, e^2 and (t - t0)|e| with e = ref - y[i], over samples i0..i1. */
+function segmentIntegrals(trace: Trace, i0: number, i1: number, ref: number, t0: number): [number, number, number] {
+  const t = trace.t;
+  const y = trace.y;
+  let iae = 0;
+  let ise = 0;
+  let itae = 0;
+  for (let i = i0 + 1; i <= i1; i++) {
+    const h = t[i] - t[i - 1];
+    const ea = Math.abs(ref - y[i - 1]);
+    const eb = Math.abs(ref - y[i]);
+    iae += 0.5 * h * (ea + eb);
+    ise += 0.5 * h * (ea * ea + eb * eb);
+    itae += 0.5 * h * ((t[i - 1] - t0) * ea + (t[i] - t0) * eb);
+  }
+  return [iae, ise, itae];
+}
+
+/**
+ * Instant after which |y - ref| stays <= tol over samples i0..i1, interpolated; relative to t0.
+ * 0 when never outside; NaN when still outside at i1.
+ */
+function lastExitTime(trace: Trace, i0: number, i1: number, ref: number, tol: number, t0: number): number {
+  const t = trace.t;
+  const y = trace.y;
+  let j = -1;
+  for (let i = i1; i >= i0; i--) {
+    if (!(Math.abs(y[i] - ref) <= tol)) {
+      j = i;
+      break;
+    }
+  }
+  if (j < 0) return 0;
+  if (j === i1) return NaN;
+  const ea = Math.abs(y[j] - ref) - tol;
+  const eb = Math.abs(y[j + 1] - ref) - tol;
+  const frac = Number.isFinite(ea) && ea - eb > 0 ? ea / (ea - eb) : 1;
+  return t[j] + frac * (t[j + 1] - t[j]) - t0;
+}
+
+function stepMetrics(trace: Trace, at: number, end: number, from: number, to: number, band: number): StepMetrics {
+  const t = trace.t;
+  const y = trace.y;
+  const n = trace.length;
+  const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
+  const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
+  const change = to - from;
+  const tol = band * Math.abs(change);
+
+  // Normalised response z = (y - from)/change: 0 before, 1 at the new setpoint, whatever the sign.
+  const z = (i: number): number => (y[i] - from) / change;
+  const crossing = (level: number): number => {
+    if (z(i0) >= level) return t[i0];
+    for (let i = i0 + 1; i <= i1; i++) {
+      const zb = z(i);
+      if (zb >= level) {
+        const za = z(i - 1);
+        return t[i - 1] + ((level - za) / (zb - za)) * (t[i] - t[i - 1]);
+      }
+    }
+    return NaN;
+  };
+  const t10 = crossing(0.1);
+  const t90 = crossing(0.9);
+
+  let kPeak = i0;
+  let zPeak = -Infinity;
+  for (let i = i0; i <= i1; i++) {
+    const zi = z(i);
+    if (zi > zPeak) {
+      zPeak = zi;
+      kPeak = i;
+    }
+  }
+  const overshootPct = Number.isFinite(zPeak) ? Math.max(0, 100 * (zPeak - 1)) : NaN;
+
+  const [iae, ise, itae] = segmentIntegrals(trace, i0, i1, to, at);
+  return {
+    at,
+    end,
+    from,
+    to,
+    change,
+    riseTime: t90 - t10,
+    overshootPct,
+    peakTime: t[kPeak] - at,
+    peakValue: y[kPeak],
+    settlingTime: lastExitTime(trace, i0, i1, to, tol, at),
+    band: tol,
+    steadyStateError: to - tailMean(trace, i0, i1),
+    iae,
+    ise,
+    itae,
+  };
+}
+
+/** Mean of y over the last STEADY_FRACTION of the segment's duration, at least STEADY_MIN_SAMPLES. */
+function tailMean(trace: Trace, i0: number, i1: number): number {
+  const t = trace.t;
+  const tailStart = t[i1] - STEADY_FRACTION * (t[i1] - t[i0]);
+  let j = i1;
+  while (j > i0 && (t[j - 1] >= tailStart || i1 - j + 1 < STEADY_MIN_SAMPLES)) j--;
+  let sum = 0;
+  for (let i = j; i <= i1; i++) sum += trace.y[i];
+  return sum / (i1 - j + 1);
+}
+
+function rampMetrics(trace: Trace, at: number, end: number, from: number, to: number, duration: number): RampMetrics {
+  const t = trace.t;
+  const y = trace.y;
+  const n = trace.length;
+  const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
+  const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
+  const ref = (time: number): number =>
+    time >= at + duration || duration <= 0 ? to : from + ((to - from) * (time - at)) / duration;
+  let maxAbsError = 0;
+  let iae = 0;
+  for (let i = i0; i <= i1; i++) {
+    const e = Math.abs(ref(t[i]) - y[i]);
+    if (!(e <= maxAbsError)) maxAbsError = e;
+    if (i > i0) iae += 0.5 * (t[i] - t[i - 1]) * (e + Math.abs(ref(t[i - 1]) - y[i - 1]));
+  }
+  // Output at the ramp end, interpolated between the bracketing samples.
+  const tr = at + duration;
+  let endError = NaN;
+  const j = lastIndexAtOrBefore(t, n, tr);
+  if (j >= 0 && Math.abs(t[j] - tr) <= timeEps(tr)) endError = to - y[j];
+  else if (j >= 0 && j + 1 < n) {
+    const f = (tr - t[j]) / (t[j + 1] - t[j]);
+    endError = to - (y[j] + f * (y[j + 1] - y[j]));
+  }
+  return { at, end, from, to, duration, endError, maxAbsError, iae };
+}
+
+function disturbanceMetrics(
+  trace: Trace,
+  ev: { at: number; name: string; value: number },
+  end: number,
+  r0: number,
+  from: number,
+  bandFraction: number,
+  firstChange: number,
+): DisturbanceMetrics {
+  const t = trace.t;
+  const y = trace.y;
+  const n = trace.length;
+  const at = ev.at;
+  const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
+  const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
+  let kPeak = i0;
+  let peakAbs = -Infinity;
+  for (let i = i0; i <= i1; i++) {
+    const dev = Math.abs(y[i] - r0);
+    if (dev > peakAbs) {
+      peakAbs = dev;
+      kPeak = i;
+    }
+  }
+  const peakDeviation = y[kPeak] - r0;
+  let tol: number;
+  if (!Number.isNaN(firstChange)) tol = bandFraction * Math.abs(firstChange);
+  else if (r0 !== 0) tol = bandFraction * Math.abs(r0);
+  else tol = bandFraction * Math.abs(peakDeviation);
+  const [iae, ise, itae] = segmentIntegrals(trace, i0, i1, r0, at);
+  return {
+    at,
+    end,
+    name: ev.name,
+    from,
+    to: ev.value,
+    setpoint: r0,
+    peakDeviation,
+    peakTime: t[kPeak] - at,
+    recoveryTime: lastExitTime(trace, i0, i1, r0, tol, at),
+    band: tol,
+    iae,
+    ise,
+    itae,
+  };
+}
+
+function overallMetrics(trace: Trace, jumpAt: Uint8Array): OverallMetrics {
+  const n = trace.length;
+  const t = trace.t;
+  const u = trace.u;
+  let iae = 0;
+  let ise = 0;
+  let itae = 0;
+  let tv = 0;
+  let satTime = 0;
+  let maxAbs = n > 0 ? Math.abs(u[0]) : NaN;
+  let maxU = n > 0 ? u[0] : NaN;
+  let minU = n > 0 ? u[0] : NaN;
+  const t0 = n > 0 ? t[0] : 0;
+  for (let i = 1; i < n; i++) {
+    const h = t[i] - t[i - 1];
+    const ea = Math.abs(trace.r[i - 1] - trace.y[i - 1]);
+    // Left limit of the setpoint at t[i]: the old level when a step takes effect at sample i.
+    const rb = jumpAt[i] !== 0 ? trace.r[i - 1] : trace.r[i];
+    const eb = Math.abs(rb - trace.y[i]);
+    iae += 0.5 * h * (ea + eb);
+    ise += 0.5 * h * (ea * ea + eb * eb);
+    itae += 0.5 * h * ((t[i - 1] - t0) * ea + (t[i] - t0) * eb);
+    tv += Math.abs(u[i] - u[i - 1]);
+    if (trace.sat[i - 1] !== 0) satTime += h;
+    const a = Math.abs(u[i]);
+    if (!(a <= maxAbs)) maxAbs = a;
+    if (!(u[i] <= maxU)) maxU = u[i];
+    if (!(u[i] >= minU)) minU = u[i];
+  }
+  return {
+    duration: n > 0 ? t[n - 1] - t0 : 0,
+    iae,
+    ise,
+    itae,
+    uTotalVariation: tv,
+    saturatedTime: satTime,
+    maxAbsOutput: maxAbs,
+    maxOutput: maxU,
+    minOutput: minU,
+  };
+}
