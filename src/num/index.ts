@@ -9,3 +9,5 @@ export { polyTrim, polyEval, polyEvalComplex, polyMul, polyAdd, polyFromRoots, p
 export { nelderMead } from './nelder-mead.js';
 export type { NelderMeadOptions, NelderMeadResult } from './nelder-mead.js';
 export { Rng } from './rng.js';
+export { levenbergMarquardt, leastSquaresCovariance } from './levenberg-marquardt.js';
+export type { LevenbergMarquardtOptions, LevenbergMarquardtResult } from './levenberg-marquardt.js';
