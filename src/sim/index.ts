@@ -1,0 +1,35 @@
+/**
+ * sim/: the fixed-step simulation engine. This list is the folder's public surface.
+ */
+export type {
+  PlantDynamics,
+  LinearModel,
+  DiscreteController,
+  LoopConfig,
+  Trace,
+  RunStatus,
+  TrialResult,
+  TrialSpec,
+} from './types.js';
+export {
+  generateStepper,
+  generateOutput,
+  stepperSource,
+  checkSource,
+  STABILITY_LIMIT,
+  INTEGRATOR_ORDER,
+} from './generate-stepper.js';
+export type { StepFunction, OutputFunction, StepperOptions } from './generate-stepper.js';
+export { chooseStep, roundStep, fastestMode, numericalJacobian, spectralRadiusEstimate, stabilityWarning, MAX_SUBSTEPS } from './choose-step.js';
+export type { StepChoice } from './choose-step.js';
+export { DelayLine } from './delay-line.js';
+export { Actuator } from './actuator.js';
+export { Sensor } from './sensor.js';
+export { createTrace, TraceRing } from './trace.js';
+export type { TraceChannel } from './trace.js';
+export { Simulation, createSimulation } from './simulation.js';
+export type { SimulationInit, ControllerMode } from './simulation.js';
+export { runTrial } from './run-trial.js';
+export type { TrialOptions } from './run-trial.js';
+export { decimateMinMax } from './decimate.js';
+export { withParams } from './with-params.js';

@@ -1,0 +1,111 @@
+/**
+ * Traces: struct-of-arrays records, one row per controller sample, never one per integration
+ * step. `TraceRing` keeps the newest `capacity` rows of a live run; a trial uses a ring whose
+ * capacity is the trial's row count, so it never wraps and its storage is the trial's `Trace`.
+ */
+import type { Trace } from './types.js';
+
+/** A zeroed trace with room for `rows` rows (`length` 0). */
+export function createTrace(rows: number, disturbanceNames: readonly string[]): Trace {
+  if (!Number.isInteger(rows) || rows < 0) throw new RangeError('rows must be a non-negative integer');
+  return {
+    length: 0,
+    t: new Float64Array(rows),
+    r: new Float64Array(rows),
+    y: new Float64Array(rows),
+    ym: new Float64Array(rows),
+    uc: new Float64Array(rows),
+    u: new Float64Array(rows),
+    sat: new Uint8Array(rows),
+    d: disturbanceNames.map(() => new Float64Array(rows)),
+    disturbanceNames: [...disturbanceNames],
+  };
+}
+
+/** Names of the numeric per-row channels of a trace. */
+export type TraceChannel = 't' | 'r' | 'y' | 'ym' | 'uc' | 'u';
+
+/** Fixed-capacity ring of trace rows. Writing a row allocates nothing. */
+export class TraceRing {
+  /** The storage; rows are in order only while `recorded <= capacity`. */
+  readonly storage: Trace;
+  readonly capacity: number;
+  /** Rows written since the start (may exceed capacity). */
+  recorded = 0;
+
+  constructor(capacity: number, disturbanceNames: readonly string[]) {
+    if (!Number.isInteger(capacity) || capacity < 1) throw new RangeError('capacity must be a positive integer');
+    this.capacity = capacity;
+    this.storage = createTrace(capacity, disturbanceNames);
+  }
+
+  /** Rows currently held: min(recorded, capacity). */
+  get length(): number {
+    return this.recorded < this.capacity ? this.recorded : this.capacity;
+  }
+
+  /** Append one row; the oldest row is overwritten when full. */
+  write(t: number, r: number, y: number, ym: number, uc: number, u: number, sat: boolean, d: Float64Array): void {
+    const s = this.storage;
+    const i = this.recorded % this.capacity;
+    s.t[i] = t;
+    s.r[i] = r;
+    s.y[i] = y;
+    s.ym[i] = ym;
+    s.uc[i] = uc;
+    s.u[i] = u;
+    s.sat[i] = sat ? 1 : 0;
+    for (let j = 0; j < s.d.length; j++) s.d[j][i] = d[j];
+    this.recorded++;
+    s.length = this.length;
+  }
+
+  /** Index in storage of the oldest row held. */
+  private get start(): number {
+    return this.recorded <= this.capacity ? 0 : this.recorded % this.capacity;
+  }
+
+  /**
+   * Copy the newest `min(length, out.length)` values of one channel, oldest first, into `out`.
+   * @returns the number of values written.
+   */
+  readChannel(channel: TraceChannel, out: Float64Array): number {
+    const src = this.storage[channel];
+    const held = this.length;
+    const count = held < out.length ? held : out.length;
+    let i = (this.start + (held - count)) % this.capacity;
+    for (let k = 0; k < count; k++) {
+      out[k] = src[i];
+      i++;
+      if (i === this.capacity) i = 0;
+    }
+    return count;
+  }
+
+  /**
+   * Copy the newest rows (as many as `out` holds), oldest first, into a caller-owned trace made
+   * by `createTrace(rows, names)`; sets `out.length`. @returns the number of rows copied.
+   */
+  readTrace(out: Trace): number {
+    const held = this.length;
+    const room = out.t.length;
+    const count = held < room ? held : room;
+    const first = (this.start + (held - count)) % this.capacity;
+    const s = this.storage;
+    let i = first;
+    for (let k = 0; k < count; k++) {
+      out.t[k] = s.t[i];
+      out.r[k] = s.r[i];
+      out.y[k] = s.y[i];
+      out.ym[k] = s.ym[i];
+      out.uc[k] = s.uc[i];
+      out.u[k] = s.u[i];
+      out.sat[k] = s.sat[i];
+      for (let j = 0; j < s.d.length && j < out.d.length; j++) out.d[j][k] = s.d[j][i];
+      i++;
+      if (i === this.capacity) i = 0;
+    }
+    out.length = count;
+    return count;
+  }
+}
