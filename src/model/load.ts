@@ -1,0 +1,96 @@
+/**
+ * Plant file text -> validated `PlantSpec` plus diagnostics. Never throws on bad input: YAML
+ * syntax errors, alias bombs, oversized files and every schema error come back as diagnostics,
+ * as many as can be found in one pass.
+ */
+import { diagnostic, hasErrors, type Diagnostic } from './diagnostics.js';
+import { readActuator } from './schema/actuator.js';
+import { readLoop } from './schema/loop.js';
+import { readModel } from './schema/model.js';
+import { Reader } from './schema/reader.js';
+import { readSensor } from './schema/sensor.js';
+import { readUncertainty } from './schema/uncertainty.js';
+import type { PlantSpec } from './types.js';
+import { parsePlantYaml, type PlantDocument } from './yaml-doc.js';
+
+/** Largest plant file accepted, in characters (2 MiB). */
+export const MAX_PLANT_TEXT = 2 * 1024 * 1024;
+
+export const TOP_LEVEL_FIELDS = ['name', 'description', 'model', 'actuator', 'sensor', 'uncertainty', 'loop'] as const;
+
+export interface LoadResult {
+  /** Present only when there is no error (warnings allowed). */
+  plant?: PlantSpec;
+  diagnostics: Diagnostic[];
+  /** The kept YAML document (null when the text was refused before parsing). */
+  doc: PlantDocument | null;
+}
+
+/**
+ * Load a plant file. `fileName` is only used in messages that mention the file itself; the
+ * diagnostics carry offsets, to be printed with `formatDiagnostic(d, text, fileName)`.
+ */
+export function loadPlant(text: string, fileName = '<plant>'): LoadResult {
+  try {
+    return loadUnsafe(text, fileName);
+  } catch (e) {
+    // A loader bug must not take the caller down; report it at the top of the file.
+    const msg = e instanceof Error ? e.message : String(e);
+    return { diagnostics: [diagnostic('YAML_SYNTAX', `internal error while reading ${fileName}: ${msg}`, [0, 0])], doc: null };
+  }
+}
+
+function loadUnsafe(text: string, fileName: string): LoadResult {
+  if (typeof text !== 'string') throw new TypeError('loadPlant: text must be a string');
+  if (text.length > MAX_PLANT_TEXT) {
+    return {
+      diagnostics: [
+        diagnostic(
+          'FILE_TOO_LARGE',
+          `${fileName} is ${text.length} characters; plant files are limited to ${MAX_PLANT_TEXT} (2 MiB)`,
+          [0, 0],
+        ),
+      ],
+      doc: null,
+    };
+  }
+  const { root, issues, doc } = parsePlantYaml(text);
+  const diagnostics: Diagnostic[] = issues.map((i) => diagnostic(i.code, i.message, i.span, i.warning ? 'warning' : 'error'));
+  if (hasErrors(diagnostics)) return { diagnostics, doc };
+  if (root === null || root.kind !== 'map') {
+    const span = root ? root.span : ([0, 0] as const);
+    diagnostics.push(
+      diagnostic('NOT_A_MAPPING', 'a plant file must be a mapping with at least name, model and loop', span),
+    );
+    return { diagnostics, doc };
+  }
+  const r = new Reader();
+  const top = r.fields(root, '', TOP_LEVEL_FIELDS, [0, 0]);
+  if (!top) return { diagnostics: [...diagnostics, ...r.diagnostics], doc };
+
+  const nn = top.require('name');
+  const name = nn && r.string(nn, 'name');
+  const dn = top.get('description');
+  if (dn) r.string(dn, 'description');
+
+  const mn = top.require('model');
+  const modelRead = mn && readModel(r, mn, top.keySpan('model'));
+  const actuator = readActuator(r, top.get('actuator'), top.keySpan('actuator'));
+  const sensor = readSensor(r, top.get('sensor'), top.keySpan('sensor'));
+  const uncertainty = readUncertainty(
+    r,
+    top.get('uncertainty'),
+    modelRead ? modelRead.uncertain : null,
+    modelRead ? modelRead.model.type : null,
+  );
+  const ln = top.require('loop', ' (sample_time, controller and trial)');
+  const loop = ln && readLoop(r, ln, top.keySpan('loop'), actuator, modelRead ? modelRead.disturbances : null);
+
+  diagnostics.push(...r.diagnostics);
+  if (hasErrors(diagnostics) || name === undefined || !modelRead || !loop) return { diagnostics, doc };
+  return {
+    plant: { name, model: modelRead.model, actuator, sensor, uncertainty, loop },
+    diagnostics,
+    doc,
+  };
+}

@@ -1,0 +1,56 @@
+/** `type: transfer` — num(s)/den(s) e^{-L s}, coefficients in descending powers of s. */
+import type { Span } from '../types.js';
+import type { YMap } from '../yaml-doc.js';
+import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
+import type { Reader } from './reader.js';
+
+export const TRANSFER_FIELDS = ['type', 'numerator', 'denominator', 'delay'] as const;
+
+export function readTransfer(r: Reader, node: YMap, owner: Span): ModelRead | undefined {
+  const f = r.fields(node, 'model', TRANSFER_FIELDS, owner);
+  if (!f) return undefined;
+  const nn = f.require('numerator');
+  const dnode = f.require('denominator');
+  const numerator = nn && r.numbers(nn, 'model.numerator');
+  const denominator = dnode && r.numbers(dnode, 'model.denominator');
+  const dl = f.get('delay');
+  const delay = dl ? r.time(dl, 'model.delay', { ge: 0 }) : 0;
+  if (numerator === undefined || denominator === undefined || delay === undefined || !nn || !dnode) return undefined;
+  let ok = true;
+  if (numerator.length === 0) {
+    r.error('BAD_VALUE', 'model.numerator must have at least one coefficient', nn.span);
+    ok = false;
+  }
+  if (denominator.length === 0) {
+    r.error('BAD_VALUE', 'model.denominator must have at least one coefficient', dnode.span);
+    ok = false;
+  } else if (denominator[0] === 0) {
+    const first = dnode.kind === 'seq' ? dnode.items[0].span : dnode.span;
+    r.error(
+      'IMPROPER_TRANSFER',
+      'model.denominator: the leading coefficient (highest power of s) must not be 0',
+      first,
+    );
+    ok = false;
+  }
+  if (!ok) return undefined;
+  // Leading zeros of the numerator do not raise its degree.
+  let lead = 0;
+  while (lead < numerator.length - 1 && numerator[lead] === 0) lead++;
+  const numDeg = numerator.length - 1 - lead;
+  const denDeg = denominator.length - 1;
+  if (numDeg > denDeg) {
+    r.error(
+      'IMPROPER_TRANSFER',
+      `improper transfer function: numerator degree ${numDeg} exceeds denominator degree ${denDeg} (more zeros than poles cannot be simulated)`,
+      nn.span,
+    );
+    return undefined;
+  }
+  if (numerator.every((c) => c === 0)) r.warn('BAD_VALUE', 'model.numerator is all zeros: the input has no effect', nn.span);
+  return {
+    model: { type: 'transfer', numerator, denominator, delay },
+    disturbances: [LOAD_DISTURBANCE],
+    uncertain: { delay: true },
+  };
+}

@@ -1,0 +1,38 @@
+/** The `uncertainty:` section: name -> [low, high] for robustness sweeps. */
+import type { Span } from '../types.js';
+import type { YNode } from '../yaml-doc.js';
+import type { Reader } from './reader.js';
+
+export function readUncertainty(
+  r: Reader,
+  node: YNode | undefined,
+  uncertain: Readonly<Record<string, boolean>> | null,
+  modelType: string | null,
+): Record<string, [number, number]> {
+  const out: Record<string, [number, number]> = {};
+  if (!node) return out;
+  const m = r.mapping(node, 'uncertainty');
+  if (!m) return out;
+  for (const e of m.entries) {
+    const path = `uncertainty.${e.key}`;
+    // Model failed to load: read the ranges anyway (as plain numbers or times) for more findings.
+    if (uncertain === null) {
+      r.pair(e.value, path, true, false);
+      continue;
+    }
+    if (!Object.prototype.hasOwnProperty.call(uncertain, e.key)) {
+      const names = Object.keys(uncertain);
+      r.error(
+        'UNKNOWN_UNCERTAIN',
+        `uncertainty names '${e.key}', which is not a ${modelType === 'ode' ? 'parameter' : 'field'} of this ${modelType} model; expected one of ${names.join(', ') || '(none)'}`,
+        e.keySpan,
+      );
+      continue;
+    }
+    const isTime = uncertain[e.key];
+    const rule = isTime ? { ge: 0 } : {};
+    const v = r.pair(e.value, path, isTime, false, rule);
+    if (v) out[e.key] = v;
+  }
+  return out;
+}

@@ -1,0 +1,359 @@
+/**
+ * Every use of the `yaml` package lives in this file, so that a move to yaml 3 (which renames
+ * `doc.contents` and drops `getIn/setIn`) touches one file.
+ *
+ * The loader does not walk yaml's nodes directly: `parsePlantYaml` converts the document into a
+ * small neutral tree (`YNode`) carrying spans, with aliases expanded under a budget.
+ */
+import {
+  Document,
+  isAlias,
+  isMap,
+  isPair,
+  isScalar,
+  isSeq,
+  LineCounter,
+  parse as parseYamlValue,
+  parseDocument,
+  type Node as YamlNode,
+} from 'yaml';
+import type { Span } from './types.js';
+
+/** Scalar styles as written in the file. */
+export type ScalarStyle = 'plain' | 'single' | 'double' | 'block';
+
+export interface YScalar {
+  kind: 'scalar';
+  /** The resolved value: string, number (incl. ±Infinity, NaN), boolean or null. */
+  value: unknown;
+  style: ScalarStyle;
+  /** Span of the value's source text (quotes included). */
+  span: Span;
+  /** Maps an index into the string value to a file offset (best effort; see `scalarOffsets`). */
+  offsetOf: (i: number) => number;
+}
+export interface YEntry {
+  key: string;
+  keySpan: Span;
+  value: YNode;
+}
+export interface YMap {
+  kind: 'map';
+  entries: YEntry[];
+  span: Span;
+}
+export interface YSeq {
+  kind: 'seq';
+  items: YNode[];
+  span: Span;
+}
+export type YNode = YScalar | YMap | YSeq;
+
+/** An issue found while reading the YAML layer (syntax, aliases, keys). */
+export interface YamlIssue {
+  code: 'YAML_SYNTAX' | 'YAML_WARNING' | 'ALIAS_LIMIT' | 'WRONG_TYPE';
+  message: string;
+  span: Span;
+  warning: boolean;
+}
+
+/** The kept yaml Document (opaque to callers outside model/). */
+export type PlantDocument = Document.Parsed;
+
+export interface YamlParse {
+  root: YNode | null;
+  issues: YamlIssue[];
+  doc: PlantDocument;
+}
+
+/** Alias expansions allowed per file, and nodes reachable through them. */
+export const ALIAS_BUDGET = Object.freeze({ aliases: 100, nodes: 100_000 });
+
+/** Parse text into the neutral tree. Never throws on bad input. */
+export function parsePlantYaml(text: string): YamlParse {
+  const doc = parseDocument(text, {
+    keepSourceTokens: true,
+    prettyErrors: false,
+    uniqueKeys: true,
+  });
+  // yaml's own `maxAliasCount` only guards `toJS()`; this loader walks the nodes itself, so the
+  // conversion below enforces ALIAS_BUDGET instead.
+  const issues: YamlIssue[] = [];
+  for (const e of doc.errors) {
+    issues.push({ code: 'YAML_SYNTAX', message: yamlMessage(e.message), span: [e.pos[0], e.pos[1]], warning: false });
+  }
+  for (const w of doc.warnings) {
+    issues.push({ code: 'YAML_WARNING', message: yamlMessage(w.message), span: [w.pos[0], w.pos[1]], warning: true });
+  }
+  if (doc.errors.length > 0) return { root: null, issues, doc };
+
+  let aliases = 0;
+  let aliasedNodes = 0;
+  let aborted = false;
+  const convert = (node: unknown, viaAlias: boolean, at: Span): YNode | null => {
+    if (aborted) return null;
+    if (viaAlias && ++aliasedNodes > ALIAS_BUDGET.nodes) {
+      aborted = true;
+      issues.push({
+        code: 'ALIAS_LIMIT',
+        message: `aliases expand to more than ${ALIAS_BUDGET.nodes} nodes; refusing to expand further`,
+        span: at,
+        warning: false,
+      });
+      return null;
+    }
+    if (isAlias(node)) {
+      const span = rangeSpan(node as unknown as YamlNode);
+      if (++aliases > ALIAS_BUDGET.aliases) {
+        aborted = true;
+        issues.push({
+          code: 'ALIAS_LIMIT',
+          message: `more than ${ALIAS_BUDGET.aliases} alias expansions; refusing to expand further`,
+          span,
+          warning: false,
+        });
+        return null;
+      }
+      const target = node.resolve(doc);
+      if (target === undefined) {
+        issues.push({ code: 'YAML_SYNTAX', message: `unknown alias *${node.source}`, span, warning: false });
+        return null;
+      }
+      return convert(target, true, span);
+    }
+    if (isMap(node)) {
+      const entries: YEntry[] = [];
+      for (const pair of node.items) {
+        if (!isPair(pair)) continue;
+        const k = pair.key;
+        if (!isScalar(k) || (typeof k.value !== 'string' && typeof k.value !== 'number' && typeof k.value !== 'boolean')) {
+          const span = k && typeof k === 'object' && 'range' in k ? rangeSpan(k as YamlNode) : at;
+          issues.push({ code: 'WRONG_TYPE', message: 'a field name must be plain text', span, warning: false });
+          continue;
+        }
+        const keySpan = rangeSpan(k);
+        const valueNode = pair.value;
+        let value: YNode | null;
+        if (valueNode === null || valueNode === undefined) {
+          // `key:` with nothing after it: an empty (null) scalar at the end of the key.
+          value = nullScalar([keySpan[1], keySpan[1]]);
+        } else {
+          value = convert(valueNode, viaAlias, keySpan);
+        }
+        if (value === null) return null;
+        entries.push({ key: String(k.value), keySpan, value });
+      }
+      return { kind: 'map', entries, span: rangeSpan(node) };
+    }
+    if (isSeq(node)) {
+      const items: YNode[] = [];
+      for (const item of node.items) {
+        const v = item === null || item === undefined ? nullScalar(rangeSpan(node)) : convert(item, viaAlias, at);
+        if (v === null) return null;
+        items.push(v);
+      }
+      return { kind: 'seq', items, span: rangeSpan(node) };
+    }
+    if (isScalar(node)) {
+      const span = rangeSpan(node);
+      const style: ScalarStyle =
+        node.type === 'QUOTE_DOUBLE'
+          ? 'double'
+          : node.type === 'QUOTE_SINGLE'
+            ? 'single'
+            : node.type === 'BLOCK_LITERAL' || node.type === 'BLOCK_FOLDED'
+              ? 'block'
+              : 'plain';
+      const value = node.value;
+      return {
+        kind: 'scalar',
+        value,
+        style,
+        span,
+        offsetOf: typeof value === 'string' ? scalarOffsets(text, span, style, value) : (i) => span[0] + i,
+      };
+    }
+    return null;
+  };
+
+  const root = doc.contents === null ? null : convert(doc.contents, false, [0, 0]);
+  return { root: aborted ? null : root, issues, doc };
+}
+
+function nullScalar(span: Span): YScalar {
+  return { kind: 'scalar', value: null, style: 'plain', span, offsetOf: () => span[0] };
+}
+
+function rangeSpan(node: { range?: [number, number, number] | null }): Span {
+  const r = node.range;
+  return r ? [r[0], r[1]] : [0, 0];
+}
+
+// yaml appends " at line L, column C" only when prettyErrors is on; strip any trailing context.
+function yamlMessage(message: string): string {
+  const first = message.split('\n')[0];
+  return first.replace(/ at line \d+, column \d+:?$/, '');
+}
+
+/**
+ * Map indices of a string scalar's value to file offsets. Each value character is matched with
+ * the next identical character of the source (quotes and block headers skipped), which is exact
+ * for single-line plain and quoted scalars and close for folded or block text. A double-quoted
+ * scalar with escapes cannot be aligned this way: every index maps to the scalar start.
+ */
+export function scalarOffsets(text: string, span: Span, style: ScalarStyle, value: string): (i: number) => number {
+  const raw = text.slice(span[0], span[1]);
+  let base = span[0];
+  if (style === 'double' && raw.includes('\\')) return () => span[0];
+  if (style === 'plain' && raw === value) return (i) => span[0] + Math.min(i, value.length);
+  let j = 0;
+  if (style === 'single' || style === 'double') j = 1;
+  if (style === 'block') {
+    const nl = raw.indexOf('\n');
+    j = nl < 0 ? raw.length : nl + 1;
+  }
+  const map = new Array<number>(value.length + 1);
+  for (let i = 0; i < value.length; i++) {
+    let k = j;
+    while (k < raw.length && raw[k] !== value[i]) k++;
+    if (k >= raw.length) {
+      // Not found (an escape or a folded line break): keep the last position.
+      map[i] = base + j;
+      continue;
+    }
+    map[i] = base + k;
+    j = k + 1;
+  }
+  map[value.length] = base + j;
+  base = span[0];
+  return (i) => map[Math.max(0, Math.min(i, value.length))] ?? base;
+}
+
+// ---------------------------------------------------------------- line/column
+
+let cachedText: string | null = null;
+let cachedCounter: LineCounter | null = null;
+
+function counterFor(text: string): LineCounter {
+  if (cachedText === text && cachedCounter) return cachedCounter;
+  const lc = new LineCounter();
+  lc.addNewLine(0);
+  for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) lc.addNewLine(i + 1);
+  cachedText = text;
+  cachedCounter = lc;
+  return lc;
+}
+
+/** 1-based line and column of an offset (yaml's LineCounter). */
+export function lineColumn(text: string, offset: number): { line: number; col: number } {
+  const o = Math.max(0, Math.min(offset, text.length));
+  const p = counterFor(text).linePos(o);
+  return { line: p.line, col: p.col };
+}
+
+/** The text of 1-based line `line`, without its line break. */
+export function sourceLine(text: string, line: number): string {
+  const lc = counterFor(text);
+  const start = lc.lineStarts[line - 1] ?? text.length;
+  const next = lc.lineStarts[line];
+  const end = next === undefined ? text.length : next - 1;
+  return text.slice(start, end).replace(/\r$/, '');
+}
+
+// ---------------------------------------------------------------- editing
+
+/** One change to a plant file: the value at `path` (map keys and list indices). */
+export interface ValueEdit {
+  path: (string | number)[];
+  value: number | string;
+}
+
+/**
+ * Write `value` at `path`, changing only the bytes of that value (or inserting one line, or one
+ * `key: value` in a flow mapping, when the last key is absent). Every other byte, comments
+ * included, stays as it was. Throws RangeError when the path cannot be edited that way (a
+ * programmer error: callers edit fields the loader has read).
+ */
+export function setValueInText(text: string, edit: ValueEdit): string {
+  const doc = parseDocument(text, { keepSourceTokens: true, prettyErrors: false });
+  if (doc.errors.length > 0) throw new RangeError('cannot edit a file with YAML errors');
+  const source = yamlLiteral(edit.value);
+  let node: unknown = doc.contents;
+  const path = edit.path;
+  for (let i = 0; i < path.length; i++) {
+    const seg = path[i];
+    const last = i === path.length - 1;
+    if (isMap(node)) {
+      const pair = node.items.find((p) => isScalar(p.key) && String(p.key.value) === String(seg));
+      if (!pair) {
+        if (!last) throw new RangeError(`no field '${String(seg)}' at ${path.slice(0, i).join('.') || 'top level'}`);
+        return insertField(text, node as unknown as MapLike, String(seg), source);
+      }
+      node = pair.value;
+    } else if (isSeq(node) && typeof seg === 'number') {
+      node = node.items[seg];
+      if (node === undefined) throw new RangeError(`no item ${seg} at ${path.slice(0, i).join('.')}`);
+    } else {
+      throw new RangeError(`cannot follow '${String(seg)}' at ${path.slice(0, i).join('.') || 'top level'}`);
+    }
+  }
+  if (!isScalar(node) || !node.range) throw new RangeError(`${path.join('.')} is not a single value`);
+  const [a, b] = node.range;
+  return text.slice(0, a) + source + text.slice(b);
+}
+
+interface MapLike {
+  flow?: boolean;
+  range?: [number, number, number];
+  items: { key: { range?: [number, number, number] } | null; value: { range?: [number, number, number] } | null }[];
+}
+
+function insertField(text: string, map: MapLike, key: string, source: string): string {
+  if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(key)) throw new RangeError(`cannot insert field '${key}'`);
+  const items = map.items;
+  if (map.flow) {
+    if (items.length === 0) {
+      const open = map.range?.[0] ?? 0;
+      return `${text.slice(0, open + 1)} ${key}: ${source} ${text.slice(open + 1)}`;
+    }
+    const lastItem = items[items.length - 1];
+    const end = (lastItem.value?.range ?? lastItem.key?.range)?.[1];
+    if (end === undefined) throw new RangeError('cannot locate the end of the mapping');
+    return `${text.slice(0, end)}, ${key}: ${source}${text.slice(end)}`;
+  }
+  const first = items[0]?.key?.range;
+  const lastItem = items[items.length - 1];
+  const end = (lastItem?.value?.range ?? lastItem?.key?.range)?.[1];
+  if (!first || end === undefined) throw new RangeError('cannot locate the mapping');
+  const lineStart = text.lastIndexOf('\n', first[0] - 1) + 1;
+  const indent = text.slice(lineStart, first[0]);
+  if (/\S/.test(indent)) throw new RangeError('cannot insert into a mapping that shares a line with other text');
+  if (end > 0 && text[end - 1] === '\n') return `${text.slice(0, end)}${indent}${key}: ${source}\n${text.slice(end)}`;
+  const nl = text.indexOf('\n', end);
+  const at = nl < 0 ? text.length : nl;
+  const eol = text[at - 1] === '\r' ? at - 1 : at;
+  const lineBreak = eol < at ? '\r\n' : '\n';
+  return `${text.slice(0, eol)}${lineBreak}${indent}${key}: ${source}${text.slice(eol)}`;
+}
+
+/** A number or string as YAML source that reads back as the same value. */
+export function yamlLiteral(value: number | string): string {
+  if (typeof value === 'number') {
+    if (Number.isNaN(value)) return '.nan';
+    if (value === Infinity) return '.inf';
+    if (value === -Infinity) return '-.inf';
+    return Object.is(value, -0) ? '-0.0' : String(value);
+  }
+  if (/^[A-Za-z0-9_][A-Za-z0-9_ .+-]*[A-Za-z0-9_.]$|^[A-Za-z0-9_]$/.test(value) && safeParse(value) === value) {
+    return value;
+  }
+  return JSON.stringify(value);
+}
+
+function safeParse(s: string): unknown {
+  try {
+    return parseYamlValue(s);
+  } catch {
+    return undefined;
+  }
+}
