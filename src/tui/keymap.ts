@@ -1,0 +1,192 @@
+/**
+ * The one table of key bindings. The input handler looks keys up here and the help overlay prints
+ * this same table, so what the screen says and what it does cannot drift apart.
+ */
+
+/** Everything a key can ask the screen to do (overlays answer keys of their own, see below). */
+export type KeyCommand =
+  | 'select_prev'
+  | 'select_next'
+  | 'nudge_up_fine'
+  | 'nudge_down_fine'
+  | 'nudge_up_coarse'
+  | 'nudge_down_coarse'
+  | 'type_value'
+  | 'undo'
+  | 'redo'
+  | 'next_form'
+  | 'next_anti_windup'
+  | 'keep_baseline'
+  | 'baseline_from_file'
+  | 'clear_baseline'
+  | 'toggle_rehearse'
+  | 'set_switch_time'
+  | 'toggle_run_mode'
+  | 'pause_resume'
+  | 'speed_up'
+  | 'speed_down'
+  | 'setpoint_step_up'
+  | 'setpoint_step_down'
+  | 'disturbance_step_up'
+  | 'disturbance_step_down'
+  | 'toggle_manual'
+  | 'restart_live'
+  | 'save'
+  | 'help'
+  | 'quit';
+
+/** A group heading of the help overlay. */
+export type KeyGroup = 'edit' | 'compare' | 'run' | 'file';
+
+export interface KeyBinding {
+  /** Key tokens as produced by `keyToken` (a printable character, or a name such as 'up'). */
+  readonly keys: readonly string[];
+  readonly command: KeyCommand;
+  readonly group: KeyGroup;
+  /** One line for the help overlay. */
+  readonly help: string;
+}
+
+/**
+ * Fine and coarse nudges, as a fraction of the value. A value of 0 cannot be scaled, so the
+ * setpoint weights (which live in [0, 1] and are often 0) move by these amounts absolutely.
+ */
+export const NUDGE = { fine: 0.01, coarse: 0.1 } as const;
+
+/** Simulated seconds per wall-clock second that the live run offers, in order. */
+export const SPEEDS: readonly number[] = [1, 2, 5, 10, 20, 50, 100, 200, 500, 1000];
+
+export const KEYMAP: readonly KeyBinding[] = [
+  { keys: ['up', 'k'], command: 'select_prev', group: 'edit', help: 'previous parameter' },
+  { keys: ['down', 'j', 'tab'], command: 'select_next', group: 'edit', help: 'next parameter' },
+  { keys: ['right', '+', '='], command: 'nudge_up_fine', group: 'edit', help: `raise the selected value ${NUDGE.fine * 100} %` },
+  { keys: ['left', '-', '_'], command: 'nudge_down_fine', group: 'edit', help: `lower the selected value ${NUDGE.fine * 100} %` },
+  { keys: [']', 'pgup'], command: 'nudge_up_coarse', group: 'edit', help: `raise the selected value ${NUDGE.coarse * 100} %` },
+  { keys: ['[', 'pgdn'], command: 'nudge_down_coarse', group: 'edit', help: `lower the selected value ${NUDGE.coarse * 100} %` },
+  { keys: ['enter', 'e'], command: 'type_value', group: 'edit', help: 'type an exact value (units allowed: 90 s, 1.5 min, 0.2 /min)' },
+  { keys: ['u'], command: 'undo', group: 'edit', help: 'undo the last change' },
+  { keys: ['r'], command: 'redo', group: 'edit', help: 'redo' },
+  { keys: ['f'], command: 'next_form', group: 'edit', help: 'next form: ideal, parallel, series (values converted)' },
+  { keys: ['a'], command: 'next_anti_windup', group: 'edit', help: 'next anti-windup: none, clamp, back calculation' },
+  { keys: ['b'], command: 'keep_baseline', group: 'compare', help: 'keep the current gain set as the baseline' },
+  { keys: ['o'], command: 'baseline_from_file', group: 'compare', help: "baseline = the file's gains (today's)" },
+  { keys: ['x'], command: 'clear_baseline', group: 'compare', help: 'drop the baseline' },
+  { keys: ['g'], command: 'toggle_rehearse', group: 'compare', help: 'rehearse a retune: run baseline, switch to the new gains' },
+  { keys: ['t'], command: 'set_switch_time', group: 'compare', help: 'time of the switch in the rehearsal' },
+  { keys: ['l'], command: 'toggle_run_mode', group: 'run', help: 'instant trial / live run' },
+  { keys: ['space'], command: 'pause_resume', group: 'run', help: 'pause or resume the live run' },
+  { keys: ['>', '.'], command: 'speed_up', group: 'run', help: 'live run faster' },
+  { keys: ['<', ','], command: 'speed_down', group: 'run', help: 'live run slower' },
+  { keys: ['s'], command: 'setpoint_step_up', group: 'run', help: 'live: step the setpoint up' },
+  { keys: ['S'], command: 'setpoint_step_down', group: 'run', help: 'live: step the setpoint down' },
+  { keys: ['d'], command: 'disturbance_step_up', group: 'run', help: 'live: step the disturbance up' },
+  { keys: ['D'], command: 'disturbance_step_down', group: 'run', help: 'live: step the disturbance down' },
+  { keys: ['m'], command: 'toggle_manual', group: 'run', help: 'live: manual (output held) / auto' },
+  { keys: ['z'], command: 'restart_live', group: 'run', help: 'live: start the run again from t = 0' },
+  { keys: ['w'], command: 'save', group: 'file', help: 'write the gain set into the plant file (asks first)' },
+  { keys: ['?', 'h'], command: 'help', group: 'file', help: 'this help' },
+  { keys: ['q', 'ctrl-c'], command: 'quit', group: 'file', help: 'quit (asks if there are unsaved changes)' },
+];
+
+/** Keys answered inside a question or the text field; shown in the help overlay too. */
+export const PROMPT_KEYS: readonly { keys: string; help: string }[] = [
+  { keys: 'y / n', help: 'answer a question (Esc = no)' },
+  { keys: 'enter / esc', help: 'accept / cancel a typed value' },
+];
+
+/** The always-visible one-line hint (short on purpose: it must fit 80 columns). */
+export const HINT = '↑↓ select  ←→ ±1%  [ ] ±10%  Enter type  u/r undo/redo  l live  w save  ? keys  q quit';
+
+/** Minimal shape of Ink's key record that `keyToken` reads. */
+export interface KeyFlags {
+  upArrow?: boolean;
+  downArrow?: boolean;
+  leftArrow?: boolean;
+  rightArrow?: boolean;
+  pageUp?: boolean;
+  pageDown?: boolean;
+  return?: boolean;
+  escape?: boolean;
+  ctrl?: boolean;
+  shift?: boolean;
+  tab?: boolean;
+  backspace?: boolean;
+  delete?: boolean;
+  meta?: boolean;
+}
+
+/**
+ * Turn one Ink key event into the token used in the table: a name for special keys ('up',
+ * 'enter', 'ctrl-c', 'shift-tab' ...) or the printable character itself. Empty string = ignore.
+ */
+export function keyToken(input: string, key: KeyFlags): string {
+  if (key.ctrl && input.length === 1) return `ctrl-${input.toLowerCase()}`;
+  if (key.upArrow) return 'up';
+  if (key.downArrow) return 'down';
+  if (key.leftArrow) return 'left';
+  if (key.rightArrow) return 'right';
+  if (key.pageUp) return 'pgup';
+  if (key.pageDown) return 'pgdn';
+  if (key.return) return 'enter';
+  if (key.escape) return 'esc';
+  if (key.tab) return key.shift ? 'shift-tab' : 'tab';
+  if (key.backspace || key.delete) return 'backspace';
+  if (input === ' ') return 'space';
+  if (input.length === 1 && !key.meta) return input;
+  return '';
+}
+
+const byToken = new Map<string, KeyCommand>();
+for (const b of KEYMAP) {
+  for (const k of b.keys) {
+    // A token bound twice would make the help overlay lie about one of them.
+    if (byToken.has(k)) throw new Error(`keymap: '${k}' bound twice`);
+    byToken.set(k, b.command);
+  }
+}
+// shift-tab is the natural reverse of tab; listed here rather than in the table to keep the
+// help line short, and documented beside 'previous parameter' by `helpLines`.
+byToken.set('shift-tab', 'select_prev');
+
+/** The command bound to a key token, or null. */
+export function commandFor(token: string): KeyCommand | null {
+  return byToken.get(token) ?? null;
+}
+
+const KEY_NAMES: Record<string, string> = {
+  up: '↑',
+  down: '↓',
+  left: '←',
+  right: '→',
+  pgup: 'PgUp',
+  pgdn: 'PgDn',
+  enter: 'Enter',
+  esc: 'Esc',
+  tab: 'Tab',
+  space: 'Space',
+  'ctrl-c': 'Ctrl-C',
+};
+
+/** How a key token is written for people. */
+export function keyLabel(token: string): string {
+  return KEY_NAMES[token] ?? token;
+}
+
+const GROUP_TITLES: Record<KeyGroup, string> = {
+  edit: 'Edit the gain set',
+  compare: 'Baseline and rehearsal',
+  run: 'Running',
+  file: 'File and screen',
+};
+
+/** The help overlay's text, one entry per line, built from `KEYMAP`. */
+export function helpLines(): { title: string; rows: { keys: string; help: string }[] }[] {
+  const groups: KeyGroup[] = ['edit', 'compare', 'run', 'file'];
+  return groups.map((g) => ({
+    title: GROUP_TITLES[g],
+    rows: KEYMAP.filter((b) => b.group === g).map((b) => ({
+      keys: b.keys.map(keyLabel).join(' ') + (b.command === 'select_prev' ? ' Shift-Tab' : ''),
+      help: b.help,
+    })),
+  }));
+}
