@@ -17,7 +17,7 @@
  * `u` for the per-step input variant) with `const`, so each source is pasted verbatim and block
  * scoping, not text substitution, binds it to the stage's state.
  */
-import type { IntegratorName } from '../model/types.js';
+import { MATH_HELPERS, type IntegratorName } from '../model/index.js';
 import type { PlantDynamics } from './types.js';
 
 /**
@@ -52,7 +52,7 @@ export interface StepperOptions {
   inputSequence?: boolean;
   /** Write the output at the end of every step into `ys` (sensor delay at step resolution). */
   outputSequence?: boolean;
-  /** The table the sources call as `F.*` (model/'s MATH_HELPERS). Default: no helpers. */
+  /** The table the sources call as `F.*`. Default: model/'s MATH_HELPERS. */
   helpers?: Readonly<Record<string, (...args: number[]) => number>>;
 }
 
@@ -70,7 +70,7 @@ export const INTEGRATOR_ORDER: Readonly<Record<IntegratorName, number>> = Object
   euler: 1,
 });
 
-const NO_HELPERS: Readonly<Record<string, (...args: number[]) => number>> = Object.freeze({});
+const DEFAULT_HELPERS: Readonly<Record<string, (...args: number[]) => number>> = MATH_HELPERS;
 
 // Cache by source text (not by plant object), so `withParams` copies and re-compiled plants
 // with the same expressions share generated code. Bounded: oldest entries are dropped.
@@ -224,7 +224,7 @@ function stepBody(integrator: IntegratorName, nx: number, deriv: string[]): stri
 
 /** The JavaScript source of the step function (exposed for inspection and tests). */
 export function stepperSource(plant: PlantDynamics, integrator: IntegratorName, options: StepperOptions = {}): string {
-  const helpers = options.helpers ?? NO_HELPERS;
+  const helpers = options.helpers ?? DEFAULT_HELPERS;
   const { deriv, output, inverses } = prepare(plant, helpers);
   const nx = plant.nx;
   const stages = integrator === 'rk4' ? 4 : integrator === 'heun' ? 2 : 1;
@@ -263,7 +263,7 @@ export function generateStepper(
   integrator: IntegratorName,
   options: StepperOptions = {},
 ): StepFunction {
-  const helpers = options.helpers ?? NO_HELPERS;
+  const helpers = options.helpers ?? DEFAULT_HELPERS;
   const key = [
     integrator,
     options.inputSequence ? 'U' : 'u',
@@ -286,7 +286,7 @@ export function generateStepper(
 export function generateOutput(
   plant: PlantDynamics,
   source: string = plant.outputSource,
-  helpers: Readonly<Record<string, (...args: number[]) => number>> = NO_HELPERS,
+  helpers: Readonly<Record<string, (...args: number[]) => number>> = DEFAULT_HELPERS,
 ): OutputFunction {
   const np = plant.params.length;
   const nd = plant.d0.length;

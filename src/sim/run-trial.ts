@@ -6,7 +6,7 @@ import type { DiscreteController, LoopConfig, PlantDynamics, TrialResult, TrialS
 
 /** Options of `runTrial`. */
 export interface TrialOptions {
-  /** The `F.*` helper table the plant sources call (model/'s MATH_HELPERS). */
+  /** The `F.*` helper table the plant sources call (default: model/'s MATH_HELPERS). */
   helpers?: SimulationInit['helpers'];
 }
 

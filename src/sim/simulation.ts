@@ -34,7 +34,7 @@ export interface SimulationInit {
   initialOutput?: number | null;
   /** Rows kept in the ring-buffer trace (default 4096). */
   traceCapacity?: number;
-  /** The `F.*` helper table the plant sources call (model/'s MATH_HELPERS). */
+  /** The `F.*` helper table the plant sources call (default: model/'s MATH_HELPERS). */
   helpers?: Readonly<Record<string, (...args: number[]) => number>>;
 }
 

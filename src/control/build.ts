@@ -1,0 +1,37 @@
+/**
+ * Controller spec (as loaded from the plant file) -> a controller instance for the engine.
+ */
+import type { ControllerSpec, ControllerStructure, GainSet } from '../model/types.js';
+import type { DiscreteController } from '../sim/index.js';
+import { PidController } from './pid.js';
+
+/**
+ * The gain set with the structure imposed: p and pd have no integral (ti = Infinity),
+ * p and pi no derivative (td = 0).
+ */
+export function applyStructure(structure: ControllerStructure, g: GainSet): GainSet {
+  switch (structure) {
+    case 'p':
+      return { ...g, ti: Infinity, td: 0 };
+    case 'pi':
+      return { ...g, td: 0 };
+    case 'pd':
+      return { ...g, ti: Infinity };
+    case 'pid':
+      return { ...g };
+    default:
+      throw new RangeError(`unknown controller structure ${String(structure)}`);
+  }
+}
+
+/**
+ * Build the controller of a plant file's loop.
+ * @param sampleTime controller sample time, s (the loop's sample_time)
+ */
+export function buildController(spec: ControllerSpec, sampleTime: number): DiscreteController {
+  return new PidController(applyStructure(spec.structure, spec.gains), {
+    sampleTime,
+    outputMin: spec.outputMin,
+    outputMax: spec.outputMax,
+  });
+}
