@@ -1,0 +1,341 @@
+/**
+ * `looprig run FILE`: simulate the plant file's trial with its controller and report the metrics.
+ * A diverging loop is a result (exit 0, reported clearly); a bad file or bad arguments exit 2.
+ */
+import { parseArgs } from 'node:util';
+import { checkRequirements, trialMetrics } from '../../analysis/index.js';
+import type { RequirementResult, TrialMetrics } from '../../analysis/index.js';
+import { buildController } from '../../control/index.js';
+import { compilePlant, parseDuration } from '../../model/index.js';
+import type { PlantSpec, Requirements } from '../../model/types.js';
+import { chooseStep, runTrial } from '../../sim/index.js';
+import type { LoopConfig, Trace, TrialResult } from '../../sim/types.js';
+import { UserError } from '../errors.js';
+import { num, secs, table } from '../format.js';
+import type { Io } from '../io.js';
+import { finiteOrNull, toJson } from '../json.js';
+import { loadPlantFile, parseOverrides } from '../load-plant-file.js';
+import type { Override } from '../load-plant-file.js';
+import { USAGE } from '../usage.js';
+
+export interface RunOptions {
+  file: string;
+  json: boolean;
+  csv: string | null;
+  overrides: Override[];
+  /** Trial duration override, s. */
+  duration: number | null;
+  /** Integration step override, s. */
+  step: number | null;
+}
+
+/** Parse the arguments of `run`; any mistake is a `UserError` with exit status 2. */
+export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...args],
+      allowPositionals: true,
+      strict: true,
+      options: {
+        json: { type: 'boolean' },
+        csv: { type: 'string' },
+        set: { type: 'string', multiple: true },
+        duration: { type: 'string' },
+        step: { type: 'string' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    });
+  } catch (error) {
+    throw new UserError(`run: ${(error as Error).message}`);
+  }
+  const { values, positionals } = parsed;
+  if (values.help) return 'help';
+  if (positionals.length !== 1) {
+    throw new UserError(positionals.length === 0 ? 'run: missing FILE' : `run: one FILE expected, got ${positionals.length}`);
+  }
+  const time = (flag: string, raw: string | undefined): number | null => {
+    if (raw === undefined) return null;
+    let v: number;
+    try {
+      v = parseDuration(raw);
+    } catch {
+      throw new UserError(`run: --${flag} ${raw}: not a time (write e.g. 600, 600s, 10min)`);
+    }
+    if (!(v > 0) || !Number.isFinite(v)) throw new UserError(`run: --${flag} must be a positive time, got ${raw}`);
+    return v;
+  };
+  return {
+    file: positionals[0],
+    json: values.json === true,
+    csv: values.csv ?? null,
+    overrides: parseOverrides(values.set ?? []),
+    duration: time('duration', values.duration),
+    step: time('step', values.step),
+  };
+}
+
+/** Everything `run` computed, before printing. */
+export interface RunReport {
+  file: string;
+  plant: PlantSpec;
+  result: TrialResult;
+  metrics: TrialMetrics;
+  requirements: RequirementResult[];
+  warnings: string[];
+}
+
+/** Requirements that `run` does not evaluate (they need the frequency response). */
+const FREQUENCY_REQUIREMENTS: readonly [keyof Requirements, string][] = [
+  ['maxSensitivity', 'max_sensitivity'],
+  ['gainMargin', 'gain_margin'],
+  ['phaseMarginDeg', 'phase_margin_deg'],
+  ['bandwidth', 'bandwidth'],
+  ['dampingRatio', 'damping_ratio'],
+];
+
+/** Load, apply overrides, simulate and measure. Prints only loader diagnostics (stderr). */
+export function runPlant(options: RunOptions, io: Io): RunReport {
+  const loaded = loadPlantFile(options.file, io, options.overrides);
+  const plant = withRunOverrides(loaded.plant, options);
+  const loop = plant.loop;
+  const dynamics = compilePlant(plant);
+  const controller = buildController(loop.controller, loop.sampleTime);
+  const choice = loop.step === null ? chooseStep(dynamics, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0) : null;
+  const step = loop.step ?? choice!.step;
+  const config: LoopConfig = {
+    actuator: plant.actuator,
+    sensor: plant.sensor,
+    sampleTime: loop.sampleTime,
+    step,
+    integrator: loop.integrator,
+  };
+  const result = runTrial(dynamics, controller, config, loop.trial);
+  const metrics = trialMetrics(result.trace, loop.trial, loop.requirements);
+  const requirements = checkRequirements(metrics, loop.requirements);
+  const warnings = [...loaded.warnings, ...(choice?.warnings ?? []), ...result.warnings];
+  for (const [key, name] of FREQUENCY_REQUIREMENTS) {
+    if (loop.requirements[key] !== undefined) warnings.push(`requirement ${name} is not checked by run (frequency domain)`);
+  }
+  return { file: options.file, plant, result, metrics, requirements, warnings };
+}
+
+/** Apply --duration and --step to a loaded plant (a copy; the loaded spec is not changed). */
+function withRunOverrides(plant: PlantSpec, options: RunOptions): PlantSpec {
+  if (options.duration === null && options.step === null) return plant;
+  const loop = { ...plant.loop };
+  if (options.step !== null) {
+    if (options.step > loop.sampleTime * (1 + 1e-9)) {
+      throw new UserError(`run: --step ${num(options.step)} s is longer than the sample time ${num(loop.sampleTime)} s`);
+    }
+    loop.step = options.step;
+  }
+  if (options.duration !== null) {
+    const duration = options.duration;
+    // Events after the new end would never happen: drop them rather than reject the file.
+    loop.trial = { ...loop.trial, duration, events: loop.trial.events.filter((e) => e.at <= duration) };
+  }
+  return { ...plant, loop };
+}
+
+/** `looprig run ...` */
+export async function runCommand(args: readonly string[], io: Io): Promise<number> {
+  const options = parseRunArgs(args);
+  if (options === 'help') {
+    io.out(USAGE);
+    return 0;
+  }
+  const report = runPlant(options, io);
+  if (options.csv !== null) {
+    try {
+      io.writeText(options.csv, traceCsv(report.result.trace));
+    } catch (error) {
+      throw new UserError(`cannot write ${options.csv}: ${(error as Error).message}`);
+    }
+  }
+  io.out(options.json ? toJson(reportJson(report)) : summaryText(report));
+  return 0;
+}
+
+// ---------------------------------------------------------------- output
+
+/** The trace as CSV: t, setpoint, output, measured, u, then one column per disturbance. */
+export function traceCsv(trace: Trace): string {
+  const header = ['t', 'setpoint', 'output', 'measured', 'u', ...trace.disturbanceNames];
+  const lines = [header.join(',')];
+  for (let i = 0; i < trace.length; i++) {
+    const row = [trace.t[i], trace.r[i], trace.y[i], trace.ym[i], trace.u[i]];
+    for (const d of trace.d) row.push(d[i]);
+    lines.push(row.map(String).join(','));
+  }
+  return `${lines.join('\n')}\n`;
+}
+
+/** The `--json` document (see the CLI contract in the design notes). */
+export function reportJson(report: RunReport): unknown {
+  const { plant, result, metrics } = report;
+  const first = metrics.firstStep;
+  const events: { at: number; [key: string]: unknown }[] = [
+    ...metrics.steps.map((s) => ({
+      kind: 'setpoint',
+      at: s.at,
+      from: s.from,
+      to: s.to,
+      rise_time: finiteOrNull(s.riseTime),
+      overshoot_pct: finiteOrNull(s.overshootPct),
+      peak_time: finiteOrNull(s.peakTime),
+      settling_time: finiteOrNull(s.settlingTime),
+      steady_state_error: finiteOrNull(s.steadyStateError),
+      iae: finiteOrNull(s.iae),
+      ise: finiteOrNull(s.ise),
+      itae: finiteOrNull(s.itae),
+    })),
+    ...metrics.ramps.map((r) => ({
+      kind: 'setpoint_ramp',
+      at: r.at,
+      from: r.from,
+      to: r.to,
+      duration: r.duration,
+      end_error: finiteOrNull(r.endError),
+      max_abs_error: finiteOrNull(r.maxAbsError),
+      iae: finiteOrNull(r.iae),
+    })),
+    ...metrics.disturbances.map((d) => ({
+      kind: 'disturbance',
+      at: d.at,
+      name: d.name,
+      from: finiteOrNull(d.from),
+      to: d.to,
+      setpoint: d.setpoint,
+      peak_deviation: finiteOrNull(d.peakDeviation),
+      peak_time: finiteOrNull(d.peakTime),
+      recovery_time: finiteOrNull(d.recoveryTime),
+      band: d.band,
+      iae: finiteOrNull(d.iae),
+      ise: finiteOrNull(d.ise),
+      itae: finiteOrNull(d.itae),
+    })),
+  ].sort((a, b) => a.at - b.at);
+  const o = metrics.overall;
+  return {
+    plant: { name: plant.name, file: report.file, model_type: plant.model.type },
+    status: result.status,
+    steps: result.steps,
+    step: result.step,
+    sample_time: plant.loop.sampleTime,
+    duration: plant.loop.trial.duration,
+    diverged_at: result.divergedAt,
+    metrics: {
+      rise_time: first ? finiteOrNull(first.riseTime) : null,
+      overshoot_pct: first ? finiteOrNull(first.overshootPct) : null,
+      peak_time: first ? finiteOrNull(first.peakTime) : null,
+      settling_time: first ? finiteOrNull(first.settlingTime) : null,
+      steady_state_error: first ? finiteOrNull(first.steadyStateError) : null,
+      iae: finiteOrNull(o.iae),
+      ise: finiteOrNull(o.ise),
+      itae: finiteOrNull(o.itae),
+      u_total_variation: finiteOrNull(o.uTotalVariation),
+      saturated_time: finiteOrNull(o.saturatedTime),
+      max_abs_output: finiteOrNull(o.maxAbsOutput),
+    },
+    events,
+    requirements: report.requirements.map((r) => ({
+      name: r.name,
+      measured: finiteOrNull(r.measured),
+      limit: r.limit,
+      pass: r.pass,
+      at: r.at,
+    })),
+    warnings: report.warnings,
+  };
+}
+
+const UNITS: Readonly<Record<string, string>> = {
+  overshoot_pct: ' %',
+  rise_time: ' s',
+  settling_time: ' s',
+  saturated_time: ' s',
+};
+
+/** The human-readable summary. */
+export function summaryText(report: RunReport): string {
+  const { plant, result, metrics } = report;
+  const loop = plant.loop;
+  const c = loop.controller;
+  const lines: string[] = [];
+  lines.push(`${plant.name}  (${report.file})`);
+  const gains = Object.entries(c.values)
+    .map(([k, v]) => `${k} ${num(v)}`)
+    .join(', ');
+  lines.push(`model ${plant.model.type}; controller ${c.structure} (${c.form}) ${gains}`);
+  lines.push(
+    `sample ${secs(loop.sampleTime)}, step ${secs(result.step)} (${loop.integrator}), ${result.steps} steps over ${secs(loop.trial.duration)}`,
+  );
+  lines.push(
+    result.status === 'diverged'
+      ? `status: UNSTABLE - diverged at t = ${num(result.divergedAt ?? NaN)} s (metrics below cover the trace up to there)`
+      : 'status: ok',
+  );
+  lines.push('');
+
+  const s = metrics.firstStep;
+  if (s !== null) {
+    lines.push(`first setpoint step ${num(s.from)} -> ${num(s.to)} at ${secs(s.at)}:`);
+    lines.push(
+      `  rise time ${secs(s.riseTime, 'not reached')}, overshoot ${num(s.overshootPct)} %, peak ${num(s.peakValue)} at +${secs(s.peakTime)}, ` +
+        `settling ${secs(s.settlingTime, 'not settled')}, steady-state error ${num(s.steadyStateError)}`,
+    );
+  } else {
+    lines.push('no setpoint step in this trial');
+  }
+  const o = metrics.overall;
+  lines.push(
+    `whole trial: IAE ${num(o.iae)}, ISE ${num(o.ise)}, ITAE ${num(o.itae)}, u total variation ${num(o.uTotalVariation)}, ` +
+      `saturated ${secs(o.saturatedTime)}, peak |u| ${num(o.maxAbsOutput)}`,
+  );
+
+  const rows: string[][] = [];
+  for (const e of metrics.steps) {
+    rows.push([secs(e.at), 'setpoint', `${num(e.from)} -> ${num(e.to)}`, `rise ${secs(e.riseTime)}`, `overshoot ${num(e.overshootPct)} %`,
+      `settling ${secs(e.settlingTime, 'not settled')}`, `IAE ${num(e.iae)}`]);
+  }
+  for (const r of metrics.ramps) {
+    rows.push([secs(r.at), 'ramp', `${num(r.from)} -> ${num(r.to)} in ${secs(r.duration)}`, `end error ${num(r.endError)}`,
+      `max |e| ${num(r.maxAbsError)}`, '', `IAE ${num(r.iae)}`]);
+  }
+  for (const d of metrics.disturbances) {
+    rows.push([secs(d.at), `disturbance ${d.name}`, `${num(d.from)} -> ${num(d.to)}`, `peak ${num(d.peakDeviation)} at +${secs(d.peakTime)}`,
+      `band ${num(d.band)}`, `recovery ${secs(d.recoveryTime, 'not recovered')}`, `IAE ${num(d.iae)}`]);
+  }
+  rows.sort((a, b) => parseFloat(a[0]) - parseFloat(b[0]));
+  if (rows.length > 0) {
+    lines.push('', 'events:');
+    lines.push(
+      table(rows)
+        .split('\n')
+        .map((l) => `  ${l}`)
+        .join('\n'),
+    );
+  }
+
+  if (report.requirements.length > 0) {
+    lines.push('', 'requirements:');
+    const req = report.requirements.map((r) => {
+      const unit = UNITS[r.name] ?? '';
+      const where = r.at !== null && report.metrics.steps.length > 1 ? ` (worst: step at ${secs(r.at)})` : '';
+      return [r.name, `${num(r.measured, 4, 'not reached')}${Number.isFinite(r.measured) ? unit : ''}`, `limit ${num(r.limit)}${unit}`,
+        r.pass ? 'pass' : 'FAIL', where.trim()];
+    });
+    lines.push(
+      table(req)
+        .split('\n')
+        .map((l) => `  ${l}`)
+        .join('\n'),
+    );
+  }
+  if (report.warnings.length > 0) {
+    lines.push('', 'notes:');
+    for (const w of report.warnings) lines.push(`  ${w}`);
+  }
+  return `${lines.join('\n')}\n`;
+}

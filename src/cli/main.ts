@@ -1,0 +1,44 @@
+/**
+ * Command dispatch: parse, map to one core call per command, print, return an exit code.
+ * Never exits the process and never throws a `UserError` out: those become messages and codes.
+ */
+import { runCommand } from './commands/run.js';
+import { UserError } from './errors.js';
+import type { Io } from './io.js';
+import { demoPlantPath } from './plants-dir.js';
+import { USAGE } from './usage.js';
+
+/**
+ * Run the command line.
+ * @param argv arguments after the program name
+ * @returns the exit status (0 ok, 1 requirement failed, 2 bad arguments or file)
+ */
+export async function main(argv: readonly string[], io: Io): Promise<number> {
+  try {
+    const [command, ...rest] = argv;
+    if (command === undefined) {
+      // Until the terminal screen lands, no arguments runs the demo plant.
+      return await runCommand([demoPlantPath()], io);
+    }
+    switch (command) {
+      case 'run':
+        return await runCommand(rest, io);
+      case 'help':
+      case '--help':
+      case '-h':
+        io.out(USAGE);
+        return 0;
+      default:
+        // `looprig FILE` will open the terminal screen; until it lands it runs the file.
+        if (/\.ya?ml$/i.test(command)) return await runCommand([command, ...rest], io);
+        io.err(`looprig: unknown command '${command}'\n\n${USAGE}`);
+        return UserError.USAGE;
+    }
+  } catch (error) {
+    if (error instanceof UserError) {
+      if (error.message !== '') io.err(`looprig: ${error.message}\n`);
+      return error.exitCode;
+    }
+    throw error;
+  }
+}

@@ -1,0 +1,20 @@
+/** Help text of the command line (our own wording). */
+export const USAGE = `looprig - try PID gains on a simulated process before touching the real one
+
+Usage:
+  looprig                       run the bundled demo plant (surge tank level)
+  looprig run FILE [options]    simulate the trial described in a plant file and report metrics
+  looprig help                  show this text
+
+Options for run:
+  --json              print one JSON document on stdout instead of the summary
+  --csv OUT           also write the trace (t, setpoint, output, measured, u, disturbances) to OUT
+  --set NAME=VALUE    override a controller field in the file's form, e.g. --set kc=2.5 --set ti=40s
+                      (repeatable; times may carry a unit: ms, s, min, h)
+  --duration T        override the trial duration, e.g. --duration 20min
+  --step DT           override the integration step, e.g. --step 0.01s
+  -h, --help          show this text
+
+Exit status: 0 the run completed (a diverging loop is a result, reported as such),
+2 bad arguments or a plant file with errors (printed as FILE:LINE:COL: message).
+`;
