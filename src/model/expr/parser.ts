@@ -262,6 +262,8 @@ export function parseExpression(src: string, options: ParseOptions = {}): ParseR
     if (!(e instanceof Abort)) throw e;
     expr = null;
   }
+  // Report in source order (a call's name is checked after its arguments).
+  errors.sort((a, b) => a.span[0] - b.span[0]);
   return { expr: errors.length === 0 ? expr : null, errors };
 }
 
