@@ -57,12 +57,15 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   }
 
   const states: { name: string; initial: number }[] = [];
+  // States whose name was refused: their derivatives are skipped without further noise.
+  const badStates = new Set<string>();
   const sn = f.require('states');
   if (sn) {
     const m = r.mapping(sn, 'model.states');
     if (m && m.entries.length === 0) r.error('MISSING_FIELD', 'model.states must declare at least one state', sn.span);
     for (const e of m?.entries ?? []) {
       const ok = declare(e.key, 'state', e.keySpan);
+      if (!ok) badStates.add(e.key);
       const sf = r.fields(e.value, `model.states.${e.key}`, ['initial'], e.keySpan);
       const iv = sf?.require('initial');
       const initial = iv && r.number(iv, `model.states.${e.key}.initial`);
@@ -102,6 +105,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
     if (m) {
       const byName = new Map<string, Expr | undefined>();
       for (const e of m.entries) {
+        if (badStates.has(e.key)) continue;
         if (declared.get(e.key) !== 'state') {
           r.error(
             'UNKNOWN_FIELD',
