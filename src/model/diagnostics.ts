@@ -11,6 +11,7 @@ export type DiagnosticCode =
   | 'YAML_SYNTAX'
   | 'YAML_WARNING'
   | 'ALIAS_LIMIT'
+  | 'NESTING_LIMIT'
   | 'NOT_A_MAPPING'
   | 'UNKNOWN_FIELD'
   | 'MISSING_FIELD'
@@ -40,6 +41,7 @@ export const DIAGNOSTIC_CODES: Readonly<Record<DiagnosticCode, string>> = {
   YAML_SYNTAX: 'the text is not valid YAML',
   YAML_WARNING: 'valid YAML, but something the YAML parser warns about',
   ALIAS_LIMIT: 'too many alias (*name) expansions: refused to protect against alias bombs',
+  NESTING_LIMIT: 'the text nests deeper than 128 levels: refused before parsing',
   NOT_A_MAPPING: 'the document root is not a mapping of fields',
   UNKNOWN_FIELD: 'a field name the schema does not know',
   MISSING_FIELD: 'a required field is absent',

@@ -51,7 +51,7 @@ export type YNode = YScalar | YMap | YSeq;
 
 /** An issue found while reading the YAML layer (syntax, aliases, keys). */
 export interface YamlIssue {
-  code: 'YAML_SYNTAX' | 'YAML_WARNING' | 'ALIAS_LIMIT' | 'WRONG_TYPE';
+  code: 'YAML_SYNTAX' | 'YAML_WARNING' | 'ALIAS_LIMIT' | 'NESTING_LIMIT' | 'WRONG_TYPE';
   message: string;
   span: Span;
   warning: boolean;
@@ -69,8 +69,98 @@ export interface YamlParse {
 /** Alias expansions allowed per file, and nodes reachable through them. */
 export const ALIAS_BUDGET = Object.freeze({ aliases: 100, nodes: 100_000 });
 
+/** Deepest nesting accepted before parsing (plant files need fewer than 10 levels). */
+export const MAX_NESTING = 128;
+
+/**
+ * Estimate the nesting depth of YAML text in one linear pass, without parsing: block levels
+ * from a stack of indentations, plus `- ` sequence entries on a line, plus open flow brackets
+ * (outside quotes and comments). Used to refuse pathological input before the recursive
+ * parser runs out of stack (or memory) on it. Returns the depth and where it was reached;
+ * with `stopAbove`, stops at the first point deeper than that.
+ */
+export function estimateNesting(text: string, stopAbove = Infinity): { depth: number; offset: number } {
+  const indents: number[] = [];
+  let flow = 0;
+  let best = 0;
+  let bestAt = 0;
+  let i = 0;
+  const n = text.length;
+  while (i < n) {
+    const lineStart = i;
+    let col = 0;
+    while (i < n && (text[i] === ' ' || text[i] === '\t')) {
+      i++;
+      col++;
+    }
+    if (i >= n) break;
+    if (text[i] === '\n' || text[i] === '#') {
+      while (i < n && text[i] !== '\n') i++;
+      i++;
+      continue;
+    }
+    if (flow === 0) {
+      while (indents.length > 0 && indents[indents.length - 1] >= col) indents.pop();
+      indents.push(col);
+    }
+    let dashes = 0;
+    while (text[i] === '-' && (text[i + 1] === ' ' || text[i + 1] === '\t')) {
+      dashes++;
+      i += 2;
+      while (text[i] === ' ') i++;
+    }
+    let quote = '';
+    for (; i < n && text[i] !== '\n'; i++) {
+      const c = text[i];
+      if (quote) {
+        if (c === quote) quote = '';
+        else if (c === '\\' && quote === '"') i++;
+        continue;
+      }
+      if (c === '"' || c === "'") {
+        const prev = text[i - 1];
+        if (i === lineStart || prev === ' ' || prev === '[' || prev === '{' || prev === ',' || prev === ':') quote = c;
+      } else if (c === '#' && (text[i - 1] === ' ' || text[i - 1] === '\t')) {
+        while (i < n && text[i] !== '\n') i++;
+        break;
+      } else if (c === '[' || c === '{') {
+        flow++;
+        const d = indents.length + dashes + flow;
+        if (d > best) {
+          best = d;
+          bestAt = i;
+          if (best > stopAbove) return { depth: best, offset: bestAt };
+        }
+      } else if ((c === ']' || c === '}') && flow > 0) flow--;
+    }
+    const d = indents.length + dashes + flow;
+    if (d > best) {
+      best = d;
+      bestAt = lineStart;
+      if (best > stopAbove) return { depth: best, offset: bestAt };
+    }
+    i++;
+  }
+  return { depth: best, offset: bestAt };
+}
+
 /** Parse text into the neutral tree. Never throws on bad input. */
 export function parsePlantYaml(text: string): YamlParse {
+  const nesting = estimateNesting(text, MAX_NESTING);
+  if (nesting.depth > MAX_NESTING) {
+    return {
+      root: null,
+      issues: [
+        {
+          code: 'NESTING_LIMIT',
+          message: `the text nests more than ${MAX_NESTING} levels deep; refusing to parse it`,
+          span: [nesting.offset, nesting.offset + 1],
+          warning: false,
+        },
+      ],
+      doc: new Document(null) as unknown as PlantDocument,
+    };
+  }
   const doc = parseDocument(text, {
     keepSourceTokens: true,
     prettyErrors: false,
