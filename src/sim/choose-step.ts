@@ -2,6 +2,7 @@
  * Automatic choice of the integration step from an estimate of the plant's fastest mode.
  */
 import type { IntegratorName } from '../model/types.js';
+import { eigenvalues } from '../num/index.js';
 import { STABILITY_LIMIT } from './generate-stepper.js';
 import type { PlantDynamics } from './types.js';
 
@@ -28,11 +29,10 @@ export interface StepChoice {
 }
 
 /**
- * Spectral-radius estimate of a dense row-major n×n matrix: the smaller of the Gershgorin bound
- * (max row sum of |a_ij|, also max column sum) and a power-iteration estimate
- * ρ ≈ (‖Aᵏv‖/‖Aᵏ⁻ᵐv‖)^(1/m), which converges to ρ for real and complex dominant pairs alike
- * (Golub & Van Loan, Matrix Computations, 4th ed. 2013, sec. 7.3, from memory). The Gershgorin
- * bound is a true upper bound; the power estimate is used when it is smaller and converged.
+ * Spectral radius of a dense row-major n×n matrix: the largest |λ| from num/'s eigenvalue solver
+ * (balancing + Hessenberg + Francis QR). If that fails (no convergence) the Gershgorin bound
+ * min(max row sum, max column sum of |a_ij|) is returned instead: a true upper bound, so the
+ * step chosen from it is never too large.
  */
 export function spectralRadiusEstimate(a: Float64Array, n: number): number {
   let rows = 0;
@@ -48,34 +48,15 @@ export function spectralRadiusEstimate(a: Float64Array, n: number): number {
     cols = Math.max(cols, c);
   }
   const gersh = Math.min(rows, cols);
-  if (!(gersh > 0) || n === 1) return n === 1 ? Math.abs(a[0]) : gersh;
-  let v = new Float64Array(n);
-  let w = new Float64Array(n);
-  // Deterministic start vector with all components non-zero and unequal.
-  for (let i = 0; i < n; i++) v[i] = 1 + i / (n + 1);
-  const iters = 60;
-  const window = 8;
-  const logs = new Float64Array(iters + 1);
-  let logNorm = 0;
-  for (let k = 1; k <= iters; k++) {
-    let norm = 0;
-    for (let i = 0; i < n; i++) {
-      let s = 0;
-      for (let j = 0; j < n; j++) s += a[i * n + j] * v[j];
-      w[i] = s;
-      norm += s * s;
-    }
-    norm = Math.sqrt(norm);
-    if (!(norm > 0)) return 0; // nilpotent direction: all eigenvalues seen are zero
-    logNorm += Math.log(norm);
-    logs[k] = logNorm;
-    for (let i = 0; i < n; i++) w[i] /= norm;
-    const tmp = v;
-    v = w;
-    w = tmp;
+  if (!(gersh > 0)) return gersh;
+  try {
+    const ev = eigenvalues(a, n);
+    let rho = 0;
+    for (let i = 0; i < n; i++) rho = Math.max(rho, Math.hypot(ev.re[i], ev.im[i]));
+    return Number.isFinite(rho) ? Math.min(rho, gersh) : gersh;
+  } catch {
+    return gersh;
   }
-  const power = Math.exp((logs[iters] - logs[iters - window]) / window);
-  return Number.isFinite(power) ? Math.min(power, gersh) : gersh;
 }
 
 /**

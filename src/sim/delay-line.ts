@@ -41,10 +41,10 @@ export class DelayLine {
     this.head = h;
   }
 
-  /** Value `delay` pushes ago, 0 <= delay <= capacity − 2 (fractional: linear interpolation). */
+  /** Value `delay` pushes ago, 0 <= delay <= capacity − 1 (fractional: linear interpolation). */
   read(delay: number): number {
     const n = this.buf.length;
-    if (!(delay >= 0) || delay > n - 2) throw new RangeError('delay outside the delay line');
+    if (!(delay >= 0) || delay > n - 1) throw new RangeError('delay outside the delay line');
     const m = Math.floor(delay);
     const f = delay - m;
     let i = this.head - m;

@@ -43,6 +43,16 @@ export type ControllerMode = 'manual' | 'auto';
 /** Tolerance on sample-instant comparisons, as a fraction of the sample time. */
 const TIME_EPS = 1e-9;
 
+/**
+ * A delay in integration steps. L/h within 1e-9 of an integer is snapped to it: 0.35/0.025
+ * evaluates to 14.000000000000002, which must read as the exact 14-step delay it stands for.
+ */
+function delaySteps(delay: number, h: number): number {
+  const q = delay / h;
+  const r = Math.round(q);
+  return Math.abs(q - r) <= 1e-9 * Math.max(1, r) ? r : q;
+}
+
 /** A running closed loop. Create with `createSimulation`. */
 export class Simulation {
   readonly plant: PlantDynamics;
@@ -133,10 +143,10 @@ export class Simulation {
     const h = this.step;
     if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
     if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
-    this.inputDelaySteps = plant.inputDelay / h;
+    this.inputDelaySteps = delaySteps(plant.inputDelay, h);
     this.inputLine = plant.inputDelay > 0 ? new DelayLine(Math.floor(this.inputDelaySteps) + 2, uStart) : null;
     const y0 = this.outFn(this.x, this.p, this.d, uStart, 0);
-    this.sensorDelaySteps = loop.sensor.delay / h;
+    this.sensorDelaySteps = delaySteps(loop.sensor.delay, h);
     this.sensorLine = loop.sensor.delay > 0 ? new DelayLine(Math.floor(this.sensorDelaySteps) + 2, y0) : null;
     this.sensor = new Sensor(loop.sensor, ts);
 

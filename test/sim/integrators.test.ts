@@ -17,7 +17,7 @@ function integrate(plant: PlantDynamics, integrator: IntegratorName, h: number, 
   return x;
 }
 
-export const QUIET_SENSOR = { delay: 0, noiseStd: 0, filterTime: 0, resolution: 0, seed: 1, span: null };
+const QUIET_SENSOR = { delay: 0, noiseStd: 0, filterTime: 0, resolution: 0, seed: 1, span: null };
 const loop = (sampleTime: number, step: number, integrator: IntegratorName = 'rk4'): LoopConfig => ({
   actuator: { min: -Infinity, max: Infinity, rateLimit: Infinity },
   sensor: QUIET_SENSOR,
