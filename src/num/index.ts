@@ -11,3 +11,4 @@ export type { NelderMeadOptions, NelderMeadResult } from './nelder-mead.js';
 export { Rng } from './rng.js';
 export { levenbergMarquardt, leastSquaresCovariance } from './levenberg-marquardt.js';
 export type { LevenbergMarquardtOptions, LevenbergMarquardtResult } from './levenberg-marquardt.js';
+export { zohDiscretise } from './zoh.js';

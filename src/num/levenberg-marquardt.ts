@@ -71,8 +71,7 @@ export function levenbergMarquardt(
   const sumSq = (x: Float64Array, r: Float64Array): number => {
     evaluations++;
     residuals(x, r);
-    let s = 0;
-    for (let i = 0; i < m; i++) s += r[i] * r[i];
+    const s = sumSquares(r, m);
     return Number.isFinite(s) ? s : Infinity;
   };
 
@@ -103,7 +102,7 @@ export function levenbergMarquardt(
       project(xPert);
       const hActual = xPert[j] - x[j];
       sumSq(xPert, rPert);
-      for (let i = 0; i < m; i++) J[i * n + j] = (rPert[i] - r[i]) / hActual;
+      fillColumn(J, rPert, r, m, n, j, hActual);
     }
   };
 
@@ -115,19 +114,7 @@ export function levenbergMarquardt(
   outer: while (iterations < maxIter) {
     iterations++;
     jacobian();
-    JtJ.fill(0);
-    g.fill(0);
-    for (let i = 0; i < m; i++) {
-      const row = i * n;
-      const ri = r[i];
-      for (let a = 0; a < n; a++) {
-        const Ja = J[row + a];
-        if (Ja === 0) continue;
-        g[a] += Ja * ri;
-        for (let b = a; b < n; b++) JtJ[a * n + b] += Ja * J[row + b];
-      }
-    }
-    for (let a = 0; a < n; a++) for (let b = 0; b < a; b++) JtJ[a * n + b] = JtJ[b * n + a];
+    normalEquations(J, r, m, n, JtJ, g);
     let gMax = 0;
     let dMax = 0;
     for (let a = 0; a < n; a++) {
@@ -203,6 +190,36 @@ export function levenbergMarquardt(
   // Jacobian at the final point for the covariance.
   jacobian();
   return { x, residuals: r, sse, jacobian: J, iterations, evaluations, converged, reason };
+}
+
+function sumSquares(r: Float64Array, m: number): number {
+  let s = 0;
+  for (let i = 0; i < m; i++) s += r[i] * r[i];
+  return s;
+}
+
+/** Column j of the forward-difference Jacobian. */
+function fillColumn(J: Float64Array, rPert: Float64Array, r: Float64Array, m: number, n: number, j: number, h: number): void {
+  for (let i = 0; i < m; i++) J[i * n + j] = (rPert[i] - r[i]) / h;
+}
+
+/**
+ * JᵀJ (n × n) and Jᵀr (n). A separate small function so the engine optimises this hot loop on
+ * its own (inside the large solver body it ran about a hundred times slower).
+ */
+function normalEquations(J: Float64Array, r: Float64Array, m: number, n: number, JtJ: Float64Array, g: Float64Array): void {
+  JtJ.fill(0);
+  g.fill(0);
+  for (let i = 0; i < m; i++) {
+    const row = i * n;
+    const ri = r[i];
+    for (let a = 0; a < n; a++) {
+      const Ja = J[row + a];
+      g[a] += Ja * ri;
+      for (let b = a; b < n; b++) JtJ[a * n + b] += Ja * J[row + b];
+    }
+  }
+  for (let a = 0; a < n; a++) for (let b = 0; b < a; b++) JtJ[a * n + b] = JtJ[b * n + a];
 }
 
 /** Solve A x = b in place (b becomes x) for symmetric positive definite A (n × n, destroyed). */
