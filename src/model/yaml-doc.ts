@@ -389,7 +389,11 @@ export function setValueInText(text: string, edit: ValueEdit): string {
   }
   if (!isScalar(node) || !node.range) throw new RangeError(`${path.join('.')} is not a single value`);
   const [a, b] = node.range;
-  return text.slice(0, a) + source + text.slice(b);
+  let written = source;
+  // A string keeps the quotes the file used; a number is always written plain.
+  if (typeof edit.value === 'string' && node.type === 'QUOTE_DOUBLE') written = JSON.stringify(edit.value);
+  else if (typeof edit.value === 'string' && node.type === 'QUOTE_SINGLE') written = `'${edit.value.replace(/'/g, "''")}'`;
+  return text.slice(0, a) + written + text.slice(b);
 }
 
 interface MapLike {

@@ -272,10 +272,11 @@ function unknownNameMessage(name: string, names: ReadonlySet<string>): string {
   return `unknown name '${name}'${suggest(name, known)}; known names: ${known.join(', ')}`;
 }
 
-/** ", did you mean 'x'?" for a close name (edit distance <= 2), else ''. */
+/** " (did you mean 'x'?)" for a close name, else ''. Short names need a closer match. */
 function suggest(name: string, candidates: readonly string[]): string {
+  const limit = name.length <= 3 ? 1 : 2;
   let best = '';
-  let bestD = 3;
+  let bestD = limit + 1;
   for (const c of candidates) {
     const d = editDistance(name, c);
     if (d < bestD) {
@@ -286,18 +287,21 @@ function suggest(name: string, candidates: readonly string[]): string {
   return best ? ` (did you mean '${best}'?)` : '';
 }
 
+/** Optimal string alignment distance: insert, delete, substitute, swap neighbours, each 1. */
 function editDistance(a: string, b: string): number {
   if (Math.abs(a.length - b.length) > 2) return 3;
-  const prev = new Array<number>(b.length + 1);
-  for (let j = 0; j <= b.length; j++) prev[j] = j;
+  const d: number[][] = [];
+  for (let i = 0; i <= a.length; i++) {
+    d.push(new Array<number>(b.length + 1).fill(0));
+    d[i][0] = i;
+  }
+  for (let j = 0; j <= b.length; j++) d[0][j] = j;
   for (let i = 1; i <= a.length; i++) {
-    let diag = prev[0];
-    prev[0] = i;
     for (let j = 1; j <= b.length; j++) {
-      const tmp = prev[j];
-      prev[j] = Math.min(prev[j] + 1, prev[j - 1] + 1, diag + (a[i - 1] === b[j - 1] ? 0 : 1));
-      diag = tmp;
+      const cost = a[i - 1] === b[j - 1] ? 0 : 1;
+      d[i][j] = Math.min(d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost);
+      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) d[i][j] = Math.min(d[i][j], d[i - 2][j - 2] + 1);
     }
   }
-  return prev[b.length];
+  return d[a.length][b.length];
 }
