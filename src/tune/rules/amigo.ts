@@ -10,7 +10,7 @@
  * Ideal form; the PID is meant for use with set-point weighting and a derivative filter.
  * Set-point weight b [mem]: 0 for tau_n = L/(L + T) <= 0.5, 1 above.
  */
-import { checkFopdt, type Fopdt, type RuleGains } from '../low-order.js';
+import { checkFopdt, requireGain, requirePositive, type Fopdt, type IntegratingDelay, type RuleGains } from '../low-order.js';
 
 /** AMIGO PI (ideal form). */
 export function amigoPi(m: Fopdt): RuleGains {
@@ -36,4 +36,24 @@ export function amigoPid(m: Fopdt): RuleGains {
 /** AMIGO set-point weight on the proportional term [mem]: 0 when L/(L + T) <= 0.5, else 1. */
 export function amigoSetpointWeight(m: Fopdt): number {
   return m.theta / (m.theta + m.tau1) <= 0.5 ? 0 : 1;
+}
+
+/**
+ * AMIGO PI for the integrating plant kv exp(-L s)/s: the T -> infinity limit of `amigoPi` with
+ * K/T = kv (reference sheet section 4, [math] from the formulas): Kc = 0.35/(kv L), Ti = 13.35 L.
+ */
+export function amigoIntegratingPi(m: IntegratingDelay): RuleGains {
+  checkIntegrating(m);
+  return { form: 'ideal', kc: 0.35 / (m.kv * m.theta), ti: 13.35 * m.theta, td: 0 };
+}
+
+/** AMIGO PID for kv exp(-L s)/s, the same limit of `amigoPid`: Kc = 0.45/(kv L), Ti = 8 L, Td = 0.5 L. */
+export function amigoIntegratingPid(m: IntegratingDelay): RuleGains {
+  checkIntegrating(m);
+  return { form: 'ideal', kc: 0.45 / (m.kv * m.theta), ti: 8 * m.theta, td: 0.5 * m.theta };
+}
+
+function checkIntegrating(m: IntegratingDelay): void {
+  requireGain('kv', m.kv);
+  requirePositive('theta', m.theta);
 }

@@ -1,0 +1,106 @@
+/**
+ * One gain set on the full simulated loop: the file's trial (nonlinear, saturating, delayed), its
+ * metrics, the margins of the linear loop, and the flags that matter for choosing it.
+ */
+import { checkRequirements, loopMargins, trialMetrics } from '../analysis/index.js';
+import type { Margins, RequirementResult, TrialMetrics } from '../analysis/index.js';
+import { applyStructure, buildController } from '../control/index.js';
+import type { ControllerStructure, GainSet } from '../model/types.js';
+import { runTrial, type TrialResult } from '../sim/index.js';
+import { trialCost, type CostSpec, DEFAULT_COST } from './cost.js';
+import type { TuningContext } from './tuning-context.js';
+
+/** A finding about one gain set. */
+export interface GainFlag {
+  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS';
+  message: string;
+}
+
+/** Everything measured for one gain set. */
+export interface GainEvaluation {
+  gains: GainSet;
+  structure: ControllerStructure;
+  result: TrialResult;
+  metrics: TrialMetrics;
+  /** Margins of the linearised loop (null when the plant has no linear model). */
+  margins: Margins | null;
+  requirements: RequirementResult[];
+  /** The cost (see cost.ts) of this run. */
+  cost: number;
+  /** Fraction of the trial with the actuator at a limit, 0..1. */
+  saturatedFraction: number;
+  flags: GainFlag[];
+}
+
+/** Options of `evaluateGains`. */
+export interface EvaluateOptions {
+  cost?: CostSpec;
+  /** Ms above this is flagged (default: the file's max_sensitivity requirement, else 2). */
+  msLimit?: number;
+  /** Fraction of the trial at an actuator limit that is flagged (default 0.05). */
+  saturationFlag?: number;
+}
+
+/** Margins only (cheap: no simulation); null without a linear model. */
+export function gainMargins(ctx: TuningContext, gains: GainSet): Margins | null {
+  if (ctx.response === null) return null;
+  return loopMargins(ctx.response, gains, ctx.spec.loop.sampleTime, ctx.spec.sensor);
+}
+
+/** Simulate the file's trial with `gains` (structure imposed) and measure it. */
+export function simulateGains(ctx: TuningContext, gains: GainSet, structure: ControllerStructure): { result: TrialResult; metrics: TrialMetrics } {
+  const spec = ctx.spec;
+  const controller = buildController({ ...spec.loop.controller, structure, gains }, spec.loop.sampleTime);
+  const result = runTrial(ctx.dynamics, controller, ctx.loop, spec.loop.trial);
+  const metrics = trialMetrics(result.trace, spec.loop.trial, spec.loop.requirements);
+  return { result, metrics };
+}
+
+/** Evaluate one gain set in full (simulation, metrics, margins, requirements, flags). */
+export function evaluateGains(
+  ctx: TuningContext,
+  gains: GainSet,
+  structure: ControllerStructure,
+  options: EvaluateOptions = {},
+): GainEvaluation {
+  const g = applyStructure(structure, gains);
+  const { result, metrics } = simulateGains(ctx, g, structure);
+  const margins = gainMargins(ctx, g);
+  const requirements = checkRequirements(metrics, ctx.spec.loop.requirements);
+  const cost = trialCost(result, metrics, options.cost ?? DEFAULT_COST);
+  const duration = metrics.overall.duration;
+  const saturatedFraction = duration > 0 ? metrics.overall.saturatedTime / duration : 0;
+  const flags: GainFlag[] = [];
+  if (result.status === 'diverged') {
+    flags.push({ code: 'DIVERGED', message: `the trial diverged at t = ${result.divergedAt} s` });
+  }
+  if (margins === null) {
+    flags.push({ code: 'NO_MARGINS', message: 'no linear model: margins and Ms not computed' });
+  } else if (margins.closedLoopStable === false) {
+    flags.push({ code: 'UNSTABLE_LOOP', message: 'the linearised closed loop is unstable' });
+  } else {
+    const msLimit = options.msLimit ?? ctx.spec.loop.requirements.maxSensitivity ?? 2;
+    if (margins.maxSensitivity > msLimit) {
+      flags.push({
+        code: 'MS_ABOVE_TARGET',
+        message: `Ms ${margins.maxSensitivity.toFixed(2)} above ${msLimit} (little robustness)`,
+      });
+    }
+  }
+  const satFlag = options.saturationFlag ?? 0.05;
+  if (saturatedFraction > satFlag) {
+    flags.push({
+      code: 'SATURATED',
+      message: `actuator at a limit for ${(100 * saturatedFraction).toFixed(0)} % of the trial`,
+    });
+  }
+  for (const r of requirements) {
+    if (!r.pass) flags.push({ code: 'REQUIREMENT_FAILED', message: `${r.name} ${formatMeasured(r.measured)} (limit ${r.limit})` });
+  }
+  return { gains: g, structure, result, metrics, margins, requirements, cost, saturatedFraction, flags };
+}
+
+function formatMeasured(v: number): string {
+  if (!Number.isFinite(v)) return 'not reached';
+  return Math.abs(v) >= 100 ? v.toFixed(0) : v.toPrecision(3);
+}

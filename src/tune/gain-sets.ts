@@ -1,0 +1,32 @@
+/**
+ * From a rule's result to a gain set the loop runs (ideal form) and to the values written in the
+ * plant file's controller form.
+ */
+import { fromIdeal, toIdeal } from '../model/index.js';
+import type { ControllerSpec, GainSet, PidForm } from '../model/types.js';
+import type { RuleGains } from './low-order.js';
+
+/**
+ * The rule's gains in the ideal form, with the file's other controller settings (derivative
+ * filter, setpoint weights, anti-windup, tracking time) kept. SIMC's series result is converted:
+ * Kc = Kc'(1 + Td'/Ti'), Ti = Ti' + Td', Td = Ti' Td'/(Ti' + Td') (reference sheet sections 3, 13).
+ */
+export function ruleGainSet(rule: RuleGains, base: GainSet): GainSet {
+  const ideal = rule.form === 'series' ? toIdeal('series', { kc: rule.kc, ti: rule.ti, td: rule.td }) : rule;
+  return { ...base, kc: ideal.kc, ti: ideal.ti, td: ideal.td };
+}
+
+/**
+ * The gain set's values in the file's form (kc/ti/td or kp/ki/kd); null when the form is series
+ * and the controller has complex zeros (ti < 4 td), which no series controller reproduces.
+ */
+export function valuesInForm(form: PidForm, g: GainSet): Record<string, number> | null {
+  return fromIdeal(form, { kc: g.kc, ti: g.ti, td: g.td });
+}
+
+/** The file's controller with these gains (values re-expressed in its form). Null as `valuesInForm`. */
+export function controllerWithGains(spec: ControllerSpec, g: GainSet, structure = spec.structure): ControllerSpec | null {
+  const values = valuesInForm(spec.form, g);
+  if (values === null) return null;
+  return { ...spec, structure, gains: { ...g }, values };
+}

@@ -1,0 +1,239 @@
+/**
+ * Gain optimisation on the full simulated trial: minimise the stated cost (IAE by default) subject
+ * to Ms <= a target and the actuator limits (the simulation saturates and rate-limits exactly as
+ * the plant file says, so every probe respects them).
+ *
+ * Method: Nelder–Mead (num/nelder-mead.ts) in log-parameters (log kc, log ti[, log td]), so
+ * every probe has the right signs and steps are relative. It starts from the best rule's gains on
+ * the same cost among the rules that meet the Ms target, and restarts around its best point. A
+ * probe with Ms above the target, or an unstable linearised loop, is not simulated: it scores
+ * INFEASIBLE + Ms, so any feasible point beats it and among infeasible ones the more robust wins.
+ *
+ * Determinism: the evaluation budget bounds the work; the wall-clock cap and the cancel callback
+ * may stop it earlier (then the result depends on the machine's speed, and says so).
+ * Never worse than the start: the simplex keeps its best vertex, and the start is one.
+ */
+import type { Margins } from '../analysis/index.js';
+import type { GainSet, PlantSpec } from '../model/types.js';
+import { nelderMead } from '../num/index.js';
+import { type CostSpec, DEFAULT_COST } from './cost.js';
+import { evaluateGains, gainMargins, simulateGains, type GainEvaluation } from './evaluate.js';
+import { trialCost } from './cost.js';
+import { suggestGains, type Suggestion } from './suggest.js';
+import { tuningContext, type TuningContext } from './tuning-context.js';
+
+/** Options of `optimizeGains`. */
+export interface OptimizeOptions {
+  /** 'pi' or 'pid' (default: the file's structure when it has derivative action, else 'pi'). */
+  structure?: 'pi' | 'pid';
+  /** The cost (default IAE over the trial, no output-variation weight). */
+  cost?: Partial<CostSpec>;
+  /** Upper bound on Ms (default 1.6; 1.4 for a more robust loop). */
+  msTarget?: number;
+  /** Cost evaluations (simulations or Ms checks) at most (default 300): the deterministic budget. */
+  maxEvaluations?: number;
+  /** Wall-clock cap, ms (default 2000). */
+  timeBudgetMs?: number;
+  /** Start from these gains instead of the best rule (must meet the Ms target to be used as start). */
+  start?: GainSet;
+  /** Rule parameters passed to the start search (see suggestGains). */
+  lambda?: number | null;
+  tauc?: number | null;
+  /** Clock in ms (default performance.now); injectable for tests. */
+  now?: () => number;
+}
+
+/** Progress report, once per cost evaluation. */
+export interface OptimizeProgress {
+  /** Cost evaluations so far. */
+  evaluations: number;
+  maxEvaluations: number;
+  /** Best feasible cost so far (Infinity if none yet). */
+  bestCost: number;
+  bestGains: GainSet;
+  /** 0..1 of the larger of the evaluation and time budgets used. */
+  fraction: number;
+  elapsedMs: number;
+}
+
+/** Why the search stopped. */
+export type OptimizeStop = 'converged' | 'evaluations' | 'time' | 'cancelled';
+
+/** Result of `optimizeGains`. */
+export interface OptimizeResult {
+  structure: 'pi' | 'pid';
+  cost: CostSpec;
+  msTarget: number;
+  /** The best gain set found, fully evaluated (trial, metrics, margins, flags). */
+  best: GainEvaluation;
+  /** The starting point: the best rule that meets the Ms target (null when the start was given or none met it). */
+  startRule: Suggestion | null;
+  /** Cost of the starting gain set on the same cost. */
+  startCost: number;
+  evaluations: number;
+  stoppedBy: OptimizeStop;
+  elapsedMs: number;
+  notes: string[];
+}
+
+/** Any feasible cost is below this; infeasible probes score INFEASIBLE + Ms. */
+const INFEASIBLE = 1e15;
+
+class Stop extends Error {
+  constructor(readonly why: OptimizeStop) {
+    super(why);
+  }
+}
+
+function feasible(m: Margins | null, msTarget: number): boolean {
+  if (m === null) return true;
+  return m.closedLoopStable !== false && m.maxSensitivity <= msTarget;
+}
+
+/**
+ * Optimise PI or PID gains for a plant file on its full simulated trial.
+ * @param onProgress called after every cost evaluation (for a progress bar)
+ * @param shouldCancel polled before every evaluation; true stops the search with the best so far
+ */
+export function optimizeGains(
+  spec: PlantSpec,
+  options: OptimizeOptions = {},
+  onProgress?: (p: OptimizeProgress) => void,
+  shouldCancel?: () => boolean,
+): OptimizeResult {
+  const now = options.now ?? (() => performance.now());
+  const t0 = now();
+  const cost: CostSpec = { ...DEFAULT_COST, ...options.cost };
+  const msTarget = options.msTarget ?? 1.6;
+  if (!(msTarget > 1)) throw new RangeError('msTarget must be > 1');
+  const maxEvaluations = options.maxEvaluations ?? 300;
+  const timeBudget = options.timeBudgetMs ?? 2000;
+  const fileStructure = spec.loop.controller.structure;
+  const structure: 'pi' | 'pid' = options.structure ?? (fileStructure === 'pid' || fileStructure === 'pd' ? 'pid' : 'pi');
+  const notes: string[] = [];
+  const ctx: TuningContext = tuningContext(spec);
+  if (ctx.response === null) notes.push('no linear model: the Ms constraint cannot be checked');
+
+  // Start: the best rule of this structure meeting the Ms target, on the same cost.
+  let startRule: Suggestion | null = null;
+  let start: GainSet;
+  if (options.start) {
+    start = { ...options.start };
+  } else {
+    const s = suggestGains(spec, { cost, lambda: options.lambda ?? null, tauc: options.tauc ?? null, robustness: false, context: ctx });
+    const candidates = s.suggestions.filter((x) => x.structure === structure);
+    const ok = candidates.filter((x) => feasible(x.evaluation.margins, msTarget) && Number.isFinite(x.evaluation.cost));
+    ok.sort((a, b) => a.evaluation.cost - b.evaluation.cost);
+    if (ok.length > 0) {
+      startRule = ok[0];
+      start = ok[0].gains;
+    } else {
+      // None meets the target: start from the most robust one and let the penalty pull it in.
+      const any = candidates.filter((x) => x.evaluation.margins !== null || Number.isFinite(x.evaluation.cost));
+      any.sort((a, b) => (a.evaluation.margins?.maxSensitivity ?? Infinity) - (b.evaluation.margins?.maxSensitivity ?? Infinity));
+      if (any.length === 0) {
+        start = { ...spec.loop.controller.gains };
+        notes.push(`no ${structure.toUpperCase()} rule applies to this plant: starting from the file's gains`);
+      } else {
+        start = any[0].gains;
+        notes.push(`no ${structure.toUpperCase()} rule meets Ms <= ${msTarget}: starting from the most robust (${any[0].rule.label})`);
+      }
+    }
+  }
+  if (structure === 'pi') start = { ...start, td: 0 };
+  if (!(start.ti > 0 && Number.isFinite(start.ti))) start = { ...start, ti: 10 * spec.loop.sampleTime };
+  if (structure === 'pid' && !(start.td > 0)) start = { ...start, td: start.ti / 8 };
+  const sign = start.kc < 0 ? -1 : 1;
+  if (start.kc === 0) throw new RangeError('start gain kc must be non-zero');
+
+  const dims = structure === 'pid' ? 3 : 2;
+  const x0 = new Float64Array(dims);
+  x0[0] = Math.log(Math.abs(start.kc));
+  x0[1] = Math.log(start.ti);
+  if (dims === 3) x0[2] = Math.log(start.td);
+  const h = spec.loop.sampleTime;
+  // A box wide enough not to bind near a sensible answer; it keeps probes off absurd values.
+  const lower = Float64Array.from([x0[0] - Math.log(1e3), Math.log(h), ...(dims === 3 ? [Math.log(h / 10)] : [])]);
+  const upper = Float64Array.from([
+    x0[0] + Math.log(1e3),
+    x0[1] + Math.log(1e3),
+    ...(dims === 3 ? [x0[1] + Math.log(1e2)] : []),
+  ]);
+  const gainsAt = (x: ArrayLike<number>): GainSet => ({
+    ...start,
+    kc: sign * Math.exp(x[0]),
+    ti: Math.exp(x[1]),
+    td: dims === 3 ? Math.exp(x[2]) : 0,
+  });
+
+  let evaluations = 0;
+  let bestCost = Infinity;
+  let bestScore = Infinity;
+  let bestGains = start;
+  let startCost = NaN;
+  const score = (x: Float64Array): number => {
+    if (shouldCancel?.()) throw new Stop('cancelled');
+    const elapsed = now() - t0;
+    if (elapsed > timeBudget) throw new Stop('time');
+    if (evaluations >= maxEvaluations) throw new Stop('evaluations');
+    evaluations++;
+    const g = gainsAt(x);
+    const m = gainMargins(ctx, g);
+    let s: number;
+    let c = Infinity;
+    if (!feasible(m, msTarget)) {
+      s = INFEASIBLE + (m!.closedLoopStable === false ? 1e6 : m!.maxSensitivity);
+    } else {
+      const { result, metrics } = simulateGains(ctx, g, structure);
+      c = trialCost(result, metrics, cost);
+      s = c;
+    }
+    if (evaluations === 1) startCost = c;
+    if (s < bestScore) {
+      bestScore = s;
+      bestGains = g;
+      if (c < bestCost) bestCost = c;
+    }
+    onProgress?.({
+      evaluations,
+      maxEvaluations,
+      bestCost,
+      bestGains,
+      fraction: Math.min(1, Math.max(evaluations / maxEvaluations, (now() - t0) / timeBudget)),
+      elapsedMs: now() - t0,
+    });
+    return s;
+  };
+
+  let stoppedBy: OptimizeStop = 'converged';
+  try {
+    const r = nelderMead(score, x0, {
+      step: Array.from({ length: dims }, () => 0.3),
+      lower,
+      upper,
+      maxEvaluations: maxEvaluations + 1,
+      fTolerance: 1e-6,
+      xTolerance: 1e-4,
+      restarts: 2,
+    });
+    if (!r.converged) stoppedBy = 'evaluations';
+  } catch (e) {
+    if (!(e instanceof Stop)) throw e;
+    stoppedBy = e.why;
+  }
+  if (stoppedBy === 'time') notes.push(`stopped by the ${timeBudget} ms time cap: the result depends on this machine's speed`);
+  if (bestScore >= INFEASIBLE) notes.push(`no gain set found that meets Ms <= ${msTarget}`);
+  const best = evaluateGains(ctx, bestGains, structure, { cost, msLimit: msTarget });
+  return {
+    structure,
+    cost,
+    msTarget,
+    best,
+    startRule,
+    startCost,
+    evaluations,
+    stoppedBy,
+    elapsedMs: now() - t0,
+    notes,
+  };
+}

@@ -1,0 +1,204 @@
+/**
+ * Robustness sweep: one gain set over the plant file's `uncertainty` ranges. Every corner of the
+ * box (all combinations of low/high; up to MAX_CORNER_DIMS uncertain quantities) plus a seeded
+ * Monte-Carlo sample (uniform in each range) is simulated on the full plant; the worst figures and
+ * the envelope of the output traces are returned.
+ */
+import { applyStructure } from '../control/index.js';
+import { compilePlant } from '../model/index.js';
+import type { ControllerStructure, GainSet, PlantSpec } from '../model/types.js';
+import { Rng } from '../num/index.js';
+import { withParams, type PlantDynamics } from '../sim/index.js';
+import { gainMargins, simulateGains } from './evaluate.js';
+import { specWithValues } from './uncertain-spec.js';
+import { tuningContext, type TuningContext } from './tuning-context.js';
+
+/** With more uncertain quantities than this the corners (2^n) are skipped; only the sample runs. */
+export const MAX_CORNER_DIMS = 8;
+
+/** Options of `robustnessSweep`. */
+export interface RobustnessOptions {
+  /** Simulate the corners of the box (default true). */
+  corners?: boolean;
+  /** Monte-Carlo samples (default 20). */
+  samples?: number;
+  /** Seed of the sample (default: the sensor seed of the file, so the file fixes the answer). */
+  seed?: number;
+  /** Controller structure (default the file's). */
+  structure?: ControllerStructure;
+  /** Keep each case's output trace for the envelope (default true). */
+  envelope?: boolean;
+}
+
+/** One simulated case. */
+export interface RobustnessCase {
+  kind: 'nominal' | 'corner' | 'sample';
+  values: Record<string, number>;
+  diverged: boolean;
+  /** Largest overshoot over the trial's setpoint steps, %. (NaN without steps.) */
+  overshootPct: number;
+  /** Longest settling time over the steps, s (Infinity when one never settles). */
+  settlingTime: number;
+  iae: number;
+  /** Ms of the case's linearised loop (NaN without a linear model; Infinity when unstable). */
+  ms: number;
+}
+
+/** Worst figures over all cases. */
+export interface RobustnessSummary {
+  cases: number;
+  anyDiverged: boolean;
+  worstOvershootPct: number;
+  worstSettlingTime: number;
+  worstIae: number;
+  worstMs: number;
+}
+
+/** Output envelope over the cases, one row per trace sample. */
+export interface TraceEnvelope {
+  t: Float64Array;
+  lo: Float64Array;
+  hi: Float64Array;
+  /** The nominal output. */
+  nominal: Float64Array;
+}
+
+/** Result of `robustnessSweep`. */
+export interface RobustnessResult {
+  summary: RobustnessSummary;
+  cases: RobustnessCase[];
+  envelope: TraceEnvelope | null;
+  notes: string[];
+}
+
+/** The sets of values to simulate: nominal first, then corners, then the seeded sample. */
+export function sweepCases(
+  ranges: Readonly<Record<string, [number, number]>>,
+  options: { corners: boolean; samples: number; seed: number },
+): { kind: RobustnessCase['kind']; values: Record<string, number> }[] {
+  const names = Object.keys(ranges).sort();
+  const out: { kind: RobustnessCase['kind']; values: Record<string, number> }[] = [{ kind: 'nominal', values: {} }];
+  if (names.length === 0) return out;
+  if (options.corners && names.length <= MAX_CORNER_DIMS) {
+    for (let mask = 0; mask < 1 << names.length; mask++) {
+      const v: Record<string, number> = {};
+      names.forEach((n, i) => {
+        v[n] = ranges[n][(mask >> i) & 1];
+      });
+      out.push({ kind: 'corner', values: v });
+    }
+  }
+  const rng = new Rng(options.seed);
+  for (let s = 0; s < options.samples; s++) {
+    const v: Record<string, number> = {};
+    for (const n of names) {
+      const [lo, hi] = ranges[n];
+      v[n] = lo + (hi - lo) * rng.nextFloat();
+    }
+    out.push({ kind: 'sample', values: v });
+  }
+  return out;
+}
+
+/** The context of one case: parameter overrides for ode plants (no recompilation), else a recompiled spec. */
+function caseContext(base: TuningContext, values: Record<string, number>): TuningContext {
+  if (Object.keys(values).length === 0) return base;
+  const spec = specWithValues(base.spec, values);
+  const dyn: PlantDynamics = base.spec.model.type === 'ode' ? withParams(base.dynamics, values) : compilePlant(spec);
+  return tuningContext(spec, dyn);
+}
+
+/**
+ * Sweep one gain set over the file's uncertainty. With no `uncertainty` section only the nominal
+ * case runs (and a note says so).
+ */
+export function robustnessSweep(
+  spec: PlantSpec,
+  gains: GainSet,
+  options: RobustnessOptions = {},
+  base: TuningContext = tuningContext(spec),
+): RobustnessResult {
+  const structure = options.structure ?? spec.loop.controller.structure;
+  const g = applyStructure(structure, gains);
+  const notes: string[] = [];
+  const ranges = spec.uncertainty;
+  const dims = Object.keys(ranges).length;
+  if (dims === 0) notes.push('the plant file has no uncertainty section: nominal case only');
+  if (dims > MAX_CORNER_DIMS && options.corners !== false) notes.push(`${dims} uncertain quantities: corners skipped, sample only`);
+  const list = sweepCases(ranges, {
+    corners: options.corners ?? true,
+    samples: dims === 0 ? 0 : options.samples ?? 20,
+    seed: options.seed ?? spec.sensor.seed,
+  });
+  const keep = options.envelope ?? true;
+  const cases: RobustnessCase[] = [];
+  let envelope: TraceEnvelope | null = null;
+  for (const c of list) {
+    const ctx = caseContext(base, c.values);
+    const { result, metrics } = simulateGains(ctx, g, structure);
+    const m = gainMargins(ctx, g);
+    let overshoot = NaN;
+    let settling = NaN;
+    for (const s of metrics.steps) {
+      overshoot = Number.isNaN(overshoot) ? s.overshootPct : Math.max(overshoot, s.overshootPct);
+      const st = Number.isFinite(s.settlingTime) ? s.settlingTime : Infinity;
+      settling = Number.isNaN(settling) ? st : Math.max(settling, st);
+    }
+    const diverged = result.status !== 'ok';
+    cases.push({
+      kind: c.kind,
+      values: c.values,
+      diverged,
+      overshootPct: overshoot,
+      settlingTime: diverged ? Infinity : settling,
+      iae: diverged ? Infinity : metrics.overall.iae,
+      ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+    });
+    if (keep) {
+      const tr = result.trace;
+      if (envelope === null) {
+        envelope = {
+          t: tr.t.slice(0, tr.length),
+          lo: tr.y.slice(0, tr.length),
+          hi: tr.y.slice(0, tr.length),
+          nominal: tr.y.slice(0, tr.length),
+        };
+      } else {
+        const n = Math.min(envelope.t.length, tr.length);
+        for (let i = 0; i < n; i++) {
+          const y = tr.y[i];
+          if (y < envelope.lo[i]) envelope.lo[i] = y;
+          if (y > envelope.hi[i]) envelope.hi[i] = y;
+        }
+        // A diverged case stops early: its absence after that is shown as an unbounded envelope.
+        for (let i = n; i < envelope.t.length; i++) {
+          envelope.lo[i] = -Infinity;
+          envelope.hi[i] = Infinity;
+        }
+      }
+    }
+  }
+  return { summary: summarise(cases), cases, envelope, notes };
+}
+
+function maxOf(cases: RobustnessCase[], f: (c: RobustnessCase) => number): number {
+  let m = NaN;
+  for (const c of cases) {
+    const v = f(c);
+    if (Number.isNaN(v)) continue;
+    m = Number.isNaN(m) ? v : Math.max(m, v);
+  }
+  return m;
+}
+
+/** Worst figures over the cases (NaN entries are skipped). */
+export function summarise(cases: RobustnessCase[]): RobustnessSummary {
+  return {
+    cases: cases.length,
+    anyDiverged: cases.some((c) => c.diverged),
+    worstOvershootPct: maxOf(cases, (c) => c.overshootPct),
+    worstSettlingTime: maxOf(cases, (c) => c.settlingTime),
+    worstIae: maxOf(cases, (c) => c.iae),
+    worstMs: maxOf(cases, (c) => c.ms),
+  };
+}

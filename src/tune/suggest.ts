@@ -1,0 +1,160 @@
+/**
+ * Every tuning rule on one plant file, each gain set simulated on the full plant: a first gain
+ * set to choose from, with what it actually does (metrics, margins, flags, worst case over the
+ * file's uncertainty).
+ */
+import type { ControllerStructure, GainSet, PidForm, PlantSpec } from '../model/types.js';
+import { halfRule, ultimateFromModel, type LoopElements } from './approximation.js';
+import { RELAY_CAUTION } from './caution.js';
+import { DEFAULT_COST, type CostSpec } from './cost.js';
+import { evaluateGains, type GainEvaluation, type GainFlag } from './evaluate.js';
+import { ruleGainSet, valuesInForm } from './gain-sets.js';
+import type { RuleGains, UltimatePoint } from './low-order.js';
+import { relayOnPlant, type PlantRelayOptions, type PlantRelayResult } from './relay-on-plant.js';
+
+import { robustnessSweep, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
+import { TUNING_RULES, type RuleInputs, type TuningRule } from './rule-table.js';
+import { tuningContext, type TuningContext } from './tuning-context.js';
+
+/** Options of `suggestGains`. */
+export interface SuggestOptions {
+  /** Lambda / IMC closed-loop time constant, s (null = each rule's default). */
+  lambda?: number | null;
+  /** SIMC tauc, s (null = theta). */
+  tauc?: number | null;
+  /** Rule ids to run (default all). */
+  rules?: readonly string[];
+  /** Cost reported per suggestion (default IAE). */
+  cost?: Partial<CostSpec>;
+  /**
+   * Worst case over the file's uncertainty per suggestion: false = none; true = corners only
+   * (default); an object = those sweep options.
+   */
+  robustness?: boolean | RobustnessOptions;
+  /** Where the ultimate point comes from: the linear model (default) or a relay test in the simulation. */
+  ultimate?: 'model' | 'relay';
+  /** Relay settings when ultimate = 'relay'. */
+  relay?: PlantRelayOptions;
+  /** A prepared context (saves compiling again). */
+  context?: TuningContext;
+}
+
+/** One rule's suggestion, simulated. */
+export interface Suggestion {
+  rule: Pick<TuningRule, 'id' | 'label' | 'source' | 'structure'>;
+  structure: ControllerStructure;
+  /** The gains as the rule writes them (SIMC: series form). */
+  ruleGains: RuleGains;
+  /** The gain set the loop runs (ideal form, the file's filter/weights/anti-windup kept). */
+  gains: GainSet;
+  /** The file's controller form and the gains in it (null: not expressible, see flags). */
+  form: PidForm;
+  values: Record<string, number> | null;
+  evaluation: GainEvaluation;
+  worstCase: RobustnessSummary | null;
+  flags: GainFlag[];
+}
+
+/** Result of `suggestGains`. */
+export interface SuggestResult {
+  /** The low-order descriptions the rules used. */
+  inputs: RuleInputs;
+  /** Where `inputs.ultimate` came from. */
+  ultimateSource: 'model' | 'relay' | null;
+  /** Both ultimate estimates when a relay test ran (model one may be null). */
+  ultimateModel: UltimatePoint | null;
+  relay: PlantRelayResult | null;
+  suggestions: Suggestion[];
+  /** Rules that do not apply to this plant, with the reason. */
+  skipped: { id: string; label: string; reason: string }[];
+  notes: string[];
+  /** Shown with the ultimate-cycle rules and the relay test. */
+  caution: string;
+}
+
+/** The loop elements of a plant file as the approximations see them. */
+export function loopElementsOf(spec: PlantSpec): LoopElements {
+  return { sampleTime: spec.loop.sampleTime, sensor: spec.sensor };
+}
+
+/** Low-order descriptions and the ultimate point from the linear model of a prepared context. */
+export function ruleInputsOf(ctx: TuningContext): { inputs: RuleInputs; notes: string[] } {
+  const notes: string[] = [];
+  if (ctx.linear === null || ctx.response === null) {
+    notes.push('no linear model at the operating point: the model-based rules cannot run');
+    return { inputs: { fopdt: null, sopdt: null, integrating: null, ultimate: null }, notes };
+  }
+  const loop = loopElementsOf(ctx.spec);
+  const hr = halfRule(ctx.linear, loop);
+  for (const n of hr.notes) notes.push(n);
+  const k = hr.fopdt?.k ?? hr.integrating?.kv ?? hr.sopdt?.k ?? 1;
+  const ultimate = ultimateFromModel(ctx.response, loop, k < 0 ? -1 : 1);
+  return { inputs: { fopdt: hr.fopdt, sopdt: hr.sopdt, integrating: hr.integrating, ultimate }, notes };
+}
+
+/** Run the tuning rules on a plant file and simulate each gain set on the full plant. */
+export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): SuggestResult {
+  const ctx = options.context ?? tuningContext(spec);
+  const cost: CostSpec = { ...DEFAULT_COST, ...options.cost };
+  const { inputs, notes } = ruleInputsOf(ctx);
+  for (const n of ctx.notes) notes.push(n);
+  const ultimateModel = inputs.ultimate;
+  let relay: PlantRelayResult | null = null;
+  let ultimateSource: SuggestResult['ultimateSource'] = inputs.ultimate ? 'model' : null;
+  if (options.ultimate === 'relay') {
+    relay = relayOnPlant(spec, options.relay ?? {}, ctx);
+    for (const n of relay.notes) notes.push(`relay test: ${n}`);
+    if (relay.estimate !== null) {
+      inputs.ultimate = { ku: relay.estimate.ku * (relay.direction < 0 ? -1 : 1), tu: relay.estimate.tu };
+      ultimateSource = 'relay';
+    } else {
+      inputs.ultimate = null;
+      ultimateSource = null;
+    }
+  }
+  const params = { lambda: options.lambda ?? null, tauc: options.tauc ?? null };
+  const wanted = options.rules ? new Set(options.rules) : null;
+  const form = spec.loop.controller.form;
+  const sweep: RobustnessOptions | null =
+    options.robustness === false ? null : options.robustness === true || options.robustness === undefined ? { samples: 0 } : options.robustness;
+
+  const suggestions: Suggestion[] = [];
+  const skipped: SuggestResult['skipped'] = [];
+  for (const rule of TUNING_RULES) {
+    if (wanted && !wanted.has(rule.id)) continue;
+    let rg: RuleGains | string;
+    try {
+      rg = rule.apply(inputs, params);
+    } catch (e) {
+      if (!(e instanceof RangeError)) throw e;
+      rg = e.message;
+    }
+    if (typeof rg === 'string') {
+      skipped.push({ id: rule.id, label: rule.label, reason: rg });
+      continue;
+    }
+    const gains = ruleGainSet(rg, spec.loop.controller.gains);
+    const evaluation = evaluateGains(ctx, gains, rule.structure, { cost });
+    const values = valuesInForm(form, evaluation.gains);
+    const flags = [...evaluation.flags];
+    if (values === null) {
+      flags.push({
+        code: 'REQUIREMENT_FAILED',
+        message: `no ${form} form: ti < 4 td (complex controller zeros); gains shown in the ideal form`,
+      });
+    }
+    const worstCase = sweep ? robustnessSweep(spec, evaluation.gains, { ...sweep, structure: rule.structure, envelope: false }, ctx).summary : null;
+    suggestions.push({
+      rule: { id: rule.id, label: rule.label, source: rule.source, structure: rule.structure },
+      structure: rule.structure,
+      ruleGains: rg,
+      gains: evaluation.gains,
+      form,
+      values,
+      evaluation,
+      worstCase,
+      flags,
+    });
+  }
+  return { inputs, ultimateSource, ultimateModel, relay, suggestions, skipped, notes, caution: RELAY_CAUTION };
+}
