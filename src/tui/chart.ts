@@ -25,6 +25,8 @@ export interface ChartOptions {
   /** Fixed value range; absent = from the finite data. */
   readonly min?: number;
   readonly max?: number;
+  /** Minimum width of the value labels, so the data columns do not depend on the values. */
+  readonly labelWidth?: number;
 }
 
 /** A run of characters drawn by the same series ('' = background, 'axis' = the axis and labels). */
@@ -44,8 +46,11 @@ export interface ChartGrid {
   max: number;
 }
 
+/** Label width the panels reserve: fits every `axisLabel` result. */
+export const LABEL_WIDTH = 8;
+
 /** How many sample points fit a chart of this total width (one per data column, plus one). */
-export function pointsForWidth(width: number, labelWidth: number): number {
+export function pointsForWidth(width: number, labelWidth: number = LABEL_WIDTH): number {
   return Math.max(2, width - labelWidth - 1 + 1);
 }
 
@@ -105,10 +110,11 @@ export function renderChart(series: readonly ChartSeries[], o: ChartOptions): Ch
   // Labels: the value at each row under asciichart's own mapping, on every third row and the last.
   const labels: string[] = [];
   for (let r = 0; r <= rows; r++) {
-    const show = r % LABEL_EVERY === 0 || r === rows;
+    // The bottom row is labelled too unless the last regular label sits right above it.
+    const show = r % LABEL_EVERY === 0 || (r === rows && rows % LABEL_EVERY >= 2);
     labels.push(show ? axisLabel((max2 - r) / ratio) : '');
   }
-  const labelWidth = Math.max(...labels.map((l) => l.length));
+  const labelWidth = Math.max(o.labelWidth ?? 0, ...labels.map((l) => l.length));
   const gutter = labelWidth + 1;
   const columns = Math.max(0, Math.min(n - 1, o.width - gutter));
 

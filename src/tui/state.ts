@@ -171,11 +171,11 @@ export function paramInfo(id: ParamId, form: PidForm): ParamInfo {
     case 'kd':
       return { symbol: 'Kd', label: 'derivative gain', unit: 's' };
     case 'n':
-      return { symbol: 'N', label: 'derivative filter (Td/N)', unit: '' };
+      return { symbol: 'N', label: 'deriv. filter', unit: '' };
     case 'b':
-      return { symbol: 'b', label: 'setpoint weight, P', unit: '' };
+      return { symbol: 'b', label: 'SP weight on P', unit: '' };
     case 'c':
-      return { symbol: 'c', label: 'setpoint weight, D', unit: '' };
+      return { symbol: 'c', label: 'SP weight on D', unit: '' };
   }
 }
 
@@ -262,15 +262,20 @@ export function withForm(e: GainEdit, form: PidForm, math: EditMath): GainEdit |
   return { ...e, form, values };
 }
 
-/** True when two gain sets would write the same controller block. */
+/**
+ * True when two gain sets are the same controller: same structure and, in ideal form, the same
+ * gains (to 1e-9 relative, so that a form round trip's rounding is no change). The form they are
+ * shown in does not count: a save writes the file's own form.
+ */
 export function sameEdit(a: GainEdit, b: GainEdit): boolean {
-  if (a.form !== b.form || a.structure !== b.structure) return false;
-  const ka = Object.keys(a.values);
-  if (ka.length !== Object.keys(b.values).length) return false;
-  for (const k of ka) if (a.values[k] !== b.values[k]) return false;
+  if (a.structure !== b.structure) return false;
   const g = a.gains;
   const h = b.gains;
-  return g.n === h.n && g.b === h.b && g.c === h.c && g.antiWindup === h.antiWindup;
+  return close(g.kc, h.kc) && close(g.ti, h.ti) && close(g.td, h.td) && g.n === h.n && g.b === h.b && g.c === h.c && g.antiWindup === h.antiWindup;
+}
+
+function close(x: number, y: number): boolean {
+  return x === y || Math.abs(x - y) <= 1e-9 * Math.max(Math.abs(x), Math.abs(y));
 }
 
 /** Unsaved changes: the edited gain set differs from what the file holds. */

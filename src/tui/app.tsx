@@ -1,0 +1,530 @@
+/**
+ * The terminal screen. Keys become reducer actions (keymap.ts -> state.ts); the core answers
+ * every question about the loop (engine.ts, live-run.ts); this component only wires the two
+ * together and draws the panels that fit the terminal (layout.ts).
+ */
+import { Box, Text, useApp, useInput, useStdout } from 'ink';
+import TextInput from 'ink-text-input';
+import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
+import { loadPlant } from '../model/index.js';
+import type { PidForm, Requirements } from '../model/types.js';
+import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
+import { CORE_EDIT_MATH } from './edit-math.js';
+import { defaultSwitchTime, editFromSpec, evaluate, rehearsalTrial, runningGains, type Evaluation, type LoopSetup } from './engine.js';
+import { commandFor, HINT, keyToken } from './keymap.js';
+import { computeLayout, type Layout } from './layout.js';
+import { LiveRun } from './live-run.js';
+import { metricRows, type MetricInput } from './metric-rows.js';
+import type { Notice, NoticeSource } from './notices.js';
+import { CautionOverlay } from './panels/CautionOverlay.js';
+import { ChartPanel } from './panels/ChartPanel.js';
+import { GainsPanel } from './panels/GainsPanel.js';
+import { Heading } from './panels/Heading.js';
+import { HelpOverlay } from './panels/HelpOverlay.js';
+import { Line, fit, type Piece } from './panels/line.js';
+import { MetricsPanel } from './panels/MetricsPanel.js';
+import { NoticesPanel, noticePieces } from './panels/NoticesPanel.js';
+import { StatusLine } from './panels/StatusLine.js';
+import { planSave } from './save-gains.js';
+import {
+  initialState,
+  isDirty,
+  paramInfo,
+  paramList,
+  reduce,
+  speedOf,
+  type Action,
+  type Effect,
+  type RunMode,
+  type ScreenState,
+} from './state.js';
+import { makeTheme, type Theme } from './theme.js';
+import { bandLines, outputSeries, trendSeries } from './trend-series.js';
+
+/** File access the screen needs; tests pass a fake, the command passes the real files. */
+export interface ScreenIo {
+  readText(path: string): string;
+  /** Write atomically (temporary file + rename). */
+  writeText(path: string, text: string): void;
+}
+
+export interface AppProps {
+  setup: LoopSetup;
+  /** Path used for reading and writing the file. */
+  filePath: string;
+  /** Name shown on screen. */
+  fileName: string;
+  /** The file text as loaded. */
+  text: string;
+  io: ScreenIo;
+  notices: NoticeSource;
+  color: boolean;
+  /** Show the safety caution first. */
+  caution: boolean;
+  mode?: RunMode;
+  /** Fixed terminal size (tests); absent = the real terminal's, following resizes. */
+  size?: { columns: number; rows: number };
+  /** Live-run timer period, ms. */
+  tickMs?: number;
+  /** Called once with the exit code when the user quits. */
+  onExit(code: number): void;
+  /** Called after each frame whose state changed (benchmarks). */
+  onFrame?(): void;
+}
+
+/** Wall-time budget of one live tick, ms: the rest of the tick is left to keys and drawing. */
+const LIVE_BUDGET_MS = 25;
+
+const reducer = (s: ScreenState, a: Action): ScreenState => reduce(s, a, CORE_EDIT_MATH);
+
+function useTerminalSize(fixed: AppProps['size']): { columns: number; rows: number } {
+  const { stdout } = useStdout();
+  const read = (): { columns: number; rows: number } => ({ columns: stdout.columns || 80, rows: stdout.rows || 24 });
+  const [size, setSize] = useState(read);
+  useEffect(() => {
+    if (fixed !== undefined) return undefined;
+    const onResize = (): void => setSize(read());
+    stdout.on('resize', onResize);
+    return () => {
+      stdout.off('resize', onResize);
+    };
+  }, [stdout, fixed]);
+  return fixed ?? size;
+}
+
+export function App(props: AppProps) {
+  const { setup } = props;
+  const plant = setup.plant;
+  const trial = plant.loop.trial;
+  const req = plant.loop.requirements;
+  const theme = useMemo(() => makeTheme(props.color), [props.color]);
+  const fileForm: PidForm = plant.loop.controller.form;
+  const { exit } = useApp();
+
+  const [state, dispatch] = useReducer(reducer, undefined, () =>
+    initialState({
+      fileName: props.fileName,
+      file: editFromSpec(plant.loop.controller),
+      trialDuration: trial.duration,
+      switchAt: defaultSwitchTime(trial),
+      caution: props.caution,
+      mode: props.mode,
+    }),
+  );
+  const size = useTerminalSize(props.size);
+  const layout = computeLayout(size.columns, size.rows, paramList(state.current).length + 1);
+
+  // ---------------------------------------------------------------- instant evaluation
+  const baselineEdit = state.baseline?.edit ?? null;
+  const rehearsing = state.rehearse && baselineEdit !== null;
+  const now: Evaluation = useMemo(() => {
+    if (rehearsing) return evaluate(setup, baselineEdit, rehearsalTrial(trial, state.current, state.switchAt));
+    return evaluate(setup, state.current);
+  }, [setup, state.current.gains, state.current.structure, rehearsing, baselineEdit, state.switchAt]);
+  const base: Evaluation | null = useMemo(
+    () => (baselineEdit === null ? null : evaluate(setup, baselineEdit)),
+    [setup, baselineEdit],
+  );
+  const marginsNow = useMemo(() => props.notices.margins(runningGains(state.current)), [props.notices, state.current.gains]);
+  const marginsBase = useMemo(
+    () => (baselineEdit === null ? null : props.notices.margins(runningGains(baselineEdit))),
+    [props.notices, baselineEdit],
+  );
+  const plantNotices = useMemo(() => props.notices.plantNotices(), [props.notices]);
+
+  // ---------------------------------------------------------------- live run
+  const live = useRef<LiveRun | null>(null);
+  const achieved = useRef(NaN);
+  const [, setFrame] = useState(0);
+  if (state.mode === 'live' && live.current === null) live.current = new LiveRun(setup, state.current, trial.duration);
+  const speed = speedOf(state);
+  useEffect(() => {
+    live.current?.setGains(state.current);
+  }, [state.current.gains, state.current.structure]);
+  useEffect(() => {
+    if (state.mode !== 'live' || state.paused) return undefined;
+    let last = performance.now();
+    const period = props.tickMs ?? 50;
+    const timer = setInterval(() => {
+      const run = live.current;
+      if (run === null) return;
+      const t = performance.now();
+      const wall = (t - last) / 1000;
+      last = t;
+      if (run.diverged) return;
+      const done = run.advance(speed * wall, LIVE_BUDGET_MS);
+      // Smoothed achieved speed, shown when the machine cannot keep up.
+      const inst = wall > 0 ? done / wall : NaN;
+      achieved.current = Number.isNaN(achieved.current) ? inst : 0.8 * achieved.current + 0.2 * inst;
+      setFrame((f) => f + 1);
+    }, period);
+    return () => clearInterval(timer);
+  }, [state.mode, state.paused, speed]);
+
+  // ---------------------------------------------------------------- effects
+  const loaded = useRef(props.text);
+  useEffect(() => {
+    if (state.effects.length === 0) return;
+    const effects = state.effects;
+    dispatch({ type: 'effects_taken', count: effects.length });
+    for (const e of effects) runEffect(e);
+  }, [state.effects]);
+
+  function runEffect(e: Effect): void {
+    const run = live.current;
+    switch (e.kind) {
+      case 'quit':
+        props.onExit(0);
+        exit();
+        return;
+      case 'save':
+        save(e.onDiskText);
+        return;
+      case 'setpoint_step':
+        if (run !== null) {
+          const r = run.stepSetpoint(e.sign);
+          dispatch({ type: 'notify', message: { text: `setpoint -> ${Number(r.toPrecision(6))}`, tone: 'info' } });
+        }
+        return;
+      case 'disturbance_step':
+        if (run !== null) {
+          const d = run.stepDisturbance(e.sign);
+          dispatch({
+            type: 'notify',
+            message: d === null ? { text: 'this plant has no disturbance input', tone: 'warn' } : { text: `${d.name} -> ${Number(d.value.toPrecision(6))}`, tone: 'info' },
+          });
+        }
+        return;
+      case 'manual':
+        run?.setManual(e.on);
+        return;
+      case 'restart_live':
+        run?.restart();
+        achieved.current = NaN;
+        setFrame((f) => f + 1);
+        return;
+    }
+  }
+
+  function save(onDiskText: boolean): void {
+    let disk: string;
+    try {
+      disk = props.io.readText(props.filePath);
+    } catch (error) {
+      dispatch({ type: 'save_failed', text: `cannot read ${props.fileName}: ${(error as Error).message}` });
+      return;
+    }
+    if (!onDiskText && disk !== loaded.current) {
+      dispatch({ type: 'save_conflict' });
+      return;
+    }
+    const plan = planSave(onDiskText ? disk : loaded.current, state.file, state.current, fileForm);
+    if (!plan.ok) {
+      dispatch({ type: 'save_failed', text: `not written: ${plan.error}` });
+      return;
+    }
+    // Never write a file the loader would reject.
+    const check = loadPlant(plan.text, props.fileName);
+    if (check.plant === undefined) {
+      dispatch({ type: 'save_failed', text: `not written: the edited file would not load (${check.diagnostics[0]?.message ?? 'unknown error'})` });
+      return;
+    }
+    try {
+      props.io.writeText(props.filePath, plan.text);
+    } catch (error) {
+      dispatch({ type: 'save_failed', text: `cannot write ${props.fileName}: ${(error as Error).message}` });
+      return;
+    }
+    loaded.current = plan.text;
+    dispatch({ type: 'saved' });
+    if (plan.formNote !== null) dispatch({ type: 'notify', message: { text: `saved; ${plan.formNote}`, tone: 'info' } });
+  }
+
+  // ---------------------------------------------------------------- keys
+  useInput((input, key) => {
+    const o = state.overlay;
+    if (o.kind === 'caution' || o.kind === 'help') {
+      dispatch({ type: 'dismiss' });
+      return;
+    }
+    if (o.kind === 'input') {
+      if (key.escape) dispatch({ type: 'input_cancel' });
+      return;
+    }
+    const token = keyToken(input, key);
+    if (o.kind === 'confirm') {
+      if (token === 'y' || token === 'Y' || (token === 'ctrl-c' && o.question === 'quit')) dispatch({ type: 'answer', yes: true });
+      else if (token === 'n' || token === 'N' || token === 'esc') dispatch({ type: 'answer', yes: false });
+      return;
+    }
+    const command = commandFor(token);
+    if (command !== null) dispatch({ type: 'key', command });
+  });
+
+  useEffect(() => {
+    props.onFrame?.();
+  });
+
+  // ---------------------------------------------------------------- draw
+  const run = state.mode === 'live' ? live.current : null;
+  const simTime = run !== null ? run.time : trial.duration;
+  const nowLabel = rehearsing ? 'rehearsal' : 'now';
+  const metricInput: MetricInput = { metrics: now.metrics, checks: now.checks, margins: marginsNow };
+  const baseInput: MetricInput | null = base === null ? null : { metrics: base.metrics, checks: base.checks, margins: marginsBase };
+
+  const notices: Notice[] = [...plantNotices];
+  if (now.result.status === 'diverged') notices.unshift({ tone: 'bad', text: `the trial diverged at ${fmt(now.result.divergedAt)} s` });
+  if (run?.diverged) notices.unshift({ tone: 'bad', text: `the live run diverged at ${fmt(run.divergedAt)} s (z restarts)` });
+  for (const w of now.result.warnings) notices.push({ tone: 'warn', text: w });
+
+  const body = (() => {
+    const o = state.overlay;
+    const bodyLines = layout.lines - 3;
+    if (o.kind === 'caution') return <CautionOverlay width={layout.width} height={bodyLines} theme={theme} />;
+    if (o.kind === 'help') return <HelpOverlay width={layout.width} height={bodyLines} theme={theme} />;
+    return (
+      <Panels
+        layout={layout}
+        theme={theme}
+        state={state}
+        now={now}
+        base={base}
+        run={run}
+        req={req}
+        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - 1)}
+        nowLabel={nowLabel}
+        notices={notices}
+        actuator={plant.actuator}
+      />
+    );
+  })();
+
+  return (
+    <Box flexDirection="column" width={layout.width} height={layout.lines}>
+      <StatusLine
+        fileName={props.fileName}
+        dirty={isDirty(state)}
+        mode={state.mode}
+        speed={speed}
+        achieved={achieved.current}
+        paused={state.paused}
+        time={simTime}
+        manual={state.manual}
+        structure={state.current.structure}
+        form={state.current.form}
+        rehearseAt={rehearsing ? state.switchAt : null}
+        baseline={state.baseline === null ? null : state.baseline.label === 'file' ? "file's gains" : 'kept set'}
+        width={layout.width}
+        theme={theme}
+      />
+      {body}
+      <MessageLine state={state} width={layout.width} theme={theme} notices={layout.noticesWidth > 0 ? [] : notices} dispatch={dispatch} />
+      <Line pieces={[{ text: HINT, color: theme.dim }]} width={layout.width} color={theme.color} />
+    </Box>
+  );
+}
+
+function fmt(v: number | null): string {
+  return v === null ? '?' : String(Number(v.toPrecision(4)));
+}
+
+interface PanelsProps {
+  layout: Layout;
+  theme: Theme;
+  state: ScreenState;
+  now: Evaluation;
+  base: Evaluation | null;
+  run: LiveRun | null;
+  req: Requirements;
+  metricRowsNow: ReturnType<typeof metricRows>;
+  nowLabel: string;
+  notices: Notice[];
+  actuator: { min: number; max: number };
+}
+
+function Panels(p: PanelsProps) {
+  const { layout, theme, state } = p;
+  const w = layout.width;
+  const colors: Record<string, string | undefined> = {
+    pv: theme.pv,
+    sp: theme.sp,
+    baseline: theme.baseline,
+    band: theme.band,
+    output: theme.output,
+    limit: theme.limit,
+  };
+  const points = pointsForWidth(w);
+  let trace = p.now.result.trace;
+  let t0 = 0;
+  let t1 = state.trialDuration;
+  let steps = p.now.metrics.steps;
+  let baselineTrace = p.base?.result.trace ?? null;
+  if (p.run !== null) {
+    trace = p.run.trace();
+    t1 = Math.max(p.run.time, p.run.window);
+    t0 = t1 - p.run.window;
+    steps = p.run.bandSteps() as typeof steps;
+    baselineTrace = null;
+  }
+  const legend: Piece[] = [
+    { text: '╌ SP ', color: theme.sp },
+    { text: '─ PV ', color: theme.pv },
+  ];
+  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· baseline only ' : '· baseline ', color: theme.baseline });
+  if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
+  const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
+
+  const showTrend = layout.trendRows > 0;
+  const trendGrid = showTrend
+    ? renderChart(
+        trendSeries({ trace, baseline: baselineTrace, t0, t1, points, band: bandLines(steps, p.req) }),
+        { width: w, height: layout.trendRows, labelWidth: LABEL_WIDTH },
+      )
+    : null;
+  const outputGrid =
+    layout.outputRows > 0
+      ? renderChart(outputSeries(trace, baselineTrace, t0, t1, points, p.actuator), {
+          width: w,
+          height: layout.outputRows,
+          labelWidth: LABEL_WIDTH,
+        })
+      : null;
+
+  const gainsW = layout.gainsWidth;
+  const bottom = (
+    <Box flexDirection="column" width={w}>
+      <Line pieces={bottomHeading(layout, theme)} width={w} color={theme.color} />
+      <Box flexDirection="row" width={w}>
+        <GainsPanel
+          edit={state.current}
+          baseline={state.baseline?.edit ?? null}
+          selected={state.selected}
+          width={gainsW}
+          rows={layout.bottomRows}
+          theme={theme}
+        />
+        {layout.metricsWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
+        {layout.metricsWidth > 0 && (
+          <MetricsPanel
+            rows={p.metricRowsNow}
+            nowLabel={p.nowLabel}
+            width={layout.metricsWidth}
+            height={layout.bottomRows}
+            theme={theme}
+            note={null}
+          />
+        )}
+        {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
+        {layout.noticesWidth > 0 && <NoticesPanel notices={p.notices} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />}
+      </Box>
+    </Box>
+  );
+
+  if (layout.tier === 'tiny') {
+    return (
+      <Box flexDirection="column" width={w}>
+        <Line pieces={[{ text: `terminal too small for the trend (needs 60x16)`, color: theme.warn }]} width={w} color={theme.color} />
+        <GainsPanel
+          edit={state.current}
+          baseline={state.baseline?.edit ?? null}
+          selected={state.selected}
+          width={w}
+          rows={layout.bottomRows}
+          theme={theme}
+        />
+      </Box>
+    );
+  }
+  return (
+    <Box flexDirection="column" width={w}>
+      {trendGrid !== null && (
+        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} />
+      )}
+      {outputGrid !== null && (
+        <ChartPanel
+          title="Controller output"
+          legend={[
+            { text: '─ u ', color: theme.output },
+            ...(baselineTrace !== null ? [{ text: '· baseline ', color: theme.baseline }] : []),
+            { text: '= limits ', color: theme.limit },
+          ]}
+          grid={outputGrid}
+          t0={t0}
+          t1={t1}
+          width={w}
+          theme={theme}
+          colors={colors}
+        />
+      )}
+      {bottom}
+    </Box>
+  );
+}
+
+/** One rule over the gain, metrics and notices columns, with a title over each. */
+function bottomHeading(layout: Layout, theme: Theme): Piece[] {
+  const col = (title: string, width: number): Piece[] => [
+    { text: '─ ', color: theme.dim },
+    { text: title, color: theme.heading, bold: true },
+    { text: ' ' + '─'.repeat(Math.max(0, width - title.length - 3)), color: theme.dim },
+  ];
+  const pieces = col('Gain set', layout.gainsWidth);
+  if (layout.metricsWidth > 0) pieces.push({ text: '┼', color: theme.dim }, ...col('Trial vs requirements', layout.metricsWidth));
+  if (layout.noticesWidth > 0) pieces.push({ text: '┼', color: theme.dim }, ...col('Notices', layout.noticesWidth));
+  return pieces;
+}
+
+function Separator(p: { rows: number; theme: Theme }) {
+  return (
+    <Box flexDirection="column" width={1}>
+      {Array.from({ length: p.rows }, (_, i) => (
+        <Text key={i} color={p.theme.dim}>
+          │
+        </Text>
+      ))}
+    </Box>
+  );
+}
+
+function MessageLine(p: {
+  state: ScreenState;
+  width: number;
+  theme: Theme;
+  notices: readonly Notice[];
+  dispatch: (a: Action) => void;
+}) {
+  const { state, theme, width } = p;
+  const o = state.overlay;
+  if (o.kind === 'input') {
+    const what =
+      o.target === 'switch_time'
+        ? 'switch at'
+        : paramInfo(paramList(state.current)[Math.min(state.selected, paramList(state.current).length - 1)], state.current.form).symbol + ' =';
+    const tail = o.error !== null ? `  ${o.error}` : '  Enter accept, Esc cancel';
+    return (
+      <Box width={width} height={1} overflow="hidden">
+        <Text color={theme.heading} bold>
+          {what}{' '}
+        </Text>
+        <TextInput
+          value={o.text}
+          onChange={(text) => p.dispatch({ type: 'input_change', text })}
+          onSubmit={() => p.dispatch({ type: 'input_submit' })}
+        />
+        <Text color={o.error !== null ? theme.bad : theme.dim} wrap="truncate">
+          {fit(tail, Math.max(0, width - what.length - 2 - o.text.length))}
+        </Text>
+      </Box>
+    );
+  }
+  if (o.kind === 'confirm') {
+    return <Line pieces={[{ text: `${o.text} (y/n)`, color: theme.warn, bold: true }]} width={width} color={theme.color} />;
+  }
+  if (state.message !== null) {
+    const color = state.message.tone === 'error' ? theme.bad : state.message.tone === 'warn' ? theme.warn : undefined;
+    return <Line pieces={[{ text: state.message.text, color }]} width={width} color={theme.color} />;
+  }
+  const first = p.notices[0];
+  if (first !== undefined) return <Line pieces={noticePieces(first, theme)} width={width} color={theme.color} />;
+  return <Line pieces={[]} width={width} color={theme.color} />;
+}

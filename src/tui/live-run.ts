@@ -1,0 +1,210 @@
+/**
+ * The live run: one closed loop on the engine, advanced by the screen's timer at a chosen speed.
+ * The file's trial events play as they fall due, the user's steps are injected on top, and a gain
+ * change goes into the running controller at that instant (the controller makes it bumpless, as
+ * a retune on the real controller would). No physics here: the engine does all of it.
+ */
+import { DEFAULT_SETTLING_BAND } from '../analysis/index.js';
+import { MATH_HELPERS } from '../model/index.js';
+import type { TrialEvent } from '../model/types.js';
+import { createSimulation, createTrace, type Simulation } from '../sim/index.js';
+import type { Trace } from '../sim/types.js';
+import { controllerFor, runningGains, type LoopSetup } from './engine.js';
+import type { GainEdit } from './state.js';
+import type { BandStep } from './trend-series.js';
+
+/** Simulated seconds advanced per engine call, so that the wall-time budget is checked often. */
+const CHUNK_SAMPLES = 200;
+
+export interface StepSizes {
+  setpoint: number;
+  disturbance: { name: string; size: number } | null;
+}
+
+/**
+ * Step sizes for injected steps: the file's first setpoint change (or 10 % of the setpoint, or
+ * 1), and its first disturbance change (or 10 % of the actuator span on the first disturbance).
+ */
+export function stepSizes(setup: LoopSetup): StepSizes {
+  const trial = setup.plant.loop.trial;
+  let r = trial.initialSetpoint ?? NaN;
+  let sp = NaN;
+  let dist: { name: string; size: number } | null = null;
+  const d0 = setup.dynamics.d0;
+  const names = setup.dynamics.disturbanceNames;
+  for (const ev of trial.events) {
+    if (ev.kind === 'setpoint') {
+      if (Number.isNaN(sp) && !Number.isNaN(r) && ev.value !== r) sp = Math.abs(ev.value - r);
+      r = ev.value;
+    } else if (ev.kind === 'disturbance' && dist === null) {
+      const i = names.indexOf(ev.name);
+      const size = Math.abs(ev.value - (i >= 0 ? d0[i] : 0));
+      if (size > 0) dist = { name: ev.name, size };
+    }
+  }
+  if (Number.isNaN(sp)) sp = Number.isFinite(r) && r !== 0 ? Math.abs(r) * 0.1 : 1;
+  if (dist === null && names.length > 0) {
+    const a = setup.plant.actuator;
+    const span = Number.isFinite(a.max - a.min) ? a.max - a.min : 1;
+    dist = { name: names[0], size: 0.1 * span };
+  }
+  return { setpoint: sp, disturbance: dist };
+}
+
+export class LiveRun {
+  readonly setup: LoopSetup;
+  readonly window: number;
+  readonly sizes: StepSizes;
+  private sim!: Simulation;
+  private pending: TrialEvent[] = [];
+  private readonly view: Trace;
+  /** Setpoint changes so far (scripted and injected), for the requirement band. */
+  private steps: { at: number; from: number; to: number }[] = [];
+  private setpointNow = 0;
+  private readonly disturbance: Float64Array;
+  private gains: GainEdit;
+
+  /**
+   * @param window seconds of history kept and shown (the trend scrolls over it)
+   */
+  constructor(setup: LoopSetup, gains: GainEdit, window: number) {
+    this.setup = setup;
+    this.window = window;
+    this.sizes = stepSizes(setup);
+    this.gains = gains;
+    const rows = Math.ceil(window / setup.config.sampleTime) + 2;
+    this.view = createTrace(rows, setup.dynamics.disturbanceNames);
+    this.disturbance = new Float64Array(setup.dynamics.d0.length);
+    this.restart();
+  }
+
+  /** Start again from t = 0 with the current gains and the file's trial script. */
+  restart(): void {
+    const s = this.setup;
+    const trial = s.plant.loop.trial;
+    const rows = this.view.t.length;
+    this.sim = createSimulation(s.dynamics, controllerFor(s, this.gains), s.config, {
+      initialSetpoint: trial.initialSetpoint,
+      initialOutput: trial.initialOutput,
+      traceCapacity: rows,
+      helpers: MATH_HELPERS,
+    });
+    this.pending = [...trial.events].filter((e) => e.kind !== 'gains').sort((a, b) => a.at - b.at);
+    this.setpointNow = this.sim.setpoint;
+    this.steps = [];
+    this.disturbance.set(s.dynamics.d0);
+  }
+
+  get time(): number {
+    return this.sim.time;
+  }
+
+  get diverged(): boolean {
+    return this.sim.status !== 'ok';
+  }
+
+  get divergedAt(): number | null {
+    return this.sim.divergedAt;
+  }
+
+  get manual(): boolean {
+    return this.sim.mode === 'manual';
+  }
+
+  /**
+   * Advance by `seconds` of simulated time, or less if `budgetMs` of wall time runs out first
+   * (so key presses are never starved). @returns the simulated seconds actually advanced.
+   */
+  advance(seconds: number, budgetMs: number): number {
+    const start = performance.now();
+    const t0 = this.sim.time;
+    const target = t0 + seconds;
+    const chunk = CHUNK_SAMPLES * this.setup.config.sampleTime;
+    while (this.sim.time < target && this.sim.status === 'ok') {
+      let to = Math.min(target, this.sim.time + chunk);
+      const next = this.pending[0];
+      if (next !== undefined && next.at <= to) to = next.at;
+      this.sim.advance(to);
+      while (this.pending.length > 0 && this.pending[0].at <= this.sim.time + 1e-9) this.apply(this.pending.shift()!);
+      if (performance.now() - start > budgetMs) break;
+    }
+    return this.sim.time - t0;
+  }
+
+  private apply(ev: TrialEvent): void {
+    switch (ev.kind) {
+      case 'setpoint':
+        this.setSetpoint(ev.value);
+        break;
+      case 'setpoint_ramp':
+        this.sim.rampSetpoint(ev.to, ev.duration);
+        this.setpointNow = ev.to;
+        break;
+      case 'disturbance': {
+        const i = this.setup.dynamics.disturbanceNames.indexOf(ev.name);
+        if (i >= 0) this.disturbance[i] = ev.value;
+        this.sim.setDisturbance(ev.name, ev.value);
+        break;
+      }
+      case 'mode':
+        this.sim.setMode(ev.mode, ev.output);
+        break;
+      case 'gains':
+        break;
+    }
+  }
+
+  private setSetpoint(r: number): void {
+    if (r !== this.setpointNow) this.steps.push({ at: this.sim.time, from: this.setpointNow, to: r });
+    this.setpointNow = r;
+    this.sim.setSetpoint(r);
+  }
+
+  /** The gain set being edited changed: it takes effect at the next sample, bumplessly. */
+  setGains(edit: GainEdit): void {
+    this.gains = edit;
+    this.sim.setGains(runningGains(edit));
+  }
+
+  stepSetpoint(sign: 1 | -1): number {
+    const r = this.setpointNow + sign * this.sizes.setpoint;
+    this.setSetpoint(r);
+    return r;
+  }
+
+  /** @returns the disturbance name and new value, or null when the plant has none. */
+  stepDisturbance(sign: 1 | -1): { name: string; value: number } | null {
+    const d = this.sizes.disturbance;
+    if (d === null) return null;
+    const i = this.setup.dynamics.disturbanceNames.indexOf(d.name);
+    const value = this.disturbance[i] + sign * d.size;
+    this.disturbance[i] = value;
+    this.sim.setDisturbance(d.name, value);
+    return { name: d.name, value };
+  }
+
+  setManual(on: boolean): void {
+    this.sim.setMode(on ? 'manual' : 'auto');
+  }
+
+  /** The rows held (the last `window` seconds), oldest first. The returned trace is reused. */
+  trace(): Trace {
+    this.sim.trace.readTrace(this.view);
+    return this.view;
+  }
+
+  /** Setpoint steps inside the shown window, as the requirement band needs them. */
+  bandSteps(): BandStep[] {
+    const now = this.sim.time;
+    const out: BandStep[] = [];
+    for (let k = 0; k < this.steps.length; k++) {
+      const s = this.steps[k];
+      const end = k + 1 < this.steps.length ? this.steps[k + 1].at : now;
+      if (end < now - this.window) continue;
+      const change = s.to - s.from;
+      const band = (this.setup.plant.loop.requirements.settlingBand ?? DEFAULT_SETTLING_BAND) * Math.abs(change);
+      out.push({ at: s.at, end, to: s.to, change, band });
+    }
+    return out;
+  }
+}

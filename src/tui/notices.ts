@@ -1,0 +1,35 @@
+/**
+ * What the notices panel shows: diagnosis flags about the plant and the loop margins of the gain
+ * set being edited. The screen only draws what a `NoticeSource` returns; the source is the
+ * diagnose core (see `diagnose-source.ts`), or `NO_DIAGNOSIS` when that is not available, in
+ * which case the panel says so instead of inventing findings.
+ */
+import type { GainSet } from '../model/types.js';
+
+export interface Notice {
+  tone: 'info' | 'warn' | 'bad';
+  text: string;
+}
+
+/** Loop margins of one gain set (NaN = not defined, e.g. no crossover). */
+export interface MarginsView {
+  gainMargin: number;
+  phaseMarginDeg: number;
+  maxSensitivity: number;
+}
+
+export interface NoticeSource {
+  /** False when no diagnosis is wired in. */
+  readonly available: boolean;
+  /** Findings about the plant and the file's loop, computed once. */
+  plantNotices(): Notice[];
+  /** Margins of the loop closed with these gains; null when they cannot be computed. */
+  margins(gains: GainSet): MarginsView | null;
+}
+
+/** The source used when the diagnose core is not available. */
+export const NO_DIAGNOSIS: NoticeSource = {
+  available: false,
+  plantNotices: () => [{ tone: 'info', text: 'diagnosis not available' }],
+  margins: () => null,
+};

@@ -1,0 +1,41 @@
+/**
+ * A chart panel: heading with legend, the plot rows, and the time axis.
+ */
+import { Box } from 'ink';
+import { timeAxis, type ChartGrid } from '../chart.js';
+import type { Theme } from '../theme.js';
+import { Heading } from './Heading.js';
+import { Line, type Piece } from './line.js';
+
+export interface ChartPanelProps {
+  title: string;
+  legend: readonly Piece[];
+  grid: ChartGrid;
+  t0: number;
+  t1: number;
+  width: number;
+  theme: Theme;
+  /** Tag -> colour of the series. */
+  colors: Readonly<Record<string, string | undefined>>;
+}
+
+export function ChartPanel(p: ChartPanelProps) {
+  return (
+    <Box flexDirection="column" width={p.width}>
+      <Heading title={p.title} legend={p.legend} width={p.width} theme={p.theme} />
+      {p.grid.rows.map((row, i) => (
+        <Line
+          key={i}
+          width={p.width}
+          color={p.theme.color}
+          pieces={row.map((s) => ({ text: s.text, color: s.tag === 'axis' ? p.theme.dim : p.colors[s.tag] }))}
+        />
+      ))}
+      <Line
+        width={p.width}
+        color={p.theme.color}
+        pieces={[{ text: timeAxis(p.t0, p.t1, p.grid.gutter, p.grid.columns, p.width), color: p.theme.dim }]}
+      />
+    </Box>
+  );
+}

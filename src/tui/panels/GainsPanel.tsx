@@ -1,0 +1,70 @@
+/**
+ * The gain set being edited: structure, form, anti-windup, and each parameter with the selected
+ * one marked ('>' always, highlighted too when colour is on), beside the baseline's value.
+ */
+import { Box } from 'ink';
+import { formatPlain, paramInfo, paramList, paramValue, type GainEdit } from '../state.js';
+import type { Theme } from '../theme.js';
+import { Line, fit, type Piece } from './line.js';
+
+export interface GainsProps {
+  edit: GainEdit;
+  baseline: GainEdit | null;
+  selected: number;
+  width: number;
+  rows: number;
+  theme: Theme;
+}
+
+const AW_WORDS: Record<string, string> = { none: 'none', clamp: 'clamp', back_calculation: 'back-calc' };
+
+/** A parameter value for the panel: 4 significant digits, '∞' for no integral action. */
+export function showValue(v: number): string {
+  if (v === Infinity) return '∞';
+  if (!Number.isFinite(v)) return String(v);
+  const a = Math.abs(v);
+  if (a !== 0 && (a >= 1e6 || a < 1e-4)) return v.toExponential(3);
+  return String(Number(v.toPrecision(4)));
+}
+
+export function gainLines(p: GainsProps): Piece[][] {
+  const t = p.theme;
+  const e = p.edit;
+  const lines: Piece[][] = [
+    [
+      { text: `${e.structure.toUpperCase()} ${e.form}`, bold: true },
+      { text: `  anti-windup ${AW_WORDS[e.gains.antiWindup]}`, color: t.dim },
+    ],
+  ];
+  const list = paramList(e);
+  const sel = Math.min(p.selected, list.length - 1);
+  list.forEach((id, i) => {
+    const info = paramInfo(id, e.form);
+    const value = paramValue(e, id);
+    const mine = i === sel;
+    const base = p.baseline !== null && p.baseline.form === e.form ? paramValue(p.baseline, id) : null;
+    const text = `${mine ? '>' : ' '} ${fit(info.symbol, 4)}${fit(showValue(value), 9)}${fit(info.unit, 4)}`;
+    const pieces: Piece[] = [{ text, inverse: mine && t.color, bold: mine }];
+    if (base !== null) pieces.push({ text: ` base ${showValue(base)}`, color: t.baseline });
+    else pieces.push({ text: ` ${info.label}`, color: t.dim });
+    lines.push(pieces);
+  });
+  if (p.baseline !== null && p.baseline.form !== e.form) {
+    lines.push([{ text: `  (baseline is in ${p.baseline.form} form)`, color: t.dim }]);
+  }
+  return lines.slice(0, p.rows);
+}
+
+export function GainsPanel(p: GainsProps) {
+  const lines = gainLines(p);
+  while (lines.length < p.rows) lines.push([]);
+  return (
+    <Box flexDirection="column" width={p.width}>
+      {lines.map((pieces, i) => (
+        <Line key={i} pieces={pieces} width={p.width} color={p.theme.color} />
+      ))}
+    </Box>
+  );
+}
+
+export { formatPlain };

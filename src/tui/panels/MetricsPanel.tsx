@@ -1,0 +1,52 @@
+/**
+ * Trial figures against the file's requirements, for the current gain set and the baseline;
+ * each limit marked met or not met ([ok] / [NO] without colour).
+ */
+import { Box } from 'ink';
+import type { MetricCell, MetricRow } from '../metric-rows.js';
+import type { Theme } from '../theme.js';
+import { Line, fit, type Piece } from './line.js';
+
+export interface MetricsProps {
+  rows: readonly MetricRow[];
+  /** Label of the current column ('now', 'rehearsal' ...). */
+  nowLabel: string;
+  width: number;
+  height: number;
+  theme: Theme;
+  /** Extra line under the table (e.g. "diverged at 120 s"), or null. */
+  note: Piece[] | null;
+}
+
+function mark(c: MetricCell, theme: Theme): Piece {
+  if (c.pass === null) return { text: '    ' };
+  if (theme.color) return c.pass ? { text: ' ok ', color: theme.ok } : { text: ' NO ', color: theme.bad, bold: true };
+  return { text: c.pass ? '[ok]' : '[NO]' };
+}
+
+export function metricLines(p: MetricsProps): Piece[][] {
+  const t = p.theme;
+  const hasBase = p.rows.some((r) => r.base !== null);
+  const lines: Piece[][] = [
+    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, 12)}${hasBase ? 'baseline' : ''}`, color: t.dim }],
+  ];
+  for (const r of p.rows) {
+    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, 9), color: t.dim }, { text: fit(r.now.text, 8) }, mark(r.now, t)];
+    if (r.base !== null) pieces.push({ text: ' ' + fit(r.base.text, 7), color: t.baseline }, mark(r.base, t));
+    lines.push(pieces);
+  }
+  if (p.note !== null) lines.push(p.note);
+  return lines.slice(0, p.height);
+}
+
+export function MetricsPanel(p: MetricsProps) {
+  const lines = metricLines(p);
+  while (lines.length < p.height) lines.push([]);
+  return (
+    <Box flexDirection="column" width={p.width}>
+      {lines.map((pieces, i) => (
+        <Line key={i} pieces={pieces} width={p.width} color={p.theme.color} />
+      ))}
+    </Box>
+  );
+}
