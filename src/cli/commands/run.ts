@@ -219,6 +219,11 @@ export function reportJson(report: RunReport): unknown {
   const o = metrics.overall;
   return {
     plant: { name: plant.name, file: report.file, model_type: plant.model.type },
+    controller: {
+      structure: plant.loop.controller.structure,
+      form: plant.loop.controller.form,
+      values: plant.loop.controller.values,
+    },
     status: result.status,
     steps: result.steps,
     step: result.step,

@@ -1,0 +1,81 @@
+/**
+ * Spawn tests of the compiled bin. The bin and everything it imports are compiled with tsc into
+ * a temporary folder laid out like the installed package (package.json, dist/, plants/,
+ * node_modules/), so the test checks the real build output - shebang, ESM resolution with .js
+ * extensions, the plants folder found from import.meta.url - without touching the repository's
+ * own dist/ (other work may be building it at the same time). Only the bin's import closure is
+ * compiled, so unrelated folders that are mid-work cannot break it.
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { copyFileSync, existsSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
+let pkg = '';
+let bin = '';
+
+beforeAll(() => {
+  pkg = mkdtempSync(join(tmpdir(), 'looprig-bin-'));
+  copyFileSync(join(root, 'package.json'), join(pkg, 'package.json'));
+  symlinkSync(join(root, 'node_modules'), join(pkg, 'node_modules'), 'dir');
+  symlinkSync(join(root, 'plants'), join(pkg, 'plants'), 'dir');
+  const tsconfig = {
+    extends: join(root, 'tsconfig.json'),
+    compilerOptions: {
+      noEmit: false,
+      declaration: false,
+      typeRoots: [join(root, 'node_modules', '@types')],
+      rootDir: join(root, 'src'),
+      outDir: join(pkg, 'dist'),
+    },
+    include: [],
+    files: [join(root, 'src', 'cli', 'bin.ts')],
+  };
+  writeFileSync(join(pkg, 'tsconfig.json'), JSON.stringify(tsconfig));
+  const tsc = spawnSync(process.execPath, [join(root, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', join(pkg, 'tsconfig.json')], {
+    encoding: 'utf8',
+  });
+  bin = join(pkg, 'dist', 'cli', 'bin.js');
+  if (tsc.status !== 0 || !existsSync(bin)) throw new Error(`tsc failed (${tsc.status}):\n${tsc.stdout}${tsc.stderr}`);
+}, 120_000);
+
+afterAll(() => {
+  if (pkg !== '') rmSync(pkg, { recursive: true, force: true });
+});
+
+function looprig(args: string[]) {
+  return spawnSync(process.execPath, [bin, ...args], { encoding: 'utf8', cwd: root });
+}
+
+describe('built bin (node dist/cli/bin.js)', () => {
+  it('starts with a node shebang', () => {
+    expect(readFileSync(bin, 'utf8').startsWith('#!/usr/bin/env node\n')).toBe(true);
+  });
+
+  it('run --json on a bundled plant: exit 0, one JSON document', () => {
+    const r = looprig(['run', 'plants/mixing-loop-reference.yaml', '--json']);
+    expect(r.stderr).toBe('');
+    expect(r.status).toBe(0);
+    const doc = JSON.parse(r.stdout);
+    expect(doc.plant.name).toBe('Mixing loop reference');
+    expect(doc.status).toBe('ok');
+  });
+
+  it('a bad file: FILE:LINE:COL: message, exit 2, no stack', () => {
+    const r = looprig(['run', 'test/fixtures/bad/unknown-type.yaml']);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toBe('');
+    expect(r.stderr).toMatch(/^test\/fixtures\/bad\/unknown-type\.yaml:\d+:\d+: model\.type/);
+    expect(r.stderr).not.toMatch(/\n\s+at /);
+  });
+
+  it('no arguments: runs the demo plant found beside the installed dist/', () => {
+    const r = looprig([]);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toContain('Surge tank level');
+    expect(r.stdout).toContain(join(pkg, 'plants', 'surge-tank.yaml'));
+  });
+});

@@ -1,0 +1,48 @@
+/**
+ * Every bundled plant loads, runs its trial through `looprig run --json` and meets the
+ * requirements its header promises.
+ */
+import { describe, it, expect } from 'vitest';
+import { readdirSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { main } from '../../src/cli/index.js';
+import { fakeIo } from '../cli/fake-io.js';
+
+const plantsDir = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'plants');
+const files = readdirSync(plantsDir).filter((f) => f.endsWith('.yaml')).sort();
+
+/** Requirements a plant fails on purpose (stated in its header comment). */
+const DELIBERATE_FAILURES: Record<string, string[]> = {
+  'pipe-outlet-temperature.yaml': ['settling_time'],
+};
+
+describe('bundled plants', () => {
+  it('there are at least six', () => {
+    expect(files.length).toBeGreaterThanOrEqual(6);
+    expect(files).toContain('surge-tank.yaml');
+  });
+
+  for (const name of files) {
+    it(`${name}: exit 0, status ok, finite metrics, requirements as documented`, async () => {
+      const io = fakeIo();
+      const code = await main(['run', join(plantsDir, name), '--json'], io);
+      expect(io.stderr).toBe(''); // no loader warnings either
+      expect(code).toBe(0);
+      const doc = JSON.parse(io.stdout);
+      expect(doc.status).toBe('ok');
+      expect(doc.diverged_at).toBeNull();
+      for (const [key, value] of Object.entries(doc.metrics)) {
+        expect(Number.isFinite(value), `${key} = ${String(value)}`).toBe(true);
+      }
+      expect(doc.events.length).toBeGreaterThanOrEqual(2); // a setpoint step and a disturbance at least
+      expect(doc.events.some((e: { kind: string }) => e.kind === 'disturbance')).toBe(true);
+      for (const e of doc.events) {
+        if (e.kind === 'disturbance') expect(Number.isFinite(e.recovery_time), `recovery at ${e.at}`).toBe(true);
+      }
+      expect(doc.requirements.length).toBeGreaterThanOrEqual(3);
+      const failed = doc.requirements.filter((r: { pass: boolean }) => !r.pass).map((r: { name: string }) => r.name);
+      expect(failed).toEqual(DELIBERATE_FAILURES[name] ?? []);
+    });
+  }
+});
