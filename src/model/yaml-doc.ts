@@ -169,11 +169,16 @@ export function parsePlantYaml(text: string): YamlParse {
   // yaml's own `maxAliasCount` only guards `toJS()`; this loader walks the nodes itself, so the
   // conversion below enforces ALIAS_BUDGET instead.
   const issues: YamlIssue[] = [];
+  // yaml may place an end-of-input error one past the end; keep spans inside the text.
+  const clamp = (pos: [number, number]): Span => {
+    const a = Math.max(0, Math.min(pos[0], text.length));
+    return [a, Math.max(a, Math.min(pos[1], text.length))];
+  };
   for (const e of doc.errors) {
-    issues.push({ code: 'YAML_SYNTAX', message: yamlMessage(e.message), span: [e.pos[0], e.pos[1]], warning: false });
+    issues.push({ code: 'YAML_SYNTAX', message: yamlMessage(e.message), span: clamp(e.pos), warning: false });
   }
   for (const w of doc.warnings) {
-    issues.push({ code: 'YAML_WARNING', message: yamlMessage(w.message), span: [w.pos[0], w.pos[1]], warning: true });
+    issues.push({ code: 'YAML_WARNING', message: yamlMessage(w.message), span: clamp(w.pos), warning: true });
   }
   if (doc.errors.length > 0) return { root: null, issues, doc };
 
