@@ -100,6 +100,12 @@ export class Simulation {
   private modeNow: ControllerMode = 'auto';
   private manualOutput = 0;
   private needsInit = true;
+  /**
+   * Setpoint to initialise the controller with: the initial setpoint at the start (so that a
+   * setpoint event at t = 0 is a step the controller sees), NaN after a manual -> auto switch
+   * (then the current setpoint: the switch itself must not move the output).
+   */
+  private initSetpoint: number;
 
   constructor(plant: PlantDynamics, controller: DiscreteController, loop: LoopConfig, init: SimulationInit = {}) {
     const ts = loop.sampleTime;
@@ -151,6 +157,7 @@ export class Simulation {
     this.sensor = new Sensor(loop.sensor, ts);
 
     this.r = init.initialSetpoint ?? y0;
+    this.initSetpoint = this.r;
     this.trace = new TraceRing(init.traceCapacity ?? 4096, plant.disturbanceNames);
   }
 
@@ -244,7 +251,10 @@ export class Simulation {
       this.manualOutput = output ?? this.actuator.end;
       this.modeNow = 'manual';
     } else if (mode === 'auto') {
-      if (this.modeNow !== 'auto') this.needsInit = true;
+      if (this.modeNow !== 'auto') {
+        this.needsInit = true;
+        this.initSetpoint = NaN;
+      }
       this.modeNow = 'auto';
     } else {
       throw new RangeError(`unknown mode ${String(mode)}`);
@@ -295,7 +305,8 @@ export class Simulation {
     const auto = this.modeNow === 'auto';
     if (auto) {
       if (this.needsInit) {
-        this.controller.initialize(r, ym, this.actuator.end);
+        const r0 = this.initSetpoint;
+        this.controller.initialize(r0 === r0 ? r0 : r, ym, this.actuator.end);
         this.needsInit = false;
       }
       uc = this.controller.update(r, ym);
@@ -348,7 +359,9 @@ export class Simulation {
 
 /**
  * Start a live closed loop at t = 0. The controller is initialised at the first sample with
- * initialize(r0, ym0, u0), so the run starts without a bump.
+ * initialize(r0, ym0, u0) — r0 the initial setpoint, ym0 the first measurement, u0 the initial
+ * output — so the run starts without a bump; a setpoint changed before that first sample is a
+ * step the controller responds to.
  */
 export function createSimulation(
   plant: PlantDynamics,
