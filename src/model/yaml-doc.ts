@@ -31,6 +31,8 @@ export interface YScalar {
   span: Span;
   /** Maps an index into the string value to a file offset (best effort; see `scalarOffsets`). */
   offsetOf: (i: number) => number;
+  /** An explicit YAML tag (`!x`, `!!str`), if any. */
+  tag?: string;
 }
 export interface YEntry {
   key: string;
@@ -266,6 +268,7 @@ export function parsePlantYaml(text: string): YamlParse {
         style,
         span,
         offsetOf: typeof value === 'string' ? scalarOffsets(text, span, style, value) : (i) => span[0] + i,
+        ...(node.tag ? { tag: node.tag } : {}),
       };
     }
     return null;
@@ -286,8 +289,12 @@ function rangeSpan(node: { range?: [number, number, number] | null }): Span {
 
 // yaml appends " at line L, column C" only when prettyErrors is on; strip any trailing context.
 function yamlMessage(message: string): string {
-  const first = message.split('\n')[0];
-  return first.replace(/ at line \d+, column \d+:?$/, '');
+  const first = message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '');
+  // The usual cause in a plant file: a `cond ? a : b` expression or a "key: value" inside text.
+  if (/^Nested mappings are not allowed/.test(first)) {
+    return `${first} (a value containing ': ', such as a 'cond ? a : b' expression, must be in quotes)`;
+  }
+  return first;
 }
 
 /**

@@ -65,6 +65,19 @@ describe('formatDiagnostic: one exact message per family', () => {
     expect(d.message).not.toMatch(/at line \d+, column \d+/);
   });
 
+  it('YAML pitfalls in expressions get a hint: unquoted ?: and a leading !', () => {
+    const ode = (e: string) =>
+      `name: a\nmodel:\n  type: ode\n  states: { y: { initial: 0 } }\n  input: u\n  derivatives:\n    y: ${e}\n  output: y\n${LOOP}`;
+    const cond = ode('y > 0 ? 1 : 0');
+    expect(first(cond)).toMatchObject({ code: 'YAML_SYNTAX' });
+    expect(first(cond).message).toMatch(/must be in quotes/);
+    const bang = ode('!y');
+    expect(first(bang)).toMatchObject({ code: 'EXPR_SYNTAX' });
+    expect(first(bang).message).toMatch(/YAML read '!y' as a tag; put an expression starting with '!' in quotes/);
+    expect(loadPlant(ode('"y > 0 ? 1 : 0"')).plant).toBeDefined();
+    expect(loadPlant(ode('"!(y > 0)"')).plant).toBeDefined();
+  });
+
   it('warnings say so', () => {
     const text = `name: a\nmodel: { type: first_order, gain: 1, time_constant: 1 }\nloop:\n  sample_time: 1\n  controller: { structure: p, kc: 1, ti: 5 }\n  trial: { duration: 10 }\n`;
     const r = loadPlant(text, 'p.yaml');

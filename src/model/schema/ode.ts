@@ -170,6 +170,14 @@ export function readExpression(r: Reader, n: YNode, path: string, names: Readonl
     r.error('WRONG_TYPE', `${path} must be an expression (text), not ${n.kind === 'scalar' ? 'that value' : `a ${n.kind === 'map' ? 'mapping' : 'list'}`}`, n.span);
     return undefined;
   }
+  if (n.tag !== undefined && n.tag !== 'tag:yaml.org,2002:str') {
+    r.error(
+      'EXPR_SYNTAX',
+      `${path}: YAML read '${n.tag.replace(/^tag:yaml\.org,2002:/, '!!')}' as a tag; put an expression starting with '!' in quotes`,
+      n.span,
+    );
+    return undefined;
+  }
   const res = parseExpression(n.value, { names, offset: n.offsetOf });
   for (const e of res.errors) r.error(e.code, `${path}: ${e.message}`, e.span);
   return res.expr ?? undefined;
