@@ -3,6 +3,7 @@
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
 import { runCommand } from './commands/run.js';
+import { screenCommand } from './commands/screen.js';
 import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { demoPlantPath } from './plants-dir.js';
@@ -17,8 +18,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
   try {
     const [command, ...rest] = argv;
     if (command === undefined) {
-      // Until the terminal screen lands, no arguments runs the demo plant.
-      return await runCommand([demoPlantPath()], io);
+      // The terminal screen on the demo plant (a summary when there is no terminal).
+      return await screenCommand([demoPlantPath()], io);
     }
     switch (command) {
       case 'run':
@@ -29,8 +30,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         io.out(USAGE);
         return 0;
       default:
-        // `looprig FILE` will open the terminal screen; until it lands it runs the file.
-        if (/\.ya?ml$/i.test(command)) return await runCommand([command, ...rest], io);
+        // `looprig FILE` opens the terminal screen (a summary when there is no terminal).
+        if (/\.ya?ml$/i.test(command)) return await screenCommand([command, ...rest], io);
         io.err(`looprig: unknown command '${command}'\n\n${USAGE}`);
         return UserError.USAGE;
     }

@@ -44,6 +44,13 @@ describe('looprig help and dispatch', () => {
     expect(r.out).toBe('');
   });
 
+  it('a plant file as the only command runs it (until the terminal screen lands)', async () => {
+    const r = await run([plant('drum-level.yaml')]);
+    expect(r.code).toBe(0);
+    expect(r.out).toContain('Drum level');
+    expect(r.out).toContain('controller pi (ideal) kc 0.227, ti 160 s');
+  });
+
   it('no arguments runs the bundled demo plant (until the terminal screen lands)', async () => {
     const r = await run([]);
     expect(r.code).toBe(0);

@@ -255,6 +255,9 @@ export function reportJson(report: RunReport): unknown {
   };
 }
 
+/** Controller values that are times (printed with their unit). */
+const TIME_VALUES = new Set(['ti', 'td', 'tracking_time']);
+
 const UNITS: Readonly<Record<string, string>> = {
   overshoot_pct: ' %',
   rise_time: ' s',
@@ -270,7 +273,7 @@ export function summaryText(report: RunReport): string {
   const lines: string[] = [];
   lines.push(`${plant.name}  (${report.file})`);
   const gains = Object.entries(c.values)
-    .map(([k, v]) => `${k} ${num(v)}`)
+    .map(([k, v]) => `${k} ${TIME_VALUES.has(k) ? secs(v, 'none') : num(v)}`)
     .join(', ');
   lines.push(`model ${plant.model.type}; controller ${c.structure} (${c.form}) ${gains}`);
   lines.push(
