@@ -33,3 +33,13 @@ export const NO_DIAGNOSIS: NoticeSource = {
   plantNotices: () => [{ tone: 'info', text: 'diagnosis not available' }],
   margins: () => null,
 };
+
+/** A source with extra notices (e.g. loader warnings) listed after its own. */
+export function withNotices(source: NoticeSource, extra: readonly Notice[]): NoticeSource {
+  if (extra.length === 0) return source;
+  return {
+    available: source.available,
+    plantNotices: () => [...source.plantNotices(), ...extra],
+    margins: (g) => source.margins(g),
+  };
+}

@@ -1,0 +1,10 @@
+/**
+ * tui/: the terminal screen. The CLI opens it with `runScreen`; the rest is listed for tests
+ * and for anyone embedding the screen's pure parts (reducer, keymap, layout).
+ */
+export { runScreen, NODE_SCREEN_IO, type ScreenOptions } from './run-screen.js';
+export { App, type AppProps, type ScreenIo } from './app.js';
+export { KEYMAP, HINT, NUDGE, SPEEDS, commandFor, keyToken, helpLines, type KeyBinding, type KeyCommand } from './keymap.js';
+export { reduce, initialState, isDirty, paramList, type ScreenState, type Action, type Effect, type GainEdit } from './state.js';
+export { computeLayout, type Layout } from './layout.js';
+export { NO_DIAGNOSIS, type NoticeSource, type Notice, type MarginsView } from './notices.js';

@@ -1,0 +1,142 @@
+/**
+ * Entry point of the terminal screen: load the plant file, take over the terminal (alternate
+ * screen, raw keys), run the app, and give the terminal back however the screen ends: quit,
+ * Ctrl-C, SIGTERM, SIGHUP or a crash.
+ */
+import { randomBytes } from 'node:crypto';
+import { readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { basename, dirname, join } from 'node:path';
+import { render } from 'ink';
+import { formatDiagnostic, loadPlant } from '../model/index.js';
+import { App, type ScreenIo } from './app.js';
+import { setupLoop } from './engine.js';
+import { NO_DIAGNOSIS, withNotices, type Notice, type NoticeSource } from './notices.js';
+import type { RunMode } from './state.js';
+import { colorWanted } from './theme.js';
+
+export interface ScreenOptions {
+  /** File access (default: node:fs, writes via temporary file + rename). */
+  io?: ScreenIo;
+  stdin?: NodeJS.ReadStream;
+  stdout?: NodeJS.WriteStream;
+  stderr?: NodeJS.WriteStream;
+  env?: Readonly<Record<string, string | undefined>>;
+  /** Where diagnosis flags and margins come from (default: whatever diagnose/ provides). */
+  notices?: NoticeSource;
+  /** Show the safety caution first (default true: once per session). */
+  caution?: boolean;
+  mode?: RunMode;
+}
+
+/** Exit status after SIGTERM / SIGHUP (128 + signal number, shell convention). */
+const SIGNAL_EXIT: Record<string, number> = { SIGTERM: 143, SIGHUP: 129 };
+
+const ENTER_ALT = '\u001b[?1049h\u001b[H';
+const LEAVE_ALT = '\u001b[?1049l';
+const SHOW_CURSOR = '\u001b[?25h';
+
+/** node:fs file access with an atomic write. */
+export const NODE_SCREEN_IO: ScreenIo = {
+  readText: (path) => readFileSync(path, 'utf8'),
+  writeText: (path, text) => {
+    const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+    try {
+      writeFileSync(tmp, text, 'utf8');
+      renameSync(tmp, path);
+    } catch (error) {
+      rmSync(tmp, { force: true });
+      throw error;
+    }
+  },
+};
+
+/**
+ * Open the screen on a plant file. Resolves with the exit status: 0 after quitting, 2 when the
+ * file cannot be read or loaded (its FILE:LINE:COL messages on stderr, no stack trace), 128+n
+ * after a terminating signal.
+ */
+export async function runScreen(filePath: string, options: ScreenOptions = {}): Promise<number> {
+  const io = options.io ?? NODE_SCREEN_IO;
+  const stdin = options.stdin ?? process.stdin;
+  const stdout = options.stdout ?? process.stdout;
+  const stderr = options.stderr ?? process.stderr;
+  const env = options.env ?? process.env;
+  const fileName = basename(filePath);
+
+  let text: string;
+  try {
+    text = io.readText(filePath);
+  } catch (error) {
+    stderr.write(`looprig: cannot read ${filePath}: ${(error as Error).message}\n`);
+    return 2;
+  }
+  const loaded = loadPlant(text, filePath);
+  if (loaded.plant === undefined) {
+    for (const d of loaded.diagnostics) stderr.write(`${formatDiagnostic(d, text, filePath)}\n`);
+    return 2;
+  }
+  let setup;
+  try {
+    setup = setupLoop(loaded.plant);
+  } catch (error) {
+    stderr.write(`${filePath}: cannot set the loop up: ${(error as Error).message}\n`);
+    return 2;
+  }
+  if (!stdin.isTTY) {
+    stderr.write("looprig: the screen needs a terminal for keys; use 'looprig run FILE' in scripts\n");
+    return 2;
+  }
+  const warnings: Notice[] = loaded.diagnostics
+    .filter((d) => d.severity === 'warning')
+    .map((d) => ({ tone: 'warn', text: formatDiagnostic(d, text, fileName) }));
+  const notices = withNotices(options.notices ?? NO_DIAGNOSIS, warnings);
+
+  let code = 0;
+  let restored = false;
+  const restore = (): void => {
+    if (restored) return;
+    restored = true;
+    stdout.write(LEAVE_ALT + SHOW_CURSOR);
+  };
+  stdout.write(ENTER_ALT);
+  const instance = render(
+    <App
+      setup={setup}
+      filePath={filePath}
+      fileName={fileName}
+      text={text}
+      io={io}
+      notices={notices}
+      color={colorWanted(env, stdout)}
+      caution={options.caution ?? true}
+      mode={options.mode}
+      onExit={(c) => {
+        code = c;
+      }}
+    />,
+    { stdin, stdout, stderr, exitOnCtrlC: false, patchConsole: false, maxFps: 60 },
+  );
+  const onSignal = (signal: NodeJS.Signals): void => {
+    code = SIGNAL_EXIT[signal] ?? 1;
+    instance.unmount();
+  };
+  process.on('SIGTERM', onSignal);
+  process.on('SIGHUP', onSignal);
+  // Last resort: whatever ends the process, the terminal comes back.
+  process.on('exit', restore);
+  try {
+    await instance.waitUntilExit();
+  } catch (error) {
+    restore();
+    stderr.write(`looprig: the screen stopped: ${(error as Error).message}\n`);
+    code = 1;
+  } finally {
+    process.off('SIGTERM', onSignal);
+    process.off('SIGHUP', onSignal);
+    process.off('exit', restore);
+    restore();
+    // Ink leaves stdin flowing on some terminals; without this the process would not end.
+    stdin.pause();
+  }
+  return code;
+}
