@@ -185,6 +185,13 @@ describe('loadPlant: model kinds and defaults', () => {
     expect(p.loop.requirements).toEqual({ settlingBand: 0.02 });
   });
 
+  it('actuator and output limits accept YAML infinities (no limit)', () => {
+    const p = ok(withModel('{ type: first_order, gain: 1, time_constant: 1 }', 'actuator: { min: -.inf, max: 5, rate_limit: .inf }\n'));
+    expect(p.actuator).toEqual({ min: -Infinity, max: 5, rateLimit: Infinity });
+    const bad = loadPlant(withModel('{ type: first_order, gain: 1, time_constant: 1 }', 'actuator: { min: .inf }\n'));
+    expect(errors(bad)).toMatchObject([{ code: 'BAD_VALUE' }]);
+  });
+
   it('description is allowed and ignored', () => {
     ok(`description: anything\n${withModel('{ type: first_order, gain: 1, time_constant: 1 }')}`);
   });

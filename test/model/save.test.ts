@@ -73,6 +73,20 @@ describe('savePlantValues keeps every comment and untouched line byte for byte',
     );
   });
 
+  it('keeps CRLF line endings, for edits and for inserted lines', () => {
+    const text = fixture('surge-tank.yaml').replace(/\n/g, '\r\n');
+    expect(loadPlant(text).plant).toBeDefined();
+    const out = savePlantValues(text, [
+      { path: ['loop', 'controller', 'kc'], value: 3 },
+      { path: ['loop', 'controller', 'tracking_time'], value: '5 s' },
+    ]);
+    expect(out.replace(/\r\n/g, '')).not.toMatch(/[\r\n]/);
+    const lines = out.split('\r\n');
+    expect(lines).toContain('    kc: 3');
+    expect(lines[lines.indexOf('    anti_windup: clamp') + 1]).toBe('    tracking_time: 5 s');
+    expect(loadPlant(out).plant!.loop.controller.gains).toMatchObject({ kc: 3, trackingTime: 5 });
+  });
+
   it('writes non-finite numbers as YAML infinities', () => {
     const text = 'a: 1\n';
     expect(savePlantValues(text, [{ path: ['a'], value: Infinity }])).toBe('a: .inf\n');

@@ -15,8 +15,8 @@ export function readActuator(r: Reader, node: YNode | undefined, owner: Span): A
   const mn = f.get('min');
   const mx = f.get('max');
   const rl = f.get('rate_limit');
-  const min = mn && r.number(mn, 'actuator.min');
-  const max = mx && r.number(mx, 'actuator.max');
+  const min = mn && r.number(mn, 'actuator.min', { allowNegativeInfinity: true });
+  const max = mx && r.number(mx, 'actuator.max', { allowInfinity: true });
   const rate = rl && r.number(rl, 'actuator.rate_limit', { gt: 0, allowInfinity: true });
   if (min !== undefined) out.min = min;
   if (max !== undefined) out.max = max;

@@ -186,7 +186,7 @@ export function readController(
   let outputMax = actuator.max;
   const ol = f.get('output_limits');
   if (ol) {
-    const p = r.pair(ol, f.at('output_limits'), false, true);
+    const p = r.pair(ol, f.at('output_limits'), false, true, { allowInfinity: true, allowNegativeInfinity: true });
     if (p) [outputMin, outputMax] = p;
   }
   if (!values || !tuning) return undefined;

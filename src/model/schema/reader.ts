@@ -20,6 +20,8 @@ export interface NumberRule {
   integer?: boolean;
   /** Accept +Infinity (e.g. `ti: .inf`). */
   allowInfinity?: boolean;
+  /** Accept -Infinity (e.g. `min: -.inf`). */
+  allowNegativeInfinity?: boolean;
 }
 
 /** A mapping with its allowed keys checked; `path` is the dotted location used in messages. */
@@ -206,7 +208,8 @@ export class Reader {
 
   private check(v: number, node: YScalar, path: string, rule: NumberRule, unit: string): number | undefined {
     const show = (x: number): string => `${fmt(x)}${unit}`;
-    if (Number.isNaN(v) || (!Number.isFinite(v) && !(rule.allowInfinity && v === Infinity))) {
+    const infinityOk = (rule.allowInfinity && v === Infinity) || (rule.allowNegativeInfinity && v === -Infinity);
+    if (Number.isNaN(v) || (!Number.isFinite(v) && !infinityOk)) {
       this.error('BAD_VALUE', `${path} must be a finite number, got ${fmt(v)}`, node.span);
       return undefined;
     }
