@@ -87,6 +87,7 @@ export function levenbergMarquardt(
   const delta = new Float64Array(n);
   const xTrial = new Float64Array(n);
   const xPert = new Float64Array(n);
+  const active = new Uint8Array(n);
 
   let sse = sumSq(x, r);
   if (!Number.isFinite(sse)) throw new RangeError('levenbergMarquardt: residuals not finite at x0');
@@ -118,10 +119,12 @@ export function levenbergMarquardt(
     let gMax = 0;
     let dMax = 0;
     for (let a = 0; a < n; a++) {
-      // Gradient components pushing against an active bound do not count.
-      const atLower = lower && x[a] <= lower[a] && g[a] > 0;
-      const atUpper = upper && x[a] >= upper[a] && g[a] < 0;
-      if (!atLower && !atUpper) gMax = Math.max(gMax, Math.abs(g[a]) / Math.sqrt(JtJ[a * n + a] + 1e-300));
+      // A parameter on a bound whose descent direction points out of the box is held there
+      // this iteration (an active set): projecting a full step instead makes the search crawl.
+      const atLower = lower !== undefined && x[a] <= lower[a] && g[a] > 0;
+      const atUpper = upper !== undefined && x[a] >= upper[a] && g[a] < 0;
+      active[a] = atLower || atUpper ? 1 : 0;
+      if (!active[a]) gMax = Math.max(gMax, Math.abs(g[a]) / Math.sqrt(JtJ[a * n + a] + 1e-300));
       dMax = Math.max(dMax, JtJ[a * n + a]);
     }
     if (gMax <= 1e-12 * Math.sqrt(sse + 1e-300)) {
@@ -133,10 +136,15 @@ export function levenbergMarquardt(
     // Inner loop: raise the damping until a step lowers the cost.
     for (let tries = 0; tries < 40; tries++) {
       for (let a = 0; a < n; a++) {
-        for (let b = 0; b < n; b++) A[a * n + b] = JtJ[a * n + b];
+        for (let b = 0; b < n; b++) A[a * n + b] = active[a] || active[b] ? 0 : JtJ[a * n + b];
         const d = JtJ[a * n + a] > 0 ? JtJ[a * n + a] : dMax > 0 ? dMax * 1e-12 : 1;
-        A[a * n + a] += mu * d;
-        delta[a] = -g[a];
+        if (active[a]) {
+          A[a * n + a] = 1;
+          delta[a] = 0;
+        } else {
+          A[a * n + a] += mu * d;
+          delta[a] = -g[a];
+        }
       }
       if (!choleskySolve(A, delta, n)) {
         mu *= nu;
