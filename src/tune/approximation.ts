@@ -59,12 +59,13 @@ export function halfRule(model: LinearModel, loop: LoopElements): HalfRuleResult
     else if (p.re > 0) {
       notes.push('the plant has an unstable pole: the tuning rules do not apply');
       return empty;
-    } else if (Math.abs(p.im) > 1e-9 * r) {
+    } else if (Math.abs(p.im) > 1e-3 * r) {
+      // (A repeated real pole comes out of the eigenvalue routine split by ~1e-5 relative: real.)
       if (p.im > 0) {
         lags.push(1 / r, 1 / r);
         complex = true;
       }
-    } else lags.push(-1 / p.re);
+    } else lags.push(1 / r);
   }
   if (complex) notes.push('complex poles approximated as pairs of lags 1/wn');
   if (integrators > 1) {
@@ -82,15 +83,15 @@ export function halfRule(model: LinearModel, loop: LoopElements): HalfRuleResult
       notes.push('a zero at the origin: the plant has no static gain; the tuning rules do not apply');
       return empty;
     }
-    if (Math.abs(z.im) > 1e-9 * r) {
+    if (Math.abs(z.im) > 1e-3 * r) {
       notes.push('complex zeros ignored by the approximation');
       continue;
     }
     if (z.re > 0) {
-      inverse += 1 / z.re; // RHP zero: its time constant joins the delay
+      inverse += 1 / r; // RHP zero: its time constant joins the delay
       continue;
     }
-    const t0 = -1 / z.re; // LHP zero (T0 s + 1)
+    const t0 = 1 / r; // LHP zero (T0 s + 1)
     let j = -1;
     for (let i = 0; i < lags.length; i++) if (lags[i] >= t0) j = i; // smallest lag >= T0
     if (j >= 0) {

@@ -51,8 +51,8 @@ export function gainMargins(ctx: TuningContext, gains: GainSet): Margins | null 
 export function simulateGains(ctx: TuningContext, gains: GainSet, structure: ControllerStructure): { result: TrialResult; metrics: TrialMetrics } {
   const spec = ctx.spec;
   const controller = buildController({ ...spec.loop.controller, structure, gains }, spec.loop.sampleTime);
-  const result = runTrial(ctx.dynamics, controller, ctx.loop, spec.loop.trial);
-  const metrics = trialMetrics(result.trace, spec.loop.trial, spec.loop.requirements);
+  const result = runTrial(ctx.dynamics, controller, ctx.loop, ctx.trial);
+  const metrics = trialMetrics(result.trace, ctx.trial, spec.loop.requirements);
   return { result, metrics };
 }
 

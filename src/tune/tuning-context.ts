@@ -5,7 +5,7 @@
  */
 import { plantFrequencyResponse, type PlantFrequencyResponse } from '../analysis/index.js';
 import { compilePlant } from '../model/index.js';
-import type { PlantSpec } from '../model/types.js';
+import type { PlantSpec, TrialSpec } from '../model/types.js';
 import { chooseStep, type LinearModel, type LoopConfig, type PlantDynamics } from '../sim/index.js';
 import { operatingPointModel } from './operating-point.js';
 
@@ -18,6 +18,8 @@ export interface TuningContext {
   linear: LinearModel | null;
   /** Frequency response of `linear` up to the Nyquist frequency; null with `linear`. */
   response: PlantFrequencyResponse | null;
+  /** The file's trial without its scripted gain changes (a gain set is judged on its own). */
+  trial: TrialSpec;
   /** Notes from the preparation (step choice, linearisation). */
   notes: string[];
 }
@@ -56,6 +58,10 @@ export function tuningContext(spec: PlantSpec, dynamics: PlantDynamics = compile
   const op = operatingPointModel(spec, dynamics);
   for (const n of op.notes) notes.push(n);
   const linear = op.model;
-  return { spec, dynamics, loop, linear, response: linear ? responseOf(linear, spec) : null, notes };
+  const t = spec.loop.trial;
+  const events = t.events.filter((e) => e.kind !== 'gains');
+  if (events.length < t.events.length) notes.push("the trial's scripted gain changes are left out when judging a gain set");
+  const trial = { ...t, events };
+  return { spec, dynamics, loop, linear, response: linear ? responseOf(linear, spec) : null, trial, notes };
 }
 

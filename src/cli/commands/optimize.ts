@@ -1,0 +1,182 @@
+/**
+ * `looprig optimize FILE [--ms 1.6] [--cost iae|itae] [--json] [--write]`: PI or PID gains that
+ * minimise the cost on the full simulated trial subject to Ms <= target; progress on a terminal;
+ * `--write` puts the result into the file (comments kept, atomic write).
+ */
+import { parseArgs } from 'node:util';
+import { controllerEdits, parseDuration, savePlantValues } from '../../model/index.js';
+import type { PlantSpec } from '../../model/types.js';
+import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
+import { UserError } from '../errors.js';
+import { num, secs } from '../format.js';
+import type { Io } from '../io.js';
+import { finiteOrNull, toJson } from '../json.js';
+import { loadPlantFile } from '../load-plant-file.js';
+
+export const OPTIMIZE_USAGE = `Usage: looprig optimize FILE [options]
+
+Searches PI or PID gains that minimise a cost on the full simulation of the file's trial, subject
+to Ms <= a target and the actuator limits. Starts from the best tuning rule; deterministic for a
+given file within the evaluation budget.
+
+Options:
+  --ms M             upper bound on the sensitivity peak Ms (default 1.6; 1.4 for more robustness)
+  --cost iae|itae    error integral to minimise over the trial (default iae)
+  --du-weight W      add W times the total variation of the controller output to the cost (default 0)
+  --structure pi|pid controller structure (default: the file's)
+  --evaluations N    evaluation budget (default 300)
+  --time T           wall-clock cap (default 2s)
+  --write            write the gains into FILE (comments kept)
+  --json             one JSON document on stdout
+  -h, --help         show this text
+`;
+
+interface OptimizeArgs {
+  file: string;
+  json: boolean;
+  write: boolean;
+  ms: number;
+  cost: 'iae' | 'itae';
+  duWeight: number;
+  structure: 'pi' | 'pid' | null;
+  evaluations: number;
+  timeMs: number;
+}
+
+function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...args],
+      allowPositionals: true,
+      strict: true,
+      options: {
+        json: { type: 'boolean' },
+        write: { type: 'boolean' },
+        ms: { type: 'string' },
+        cost: { type: 'string' },
+        'du-weight': { type: 'string' },
+        structure: { type: 'string' },
+        evaluations: { type: 'string' },
+        time: { type: 'string' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    });
+  } catch (error) {
+    throw new UserError(`optimize: ${(error as Error).message}`);
+  }
+  const { values, positionals } = parsed;
+  if (values.help) return 'help';
+  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'optimize: missing FILE' : 'optimize: one FILE expected');
+  const ms = values.ms === undefined ? 1.6 : Number(values.ms);
+  if (!(ms > 1) || !Number.isFinite(ms)) throw new UserError('optimize: --ms must be a number > 1');
+  const cost = values.cost ?? 'iae';
+  if (cost !== 'iae' && cost !== 'itae') throw new UserError(`optimize: --cost must be iae or itae, got ${cost}`);
+  const duWeight = values['du-weight'] === undefined ? 0 : Number(values['du-weight']);
+  if (!(duWeight >= 0) || !Number.isFinite(duWeight)) throw new UserError('optimize: --du-weight must be >= 0');
+  const structure = values.structure ?? null;
+  if (structure !== null && structure !== 'pi' && structure !== 'pid') throw new UserError('optimize: --structure must be pi or pid');
+  const evaluations = values.evaluations === undefined ? 300 : Number(values.evaluations);
+  if (!Number.isInteger(evaluations) || evaluations < 1) throw new UserError('optimize: --evaluations must be a whole number >= 1');
+  let timeMs = 2000;
+  if (values.time !== undefined) {
+    let t: number;
+    try {
+      t = parseDuration(values.time);
+    } catch {
+      throw new UserError(`optimize: --time ${values.time}: not a time`);
+    }
+    if (!(t > 0)) throw new UserError('optimize: --time must be positive');
+    timeMs = t * 1000;
+  }
+  return { file: positionals[0], json: values.json === true, write: values.write === true, ms, cost, duWeight, structure, evaluations, timeMs };
+}
+
+function progressLine(p: OptimizeProgress, cost: string): string {
+  const width = 24;
+  const filled = Math.round(p.fraction * width);
+  return `\r[${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${p.evaluations}/${p.maxEvaluations}  best ${cost} ${num(p.bestCost)}   `;
+}
+
+function summaryText(plant: PlantSpec, r: OptimizeResult, values: Record<string, number> | null, wrote: string | null): string {
+  const b = r.best;
+  const first = b.metrics.firstStep;
+  const kind = r.cost.kind.toUpperCase();
+  const lines = [
+    `${plant.name}: optimised ${r.structure.toUpperCase()} (${kind}${r.cost.outputVariationWeight > 0 ? ` + ${r.cost.outputVariationWeight} x output variation` : ''}, Ms <= ${r.msTarget})`,
+    `  start: ${r.startRule ? r.startRule.rule.label : 'given gains'}, ${kind} ${num(r.startCost)}`,
+    `  result: ${kind} ${num(b.cost)} after ${r.evaluations} evaluations (${r.stoppedBy}, ${num(r.elapsedMs / 1000, 3)} s)`,
+    `  gains (${plant.loop.controller.form}): ${values ? Object.entries(values).map(([k, v]) => `${k}=${k === 'ti' || k === 'td' ? secs(v) : num(v)}`).join(' ') : 'not expressible in this form'}`,
+    `  overshoot ${first ? `${num(first.overshootPct, 3)} %` : '-'}, settling ${first ? secs(first.settlingTime, 'never') : '-'}, Ms ${b.margins ? num(b.margins.maxSensitivity, 3) : '-'}, GM ${b.margins ? num(b.margins.gainMargin, 3, 'inf') : '-'}`,
+  ];
+  for (const f of b.flags) lines.push(`  flag: ${f.message}`);
+  for (const n of r.notes) lines.push(`note: ${n}`);
+  if (wrote) lines.push(`wrote ${wrote}`);
+  return `${lines.join('\n')}\n`;
+}
+
+/** `looprig optimize ...` */
+export async function optimizeCommand(args: readonly string[], io: Io): Promise<number> {
+  const o = parseOptimizeArgs(args);
+  if (o === 'help') {
+    io.out(OPTIMIZE_USAGE);
+    return 0;
+  }
+  const { plant, text } = loadPlantFile(o.file, io);
+  const fileStructure = plant.loop.controller.structure;
+  const structure = o.structure ?? (fileStructure === 'pid' || fileStructure === 'pd' ? 'pid' : 'pi');
+  if (o.write && fileStructure !== structure) {
+    throw new UserError(`optimize: --write: the file's controller structure is ${fileStructure}; set it to ${structure} first (or pass --structure ${fileStructure === 'pid' ? 'pid' : 'pi'})`);
+  }
+  const showProgress = io.isTTY && !o.json;
+  const result = optimizeGains(
+    plant,
+    { structure, msTarget: o.ms, cost: { kind: o.cost, outputVariationWeight: o.duWeight }, maxEvaluations: o.evaluations, timeBudgetMs: o.timeMs },
+    showProgress ? (p) => io.err(progressLine(p, o.cost.toUpperCase())) : undefined,
+  );
+  if (showProgress) io.err('\n');
+  const values = valuesInForm(plant.loop.controller.form, result.best.gains);
+  let wrote: string | null = null;
+  if (o.write) {
+    if (values === null) throw new UserError('optimize: --write: the result has no series form (ti < 4 td); nothing written');
+    if (result.best.cost === Infinity || result.best.flags.some((f) => f.code === 'DIVERGED' || f.code === 'UNSTABLE_LOOP')) {
+      throw new UserError('optimize: --write: no stable gain set found; nothing written', UserError.FAIL);
+    }
+    const edits = controllerEdits(text, values, { digits: 6 });
+    const next = savePlantValues(text, edits);
+    try {
+      io.writeText(o.file, next);
+    } catch (error) {
+      throw new UserError(`cannot write ${o.file}: ${(error as Error).message}`);
+    }
+    wrote = o.file;
+  }
+  if (o.json) {
+    const b = result.best;
+    const first = b.metrics.firstStep;
+    io.out(
+      toJson({
+        plant: { name: plant.name, file: o.file, form: plant.loop.controller.form },
+        structure: result.structure,
+        cost: { kind: result.cost.kind, output_variation_weight: result.cost.outputVariationWeight, value: finiteOrNull(b.cost) },
+        ms_target: result.msTarget,
+        values,
+        ideal: { kc: b.gains.kc, ti: finiteOrNull(b.gains.ti), td: b.gains.td },
+        start: { rule: result.startRule?.rule.id ?? null, cost: finiteOrNull(result.startCost) },
+        evaluations: result.evaluations,
+        stopped_by: result.stoppedBy,
+        elapsed_ms: result.elapsedMs,
+        overshoot_pct: first ? finiteOrNull(first.overshootPct) : null,
+        settling_time: first ? finiteOrNull(first.settlingTime) : null,
+        max_sensitivity: b.margins ? finiteOrNull(b.margins.maxSensitivity) : null,
+        gain_margin: b.margins ? finiteOrNull(b.margins.gainMargin) : null,
+        flags: b.flags,
+        notes: result.notes,
+        written: wrote,
+      }),
+    );
+  } else {
+    io.out(summaryText(plant, result, values, wrote));
+  }
+  return 0;
+}

@@ -1,0 +1,200 @@
+/**
+ * `looprig suggest FILE [--json]`: every tuning rule on the plant file, each gain set simulated on
+ * the full plant (its trial, limits, delays), one row per rule.
+ */
+import { parseArgs } from 'node:util';
+import { parseDuration } from '../../model/index.js';
+import type { PlantSpec } from '../../model/types.js';
+import { suggestGains, type SuggestResult, type Suggestion } from '../../tune/index.js';
+import { UserError } from '../errors.js';
+import { num, secs, table } from '../format.js';
+import type { Io } from '../io.js';
+import { finiteOrNull, toJson } from '../json.js';
+import { loadPlantFile } from '../load-plant-file.js';
+
+export const SUGGEST_USAGE = `Usage: looprig suggest FILE [options]
+
+Runs every tuning rule on the plant's low-order approximation (and ultimate point), converts each
+gain set into the file's controller form, simulates the file's trial with it and reports one row
+per rule: gains, overshoot, settling time, IAE, Ms, gain margin, worst case over the file's
+uncertainty ranges, flags. Rules give a starting point, not an answer.
+
+Options:
+  --json         one JSON document on stdout
+  --tauc T       SIMC closed-loop time constant (default: the effective delay), e.g. --tauc 20s
+  --lambda T     lambda / IMC closed-loop time constant (default: each rule's own)
+  --relay        take the ultimate point from a relay test in the simulation instead of the model
+  --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
+  -h, --help     show this text
+`;
+
+interface SuggestArgs {
+  file: string;
+  json: boolean;
+  tauc: number | null;
+  lambda: number | null;
+  relay: boolean;
+  samples: number;
+}
+
+function parseSuggestArgs(args: readonly string[]): SuggestArgs | 'help' {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...args],
+      allowPositionals: true,
+      strict: true,
+      options: {
+        json: { type: 'boolean' },
+        tauc: { type: 'string' },
+        lambda: { type: 'string' },
+        relay: { type: 'boolean' },
+        samples: { type: 'string' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    });
+  } catch (error) {
+    throw new UserError(`suggest: ${(error as Error).message}`);
+  }
+  const { values, positionals } = parsed;
+  if (values.help) return 'help';
+  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'suggest: missing FILE' : 'suggest: one FILE expected');
+  const time = (flag: string, raw: string | undefined): number | null => {
+    if (raw === undefined) return null;
+    let v: number;
+    try {
+      v = parseDuration(raw);
+    } catch {
+      throw new UserError(`suggest: --${flag} ${raw}: not a time`);
+    }
+    if (!(v > 0) || !Number.isFinite(v)) throw new UserError(`suggest: --${flag} must be a positive time`);
+    return v;
+  };
+  const samples = values.samples === undefined ? 0 : Number(values.samples);
+  if (!Number.isInteger(samples) || samples < 0) throw new UserError('suggest: --samples must be a whole number >= 0');
+  return {
+    file: positionals[0],
+    json: values.json === true,
+    tauc: time('tauc', values.tauc),
+    lambda: time('lambda', values.lambda),
+    relay: values.relay === true,
+    samples,
+  };
+}
+
+/** The gains as the file writes them, e.g. `kc=1.2 ti=30 s`. */
+export function gainsText(s: Suggestion): string {
+  const v = s.values ?? { kc: s.gains.kc, ti: s.gains.ti, td: s.gains.td };
+  const parts: string[] = [];
+  for (const [k, x] of Object.entries(v)) {
+    if ((k === 'ti' && x === Infinity) || ((k === 'td' || k === 'kd' || k === 'ki') && x === 0)) continue;
+    parts.push(k === 'ti' || k === 'td' ? `${k}=${secs(x)}` : `${k}=${num(x)}`);
+  }
+  return (s.values === null ? '(ideal) ' : '') + parts.join(' ');
+}
+
+function worstText(s: Suggestion): string {
+  const w = s.worstCase;
+  if (w === null) return '-';
+  if (w.anyDiverged) return `diverges (${w.cases} cases)`;
+  return `os ${num(w.worstOvershootPct, 3)} % ts ${secs(w.worstSettlingTime, 'never')} Ms ${num(w.worstMs, 3)}`;
+}
+
+function summaryText(plant: PlantSpec, r: SuggestResult): string {
+  const lines: string[] = [`${plant.name}: ${r.suggestions.length} rule gain sets, simulated on the full plant`];
+  const i = r.inputs;
+  if (i.fopdt) lines.push(`  first order + delay: k ${num(i.fopdt.k)}, tau1 ${secs(i.fopdt.tau1)}, theta ${secs(i.fopdt.theta)}`);
+  if (i.sopdt) lines.push(`  second order + delay: k ${num(i.sopdt.k)}, tau1 ${secs(i.sopdt.tau1)}, tau2 ${secs(i.sopdt.tau2)}, theta ${secs(i.sopdt.theta)}`);
+  if (i.integrating) lines.push(`  integrating + delay: kv ${num(i.integrating.kv)} /s, theta ${secs(i.integrating.theta)}`);
+  if (i.ultimate) lines.push(`  ultimate point (${r.ultimateSource}): Ku ${num(i.ultimate.ku)}, Tu ${secs(i.ultimate.tu)}`);
+  if (r.relay && r.ultimateModel) lines.push(`  ultimate point (model): Ku ${num(r.ultimateModel.ku)}, Tu ${secs(r.ultimateModel.tu)}`);
+  lines.push('');
+  const rows: string[][] = [['rule', 'gains', 'overshoot', 'settling', 'IAE', 'Ms', 'GM', 'worst case', 'flags']];
+  for (const s of r.suggestions) {
+    const e = s.evaluation;
+    const first = e.metrics.firstStep;
+    rows.push([
+      s.rule.label,
+      gainsText(s),
+      first ? `${num(first.overshootPct, 3)} %` : '-',
+      first ? secs(first.settlingTime, 'never') : '-',
+      e.result.status === 'ok' ? num(e.metrics.overall.iae) : 'diverged',
+      e.margins ? num(e.margins.maxSensitivity, 3) : '-',
+      e.margins ? num(e.margins.gainMargin, 3, 'inf') : '-',
+      worstText(s),
+      s.flags.map((f) => f.code.toLowerCase().replace(/_/g, '-')).join(',') || 'ok',
+    ]);
+  }
+  lines.push(table(rows));
+  if (r.skipped.length > 0) {
+    lines.push('', 'not applicable:');
+    for (const k of r.skipped) lines.push(`  ${k.label}: ${k.reason}`);
+  }
+  for (const n of r.notes) lines.push(`note: ${n}`);
+  lines.push('', r.caution);
+  return `${lines.join('\n')}\n`;
+}
+
+function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown {
+  return {
+    plant: { name: plant.name, file, form: plant.loop.controller.form },
+    approximation: r.inputs,
+    ultimate_source: r.ultimateSource,
+    ultimate_model: r.ultimateModel,
+    relay: r.relay?.estimate ?? null,
+    suggestions: r.suggestions.map((s) => {
+      const e = s.evaluation;
+      const first = e.metrics.firstStep;
+      return {
+        rule: s.rule.id,
+        label: s.rule.label,
+        source: s.rule.source,
+        structure: s.structure,
+        form: s.form,
+        values: s.values,
+        ideal: { kc: s.gains.kc, ti: finiteOrNull(s.gains.ti), td: s.gains.td },
+        rule_gains: { form: s.ruleGains.form, kc: s.ruleGains.kc, ti: finiteOrNull(s.ruleGains.ti), td: s.ruleGains.td },
+        status: e.result.status,
+        overshoot_pct: first ? finiteOrNull(first.overshootPct) : null,
+        settling_time: first ? finiteOrNull(first.settlingTime) : null,
+        rise_time: first ? finiteOrNull(first.riseTime) : null,
+        iae: finiteOrNull(e.metrics.overall.iae),
+        cost: finiteOrNull(e.cost),
+        max_sensitivity: e.margins ? finiteOrNull(e.margins.maxSensitivity) : null,
+        gain_margin: e.margins ? finiteOrNull(e.margins.gainMargin) : null,
+        phase_margin_deg: e.margins ? finiteOrNull(e.margins.phaseMarginDeg) : null,
+        saturated_fraction: e.saturatedFraction,
+        worst_case: s.worstCase && {
+          cases: s.worstCase.cases,
+          any_diverged: s.worstCase.anyDiverged,
+          overshoot_pct: finiteOrNull(s.worstCase.worstOvershootPct),
+          settling_time: finiteOrNull(s.worstCase.worstSettlingTime),
+          iae: finiteOrNull(s.worstCase.worstIae),
+          max_sensitivity: finiteOrNull(s.worstCase.worstMs),
+        },
+        flags: s.flags,
+      };
+    }),
+    skipped: r.skipped,
+    notes: r.notes,
+    caution: r.caution,
+  };
+}
+
+/** `looprig suggest ...` */
+export async function suggestCommand(args: readonly string[], io: Io): Promise<number> {
+  const options = parseSuggestArgs(args);
+  if (options === 'help') {
+    io.out(SUGGEST_USAGE);
+    return 0;
+  }
+  const { plant } = loadPlantFile(options.file, io);
+  const result = suggestGains(plant, {
+    tauc: options.tauc,
+    lambda: options.lambda,
+    ultimate: options.relay ? 'relay' : 'model',
+    robustness: { samples: options.samples },
+  });
+  io.out(options.json ? toJson(suggestJson(options.file, plant, result)) : summaryText(plant, result));
+  return 0;
+}
