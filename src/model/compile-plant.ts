@@ -3,7 +3,7 @@
  * functions built from that same source. The source comes only from checked trees (ode) or
  * from numbers (linear kinds); see expr/compile.ts.
  */
-import type { LinearModel, PlantDynamics } from '../sim/types.js';
+import type { LinearModel, PlantDynamics } from './types.js';
 import { compileExpressionSource, numberLiteral, slotDeclarations, type ExprSlots } from './expr/compile.js';
 import { MATH_HELPERS } from './expr/functions.js';
 import { realizeLinear } from './realize.js';

@@ -33,7 +33,8 @@ export type DiagnosticCode =
   | 'EXPR_UNKNOWN_NAME'
   | 'EXPR_UNKNOWN_FUNCTION'
   | 'EXPR_ARITY'
-  | 'EXPR_LIMIT';
+  | 'EXPR_LIMIT'
+  | 'INTERNAL_ERROR';
 
 /** What each code means (for documentation and `--json` consumers). */
 export const DIAGNOSTIC_CODES: Readonly<Record<DiagnosticCode, string>> = {
@@ -64,6 +65,7 @@ export const DIAGNOSTIC_CODES: Readonly<Record<DiagnosticCode, string>> = {
   EXPR_UNKNOWN_FUNCTION: 'an expression calls a function that is not in the list',
   EXPR_ARITY: 'a function called with the wrong number of arguments',
   EXPR_LIMIT: 'an expression too long, too deep or too large',
+  INTERNAL_ERROR: 'a bug in the loader, reported instead of thrown (please report it with the file)',
 };
 
 export type Severity = 'error' | 'warning';

@@ -36,7 +36,7 @@ export function loadPlant(text: string, fileName = '<plant>'): LoadResult {
   } catch (e) {
     // A loader bug must not take the caller down; report it at the top of the file.
     const msg = e instanceof Error ? e.message : String(e);
-    return { diagnostics: [diagnostic('YAML_SYNTAX', `internal error while reading ${fileName}: ${msg}`, [0, 0])], doc: null };
+    return { diagnostics: [diagnostic('INTERNAL_ERROR', `internal error while reading ${fileName}: ${msg}`, [0, 0])], doc: null };
   }
 }
 

@@ -2,7 +2,7 @@
  * State-space realisation of the linear model kinds: dx = A x + B u, y = C x + D u, with the
  * transport delay carried alongside. Initial state of every realisation is zero.
  */
-import type { LinearModel } from '../sim/types.js';
+import type { LinearModel } from './types.js';
 import type { ModelSpec, TransferModel } from './types.js';
 
 export type LinearModelSpec = Exclude<ModelSpec, { type: 'ode' }>;

@@ -7,7 +7,7 @@ import { RESERVED_NAMES } from '../expr/functions.js';
 import type { Expr, Span } from '../types.js';
 import type { YMap, YNode } from '../yaml-doc.js';
 import type { ModelRead } from './model-read.js';
-import type { Reader } from './reader.js';
+import { describe, type Reader } from './reader.js';
 
 export const ODE_FIELDS = [
   'type',
@@ -167,7 +167,7 @@ export function readExpression(r: Reader, n: YNode, path: string, names: Readonl
     return { kind: 'num', value: n.value, span: n.span };
   }
   if (n.kind !== 'scalar' || typeof n.value !== 'string') {
-    r.error('WRONG_TYPE', `${path} must be an expression (text), not ${n.kind === 'scalar' ? 'that value' : `a ${n.kind === 'map' ? 'mapping' : 'list'}`}`, n.span);
+    r.error('WRONG_TYPE', `${path} must be an expression (text), not ${describe(n)}`, n.span);
     return undefined;
   }
   if (n.tag !== undefined && n.tag !== 'tag:yaml.org,2002:str') {
