@@ -3,8 +3,20 @@
  * Gragg–Bulirsch–Stoer extrapolation code, ported to JavaScript), for comparison with the
  * engine's fixed-step RK4. Reusable for compiled plant files (compilePlant output).
  */
-import odex from 'odex';
+import { createRequire } from 'node:module';
 import type { PlantDynamics } from '../../src/sim/index.js';
+
+/** The part of odex's API used here. */
+interface OdexSolver {
+  relativeTolerance: number;
+  absoluteTolerance: number;
+  maxSteps: number;
+  solve(f: (x: number, y: number[]) => number[], x0: number, y0: number[], xEnd: number): { y: number[]; outcome: number };
+}
+
+// Loaded through require with a local type: importing 'odex' by name makes TypeScript type-check
+// the package's own .ts source under this project's strict settings, which it does not pass.
+const odex = createRequire(import.meta.url)('odex') as { Solver: new (n: number) => OdexSolver };
 
 /**
  * Outputs y(times[i]) of the open-loop plant with a piecewise-constant input: u = input(t) held
