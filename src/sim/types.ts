@@ -10,53 +10,9 @@ import type {
   TrialSpec,
 } from '../model/types.js';
 
-/**
- * A continuous-time plant ready to integrate: dx/dt = f(t, x, u, d), y = g(t, x, u, d).
- *
- * The right-hand side comes twice: as generated JavaScript expression source (so the engine can
- * inline all derivatives into one generated integrator step, no call per derivative) and as a
- * compiled function (for analysis and as the reference in tests).
- *
- * Source expressions refer only to these identifiers:
- *   x_0 … x_{nx-1}   states        p_0 … p_{np-1}   parameters
- *   d_0 … d_{nd-1}   disturbances  u                manipulated input (after the input delay)
- *   t                time, s       Math.*           JavaScript Math functions
- *   F.*              the helper table `MATH_HELPERS` (clamp, sign, …) exported by model/
- */
-export interface PlantDynamics {
-  nx: number;
-  stateNames: string[];
-  x0: Float64Array;
-  paramNames: string[];
-  params: Float64Array;
-  disturbanceNames: string[];
-  d0: Float64Array;
-  /** One JS expression per state. */
-  derivSource: string[];
-  /** JS expression of the controlled variable. */
-  outputSource: string;
-  /** Further named measurements (cascade inner variables), as JS expressions. */
-  measurementSources: Record<string, string>;
-  /** Compiled right-hand side: writes dx. */
-  deriv(t: number, x: Float64Array, u: number, d: Float64Array, p: Float64Array, dx: Float64Array): void;
-  /** Compiled output. */
-  output(t: number, x: Float64Array, u: number, d: Float64Array, p: Float64Array): number;
-  /** Transport delay on the manipulated input, s. */
-  inputDelay: number;
-  /** Exact linear model for linear kinds (dx = A x + B (u + load), y = C x + D (u + load)); null for ode. */
-  linear: LinearModel | null;
-}
-
-/** Dense single-input single-output state-space model; `a` is row-major nx*nx. */
-export interface LinearModel {
-  nx: number;
-  a: Float64Array;
-  b: Float64Array;
-  c: Float64Array;
-  d: number;
-  /** Transport delay, s. */
-  delay: number;
-}
+// PlantDynamics and LinearModel are produced by model/ (compilePlant) and so live in its contract;
+// they are re-exported here because the engine is their main consumer.
+export type { PlantDynamics, LinearModel } from '../model/types.js';
 
 /** A discrete-time controller law, updated once per sample, output held (zero-order hold). */
 export interface DiscreteController {
