@@ -2,6 +2,7 @@
  * Command dispatch: parse, map to one core call per command, print, return an exit code.
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
+import { fitCommand } from './commands/fit.js';
 import { runCommand } from './commands/run.js';
 import { screenCommand } from './commands/screen.js';
 import { UserError } from './errors.js';
@@ -22,6 +23,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
       return await screenCommand([demoPlantPath()], io);
     }
     switch (command) {
+      case 'fit':
+        return await fitCommand(rest, io);
       case 'run':
         return await runCommand(rest, io);
       case 'help':

@@ -282,6 +282,20 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
 }
 
 /**
+ * The column names of a log (first line that is not blank or a '#' comment), or null when
+ * there is no header with a delimiter. For choosing default columns before a full read.
+ */
+export function readCsvHeader(text: string): string[] | null {
+  for (const raw of text.split('\n', 200)) {
+    const line = stripCr(raw);
+    if (line.trim() === '' || line.trimStart().startsWith('#')) continue;
+    const d = detectDelimiter(line);
+    return d === null ? null : splitLine(line, d).map((s) => unquote(s.trim()));
+  }
+  return null;
+}
+
+/**
  * Parse a numeric cell: decimal point, or (when `allowComma`) a decimal comma; optional
  * exponent. No hexadecimal, no thousands separators, no "Infinity": a log with those is
  * more likely mis-read than meant. Returns null when the cell is not such a number.

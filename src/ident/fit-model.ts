@@ -372,10 +372,17 @@ function describeParameters(
       // From a = T1 + T2 = 2ζ/ωn and r = T1 T2/a² = 1/(4ζ²).
       if (v[2] <= 0.25) {
         const lag = (sign: number) => (p: number[]): number => (p[1] * (1 + sign * Math.sqrt(Math.max(1 - 4 * p[2], 0)))) / 2;
+        const t2 = derived('time_constant_2', lag(-1), 's');
+        if (fixed[2]) {
+          // The shape sits on its bound r = 0: the second lag is zero and has no interval.
+          t2.atBound = true;
+          t2.stdError = null;
+          t2.ci95 = null;
+        }
         return [
           direct('gain', 0, gainUnit),
           derived('time_constant_1', lag(1), 's'),
-          derived('time_constant_2', lag(-1), 's'),
+          t2,
           direct('delay', 3, 's'),
           direct('level', 4, yName),
         ];

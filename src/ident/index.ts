@@ -1,7 +1,7 @@
 /**
  * ident/: a logged bump test (CSV) -> fitted models -> a plant file to tune against.
  */
-export { readCsv, parseNumber } from './csv.js';
+export { readCsv, readCsvHeader, parseNumber } from './csv.js';
 export type { CsvTable, Delimiter, ReadCsvOptions, ReadCsvResult } from './csv.js';
 export { decodeLogText } from './decode-text.js';
 export type { DecodedText } from './decode-text.js';

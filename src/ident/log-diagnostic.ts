@@ -59,10 +59,14 @@ export function logDiagnostic(
   return { code, severity, line, column, message };
 }
 
-/** `FILE:LINE:COL: severity: message` (line/column left out when 0). */
+/**
+ * `FILE:LINE:COL: message` for errors, with `warning: ` or `note: ` before the message otherwise
+ * (the plant-file diagnostics' shape); line and column are left out when 0.
+ */
 export function formatLogDiagnostic(d: LogDiagnostic, fileName: string): string {
   const where = d.line > 0 ? (d.column > 0 ? `${fileName}:${d.line}:${d.column}` : `${fileName}:${d.line}`) : fileName;
-  return `${where}: ${d.severity}: ${d.message}`;
+  const prefix = d.severity === 'error' ? '' : `${d.severity}: `;
+  return `${where}: ${prefix}${d.message}`;
 }
 
 /** True when any diagnostic is an error. */

@@ -1,0 +1,386 @@
+/**
+ * `looprig fit LOG.csv`: fit simple models to a logged bump test, print them side by side,
+ * and optionally write the chosen one as a plant file (`--out`, never over an existing file
+ * without `--force`) or draw data against fit (`--show`). Bad logs exit 2 with
+ * `LOG.csv:LINE:COL: message` diagnostics.
+ */
+import { parseArgs } from 'node:util';
+import * as asciichart from 'asciichart';
+import {
+  buildPlantFile,
+  FIT_KINDS,
+  formatLogDiagnostic,
+  hasLogErrors,
+  identify,
+  parseFitKind,
+  parseIsoTimestamp,
+  prepareBumpData,
+  readCsv,
+  readCsvHeader,
+} from '../../ident/index.js';
+import type { BumpData, CsvTable, FitKind, IdentifyResult, LogDiagnostic } from '../../ident/index.js';
+import { tryParseDuration } from '../../model/index.js';
+import { UserError } from '../errors.js';
+import { num, table } from '../format.js';
+import type { Io } from '../io.js';
+import { toJson } from '../json.js';
+
+/** Help text of `fit`. */
+export const FIT_USAGE = `looprig fit LOG.csv - fit a model to a logged bump test
+
+Usage:
+  looprig fit LOG.csv [--time COL --input COL --output COL] [options]
+
+Options:
+  --time COL          time column: seconds, or ISO-8601 timestamps (default: 1st column)
+  --input COL         manipulated input, e.g. the valve output in manual (default: 2nd column)
+  --output COL        process value (default: 3rd column)
+  --from T --to T     window on the log's clock: seconds (units allowed, e.g. 10min) or,
+                      for a timestamp column, an ISO-8601 time
+  --model M           auto (default: fit all, choose by BIC), first_order, second_order,
+                      integrating or inverse_response (repeatable)
+  --skip-bad-rows     drop rows with missing or non-numeric cells instead of failing
+  --out FILE          write the chosen model as a plant file (with a starting PI and a trial)
+  --force             let --out replace an existing file
+  --show              draw the data against the chosen model's response
+  --json              print one JSON document on stdout
+  -h, --help          show this text
+
+Exit status: 0 fitted; 2 bad arguments or a log that cannot be fitted
+(printed as LOG.csv:LINE:COL: message).
+`;
+
+/** Parsed arguments of `fit`. */
+export interface FitOptions {
+  file: string;
+  time: string | null;
+  input: string | null;
+  output: string | null;
+  from: string | null;
+  to: string | null;
+  models: FitKind[] | 'auto';
+  skipBadRows: boolean;
+  out: string | null;
+  force: boolean;
+  show: boolean;
+  json: boolean;
+}
+
+/** Parse the arguments of `fit`; a mistake is a `UserError` with exit status 2. */
+export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...args],
+      allowPositionals: true,
+      strict: true,
+      options: {
+        time: { type: 'string' },
+        input: { type: 'string' },
+        output: { type: 'string' },
+        from: { type: 'string' },
+        to: { type: 'string' },
+        model: { type: 'string', multiple: true },
+        'skip-bad-rows': { type: 'boolean' },
+        out: { type: 'string' },
+        force: { type: 'boolean' },
+        show: { type: 'boolean' },
+        json: { type: 'boolean' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    });
+  } catch (error) {
+    throw new UserError(`fit: ${(error as Error).message}`);
+  }
+  const { values, positionals } = parsed;
+  if (values.help) return 'help';
+  if (positionals.length !== 1) {
+    throw new UserError(positionals.length === 0 ? 'fit: missing LOG.csv' : `fit: one log file expected, got ${positionals.length}`);
+  }
+  let models: FitKind[] | 'auto' = 'auto';
+  for (const m of values.model ?? []) {
+    if (m === 'auto') continue;
+    const k = parseFitKind(m);
+    if (k === null) throw new UserError(`fit: --model ${m}: expected auto, ${FIT_KINDS.join(', ')}`);
+    if (models === 'auto') models = [];
+    if (!models.includes(k)) models.push(k);
+  }
+  return {
+    file: positionals[0],
+    time: values.time ?? null,
+    input: values.input ?? null,
+    output: values.output ?? null,
+    from: values.from ?? null,
+    to: values.to ?? null,
+    models,
+    skipBadRows: values['skip-bad-rows'] === true,
+    out: values.out ?? null,
+    force: values.force === true,
+    show: values.show === true,
+    json: values.json === true,
+  };
+}
+
+/** Everything `fit` computed. */
+export interface FitReport {
+  file: string;
+  data: BumpData;
+  result: IdentifyResult;
+  diagnostics: LogDiagnostic[];
+  from: number;
+  to: number;
+  plantText: string | null;
+}
+
+/** `looprig fit ...` */
+export async function fitCommand(args: readonly string[], io: Io): Promise<number> {
+  const options = parseFitArgs(args);
+  if (options === 'help') {
+    io.out(FIT_USAGE);
+    return 0;
+  }
+  let text: string;
+  try {
+    text = io.readText(options.file);
+  } catch (error) {
+    throw new UserError(`cannot read ${options.file}: ${(error as Error).message}`);
+  }
+  if (options.out !== null && !options.force && exists(io, options.out)) {
+    throw new UserError(`fit: ${options.out} exists; add --force to replace it`);
+  }
+  const report = fitLog(text, options, io);
+  if (report === null) return UserError.USAGE;
+
+  if (options.out !== null && report.plantText !== null) {
+    try {
+      io.writeText(options.out, report.plantText);
+    } catch (error) {
+      throw new UserError(`cannot write ${options.out}: ${(error as Error).message}`);
+    }
+  }
+  if (options.json) {
+    io.out(toJson(jsonReport(report, options)));
+  } else {
+    io.out(summary(report));
+    if (options.show) io.out(chart(report, io));
+    if (options.out !== null) io.out(`wrote ${options.out}\n`);
+  }
+  return 0;
+}
+
+/** Read, window, fit. Prints diagnostics to stderr; returns null after errors. */
+export function fitLog(text: string, options: FitOptions, io: Io): FitReport | null {
+  const file = options.file;
+  const printAll = (ds: readonly LogDiagnostic[]): void => {
+    for (const d of ds) io.err(`${formatLogDiagnostic(d, file)}\n`);
+  };
+  const header = readCsvHeader(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
+  const pick = (given: string | null, position: number, flag: string): string => {
+    if (given !== null) return given;
+    if (header !== null && header.length >= 3) return header[position];
+    throw new UserError(`fit: give --${flag} COL (${header === null ? 'the file has no header row' : `the header has ${header.length} column${header.length === 1 ? '' : 's'}`})`);
+  };
+  // Encoding and empty-file errors come from the reader itself, with positions: only pick
+  // defaults when there is a header to pick from.
+  const time = header === null ? options.time ?? '' : pick(options.time, 0, 'time');
+  const input = header === null ? options.input ?? '' : pick(options.input, 1, 'input');
+  const output = header === null ? options.output ?? '' : pick(options.output, 2, 'output');
+  const read = readCsv(text, { time, columns: [input, output], skipBadRows: options.skipBadRows });
+  if (read.table === null || hasLogErrors(read.diagnostics)) {
+    printAll(read.diagnostics);
+    return null;
+  }
+  const tableData = read.table;
+  const from = windowBound(options.from, 'from', tableData);
+  const to = windowBound(options.to, 'to', tableData);
+  const prepared = prepareBumpData(tableData, { input, output, from, to });
+  const diagnostics = [...read.diagnostics, ...prepared.diagnostics];
+  if (prepared.data === null) {
+    printAll(diagnostics);
+    return null;
+  }
+  const data = prepared.data;
+  const result = identify(data, { models: options.models });
+  diagnostics.push(...result.diagnostics);
+  if (!options.json) printAll(diagnostics);
+  const windowFrom = data.t0;
+  const windowTo = data.t0 + (data.n - 1) * data.dt;
+  const plantText = options.out !== null
+    ? buildPlantFile(result, data, { fileName: baseName(file), from: windowFrom, to: windowTo })
+    : null;
+  return { file, data, result, diagnostics, from: windowFrom, to: windowTo, plantText };
+}
+
+/** --from/--to: seconds with an optional unit, or an ISO time for a timestamp column. */
+function windowBound(raw: string | null, flag: string, t: CsvTable): number | null {
+  if (raw === null) return null;
+  if (t.timeFormat === 'iso') {
+    const stamp = parseIsoTimestamp(raw);
+    if (stamp !== null) return (stamp.epochMs - t.epochMs!) / 1000;
+  }
+  const plain = Number(raw);
+  if (raw.trim() !== '' && Number.isFinite(plain)) return plain;
+  const d = tryParseDuration(raw);
+  if (d.ok && Number.isFinite(d.value)) return d.value;
+  throw new UserError(`fit: --${flag} ${raw}: expected seconds (e.g. 120 or 2min)${t.timeFormat === 'iso' ? ' or an ISO-8601 time' : ''}`);
+}
+
+function exists(io: Io, path: string): boolean {
+  try {
+    io.readText(path);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+function baseName(path: string): string {
+  const i = Math.max(path.lastIndexOf('/'), path.lastIndexOf('\\'));
+  return i >= 0 ? path.slice(i + 1) : path;
+}
+
+const LABELS: Record<string, string> = {
+  gain: 'gain',
+  time_constant: 'time constant',
+  time_constant_1: 'time constant 1',
+  time_constant_2: 'time constant 2',
+  natural_frequency: 'natural frequency',
+  damping: 'damping',
+  zero_time_constant: 'zero time constant',
+  delay: 'delay',
+  level: 'level',
+};
+
+/** The side-by-side table and the choice. */
+export function summary(report: FitReport): string {
+  const { result, data } = report;
+  const lines: string[] = [];
+  const a = result.analysis;
+  lines.push(
+    `${report.file}: ${data.n} samples every ${num(data.dt)} s from ${num(report.from)} s to ${num(report.to)} s` +
+      `${data.resampled ? ' (resampled)' : ''}; input ${data.inputName}, output ${data.outputName}`,
+  );
+  const stepText = a.steps.length === 0
+    ? 'no step: fitted to the whole input signal'
+    : a.stepLike
+      ? a.steps.map((s) => `${num(s.from)} -> ${num(s.to)} at ${num(data.t0 + s.time)} s`).join(', ')
+      : `${a.steps.length} moves (general input signal)`;
+  lines.push(`input: ${stepText}; pre-step level ${num(a.y0)}, noise σ ${num(a.noiseStd)} (${a.noiseSource})`);
+  const r = result.reading;
+  if (r !== null) {
+    const tp = (e: { timeConstant: number; delay: number } | null): string =>
+      e === null ? 'not reached' : `T ${num(e.timeConstant)} s, delay ${num(e.delay)} s`;
+    lines.push(`two-point readings of the first step (gain ${num(r.gain)}): Smith ${tp(r.smith)}; Sundaresan-Krishnaswamy ${tp(r.sundaresanKrishnaswamy)}`);
+  }
+  lines.push('');
+  const names: string[] = [];
+  for (const m of result.models) for (const p of m.fit.parameters) if (!names.includes(p.name)) names.push(p.name);
+  const head = ['', ...result.models.map((m, i) => `${m.fit.kind}${i === result.chosen ? ' *' : ''}`)];
+  const rows: string[][] = [head];
+  for (const name of names) {
+    rows.push([
+      LABELS[name] ?? name,
+      ...result.models.map((m) => {
+        const p = m.fit.parameters.find((q) => q.name === name);
+        if (p === undefined) return '';
+        const unit = p.unit === 's' ? ' s' : '';
+        const ci = p.atBound ? ' (at bound)' : p.stdError !== null ? ` ± ${num(1.96 * p.stdError, 2)}` : '';
+        return `${num(p.value)}${ci}${unit}`;
+      }),
+    ]);
+  }
+  rows.push(['NRMSE', ...result.models.map((m) => `${num(100 * m.fit.nrmse, 3)} %`)]);
+  rows.push(['R²', ...result.models.map((m) => m.fit.r2.toFixed(4))]);
+  rows.push(['BIC', ...result.models.map((m) => num(m.fit.bic, 6))]);
+  rows.push(['warnings', ...result.models.map((m) => String(m.warnings.length))]);
+  lines.push(table(rows));
+  lines.push('(± is an approximate 95 % interval from the Jacobian; * = chosen)');
+  lines.push('');
+  lines.push(result.reason);
+  const chosen = result.models[result.chosen];
+  for (const w of chosen.warnings) lines.push(`warning (${chosen.fit.kind}): ${w.message}`);
+  return `${lines.join('\n')}\n`;
+}
+
+/**
+ * Data against the chosen model's response, 80 columns wide. With colour the two lines are
+ * told apart by colour; without it (NO_COLOR, or not a terminal) the data keep asciichart's
+ * line and the fit is overlaid as dots wherever it leaves the data line.
+ */
+export function chart(report: FitReport, io: Io): string {
+  const fit = report.result.models[report.result.chosen].fit;
+  const labelWidth = 11;
+  const width = 80 - labelWidth - 1;
+  const data = bucketMeans(report.data.y, width);
+  const model = bucketMeans(fit.response, width);
+  let min = Infinity;
+  let max = -Infinity;
+  for (const v of [...data, ...model]) {
+    if (v < min) min = v;
+    if (v > max) max = v;
+  }
+  const config = { height: 14, min, max, format: (x: number) => num(x, 4).padStart(labelWidth - 1) };
+  const color = io.env.NO_COLOR === undefined && io.isTTY;
+  const span = `${' '.repeat(labelWidth)}${num(report.from)} s .. ${num(report.to)} s`;
+  if (color) {
+    const plot = asciichart.plot([data, model], { ...config, colors: [asciichart.lightgray, asciichart.green] });
+    const legend = `${asciichart.lightgray}── data${asciichart.reset}   ${asciichart.green}── ${fit.kind} fit${asciichart.reset}`;
+    return `\n${plot}\n${span}\n${legend}\n`;
+  }
+  const dataRows = asciichart.plot(data, config).split('\n');
+  const fitRows = asciichart.plot(model, config).split('\n');
+  const merged = dataRows.map((row, i) => {
+    const f = fitRows[i] ?? '';
+    let out = '';
+    for (let c = 0; c < Math.max(row.length, f.length); c++) {
+      const d = row[c] ?? ' ';
+      const m = f[c] ?? ' ';
+      out += c > labelWidth && d === ' ' && m !== ' ' ? '·' : d;
+    }
+    return out.trimEnd();
+  });
+  return `\n${merged.join('\n')}\n${span}\n── data   ··· ${fit.kind} fit (where it leaves the data)\n`;
+}
+
+function bucketMeans(a: Float64Array, buckets: number): number[] {
+  const n = a.length;
+  const k = Math.min(buckets, n);
+  const out: number[] = [];
+  for (let b = 0; b < k; b++) {
+    const i0 = Math.floor((b * n) / k);
+    const i1 = Math.max(i0 + 1, Math.floor(((b + 1) * n) / k));
+    let s = 0;
+    for (let i = i0; i < i1; i++) s += a[i];
+    out.push(s / (i1 - i0));
+  }
+  return out;
+}
+
+function jsonReport(report: FitReport, options: FitOptions): unknown {
+  const { result, data } = report;
+  const a = result.analysis;
+  return {
+    file: report.file,
+    window: { from: report.from, to: report.to, samples: data.n, dt: data.dt, resampled: data.resampled, firstLine: data.firstLine, lastLine: data.lastLine },
+    columns: { input: data.inputName, output: data.outputName },
+    input: { steps: a.steps.map((s) => ({ at: data.t0 + s.time, from: s.from, to: s.to })), stepLike: a.stepLike, u0: a.u0 },
+    output: { preStepLevel: a.y0, noiseStd: a.noiseStd, noiseSource: a.noiseSource },
+    twoPoint: result.reading,
+    models: result.models.map((m) => ({
+      kind: m.fit.kind,
+      parameters: m.fit.parameters.map((p) => ({ name: p.name, value: p.value, unit: p.unit, stdError: p.stdError, ci95: p.ci95, atBound: p.atBound, derived: p.derived })),
+      nrmse: m.fit.nrmse,
+      r2: m.fit.r2,
+      rmse: m.fit.rmse,
+      bic: m.fit.bic,
+      nParams: m.fit.nParams,
+      settleTime: m.settleTime,
+      converged: m.fit.converged,
+      warnings: m.warnings.map((w) => ({ code: w.code, message: w.message })),
+    })),
+    chosen: result.models[result.chosen].fit.kind,
+    reason: result.reason,
+    diagnostics: report.diagnostics.map((d) => ({ code: d.code, severity: d.severity, line: d.line, column: d.column, message: d.message })),
+    out: options.out,
+  };
+}
