@@ -46,7 +46,9 @@ export class Actuator {
   command(uc: number, ts: number): void {
     this.start = this.end;
     const target = this.clamp(uc);
-    let sat = target !== uc;
+    // At a limit counts as saturated even when the controller already clamped its own request
+    // to the same limits (it usually does), otherwise position saturation would never show.
+    let sat = uc <= this.min || uc >= this.max;
     this.rampTime = 0;
     this.rampSign = 0;
     if (this.rateLimit === Infinity || target === this.start) {
