@@ -10,7 +10,7 @@ import { loadPlant } from '../model/index.js';
 import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
-import { defaultSwitchTime, editFromSpec, evaluate, rehearsalTrial, runningGains, type Evaluation, type LoopSetup } from './engine.js';
+import { defaultSwitchTime, editFromSpec, evaluate, fileGainSwitches, rehearsalTrial, runningGains, type Evaluation, type LoopSetup } from './engine.js';
 import { commandFor, HINT, keyToken } from './keymap.js';
 import { computeLayout, type Layout } from './layout.js';
 import { LiveRun } from './live-run.js';
@@ -130,7 +130,13 @@ export function App(props: AppProps) {
     () => (baselineEdit === null ? null : props.notices.margins(runningGains(baselineEdit))),
     [props.notices, baselineEdit],
   );
-  const plantNotices = useMemo(() => props.notices.plantNotices(), [props.notices]);
+  const plantNotices = useMemo(() => {
+    const list = props.notices.plantNotices();
+    for (const g of fileGainSwitches(trial)) {
+      list.push({ tone: 'info', text: `the file's trial switches gains at ${g.at} s ('${g.label}'); the screen runs the edited set throughout (g rehearses a switch)` });
+    }
+    return list;
+  }, [props.notices, trial]);
 
   // ---------------------------------------------------------------- live run
   const live = useRef<LiveRun | null>(null);
@@ -361,8 +367,10 @@ function Panels(p: PanelsProps) {
   let baselineTrace = p.base?.result.trace ?? null;
   if (p.run !== null) {
     trace = p.run.trace();
-    t1 = Math.max(p.run.time, p.run.window);
-    t0 = t1 - p.run.window;
+    // Scroll over the last `window` seconds; before that, zoom out as the run grows so an
+    // early response is not squeezed into the left edge.
+    t0 = Math.max(0, p.run.time - p.run.window);
+    t1 = Math.max(p.run.time, t0 + p.run.window / 6);
     steps = p.run.bandSteps() as typeof steps;
     baselineTrace = null;
   }

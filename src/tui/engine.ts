@@ -66,14 +66,30 @@ export function runningGains(edit: GainEdit): GainSet {
 
 /** The file's trial with a switch to `next` gains at `at` (rehearsing a retune). */
 export function rehearsalTrial(trial: TrialSpec, next: GainEdit, at: number): TrialSpec {
-  const events = [...trial.events, { kind: 'gains' as const, at, gains: runningGains(next), label: 'new' }];
+  const events = [...screenTrial(trial).events, { kind: 'gains' as const, at, gains: runningGains(next), label: 'new' }];
   // Stable sort: the switch goes after any event scheduled for the same instant.
   events.sort((a, b) => a.at - b.at);
   return { ...trial, events };
 }
 
+/**
+ * The file's trial as the screen runs it: without the file's own 'gains' events, so that the
+ * gain set being edited runs throughout (a rehearsal adds its own switch, see `rehearsalTrial`).
+ */
+export function screenTrial(trial: TrialSpec): TrialSpec {
+  if (!trial.events.some((e) => e.kind === 'gains')) return trial;
+  return { ...trial, events: trial.events.filter((e) => e.kind !== 'gains') };
+}
+
+/** Labels and instants of the file's own gain switches (the screen tells the user it skips them). */
+export function fileGainSwitches(trial: TrialSpec): { at: number; label: string }[] {
+  const out: { at: number; label: string }[] = [];
+  for (const e of trial.events) if (e.kind === 'gains') out.push({ at: e.at, label: e.label });
+  return out;
+}
+
 /** Run a trial with a gain set and measure it against the file's requirements. */
-export function evaluate(setup: LoopSetup, edit: GainEdit, trial: TrialSpec = setup.plant.loop.trial): Evaluation {
+export function evaluate(setup: LoopSetup, edit: GainEdit, trial: TrialSpec = screenTrial(setup.plant.loop.trial)): Evaluation {
   const t0 = performance.now();
   const result = runTrial(setup.dynamics, controllerFor(setup, edit), setup.config, trial, { helpers: MATH_HELPERS });
   const req = setup.plant.loop.requirements;

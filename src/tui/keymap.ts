@@ -95,7 +95,7 @@ export const PROMPT_KEYS: readonly { keys: string; help: string }[] = [
 ];
 
 /** The always-visible one-line hint (short on purpose: it must fit 80 columns). */
-export const HINT = '↑↓ select  ←→ ±1%  [ ] ±10%  Enter type  u/r undo/redo  l live  w save  ? keys  q quit';
+export const HINT = '↑↓ select  ←→ ±1%  [ ] ±10%  Enter type  u undo  l live  w save  ? keys  q quit';
 
 /** Minimal shape of Ink's key record that `keyToken` reads. */
 export interface KeyFlags {

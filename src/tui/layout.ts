@@ -27,7 +27,7 @@ export interface Layout {
 }
 
 /** Smallest terminal with a trend chart. */
-export const MIN_TREND = { columns: 60, rows: 16 } as const;
+export const MIN_TREND = { columns: 60, rows: 14 } as const;
 /** From this size on: output chart, notices column. */
 export const LARGE = { columns: 100, rows: 32 } as const;
 
@@ -46,15 +46,19 @@ export function computeLayout(columns: number, rows: number, gainLines: number):
     const bottomRows = Math.max(1, lines - fixed - 1);
     return { tier: 'tiny', width, lines, trendRows: 0, outputRows: 0, bottomRows, gainsWidth: width, metricsWidth: 0, noticesWidth: 0 };
   }
-  const bottomRows = Math.max(gainLines, 6);
+  const wanted = Math.max(gainLines, 6);
   const large = width >= LARGE.columns && lines + 1 >= LARGE.rows;
   // Each chart costs a heading and a time axis besides its plot rows; the bottom row a heading.
-  const free = lines - fixed - 1 - bottomRows;
   if (!large) {
-    const trendRows = Math.max(3, free - 2);
+    const avail = lines - fixed - 1 - 2;
+    // The trend keeps at least 3 rows; the gain panel scrolls when it gets fewer than it needs.
+    const bottomRows = Math.min(wanted, avail - 3);
+    const trendRows = avail - bottomRows;
     const gainsWidth = Math.min(38, Math.floor(width * 0.45));
     return { tier: 'small', width, lines, trendRows, outputRows: 0, bottomRows, gainsWidth, metricsWidth: width - gainsWidth - 1, noticesWidth: 0 };
   }
+  const bottomRows = wanted;
+  const free = lines - fixed - 1 - bottomRows;
   const charts = free - 4;
   const outputRows = Math.max(4, Math.floor(charts * 0.3));
   const trendRows = charts - outputRows;

@@ -374,7 +374,8 @@ function nudge(s: ScreenState, sign: 1 | -1, size: number, math: EditMath): Scre
   if (id === 'b' || id === 'c') next = Math.min(1, Math.max(0, Math.round((v + sign * size) * 1e6) / 1e6));
   else {
     if (v === 0) return info(s, `${info_.symbol} is 0: a percentage of 0 is 0; press Enter to type a value`, 'warn');
-    next = v * (1 + sign * size);
+    // Six significant digits: what the panel shows and the file gets, with no binary fraction tail.
+    next = Number((v * (1 + sign * size)).toPrecision(6));
   }
   const bad = checkValue(id, next);
   if (bad !== null) return info(s, `${info_.symbol}: ${bad}`, 'warn');

@@ -52,7 +52,11 @@ export function gainLines(p: GainsProps): Piece[][] {
   if (p.baseline !== null && p.baseline.form !== e.form) {
     lines.push([{ text: `  (baseline is in ${p.baseline.form} form)`, color: t.dim }]);
   }
-  return lines.slice(0, p.rows);
+  if (lines.length <= p.rows) return lines;
+  // Too few rows: keep the heading line and scroll the parameters so the selected one shows.
+  const room = Math.max(1, p.rows - 1);
+  const first = Math.min(Math.max(0, sel - room + 1), list.length - room);
+  return [lines[0], ...lines.slice(1 + Math.max(0, first), 1 + Math.max(0, first) + room)].slice(0, p.rows);
 }
 
 export function GainsPanel(p: GainsProps) {

@@ -1,0 +1,50 @@
+/**
+ * The keymap is the one source for the key handler and the help overlay.
+ */
+import { describe, it, expect } from 'vitest';
+import { commandFor, HINT, helpLines, keyLabel, keyToken, KEYMAP, PROMPT_KEYS } from '../../src/tui/keymap.js';
+
+describe('tui keymap', () => {
+  it('every key of the table resolves to its own command', () => {
+    for (const b of KEYMAP) for (const k of b.keys) expect(commandFor(k)).toBe(b.command);
+  });
+
+  it('no key is bound twice and no command is listed twice', () => {
+    const keys = KEYMAP.flatMap((b) => b.keys);
+    expect(new Set(keys).size).toBe(keys.length);
+    const commands = KEYMAP.map((b) => b.command);
+    expect(new Set(commands).size).toBe(commands.length);
+  });
+
+  it('the help lists every binding with all of its keys', () => {
+    const rows = helpLines().flatMap((g) => g.rows);
+    expect(rows).toHaveLength(KEYMAP.length);
+    for (const b of KEYMAP) {
+      const row = rows.find((r) => r.help === b.help);
+      expect(row, b.command).toBeDefined();
+      for (const k of b.keys) expect(row!.keys).toContain(keyLabel(k));
+    }
+    expect(PROMPT_KEYS.length).toBeGreaterThan(0);
+  });
+
+  it('turns Ink key records into tokens', () => {
+    expect(keyToken('', { upArrow: true })).toBe('up');
+    expect(keyToken('', { rightArrow: true })).toBe('right');
+    expect(keyToken('', { return: true })).toBe('enter');
+    expect(keyToken('', { escape: true })).toBe('esc');
+    expect(keyToken('', { tab: true, shift: true })).toBe('shift-tab');
+    expect(keyToken('c', { ctrl: true })).toBe('ctrl-c');
+    expect(keyToken(' ', {})).toBe('space');
+    expect(keyToken('S', { shift: true })).toBe('S');
+    expect(keyToken(']', {})).toBe(']');
+    expect(keyToken('x', { meta: true })).toBe('');
+    expect(commandFor('shift-tab')).toBe('select_prev');
+    expect(commandFor('ctrl-c')).toBe('quit');
+    expect(commandFor('Q')).toBeNull();
+  });
+
+  it('the hint line fits an 80-column terminal and names help and quit', () => {
+    expect(HINT.length).toBeLessThanOrEqual(80);
+    expect(HINT).toContain('? keys');
+  });
+});
