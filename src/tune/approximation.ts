@@ -135,9 +135,16 @@ export function proportionalGains(kc: number): GainSet {
  * Ultimate point of the loop from the linear model: the phase crossover of L = P (times the hold
  * and sensor when `loop` has them) under proportional control. Ku = 1/|L(i wu)| with the sign of
  * the plant's gain, Tu = 2 pi/wu; null when the phase never reaches -180 deg (infinite gain margin).
+ * The margins are taken at a tiny probe gain, so that |L| < 1 at every phase crossover and the
+ * gain margin is the smallest 1/|L| over all of them (at unit gain a plant with |P| > 1 at its
+ * crossover would report it as a lower gain margin instead).
  */
 export function ultimateFromModel(response: PlantFrequencyResponse, loop: LoopElements, plantSign: 1 | -1): UltimatePoint | null {
-  const m = loopMargins(response, proportionalGains(plantSign), loop.sampleTime, loop.sensor);
+  let peak = 0;
+  for (let i = 0; i < response.mag.length; i++) if (response.mag[i] > peak) peak = response.mag[i];
+  if (!(peak > 0) || !Number.isFinite(peak)) return null;
+  const probe = 1e-3 / peak;
+  const m = loopMargins(response, proportionalGains(plantSign * probe), loop.sampleTime, loop.sensor);
   if (!Number.isFinite(m.gainMargin) || !(m.phaseCrossoverFrequency > 0)) return null;
-  return { ku: plantSign * m.gainMargin, tu: (2 * Math.PI) / m.phaseCrossoverFrequency };
+  return { ku: plantSign * probe * m.gainMargin, tu: (2 * Math.PI) / m.phaseCrossoverFrequency };
 }

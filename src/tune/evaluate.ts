@@ -12,7 +12,7 @@ import type { TuningContext } from './tuning-context.js';
 
 /** A finding about one gain set. */
 export interface GainFlag {
-  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS';
+  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS' | 'NO_FILE_FORM';
   message: string;
 }
 

@@ -35,6 +35,6 @@ export { suggestGains, ruleInputsOf, loopElementsOf } from './suggest.js';
 export type { SuggestOptions, SuggestResult, Suggestion } from './suggest.js';
 export { optimizeGains } from './optimize.js';
 export type { OptimizeOptions, OptimizeProgress, OptimizeResult, OptimizeStop } from './optimize.js';
-export { robustnessSweep, sweepCases, summarise, MAX_CORNER_DIMS } from './robustness.js';
-export type { RobustnessOptions, RobustnessCase, RobustnessSummary, RobustnessResult, TraceEnvelope } from './robustness.js';
+export { robustnessSweep, planSweep, sweepCases, summarise, caseFigures, MAX_CORNER_DIMS } from './robustness.js';
+export type { SweepPlan, RobustnessOptions, RobustnessCase, RobustnessSummary, RobustnessResult, TraceEnvelope } from './robustness.js';
 export { specWithValues, modelWithValues } from './uncertain-spec.js';

@@ -8,7 +8,8 @@ import { applyStructure } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { ControllerStructure, GainSet, PlantSpec } from '../model/types.js';
 import { Rng } from '../num/index.js';
-import { withParams, type PlantDynamics } from '../sim/index.js';
+import { withParams, type PlantDynamics, type TrialResult } from '../sim/index.js';
+import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { gainMargins, simulateGains } from './evaluate.js';
 import { specWithValues } from './uncertain-spec.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
@@ -26,6 +27,8 @@ export interface RobustnessOptions {
   seed?: number;
   /** Controller structure (default the file's). */
   structure?: ControllerStructure;
+  /** Include the nominal case (default true; a caller that simulated it already may leave it out). */
+  nominal?: boolean;
   /** Keep each case's output trace for the envelope (default true). */
   envelope?: boolean;
 }
@@ -74,10 +77,11 @@ export interface RobustnessResult {
 /** The sets of values to simulate: nominal first, then corners, then the seeded sample. */
 export function sweepCases(
   ranges: Readonly<Record<string, [number, number]>>,
-  options: { corners: boolean; samples: number; seed: number },
+  options: { corners: boolean; samples: number; seed: number; nominal?: boolean },
 ): { kind: RobustnessCase['kind']; values: Record<string, number> }[] {
   const names = Object.keys(ranges).sort();
-  const out: { kind: RobustnessCase['kind']; values: Record<string, number> }[] = [{ kind: 'nominal', values: {} }];
+  const out: { kind: RobustnessCase['kind']; values: Record<string, number> }[] =
+    options.nominal === false ? [] : [{ kind: 'nominal', values: {} }];
   if (names.length === 0) return out;
   if (options.corners && names.length <= MAX_CORNER_DIMS) {
     for (let mask = 0; mask < 1 << names.length; mask++) {
@@ -108,18 +112,14 @@ function caseContext(base: TuningContext, values: Record<string, number>): Tunin
   return tuningContext(spec, dyn);
 }
 
-/**
- * Sweep one gain set over the file's uncertainty. With no `uncertainty` section only the nominal
- * case runs (and a note says so).
- */
-export function robustnessSweep(
-  spec: PlantSpec,
-  gains: GainSet,
-  options: RobustnessOptions = {},
-  base: TuningContext = tuningContext(spec),
-): RobustnessResult {
-  const structure = options.structure ?? spec.loop.controller.structure;
-  const g = applyStructure(structure, gains);
+/** The cases of a sweep with their prepared contexts, reusable across gain sets. */
+export interface SweepPlan {
+  cases: { kind: RobustnessCase['kind']; values: Record<string, number>; ctx: TuningContext }[];
+  notes: string[];
+}
+
+/** Prepare the cases of a sweep once (compiling / linearising each), to sweep several gain sets. */
+export function planSweep(spec: PlantSpec, options: RobustnessOptions = {}, base: TuningContext = tuningContext(spec)): SweepPlan {
   const notes: string[] = [];
   const ranges = spec.uncertainty;
   const dims = Object.keys(ranges).length;
@@ -129,31 +129,33 @@ export function robustnessSweep(
     corners: options.corners ?? true,
     samples: dims === 0 ? 0 : options.samples ?? 20,
     seed: options.seed ?? spec.sensor.seed,
+    nominal: options.nominal,
   });
+  return { cases: list.map((c) => ({ ...c, ctx: caseContext(base, c.values) })), notes };
+}
+
+/**
+ * Sweep one gain set over the file's uncertainty. With no `uncertainty` section only the nominal
+ * case runs (and a note says so). Pass a `plan` from `planSweep` to reuse prepared cases.
+ */
+export function robustnessSweep(
+  spec: PlantSpec,
+  gains: GainSet,
+  options: RobustnessOptions = {},
+  base: TuningContext = tuningContext(spec),
+  plan: SweepPlan = planSweep(spec, options, base),
+): RobustnessResult {
+  const structure = options.structure ?? spec.loop.controller.structure;
+  const g = applyStructure(structure, gains);
+  const notes = [...plan.notes];
+  const list = plan.cases;
   const keep = options.envelope ?? true;
   const cases: RobustnessCase[] = [];
   let envelope: TraceEnvelope | null = null;
   for (const c of list) {
-    const ctx = caseContext(base, c.values);
+    const ctx = c.ctx;
     const { result, metrics } = simulateGains(ctx, g, structure);
-    const m = gainMargins(ctx, g);
-    let overshoot = NaN;
-    let settling = NaN;
-    for (const s of metrics.steps) {
-      overshoot = Number.isNaN(overshoot) ? s.overshootPct : Math.max(overshoot, s.overshootPct);
-      const st = Number.isFinite(s.settlingTime) ? s.settlingTime : Infinity;
-      settling = Number.isNaN(settling) ? st : Math.max(settling, st);
-    }
-    const diverged = result.status !== 'ok';
-    cases.push({
-      kind: c.kind,
-      values: c.values,
-      diverged,
-      overshootPct: overshoot,
-      settlingTime: diverged ? Infinity : settling,
-      iae: diverged ? Infinity : metrics.overall.iae,
-      ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
-    });
+    cases.push(caseFigures(c.kind, c.values, result, metrics, gainMargins(ctx, g)));
     if (keep) {
       const tr = result.trace;
       if (envelope === null) {
@@ -179,6 +181,33 @@ export function robustnessSweep(
     }
   }
   return { summary: summarise(cases), cases, envelope, notes };
+}
+
+/** The figures of one simulated case. */
+export function caseFigures(
+  kind: RobustnessCase['kind'],
+  values: Record<string, number>,
+  result: TrialResult,
+  metrics: TrialMetrics,
+  m: Margins | null,
+): RobustnessCase {
+  let overshoot = NaN;
+  let settling = NaN;
+  for (const s of metrics.steps) {
+    overshoot = Number.isNaN(overshoot) ? s.overshootPct : Math.max(overshoot, s.overshootPct);
+    const st = Number.isFinite(s.settlingTime) ? s.settlingTime : Infinity;
+    settling = Number.isNaN(settling) ? st : Math.max(settling, st);
+  }
+  const diverged = result.status !== 'ok';
+  return {
+    kind,
+    values,
+    diverged,
+    overshootPct: overshoot,
+    settlingTime: diverged ? Infinity : settling,
+    iae: diverged ? Infinity : metrics.overall.iae,
+    ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+  };
 }
 
 function maxOf(cases: RobustnessCase[], f: (c: RobustnessCase) => number): number {

@@ -12,7 +12,7 @@ import { ruleGainSet, valuesInForm } from './gain-sets.js';
 import type { RuleGains, UltimatePoint } from './low-order.js';
 import { relayOnPlant, type PlantRelayOptions, type PlantRelayResult } from './relay-on-plant.js';
 
-import { robustnessSweep, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
+import { caseFigures, planSweep, robustnessSweep, summarise, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
 import { TUNING_RULES, type RuleInputs, type TuningRule } from './rule-table.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 
@@ -35,6 +35,8 @@ export interface SuggestOptions {
   ultimate?: 'model' | 'relay';
   /** Relay settings when ultimate = 'relay'. */
   relay?: PlantRelayOptions;
+  /** Fraction of the trial at an actuator limit that is flagged (default 0.05). */
+  saturationFlag?: number;
   /** A prepared context (saves compiling again). */
   context?: TuningContext;
 }
@@ -118,6 +120,8 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const sweep: RobustnessOptions | null =
     options.robustness === false ? null : options.robustness === true || options.robustness === undefined ? { samples: 0 } : options.robustness;
 
+  // The nominal case is the evaluation itself: the plan holds only the other cases.
+  const plan = sweep ? planSweep(spec, { ...sweep, nominal: false }, ctx) : null;
   const suggestions: Suggestion[] = [];
   const skipped: SuggestResult['skipped'] = [];
   for (const rule of TUNING_RULES) {
@@ -134,16 +138,21 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
       continue;
     }
     const gains = ruleGainSet(rg, spec.loop.controller.gains);
-    const evaluation = evaluateGains(ctx, gains, rule.structure, { cost });
+    const evaluation = evaluateGains(ctx, gains, rule.structure, { cost, saturationFlag: options.saturationFlag });
     const values = valuesInForm(form, evaluation.gains);
     const flags = [...evaluation.flags];
     if (values === null) {
       flags.push({
-        code: 'REQUIREMENT_FAILED',
+        code: 'NO_FILE_FORM',
         message: `no ${form} form: ti < 4 td (complex controller zeros); gains shown in the ideal form`,
       });
     }
-    const worstCase = sweep ? robustnessSweep(spec, evaluation.gains, { ...sweep, structure: rule.structure, envelope: false }, ctx).summary : null;
+    let worstCase: RobustnessSummary | null = null;
+    if (sweep && plan) {
+      const others = robustnessSweep(spec, evaluation.gains, { ...sweep, structure: rule.structure, envelope: false }, ctx, plan);
+      const nominal = caseFigures('nominal', {}, evaluation.result, evaluation.metrics, evaluation.margins);
+      worstCase = summarise([nominal, ...others.cases]);
+    }
     suggestions.push({
       rule: { id: rule.id, label: rule.label, source: rule.source, structure: rule.structure },
       structure: rule.structure,
