@@ -33,4 +33,3 @@ export { runTrial } from './run-trial.js';
 export type { TrialOptions } from './run-trial.js';
 export { decimateMinMax } from './decimate.js';
 export { withParams } from './with-params.js';
-export { steadyStart } from './steady-start.js';

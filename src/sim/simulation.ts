@@ -17,7 +17,6 @@
  *
  * Nothing in steps 2–8 allocates.
  */
-import { steadyStart } from './steady-start.js';
 import type { GainSet, IntegratorName } from '../model/types.js';
 import { Actuator } from './actuator.js';
 import { chooseStep, fastestMode, roundStep, stabilityWarning } from './choose-step.js';
@@ -139,8 +138,7 @@ export class Simulation {
       for (const w of c.warnings) this.warnings.push(w);
     }
 
-    // A linear plant given an initial output starts in the steady state it holds (steady-start.ts).
-    this.x = Float64Array.from(steadyStart(plant, init.initialOutput == null ? null : uStart).x0);
+    this.x = Float64Array.from(plant.x0);
     this.p = plant.params;
     this.d = Float64Array.from(plant.d0);
     this.us = new Float64Array(this.substeps);
