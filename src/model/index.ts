@@ -16,7 +16,7 @@ export {
 } from './diagnostics.js';
 export { loadPlant, MAX_PLANT_TEXT, type LoadResult } from './load.js';
 export { formatDuration, parseDuration, TIME_UNITS, tryParseDuration, type DurationResult } from './units.js';
-export { controllerEdits, savePlantValues, type ControllerEditOptions, type ValueEdit } from './save.js';
+export { controllerEdits, gainNote, savePlantValues, type ControllerEditOptions, type ValueEdit } from './save.js';
 export { lineColumn, type PlantDocument } from './yaml-doc.js';
 
 export { parseExpression, EXPR_LIMITS, type ExprError, type ExprErrorCode, type ParseOptions } from './expr/parser.js';

@@ -21,6 +21,22 @@ export function savePlantValues(text: string, edits: readonly ValueEdit[]): stri
 export interface ControllerEditOptions {
   /** Round written values to this many significant digits (default: exact, shortest form). */
   digits?: number;
+  /**
+   * Record which method produced the values, and when, as the end-of-line comment of every
+   * written line (see `ValueEdit.note`). Build it with `gainNote(date, method)`.
+   */
+  note?: string;
+}
+
+/**
+ * The record comment for written gains: "2026-12-02 optimize (IAE, Ms<=1.6)". The date is given
+ * by the caller (the core does not read the clock) as YYYY-MM-DD; the method is one line of text.
+ * Throws RangeError for a malformed date or a method with line breaks or nothing in it.
+ */
+export function gainNote(date: string, method: string): string {
+  if (!/^\d{4}-(0[1-9]|1[0-2])-(0[1-9]|[12]\d|3[01])$/.test(date)) throw new RangeError(`date must be YYYY-MM-DD, got '${date}'`);
+  if (/[\r\n]/.test(method) || method.trim() === '') throw new RangeError('method must be one non-empty line of text');
+  return `${date} ${method.trim()}`;
 }
 
 const TIME_TERMS = new Set(['ti', 'td', 'tracking_time']);
@@ -30,6 +46,7 @@ const TIME_TERMS = new Set(['ti', 'td', 'tracking_time']);
  * derivative_filter) into loop.controller of `text`. A time is written with the unit the file
  * used for that field ("42.5 s", "0.75 min"); a field written as a bare number, or absent, gets
  * a bare number of seconds. An absent ti = Infinity or td = 0 is left absent (that is the default).
+ * With `options.note`, each written line gets that record as its end-of-line comment.
  */
 export function controllerEdits(
   text: string,
@@ -54,7 +71,11 @@ export function controllerEdits(
       const unit = parsed.ok ? parsed.unit : null;
       written = formatDuration(value, unit ?? 's', options.digits);
     }
-    edits.push({ path: ['loop', 'controller', key], value: written });
+    edits.push(
+      options.note === undefined
+        ? { path: ['loop', 'controller', key], value: written }
+        : { path: ['loop', 'controller', key], value: written, note: options.note },
+    );
   }
   return edits;
 }

@@ -368,6 +368,14 @@ export function sourceLine(text: string, line: number): string {
 export interface ValueEdit {
   path: (string | number)[];
   value: number | string;
+  /**
+   * A record written as the end-of-line comment of the value's line (one line of text, no '#'
+   * needed), e.g. "2026-12-02 optimize (IAE, Ms<=1.6)". An earlier record on that line (comment
+   * text starting with a YYYY-MM-DD date, at the start or after "; ") is replaced; any other
+   * comment text on the line is kept in front of it ("unit valve per m; 2026-12-02 optimize").
+   * The comment keeps the column it had when the value changes width.
+   */
+  note?: string;
 }
 
 /**
@@ -389,7 +397,9 @@ export function setValueInText(text: string, edit: ValueEdit): string {
       const pair = node.items.find((p) => isScalar(p.key) && String(p.key.value) === String(seg));
       if (!pair) {
         if (!last) throw new RangeError(`no field '${String(seg)}' at ${path.slice(0, i).join('.') || 'top level'}`);
-        return insertField(text, node as unknown as MapLike, String(seg), source);
+        const inserted = insertField(text, node as unknown as MapLike, String(seg), source);
+        // The field exists now: a second pass puts the note beside it.
+        return edit.note === undefined ? inserted : setValueInText(inserted, edit);
       }
       node = pair.value;
     } else if (isSeq(node) && typeof seg === 'number') {
@@ -405,7 +415,71 @@ export function setValueInText(text: string, edit: ValueEdit): string {
   // A string keeps the quotes the file used; a number is always written plain.
   if (typeof edit.value === 'string' && node.type === 'QUOTE_DOUBLE') written = JSON.stringify(edit.value);
   else if (typeof edit.value === 'string' && node.type === 'QUOTE_SINGLE') written = `'${edit.value.replace(/'/g, "''")}'`;
-  return text.slice(0, a) + written + text.slice(b);
+  if (edit.note === undefined) return text.slice(0, a) + written + text.slice(b);
+  return withNote(text, a, b, written, edit);
+}
+
+/** A record comment left by an earlier save: a date at the start of the comment or after "; ". */
+const EARLIER_NOTE = /(?:^|;\s*)\d{4}-\d{2}-\d{2}\b.*$/;
+
+/**
+ * Replace bytes [a, b) of `text` by `written` and set the end-of-line comment of that line to
+ * the edit's note (see `ValueEdit.note`). The result is parsed again and must hold the same value
+ * at the path (a comment inside a multi-line flow collection, say, must not swallow anything).
+ */
+function withNote(text: string, a: number, b: number, written: string, edit: ValueEdit): string {
+  const note = edit.note ?? '';
+  if (/[\r\n]/.test(note) || note.trim() === '') throw new RangeError('a note must be one non-empty line of text');
+  const lineStart = text.lastIndexOf('\n', a - 1) + 1;
+  let lineEnd = text.indexOf('\n', b);
+  if (lineEnd < 0) lineEnd = text.length;
+  if (text[lineEnd - 1] === '\r') lineEnd--;
+  // Everything after the value on its line: more flow content, spaces, maybe a comment.
+  const rest = text.slice(b, lineEnd);
+  const hash = commentStart(rest);
+  const content = (hash < 0 ? rest : rest.slice(0, hash)).replace(/[ \t]+$/, '');
+  const oldComment = hash < 0 ? '' : rest.slice(hash + 1).trim();
+  const kept = oldComment.replace(EARLIER_NOTE, '').replace(/[;\s]+$/, '');
+  const comment = kept === '' ? note.trim() : `${kept}; ${note.trim()}`;
+  const head = text.slice(lineStart, a) + written + content;
+  // Keep the comment column when the old line had one and the new content still fits before it.
+  let gap = '  ';
+  if (hash >= 0) {
+    const oldColumn = b - lineStart + hash;
+    const oldGap = rest.slice(content.length, hash);
+    const minGap = oldGap.length > 0 ? Math.min(oldGap.length, 2) : 1;
+    gap = ' '.repeat(Math.max(minGap, oldColumn - head.length));
+  } else if (lineStart > 0) {
+    // A new comment lines up with the one on the line above, when there is one to the right.
+    const prevStart = text.lastIndexOf('\n', lineStart - 2) + 1;
+    const prev = text.slice(prevStart, lineStart - 1).replace(/\r$/, '');
+    const column = commentStart(prev);
+    if (column > head.length + 1) gap = ' '.repeat(column - head.length);
+  }
+  const out = `${text.slice(0, lineStart)}${head}${gap}# ${comment}${text.slice(lineEnd)}`;
+  const check = parseDocument(out, { prettyErrors: false });
+  const before = parseDocument(text.slice(0, a) + written + text.slice(b), { prettyErrors: false });
+  if (check.errors.length > 0 || JSON.stringify(check.toJS()) !== JSON.stringify(before.toJS())) {
+    throw new RangeError(`cannot put a comment beside ${edit.path.join('.')} (the line continues a flow collection)`);
+  }
+  return out;
+}
+
+/** Index of the '#' that starts a comment in `s` (text after a value on its line), or -1. */
+function commentStart(s: string): number {
+  let quote = '';
+  for (let i = 0; i < s.length; i++) {
+    const c = s[i];
+    if (quote) {
+      if (c === quote) quote = '';
+      else if (c === '\\' && quote === '"') i++;
+      continue;
+    }
+    if (c === '"' || c === "'") quote = c;
+    // A comment needs white space before '#' (or the very start, which follows the value).
+    else if (c === '#' && (i === 0 ? false : s[i - 1] === ' ' || s[i - 1] === '\t')) return i;
+  }
+  return -1;
 }
 
 interface MapLike {
