@@ -3,8 +3,10 @@
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
 import { fitCommand } from './commands/fit.js';
+import { optimizeCommand } from './commands/optimize.js';
 import { runCommand } from './commands/run.js';
 import { screenCommand } from './commands/screen.js';
+import { suggestCommand } from './commands/suggest.js';
 import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { demoPlantPath } from './plants-dir.js';
@@ -27,6 +29,10 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await fitCommand(rest, io);
       case 'run':
         return await runCommand(rest, io);
+      case 'suggest':
+        return await suggestCommand(rest, io);
+      case 'optimize':
+        return await optimizeCommand(rest, io);
       case 'help':
       case '--help':
       case '-h':
