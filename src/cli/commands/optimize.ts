@@ -4,7 +4,7 @@
  * `--write` puts the result into the file (comments kept, atomic write).
  */
 import { parseArgs } from 'node:util';
-import { controllerEdits, parseDuration, savePlantValues } from '../../model/index.js';
+import { controllerEdits, gainNote, parseDuration, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -142,7 +142,8 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     if (result.best.cost === Infinity || result.best.flags.some((f) => f.code === 'DIVERGED' || f.code === 'UNSTABLE_LOOP')) {
       throw new UserError('optimize: --write: no stable gain set found; nothing written', UserError.FAIL);
     }
-    const edits = controllerEdits(text, values, { digits: 6 });
+    const method = `optimize (${result.cost.kind.toUpperCase()}, Ms<=${result.msTarget})`;
+    const edits = controllerEdits(text, values, { digits: 6, note: gainNote(new Date().toISOString().slice(0, 10), method) });
     const next = savePlantValues(text, edits);
     try {
       io.writeText(o.file, next);
