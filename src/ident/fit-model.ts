@@ -94,6 +94,9 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   const duration = data.n * data.dt;
   const [lower, upper] = bounds(kind, data.dt, duration);
   const sim = new ResponseSimulator();
+  // Families with a direct feed-through find their basin with the continuous (interpolated) form.
+  const hasFeedthrough = kind === 'inverse_response';
+  sim.interpolateFeedthrough = hasFeedthrough;
   const sys = emptyLti();
   const buf = new Float64Array(data.n);
 
@@ -180,13 +183,30 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   }
 
   // ---- (3) polish on the full record
-  const final = levenbergMarquardt(residuals(full), best!.p, full.n, {
+  const polishOptions = {
     lower, upper, maxIterations: coarse === full ? 40 : 10, minDifferenceStep: floors,
     // On the full record a relative SSE change of 1e-8 is far below what the noise can tell apart.
     costTolerance: coarse === full ? 1e-10 : 1e-8,
-  });
+  };
+  let final = levenbergMarquardt(residuals(full), best!.p, full.n, polishOptions);
   evaluations += final.evaluations;
   iterations += final.iterations;
+  if (hasFeedthrough) {
+    // Now with the exact feed-through, whose cost jumps where θ crosses a sample instant: start
+    // in this sample interval and in the neighbouring ones, keep the best.
+    sim.interpolateFeedthrough = false;
+    const di = info.delayIndex;
+    let bestExact: typeof final | null = null;
+    for (const shift of [0, -0.5, 0.5, -1, 1]) {
+      const p0 = Float64Array.from(final.x);
+      p0[di] = Math.min(upper[di], Math.max(lower[di], p0[di] + shift * data.dt));
+      const res = levenbergMarquardt(residuals(full), p0, full.n, polishOptions);
+      evaluations += res.evaluations;
+      iterations += res.iterations;
+      if (bestExact === null || res.sse < bestExact.sse) bestExact = res;
+    }
+    final = bestExact!;
+  }
   const values = Array.from(final.x);
   const fixed = values.map((v, i) => isAtBound(v, lower[i], upper[i]));
   const cov = leastSquaresCovariance(final.jacobian, full.n, np, final.sse, fixed);
