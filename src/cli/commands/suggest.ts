@@ -97,7 +97,8 @@ function worstText(s: Suggestion): string {
   const w = s.worstCase;
   if (w === null) return '-';
   if (w.anyDiverged) return `diverges (${w.cases} cases)`;
-  return `os ${num(w.worstOvershootPct, 3)} % ts ${secs(w.worstSettlingTime, 'never')} Ms ${num(w.worstMs, 3)}`;
+  const ms = w.worstMs === Infinity ? 'unstable' : num(w.worstMs, 3);
+  return `os ${num(w.worstOvershootPct, 3)} % ts ${secs(w.worstSettlingTime, 'never')} Ms ${ms}`;
 }
 
 function summaryText(plant: PlantSpec, r: SuggestResult): string {
@@ -122,7 +123,7 @@ function summaryText(plant: PlantSpec, r: SuggestResult): string {
       e.margins ? num(e.margins.maxSensitivity, 3) : '-',
       e.margins ? num(e.margins.gainMargin, 3, 'inf') : '-',
       worstText(s),
-      s.flags.map((f) => f.code.toLowerCase().replace(/_/g, '-')).join(',') || 'ok',
+      [...new Set(s.flags.map((f) => f.code.toLowerCase().replace(/_/g, '-')))].join(',') || 'ok',
     ]);
   }
   lines.push(table(rows));
