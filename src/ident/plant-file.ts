@@ -177,6 +177,13 @@ export function buildPlantFile(result: IdentifyResult, data: BumpData, source: P
   trial.commentBefore = ' setpoint step of half the response seen in the log';
   const loop = new YAMLMap();
   loop.set('sample_time', `${r(h)} s`);
+  if (fit.kind === 'inverse_response') {
+    // The engine rounds the input delay to whole integration steps, and this model's output jumps
+    // when the delayed input arrives: a tenth of the sample time keeps that jump where it belongs.
+    const step = new Scalar(`${r(h / 10)} s`);
+    step.commentBefore = ' a tenth of the sample time: the delay is rounded to whole steps and the output jumps when the delayed input arrives';
+    loop.set('step', step);
+  }
   loop.set('controller', controller);
   loop.set('trial', trial);
 
