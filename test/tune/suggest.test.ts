@@ -72,7 +72,7 @@ loop:
     expectClose(s.values!.ti, s.ruleGains.ti, { rel: 1e-9 });
     expectClose(s.values!.td, s.ruleGains.td, { rel: 1e-9 });
     // ... and the loop runs its ideal equivalent (sheet §13: Kc = Kc'(1 + Td'/Ti')).
-    const ideal = toIdeal('series', s.ruleGains);
+    const ideal = toIdeal('series', { kc: s.ruleGains.kc, ti: s.ruleGains.ti, td: s.ruleGains.td });
     expectClose(s.gains.kc, ideal.kc, { rel: 1e-12 });
     expectClose(s.gains.kc, s.ruleGains.kc * (1 + s.ruleGains.td / s.ruleGains.ti), { rel: 1e-12 });
   });
