@@ -131,7 +131,10 @@ export function planSweep(spec: PlantSpec, options: RobustnessOptions = {}, base
     seed: options.seed ?? spec.sensor.seed,
     nominal: options.nominal,
   });
-  return { cases: list.map((c) => ({ ...c, ctx: caseContext(base, c.values) })), notes };
+  const cases = list.map((c) => ({ ...c, ctx: caseContext(base, c.values) }));
+  // Case notes (e.g. a start that is no equilibrium with these values) once each.
+  for (const c of cases) for (const n of c.ctx.notes) if (!base.notes.includes(n) && !notes.includes(n)) notes.push(n);
+  return { cases, notes };
 }
 
 /**
