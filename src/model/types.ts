@@ -147,6 +147,70 @@ export interface GainSet {
   trackingTime: number;
 }
 
+/**
+ * Every name `loop.controller.structure` accepts. The plain laws p/pi/pd/pid keep their meaning;
+ * the others wrap the PID law (see `StructureExtension`): pi_d and i_pd are the 2-DOF PID with
+ * fixed setpoint weights (PI-D: b = 1, c = 0; I-PD: b = 0, c = 0).
+ */
+export type StructureName = ControllerStructure | 'pi_d' | 'i_pd' | 'smith_pi' | 'feedforward' | 'cascade' | 'scheduled';
+
+/**
+ * PI with a Smith predictor. The internal model is k exp(−L s)/(τ s + 1) (τ = 0: pure gain and
+ * delay); a null field is taken from the plant's low-order approximation. The factors multiply
+ * the model actually used, to mis-specify it on purpose.
+ */
+export interface SmithSpec {
+  kind: 'smith_pi';
+  gain: number | null;
+  /** s */
+  timeConstant: number | null;
+  /** Dead time the predictor removes, s (plant input delay + sensor delay when taken from the plant). */
+  delay: number | null;
+  gainFactor: number;
+  timeConstantFactor: number;
+  delayFactor: number;
+}
+
+/** PID plus feedforward from a measured disturbance: u = u_PID + gain · F(s) · (d − d(0)). */
+export interface FeedforwardSpec {
+  kind: 'feedforward';
+  /** Name of the plant disturbance measured (a model disturbance, or `load` for linear kinds). */
+  disturbance: string;
+  /** Static feedforward gain, output units per disturbance unit; null = −Gd(0)/Gu(0) from the model. */
+  gain: number | null;
+  /** null = static; else F(s) = (lead s + 1)/(lag s + 1), null times taken from the model. */
+  leadLag: { lead: number | null; lag: number | null } | null;
+}
+
+/** Cascade: the outer law (the ControllerSpec's gains) sets the setpoint of an inner PI loop. */
+export interface CascadeSpec {
+  kind: 'cascade';
+  /** Name in `model.measurements` (ode plants) of the inner measured quantity. */
+  innerMeasurement: string;
+  /** Inner PI gain set; null = tuned (inner loop first, faster than the outer). */
+  inner: GainSet | null;
+  /** Limits of the inner setpoint (the outer controller's output); ±Infinity when absent. */
+  setpointMin: number;
+  setpointMax: number;
+}
+
+/** One row of a gain schedule. gains null = tuned at that operating point. */
+export interface ScheduleEntry {
+  at: number;
+  gains: GainSet | null;
+}
+
+/** Gain-scheduled PI/PID: gains interpolated linearly in the scheduling variable. */
+export interface ScheduleSpec {
+  kind: 'scheduled';
+  /** 'setpoint', 'measurement', or the name of a plant disturbance. */
+  variable: string;
+  /** Sorted by `at`, strictly increasing; held constant outside the table. */
+  table: ScheduleEntry[];
+}
+
+export type StructureExtension = SmithSpec | FeedforwardSpec | CascadeSpec | ScheduleSpec;
+
 /** The controller block of the plant file, in the form the file uses. */
 export interface ControllerSpec {
   structure: ControllerStructure;
@@ -158,6 +222,18 @@ export interface ControllerSpec {
   /** Controller output limits; default the actuator limits. */
   outputMin: number;
   outputMax: number;
+  /** The structure name as written (absent = `structure`). `structure` is then the PID law it wraps. */
+  named?: StructureName;
+  /** The richer structure around the PID law (absent = the plain law). */
+  extension?: StructureExtension;
+}
+
+/** One entry of the plant file's top-level `compare:` list. */
+export interface CompareCandidateSpec {
+  name: string;
+  controller: ControllerSpec;
+  /** No gains were written for it: start from tuned gains (the ControllerSpec's gains are placeholders). */
+  autoGains: boolean;
 }
 
 // ---------------------------------------------------------------- trial
@@ -222,6 +298,8 @@ export interface PlantSpec {
   /** Parameter name -> [low, high] for robustness sweeps (ode params, or gain/time_constant/delay of linear kinds). */
   uncertainty: Record<string, [number, number]>;
   loop: LoopSpec;
+  /** Candidate controllers to compare on the loop's trial (absent = none listed). */
+  compare?: CompareCandidateSpec[];
 }
 
 // ---------------------------------------------------------------- compiled plant

@@ -7,7 +7,8 @@
  *   1. events due at t_k are applied (by the caller, between `advance` calls);
  *   2. the setpoint ramp, if any, is evaluated at t_k;
  *   3. measure: y(t_k) from the state, the sensor delay line, filter, noise, quantisation;
- *   4. the controller updates (or the manual output is used);
+ *   4. the controller observes the disturbances and the named measurements it asked for (when
+ *      it has an `observe` hook), then updates (or the manual output is used);
  *   5. the actuator applies limits and the rate-limit ramp; the controller is told what was
  *      applied (`track`) for anti-windup;
  *   6. the trace row k is recorded;
@@ -88,6 +89,10 @@ export class Simulation {
   private readonly inputDelaySteps: number;
   private readonly sensorLine: DelayLine | null;
   private readonly sensorDelaySteps: number;
+  /** Compiled measurement functions the controller asked for (`measurementNames`), and their values. */
+  private readonly measureFns: OutputFunction[];
+  private readonly measured: Float64Array;
+  private readonly observes: boolean;
   /** The plant input over the last integration step (for the output's direct feedthrough). */
   private uPlant: number;
 
@@ -145,6 +150,17 @@ export class Simulation {
     this.ys = new Float64Array(this.substeps);
     this.uPlant = uStart;
     this.outFn = generateOutput(plant, plant.outputSource, init.helpers);
+    const names = controller.measurementNames ?? [];
+    this.measureFns = names.map((name) => {
+      const src = Object.prototype.hasOwnProperty.call(plant.measurementSources, name) ? plant.measurementSources[name] : undefined;
+      if (src === undefined) {
+        const known = Object.keys(plant.measurementSources);
+        throw new RangeError(`the plant has no measurement ${name}${known.length ? ` (it has ${known.join(', ')})` : ''}`);
+      }
+      return generateOutput(plant, src, init.helpers);
+    });
+    this.measured = new Float64Array(names.length);
+    this.observes = typeof controller.observe === 'function';
 
     const h = this.step;
     if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
@@ -303,6 +319,12 @@ export class Simulation {
 
     let uc: number;
     const auto = this.modeNow === 'auto';
+    if (this.observes) {
+      const fns = this.measureFns;
+      const m = this.measured;
+      for (let i = 0; i < fns.length; i++) m[i] = fns[i](this.x, this.p, this.d, this.uPlant, t);
+      (this.controller as Required<Pick<DiscreteController, 'observe'>>).observe(t, this.d, m);
+    }
     if (auto) {
       if (this.needsInit) {
         const r0 = this.initSetpoint;

@@ -24,6 +24,18 @@ export interface DiscreteController {
   track(uApplied: number): void;
   /** Change gains at this instant without a bump in the output. */
   setGains(g: GainSet): void;
+  /**
+   * Optional: names of `PlantDynamics.measurementSources` the law reads besides y (e.g. the inner
+   * variable of a cascade). The engine refuses unknown names with a RangeError when it is built.
+   */
+  readonly measurementNames?: readonly string[];
+  /**
+   * Optional: called once per sample before `initialize`/`update` with the time, the disturbance
+   * values in force (`PlantDynamics.disturbanceNames` order) and the named measurements
+   * (`measurementNames` order, true values at t: no sensor effects). The arrays are the engine's
+   * own, reused every sample: read them, do not keep or write them. Must not allocate.
+   */
+  observe?(t: number, d: Float64Array, m: Float64Array): void;
 }
 
 /** Everything a simulation needs besides the plant and the controller. */
