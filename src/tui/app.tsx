@@ -11,7 +11,7 @@ import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
 import { defaultSwitchTime, editFromSpec, evaluate, fileGainSwitches, rehearsalTrial, runningGains, type Evaluation, type LoopSetup } from './engine.js';
-import { commandFor, HINT, keyToken } from './keymap.js';
+import { HINT, keyToken } from './keymap.js';
 import { computeLayout, type Layout } from './layout.js';
 import { LiveRun } from './live-run.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
@@ -144,6 +144,10 @@ export function App(props: AppProps) {
   const [, setFrame] = useState(0);
   if (state.mode === 'live' && live.current === null) live.current = new LiveRun(setup, state.current, trial.duration);
   const speed = speedOf(state);
+  // The timer reads the newest state: a pause must stop the run at once, not after the effect
+  // that clears the timer has run.
+  const latest = useRef(state);
+  latest.current = state;
   useEffect(() => {
     live.current?.setGains(state.current);
   }, [state.current.gains, state.current.structure]);
@@ -153,7 +157,7 @@ export function App(props: AppProps) {
     const period = props.tickMs ?? 50;
     const timer = setInterval(() => {
       const run = live.current;
-      if (run === null) return;
+      if (run === null || latest.current.paused || latest.current.mode !== 'live') return;
       const t = performance.now();
       const wall = (t - last) / 1000;
       last = t;
@@ -248,23 +252,8 @@ export function App(props: AppProps) {
 
   // ---------------------------------------------------------------- keys
   useInput((input, key) => {
-    const o = state.overlay;
-    if (o.kind === 'caution' || o.kind === 'help') {
-      dispatch({ type: 'dismiss' });
-      return;
-    }
-    if (o.kind === 'input') {
-      if (key.escape) dispatch({ type: 'input_cancel' });
-      return;
-    }
     const token = keyToken(input, key);
-    if (o.kind === 'confirm') {
-      if (token === 'y' || token === 'Y' || (token === 'ctrl-c' && o.question === 'quit')) dispatch({ type: 'answer', yes: true });
-      else if (token === 'n' || token === 'N' || token === 'esc') dispatch({ type: 'answer', yes: false });
-      return;
-    }
-    const command = commandFor(token);
-    if (command !== null) dispatch({ type: 'key', command });
+    if (token !== '') dispatch({ type: 'press', token });
   });
 
   useEffect(() => {
@@ -509,6 +498,7 @@ function MessageLine(p: {
         ? 'switch at'
         : paramInfo(paramList(state.current)[Math.min(state.selected, paramList(state.current).length - 1)], state.current.form).symbol + ' =';
     const tail = o.error !== null ? `  ${o.error}` : '  Enter accept, Esc cancel';
+    const shownLength = o.text.length > 0 ? o.text.length : o.placeholder.length;
     return (
       <Box width={width} height={1} overflow="hidden">
         <Text color={theme.heading} bold>
@@ -516,11 +506,12 @@ function MessageLine(p: {
         </Text>
         <TextInput
           value={o.text}
+          placeholder={o.placeholder}
           onChange={(text) => p.dispatch({ type: 'input_change', text })}
           onSubmit={() => p.dispatch({ type: 'input_submit' })}
         />
         <Text color={o.error !== null ? theme.bad : theme.dim} wrap="truncate">
-          {fit(tail, Math.max(0, width - what.length - 2 - o.text.length))}
+          {fit(tail, Math.max(0, width - what.length - 2 - shownLength))}
         </Text>
       </Box>
     );

@@ -8,7 +8,7 @@
  * `EditMath`, which the shell fills with the core's functions.
  */
 import type { AntiWindup, ControllerStructure, GainSet, PidForm } from '../model/types.js';
-import { NUDGE, SPEEDS, type KeyCommand } from './keymap.js';
+import { commandFor, NUDGE, SPEEDS, type KeyCommand } from './keymap.js';
 
 /** The three time-domain parameters of a PID form, in that form's own meaning. */
 export interface FormTriple {
@@ -45,7 +45,8 @@ export type Overlay =
   | { kind: 'none' }
   | { kind: 'caution' }
   | { kind: 'help' }
-  | { kind: 'input'; target: 'param' | 'switch_time'; text: string; error: string | null }
+  /** A typed value; `placeholder` shows the present value, an empty entry keeps it. */
+  | { kind: 'input'; target: 'param' | 'switch_time'; text: string; placeholder: string; error: string | null }
   | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string };
 
 /** Work the shell must do; the reducer only asks. */
@@ -291,6 +292,8 @@ export function speedOf(s: ScreenState): number {
 // ---------------------------------------------------------------- actions
 
 export type Action =
+  /** A key as `keyToken` names it; routed by the open overlay, else through the keymap. */
+  | { type: 'press'; token: string }
   | { type: 'key'; command: KeyCommand }
   /** Any key while the caution or help overlay is up. */
   | { type: 'dismiss' }
@@ -314,6 +317,8 @@ const FORM_WORDS: Record<PidForm, string> = { ideal: 'ideal', parallel: 'paralle
 /** The screen's reducer. Pure: same state and action, same result. */
 export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
   switch (a.type) {
+    case 'press':
+      return press(s, a.token, math);
     case 'dismiss':
       return s.overlay.kind === 'caution' || s.overlay.kind === 'help' ? { ...s, overlay: { kind: 'none' } } : s;
     case 'input_change':
@@ -345,6 +350,24 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
       if (s.overlay.kind !== 'none') return s;
       return command({ ...s, message: null }, a.command, math);
   }
+}
+
+/**
+ * Route one key. Done here, not in the component, so that a key always meets the state the
+ * previous key left (a handler closed over an older render could act on a closed overlay).
+ */
+function press(s: ScreenState, token: string, math: EditMath): ScreenState {
+  const o = s.overlay;
+  if (o.kind === 'caution' || o.kind === 'help') return { ...s, overlay: { kind: 'none' } };
+  // The text field takes its own keys; only Esc is ours.
+  if (o.kind === 'input') return token === 'esc' ? { ...s, overlay: { kind: 'none' } } : s;
+  if (o.kind === 'confirm') {
+    if (token === 'y' || token === 'Y' || (token === 'ctrl-c' && o.question === 'quit')) return answer(s, true);
+    if (token === 'n' || token === 'N' || token === 'esc') return answer(s, false);
+    return s;
+  }
+  const c = commandFor(token);
+  return c === null ? s : reduce(s, { type: 'key', command: c }, math);
 }
 
 function push(s: ScreenState, next: GainEdit, message: Message | null = null): ScreenState {
@@ -402,7 +425,7 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
       return nudge(s, -1, NUDGE.coarse, math);
     case 'type_value': {
       const id = selectedParam(s);
-      return { ...s, overlay: { kind: 'input', target: 'param', text: formatPlain(paramValue(s.current, id)), error: null } };
+      return { ...s, overlay: { kind: 'input', target: 'param', text: '', placeholder: formatPlain(paramValue(s.current, id)), error: null } };
     }
     case 'undo': {
       if (s.past.length === 0) return info(s, 'nothing to undo');
@@ -444,7 +467,7 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
       );
     }
     case 'set_switch_time':
-      return { ...s, overlay: { kind: 'input', target: 'switch_time', text: `${formatPlain(s.switchAt)} s`, error: null } };
+      return { ...s, overlay: { kind: 'input', target: 'switch_time', text: '', placeholder: `${formatPlain(s.switchAt)} s`, error: null } };
     case 'toggle_run_mode':
       return s.mode === 'instant' ? info({ ...s, mode: 'live', paused: false }, 'live run') : info({ ...s, mode: 'instant' }, 'instant trial');
     case 'pause_resume':
@@ -499,6 +522,8 @@ function answer(s: ScreenState, yes: boolean): ScreenState {
 function submitInput(s: ScreenState, math: EditMath): ScreenState {
   const o = s.overlay;
   if (o.kind !== 'input') return s;
+  // Nothing typed: keep the present value.
+  if (o.text.trim() === '') return { ...s, overlay: { kind: 'none' } };
   if (o.target === 'switch_time') {
     const v = math.parseSeconds(o.text.trim());
     if (Number.isNaN(v)) return { ...s, overlay: { ...o, error: `'${o.text.trim()}' is not a time` } };

@@ -190,7 +190,9 @@ describe('tui state: typed values', () => {
 
   it('Enter opens the field with the value, a bad entry keeps it open with the error, a good one applies', () => {
     let s = keys(start(), 'select_next', 'type_value');
-    expect(s.overlay).toEqual({ kind: 'input', target: 'param', text: '10', error: null });
+    expect(s.overlay).toEqual({ kind: 'input', target: 'param', text: '', placeholder: '10', error: null });
+    // Enter on an empty field keeps the value.
+    expect(act(s, { type: 'input_submit' })).toMatchObject({ overlay: { kind: 'none' }, past: [] });
     s = act(s, { type: 'input_change', text: '-3' }, { type: 'input_submit' });
     expect(s.overlay).toMatchObject({ kind: 'input', error: 'the integral time must be > 0' });
     expect(s.current.values.ti).toBe(10);
@@ -198,6 +200,21 @@ describe('tui state: typed values', () => {
     expect(s.overlay.kind).toBe('none');
     expect(s.current.values.ti).toBe(120);
     expect(keys(s, 'undo').current.values.ti).toBe(10);
+  });
+
+  it('keys are routed by the open overlay: Esc closes the field, other keys belong to it', () => {
+    let s = keys(start(), 'type_value');
+    s = act(s, { type: 'press', token: ']' });
+    expect(s.current.values.kc).toBe(2);
+    expect(s.overlay.kind).toBe('input');
+    s = act(s, { type: 'press', token: 'esc' });
+    expect(s.overlay.kind).toBe('none');
+    s = act(s, { type: 'press', token: ']' }, { type: 'press', token: 'w' }, { type: 'press', token: 'x' });
+    expect(s.overlay).toMatchObject({ kind: 'confirm', question: 'save' });
+    s = act(s, { type: 'press', token: 'y' });
+    expect(s.effects).toEqual([{ kind: 'save', onDiskText: false }]);
+    s = act(keys(s, 'quit'), { type: 'press', token: 'ctrl-c' });
+    expect(s.effects.at(-1)).toEqual({ kind: 'quit' });
   });
 
   it('Esc cancels the field without a change; keys are ignored while it is open', () => {

@@ -1,0 +1,348 @@
+/**
+ * The screen as a user drives it, in-process with ink-testing-library: write keys to stdin,
+ * wait a tick, read the last frame.
+ */
+import { describe, it, expect, afterEach } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { cleanup, render } from 'ink-testing-library';
+import { loadPlant } from '../../src/model/index.js';
+import { App, type ScreenIo } from '../../src/tui/app.js';
+import { setupLoop } from '../../src/tui/engine.js';
+import { KEYMAP, keyLabel } from '../../src/tui/keymap.js';
+import { NO_DIAGNOSIS, type NoticeSource } from '../../src/tui/notices.js';
+
+const fixtures = join(import.meta.dirname, '..', 'fixtures', 'plants');
+
+const KEY = { up: '\u001b[A', down: '\u001b[B', right: '\u001b[C', left: '\u001b[D', enter: '\r', esc: '\u001b', backspace: '\u007f', ctrlC: '\u0003' };
+
+const tick = (ms = 50): Promise<void> => new Promise((r) => setTimeout(r, ms));
+
+/**
+ * Wait until `pred` holds (effects such as a save or quit run after the frame; on a busy machine
+ * that can take longer than one tick). Fails with the last frame if it never does.
+ */
+async function until(pred: () => boolean, what: string, frame: () => string, ms = 3000): Promise<void> {
+  const end = Date.now() + ms;
+  while (!pred()) {
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}; frame:\n${frame()}`);
+    await tick(20);
+  }
+}
+
+interface Mounted {
+  frame(): string;
+  press(...keys: string[]): Promise<void>;
+  files: Map<string, string>;
+  writes: { path: string; text: string }[];
+  exits: number[];
+}
+
+async function mount(
+  name: string,
+  opts: { columns?: number; rows?: number; color?: boolean; caution?: boolean; notices?: NoticeSource } = {},
+): Promise<Mounted> {
+  const text = readFileSync(join(fixtures, name), 'utf8');
+  const loaded = loadPlant(text, name);
+  if (loaded.plant === undefined) throw new Error(`${name} does not load`);
+  const files = new Map([[name, text]]);
+  const writes: { path: string; text: string }[] = [];
+  const exits: number[] = [];
+  const io: ScreenIo = {
+    readText: (p) => {
+      const t = files.get(p);
+      if (t === undefined) throw new Error(`ENOENT: ${p}`);
+      return t;
+    },
+    writeText: (p, t) => {
+      writes.push({ path: p, text: t });
+      files.set(p, t);
+    },
+  };
+  const app = render(
+    <App
+      setup={setupLoop(loaded.plant)}
+      filePath={name}
+      fileName={name}
+      text={text}
+      io={io}
+      notices={opts.notices ?? NO_DIAGNOSIS}
+      color={opts.color ?? false}
+      caution={opts.caution ?? false}
+      size={{ columns: opts.columns ?? 80, rows: opts.rows ?? 24 }}
+      onExit={(c) => exits.push(c)}
+    />,
+  );
+  await tick(60);
+  return {
+    frame: () => app.lastFrame() ?? '',
+    press: async (...keys) => {
+      for (const k of keys) {
+        app.stdin.write(k);
+        await tick();
+      }
+    },
+    files,
+    writes,
+    exits,
+  };
+}
+
+/** The value shown for a parameter in the gain panel, e.g. shown(frame, 'Kc') -> '2'. */
+function shown(frame: string, symbol: string): string | null {
+  const m = new RegExp(`^[> ] ${symbol.replace("'", "\\'")}\\s+(\\S+)`, 'm').exec(frame);
+  return m === null ? null : m[1];
+}
+
+/** The figure shown in the metrics panel for a row label. */
+function figure(frame: string, label: string): string | null {
+  const m = new RegExp(`│${label}\\s+(?:[≤≥] \\S+ \\S*\\s+)?(\\S+(?: %| s)?)`).exec(frame);
+  return m === null ? null : m[1];
+}
+
+afterEach(() => cleanup());
+
+describe('tui app: editing', () => {
+  it('raising Kc shows the new gain and a new overshoot; undo brings both back', async () => {
+    const s = await mount('surge-tank.yaml');
+    expect(shown(s.frame(), 'Kc')).toBe('2');
+    const before = figure(s.frame(), 'overshoot');
+    expect(before).toMatch(/%$/);
+    await s.press(']', ']');
+    expect(shown(s.frame(), 'Kc')).toBe('2.42');
+    expect(s.frame()).toContain('[unsaved]');
+    const after = figure(s.frame(), 'overshoot');
+    expect(after).not.toBe(before);
+    await s.press('u', 'u');
+    expect(shown(s.frame(), 'Kc')).toBe('2');
+    expect(figure(s.frame(), 'overshoot')).toBe(before);
+    expect(s.frame()).not.toContain('[unsaved]');
+    await s.press('r');
+    expect(shown(s.frame(), 'Kc')).toBe('2.2');
+  });
+
+  it('arrows move the selection marker and nudge the selected parameter', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(KEY.down);
+    expect(s.frame()).toMatch(/^> Ti /m);
+    await s.press(KEY.right);
+    expect(shown(s.frame(), 'Ti')).toBe('30.3');
+    await s.press(KEY.up, KEY.left);
+    expect(shown(s.frame(), 'Kc')).toBe('1.98');
+  });
+
+  it('Enter types an exact value with units; a bad value is refused with a reason', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(KEY.down, KEY.enter);
+    expect(s.frame()).toContain('Ti = 30');
+    // A whole chunk at once, as a paste or a fast typist over SSH delivers it.
+    await s.press('x');
+    await until(() => s.frame().includes('Ti = x'), 'the typed text', s.frame);
+    await s.press(KEY.enter);
+    await until(() => /'x' is not a time/.test(s.frame()), 'the refusal', s.frame);
+    await s.press(KEY.backspace);
+    await until(() => !s.frame().includes('Ti = x'), 'the deletion', s.frame);
+    await s.press('1.5 min');
+    await until(() => s.frame().includes('Ti = 1.5 min'), 'the typed text', s.frame);
+    await s.press(KEY.enter);
+    await until(() => shown(s.frame(), 'Ti') === '90', 'the new value', s.frame);
+    await s.press(KEY.enter, KEY.esc);
+    expect(shown(s.frame(), 'Ti')).toBe('90');
+    expect(s.frame()).not.toContain('Ti = ');
+  });
+
+  it('f converts the values to the next form (sheet section 13: Ki = Kc/Ti, Kd = Kc Td)', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press('f');
+    expect(s.frame()).toContain('PID parallel');
+    expect(shown(s.frame(), 'Kp')).toBe('2');
+    // Kc 2, Ti 30 s -> Ki = 0.06667 /s
+    expect(shown(s.frame(), 'Ki')).toBe('0.06667');
+    // A form switch alone is not an unsaved change (the file keeps its form).
+    expect(s.frame()).not.toContain('[unsaved]');
+    await s.press('a');
+    expect(s.frame()).toContain('anti-windup back-calc');
+    expect(s.frame()).toContain('[unsaved]');
+  });
+
+  it('b keeps a baseline; its values and metrics show beside the current ones', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press('b', ']');
+    expect(s.frame()).toContain('base 2');
+    expect(s.frame()).toContain('baseline');
+    expect(s.frame()).toContain('· baseline');
+  });
+
+  it('g rehearses the retune from the file gains; the status shows the switch time', async () => {
+    const s = await mount('surge-tank.yaml', { columns: 110, rows: 30 });
+    await s.press(']', 'g');
+    expect(s.frame()).toContain('rehearse @ 450 s');
+    expect(s.frame()).toContain('Rehearsal trend');
+  });
+});
+
+describe('tui app: save and quit', () => {
+  it('w asks, y writes the file with the new gain and the comments kept', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(']', 'w');
+    expect(s.frame()).toContain('Write this gain set into surge-tank.yaml? (y/n)');
+    expect(s.writes).toHaveLength(0);
+    await s.press('y');
+    await until(() => s.writes.length === 1, 'the write', s.frame);
+    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2$/m);
+    expect(s.writes[0].text).toContain('# N: derivative low-pass at Td/N');
+    await until(() => s.frame().includes('gain set written'), 'the saved message', s.frame);
+    expect(s.frame()).toContain('gain set written to surge-tank.yaml');
+    expect(s.frame()).not.toContain('[unsaved]');
+  });
+
+  it('n does not write', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(']', 'w', 'n');
+    expect(s.writes).toHaveLength(0);
+    expect(s.frame()).toContain('not written');
+  });
+
+  it('a file changed on disk since loading is not overwritten silently', async () => {
+    const s = await mount('surge-tank.yaml');
+    const original = s.files.get('surge-tank.yaml')!;
+    s.files.set('surge-tank.yaml', original.replace('name: Surge tank level', 'name: Surge tank level (edited)'));
+    await s.press(']', 'w', 'y');
+    await until(() => s.frame().includes('changed on disk since it was loaded'), 'the conflict question', s.frame);
+    expect(s.writes).toHaveLength(0);
+    await s.press('y');
+    await until(() => s.writes.length === 1, 'the write', s.frame);
+    // The other change on disk is kept; ours is added.
+    expect(s.writes[0].text).toContain('name: Surge tank level (edited)');
+    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2$/m);
+  });
+
+  it('quitting with unsaved changes asks; n stays, y quits with 0', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(']', 'q');
+    expect(s.frame()).toContain('There are unsaved changes. Quit without saving? (y/n)');
+    await s.press('n');
+    expect(s.exits).toEqual([]);
+    await s.press(KEY.ctrlC);
+    expect(s.frame()).toContain('Quit without saving?');
+    await s.press(KEY.ctrlC);
+    await until(() => s.exits.length > 0, 'the exit', s.frame);
+    expect(s.exits).toEqual([0]);
+  });
+
+  it('quitting with nothing changed does not ask', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press('q');
+    await until(() => s.exits.length > 0, 'the exit', s.frame);
+    expect(s.exits).toEqual([0]);
+  });
+});
+
+describe('tui app: screen sizes and colour', () => {
+  const lines = (f: string): string[] => f.split('\n');
+
+  it('80x24: 23 lines, none wider than 80, trend, gains, metrics, status and hint', async () => {
+    const s = await mount('surge-tank.yaml');
+    const f = s.frame();
+    expect(lines(f)).toHaveLength(23);
+    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
+    expect(f).toContain('Trial trend');
+    expect(f).toContain('Gain set');
+    expect(f).toContain('Trial vs requirements');
+    expect(f).toContain('surge-tank.yaml');
+    expect(lines(f)[22]).toContain('? keys');
+    expect(f).not.toContain('Controller output');
+  });
+
+  it('120x40 adds the output chart and the notices column', async () => {
+    const s = await mount('surge-tank.yaml', { columns: 120, rows: 40 });
+    const f = s.frame();
+    expect(lines(f)).toHaveLength(39);
+    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(120);
+    expect(f).toContain('Controller output');
+    expect(f).toContain('Notices');
+  });
+
+  it('a tiny terminal still shows the gains and the hint, cut to its width', async () => {
+    const s = await mount('surge-tank.yaml', { columns: 40, rows: 12 });
+    const f = s.frame();
+    expect(lines(f)).toHaveLength(11);
+    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(40);
+    expect(f).toContain('too small');
+    expect(f).toMatch(/^> Kc/m);
+  });
+
+  it('without colour there are no escape codes and checks read [ok] / [NO]', async () => {
+    const s = await mount('surge-tank.yaml', { color: false });
+    // eslint-disable-next-line no-control-regex
+    expect(s.frame()).not.toMatch(/\u001b\[/);
+    expect(s.frame()).toMatch(/\[NO\]|\[ok\]/);
+  });
+});
+
+describe('tui app: help, caution, notices', () => {
+  it('? lists every key of the keymap; any key closes it', async () => {
+    const s = await mount('surge-tank.yaml', { columns: 100, rows: 40 });
+    await s.press('?');
+    const f = s.frame();
+    for (const b of KEYMAP) for (const k of b.keys) expect(f, k).toContain(keyLabel(k));
+    await s.press('x');
+    expect(s.frame()).toContain('Trial trend');
+  });
+
+  it('the safety caution shows first, once', async () => {
+    const s = await mount('surge-tank.yaml', { caution: true });
+    expect(s.frame()).toContain('starting point');
+    expect(s.frame()).toContain('manual fallback');
+    await s.press(']');
+    expect(shown(s.frame(), 'Kc')).toBe('2');
+    expect(s.frame()).not.toContain('manual fallback');
+    await s.press(']');
+    expect(shown(s.frame(), 'Kc')).toBe('2.2');
+  });
+
+  it('without a diagnosis source the notices say so (no invented flags)', async () => {
+    const s = await mount('surge-tank.yaml');
+    expect(s.frame()).toContain('diagnosis not available');
+    expect(figure(s.frame(), 'Ms')).toBe('n/a');
+  });
+
+  it('a notice source is drawn as it reports: flags and the margins of the edited gains', async () => {
+    const seen: number[] = [];
+    const source: NoticeSource = {
+      available: true,
+      plantNotices: () => [{ tone: 'warn', text: 'test flag from the source' }],
+      margins: (g) => {
+        seen.push(g.kc);
+        return { gainMargin: 3, phaseMarginDeg: 50, maxSensitivity: g.kc };
+      },
+    };
+    const s = await mount('surge-tank.yaml', { notices: source, columns: 120, rows: 40 });
+    expect(s.frame()).toContain('test flag from the source');
+    expect(figure(s.frame(), 'Ms')).toBe('2');
+    await s.press(']');
+    expect(seen).toContain(2.2);
+    expect(figure(s.frame(), 'Ms')).toBe('2.2');
+  });
+});
+
+describe('tui app: live run', () => {
+  it('l starts the live run; time advances; steps are injected; speed changes', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press('l');
+    await tick(300);
+    const m = /t (\d+\.\d) s/.exec(s.frame());
+    expect(m).not.toBeNull();
+    expect(Number(m![1])).toBeGreaterThan(0);
+    expect(s.frame()).toContain('Live trend');
+    await s.press('>');
+    expect(s.frame()).toContain('live ×20');
+    await s.press('s');
+    await until(() => /setpoint -> \d/.test(s.frame()), 'the setpoint step message', s.frame);
+    await s.press(' ');
+    expect(s.frame()).toContain('paused');
+    const t1 = /t (\d+\.\d) s/.exec(s.frame())![1];
+    await tick(200);
+    expect(/t (\d+\.\d) s/.exec(s.frame())![1]).toBe(t1);
+  });
+});

@@ -1,0 +1,101 @@
+/**
+ * Writing the edited gain set back: only the changed fields, comments and layout kept, in the
+ * file's own form, and the result loads with the new gains.
+ */
+import { describe, it, expect } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { loadPlant } from '../../src/model/index.js';
+import { CORE_EDIT_MATH } from '../../src/tui/edit-math.js';
+import { editFromSpec } from '../../src/tui/engine.js';
+import { planSave } from '../../src/tui/save-gains.js';
+import { withForm, withParam, type GainEdit } from '../../src/tui/state.js';
+
+const fixtures = join(import.meta.dirname, '..', 'fixtures', 'plants');
+const read = (name: string): string => readFileSync(join(fixtures, name), 'utf8');
+
+function fileEdit(text: string): GainEdit {
+  const r = loadPlant(text, 'x.yaml');
+  if (r.plant === undefined) throw new Error('fixture does not load');
+  return editFromSpec(r.plant.loop.controller);
+}
+
+function changedLines(a: string, b: string): string[] {
+  const la = a.split('\n');
+  const lb = b.split('\n');
+  expect(lb).toHaveLength(la.length);
+  return lb.filter((l, i) => l !== la[i]);
+}
+
+function edit(e: GainEdit, id: Parameters<typeof withParam>[1], v: number): GainEdit {
+  const r = withParam(e, id, v, CORE_EDIT_MATH);
+  if ('error' in r) throw new Error(r.error);
+  return r;
+}
+
+describe('tui save', () => {
+  it('a changed Kc rewrites only that line; comments stay; the file loads with the new gain', () => {
+    const text = read('surge-tank.yaml');
+    const file = fileEdit(text);
+    const plan = planSave(text, file, edit(file, 'kc', 2.42), 'ideal');
+    if (!plan.ok) throw new Error(plan.error);
+    expect(plan.changed).toEqual(['kc']);
+    expect(changedLines(text, plan.text)).toEqual(['    kc: 2.42']);
+    expect(plan.text).toContain('# N: derivative low-pass at Td/N');
+    expect(loadPlant(plan.text, 'x.yaml').plant?.loop.controller.gains.kc).toBe(2.42);
+  });
+
+  it('a time keeps the unit the file wrote it with', () => {
+    const text = read('surge-tank.yaml');
+    const file = fileEdit(text);
+    const plan = planSave(text, file, edit(file, 'ti', 45), 'ideal');
+    if (!plan.ok) throw new Error(plan.error);
+    expect(changedLines(text, plan.text)).toEqual(['    ti: 45 s']);
+  });
+
+  it('anti-windup and the derivative filter are written when changed', () => {
+    const text = read('surge-tank.yaml');
+    const file = fileEdit(text);
+    const e: GainEdit = { ...edit(file, 'n', 8), gains: { ...edit(file, 'n', 8).gains, antiWindup: 'back_calculation' } };
+    const plan = planSave(text, file, e, 'ideal');
+    if (!plan.ok) throw new Error(plan.error);
+    expect(plan.changed).toEqual(['derivative_filter', 'anti_windup']);
+    const g = loadPlant(plan.text, 'x.yaml').plant!.loop.controller.gains;
+    expect(g.n).toBe(8);
+    expect(g.antiWindup).toBe('back_calculation');
+  });
+
+  it("a set shown in another form is written in the file's form, converted back", () => {
+    const text = read('fopdt-heater.yaml'); // parallel PI: kp 0.8, ki 0.08
+    const file = fileEdit(text);
+    const shownIdeal = withForm(file, 'ideal', CORE_EDIT_MATH)!;
+    const e = edit(shownIdeal, 'kc', 1.2); // Ti stays 10 s, so Ki = 0.12 /s (sheet section 13: Ki = Kc/Ti)
+    const plan = planSave(text, file, e, 'parallel');
+    if (!plan.ok) throw new Error(plan.error);
+    expect(plan.formNote).toMatch(/parallel/);
+    expect(plan.changed.sort()).toEqual(['ki', 'kp']);
+    const c = loadPlant(plan.text, 'x.yaml').plant!.loop.controller;
+    expect(c.form).toBe('parallel');
+    expect(c.values.kp).toBe(1.2);
+    expect(c.values.ki).toBeCloseTo(0.12, 12);
+    expect(plan.text).toContain('ki: 0.12       # per second');
+  });
+
+  it('a series-form file cannot take gains with Ti < 4 Td: nothing is written', () => {
+    const text = read('inverse-response.yaml');
+    const r = loadPlant(text, 'x.yaml');
+    expect(r.plant?.loop.controller.form).toBe('series');
+    const file = fileEdit(text);
+    const ideal = withForm(file, 'ideal', CORE_EDIT_MATH)!;
+    const e = edit(edit(ideal, 'ti', 1), 'td', 1);
+    const plan = planSave(text, file, e, 'series');
+    expect(plan).toMatchObject({ ok: false, error: expect.stringMatching(/Ti >= 4 Td/) });
+  });
+
+  it('no change writes nothing new', () => {
+    const text = read('surge-tank.yaml');
+    const file = fileEdit(text);
+    const plan = planSave(text, file, file, 'ideal');
+    expect(plan).toMatchObject({ ok: true, text, changed: [] });
+  });
+});
