@@ -118,8 +118,11 @@ export function prepareBumpData(table: CsvTable, options: PrepareOptions): Prepa
   let u: Float64Array;
   let y: Float64Array;
   const tStart = time[i0];
+  let dtUsed = dt;
   if (!irregular) {
     n = count;
+    // The mean interval: free of the rounding in single differences of decimal time stamps.
+    dtUsed = (time[i1] - tStart) / (count - 1);
     u = u0.slice(i0, i1 + 1);
     y = y0.slice(i0, i1 + 1);
   } else {
@@ -163,7 +166,7 @@ export function prepareBumpData(table: CsvTable, options: PrepareOptions): Prepa
   return {
     data: {
       t0: tStart,
-      dt,
+      dt: dtUsed,
       n,
       u,
       y,

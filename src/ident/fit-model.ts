@@ -7,6 +7,9 @@
  * linear least squares (they enter the response linearly); (2) Levenberg–Marquardt from the
  * best few on a decimated record (long logs only); (3) Levenberg–Marquardt polish on the full
  * record, whose Jacobian gives the covariance.
+ *
+ * The delay of the inverse-response family is located only to within a sample interval (see
+ * `feedthroughCovariance`); its interval reflects that.
  */
 import { leastSquaresCovariance, levenbergMarquardt, nelderMead } from '../num/index.js';
 import type { BumpData } from './bump-data.js';
@@ -209,7 +212,12 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   }
   const values = Array.from(final.x);
   const fixed = values.map((v, i) => isAtBound(v, lower[i], upper[i]));
-  const cov = leastSquaresCovariance(final.jacobian, full.n, np, final.sse, fixed);
+  let cov: Float64Array | null;
+  if (hasFeedthrough && !fixed[info.delayIndex]) {
+    cov = feedthroughCovariance(final.jacobian, full.n, np, final.sse, fixed, values, data.dt);
+  } else {
+    cov = leastSquaresCovariance(final.jacobian, full.n, np, final.sse, fixed);
+  }
 
   const response = new Float64Array(full.n);
   residuals(full)(final.x, response);
@@ -243,6 +251,35 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
     evaluations,
     start: best!.label,
   };
+}
+
+/**
+ * Covariance for K (1 − Tz s) e^{−θs}/(T s + 1). After the delay the step response is
+ * K − K A e^{−t/T} with A = (1 + Tz/T) e^{θ/T}: the smooth part fixes only A, so Tz and θ
+ * trade against each other exactly, and the data place θ only through the sample at which the
+ * jump −K Tz/T first shows, i.e. within one sample interval. So: the least-squares covariance
+ * with θ held, then θ uniform over its interval (variance dt²/12) and Tz following it at fixed A,
+ * dTz/dθ = −(1 + Tz/T).
+ */
+function feedthroughCovariance(
+  J: Float64Array,
+  m: number,
+  np: number,
+  sse: number,
+  fixed: boolean[],
+  v: number[],
+  dt: number,
+): Float64Array | null {
+  const held = fixed.slice();
+  held[3] = true;
+  const cov = leastSquaresCovariance(J, m, np, sse, held);
+  if (cov === null) return null;
+  const varTheta = (dt * dt) / 12;
+  const slope = -(1 + v[2] / v[1]);
+  cov[3 * np + 3] = varTheta;
+  cov[2 * np + 3] = cov[3 * np + 2] = slope * varTheta;
+  cov[2 * np + 2] += slope * slope * varTheta;
+  return cov;
 }
 
 /** Box for each family: times within the record's reach, damping within [0.05, 30]. */
