@@ -101,9 +101,8 @@ export function hessenberg(a: Float64Array, n: number): void {
 export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
   const wr = new Float64Array(n);
   const wi = new Float64Array(n);
-  const A = (i: number, j: number): number => h[i * n + j];
   let anorm = 0;
-  for (let i = 0; i < n; i++) for (let j = Math.max(i - 1, 0); j < n; j++) anorm += Math.abs(A(i, j));
+  for (let i = 0; i < n; i++) for (let j = Math.max(i - 1, 0); j < n; j++) anorm += Math.abs(h[(i) * n + (j)]);
   let nn = n - 1;
   let t = 0;
   let p = 0;
@@ -120,22 +119,22 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
     do {
       // Look for a single small subdiagonal element.
       for (l = nn; l >= 1; l--) {
-        s = Math.abs(A(l - 1, l - 1)) + Math.abs(A(l, l));
+        s = Math.abs(h[(l - 1) * n + (l - 1)]) + Math.abs(h[(l) * n + (l)]);
         if (s === 0) s = anorm;
-        if (Math.abs(A(l, l - 1)) <= EPS * s) {
+        if (Math.abs(h[(l) * n + (l - 1)]) <= EPS * s) {
           h[l * n + l - 1] = 0;
           break;
         }
       }
-      x = A(nn, nn);
+      x = h[(nn) * n + (nn)];
       if (l === nn) {
         // One root found.
         wr[nn] = x + t;
         wi[nn] = 0;
         nn--;
       } else {
-        y = A(nn - 1, nn - 1);
-        w = A(nn, nn - 1) * A(nn - 1, nn);
+        y = h[(nn - 1) * n + (nn - 1)];
+        w = h[(nn) * n + (nn - 1)] * h[(nn - 1) * n + (nn)];
         if (l === nn - 1) {
           // Two roots found.
           p = 0.5 * (y - x);
@@ -159,7 +158,7 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
             // Exceptional shift, to break a cycle.
             t += x;
             for (let i = 0; i <= nn; i++) h[i * n + i] -= x;
-            s = Math.abs(A(nn, nn - 1)) + Math.abs(A(nn - 1, nn - 2));
+            s = Math.abs(h[(nn) * n + (nn - 1)]) + Math.abs(h[(nn - 1) * n + (nn - 2)]);
             y = x = 0.75 * s;
             w = -0.4375 * s * s;
           }
@@ -167,19 +166,19 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
           // Form the shift and look for two consecutive small subdiagonal elements.
           let m: number;
           for (m = nn - 2; m >= l; m--) {
-            z = A(m, m);
+            z = h[(m) * n + (m)];
             r = x - z;
             s = y - z;
-            p = (r * s - w) / A(m + 1, m) + A(m, m + 1);
-            q = A(m + 1, m + 1) - z - r - s;
-            r = A(m + 2, m + 1);
+            p = (r * s - w) / h[(m + 1) * n + (m)] + h[(m) * n + (m + 1)];
+            q = h[(m + 1) * n + (m + 1)] - z - r - s;
+            r = h[(m + 2) * n + (m + 1)];
             s = Math.abs(p) + Math.abs(q) + Math.abs(r);
             p /= s;
             q /= s;
             r /= s;
             if (m === l) break;
-            const u = Math.abs(A(m, m - 1)) * (Math.abs(q) + Math.abs(r));
-            const v = Math.abs(p) * (Math.abs(A(m - 1, m - 1)) + Math.abs(z) + Math.abs(A(m + 1, m + 1)));
+            const u = Math.abs(h[(m) * n + (m - 1)]) * (Math.abs(q) + Math.abs(r));
+            const v = Math.abs(p) * (Math.abs(h[(m - 1) * n + (m - 1)]) + Math.abs(z) + Math.abs(h[(m + 1) * n + (m + 1)]));
             if (u <= EPS * v) break;
           }
           for (let i = m + 2; i <= nn; i++) {
@@ -189,10 +188,10 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
           // Double QR step on rows l..nn and columns m..nn.
           for (let k = m; k <= nn - 1; k++) {
             if (k !== m) {
-              p = A(k, k - 1);
-              q = A(k + 1, k - 1);
+              p = h[(k) * n + (k - 1)];
+              q = h[(k + 1) * n + (k - 1)];
               r = 0;
-              if (k !== nn - 1) r = A(k + 2, k - 1);
+              if (k !== nn - 1) r = h[(k + 2) * n + (k - 1)];
               x = Math.abs(p) + Math.abs(q) + Math.abs(r);
               if (x !== 0) {
                 p /= x;
@@ -204,7 +203,7 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
             s = p >= 0 ? root : -root;
             if (s !== 0) {
               if (k === m) {
-                if (l !== m) h[k * n + k - 1] = -A(k, k - 1);
+                if (l !== m) h[k * n + k - 1] = -h[(k) * n + (k - 1)];
               } else {
                 h[k * n + k - 1] = -s * x;
               }
@@ -215,9 +214,9 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
               q /= p;
               r /= p;
               for (let j = k; j <= nn; j++) {
-                p = A(k, j) + q * A(k + 1, j);
+                p = h[(k) * n + (j)] + q * h[(k + 1) * n + (j)];
                 if (k !== nn - 1) {
-                  p += r * A(k + 2, j);
+                  p += r * h[(k + 2) * n + (j)];
                   h[(k + 2) * n + j] -= p * z;
                 }
                 h[(k + 1) * n + j] -= p * y;
@@ -225,9 +224,9 @@ export function hessenbergEigenvalues(h: Float64Array, n: number): Eigenvalues {
               }
               const mmin = nn < k + 3 ? nn : k + 3;
               for (let i = l; i <= mmin; i++) {
-                p = x * A(i, k) + y * A(i, k + 1);
+                p = x * h[(i) * n + (k)] + y * h[(i) * n + (k + 1)];
                 if (k !== nn - 1) {
-                  p += z * A(i, k + 2);
+                  p += z * h[(i) * n + (k + 2)];
                   h[i * n + k + 2] -= p * r;
                 }
                 h[i * n + k + 1] -= p * q;
