@@ -77,9 +77,14 @@ async function mount(
   return {
     frame: () => app.lastFrame() ?? '',
     press: async (...keys) => {
+      // Each key: wait for the frame it causes (a busy machine can take a while), then a little
+      // more so the effects of that frame (a newly shown text field subscribing) have run.
       for (const k of keys) {
+        const n = app.stdout.frames.length;
         app.stdin.write(k);
-        await tick();
+        const end = Date.now() + 1500;
+        while (app.stdout.frames.length === n && Date.now() < end) await tick(5);
+        await tick(30);
       }
     },
     files,
