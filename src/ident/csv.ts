@@ -72,18 +72,15 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
   let lineNo = 0;
   let header: string | null = null;
   let headerLine = 0;
-  let headerStart = 0;
   while (pos < len) {
     const nl = text.indexOf('\n', pos);
     const end = nl < 0 ? len : nl;
     lineNo++;
     const line = stripCr(text.slice(pos, end));
-    const start = pos;
     pos = end + 1;
     if (line.trim() === '' || line.trimStart().startsWith('#')) continue;
     header = line;
     headerLine = lineNo;
-    headerStart = start;
     break;
   }
   if (header === null) {
@@ -232,7 +229,6 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
     lineStarts[rows] = start;
     rows++;
   }
-  void headerStart;
   if (badRows > maxListed) {
     diagnostics.push(
       logDiagnostic('ROW_SKIPPED', options.skipBadRows ? 'warning' : 'error', 0, 0,
