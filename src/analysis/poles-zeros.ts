@@ -12,7 +12,7 @@
  * show up both as a pole and as a zero; `cancelPairs` removes such pairs where needed.
  */
 import type { LinearModel } from '../sim/types.js';
-import { eigenvalues, householderQ, luFactor, luSolve, matMul, normInf } from '../num/index.js';
+import { eigenvalues, householderQ, luFactor, luSolve, matMul } from '../num/index.js';
 
 /** A complex number (a pole or a zero), rad/s. */
 export interface Root {
@@ -51,7 +51,7 @@ export interface PoleZeroSummary {
 }
 
 /** Relative tolerance for treating a Markov parameter as zero. */
-const MARKOV_TOL = 1e-10;
+const MARKOV_TOL = 1e-9;
 
 /** Poles: the eigenvalues of A. */
 export function poles(model: LinearModel): Root[] {
@@ -71,19 +71,24 @@ function markov(model: LinearModel): { h: number[]; scale: number[]; rows: Float
   const h: number[] = [];
   const scale: number[] = [];
   const rows: Float64Array[] = [];
-  const aNorm = Math.max(normInf(model.a, n, n), 1e-300);
   let bNorm = 0;
-  for (let i = 0; i < n; i++) bNorm = Math.max(bNorm, Math.abs(model.b[i]));
+  for (let i = 0; i < n; i++) bNorm += model.b[i] * model.b[i];
+  bNorm = Math.sqrt(bNorm);
   let row = Float64Array.from(model.c);
-  let cNorm = 0;
-  for (let i = 0; i < n; i++) cNorm = Math.max(cNorm, Math.abs(row[i]));
-  let rowScale = cNorm;
   for (let k = 0; k < n; k++) {
     rows.push(row);
     let s = 0;
-    for (let i = 0; i < n; i++) s += row[i] * model.b[i];
+    let rowNorm = 0;
+    let terms = 0;
+    for (let i = 0; i < n; i++) {
+      s += row[i] * model.b[i];
+      rowNorm += row[i] * row[i];
+      terms += Math.abs(row[i] * model.b[i]);
+    }
     h.push(s);
-    scale.push(rowScale * bNorm * n);
+    // h_k is judged against the size of the vectors it is the inner product of (a cancellation
+    // test), and against the sum of the absolute terms (rounding in the sum itself).
+    scale.push(Math.max(Math.sqrt(rowNorm) * bNorm, terms));
     const next = new Float64Array(n);
     for (let j = 0; j < n; j++) {
       let t = 0;
@@ -91,7 +96,6 @@ function markov(model: LinearModel): { h: number[]; scale: number[]; rows: Float
       next[j] = t;
     }
     row = next;
-    rowScale *= aNorm;
   }
   rows.push(row);
   return { h, scale, rows };
