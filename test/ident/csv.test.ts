@@ -106,16 +106,14 @@ describe('readCsv', () => {
     expect(readCsv(bom, opts).table!.rows).toBe(2);
   });
 
-  it('reads a day at 1 Hz (86 400 rows) in well under a second', () => {
+  // Speed is reported by test/bench/ident.bench.ts, never asserted here.
+  it('reads a day at 1 Hz (86 400 rows), every row kept', () => {
     const lines = ['time,valve,level'];
     for (let i = 0; i < 86400; i++) lines.push(`${i},${i < 1000 ? 40 : 45},${(1 + 0.001 * (i % 7)).toFixed(4)}`);
     const text = lines.join('\n');
-    const t0 = performance.now();
     const r = readCsv(text, opts);
-    const ms = performance.now() - t0;
     expect(r.table!.rows).toBe(86400);
-    // Measured ~0.15-0.3 s on the shared 2-core machine; the bound is the issue's "well under a second".
-    expect(ms).toBeLessThan(1000);
+    expect(r.diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
   });
 });
 
