@@ -60,11 +60,10 @@ describe('bad-input catalogue (test/fixtures/bad)', () => {
     expect(loadPlant(text).diagnostics[0].code).not.toBe('FILE_TOO_LARGE');
   });
 
-  it('an alias bomb is refused quickly', () => {
-    const t0 = performance.now();
-    loadPlant(read('alias-bomb.yaml'));
-    // Generous bound: expanding the bomb would take 10^8 nodes; refusing takes milliseconds.
-    expect(performance.now() - t0).toBeLessThan(2000);
+  it('an alias bomb is refused before it expands (expanding it would take 10^8 nodes)', () => {
+    const r = loadPlant(read('alias-bomb.yaml'));
+    expect(r.plant).toBeUndefined();
+    expect(r.diagnostics.some((d) => /alias/i.test(d.message))).toBe(true);
   });
 
   it('refuses pathological nesting before parsing (flow and block), at the deepest point', () => {
