@@ -16,12 +16,15 @@ import type { Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
 import { loadPlantFile, parseOverrides } from '../load-plant-file.js';
 import type { Override } from '../load-plant-file.js';
+import { writeRunSvg } from '../run-svg.js';
 import { USAGE } from '../usage.js';
 
 export interface RunOptions {
   file: string;
   json: boolean;
   csv: string | null;
+  /** Write the trial plot as SVG to this path. */
+  svg: string | null;
   overrides: Override[];
   /** Trial duration override, s. */
   duration: number | null;
@@ -40,6 +43,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
       options: {
         json: { type: 'boolean' },
         csv: { type: 'string' },
+        svg: { type: 'string' },
         set: { type: 'string', multiple: true },
         duration: { type: 'string' },
         step: { type: 'string' },
@@ -69,6 +73,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     file: positionals[0],
     json: values.json === true,
     csv: values.csv ?? null,
+    svg: values.svg ?? null,
     overrides: parseOverrides(values.set ?? []),
     duration: time('duration', values.duration),
     step: time('step', values.step),
@@ -153,6 +158,7 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
       throw new UserError(`cannot write ${options.csv}: ${(error as Error).message}`);
     }
   }
+  if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
   io.out(options.json ? toJson(reportJson(report)) : summaryText(report));
   return 0;
 }

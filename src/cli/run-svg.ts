@@ -1,0 +1,34 @@
+/**
+ * `looprig run FILE --svg OUT.svg`: the trial plot of a run. With `--set` overrides, the file's
+ * own gains are simulated too and drawn as the baseline.
+ */
+import { loadPlant } from '../model/index.js';
+import { UserError } from './errors.js';
+import type { Io } from './io.js';
+import { simulatePlant } from './simulate-plant.js';
+import { trialPlotSvg } from './trial-plot.js';
+import type { RunReport } from './commands/run.js';
+
+/** Write the plot of `report` to `out` (temp file + rename through io.writeText). */
+export function writeRunSvg(report: RunReport, out: string, overridden: boolean, io: Io): void {
+  let baseline: { label: string; trace: RunReport['result']['trace'] } | null = null;
+  if (overridden) {
+    // The file loaded cleanly a moment ago (runPlant did it), so this load cannot fail.
+    const original = loadPlant(io.readText(report.file), report.file).plant;
+    if (original) baseline = { label: 'baseline (gains in the file)', trace: simulatePlant(original).result.trace };
+  }
+  const failed = report.requirements.filter((r) => !r.pass).map((r) => r.name);
+  const svg = trialPlotSvg({
+    plant: report.plant,
+    file: report.file,
+    trace: report.result.trace,
+    metrics: report.metrics,
+    baseline,
+    note: report.result.status === 'diverged' ? 'DIVERGED' : failed.length > 0 ? `FAILED: ${failed.join(', ')}` : undefined,
+  });
+  try {
+    io.writeText(out, svg);
+  } catch (error) {
+    throw new UserError(`cannot write ${out}: ${(error as Error).message}`);
+  }
+}
