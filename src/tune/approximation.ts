@@ -1,24 +1,11 @@
 /**
- * Low-order descriptions of a linear plant for the tuning rules: Skogestad's half rule to first
- * and second order plus delay (or integrating plus delay), and the ultimate point of the loop.
- *
- * Half rule (S. Skogestad, J. Process Control 13 (2003) 291-309; reference sheet section 3, [mem]):
- * lags tau10 >= tau20 >= ...; the largest neglected lag is split evenly between the smallest kept
- * lag and the delay; smaller lags, inverse-response time constants (RHP zeros, T = 1/z) and half
- * the sample time go fully into the delay:
- *   first order:  tau1 = tau10 + tau20/2,  theta = theta0 + tau20/2 + sum_{i>=3} tau_i0 + sum T_j + h/2
- *   second order: tau1 = tau10, tau2 = tau20 + tau30/2, theta = theta0 + tau30/2 + sum_{i>=4} tau_i0 + sum T_j + h/2
- * A LHP zero (T0 s + 1) is first cancelled against the closest larger lag tau0:
- * (T0 s + 1)/(tau0 s + 1) ~ 1/((tau0 - T0) s + 1) (the sheet's E2: 0.08 against 0.2 gives 0.12);
- * with no larger lag it is cancelled against the largest lag below it as the gain factor T0/tau0
- * (Skogestad 2003's rule for T0 >= tau0 [mem], taken in its simplest branch).
- * For an integrating plant the integrator is the kept "infinite" lag: theta = theta0 +
- * tau10/2 + sum_{i>=2} tau_i0 + sum T_j + h/2 and kv = the slope gain.
- * A complex pole pair (damping < 1) is treated as two equal lags 1/wn (noted: the rules are not
- * meant for lightly damped plants).
- * The loop's other elements join in: the sensor's filter is one more lag, its delay adds to theta0.
+ * Low-order descriptions of a linear plant for the tuning rules, and the ultimate point of the
+ * loop. The reductions are Skogestad's half rule as implemented in analysis/ (half-rule.ts: S.
+ * Skogestad, J. Process Control 13 (2003) 291-309; reference sheet section 3, [mem]); this file
+ * only feeds it the loop's other elements (the sensor's filter as one more lag, its delay added to
+ * the plant's, half the controller sample time) and maps the result onto the rules' notation.
  */
-import { cancelPairs, loopMargins, poleZeroSummary, type PlantFrequencyResponse } from '../analysis/index.js';
+import { halfRule, loopMargins, poleZeroSummary, type PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, SensorSpec } from '../model/types.js';
 import type { LinearModel } from '../sim/index.js';
 import type { Fopdt, IntegratingDelay, Sopdt, UltimatePoint } from './low-order.js';
@@ -31,98 +18,39 @@ export interface LoopElements {
   sensor: Pick<SensorSpec, 'delay' | 'filterTime'>;
 }
 
-/** Result of `halfRule`. */
-export interface HalfRuleResult {
+/** Result of `lowOrderOf`. */
+export interface LowOrderModels {
   fopdt: Fopdt | null;
   sopdt: Sopdt | null;
   integrating: IntegratingDelay | null;
   notes: string[];
 }
 
-/** Half-rule approximations of a linear plant with its loop elements. */
-export function halfRule(model: LinearModel, loop: LoopElements): HalfRuleResult {
-  const notes: string[] = [];
-  const empty = { fopdt: null, sopdt: null, integrating: null, notes };
+/** First/second order plus delay (or integrating plus delay) approximations of a linear plant in its loop. */
+export function lowOrderOf(model: LinearModel, loop: LoopElements): LowOrderModels {
+  const empty = (notes: string[]): LowOrderModels => ({ fopdt: null, sopdt: null, integrating: null, notes });
   const s = poleZeroSummary(model);
-  if (s.identicallyZero) {
-    notes.push('the output does not respond to the input');
-    return empty;
+  if (s.identicallyZero) return empty(['the output does not respond to the input']);
+  const hr = halfRule({
+    gain: s.lowFrequencyGain,
+    poles: s.poles,
+    zeros: s.zeros,
+    delay: model.delay + loop.sensor.delay,
+    sampleTime: loop.sampleTime,
+    extraLags: loop.sensor.filterTime > 0 ? [loop.sensor.filterTime] : [],
+  });
+  const notes = [...hr.notes];
+  const f = hr.firstOrder;
+  if (f === null) return empty(notes);
+  if (hr.integrating) return { fopdt: null, sopdt: null, integrating: { kv: f.gain, theta: f.delay }, notes };
+  if (!(f.timeConstant > 0)) {
+    notes.push('no lag left: a pure delay (or static) plant; the lag-based rules do not apply');
+    return empty(notes);
   }
-  const { poles, zeros } = cancelPairs(s.poles, s.zeros);
-  const tol0 = 1e-9 * Math.max(1, ...poles.map((p) => Math.hypot(p.re, p.im)));
-  const lags: number[] = [];
-  let integrators = 0;
-  let complex = false;
-  for (const p of poles) {
-    const r = Math.hypot(p.re, p.im);
-    if (r <= tol0) integrators++;
-    else if (p.re > 0) {
-      notes.push('the plant has an unstable pole: the tuning rules do not apply');
-      return empty;
-    } else if (Math.abs(p.im) > 1e-3 * r) {
-      // (A repeated real pole comes out of the eigenvalue routine split by ~1e-5 relative: real.)
-      if (p.im > 0) {
-        lags.push(1 / r, 1 / r);
-        complex = true;
-      }
-    } else lags.push(1 / r);
-  }
-  if (complex) notes.push('complex poles approximated as pairs of lags 1/wn');
-  if (integrators > 1) {
-    notes.push('more than one integrator: the tuning rules do not apply');
-    return empty;
-  }
-  if (loop.sensor.filterTime > 0) lags.push(loop.sensor.filterTime);
-  lags.sort((a, b) => b - a);
-
-  let inverse = 0;
-  let gainFactor = 1;
-  for (const z of zeros) {
-    const r = Math.hypot(z.re, z.im);
-    if (r <= tol0) {
-      notes.push('a zero at the origin: the plant has no static gain; the tuning rules do not apply');
-      return empty;
-    }
-    if (Math.abs(z.im) > 1e-3 * r) {
-      notes.push('complex zeros ignored by the approximation');
-      continue;
-    }
-    if (z.re > 0) {
-      inverse += 1 / r; // RHP zero: its time constant joins the delay
-      continue;
-    }
-    const t0 = 1 / r; // LHP zero (T0 s + 1)
-    let j = -1;
-    for (let i = 0; i < lags.length; i++) if (lags[i] >= t0) j = i; // smallest lag >= T0
-    if (j >= 0) {
-      lags[j] -= t0;
-      if (lags[j] <= 0) lags.splice(j, 1);
-    } else if (lags.length > 0) {
-      gainFactor *= t0 / lags[0]; // largest lag below T0: (T0 s + 1)/(tau0 s + 1) ~ T0/tau0
-      lags.shift();
-    }
-    lags.sort((a, b) => b - a);
-  }
-  const theta0 = model.delay + loop.sensor.delay + loop.sampleTime / 2 + inverse;
-  const sum = (from: number): number => lags.slice(from).reduce((a, b) => a + b, 0);
-
-  if (integrators === 1) {
-    const kv = s.lowFrequencyGain * gainFactor;
-    const theta = theta0 + (lags.length > 0 ? lags[0] / 2 + sum(1) : 0);
-    return { fopdt: null, sopdt: null, integrating: { kv, theta }, notes };
-  }
-  const k = s.staticGain * gainFactor;
-  if (!Number.isFinite(k) || k === 0) {
-    notes.push('no finite non-zero static gain');
-    return empty;
-  }
-  if (lags.length === 0) {
-    notes.push('no lag left: a pure delay (or static) plant');
-    return empty;
-  }
-  const l = (i: number): number => (i < lags.length ? lags[i] : 0);
-  const fopdt: Fopdt = { k, tau1: l(0) + l(1) / 2, theta: theta0 + l(1) / 2 + sum(2) };
-  const sopdt: Sopdt | null = lags.length >= 2 ? { k, tau1: l(0), tau2: l(1) + l(2) / 2, theta: theta0 + l(2) / 2 + sum(3) } : null;
+  const fopdt: Fopdt = { k: f.gain, tau1: f.timeConstant, theta: f.delay };
+  const so = hr.secondOrder;
+  const sopdt: Sopdt | null =
+    so !== null && so.timeConstants[1] > 0 ? { k: so.gain, tau1: so.timeConstants[0], tau2: so.timeConstants[1], theta: so.delay } : null;
   return { fopdt, sopdt, integrating: null, notes };
 }
 

@@ -12,8 +12,8 @@ export { simcPi, simcPid, simcIntegratingPi, simcImprovedPid } from './rules/sim
 export { amigoPi, amigoPid, amigoIntegratingPi, amigoIntegratingPid, amigoSetpointWeight } from './rules/amigo.js';
 export { TUNING_RULES } from './rule-table.js';
 export type { TuningRule, RuleInputs, RuleParameters } from './rule-table.js';
-export { halfRule, ultimateFromModel, proportionalGains } from './approximation.js';
-export type { HalfRuleResult, LoopElements } from './approximation.js';
+export { lowOrderOf, ultimateFromModel, proportionalGains } from './approximation.js';
+export type { LowOrderModels, LoopElements } from './approximation.js';
 export { RELAY_CAUTION } from './caution.js';
 export { RelayController } from './relay-controller.js';
 export type { RelaySettings } from './relay-controller.js';

@@ -4,7 +4,7 @@
  * file's uncertainty).
  */
 import type { ControllerStructure, GainSet, PidForm, PlantSpec } from '../model/types.js';
-import { halfRule, ultimateFromModel, type LoopElements } from './approximation.js';
+import { lowOrderOf, ultimateFromModel, type LoopElements } from './approximation.js';
 import { RELAY_CAUTION } from './caution.js';
 import { DEFAULT_COST, type CostSpec } from './cost.js';
 import { evaluateGains, type GainEvaluation, type GainFlag } from './evaluate.js';
@@ -87,7 +87,7 @@ export function ruleInputsOf(ctx: TuningContext): { inputs: RuleInputs; notes: s
     return { inputs: { fopdt: null, sopdt: null, integrating: null, ultimate: null }, notes };
   }
   const loop = loopElementsOf(ctx.spec);
-  const hr = halfRule(ctx.linear, loop);
+  const hr = lowOrderOf(ctx.linear, loop);
   for (const n of hr.notes) notes.push(n);
   const k = hr.fopdt?.k ?? hr.integrating?.kv ?? hr.sopdt?.k ?? 1;
   const ultimate = ultimateFromModel(ctx.response, loop, k < 0 ? -1 : 1);

@@ -7,7 +7,7 @@ import { expectClose } from '../helpers/expect-close.js';
 import { lagChainWithZeros, product, tf, ideal, margins } from './tf.js';
 import { plantFrequencyResponse } from '../../src/analysis/index.js';
 import { toIdeal } from '../../src/model/index.js';
-import { halfRule, ultimateFromModel } from '../../src/tune/approximation.js';
+import { lowOrderOf as halfRule, ultimateFromModel } from '../../src/tune/approximation.js';
 import { simcIntegratingPi, simcPi, simcPid } from '../../src/tune/rules/simc.js';
 import { amigoPi } from '../../src/tune/rules/amigo.js';
 import { znStepPi } from '../../src/tune/rules/ziegler-nichols-step.js';
@@ -23,7 +23,7 @@ const asIdeal = (g: RuleGains) => {
 };
 const fopdt = (k: number, T: number, L: number) => tf([k], [T, 1], L);
 
-describe('half rule (Skogestad, J. Process Control 13, 2003; sheet §3 worked examples [mem] plants, arithmetic re-done)', () => {
+describe('low-order models through analysis\' half rule (Skogestad, J. Process Control 13, 2003; sheet §3 worked examples [mem] plants, arithmetic re-done)', () => {
   it('E1: 1/((s+1)(0.2s+1)) -> first order k=1, tau1=1.1, theta=0.1; second order exact (theta=0)', () => {
     const r = halfRule(tf([1], product([1, 1], [0.2, 1])), continuous);
     expectClose(r.fopdt!.k, 1, { abs: 1e-9 });
