@@ -3,6 +3,7 @@
  */
 import type { ControllerSpec, ControllerStructure, GainSet } from '../model/types.js';
 import type { DiscreteController } from '../sim/index.js';
+import { buildStructure, type StructurePlant } from './build-structure.js';
 import { PidController } from './pid.js';
 
 /**
@@ -27,8 +28,12 @@ export function applyStructure(structure: ControllerStructure, g: GainSet): Gain
 /**
  * Build the controller of a plant file's loop.
  * @param sampleTime controller sample time, s (the loop's sample_time)
+ * @param plant the plant's disturbance names, needed by structures that measure a disturbance
+ *   (feedforward, a schedule on a disturbance); a structure (`spec.extension`) must be resolved
+ *   (see build-structure.ts)
  */
-export function buildController(spec: ControllerSpec, sampleTime: number): DiscreteController {
+export function buildController(spec: ControllerSpec, sampleTime: number, plant?: StructurePlant): DiscreteController {
+  if (spec.extension !== undefined) return buildStructure(spec, applyStructure(spec.structure, spec.gains), sampleTime, plant);
   return new PidController(applyStructure(spec.structure, spec.gains), {
     sampleTime,
     outputMin: spec.outputMin,

@@ -8,3 +8,14 @@ export { FORM_TERMS, fromIdeal, seriesRealizable, toIdeal, idealToSeries, conver
 export type { IdealTerms, ParallelTerms } from './forms.js';
 export { velocityForm, runVelocityForm, DISCRETISATION_METHODS } from './velocity-form.js';
 export type { VelocityForm, DiscretisationMethod } from './velocity-form.js';
+export { SmithPredictor, checkSmithModel, delaySamples } from './smith-predictor.js';
+export type { SmithModel } from './smith-predictor.js';
+export { FeedforwardController, checkFeedforward } from './feedforward.js';
+export type { FeedforwardLaw } from './feedforward.js';
+export { CascadeController } from './cascade.js';
+export type { CascadeOptions } from './cascade.js';
+export { ScheduledController, interpolateSchedule } from './gain-schedule.js';
+export type { ScheduleRow, ScheduleVariable } from './gain-schedule.js';
+export { buildStructure, isResolved } from './build-structure.js';
+export type { StructurePlant } from './build-structure.js';
+export { namedWeights, TWO_DOF_NAMES } from './two-dof.js';

@@ -230,6 +230,29 @@ export class PidController implements DiscreteController {
 
   setGains(g: GainSet): void {
     checkGains(g);
+    this.beginRetune();
+    this.gainsNow = { ...g };
+    this.load(g);
+  }
+
+  /**
+   * Change only kc, ti and td (every other setting kept), bumplessly as `setGains` does, without
+   * allocating: for laws that move the gains every sample (a gain schedule).
+   */
+  setTerms(kc: number, ti: number, td: number): void {
+    const g = this.gainsNow;
+    if (!Number.isFinite(kc)) throw new RangeError(`kc must be finite, got ${kc}`);
+    if (!(ti > 0)) throw new RangeError(`ti must be > 0 (Infinity = no integral), got ${ti}`);
+    if (!(td >= 0) || !Number.isFinite(td)) throw new RangeError(`td must be finite and >= 0, got ${td}`);
+    if (kc === g.kc && ti === g.ti && td === g.td) return;
+    this.beginRetune();
+    g.kc = kc;
+    g.ti = ti;
+    g.td = td;
+    this.load(g);
+  }
+
+  private beginRetune(): void {
     if (this.pending) this.integrate(this.limit(this.v));
     if (!this.retune) {
       // Keep the coefficients that produced the last output, even if gains change twice.
@@ -240,7 +263,5 @@ export class PidController implements DiscreteController {
       this.bdOld = this.bd;
       this.retune = true;
     }
-    this.gainsNow = { ...g };
-    this.load(g);
   }
 }

@@ -180,6 +180,8 @@ export interface FeedforwardSpec {
   gain: number | null;
   /** null = static; else F(s) = (lead s + 1)/(lag s + 1), null times taken from the model. */
   leadLag: { lead: number | null; lag: number | null } | null;
+  /** Dead time of the feedforward path, s; null = from the model with a model lead-lag, else 0. */
+  delay: number | null;
 }
 
 /** Cascade: the outer law (the ControllerSpec's gains) sets the setpoint of an inner PI loop. */
@@ -274,6 +276,11 @@ export interface Requirements {
   dampingRatio?: number;
   /** Settling band as a fraction of the step (default 0.02). */
   settlingBand?: number;
+  /**
+   * Also check every requirement as its worst case over the `uncertainty` ranges (nominal plus
+   * every corner of the box). Absent = nominal only.
+   */
+  worstCase?: boolean;
 }
 
 export type IntegratorName = 'rk4' | 'heun' | 'euler';
