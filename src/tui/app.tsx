@@ -11,7 +11,7 @@ import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
 import { defaultSwitchTime, editFromSpec, evaluate, fileGainSwitches, rehearsalTrial, runningGains, type Evaluation, type LoopSetup } from './engine.js';
-import { HINT, keyToken } from './keymap.js';
+import { HINT, keyTokens } from './keymap.js';
 import { computeLayout, type Layout } from './layout.js';
 import { LiveRun } from './live-run.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
@@ -252,8 +252,7 @@ export function App(props: AppProps) {
 
   // ---------------------------------------------------------------- keys
   useInput((input, key) => {
-    const token = keyToken(input, key);
-    if (token !== '') dispatch({ type: 'press', token });
+    for (const token of keyTokens(input, key)) dispatch({ type: 'press', token });
   });
 
   useEffect(() => {

@@ -136,6 +136,21 @@ export function keyToken(input: string, key: KeyFlags): string {
   return '';
 }
 
+/**
+ * All key tokens of one Ink input event. Keys that arrive together in one read (a held key
+ * repeating, fast typing over a slow link) come as one multi-character input; each character is
+ * its own key here, so none is lost.
+ */
+export function keyTokens(input: string, key: KeyFlags): string[] {
+  const special =
+    key.upArrow || key.downArrow || key.leftArrow || key.rightArrow || key.pageUp || key.pageDown || key.return || key.escape || key.tab || key.backspace || key.delete;
+  if (input.length > 1 && !special && !key.ctrl && !key.meta) {
+    return [...input].map((c) => keyToken(c, {})).filter((t) => t !== '');
+  }
+  const t = keyToken(input, key);
+  return t === '' ? [] : [t];
+}
+
 const byToken = new Map<string, KeyCommand>();
 for (const b of KEYMAP) {
   for (const k of b.keys) {

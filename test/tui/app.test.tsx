@@ -126,6 +126,12 @@ describe('tui app: editing', () => {
     expect(shown(s.frame(), 'Kc')).toBe('2.2');
   });
 
+  it('a held key (several in one read) nudges once per repeat', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(']]]');
+    expect(shown(s.frame(), 'Kc')).toBe('2.662');
+  });
+
   it('arrows move the selection marker and nudge the selected parameter', async () => {
     const s = await mount('surge-tank.yaml');
     await s.press(KEY.down);

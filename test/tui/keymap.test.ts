@@ -2,7 +2,7 @@
  * The keymap is the one source for the key handler and the help overlay.
  */
 import { describe, it, expect } from 'vitest';
-import { commandFor, HINT, helpLines, keyLabel, keyToken, KEYMAP, PROMPT_KEYS } from '../../src/tui/keymap.js';
+import { commandFor, HINT, helpLines, keyLabel, keyToken, keyTokens, KEYMAP, PROMPT_KEYS } from '../../src/tui/keymap.js';
 
 describe('tui keymap', () => {
   it('every key of the table resolves to its own command', () => {
@@ -41,6 +41,13 @@ describe('tui keymap', () => {
     expect(commandFor('shift-tab')).toBe('select_prev');
     expect(commandFor('ctrl-c')).toBe('quit');
     expect(commandFor('Q')).toBeNull();
+  });
+
+  it('keys that arrive in one read are each a key (a held key repeating)', () => {
+    expect(keyTokens(']]]', {})).toEqual([']', ']', ']']);
+    expect(keyTokens('uS', { shift: true })).toEqual(['u', 'S']);
+    expect(keyTokens('', { upArrow: true })).toEqual(['up']);
+    expect(keyTokens('', {})).toEqual([]);
   });
 
   it('the hint line fits an 80-column terminal and names help and quit', () => {

@@ -1,0 +1,154 @@
+/**
+ * The screen end to end, as a person uses it: the built `looprig` in a real terminal (tmux,
+ * 80x24), keys sent, the pane read back. Raises the proportional gain and checks that the shown
+ * gain and the shown overshoot both change, resizes to 120x40 and back, quits and checks the exit
+ * status and that the terminal was given back (alternate screen left, cursor shown).
+ *
+ * Skipped, with a message, only when tmux is not installed.
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, symlinkSync, writeFileSync, copyFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
+const hasTmux = spawnSync('tmux', ['-V'], { encoding: 'utf8' }).status === 0;
+if (!hasTmux) console.warn('tui e2e: tmux is not installed, the end-to-end screen test is skipped');
+
+const socket = `looprig-e2e-${process.pid}-${Math.random().toString(36).slice(2, 8)}`;
+let work = '';
+let bin = '';
+let buildReport = '';
+
+function newestSource(dir: string): number {
+  let newest = 0;
+  for (const name of readdirSync(dir)) {
+    const p = join(dir, name);
+    const st = statSync(p);
+    newest = Math.max(newest, st.isDirectory() ? newestSource(p) : st.mtimeMs);
+  }
+  return newest;
+}
+
+/** dist/cli/bin.js when it is newer than every source file; otherwise a fresh build in a temp folder. */
+function builtBin(): string {
+  const dist = join(root, 'dist', 'cli', 'bin.js');
+  if (existsSync(dist) && existsSync(join(root, 'dist', 'tui', 'index.js')) && statSync(dist).mtimeMs > newestSource(join(root, 'src'))) {
+    return dist;
+  }
+  const pkg = join(work, 'pkg');
+  spawnSync('mkdir', ['-p', pkg]);
+  copyFileSync(join(root, 'package.json'), join(pkg, 'package.json'));
+  symlinkSync(join(root, 'node_modules'), join(pkg, 'node_modules'), 'dir');
+  symlinkSync(join(root, 'plants'), join(pkg, 'plants'), 'dir');
+  const tsconfig = {
+    extends: join(root, 'tsconfig.json'),
+    compilerOptions: { noEmit: false, declaration: false, typeRoots: [join(root, 'node_modules', '@types')], rootDir: join(root, 'src'), outDir: join(pkg, 'dist') },
+    include: [],
+    files: [join(root, 'src', 'cli', 'bin.ts')],
+  };
+  writeFileSync(join(pkg, 'tsconfig.json'), JSON.stringify(tsconfig));
+  const tsc = spawnSync(process.execPath, [join(root, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', join(pkg, 'tsconfig.json')], { encoding: 'utf8' });
+  const out = join(pkg, 'dist', 'cli', 'bin.js');
+  // Type errors are the type-check's business (npm test runs tsc first); tsc still emits, and
+  // whether that program works is what this test finds out. Keep the report for failures.
+  buildReport = tsc.status === 0 ? '' : `\n(tsc reported, status ${tsc.status}:\n${tsc.stdout}${tsc.stderr})`;
+  if (!existsSync(out)) throw new Error(`tsc emitted no bin (${tsc.status}):\n${tsc.stdout}${tsc.stderr}`);
+  return out;
+}
+
+function tmux(...args: string[]): string {
+  const r = spawnSync('tmux', ['-L', socket, ...args], { encoding: 'utf8' });
+  if (r.status !== 0) throw new Error(`tmux ${args.join(' ')}: ${r.stderr}`);
+  return r.stdout;
+}
+
+/** Type characters literally (tmux would read some, like ']', as key names). */
+const type = (chars: string): void => {
+  for (const c of chars) tmux('send-keys', '-t', 'screen', '-l', c);
+};
+const pane = (): string => tmux('capture-pane', '-p', '-t', 'screen');
+const sleep = (ms: number): Promise<void> => new Promise((r) => setTimeout(r, ms));
+
+async function waitFor(pred: (text: string) => boolean, what: string, ms = 20000): Promise<string> {
+  const end = Date.now() + ms;
+  let text = '';
+  for (;;) {
+    text = pane();
+    if (pred(text)) return text;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}; the pane shows:\n${text}${buildReport}`);
+    await sleep(100);
+  }
+}
+
+const kcShown = (text: string): string | null => /^> Kc\s+(\S+)/m.exec(text)?.[1] ?? null;
+const overshootShown = (text: string): string | null => /│overshoot\s+(?:[≤≥] \S+ %\s+)?(\S+ %)/.exec(text)?.[1] ?? null;
+
+beforeAll(() => {
+  if (!hasTmux) return;
+  work = mkdtempSync(join(tmpdir(), 'looprig-e2e-'));
+  bin = builtBin();
+}, 180_000);
+
+afterAll(() => {
+  if (hasTmux) spawnSync('tmux', ['-L', socket, 'kill-server']);
+  if (work !== '') rmSync(work, { recursive: true, force: true });
+});
+
+describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
+  it('raise Kc, see gain and overshoot change, resize, quit, terminal restored', async () => {
+    const exitFile = join(work, 'exit');
+    // CI variables make Ink hold every frame back until exit: a person's terminal has none.
+    const command = [
+      `cd '${root}'`,
+      `env -u CI -u CONTINUOUS_INTEGRATION TERM=xterm-256color '${process.execPath}' '${bin}' plants/surge-tank.yaml`,
+      `echo EXIT=$? > '${exitFile}'`,
+      'sleep 120',
+    ].join('; ');
+    tmux('new-session', '-d', '-s', 'screen', '-x', '80', '-y', '24', command);
+
+    // The safety caution comes first; any key goes on.
+    await waitFor((t) => t.includes('press any key to continue'), 'the safety caution');
+    type('x');
+    let text = await waitFor((t) => kcShown(t) !== null && overshootShown(t) !== null, 'the gain and metrics panels');
+    const kc0 = kcShown(text);
+    const os0 = overshootShown(text);
+
+    // Raise the proportional gain: three coarse steps of 10 %.
+    type(']]]');
+    text = await waitFor((t) => kcShown(t) !== kc0 && t.includes('[unsaved]'), 'the raised gain');
+    await sleep(300);
+    text = pane();
+    expect(Number(kcShown(text))).toBeCloseTo(Number(kc0) * 1.331, 3);
+    expect(overshootShown(text)).not.toBe(os0);
+    const kcRaised = kcShown(text);
+
+    // Bigger terminal: more panels; back to 80x24: the small layout again, intact.
+    tmux('resize-window', '-t', 'screen', '-x', '120', '-y', '40');
+    text = await waitFor((t) => t.includes('Controller output') && t.includes('Notices'), 'the large layout');
+    for (const line of text.split('\n')) expect(line.length).toBeLessThanOrEqual(120);
+    tmux('resize-window', '-t', 'screen', '-x', '80', '-y', '24');
+    text = await waitFor((t) => !t.includes('Controller output') && t.includes('Trial trend'), 'the small layout');
+    await sleep(300);
+    text = pane();
+    const lines = text.split('\n');
+    for (const line of lines) expect(line.length).toBeLessThanOrEqual(80);
+    expect(lines[0]).toMatch(/^surge-tank\.yaml \[unsaved\] │ instant/);
+    expect(lines[22]).toContain('? keys');
+    expect(kcShown(text)).toBe(kcRaised);
+    expect(text.match(/Gain set/g)).toHaveLength(1);
+    expect(text.match(/Trial trend/g)).toHaveLength(1);
+
+    // Quit: unsaved changes, so it asks first.
+    type('q');
+    await waitFor((t) => t.includes('Quit without saving? (y/n)'), 'the quit question');
+    type('y');
+    const end = Date.now() + 15000;
+    while (!existsSync(exitFile) && Date.now() < end) await sleep(100);
+    expect(readFileSync(exitFile, 'utf8').trim()).toBe('EXIT=0');
+    // The terminal is given back: main screen, cursor visible.
+    expect(tmux('display-message', '-p', '-t', 'screen', '#{alternate_on} #{cursor_flag}').trim()).toBe('0 1');
+  }, 120_000);
+});
