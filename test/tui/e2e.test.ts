@@ -69,14 +69,35 @@ function tmux(...args: string[]): string {
 const type = (chars: string): void => {
   for (const c of chars) tmux('send-keys', '-t', 'screen', '-l', c);
 };
-const pane = (): string => tmux('capture-pane', '-p', '-t', 'screen');
+const pane = (session = 'screen'): string => tmux('capture-pane', '-p', '-t', session);
+
+/** Start `looprig ARGS` in a new 80x24 session; the shell writes EXIT=<status> to `exitFile` after it. */
+function start(session: string, args: string, exitFile: string): void {
+  // CI variables make Ink hold every frame back until exit: a person's terminal has none.
+  const command = [
+    `cd '${root}'`,
+    `env -u CI -u CONTINUOUS_INTEGRATION TERM=xterm-256color '${process.execPath}' '${bin}' ${args}`,
+    `echo EXIT=$? > '${exitFile}'`,
+    'sleep 120',
+  ].join('; ');
+  tmux('new-session', '-d', '-s', session, '-x', '80', '-y', '24', command);
+}
+
+async function exitStatus(exitFile: string): Promise<string> {
+  const end = Date.now() + 15000;
+  while (!existsSync(exitFile) && Date.now() < end) await sleep(100);
+  return existsSync(exitFile) ? readFileSync(exitFile, 'utf8').trim() : 'no exit';
+}
+
+/** Alternate screen off and cursor shown: the terminal was given back. */
+const restored = (session: string): string => tmux('display-message', '-p', '-t', session, '#{alternate_on} #{cursor_flag}').trim();
 const sleep = (ms: number): Promise<void> => new Promise((r) => setTimeout(r, ms));
 
-async function waitFor(pred: (text: string) => boolean, what: string, ms = 20000): Promise<string> {
+async function waitFor(pred: (text: string) => boolean, what: string, ms = 20000, session = 'screen'): Promise<string> {
   const end = Date.now() + ms;
   let text = '';
   for (;;) {
-    text = pane();
+    text = pane(session);
     if (pred(text)) return text;
     if (Date.now() > end) throw new Error(`timed out waiting for ${what}; the pane shows:\n${text}${buildReport}`);
     await sleep(100);
@@ -100,14 +121,7 @@ afterAll(() => {
 describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
   it('raise Kc, see gain and overshoot change, resize, quit, terminal restored', async () => {
     const exitFile = join(work, 'exit');
-    // CI variables make Ink hold every frame back until exit: a person's terminal has none.
-    const command = [
-      `cd '${root}'`,
-      `env -u CI -u CONTINUOUS_INTEGRATION TERM=xterm-256color '${process.execPath}' '${bin}' plants/surge-tank.yaml`,
-      `echo EXIT=$? > '${exitFile}'`,
-      'sleep 120',
-    ].join('; ');
-    tmux('new-session', '-d', '-s', 'screen', '-x', '80', '-y', '24', command);
+    start('screen', 'plants/surge-tank.yaml', exitFile);
 
     // The safety caution comes first; any key goes on.
     await waitFor((t) => t.includes('press any key to continue'), 'the safety caution');
@@ -145,10 +159,40 @@ describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
     type('q');
     await waitFor((t) => t.includes('Quit without saving? (y/n)'), 'the quit question');
     type('y');
-    const end = Date.now() + 15000;
-    while (!existsSync(exitFile) && Date.now() < end) await sleep(100);
-    expect(readFileSync(exitFile, 'utf8').trim()).toBe('EXIT=0');
+    expect(await exitStatus(exitFile)).toBe('EXIT=0');
     // The terminal is given back: main screen, cursor visible.
-    expect(tmux('display-message', '-p', '-t', 'screen', '#{alternate_on} #{cursor_flag}').trim()).toBe('0 1');
+    expect(restored('screen')).toBe('0 1');
   }, 120_000);
+
+  it('Ctrl-C with nothing to save quits at once; SIGTERM ends it with 143; both give the terminal back', async () => {
+    const ctrlc = join(work, 'exit-ctrlc');
+    const term = join(work, 'exit-term');
+    start('ctrlc', 'plants/surge-tank.yaml', ctrlc);
+    start('term', 'plants/surge-tank.yaml', term);
+    await waitFor((t) => t.includes('press any key to continue'), 'the caution (ctrlc)', 30000, 'ctrlc');
+    await waitFor((t) => t.includes('press any key to continue'), 'the caution (term)', 30000, 'term');
+    tmux('send-keys', '-t', 'ctrlc', 'C-c');
+    await waitFor((t) => t.includes('Trial trend'), 'the screen after the caution', 20000, 'ctrlc');
+    tmux('send-keys', '-t', 'ctrlc', 'C-c');
+    expect(await exitStatus(ctrlc)).toBe('EXIT=0');
+    expect(restored('ctrlc')).toBe('0 1');
+
+    // The screen process is the child of the session's shell.
+    const shell = tmux('display-message', '-p', '-t', 'term', '#{pane_pid}').trim();
+    const child = spawnSync('ps', ['-o', 'pid=', '--ppid', shell], { encoding: 'utf8' }).stdout.trim().split(/\s+/)[0];
+    expect(child).toMatch(/^\d+$/);
+    process.kill(Number(child), 'SIGTERM');
+    expect(await exitStatus(term)).toBe('EXIT=143');
+    expect(restored('term')).toBe('0 1');
+  }, 120_000);
+
+  it('a plant file that fails to load: FILE:LINE:COL on the terminal, exit 2, no stack trace', async () => {
+    const exitFile = join(work, 'exit-bad');
+    start('bad', 'test/fixtures/bad/unknown-type.yaml', exitFile);
+    expect(await exitStatus(exitFile)).toBe('EXIT=2');
+    const text = pane('bad');
+    expect(text).toMatch(/test\/fixtures\/bad\/unknown-type\.yaml:\d+:\d+: /);
+    expect(text).not.toMatch(/^\s+at /m);
+    expect(restored('bad')).toBe('0 1');
+  }, 60_000);
 });
