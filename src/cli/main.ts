@@ -2,6 +2,7 @@
  * Command dispatch: parse, map to one core call per command, print, return an exit code.
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
+import { checkCommand } from './commands/check.js';
 import { exportCommand } from './commands/export.js';
 import { fitCommand } from './commands/fit.js';
 import { optimizeCommand } from './commands/optimize.js';
@@ -32,6 +33,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await runCommand(rest, io);
       case 'export':
         return await exportCommand(rest, io);
+      case 'check':
+        return await checkCommand(rest, io);
       case 'suggest':
         return await suggestCommand(rest, io);
       case 'optimize':

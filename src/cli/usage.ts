@@ -4,6 +4,9 @@ export const USAGE = `looprig - try PID gains on a simulated process before touc
 Usage:
   looprig                       run the bundled demo plant (surge tank level)
   looprig run FILE [options]    simulate the trial described in a plant file and report metrics
+  looprig check FILE|DIR...      validate plant files, run their trials, check their requirements;
+                                exit 0 all pass, 1 a requirement failed, 2 an invalid file
+                                (looprig check --help)
   looprig export FILE [options] the gains in your controller's form and units, and discrete
                                 velocity-form coefficients (looprig export --help)
   looprig help                  show this text

@@ -125,6 +125,15 @@ export class Reader {
     return node.value;
   }
 
+  /** true or false. */
+  boolean(node: YNode, path: string): boolean | undefined {
+    if (node.kind !== 'scalar' || typeof node.value !== 'boolean') {
+      this.error('WRONG_TYPE', `${path} must be true or false, not ${describe(node)}`, node.span);
+      return undefined;
+    }
+    return node.value;
+  }
+
   /** One of `choices`; BAD_CHOICE otherwise. */
   choice<T extends string>(node: YNode, path: string, choices: readonly T[]): T | undefined {
     const s = this.string(node, path);

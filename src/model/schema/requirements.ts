@@ -4,7 +4,7 @@ import type { YNode } from '../yaml-doc.js';
 import type { NumberRule, Reader } from './reader.js';
 
 interface ReqField {
-  key: keyof Requirements;
+  key: Exclude<keyof Requirements, 'worstCase'>;
   time: boolean;
   rule: NumberRule;
 }
@@ -26,7 +26,7 @@ const REQUIREMENT_FIELDS: Readonly<Record<string, ReqField>> = {
   settling_band: { key: 'settlingBand', time: false, rule: { gt: 0, lt: 1 } },
 };
 
-export const REQUIREMENTS_KEYS: readonly string[] = Object.keys(REQUIREMENT_FIELDS);
+export const REQUIREMENTS_KEYS: readonly string[] = [...Object.keys(REQUIREMENT_FIELDS), 'worst_case'];
 
 /** Default settling band (2 % of the step): common practice, no source. */
 export const DEFAULT_SETTLING_BAND = 0.02;
@@ -36,6 +36,11 @@ export function readRequirements(r: Reader, node: YNode | undefined, owner: Span
   if (node) {
     const f = r.fields(node, 'loop.requirements', REQUIREMENTS_KEYS, owner);
     for (const e of f?.map.entries ?? []) {
+      if (e.key === 'worst_case') {
+        const v = r.boolean(e.value, 'loop.requirements.worst_case');
+        if (v !== undefined) out.worstCase = v;
+        continue;
+      }
       if (!Object.prototype.hasOwnProperty.call(REQUIREMENT_FIELDS, e.key)) continue;
       const spec = REQUIREMENT_FIELDS[e.key];
       const v = r.numberOrTime(e.value, `loop.requirements.${e.key}`, spec.time, spec.rule);

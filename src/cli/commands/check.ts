@@ -1,0 +1,274 @@
+/**
+ * `looprig check FILE|DIR... [--json] [--shard I/N] [--svg DIR]`: validate each plant file, run
+ * its trial, evaluate its requirements (time and frequency domain, and the worst case over the
+ * uncertainty box when the file sets `worst_case: true`) and print one table.
+ *
+ * Exit status: 0 every requirement of every file passes; 1 some requirement fails or cannot be
+ * evaluated ("not available" never passes a CI job); 2 a file is invalid (not a plant file, YAML
+ * or schema errors, unreadable), bad arguments, or no plant file found. 2 wins over 1.
+ */
+import { mkdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { parseArgs } from 'node:util';
+import { formatDiagnostic, loadPlant } from '../../model/index.js';
+import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
+import { UserError } from '../errors.js';
+import { findPlantFiles, parseShard, shardOf, topLevelKeys, type PlantFileEntry } from '../find-plant-files.js';
+import { num, table } from '../format.js';
+import type { Io } from '../io.js';
+import { finiteOrNull, toJson } from '../json.js';
+import { trialPlotSvg } from '../trial-plot.js';
+
+export const CHECK_USAGE = `Usage: looprig check FILE|DIR... [options]
+
+Validates each plant file, runs its trial and checks its requirements: overshoot_pct, rise_time,
+settling_time, steady_state_error, iae, max_output, saturated_time (from the simulated trial) and
+bandwidth, damping_ratio, max_sensitivity, gain_margin, phase_margin_deg (from the loop linearised
+at the trial's starting point). With 'worst_case: true' under loop.requirements each one is also
+checked as its worst case over the file's uncertainty ranges (nominal plus every corner).
+Folders are searched for *.yaml / *.yml files with top-level 'model' and 'loop'; other YAML files
+found that way are skipped (named explicitly, they are an error).
+
+Options:
+  --json          one JSON document on stdout
+  --shard I/N     check only shard I of N (1 <= I <= N): the files at positions I, I+N, I+2N ...
+                  of the sorted list, so N CI jobs together check every file exactly once
+  --svg DIR       write a plot of each failing file's trial to DIR (created if needed)
+  -h, --help      show this text
+
+Exit status: 0 all pass, 1 a requirement failed (or could not be evaluated),
+2 an invalid file, bad arguments, or no plant file found.
+`;
+
+interface CheckArgs {
+  paths: string[];
+  json: boolean;
+  shard: { index: number; count: number } | null;
+  svg: string | null;
+}
+
+function parseCheckArgs(args: readonly string[]): CheckArgs | 'help' {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...args],
+      allowPositionals: true,
+      strict: true,
+      options: {
+        json: { type: 'boolean' },
+        shard: { type: 'string' },
+        svg: { type: 'string' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    });
+  } catch (error) {
+    throw new UserError(`check: ${(error as Error).message}`);
+  }
+  const { values, positionals } = parsed;
+  if (values.help) return 'help';
+  if (positionals.length === 0) throw new UserError('check: missing FILE or DIR');
+  return {
+    paths: positionals,
+    json: values.json === true,
+    shard: values.shard === undefined ? null : parseShard(values.shard),
+    svg: values.svg ?? null,
+  };
+}
+
+/** The outcome for one file of the list. */
+export interface FileOutcome {
+  file: string;
+  status: 'pass' | 'fail' | 'invalid';
+  plant: string | null;
+  check: PlantCheck | null;
+  /** Why the file is invalid (already printed to stderr as FILE:LINE:COL lines). */
+  errors: string[];
+  warnings: string[];
+  svg: string | null;
+}
+
+/** Load and check one file; diagnostics go to stderr. */
+function checkFile(entry: PlantFileEntry, io: Io): FileOutcome {
+  const file = entry.path;
+  const invalid = (errors: string[]): FileOutcome => {
+    for (const e of errors) io.err(`${e}\n`);
+    return { file, status: 'invalid', plant: null, check: null, errors, warnings: [], svg: null };
+  };
+  let text: string;
+  try {
+    text = io.readText(file);
+  } catch (error) {
+    const code = (error as { code?: string }).code;
+    return invalid([`${file}: cannot read: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : (error as Error).message}`]);
+  }
+  const keys = topLevelKeys(text);
+  if (keys !== null && !(keys.includes('model') && keys.includes('loop'))) {
+    return invalid([
+      `${file}:1:1: not a plant file: a plant file is a YAML mapping with top-level 'model' and 'loop' ` +
+        `(this one has ${keys.length > 0 ? keys.join(', ') : 'no keys'})`,
+    ]);
+  }
+  const loaded = loadPlant(text, file);
+  const errors = loaded.diagnostics.filter((d) => d.severity === 'error').map((d) => formatDiagnostic(d, text, file));
+  const warnings = loaded.diagnostics.filter((d) => d.severity !== 'error').map((d) => formatDiagnostic(d, text, file));
+  if (errors.length > 0 || loaded.plant === undefined) {
+    if (keys === null && errors.length === 0) errors.push(`${file}:1:1: not a plant file`);
+    for (const w of warnings) io.err(`${w}\n`);
+    return invalid(errors);
+  }
+  for (const w of warnings) io.err(`${w}\n`);
+  const check = checkPlant(loaded.plant);
+  return { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, check, errors: [], warnings, svg: null };
+}
+
+/** A file name for a plot of `file`: its path with separators turned into "__". */
+export function plotName(file: string): string {
+  const base = file
+    .replace(/\\/g, '/')
+    .replace(/^(\.\.?\/)+/, '')
+    .replace(/^\/+/, '')
+    .replace(/\.ya?ml$/i, '')
+    .replace(/\//g, '__')
+    .replace(/[^A-Za-z0-9_.-]/g, '_');
+  return `${base || 'plant'}.svg`;
+}
+
+/** `looprig check ...` */
+export async function checkCommand(args: readonly string[], io: Io): Promise<number> {
+  const a = parseCheckArgs(args);
+  if (a === 'help') {
+    io.out(CHECK_USAGE);
+    return 0;
+  }
+  const { files, skipped } = findPlantFiles(a.paths, io);
+  if (files.length === 0) {
+    const why = skipped.length > 0 ? ` (${skipped.length} YAML file${skipped.length === 1 ? '' : 's'} without top-level model and loop skipped)` : '';
+    throw new UserError(`check: no plant files found in ${a.paths.join(', ')}${why}`);
+  }
+  const mine = shardOf(files, a.shard);
+  const outcomes = mine.map((f) => checkFile(f, io));
+
+  if (a.svg !== null) {
+    const failing = outcomes.filter((o) => o.status === 'fail' && o.check !== null);
+    if (failing.length > 0) {
+      try {
+        mkdirSync(a.svg, { recursive: true });
+      } catch (error) {
+        throw new UserError(`check: cannot create ${a.svg}: ${(error as Error).message}`);
+      }
+    }
+    for (const o of failing) {
+      const loaded = loadPlant(io.readText(o.file), o.file).plant!;
+      const failed = o.check!.rows.filter((r) => r.status !== 'pass').map((r) => r.requirement);
+      const path = join(a.svg, plotName(o.file));
+      const nominal = o.check!.nominal;
+      const svg = trialPlotSvg({
+        plant: loaded,
+        file: o.file,
+        trace: nominal.result.trace,
+        metrics: nominal.metrics,
+        note: `FAILED: ${[...new Set(failed)].join(', ')}`,
+      });
+      try {
+        io.writeText(path, svg);
+      } catch (error) {
+        throw new UserError(`check: cannot write ${path}: ${(error as Error).message}`);
+      }
+      o.svg = path;
+    }
+  }
+
+  const invalid = outcomes.filter((o) => o.status === 'invalid').length;
+  const failed = outcomes.filter((o) => o.status === 'fail').length;
+  const code = invalid > 0 ? UserError.USAGE : failed > 0 ? UserError.FAIL : 0;
+  io.out(a.json ? toJson(checkJson(outcomes, files.length, skipped, a.shard, code)) : checkText(outcomes, files.length, a.shard));
+  return code;
+}
+
+function unitOf(r: CheckRow, v: number): string {
+  if (!Number.isFinite(v) || r.unit === '') return '';
+  return r.unit === '%' ? ' %' : ` ${r.unit}`;
+}
+
+function measuredText(r: CheckRow): string {
+  if (r.status === 'not available') return 'n/a';
+  if (r.measured === Infinity) return 'inf';
+  if (!Number.isFinite(r.measured)) return '-';
+  return `${num(r.measured, 4)}${unitOf(r, r.measured)}`;
+}
+
+/** The human-readable table. */
+export function checkText(outcomes: readonly FileOutcome[], total: number, shard: { index: number; count: number } | null): string {
+  const rows: string[][] = [['FILE', 'REQUIREMENT', 'CASE', 'MEASURED', 'LIMIT', 'RESULT', 'NOTE']];
+  for (const o of outcomes) {
+    if (o.status === 'invalid') {
+      rows.push([o.file, '-', '-', '-', '-', 'INVALID', `${o.errors.length} error${o.errors.length === 1 ? '' : 's'} (see above)`]);
+      continue;
+    }
+    const c = o.check!;
+    if (c.rows.length === 0) rows.push([o.file, '(no requirements)', '-', '-', '-', 'pass', 'the trial ran']);
+    for (const r of c.rows) {
+      rows.push([
+        o.file,
+        r.requirement,
+        r.scope,
+        measuredText(r),
+        `${r.kind === 'max' ? '<=' : '>='} ${num(r.limit, 4)}${unitOf(r, r.limit)}`,
+        r.status === 'pass' ? 'pass' : r.status === 'fail' ? 'FAIL' : 'N/A',
+        r.note,
+      ]);
+    }
+  }
+  const lines = [table(rows)];
+  const notes = outcomes.flatMap((o) => [...(o.check?.notes ?? []).map((n) => `${o.file}: ${n}`), ...(o.svg ? [`${o.file}: plot written to ${o.svg}`] : [])]);
+  if (notes.length > 0) lines.push('', 'notes:', ...notes.map((n) => `  ${n}`));
+  const pass = outcomes.filter((o) => o.status === 'pass').length;
+  const fail = outcomes.filter((o) => o.status === 'fail').length;
+  const inv = outcomes.filter((o) => o.status === 'invalid').length;
+  const where = shard ? ` (shard ${shard.index}/${shard.count} of ${total} files)` : '';
+  lines.push('', `${outcomes.length} file${outcomes.length === 1 ? '' : 's'}${where}: ${pass} pass, ${fail} fail, ${inv} invalid`);
+  return `${lines.join('\n')}\n`;
+}
+
+/** The `--json` document. */
+export function checkJson(
+  outcomes: readonly FileOutcome[],
+  total: number,
+  skipped: readonly string[],
+  shard: { index: number; count: number } | null,
+  exitCode: number,
+): unknown {
+  return {
+    shard: shard && { index: shard.index, count: shard.count, of_files: total },
+    exit_code: exitCode,
+    summary: {
+      files: outcomes.length,
+      pass: outcomes.filter((o) => o.status === 'pass').length,
+      fail: outcomes.filter((o) => o.status === 'fail').length,
+      invalid: outcomes.filter((o) => o.status === 'invalid').length,
+    },
+    files: outcomes.map((o) => ({
+      file: o.file,
+      plant: o.plant,
+      status: o.status,
+      errors: o.errors,
+      warnings: o.warnings,
+      requirements: (o.check?.rows ?? []).map((r) => ({
+        name: r.requirement,
+        case: r.scope,
+        measured: finiteOrNull(r.measured),
+        /** GM or PM of a loop that never crosses, Ms of an unstable loop. */
+        infinite: r.measured === Infinity,
+        limit: r.limit,
+        kind: r.kind,
+        unit: r.unit,
+        status: r.status,
+        pass: r.status === 'pass',
+        note: r.note,
+      })),
+      notes: o.check?.notes ?? [],
+      svg: o.svg,
+    })),
+    skipped,
+  };
+}
