@@ -5,6 +5,7 @@
  */
 import { diagnostic, hasErrors, type Diagnostic } from './diagnostics.js';
 import { readActuator } from './schema/actuator.js';
+import { readCompare } from './schema/compare.js';
 import { readLoop } from './schema/loop.js';
 import { readModel } from './schema/model.js';
 import { Reader } from './schema/reader.js';
@@ -16,7 +17,7 @@ import { parsePlantYaml, type PlantDocument } from './yaml-doc.js';
 /** Largest plant file accepted, in characters (2 MiB). */
 export const MAX_PLANT_TEXT = 2 * 1024 * 1024;
 
-export const TOP_LEVEL_FIELDS = ['name', 'description', 'model', 'actuator', 'sensor', 'uncertainty', 'loop'] as const;
+export const TOP_LEVEL_FIELDS = ['name', 'description', 'model', 'actuator', 'sensor', 'uncertainty', 'loop', 'compare'] as const;
 
 export interface LoadResult {
   /** Present only when there is no error (warnings allowed). */
@@ -84,12 +85,17 @@ function loadUnsafe(text: string, fileName: string): LoadResult {
     modelRead ? modelRead.model.type : null,
   );
   const ln = top.require('loop', ' (sample_time, controller and trial)');
-  const loop = ln && readLoop(r, ln, top.keySpan('loop'), actuator, modelRead ? modelRead.disturbances : null);
+  const disturbances = modelRead ? modelRead.disturbances : null;
+  const measurements = modelRead ? (modelRead.model.type === 'ode' ? Object.keys(modelRead.model.measurements) : []) : null;
+  const loop = ln && readLoop(r, ln, top.keySpan('loop'), actuator, disturbances, measurements);
+  const compare = readCompare(r, top.get('compare'), actuator, { disturbances, measurements });
 
   diagnostics.push(...r.diagnostics);
   if (hasErrors(diagnostics) || name === undefined || !modelRead || !loop) return { diagnostics, doc };
+  const plant: PlantSpec = { name, model: modelRead.model, actuator, sensor, uncertainty, loop };
+  if (compare) plant.compare = compare;
   return {
-    plant: { name, model: modelRead.model, actuator, sensor, uncertainty, loop },
+    plant,
     diagnostics,
     doc,
   };

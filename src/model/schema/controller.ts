@@ -14,6 +14,7 @@ import type {
 } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
 import type { Fields, Reader } from './reader.js';
+import { baseStructure, readStructureSection, STRUCTURE_NAMES, STRUCTURE_SECTIONS, type StructureContext } from './structure.js';
 
 export const STRUCTURES: readonly ControllerStructure[] = ['p', 'pi', 'pd', 'pid'];
 export const FORMS: readonly PidForm[] = ['ideal', 'parallel', 'series'];
@@ -32,6 +33,7 @@ export const CONTROLLER_FIELDS = [
   'kd',
   ...TUNING_FIELDS,
   'output_limits',
+  ...STRUCTURE_SECTIONS,
 ] as const;
 
 /** Default derivative filter divisor N (filter time td/N): common practice, no source. */
@@ -160,21 +162,33 @@ function convert(r: Reader, f: Fields, form: PidForm, values: Record<string, num
   }
 }
 
+/** Options of `readController` beyond the plain loop controller. */
+export interface ControllerReadOptions {
+  /** Dotted path used in messages (default 'loop.controller'). */
+  path?: string;
+  /** Names the structure sections may refer to (default: not checked). */
+  structure?: StructureContext;
+  /** Values used for the form's terms the block leaves out (then kc/kp is not required). */
+  baseValues?: Readonly<Record<string, number>>;
+}
+
 export function readController(
   r: Reader,
   node: YNode,
   owner: Span,
   actuator: ActuatorSpec,
+  options: ControllerReadOptions = {},
 ): ControllerSpec | undefined {
-  const f = r.fields(node, 'loop.controller', CONTROLLER_FIELDS, owner);
+  const f = r.fields(node, options.path ?? 'loop.controller', CONTROLLER_FIELDS, owner);
   if (!f) return undefined;
   const sn = f.get('structure');
   const fn = f.get('form');
-  const structure = sn ? r.choice(sn, f.at('structure'), STRUCTURES) : 'pid';
+  const named = sn ? r.choice(sn, f.at('structure'), STRUCTURE_NAMES) : 'pid';
   const form = fn ? r.choice(fn, f.at('form'), FORMS) : 'ideal';
-  if (structure === undefined || form === undefined) return undefined;
+  if (named === undefined || form === undefined) return undefined;
+  const structure = baseStructure(named);
   checkFamily(r, f, form);
-  const values = readTerms(r, f, form, structure, null);
+  const values = readTerms(r, f, form, structure, options.baseValues ?? null);
   const tuning = readTuning(r, f, {
     n: DEFAULT_DERIVATIVE_FILTER,
     b: 1,
@@ -182,6 +196,17 @@ export function readController(
     antiWindup: 'clamp',
     trackingTime: NaN,
   });
+  // PI-D and I-PD are setpoint weights with names (b 1, c 0 and b 0, c 0).
+  if (tuning && (named === 'pi_d' || named === 'i_pd')) {
+    if (f.has('setpoint_weight')) {
+      r.warn('IGNORED_FIELD', `${f.at('setpoint_weight')} is ignored: structure '${named}' fixes the weights`, f.keySpan('setpoint_weight'));
+    }
+    tuning.b = named === 'pi_d' ? 1 : 0;
+    tuning.c = 0;
+  }
+  const section = tuning
+    ? readStructureSection(r, f, named, tuning, options.structure ?? { disturbances: null, measurements: null })
+    : { ok: false };
   let outputMin = actuator.min;
   let outputMax = actuator.max;
   const ol = f.get('output_limits');
@@ -189,10 +214,13 @@ export function readController(
     const p = r.pair(ol, f.at('output_limits'), false, true, { allowInfinity: true, allowNegativeInfinity: true });
     if (p) [outputMin, outputMax] = p;
   }
-  if (!values || !tuning) return undefined;
+  if (!values || !tuning || !section.ok) return undefined;
   const gains = convert(r, f, form, values, tuning);
   if (!gains) return undefined;
-  return { structure, form, values, gains, outputMin, outputMax };
+  const spec: ControllerSpec = { structure, form, values, gains, outputMin, outputMax };
+  if (named !== structure) spec.named = named;
+  if (section.ext) spec.extension = section.ext;
+  return spec;
 }
 
 /**

@@ -15,6 +15,7 @@ export function readLoop(
   owner: Span,
   actuator: ActuatorSpec,
   disturbances: readonly string[] | null,
+  measurements: readonly string[] | null = null,
 ): LoopSpec | undefined {
   const f = r.fields(node, 'loop', LOOP_FIELDS, owner);
   if (!f) return undefined;
@@ -33,7 +34,7 @@ export function readLoop(
   const inn = f.get('integrator');
   const integrator = inn ? r.choice(inn, 'loop.integrator', INTEGRATORS) : 'rk4';
   const cn = f.require('controller');
-  const controller = cn && readController(r, cn, f.keySpan('controller'), actuator);
+  const controller = cn && readController(r, cn, f.keySpan('controller'), actuator, { structure: { disturbances, measurements } });
   const tn = f.require('trial', ' (at least a duration)');
   const trial = tn && readTrial(r, tn, f.keySpan('trial'), { disturbances, controller: controller ?? null });
   const requirements = readRequirements(r, f.get('requirements'), f.keySpan('requirements'));
