@@ -3,7 +3,6 @@
  * Without a terminal on both ends (a pipe, a script, CI) there is no one to press keys, so the
  * file's trial is run and summarised instead, exactly as `looprig run FILE` does.
  */
-import { runScreen } from '../../tui/index.js';
 import type { Io } from '../io.js';
 import { demoPlantPath } from '../plants-dir.js';
 import { runCommand } from './run.js';
@@ -12,6 +11,10 @@ import { runCommand } from './run.js';
 export async function screenCommand(args: readonly string[], io: Io): Promise<number> {
   const file = args[0] ?? demoPlantPath();
   if (!io.isTTY || process.stdin.isTTY !== true) return runCommand([file, ...args.slice(1)], io);
+  // React picks its build when first loaded: the screen runs the production one unless asked
+  // otherwise. Loaded here, not at the top, so other commands never pay for Ink and React.
+  process.env.NODE_ENV ??= 'production';
+  const { runScreen } = await import('../../tui/index.js');
   return runScreen(file, {
     io: { readText: (p) => io.readText(p), writeText: (p, t) => io.writeText(p, t) },
     env: io.env,

@@ -32,19 +32,46 @@ export function fit(text: string, width: number): string {
   return text.length >= width ? text.slice(0, width) : text + ' '.repeat(width - text.length);
 }
 
+/** SGR colour codes of the palette's colour names (theme.ts). */
+const SGR: Readonly<Record<string, number>> = {
+  black: 30,
+  red: 31,
+  green: 32,
+  yellow: 33,
+  blue: 34,
+  magenta: 35,
+  cyan: 36,
+  white: 37,
+  gray: 90,
+  redBright: 91,
+  greenBright: 92,
+  yellowBright: 93,
+  blueBright: 94,
+  magentaBright: 95,
+  cyanBright: 96,
+  whiteBright: 97,
+};
+
+/**
+ * The pieces as one string with SGR styling. One text node per screen line instead of one per
+ * piece: the frame's layout work is per node, and a chart row has dozens of pieces.
+ */
+export function styledLine(pieces: readonly Piece[], color: boolean): string {
+  let out = '';
+  for (const p of pieces) {
+    const codes: number[] = [];
+    if (color) {
+      if (p.bold) codes.push(1);
+      if (p.dim) codes.push(2);
+      if (p.inverse) codes.push(7);
+      const c = p.color === undefined ? undefined : SGR[p.color];
+      if (c !== undefined) codes.push(c);
+    }
+    out += codes.length > 0 ? `\u001b[${codes.join(';')}m${p.text}\u001b[0m` : p.text;
+  }
+  return out;
+}
+
 export function Line(props: { pieces: readonly Piece[]; width: number; color: boolean }) {
-  const pieces = fitPieces(props.pieces, props.width);
-  return (
-    <Text wrap="truncate">
-      {pieces.map((p, i) =>
-        props.color ? (
-          <Text key={i} color={p.color} inverse={p.inverse} bold={p.bold} dimColor={p.dim}>
-            {p.text}
-          </Text>
-        ) : (
-          <Text key={i}>{p.text}</Text>
-        ),
-      )}
-    </Text>
-  );
+  return <Text wrap="truncate">{styledLine(fitPieces(props.pieces, props.width), props.color)}</Text>;
 }

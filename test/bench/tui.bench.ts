@@ -1,0 +1,215 @@
+/**
+ * Screen benchmark.
+ *
+ * 1. Instant mode, every bundled plant: time from a gain key press to the new frame written to
+ *    the terminal (the real Ink render path, 80x24, the options runScreen uses). Baseline: the
+ *    bare re-simulation the key asks for (one `evaluate` of the nudged gain set, no drawing),
+ *    measured in the same run; the ratio is frame time / bare simulation time. Target: median
+ *    under 30 ms per plant.
+ * 2. Live mode at ×100 on the bundled plant whose simulation costs most per simulated second:
+ *    the speed reached (simulated s per wall s, from the run's own clock) while a gain key is
+ *    pressed every 100 ms, and whether every key took effect (the gain shown at the end equals
+ *    the gain the presses ask for).
+ *
+ * Run: `npx tsx test/bench/tui.bench.ts` or `npm run bench -- tui`. Timings are reported, never
+ * asserted.
+ */
+import { EventEmitter } from 'node:events';
+import { readdirSync, readFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+const plantsDir = join(root, 'plants');
+
+/** A terminal for Ink: records every write with its time. */
+class FakeStdout extends EventEmitter {
+  readonly isTTY = true;
+  columns: number;
+  rows: number;
+  writes: { at: number; text: string }[] = [];
+  constructor(columns: number, rows: number) {
+    super();
+    this.columns = columns;
+    this.rows = rows;
+  }
+  write = (text: string): boolean => {
+    this.writes.push({ at: performance.now(), text });
+    return true;
+  };
+  getColorDepth = (): number => 8;
+  hasColors = (): boolean => true;
+}
+
+/** Keys for Ink: the same shape as ink-testing-library's stdin. */
+class FakeStdin extends EventEmitter {
+  readonly isTTY = true;
+  private data: string | null = null;
+  write(data: string): void {
+    this.data = data;
+    this.emit('readable');
+  }
+  read = (): string | null => {
+    const d = this.data;
+    this.data = null;
+    return d;
+  };
+  setEncoding(): void {}
+  setRawMode(): void {}
+  resume(): void {}
+  pause(): void {}
+  ref(): void {}
+  unref(): void {}
+}
+
+const sleep = (ms: number): Promise<void> => new Promise((r) => setTimeout(r, ms));
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[s.length >> 1];
+}
+
+function quantile(xs: number[], q: number): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.floor(q * s.length))];
+}
+
+// eslint-disable-next-line no-control-regex
+const strip = (s: string): string => s.replace(/\u001b\[[0-9;?]*[A-Za-z]/g, '');
+
+export async function run(): Promise<void> {
+  // What the screen command does: the production build of React.
+  process.env.NODE_ENV ??= 'production';
+  const React = await import('react');
+  const { render } = await import('ink');
+  const { loadPlant } = await import(pathToFileURL(join(root, 'src/model/index.ts')).href);
+  const tui = await import(pathToFileURL(join(root, 'src/tui/app.tsx')).href);
+  const engine = await import(pathToFileURL(join(root, 'src/tui/engine.ts')).href);
+  const notices = await import(pathToFileURL(join(root, 'src/tui/notices.ts')).href);
+  const state = await import(pathToFileURL(join(root, 'src/tui/state.ts')).href);
+  const math = (await import(pathToFileURL(join(root, 'src/tui/edit-math.ts')).href)).CORE_EDIT_MATH;
+
+  const files = readdirSync(plantsDir).filter((f) => f.endsWith('.yaml')).sort();
+  console.log(`NODE_ENV=${process.env.NODE_ENV}; 80x24; ${files.length} bundled plants`);
+
+  function mount(name: string, columns = 80, rows = 24) {
+    const text = readFileSync(join(plantsDir, name), 'utf8');
+    const loaded = loadPlant(text, name);
+    if (loaded.plant === undefined) throw new Error(`${name} does not load`);
+    const setup = engine.setupLoop(loaded.plant);
+    const stdout = new FakeStdout(columns, rows);
+    const stdin = new FakeStdin();
+    const instance = render(
+      React.createElement(tui.App, {
+        setup,
+        filePath: name,
+        fileName: name,
+        text,
+        io: { readText: () => text, writeText: () => undefined },
+        notices: notices.NO_DIAGNOSIS,
+        color: true,
+        caution: false,
+        onExit: () => undefined,
+      }),
+      // The options runScreen uses.
+      { stdin: stdin as never, stdout: stdout as never, stderr: stdout as never, exitOnCtrlC: false, patchConsole: false, maxFps: 60 },
+    );
+    return { setup, stdout, stdin, instance };
+  }
+
+  /** Press a key and wait for the first terminal write after it; ms from press to that write. */
+  async function pressToFrame(m: ReturnType<typeof mount>, key: string): Promise<number> {
+    const n = m.stdout.writes.length;
+    const t0 = performance.now();
+    m.stdin.write(key);
+    const end = t0 + 2000;
+    while (m.stdout.writes.length === n && performance.now() < end) await new Promise((r) => setImmediate(r));
+    return m.stdout.writes.length > n ? m.stdout.writes[n].at - t0 : NaN;
+  }
+
+  // ---------------------------------------------------------------- instant mode
+  console.log('\ninstant mode: gain key -> new frame written (ms)');
+  console.log('plant                          median    p90   bare sim   ratio   target <30 ms');
+  const costPerSimSecond: { name: string; cost: number }[] = [];
+  for (const name of files) {
+    const m = mount(name);
+    await sleep(100);
+    const keys = [']', '['];
+    for (let i = 0; i < 6; i++) await pressToFrame(m, keys[i % 2]), await sleep(40);
+    const times: number[] = [];
+    for (let i = 0; i < 30; i++) {
+      times.push(await pressToFrame(m, keys[i % 2]));
+      // Let the throttle window pass, as between a person's key presses.
+      await sleep(40);
+    }
+    m.instance.unmount();
+
+    // Baseline: the bare re-simulation of a nudged gain set, no drawing.
+    const file = engine.editFromSpec(m.setup.plant.loop.controller);
+    const bare: number[] = [];
+    for (let i = 0; i < 36; i++) {
+      const nudged = state.withParam(file, state.paramList(file)[0], state.paramValue(file, state.paramList(file)[0]) * (i % 2 === 0 ? 1.1 : 1), math);
+      const t0 = performance.now();
+      engine.evaluate(m.setup, nudged);
+      const dt = performance.now() - t0;
+      if (i >= 6) bare.push(dt);
+    }
+    const med = median(times);
+    const bmed = median(bare);
+    costPerSimSecond.push({ name, cost: bmed / m.setup.plant.loop.trial.duration });
+    console.log(
+      `${name.padEnd(30)} ${med.toFixed(1).padStart(6)} ${quantile(times, 0.9).toFixed(1).padStart(6)} ${bmed.toFixed(2).padStart(10)} ${(med / bmed).toFixed(1).padStart(7)}   ${med < 30 ? 'met' : 'NOT met'}`,
+    );
+  }
+
+  // ---------------------------------------------------------------- live mode
+  costPerSimSecond.sort((a, b) => b.cost - a.cost);
+  const slowest = costPerSimSecond[0].name;
+  console.log(`\nlive mode x100 on the slowest plant to simulate: ${slowest} (${(costPerSimSecond[0].cost * 1000).toFixed(1)} µs per simulated second, bare)`);
+  const m = mount(slowest);
+  await sleep(100);
+  m.stdin.write('l');
+  await sleep(60);
+  for (const k of ['>', '>', '>']) {
+    m.stdin.write(k);
+    await sleep(60);
+  }
+  const frameText = (): string => strip(m.stdout.writes.slice(-3).map((w) => w.text).join(''));
+  const simTime = (): number => {
+    const all = strip(m.stdout.writes.map((w) => w.text).join(''));
+    const found = [...all.matchAll(/t (\d+\.\d) s/g)];
+    return found.length > 0 ? Number(found[found.length - 1][1]) : NaN;
+  };
+  if (!frameText().includes('live ×100') && !strip(m.stdout.writes.map((w) => w.text).join('')).includes('live ×100')) {
+    console.log('  (could not reach x100; the status line reads:)', frameText().slice(0, 120));
+  }
+  const firstEdit = engine.editFromSpec(m.setup.plant.loop.controller);
+  const first = state.paramList(firstEdit)[0];
+  let expected = state.paramValue(firstEdit, first);
+  const wall0 = performance.now();
+  const sim0 = simTime();
+  const presses = 40;
+  for (let i = 0; i < presses; i++) {
+    m.stdin.write('+');
+    expected = Number((expected * 1.01).toPrecision(6));
+    await sleep(100);
+  }
+  await sleep(200);
+  const wall = (performance.now() - wall0) / 1000;
+  const sim = simTime() - sim0;
+  const all = strip(m.stdout.writes.map((w) => w.text).join(''));
+  const shownAll = [...all.matchAll(/> (?:Kc|Kp)'?\s+(\S+)/g)];
+  const shown = shownAll.length > 0 ? Number(shownAll[shownAll.length - 1][1]) : NaN;
+  m.instance.unmount();
+  const achieved = sim / wall;
+  console.log(`  speed asked x100, reached x${achieved.toFixed(0)} (${sim.toFixed(0)} simulated s in ${wall.toFixed(1)} s)`);
+  console.log(
+    `  ${presses} gain keys at 10/s: gain shown ${shown}, expected ${Number(expected.toPrecision(4))} -> ${Math.abs(shown - Number(expected.toPrecision(4))) <= 1e-9 * Math.abs(expected) ? 'no key dropped' : 'KEYS DROPPED'}`,
+  );
+  console.log(`  ratio reached/asked: ${(achieved / 100).toFixed(2)}`);
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1]).href) {
+  await run();
+  process.exit(0);
+}
