@@ -75,7 +75,7 @@ function allFinite(v: Float64Array): boolean {
 type SolveOutcome = { z: Float64Array; converged: boolean; singular: boolean; nonFinite: boolean; iterations: number; fNorm: number };
 
 /** Damped Newton / Levenberg–Marquardt on a square system with u projected into its range. */
-function newton(sys: System, z0: Float64Array, maxIter: number): SolveOutcome {
+function newton(sys: System, z0: Float64Array, maxIter: number, maxRelStep = Infinity): SolveOutcome {
   const n = sys.n;
   const z = Float64Array.from(z0);
   const project = (v: Float64Array): void => {
@@ -133,8 +133,15 @@ function newton(sys: System, z0: Float64Array, maxIter: number): SolveOutcome {
       if (!(luFactor(jtj, n, piv) > 0)) return { z, converged: false, singular: true, nonFinite: false, iterations: it, fNorm };
       luSolve(jtj, n, piv, delta);
     }
-    // Backtracking line search on ‖F‖.
+    // Optional trust limit: no variable moves by more than maxRelStep of its size per iteration
+    // (keeps the iterate out of regions where a kink such as max(h, 0) flattens the model).
     let lambda = 1;
+    if (Number.isFinite(maxRelStep)) {
+      let worst = 0;
+      for (let i = 0; i < n; i++) worst = Math.max(worst, Math.abs(delta[i]) / Math.max(Math.abs(z[i]), sys.scale[i]));
+      if (worst > maxRelStep) lambda = maxRelStep / worst;
+    }
+    // Backtracking line search on ‖F‖.
     let accepted = false;
     let tNorm = fNorm;
     for (let k = 0; k < 30; k++) {
@@ -200,10 +207,13 @@ export function steadyStateAtInput(plant: PlantDynamics, u: number, options: Equ
     uMin: options.uMin,
     uMax: options.uMax,
   };
-  const r = newton(sys, x0, options.maxIterations ?? 100);
-  if (!r.converged || r.nonFinite || !allFinite(r.z)) return null;
-  if (!acceptable(plant, r.z, u, d, sys.scale)) return null;
-  return { x: r.z, y: plant.output(0, r.z, u, d, plant.params) };
+  for (const limit of [Infinity, 0.5]) {
+    const r = newton(sys, x0, options.maxIterations ?? 100, limit);
+    if (!r.converged || r.nonFinite || !allFinite(r.z)) continue;
+    if (!acceptable(plant, r.z, u, d, sys.scale)) continue;
+    return { x: r.z, y: plant.output(0, r.z, u, d, plant.params) };
+  }
+  return null;
 }
 
 function acceptable(plant: PlantDynamics, x: Float64Array, u: number, d: Float64Array, scale: Float64Array): boolean {
@@ -267,8 +277,8 @@ export function findEquilibrium(plant: PlantDynamics, target: number, options: E
       z1[n] = u0;
       candidates.push(z1);
     }
-    for (const start of candidates) {
-      const r = newton(sys, start, maxIter);
+    for (const [start, limit] of candidates.flatMap((c) => [[c, Infinity], [c, 0.5]] as [Float64Array, number][])) {
+      const r = newton(sys, start, maxIter, limit);
       sawSingular ||= r.singular;
       sawNonFinite ||= r.nonFinite;
       const x = r.z.subarray(0, n).slice();

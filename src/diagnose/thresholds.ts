@@ -1,0 +1,43 @@
+/**
+ * The numbers at which a finding is raised, each with its source. Keep every threshold here so a
+ * reader can see and argue with them in one place.
+ */
+export const THRESHOLDS = {
+  /** Complex poles with damping below this are "lightly damped" (issue statement; common practice, no source). */
+  lightDamping: 0.3,
+  /**
+   * Normalised delay τ = L/(L + T) above which a loop is "delay dominated": Åström & Hägglund,
+   * Advanced PID Control, ISA 2006, ch. 7 classify τ > 0.5 as delay dominated [from memory];
+   * the same split drives the AMIGO set-point weight (reference sheet section 4).
+   */
+  delayDominated: 0.5,
+  /** Above this normalised delay the finding is severe (common practice, no source). */
+  delayDominatedSevere: 0.8,
+  /** An unstable pole p with delay θ: p·θ above this makes PID very hard (reference sheet section 9, heuristic from S&P 2005 [mem]). */
+  unstableDelayProduct: 0.5,
+  /** An RHP zero z closer than this multiple of an unstable pole p (z < 4p) is severe (sheet section 9 [mem]). */
+  zeroPoleRatio: 4,
+  /** Initial inverse response (fraction of the final change) that counts as non-minimum phase (common practice, no source). */
+  inverseResponse: 0.02,
+  /** Gain or time-constant ratio across the operating range that flags nonlinearity (common practice, no source). */
+  nonlinearFactor: 2,
+  /** Ratio above which the nonlinearity finding is a warning rather than info (common practice, no source). */
+  nonlinearWarnFactor: 4,
+  /** Fraction of the trial with the actuator at a position limit that flags saturation (common practice, no source). */
+  saturatedFraction: 0.05,
+  /** Fraction of the trial limited by the rate limit that flags rate limiting (common practice, no source). */
+  rateLimitedFraction: 0.02,
+  /**
+   * Sampling: ωc·h above this is slow (Åström & Wittenmark, Computer-Controlled Systems, 3rd ed.,
+   * 1997: ωc h ≈ 0.15 – 0.5 for a good digital design [from memory]).
+   */
+  crossoverSampling: 0.5,
+  /** Sampling: h above this fraction of (T + L) of the low-order model is slow (common practice, no source: ~10 samples per response time). */
+  responseSampling: 0.1,
+  /** Standard deviation of the controller output due to sensor noise, as a share of the actuator range (common practice, no source). */
+  noiseShare: 0.05,
+  /** ... above which the noise finding is a warning rather than info (common practice, no source). */
+  noiseShareWarn: 0.1,
+  /** Actuator step used for the open-loop step fit of nonlinear plants, share of the range (issue statement). */
+  stepShare: 0.05,
+} as const;
