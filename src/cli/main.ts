@@ -3,6 +3,7 @@
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
 import { checkCommand } from './commands/check.js';
+import { diagnoseCommand } from './commands/diagnose.js';
 import { exportCommand } from './commands/export.js';
 import { fitCommand } from './commands/fit.js';
 import { optimizeCommand } from './commands/optimize.js';
@@ -37,6 +38,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await checkCommand(rest, io);
       case 'suggest':
         return await suggestCommand(rest, io);
+      case 'diagnose':
+        return await diagnoseCommand(rest, io);
       case 'optimize':
         return await optimizeCommand(rest, io);
       case 'help':
