@@ -98,7 +98,10 @@ function worstText(s: Suggestion): string {
   if (w === null) return '-';
   if (w.anyDiverged) return `diverges (${w.cases} cases)`;
   const ms = w.worstMs === Infinity ? 'unstable' : num(w.worstMs, 3);
-  return `os ${num(w.worstOvershootPct, 3)} % ts ${secs(w.worstSettlingTime, 'never')} Ms ${ms}`;
+  // NaN: the trial has no setpoint step; Infinity: a case never settles.
+  const os = Number.isNaN(w.worstOvershootPct) ? '-' : `${num(w.worstOvershootPct, 3)} %`;
+  const ts = Number.isNaN(w.worstSettlingTime) ? '-' : secs(w.worstSettlingTime, 'never');
+  return `os ${os} ts ${ts} Ms ${ms}`;
 }
 
 function summaryText(plant: PlantSpec, r: SuggestResult): string {
