@@ -501,6 +501,12 @@ function flagSetpoints(flags: Flag[], spec: PlantSpec, dyn: PlantDynamics, targe
 /** Run the trial (when asked) and add the actuator findings. */
 function finishTrial(d: Diagnosis, spec: PlantSpec, dyn: PlantDynamics, gains: GainSet, options: DiagnoseOptions): void {
   if (options.simulate === false) return;
+  if (d.flags.some((f) => f.kind === 'model_problem')) {
+    // A model that is not finite or not differentiable near its operating point can also make the
+    // step chooser pick absurdly small steps: do not spend the time.
+    d.notes.push('the trial was not simulated because of the model problem above');
+    return;
+  }
   const loop = spec.loop;
   let findings: TrialFindings;
   try {

@@ -1,0 +1,232 @@
+/**
+ * Flags against the benchmark batch of Åström & Hägglund, "Benchmark systems for PID control",
+ * IFAC PID'00, Terrassa, 2000. The list is from memory [mem] as the reference sheet (section 7)
+ * marks it: the transfer functions are used here as an in-house test batch, not as a citation.
+ */
+import { describe, it, expect } from 'vitest';
+import { diagnosePlant } from '../../src/diagnose/index.js';
+import type { Diagnosis, FlagKind } from '../../src/diagnose/index.js';
+import { polyProduct } from '../analysis/tf-model.js';
+import { load, plantText, transfer } from './plant-yaml.js';
+import { expectClose } from '../helpers/expect-close.js';
+
+const kinds = (d: Diagnosis): FlagKind[] => d.flags.map((f) => f.kind);
+const flag = (d: Diagnosis, k: FlagKind) => d.flags.find((f) => f.kind === k);
+// The structural findings about the plant itself (the loop findings depend on the chosen gains).
+const PLANT_KINDS: FlagKind[] = ['unstable', 'non_minimum_phase', 'dead_time_dominant', 'integrating', 'lightly_damped', 'nonlinear'];
+const plantKinds = (d: Diagnosis) => kinds(d).filter((k) => PLANT_KINDS.includes(k));
+const lag = (t: number) => [t, 1];
+
+describe('flags on the benchmark batch', () => {
+  it('lag + delay exp(−s)/(1 + sT): dead_time_dominant for T = 0.1, 0.2, 0.5; silent for T = 2, 5, 10', () => {
+    for (const T of [0.1, 0.2, 0.5]) {
+      const d = diagnosePlant(transfer([1], lag(T), 1, { controller: '{ structure: pi, form: ideal, kc: 0.2, ti: 0.5 s }' }));
+      const f = flag(d, 'dead_time_dominant');
+      expect(f, `T = ${T}`).toBeDefined();
+      // half rule: one lag, θ = 1 + h/2 with h = 0.01 s
+      expectClose(f!.evidence.delay_s as number, 1.005, { abs: 1e-9 });
+      expectClose(f!.evidence.time_constant_s as number, T, { abs: 1e-9 });
+      expectClose(f!.evidence.max_crossover_rad_s as number, 1 / 1.005, { rel: 1e-9 });
+    }
+    for (const T of [2, 5, 10]) {
+      const d = diagnosePlant(transfer([1], lag(T), 1, { controller: `{ structure: pi, form: ideal, kc: ${(0.5 * T).toFixed(2)}, ti: ${T} s }` }));
+      expect(kinds(d), `T = ${T}`).toEqual([]);
+    }
+  });
+
+  it('equal lags 1/(s+1)^n: silent for n = 1, 2; dead_time_dominant for n = 8 (half rule θ = 6.5, τ = 1.5)', () => {
+    for (const n of [1, 2]) {
+      const d = diagnosePlant(transfer([1], polyProduct(...Array.from({ length: n }, () => [1, 1]))));
+      expect(kinds(d), `n = ${n}`).toEqual([]);
+    }
+    const d8 = diagnosePlant(transfer([1], polyProduct(...Array.from({ length: 8 }, () => [1, 1])), 0, { controller: '{ structure: pi, form: ideal, kc: 0.3, ti: 4 s }' }));
+    const f = flag(d8, 'dead_time_dominant');
+    expect(f).toBeDefined();
+    // An 8-fold pole is a Jordan block: rounding of size eps moves the computed poles by about
+    // (eps·‖A‖)^(1/8), a few hundredths here, and the half rule then sorts slightly different
+    // lags. Each lag 1/|p| is off by about the pole error δ, and θ sums 6.5 lags' worth, so the
+    // bound is 8δ (δ measured on the poles actually computed).
+    const delta = Math.max(...d8.poleZero!.poles.map((p) => Math.hypot(p.re + 1, p.im)));
+    expect(delta).toBeLessThan(0.1);
+    expectClose(f!.evidence.delay_s as number, 6.5 + 0.005, { abs: 8 * delta });
+    expectClose(f!.evidence.time_constant_s as number, 1.5, { abs: 8 * delta });
+  });
+
+  it('spread lags 1/((1+s)(1+as)(1+a²s)(1+a³s)), a = 0.1, 0.2, 0.5: well behaved (no plant flags)', () => {
+    for (const a of [0.1, 0.2, 0.5]) {
+      const d = diagnosePlant(transfer([1], polyProduct(lag(1), lag(a), lag(a * a), lag(a ** 3))));
+      expect(plantKinds(d), `a = ${a}`).toEqual([]);
+    }
+  });
+
+  it('RHP zero (1 − a s)/(s+1)^3: non_minimum_phase with z = 1/a and crossover bound z/2', () => {
+    for (const a of [0.1, 0.2, 0.5, 1, 2, 5]) {
+      const d = diagnosePlant(transfer([-a, 1], polyProduct(lag(1), lag(1), lag(1)), 0, { controller: '{ structure: pi, form: ideal, kc: 0.2, ti: 3 s }' }));
+      const f = flag(d, 'non_minimum_phase');
+      expect(f, `a = ${a}`).toBeDefined();
+      expectClose(f!.evidence.rhp_zero_per_s as number, 1 / a, { rel: 1e-9 });
+      expectClose(f!.evidence.max_crossover_rad_s as number, 0.5 / a, { rel: 1e-9 });
+    }
+  });
+
+  it('lightly damped w0²/((s+1)(s² + 2ζ w0 s + w0²)), ζ = 0.1: lightly_damped with ζ and w0 as evidence', () => {
+    for (const w0 of [1, 2, 5, 10]) {
+      const d = diagnosePlant(transfer([w0 * w0], polyProduct(lag(1), [1, 0.2 * w0, w0 * w0]), 0, { controller: '{ structure: pi, form: ideal, kc: 0.05, ti: 1 s }' }));
+      const f = flag(d, 'lightly_damped');
+      expect(f, `w0 = ${w0}`).toBeDefined();
+      expectClose(f!.evidence.damping as number, 0.1, { abs: 1e-9 });
+      expectClose(f!.evidence.natural_frequency_rad_s as number, w0, { rel: 1e-9 });
+    }
+  });
+
+  it('fast and slow modes (100/(s+10)²)(1/(s+1) + 0.5/(s+0.05)): no plant flags', () => {
+    // numerator 100 (1.5 s + 0.55), denominator (s+10)² (s+1)(s+0.05)
+    const d = diagnosePlant(transfer([150, 55], polyProduct([1, 10], [1, 10], [1, 1], [1, 0.05])));
+    expect(plantKinds(d)).toEqual([]);
+  });
+
+  it('conditionally stable (s+6)²/(s(s+1)²(s+36)): integrating', () => {
+    const d = diagnosePlant(transfer([1, 12, 36], polyProduct([1, 0], [1, 1], [1, 1], [1, 36]), 0, { controller: '{ structure: p, form: ideal, kc: 1 }' }));
+    const f = flag(d, 'integrating');
+    expect(f).toBeDefined();
+    // slope gain lim s G(s) = 36/36 = 1
+    expectClose(f!.evidence.slope_gain_per_s as number, 1, { rel: 1e-9 });
+  });
+
+  it('open-loop unstable 1/(s − 1) and e^(−s)/(s − 1): unstable, min crossover 2p; severe when p·θ > 0.5 (sheet section 9)', () => {
+    const a = diagnosePlant(transfer([1], [1, -1], 0, { controller: '{ structure: pi, form: ideal, kc: 3, ti: 2 s }' }));
+    const fa = flag(a, 'unstable')!;
+    expect(fa.severity).toBe('warning');
+    expectClose(fa.evidence.unstable_pole_per_s as number, 1, { rel: 1e-12 });
+    expectClose(fa.evidence.min_crossover_rad_s as number, 2, { rel: 1e-12 });
+    expect(a.margins!.closedLoopStable).toBe(true);
+    const b = diagnosePlant(transfer([1], [1, -1], 1, { controller: '{ structure: p, form: ideal, kc: 1.2 }' }));
+    expect(flag(b, 'unstable')!.severity).toBe('severe');
+  });
+});
+
+describe('loop flags', () => {
+  it('saturating: a setpoint kick beyond the actuator range', () => {
+    const d = diagnosePlant(transfer([1], [1, 1], 0, { actuator: '{ min: 0, max: 1.2 }', controller: '{ structure: pi, form: ideal, kc: 20, ti: 1 s, anti_windup: none }' }));
+    const f = flag(d, 'saturating')!;
+    expect(f).toBeDefined();
+    expect(f.severity).toBe('severe');
+    expect(f.evidence.saturated_share as number).toBeGreaterThan(0.05);
+  });
+
+  it('rate_limited: a slow actuator', () => {
+    const d = diagnosePlant(transfer([1], [1, 1], 0, { actuator: '{ min: -10, max: 10, rate_limit: 0.05 }' }));
+    expect(flag(d, 'rate_limited')).toBeDefined();
+  });
+
+  it('slow_sampling: h = 0.5 s on a 1 s lag', () => {
+    const d = diagnosePlant(transfer([1], [1, 1], 0, { sampleTime: '0.5 s' }));
+    const f = flag(d, 'slow_sampling')!;
+    expect(f).toBeDefined();
+    expectClose(f.evidence.sample_time_s as number, 0.5);
+  });
+
+  it('noise_sensitive: derivative action with N = 20 on a noisy measurement; silent without the derivative', () => {
+    const sensor = '{ noise_std: 0.05, seed: 1 }';
+    const noisy = diagnosePlant(transfer([1], [1, 2, 1], 0, { sensor, actuator: '{ min: -10, max: 10 }', controller: '{ structure: pid, form: ideal, kc: 4, ti: 2 s, td: 0.5 s, derivative_filter: 20 }' }));
+    const f = flag(noisy, 'noise_sensitive')!;
+    expect(f).toBeDefined();
+    expect(f.advice).toMatch(/[Dd]erivative/);
+    const calm = diagnosePlant(transfer([1], [1, 2, 1], 0, { sensor, actuator: '{ min: -10, max: 10 }', controller: '{ structure: pi, form: ideal, kc: 4, ti: 2 s }' }));
+    expect(flag(calm, 'noise_sensitive')).toBeUndefined();
+  });
+
+  it('unreachable_setpoint: gain 1, actuator [0, 1], setpoint 2', () => {
+    const d = diagnosePlant(transfer([1], [1, 1], 0, { actuator: '{ min: 0, max: 1 }', trial: 'duration: 20 s\n    events: [{ at: 1 s, setpoint: 2 }]' }));
+    const f = flag(d, 'unreachable_setpoint')!;
+    expect(f).toBeDefined();
+    expect(f.severity).toBe('severe');
+    expectClose(f.evidence.steady_output_at_max as number, 1, { rel: 1e-9 });
+    expect(d.operatingPoint.found).toBe(false);
+  });
+
+  it('closed_loop_unstable: 1/(s+1)^3 with kc = 10 > Ku = 8', () => {
+    const d = diagnosePlant(transfer([1], [1, 3, 3, 1], 0, { controller: '{ structure: p, form: ideal, kc: 10 }', actuator: '{ min: -1e6, max: 1e6 }' }));
+    expect(flag(d, 'closed_loop_unstable')).toBeDefined();
+  });
+});
+
+const tankModel = (setpoint: number) =>
+  load(
+    plantText(
+      [
+        'type: ode',
+        'params: { area: 1.5, max_inflow: 0.008, drain_coeff: 0.004 }',
+        'states: { level: { initial: 1.0 } }',
+        'input: valve',
+        'derivatives:',
+        '  level: (max_inflow*valve - drain_coeff*sqrt(max(level, 0))) / area',
+        'output: level',
+      ].join('\n'),
+      {
+        actuator: '{ min: 0, max: 1 }',
+        sampleTime: '1 s',
+        controller: '{ structure: pi, form: ideal, kc: 3, ti: 250 s }',
+        trial: `duration: 30 min\n    initial_output: 0.5\n    events: [{ at: 1 min, setpoint: ${setpoint} }]`,
+      },
+    ),
+  );
+
+describe('nonlinear plants', () => {
+  it('gravity-drained tank: nonlinear (gain ∝ √h: 10 %, 50 %, 90 % valve give gains 0.8, 4, 7.2, ratio 9)', () => {
+    // Steady state √h = qmax u / c, K = 2 √h qmax / c = 8 u here (see the analysis tests for the derivation).
+    const d = diagnosePlant(tankModel(1.3));
+    const f = flag(d, 'nonlinear')!;
+    expect(f).toBeDefined();
+    expectClose(f.evidence.gain_ratio as number, 9, { rel: 1e-6 });
+    expectClose(f.evidence.time_constant_ratio as number, 9, { rel: 1e-6 });
+    expect(d.fopdtSource).toBe('step_fit');
+    // Fit near h0 = 1.3: K = 2√1.3 · 2 = 4.56, T = 2·1.5·√1.3/0.004 = 855 s (5 % step bends these by a few %)
+    expectClose(d.fopdt!.gain, 2 * Math.sqrt(1.3) * 2, { rel: 0.06 });
+    expect(kinds(d)).not.toContain('unstable');
+  });
+
+  it('a linear ode x′ = (−x + 2u)/5 is not flagged nonlinear', () => {
+    const d = diagnosePlant(
+      load(plantText('type: ode\nparams: { k: 2 }\nstates: { x: { initial: 0 } }\ninput: u\nderivatives:\n  x: (-x + k*u)/5\noutput: x', { actuator: '{ min: 0, max: 10 }' })),
+    );
+    expect(kinds(d)).not.toContain('nonlinear');
+    expectClose(d.fopdt!.gain, 2, { rel: 1e-4 });
+    expectClose(d.fopdt!.timeConstant, 5, { rel: 1e-4 });
+  });
+});
+
+describe('bad input: a finding or a message, never a crash', () => {
+  it('no equilibrium in range (tank asked for 5 m, 4 m is the most a full valve holds)', () => {
+    const d = diagnosePlant(tankModel(5));
+    const f = flag(d, 'unreachable_setpoint')!;
+    expectClose(f.evidence.steady_output_at_max as number, 4, { rel: 1e-9 });
+    expect(d.operatingPoint.message).toMatch(/actuator range/);
+  });
+
+  it('singular Jacobian: the output does not depend on what the input drives', () => {
+    const d = diagnosePlant(
+      load(plantText('type: ode\nparams: {}\nstates: { a: { initial: 0 }, b: { initial: 0 } }\ninput: u\nderivatives:\n  a: -a + u\n  b: -b\noutput: b')),
+    );
+    expect(kinds(d)).toContain('no_response');
+  });
+
+  it('unobservable output of a state-space model: no_response', () => {
+    const d = diagnosePlant(load(plantText('type: state_space\na: [[-1, 0], [0, -2]]\nb: [1, 0]\nc: [0, 1]\nd: 0')));
+    expect(kinds(d)).toContain('no_response');
+  });
+
+  it('zero-gain model s/(s+1): no_response (zero static gain)', () => {
+    const d = diagnosePlant(transfer([1, 0], [1, 1]));
+    expect(kinds(d)).toContain('no_response');
+  });
+
+  it('NaN in the linearisation: model_problem naming the entry', () => {
+    const d = diagnosePlant(
+      load(plantText('type: ode\nparams: {}\nstates: { x: { initial: 1 } }\ninput: u\nderivatives:\n  x: -sqrt(x - 1) + u\noutput: x', { actuator: '{ min: -1, max: 1 }' })),
+    );
+    const f = flag(d, 'model_problem')!;
+    expect(f).toBeDefined();
+    expect(f.advice).toMatch(/non-finite/);
+  });
+});
