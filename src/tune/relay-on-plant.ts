@@ -1,9 +1,10 @@
 /**
  * The relay experiment on a plant file's loop, with defaults taken from the file: the relay swings
- * about the trial's initial output by a tenth of the actuator span, the setpoint is the plant's
- * output at the start, and the run lasts as long as the file's trial.
+ * by a tenth of the actuator span about the trial's initial output (else the middle of a bounded
+ * actuator range, else 0), the setpoint is the steady-state output at that bias (else the
+ * plant's output at the start), and the run lasts as long as the file's trial.
  */
-import { poleZeroSummary } from '../analysis/index.js';
+import { poleZeroSummary, steadyStateAtInput } from '../analysis/index.js';
 import type { PlantSpec } from '../model/types.js';
 import { runRelayExperiment, type RelayExperimentResult } from './relay-experiment.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
@@ -26,8 +27,9 @@ export interface PlantRelayResult extends RelayExperimentResult {
 
 /** Run the relay experiment on the file's full simulated loop. */
 export function relayOnPlant(spec: PlantSpec, options: PlantRelayOptions = {}, ctx: TuningContext = tuningContext(spec)): PlantRelayResult {
-  const u0 = spec.loop.trial.initialOutput ?? Math.min(Math.max(0, spec.actuator.min), spec.actuator.max);
   const span = spec.actuator.max - spec.actuator.min;
+  // A relay about an actuator limit would be clipped to a half wave and never cross back.
+  const u0 = spec.loop.trial.initialOutput ?? (Number.isFinite(span) ? spec.actuator.min + span / 2 : 0);
   const amplitude = options.amplitude ?? (Number.isFinite(span) ? 0.1 * span : u0 !== 0 ? 0.1 * Math.abs(u0) : 1);
   // Direction from the sign of the static (or, integrating, slope) gain at the operating point:
   // the relay must give negative feedback around the phase crossover, where an inverse-response
@@ -38,7 +40,7 @@ export function relayOnPlant(spec: PlantSpec, options: PlantRelayOptions = {}, c
     amplitude,
     hysteresis: options.hysteresis ?? 0,
     direction,
-    setpoint: null,
+    setpoint: steadyStateAtInput(ctx.dynamics, u0, { uMin: spec.actuator.min, uMax: spec.actuator.max })?.y ?? null,
     bias: u0,
     initialOutput: u0,
     duration: options.duration ?? spec.loop.trial.duration,
