@@ -125,8 +125,10 @@ export function App(props: AppProps) {
     () => (baselineEdit === null ? null : evaluate(setup, baselineEdit)),
     [setup, baselineEdit],
   );
-  const marginsNow = useMemo(() => props.notices.margins(runningGains(state.current)), [props.notices, state.current.gains]);
-  const marginsBase = useMemo(
+  // Margins come one frame after the trial: the new gain and its trial are drawn at once, the
+  // frequency-domain figures follow as soon as they are computed.
+  const marginsNow = useDeferred(() => props.notices.margins(runningGains(state.current)), [props.notices, state.current.gains]);
+  const marginsBase = useDeferred(
     () => (baselineEdit === null ? null : props.notices.margins(runningGains(baselineEdit))),
     [props.notices, baselineEdit],
   );
@@ -316,6 +318,20 @@ export function App(props: AppProps) {
       <Line pieces={[{ text: HINT, color: theme.dim }]} width={layout.width} color={theme.color} />
     </Box>
   );
+}
+
+/**
+ * A value computed just after the frame that needs it: 'pending' until then. The computation
+ * runs on the next turn of the event loop, so a key's frame is never held up by it.
+ */
+function useDeferred<T>(compute: () => T, deps: readonly unknown[]): T | 'pending' {
+  const [value, setValue] = useState<{ deps: readonly unknown[]; value: T } | null>(null);
+  useEffect(() => {
+    const id = setImmediate(() => setValue({ deps, value: compute() }));
+    return () => clearImmediate(id);
+  }, deps);
+  const fresh = value !== null && value.deps.length === deps.length && value.deps.every((d, i) => Object.is(d, deps[i]));
+  return fresh ? value.value : 'pending';
 }
 
 function fmt(v: number | null): string {

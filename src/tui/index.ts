@@ -8,3 +8,4 @@ export { KEYMAP, HINT, NUDGE, SPEEDS, commandFor, keyToken, helpLines, type KeyB
 export { reduce, initialState, isDirty, paramList, type ScreenState, type Action, type Effect, type GainEdit } from './state.js';
 export { computeLayout, type Layout } from './layout.js';
 export { NO_DIAGNOSIS, type NoticeSource, type Notice, type MarginsView } from './notices.js';
+export { diagnoseSource } from './diagnose-source.js';

@@ -25,7 +25,8 @@ export interface MetricRow {
 export interface MetricInput {
   metrics: TrialMetrics;
   checks: readonly RequirementResult[];
-  margins: MarginsView | null;
+  /** 'pending' while they are being computed for a new gain set. */
+  margins: MarginsView | null | 'pending';
 }
 
 interface Def {
@@ -81,6 +82,8 @@ function cell(def: Def, inp: MetricInput, limit: number | undefined): MetricCell
   let pass: boolean | null = null;
   if (def.margin !== undefined) {
     if (inp.margins === null) return { text: 'n/a', pass: null };
+    if (inp.margins === 'pending') return { text: '…', pass: null };
+    if (inp.margins.closedLoopStable === false) return { text: 'unstable', pass: limit === undefined ? null : false };
     measured = def.margin(inp.margins);
     if (limit !== undefined) pass = Number.isFinite(measured) && (def.sense === 'max' ? measured <= limit : measured >= limit);
     // An infinite gain margin (no phase crossover) meets any lower limit.

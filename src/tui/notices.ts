@@ -16,6 +16,8 @@ export interface MarginsView {
   gainMargin: number;
   phaseMarginDeg: number;
   maxSensitivity: number;
+  /** Closed-loop stability; false makes the margins meaningless (shown as 'unstable'). Absent/null = not checked. */
+  closedLoopStable?: boolean | null;
 }
 
 export interface NoticeSource {

@@ -10,7 +10,8 @@ import { render } from 'ink';
 import { formatDiagnostic, loadPlant } from '../model/index.js';
 import { App, type ScreenIo } from './app.js';
 import { setupLoop } from './engine.js';
-import { NO_DIAGNOSIS, withNotices, type Notice, type NoticeSource } from './notices.js';
+import { diagnoseSource } from './diagnose-source.js';
+import { withNotices, type Notice, type NoticeSource } from './notices.js';
 import type { RunMode } from './state.js';
 import { colorWanted } from './theme.js';
 
@@ -21,7 +22,7 @@ export interface ScreenOptions {
   stdout?: NodeJS.WriteStream;
   stderr?: NodeJS.WriteStream;
   env?: Readonly<Record<string, string | undefined>>;
-  /** Where diagnosis flags and margins come from (default: whatever diagnose/ provides). */
+  /** Where diagnosis flags and margins come from (default: the diagnose core on this plant). */
   notices?: NoticeSource;
   /** Show the safety caution first (default true: once per session). */
   caution?: boolean;
@@ -89,7 +90,7 @@ export async function runScreen(filePath: string, options: ScreenOptions = {}): 
   const warnings: Notice[] = loaded.diagnostics
     .filter((d) => d.severity === 'warning')
     .map((d) => ({ tone: 'warn', text: formatDiagnostic(d, text, fileName) }));
-  const notices = withNotices(options.notices ?? NO_DIAGNOSIS, warnings);
+  const notices = withNotices(options.notices ?? diagnoseSource(loaded.plant), warnings);
 
   let code = 0;
   let restored = false;

@@ -315,7 +315,7 @@ describe('tui app: help, caution, notices', () => {
   it('without a diagnosis source the notices say so (no invented flags)', async () => {
     const s = await mount('surge-tank.yaml');
     expect(s.frame()).toContain('diagnosis not available');
-    expect(figure(s.frame(), 'Ms')).toBe('n/a');
+    await until(() => figure(s.frame(), 'Ms') === 'n/a', 'the margins cell', s.frame);
   });
 
   it('a notice source is drawn as it reports: flags and the margins of the edited gains', async () => {
@@ -330,10 +330,11 @@ describe('tui app: help, caution, notices', () => {
     };
     const s = await mount('surge-tank.yaml', { notices: source, columns: 120, rows: 40 });
     expect(s.frame()).toContain('test flag from the source');
-    expect(figure(s.frame(), 'Ms')).toBe('2');
+    await until(() => figure(s.frame(), 'Ms') === '2', 'the margins', s.frame);
     await s.press(']');
+    // The margins follow the trial by one frame.
+    await until(() => figure(s.frame(), 'Ms') === '2.2', 'the new margins', s.frame);
     expect(seen).toContain(2.2);
-    expect(figure(s.frame(), 'Ms')).toBe('2.2');
   });
 });
 

@@ -1,0 +1,49 @@
+/**
+ * The notices panel's source when the diagnose core is there: its flags about the plant (made
+ * once, when the screen first asks), and the loop margins of each edited gain set from the
+ * plant's frequency response that the diagnosis computed (reused, so an edit only re-evaluates
+ * the controller factors).
+ */
+import { loopMargins } from '../analysis/index.js';
+import { diagnosePlant, type Diagnosis, type Flag } from '../diagnose/index.js';
+import type { PlantSpec } from '../model/types.js';
+import type { MarginsView, Notice, NoticeSource } from './notices.js';
+
+const TONE: Record<Flag['severity'], Notice['tone']> = { info: 'info', warning: 'warn', severe: 'bad' };
+
+/** One flag as a notice: its kind in words, then the diagnosis's own advice. */
+export function flagNotice(f: Flag): Notice {
+  return { tone: TONE[f.severity], text: `${f.kind.replace(/_/g, ' ')}: ${f.advice}` };
+}
+
+export function diagnoseSource(plant: PlantSpec): NoticeSource {
+  let diagnosis: Diagnosis | null | undefined;
+  let failure = '';
+  const get = (): Diagnosis | null => {
+    if (diagnosis === undefined) {
+      try {
+        diagnosis = diagnosePlant(plant);
+      } catch (error) {
+        // The screen stays usable without a diagnosis; the panel says why there is none.
+        diagnosis = null;
+        failure = (error as Error).message;
+      }
+    }
+    return diagnosis;
+  };
+  return {
+    available: true,
+    plantNotices: () => {
+      const d = get();
+      if (d === null) return [{ tone: 'warn', text: `diagnosis failed: ${failure}` }];
+      if (d.flags.length === 0) return [{ tone: 'info', text: 'diagnosis: no flags; plain PID suits this loop' }];
+      return d.flags.map(flagNotice);
+    },
+    margins: (gains): MarginsView | null => {
+      const d = get();
+      if (d === null || d.plantResponse === null) return null;
+      const m = loopMargins(d.plantResponse, gains, plant.loop.sampleTime, plant.sensor);
+      return { gainMargin: m.gainMargin, phaseMarginDeg: m.phaseMarginDeg, maxSensitivity: m.maxSensitivity, closedLoopStable: m.closedLoopStable };
+    },
+  };
+}
