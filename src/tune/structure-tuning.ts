@@ -270,8 +270,11 @@ function resolveFeedforward(ctx: TuningContext, op: OperatingState, ext: Feedfor
   const dyn = ctx.dynamics;
   const di = dyn.disturbanceNames.indexOf(ext.disturbance);
   if (di < 0) throw new StructureUnavailable(`the plant has no disturbance ${ext.disturbance}`);
-  const gu = pathModel(dyn, op, { kind: 'input' }, { kind: 'output' });
-  const gd = pathModel(dyn, op, { kind: 'disturbance', index: di }, { kind: 'output' });
+  const at = disturbanceOperatingPoint(ctx, ext.disturbance);
+  const here = at?.op ?? op;
+  const where = at ? `at the steady state for setpoint ${fmt(at.setpoint)} in force when ${ext.disturbance} first steps` : 'at the start';
+  const gu = pathModel(dyn, here, { kind: 'input' }, { kind: 'output' });
+  const gd = pathModel(dyn, here, { kind: 'disturbance', index: di }, { kind: 'output' });
   if (typeof gu === 'string') throw new StructureUnavailable(gu);
   if (typeof gd === 'string') throw new StructureUnavailable(gd);
   const el = loopElements(ctx, false, false);
@@ -284,7 +287,7 @@ function resolveFeedforward(ctx: TuningContext, op: OperatingState, ext: Feedfor
     if (ku !== null && kd !== null && ku !== 0) gain = -kd / ku;
     else if (lu.integrating !== null && ld.integrating !== null) gain = -ld.integrating.kv / lu.integrating.kv;
     else throw new StructureUnavailable('no static gain of the input or disturbance path for the feedforward');
-    basis.push(`feedforward gain ${fmt(gain)} = -Gd(0)/Gu(0) (linear models at the start)`);
+    basis.push(`feedforward gain ${fmt(gain)} = -Gd(0)/Gu(0) (linear models ${where})`);
   }
   let leadLag = ll;
   if (ll !== null && needDyn) {
@@ -301,6 +304,36 @@ function resolveFeedforward(ctx: TuningContext, op: OperatingState, ext: Feedfor
     basis.push(`feedforward delay ${fmt(delay)} s (disturbance path delay minus input path delay, when positive)`);
   }
   return { ...ext, gain, leadLag, delay };
+}
+
+/**
+ * For an ode plant: the steady state at the setpoint in force when `name` first steps in the
+ * trial (other disturbances as they are then), where the feedforward will act; null when that
+ * is the start, or no such steady state exists (then the start is used).
+ */
+function disturbanceOperatingPoint(ctx: TuningContext, name: string): { op: OperatingState; setpoint: number } | null {
+  const dyn = ctx.dynamics;
+  if (dyn.linear !== null) return null;
+  const d = Float64Array.from(dyn.d0);
+  let sp = trialSetpoints(ctx)[0];
+  let found = false;
+  for (const e of ctx.trial.events) {
+    if (e.kind === 'disturbance' && e.name === name) {
+      found = true;
+      break;
+    }
+    if (e.kind === 'setpoint') sp = e.value;
+    else if (e.kind === 'setpoint_ramp') sp = e.to;
+    else if (e.kind === 'disturbance') {
+      const i = dyn.disturbanceNames.indexOf(e.name);
+      if (i >= 0) d[i] = e.value;
+    }
+  }
+  if (!found) return null;
+  const act = ctx.spec.actuator;
+  const eq = findEquilibrium(dyn, sp, { uMin: act.min, uMax: act.max, d, u0: ctx.spec.loop.trial.initialOutput ?? undefined });
+  if (!eq.ok) return null;
+  return { op: { x: eq.x, u: eq.u, d }, setpoint: sp };
 }
 
 /**
