@@ -3,6 +3,7 @@
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
 import { checkCommand } from './commands/check.js';
+import { compareCommand } from './commands/compare.js';
 import { diagnoseCommand } from './commands/diagnose.js';
 import { exportCommand } from './commands/export.js';
 import { fitCommand } from './commands/fit.js';
@@ -42,6 +43,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await diagnoseCommand(rest, io);
       case 'optimize':
         return await optimizeCommand(rest, io);
+      case 'compare':
+        return await compareCommand(rest, io);
       case 'help':
       case '--help':
       case '-h':

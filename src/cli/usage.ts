@@ -9,6 +9,8 @@ Usage:
                                 (looprig check --help)
   looprig export FILE [options] the gains in your controller's form and units, and discrete
                                 velocity-form coefficients (looprig export --help)
+  looprig compare FILE [--json] the file's candidate controllers (or ones chosen from the
+                                diagnosis) on the same trial, side by side (looprig compare --help)
   looprig help                  show this text
 
 Options for run:

@@ -1,0 +1,192 @@
+/**
+ * `looprig compare FILE [--json]`: every candidate controller (the file's `compare:` list, or
+ * candidates chosen from the diagnosis) on the same trial of the same plant, one table row each:
+ * structure, gains, step and disturbance figures, actuator use, margins of the linearised loop
+ * and the worst case over the file's uncertainty ranges.
+ */
+import { parseArgs } from 'node:util';
+import type { PlantSpec } from '../../model/types.js';
+import { compareCandidates, type CandidateReport, type CompareResult } from '../../tune/index.js';
+import { UserError } from '../errors.js';
+import { num, secs, table } from '../format.js';
+import type { Io } from '../io.js';
+import { finiteOrNull, toJson } from '../json.js';
+import { loadPlantFile } from '../load-plant-file.js';
+
+export const COMPARE_USAGE = `Usage: looprig compare FILE [options]
+
+Runs every candidate controller on the plant file's trial and prints one row per candidate:
+structure, gains, rise time, overshoot, settling time (worst over the setpoint steps), IAE over
+the setpoint steps and over the disturbance events, peak controller output, time at an
+actuator limit, Ms and gain/phase margins of the linearised loop, and the worst case over the
+file's uncertainty ranges. The candidates are the file's compare: list; without one they are
+chosen from the diagnosis (dead time -> Smith predictor, nonlinear plant -> gain schedule,
+stepped model disturbance -> feedforward, faster inner measurement -> cascade), and the table
+says which finding led to each. Candidates without gains start from tuned gains.
+
+Options:
+  --json         one JSON document on stdout
+  --samples N    Monte-Carlo samples over the uncertainty per candidate, besides the corners (default 0)
+  --nominal      skip the uncertainty sweep
+  -h, --help     show this text
+`;
+
+interface CompareArgs {
+  file: string;
+  json: boolean;
+  samples: number;
+  nominal: boolean;
+}
+
+function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...args],
+      allowPositionals: true,
+      strict: true,
+      options: {
+        json: { type: 'boolean' },
+        samples: { type: 'string' },
+        nominal: { type: 'boolean' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    });
+  } catch (error) {
+    throw new UserError(`compare: ${(error as Error).message}`);
+  }
+  const { values, positionals } = parsed;
+  if (values.help) return 'help';
+  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'compare: missing FILE' : 'compare: one FILE expected');
+  const samples = values.samples === undefined ? 0 : Number(values.samples);
+  if (!Number.isInteger(samples) || samples < 0) throw new UserError('compare: --samples must be a whole number >= 0');
+  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true };
+}
+
+function gainsText(c: CandidateReport): string {
+  const r = c.row;
+  if (c.controller === null) return '-';
+  const parts = [`kc=${num(r.kc)}`];
+  if (Number.isFinite(r.ti)) parts.push(`ti=${secs(r.ti)}`);
+  if (r.td > 0) parts.push(`td=${secs(r.td)}`);
+  return parts.join(' ');
+}
+
+function worstText(c: CandidateReport): string {
+  const w = c.row.worst;
+  if (w === null) return '-';
+  if (w.anyDiverged) return `diverges (${w.cases} cases)`;
+  const ms = w.worstMs === Infinity ? 'unstable' : num(w.worstMs, 3);
+  const os = Number.isNaN(w.worstOvershootPct) ? '-' : `${num(w.worstOvershootPct, 3)} %`;
+  const ts = Number.isNaN(w.worstSettlingTime) ? '-' : secs(w.worstSettlingTime, 'never');
+  return `os ${os} ts ${ts} IAE ${num(w.worstIae, 3)} Ms ${ms}`;
+}
+
+/** The table and notes as text. */
+export function compareText(plant: PlantSpec, r: CompareResult): string {
+  const lines: string[] = [
+    `${plant.name}: ${r.candidates.length} candidates on the same trial` +
+      (r.sweepCases > 0 ? `, worst case over ${r.sweepCases + 1} plant cases` : ''),
+  ];
+  if (r.source === 'chosen') {
+    const kinds = r.flags.map((f) => `${f.kind} (${f.severity})`);
+    lines.push(`  no compare: list in the file; candidates chosen from the diagnosis: ${kinds.length ? kinds.join(', ') : 'no findings'}`);
+  }
+  lines.push('');
+  const rows: string[][] = [
+    ['candidate', 'structure', 'gains', 'rise', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'sat', 'Ms', 'GM', 'PM', 'worst case'],
+  ];
+  for (const c of r.candidates) {
+    const w = c.row;
+    if (c.controller === null || c.unavailable !== null) {
+      rows.push([c.name, c.structure, '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', 'not set up']);
+      continue;
+    }
+    const diverged = w.status === 'diverged';
+    rows.push([
+      c.name,
+      c.structure,
+      gainsText(c),
+      secs(w.riseTime, Number.isNaN(w.riseTime) ? '-' : 'never'),
+      Number.isNaN(w.overshootPct) ? '-' : `${num(w.overshootPct, 3)} %`,
+      secs(w.settlingTime, Number.isNaN(w.settlingTime) ? '-' : 'never'),
+      diverged ? 'diverged' : num(w.iaeSetpoint, 4),
+      diverged ? 'diverged' : num(w.iaeDisturbance, 4),
+      num(w.peakOutput, 4),
+      secs(w.saturatedTime),
+      w.maxSensitivity === Infinity ? 'unstable' : num(w.maxSensitivity, 3),
+      num(w.gainMargin, 3, Number.isNaN(w.gainMargin) ? '-' : 'inf'),
+      Number.isFinite(w.phaseMarginDeg) ? `${num(w.phaseMarginDeg, 3)} deg` : '-',
+      worstText(c),
+    ]);
+  }
+  lines.push(table(rows), '');
+  for (const c of r.candidates) {
+    lines.push(`${c.name}: ${c.origin.reason}${c.origin.flags.length ? ` [${c.origin.flags.join(', ')}]` : ''}`);
+    if (c.row.detail) lines.push(`  ${c.row.detail}`);
+    if (c.unavailable !== null) lines.push(`  not set up: ${c.unavailable}`);
+    for (const b of c.basis) lines.push(`  from ${b}`);
+    for (const n of c.notes) lines.push(`  note: ${n}`);
+  }
+  for (const n of r.notes) lines.push(`note: ${n}`);
+  return `${lines.join('\n')}\n`;
+}
+
+/** The comparison as one JSON document. */
+export function compareJson(file: string, plant: PlantSpec, r: CompareResult): unknown {
+  return {
+    plant: { name: plant.name, file },
+    source: r.source,
+    flags: r.flags.map((f) => ({ kind: f.kind, severity: f.severity, evidence: f.evidence })),
+    sweep_cases: r.sweepCases,
+    candidates: r.candidates.map((c) => {
+      const w = c.row;
+      const ext = c.controller?.extension ?? null;
+      return {
+        name: c.name,
+        structure: c.structure,
+        origin: { kind: c.origin.kind, flags: c.origin.flags, reason: c.origin.reason },
+        status: w.status,
+        unavailable: c.unavailable,
+        gains: c.controller ? { kc: w.kc, ti: finiteOrNull(w.ti), td: w.td, b: c.controller.gains.b, c: c.controller.gains.c } : null,
+        structure_settings: ext,
+        detail: w.detail,
+        rise_time: finiteOrNull(w.riseTime),
+        overshoot_pct: finiteOrNull(w.overshootPct),
+        settling_time: finiteOrNull(w.settlingTime),
+        iae_setpoint: finiteOrNull(w.iaeSetpoint),
+        iae_disturbance: finiteOrNull(w.iaeDisturbance),
+        peak_output: finiteOrNull(w.peakOutput),
+        saturated_time: finiteOrNull(w.saturatedTime),
+        max_sensitivity: finiteOrNull(w.maxSensitivity),
+        gain_margin: finiteOrNull(w.gainMargin),
+        phase_margin_deg: finiteOrNull(w.phaseMarginDeg),
+        margins_loop: c.margins?.loop ?? null,
+        worst_case: w.worst && {
+          cases: w.worst.cases,
+          any_diverged: w.worst.anyDiverged,
+          overshoot_pct: finiteOrNull(w.worst.worstOvershootPct),
+          settling_time: finiteOrNull(w.worst.worstSettlingTime),
+          iae: finiteOrNull(w.worst.worstIae),
+          max_sensitivity: finiteOrNull(w.worst.worstMs),
+        },
+        basis: c.basis,
+        notes: c.notes,
+      };
+    }),
+    notes: r.notes,
+  };
+}
+
+/** `looprig compare ...` */
+export async function compareCommand(args: readonly string[], io: Io): Promise<number> {
+  const options = parseCompareArgs(args);
+  if (options === 'help') {
+    io.out(COMPARE_USAGE);
+    return 0;
+  }
+  const { plant } = loadPlantFile(options.file, io);
+  const result = compareCandidates(plant, { robustness: options.nominal ? false : { samples: options.samples } });
+  io.out(options.json ? toJson(compareJson(options.file, plant, result)) : compareText(plant, result));
+  return 0;
+}
