@@ -15,7 +15,7 @@ import { HINT, keyTokens } from './keymap.js';
 import { computeLayout, type Layout } from './layout.js';
 import { LiveRun } from './live-run.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
-import type { Notice, NoticeSource } from './notices.js';
+import type { MarginsView, Notice, NoticeSource } from './notices.js';
 import { CautionOverlay } from './panels/CautionOverlay.js';
 import { ChartPanel } from './panels/ChartPanel.js';
 import { GainsPanel } from './panels/GainsPanel.js';
@@ -290,6 +290,7 @@ export function App(props: AppProps) {
         metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - 1)}
         nowLabel={nowLabel}
         notices={notices}
+        margins={marginsNow}
         actuator={plant.actuator}
       />
     );
@@ -349,6 +350,7 @@ interface PanelsProps {
   metricRowsNow: ReturnType<typeof metricRows>;
   nowLabel: string;
   notices: Notice[];
+  margins: MarginsView | null | 'pending';
   actuator: { min: number; max: number };
 }
 
@@ -385,6 +387,8 @@ function Panels(p: PanelsProps) {
   if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· baseline only ' : '· baseline ', color: theme.baseline });
   if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
   const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
+  const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
+  if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
 
   const showTrend = layout.trendRows > 0;
   const trendGrid = showTrend
@@ -427,7 +431,9 @@ function Panels(p: PanelsProps) {
           />
         )}
         {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
-        {layout.noticesWidth > 0 && <NoticesPanel notices={p.notices} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />}
+        {layout.noticesWidth > 0 && (
+          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
+        )}
       </Box>
     </Box>
   );
@@ -450,7 +456,7 @@ function Panels(p: PanelsProps) {
   return (
     <Box flexDirection="column" width={w}>
       {trendGrid !== null && (
-        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} />
+        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} />
       )}
       {outputGrid !== null && (
         <ChartPanel
@@ -461,6 +467,7 @@ function Panels(p: PanelsProps) {
             { text: '= limits ', color: theme.limit },
           ]}
           grid={outputGrid}
+          marks={marks}
           t0={t0}
           t1={t1}
           width={w}
@@ -471,6 +478,15 @@ function Panels(p: PanelsProps) {
       {bottom}
     </Box>
   );
+}
+
+/** The margins of the edited gains as one notices line, or null without a diagnosis. */
+function marginsLine(m: MarginsView | null | 'pending', theme: Theme): Piece[] | null {
+  if (m === null) return null;
+  if (m === 'pending') return [{ text: 'margins …', color: theme.dim }];
+  if (m.closedLoopStable === false) return [{ text: 'closed loop UNSTABLE', color: theme.bad, bold: true }];
+  const f = (v: number, unit = ''): string => (Number.isFinite(v) ? `${Number(v.toPrecision(3))}${unit}` : v > 0 ? '∞' : '—');
+  return [{ text: `GM ${f(m.gainMargin)}  PM ${f(m.phaseMarginDeg, '°')}  Ms ${f(m.maxSensitivity)}`, bold: true }];
 }
 
 /** One rule over the gain, metrics and notices columns, with a title over each. */

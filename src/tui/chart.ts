@@ -178,9 +178,17 @@ function rowsFor(min: number, max: number, h: number): number {
 
 /**
  * The time axis under a chart: start time under the first data column, end time at the right
- * edge, and the middle when there is room. Exactly `width` characters.
+ * edge, the middle when there is room, and one-character marks at given instants. Exactly
+ * `width` characters.
  */
-export function timeAxis(t0: number, t1: number, gutter: number, columns: number, width: number): string {
+export function timeAxis(
+  t0: number,
+  t1: number,
+  gutter: number,
+  columns: number,
+  width: number,
+  marks: readonly { at: number; ch: string }[] = [],
+): string {
   const left = `${axisLabel(t0)} s`;
   const right = `${axisLabel(t1)} s`;
   const line = new Array<string>(width).fill(' ');
@@ -193,5 +201,10 @@ export function timeAxis(t0: number, t1: number, gutter: number, columns: number
   const mid = `${axisLabel((t0 + t1) / 2)} s`;
   const midAt = gutter + Math.round(columns / 2 - mid.length / 2);
   if (midAt > gutter + left.length + 2 && midAt + mid.length + 2 < rightAt) put(midAt, mid);
+  // Instants worth pointing at (the rehearsal's switch) go over the labels.
+  for (const m of marks) {
+    if (!(t1 > t0) || m.at < t0 || m.at > t1) continue;
+    put(gutter + Math.min(columns - 1, Math.round(((m.at - t0) / (t1 - t0)) * columns)), m.ch);
+  }
   return line.join('');
 }

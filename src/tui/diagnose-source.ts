@@ -13,7 +13,7 @@ const TONE: Record<Flag['severity'], Notice['tone']> = { info: 'info', warning: 
 
 /** One flag as a notice: its kind in words, then the diagnosis's own advice. */
 export function flagNotice(f: Flag): Notice {
-  return { tone: TONE[f.severity], text: `${f.kind.replace(/_/g, ' ')}: ${f.advice}` };
+  return { tone: TONE[f.severity], title: f.kind.replace(/_/g, ' '), text: f.advice };
 }
 
 export function diagnoseSource(plant: PlantSpec): NoticeSource {

@@ -8,6 +8,8 @@ import type { GainSet } from '../model/types.js';
 
 export interface Notice {
   tone: 'info' | 'warn' | 'bad';
+  /** Short heading (e.g. the flag's kind); absent = the text is all there is. */
+  title?: string;
   text: string;
 }
 

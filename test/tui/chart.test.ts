@@ -72,6 +72,10 @@ describe('tui chart', () => {
     expect(a.slice(9, 12)).toBe('0 s');
     expect(a.trimEnd().endsWith('600 s')).toBe(true);
     expect(a).toContain('300 s');
+    // A mark at 450 s of 0..600 s lands three quarters along the 71 data columns.
+    const m = timeAxis(0, 600, 9, 71, 80, [{ at: 450, ch: '▲' }]);
+    expect(m).toHaveLength(80);
+    expect(m.indexOf('▲')).toBe(9 + Math.round(0.75 * 71));
   });
 });
 

@@ -28,7 +28,7 @@ describe('tui diagnose source', () => {
     expect(d.flags.length).toBeGreaterThan(0);
     const notices = source.plantNotices();
     expect(notices).toEqual(d.flags.map(flagNotice));
-    expect(notices[0].text).toContain(d.flags[0].advice);
+    expect(notices[0]).toMatchObject({ title: d.flags[0].kind.replace(/_/g, ' '), text: d.flags[0].advice });
   });
 
   it("margins for the file's gains equal the diagnosis's own", () => {

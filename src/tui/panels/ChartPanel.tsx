@@ -15,6 +15,8 @@ export interface ChartPanelProps {
   t1: number;
   width: number;
   theme: Theme;
+  /** Instants marked on the time axis. */
+  marks?: readonly { at: number; ch: string }[];
   /** Tag -> colour of the series. */
   colors: Readonly<Record<string, string | undefined>>;
 }
@@ -34,7 +36,7 @@ export function ChartPanel(p: ChartPanelProps) {
       <Line
         width={p.width}
         color={p.theme.color}
-        pieces={[{ text: timeAxis(p.t0, p.t1, p.grid.gutter, p.grid.columns, p.width), color: p.theme.dim }]}
+        pieces={[{ text: timeAxis(p.t0, p.t1, p.grid.gutter, p.grid.columns, p.width, p.marks), color: p.theme.dim }]}
       />
     </Box>
   );
