@@ -1,7 +1,7 @@
 /**
  * Entry point of the terminal screen: load the plant file, take over the terminal (alternate
  * screen, raw keys), run the app, and give the terminal back however the screen ends: quit,
- * Ctrl-C, SIGTERM, SIGHUP or a crash.
+ * Ctrl-C, SIGTERM, SIGHUP, SIGINT or a crash.
  */
 import { randomBytes } from 'node:crypto';
 import { readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
@@ -30,7 +30,7 @@ export interface ScreenOptions {
 }
 
 /** Exit status after SIGTERM / SIGHUP (128 + signal number, shell convention). */
-const SIGNAL_EXIT: Record<string, number> = { SIGTERM: 143, SIGHUP: 129 };
+const SIGNAL_EXIT: Record<string, number> = { SIGTERM: 143, SIGHUP: 129, SIGINT: 130 };
 
 const ENTER_ALT = '\u001b[?1049h\u001b[H';
 const LEAVE_ALT = '\u001b[?1049l';
@@ -121,8 +121,9 @@ export async function runScreen(filePath: string, options: ScreenOptions = {}): 
     code = SIGNAL_EXIT[signal] ?? 1;
     instance.unmount();
   };
-  process.on('SIGTERM', onSignal);
-  process.on('SIGHUP', onSignal);
+  // In raw mode Ctrl-C is a key (the app asks before quitting); a SIGINT from elsewhere ends it.
+  const signals: NodeJS.Signals[] = ['SIGTERM', 'SIGHUP', 'SIGINT'];
+  for (const s of signals) process.on(s, onSignal);
   // Last resort: whatever ends the process, the terminal comes back.
   process.on('exit', restore);
   try {
@@ -132,8 +133,7 @@ export async function runScreen(filePath: string, options: ScreenOptions = {}): 
     stderr.write(`looprig: the screen stopped: ${(error as Error).message}\n`);
     code = 1;
   } finally {
-    process.off('SIGTERM', onSignal);
-    process.off('SIGHUP', onSignal);
+    for (const s of signals) process.off(s, onSignal);
     process.off('exit', restore);
     restore();
     // Ink leaves stdin flowing on some terminals; without this the process would not end.
