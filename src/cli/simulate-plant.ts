@@ -4,7 +4,7 @@
  */
 import { checkRequirements, trialMetrics } from '../analysis/index.js';
 import type { RequirementResult, TrialMetrics } from '../analysis/index.js';
-import { buildController } from '../control/index.js';
+import { fileController } from '../tune/index.js';
 import { compilePlant } from '../model/index.js';
 import type { PlantDynamics, PlantSpec } from '../model/types.js';
 import { chooseStep, runTrial } from '../sim/index.js';
@@ -22,7 +22,7 @@ export interface SimulatedTrial {
 /** Simulate the file's trial with its controller (`dynamics` may be passed when compiled already). */
 export function simulatePlant(plant: PlantSpec, dynamics: PlantDynamics = compilePlant(plant)): SimulatedTrial {
   const loop = plant.loop;
-  const controller = buildController(loop.controller, loop.sampleTime);
+  const controller = fileController(plant, dynamics);
   const choice = loop.step === null ? chooseStep(dynamics, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0) : null;
   const config: LoopConfig = {
     actuator: plant.actuator,

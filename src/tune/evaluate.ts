@@ -50,7 +50,9 @@ export function gainMargins(ctx: TuningContext, gains: GainSet): Margins | null 
 /** Simulate the file's trial with `gains` (structure imposed) and measure it. */
 export function simulateGains(ctx: TuningContext, gains: GainSet, structure: ControllerStructure): { result: TrialResult; metrics: TrialMetrics } {
   const spec = ctx.spec;
-  const controller = buildController({ ...spec.loop.controller, structure, gains }, spec.loop.sampleTime);
+  // The plain law of `structure`: a structure around the file's law (Smith, cascade ...) is not part of a gain set.
+  const { extension: _structure, named: _named, ...plain } = spec.loop.controller;
+  const controller = buildController({ ...plain, structure, gains }, spec.loop.sampleTime);
   const result = runTrial(ctx.dynamics, controller, ctx.loop, ctx.trial);
   const metrics = trialMetrics(result.trace, ctx.trial, spec.loop.requirements);
   return { result, metrics };

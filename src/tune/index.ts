@@ -38,7 +38,7 @@ export type { OptimizeOptions, OptimizeProgress, OptimizeResult, OptimizeStop } 
 export { robustnessSweep, planSweep, sweepCases, summarise, caseFigures, MAX_CORNER_DIMS } from './robustness.js';
 export type { SweepPlan, RobustnessOptions, RobustnessCase, RobustnessSummary, RobustnessResult, TraceEnvelope } from './robustness.js';
 export { specWithValues, modelWithValues } from './uncertain-spec.js';
-export { resolveController, StructureUnavailable, startState, trialSetpoints } from './structure-tuning.js';
+export { resolveController, fileController, StructureUnavailable, startState, trialSetpoints } from './structure-tuning.js';
 export type { ResolvedController, ResolveOptions } from './structure-tuning.js';
 export { structureMargins, gridMargins } from './structure-margins.js';
 export type { StructureMargins } from './structure-margins.js';

@@ -36,7 +36,11 @@ import type {
   SmithSpec,
   StructureName,
 } from '../model/types.js';
-import type { LinearModel } from '../sim/index.js';
+import { buildController } from '../control/index.js';
+import { compilePlant } from '../model/index.js';
+import type { PlantSpec } from '../model/types.js';
+import type { DiscreteController, LinearModel, PlantDynamics } from '../sim/index.js';
+import { tuningContext } from './tuning-context.js';
 import { lowOrderOf, type LoopElements, type LowOrderModels } from './approximation.js';
 import { pathModel, staticGain, type OperatingState } from './path-models.js';
 import { simcIntegratingPi, simcPi, simcPid } from './rules/simc.js';
@@ -486,4 +490,15 @@ function resolveSchedule(
   const w = new Float64Array(3);
   interpolateSchedule(Float64Array.from(table, (r) => r.at), col((g) => g.kc), col((g) => g.ti), col((g) => g.td), v0, w);
   return { ext: { ...ext, table }, gains: tune ? { ...gains, kc: w[0], ti: w[1], td: w[2] } : gains };
+}
+
+/**
+ * The controller of a plant file's `loop.controller`, ready for the engine: a plain law as it is,
+ * a structure with its model-derived values filled in (gains as written). Throws
+ * `StructureUnavailable` when the structure cannot be set up for this plant.
+ */
+export function fileController(spec: PlantSpec, dynamics: PlantDynamics = compilePlant(spec)): DiscreteController {
+  const c = spec.loop.controller;
+  const resolved = c.extension === undefined ? c : resolveController(tuningContext(spec, dynamics), c).controller;
+  return buildController(resolved, spec.loop.sampleTime, dynamics);
 }

@@ -5,7 +5,7 @@
 import { parseArgs } from 'node:util';
 import { checkRequirements, trialMetrics } from '../../analysis/index.js';
 import type { RequirementResult, TrialMetrics } from '../../analysis/index.js';
-import { buildController } from '../../control/index.js';
+import { fileController } from '../../tune/index.js';
 import { compilePlant, parseDuration } from '../../model/index.js';
 import type { PlantSpec, Requirements } from '../../model/types.js';
 import { chooseStep, runTrial } from '../../sim/index.js';
@@ -105,7 +105,7 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
   const plant = withRunOverrides(loaded.plant, options);
   const loop = plant.loop;
   const dynamics = compilePlant(plant);
-  const controller = buildController(loop.controller, loop.sampleTime);
+  const controller = fileController(plant, dynamics);
   const choice = loop.step === null ? chooseStep(dynamics, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0) : null;
   const step = loop.step ?? choice!.step;
   const config: LoopConfig = {
