@@ -33,6 +33,12 @@ export function diagnosisJson(d: Diagnosis): Record<string, unknown> {
       poles: pz ? pz.poles.map((p) => [p.re, p.im]) : [],
       zeros: pz ? pz.zeros.map((p) => [p.re, p.im]) : [],
       static_gain: pz ? num(pz.staticGain) : null,
+      modes: d.modes.map((m) => ({
+        pole: [m.re, m.im],
+        time_constant: num(m.timeConstant),
+        natural_frequency: num(m.naturalFrequency),
+        damping: num(m.damping),
+      })),
       integrators: pz ? pz.integrators : null,
       slope_gain: pz && pz.integrators > 0 ? num(pz.lowFrequencyGain) : null,
       fopdt: d.fopdt
@@ -93,6 +99,8 @@ export function formatDiagnosis(d: Diagnosis): string {
     lines.push(`  poles: ${pz.poles.map(root).join(', ') || 'none'}`);
     lines.push(`  zeros: ${pz.zeros.map(root).join(', ') || 'none'}`);
     lines.push(pz.integrators > 0 ? `  integrating: slope gain ${fmt(pz.lowFrequencyGain)} per s` : `  static gain: ${fmt(pz.staticGain)}`);
+    const lags = d.modes.filter((m) => m.im === 0 && Number.isFinite(m.timeConstant)).map((m) => m.timeConstant);
+    if (lags.length > 0) lines.push(`  time constants: ${lags.map((t) => `${fmt(t)} s`).join(', ')}${lags.some((t) => t < 0) ? ' (negative: unstable)' : ''}`);
     for (const m of d.modes) {
       if (m.im > 0) lines.push(`  complex pair: natural frequency ${fmt(m.naturalFrequency)} rad/s, damping ${fmt(m.damping, 3)}`);
     }
