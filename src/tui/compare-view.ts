@@ -1,0 +1,116 @@
+/**
+ * The comparison view's data, pure: up to four candidates' output traces overlaid on one chart
+ * (the selected candidate drawn last, on top), a legend, and the comparison table as text
+ * lines. The figures all come from tune/'s `compareCandidates`; this file only lays them out.
+ */
+import type { CandidateReport, CompareResult } from '../tune/index.js';
+import type { ChartSeries } from './chart.js';
+import { chartPoints } from './decimate.js';
+import { GLYPHS } from './theme.js';
+
+/** Most candidates overlaid at once (more would not be told apart in character cells). */
+export const MAX_OVERLAID = 4;
+
+/**
+ * Line glyphs per overlay slot, so that the candidates differ without colour too: box lines,
+ * heavy lines, dots, and '+' lines (asciichart's symbol order).
+ */
+export const CANDIDATE_GLYPHS: readonly (readonly string[])[] = [
+  GLYPHS.pv,
+  ['┼', '┤', '╶', '╴', '━', '┗', '┏', '┓', '┛', '┃'],
+  ['┼', '┤', '╶', '╴', '∙', '∙', '∙', '∙', '∙', '∙'],
+  ['┼', '┤', '╶', '╴', '+', '+', '+', '+', '+', '+'],
+];
+
+/** Colour per overlay slot (when colour is on). */
+export const CANDIDATE_COLORS: readonly string[] = ['cyanBright', 'magentaBright', 'greenBright', 'whiteBright'];
+
+/** The candidates that ran (have a trace), in table order. */
+export function runnable(result: CompareResult): CandidateReport[] {
+  return result.candidates.filter((c) => c.result !== null);
+}
+
+/** The next candidate to select (cycling through the ones that ran). */
+export function nextCandidate(selected: number, count: number): number {
+  return count <= 0 ? 0 : (selected + 1) % count;
+}
+
+/**
+ * Which runnable candidates are overlaid: the selected one and the ones after it in table order
+ * (wrapping), up to MAX_OVERLAID. Returned in table order with their overlay slot.
+ */
+export function overlaid(count: number, selected: number): number[] {
+  const n = Math.min(count, MAX_OVERLAID);
+  const out: number[] = [];
+  for (let i = 0; i < n; i++) out.push((selected + i) % count);
+  return out.sort((a, b) => a - b);
+}
+
+/** Legend entries: name and slot of each overlaid candidate, the selected one marked. */
+export interface LegendEntry {
+  name: string;
+  slot: number;
+  selected: boolean;
+}
+
+/** The overlay: chart series (setpoint first, the selected output last) and the legend. */
+export function compareSeries(result: CompareResult, selected: number, t0: number, t1: number, points: number): { series: ChartSeries[]; legend: LegendEntry[] } {
+  const ran = runnable(result);
+  const series: ChartSeries[] = [];
+  const legend: LegendEntry[] = [];
+  if (ran.length === 0) return { series, legend };
+  const sel = Math.min(Math.max(0, selected), ran.length - 1);
+  const first = ran[sel].result!.trace;
+  series.push({ values: chartPoints(first.t, first.r, first.length, t0, t1, points).hi, tag: 'sp', symbols: GLYPHS.sp });
+  const shown = overlaid(ran.length, sel);
+  const drawn: { slot: number; idx: number }[] = shown.map((idx, slot) => ({ slot, idx }));
+  // The selected candidate on top: drawn last.
+  drawn.sort((a, b) => (a.idx === sel ? 1 : 0) - (b.idx === sel ? 1 : 0));
+  for (const { slot, idx } of drawn) {
+    const tr = ran[idx].result!.trace;
+    // The true output (no sensor noise) so that overlaid candidates stay readable.
+    const y = chartPoints(tr.t, tr.y, tr.length, t0, t1, points);
+    series.push({ values: y.lo, tag: `c${slot}`, symbols: CANDIDATE_GLYPHS[slot] });
+    series.push({ values: y.hi, tag: `c${slot}`, symbols: CANDIDATE_GLYPHS[slot] });
+  }
+  shown.forEach((idx, slot) => legend.push({ name: ran[idx].name, slot, selected: idx === sel }));
+  return { series, legend };
+}
+
+function f(x: number, digits = 3): string {
+  if (!Number.isFinite(x)) return Number.isNaN(x) ? '-' : x > 0 ? 'inf' : '-inf';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a >= 1e5 || a < 1e-3) return x.toExponential(digits - 1);
+  return String(Number(x.toPrecision(digits)));
+}
+
+/** The table as fixed-width text lines: a header, then one line per candidate (all of them). */
+export function compareTable(result: CompareResult): string[] {
+  const head = ['candidate', 'structure', 'kc', 'ti', 'td', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'Ms', 'worst Ms'];
+  const rows: string[][] = [head];
+  for (const c of result.candidates) {
+    const r = c.row;
+    if (c.unavailable !== null || c.controller === null) {
+      rows.push([c.name, c.structure, 'not set up', '', '', '', '', '', '', '', '', '']);
+      continue;
+    }
+    rows.push([
+      c.name,
+      c.structure,
+      f(r.kc),
+      Number.isFinite(r.ti) ? `${f(r.ti)} s` : '-',
+      r.td > 0 ? `${f(r.td)} s` : '-',
+      Number.isNaN(r.overshootPct) ? '-' : `${f(r.overshootPct)} %`,
+      Number.isNaN(r.settlingTime) ? '-' : Number.isFinite(r.settlingTime) ? `${f(r.settlingTime)} s` : 'never',
+      r.status === 'diverged' ? 'diverged' : f(r.iaeSetpoint),
+      r.status === 'diverged' ? 'diverged' : f(r.iaeDisturbance),
+      f(r.peakOutput),
+      r.maxSensitivity === Infinity ? 'unstable' : f(r.maxSensitivity),
+      r.worst === null ? '-' : r.worst.anyDiverged ? 'diverges' : f(r.worst.worstMs),
+    ]);
+  }
+  const widths: number[] = [];
+  for (const row of rows) row.forEach((cell, i) => (widths[i] = Math.max(widths[i] ?? 0, cell.length)));
+  return rows.map((row) => row.map((cell, i) => cell.padEnd(widths[i])).join('  ').trimEnd());
+}

@@ -1,0 +1,54 @@
+/**
+ * The comparison view: which candidates are overlaid, selection cycling, series and legend,
+ * the table, and the panel rendered at a fixed width.
+ */
+import { readFileSync } from 'node:fs';
+import { render, cleanup } from 'ink-testing-library';
+import { afterEach, describe, expect, it } from 'vitest';
+import { loadPlant } from '../../src/model/index.js';
+import { compareCandidates } from '../../src/tune/index.js';
+import { compareSeries, compareTable, nextCandidate, overlaid, MAX_OVERLAID } from '../../src/tui/compare-view.js';
+import { ComparePanel } from '../../src/tui/panels/ComparePanel.js';
+import { makeTheme } from '../../src/tui/theme.js';
+
+afterEach(() => cleanup());
+
+const spec = loadPlant(readFileSync(new URL('../../plants/jacketed-reactor-temperature.yaml', import.meta.url), 'utf8'), 'r').plant!;
+const result = compareCandidates(spec, { robustness: false });
+
+describe('compare view', () => {
+  it('overlays the selected candidate and the next ones, at most four, in table order', () => {
+    expect(overlaid(6, 4)).toEqual([0, 1, 4, 5]);
+    expect(overlaid(3, 2)).toEqual([0, 1, 2]);
+    expect(overlaid(5, 0)).toHaveLength(MAX_OVERLAID);
+    expect([0, 1, 2, 3].map((s) => nextCandidate(s, 4))).toEqual([1, 2, 3, 0]);
+  });
+
+  it('series: the setpoint first and the selected candidate last (on top); legend marks it', () => {
+    const { series, legend } = compareSeries(result, 2, 0, 5400, 60);
+    expect(series[0].tag).toBe('sp');
+    expect(series).toHaveLength(1 + 2 * 4);
+    const selectedSlot = legend.find((e) => e.selected)!.slot;
+    expect(series[series.length - 1].tag).toBe(`c${selectedSlot}`);
+    expect(legend.map((e) => e.name)).toEqual(result.candidates.map((c) => c.name));
+    expect(legend.filter((e) => e.selected).map((e) => e.name)).toEqual(['cascade on jacket']);
+  });
+
+  it('table: header and one line per candidate, the figures of the comparison', () => {
+    const lines = compareTable(result);
+    expect(lines[0]).toMatch(/^candidate\s+structure\s+kc\s+ti\s+td\s+overshoot/);
+    expect(lines).toHaveLength(1 + result.candidates.length);
+    expect(lines[3]).toMatch(/^cascade on jacket\s+cascade\s+/);
+  });
+
+  it('panel: exact width, legend with every overlaid name, the selected row marked, without colour', () => {
+    const width = 100;
+    const { lastFrame } = render(<ComparePanel result={result} selected={1} width={width} chartHeight={8} theme={makeTheme(false)} />);
+    const frame = lastFrame() ?? '';
+    const lines = frame.split('\n');
+    for (const l of lines) expect(l.length).toBeLessThanOrEqual(width);
+    expect(lines[0]).toContain('>━ single I-P (b 0)');
+    expect(lines.some((l) => /^> single I-P \(b 0\)\s+i_pd/.test(l))).toBe(true);
+    expect(lines.filter((l) => /^ {2}(single|cascade|feedforward)/.test(l))).toHaveLength(3);
+  });
+});
