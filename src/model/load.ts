@@ -5,6 +5,8 @@
  */
 import { diagnostic, hasErrors, type Diagnostic } from './diagnostics.js';
 import { readActuator } from './schema/actuator.js';
+import { fieldNames, fieldNode, textField } from './schema/fields.js';
+import { PLANT_SCHEMA } from './schema/plant.js';
 import { readCompare } from './schema/compare.js';
 import { readLoop } from './schema/loop.js';
 import { readModel } from './schema/model.js';
@@ -17,7 +19,7 @@ import { parsePlantYaml, type PlantDocument } from './yaml-doc.js';
 /** Largest plant file accepted, in characters (2 MiB). */
 export const MAX_PLANT_TEXT = 2 * 1024 * 1024;
 
-export const TOP_LEVEL_FIELDS = ['name', 'description', 'model', 'actuator', 'sensor', 'uncertainty', 'loop', 'compare'] as const;
+export const TOP_LEVEL_FIELDS = fieldNames(PLANT_SCHEMA);
 
 export interface LoadResult {
   /** Present only when there is no error (warnings allowed). */
@@ -69,12 +71,10 @@ function loadUnsafe(text: string, fileName: string): LoadResult {
   const top = r.fields(root, '', TOP_LEVEL_FIELDS, [0, 0]);
   if (!top) return { diagnostics: [...diagnostics, ...r.diagnostics], doc };
 
-  const nn = top.require('name');
-  const name = nn && r.string(nn, 'name');
-  const dn = top.get('description');
-  if (dn) r.string(dn, 'description');
+  const name = textField(r, top, PLANT_SCHEMA, 'name', undefined);
+  textField(r, top, PLANT_SCHEMA, 'description', null);
 
-  const mn = top.require('model');
+  const mn = fieldNode(top, PLANT_SCHEMA, 'model');
   const modelRead = mn && readModel(r, mn, top.keySpan('model'));
   const actuator = readActuator(r, top.get('actuator'), top.keySpan('actuator'));
   const sensor = readSensor(r, top.get('sensor'), top.keySpan('sensor'));
@@ -84,7 +84,7 @@ function loadUnsafe(text: string, fileName: string): LoadResult {
     modelRead ? modelRead.uncertain : null,
     modelRead ? modelRead.model.type : null,
   );
-  const ln = top.require('loop', ' (sample_time, controller and trial)');
+  const ln = fieldNode(top, PLANT_SCHEMA, 'loop');
   const disturbances = modelRead ? modelRead.disturbances : null;
   const measurements = modelRead ? (modelRead.model.type === 'ode' ? Object.keys(modelRead.model.measurements) : []) : null;
   const loop = ln && readLoop(r, ln, top.keySpan('loop'), actuator, disturbances, measurements);

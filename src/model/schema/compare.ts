@@ -13,11 +13,33 @@
 import { FORM_TERMS } from '../pid-forms.js';
 import type { ActuatorSpec, CompareCandidateSpec, PidForm } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
-import { readController } from './controller.js';
+import { CONTROLLER_SCHEMA, readController } from './controller.js';
+import { fieldNames, fieldNode, textField, type FieldDef, type SectionDef } from './fields.js';
 import type { Reader } from './reader.js';
 import type { StructureContext } from './structure.js';
 
-export const COMPARE_FIELDS = ['name', 'controller'] as const;
+/** A candidate's controller: as loop.controller, but the gains may be left out (then they are tuned). */
+const CANDIDATE_CONTROLLER: SectionDef = {
+  ...CONTROLLER_SCHEMA,
+  description: `${CONTROLLER_SCHEMA.description} Gains left out are tuned from the plant.`,
+  cases: (CONTROLLER_SCHEMA.cases ?? []).map((c) => ({ ...c, required: [] })),
+};
+
+export const COMPARE_ENTRY_SCHEMA: SectionDef = {
+  description: 'One candidate controller to run on the trial beside the others.',
+  fields: {
+    name: { kind: 'text', required: true, hint: ' (a label for the table)', description: 'Label of the candidate (unique).' },
+    controller: { kind: 'section', section: CANDIDATE_CONTROLLER, required: true, description: CANDIDATE_CONTROLLER.description },
+  },
+};
+
+export const COMPARE_FIELD: FieldDef = {
+  kind: 'list',
+  items: { kind: 'section', section: COMPARE_ENTRY_SCHEMA },
+  description: 'Candidate controllers to compare side by side on the loop\'s trial (`looprig compare`).',
+};
+
+export const COMPARE_FIELDS = fieldNames(COMPARE_ENTRY_SCHEMA);
 
 /** Placeholder terms of a candidate whose gains are to be tuned. */
 function placeholder(form: PidForm): Record<string, number> {
@@ -39,13 +61,13 @@ export function readCompare(
     const path = `compare[${i}]`;
     const f = r.fields(item, path, COMPARE_FIELDS, item.span);
     if (!f) return;
-    const nn = f.require('name', ' (a label for the table)');
-    const name = nn && r.string(nn, `${path}.name`);
+    const nn = f.get('name');
+    const name = textField(r, f, COMPARE_ENTRY_SCHEMA, 'name', undefined);
     if (name !== undefined && nn) {
       if (seen.has(name)) r.error('DUPLICATE_NAME', `${path}.name: '${name}' is used by another candidate`, nn.span);
       seen.add(name);
     }
-    const cn = f.require('controller');
+    const cn = fieldNode(f, COMPARE_ENTRY_SCHEMA, 'controller');
     if (!cn || name === undefined) return;
     let autoGains = false;
     let form: PidForm = 'ideal';

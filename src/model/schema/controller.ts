@@ -11,33 +11,102 @@ import type {
   GainSet,
   PidForm,
   Span,
+  StructureName,
 } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
+import { choiceField, fieldNames, numberField, pairField, ruleOf, type FieldDef, type SectionDef } from './fields.js';
 import type { Fields, Reader } from './reader.js';
-import { baseStructure, readStructureSection, STRUCTURE_NAMES, STRUCTURE_SECTIONS, type StructureContext } from './structure.js';
+import { baseStructure, readStructureSection, STRUCTURE_NAMES, STRUCTURE_SECTION_FIELDS, type StructureContext } from './structure.js';
 
 export const STRUCTURES: readonly ControllerStructure[] = ['p', 'pi', 'pd', 'pid'];
 export const FORMS: readonly PidForm[] = ['ideal', 'parallel', 'series'];
 export const ANTI_WINDUP: readonly AntiWindup[] = ['none', 'clamp', 'back_calculation'];
 
-/** Fields shared by the controller block and a trial `gains:` event (besides the form's terms). */
-const TUNING_FIELDS = ['derivative_filter', 'setpoint_weight', 'anti_windup', 'tracking_time'] as const;
-export const CONTROLLER_FIELDS = [
-  'structure',
-  'form',
-  'kc',
-  'ti',
-  'td',
-  'kp',
-  'ki',
-  'kd',
-  ...TUNING_FIELDS,
-  'output_limits',
-  ...STRUCTURE_SECTIONS,
-] as const;
-
 /** Default derivative filter divisor N (filter time td/N): common practice, no source. */
 export const DEFAULT_DERIVATIVE_FILTER = 10;
+
+export const SETPOINT_WEIGHT_SCHEMA: SectionDef = {
+  description: 'Setpoint weights: the proportional term acts on p*r - y, the derivative term on d*r - y.',
+  fields: {
+    p: { kind: 'number', default: 1, description: 'Weight b of the setpoint in the proportional term (default 1).' },
+    d: { kind: 'number', default: 0, description: 'Weight c of the setpoint in the derivative term (default 0: derivative on the measurement).' },
+  },
+};
+
+/** The form's three terms: ideal and series write kc, ti, td; parallel kp, ki, kd. */
+const TERM_FIELDS: Readonly<Record<string, FieldDef>> = {
+  kc: { kind: 'number', description: 'Controller gain Kc (forms ideal and series), output units per measured unit.' },
+  ti: {
+    kind: 'time',
+    rule: { gt: 0, allowInfinity: true },
+    description: 'Integral time Ti (> 0; .inf or absent = no integral action), s or with a unit (forms ideal and series).',
+  },
+  td: { kind: 'time', rule: { ge: 0 }, description: 'Derivative time Td (>= 0; 0 or absent = none), s or with a unit (forms ideal and series).' },
+  kp: { kind: 'number', description: 'Proportional gain Kp (form parallel).' },
+  ki: { kind: 'number', description: 'Integral gain Ki = Kc/Ti, per second (form parallel).' },
+  kd: { kind: 'number', description: 'Derivative gain Kd = Kc Td, times seconds (form parallel).' },
+};
+
+/** Fields shared by the controller block and a trial `gains:` event (besides the form's terms). */
+const TUNING_FIELDS: Readonly<Record<string, FieldDef>> = {
+  derivative_filter: {
+    kind: 'number',
+    rule: { gt: 0 },
+    default: DEFAULT_DERIVATIVE_FILTER,
+    description: 'Derivative filter divisor N (> 0): the derivative is filtered with time constant Td/N.',
+  },
+  setpoint_weight: { kind: 'section', section: SETPOINT_WEIGHT_SCHEMA, description: SETPOINT_WEIGHT_SCHEMA.description },
+  anti_windup: { kind: 'choice', choices: ANTI_WINDUP, default: 'clamp', description: 'What the integral does while the actuator is at a limit.' },
+  tracking_time: {
+    kind: 'time',
+    rule: { gt: 0 },
+    description: 'Tracking time of back_calculation anti-windup (> 0; default sqrt(Ti Td), or Ti/2 without derivative), s or with a unit.',
+  },
+};
+
+/** Which terms each form requires and refuses (derived from FORM_TERMS). */
+const FORM_CASES = [
+  { field: 'form', absent: 'ideal', values: ['ideal', 'series'], required: [FORM_TERMS.ideal[0]], forbidden: [...FORM_TERMS.parallel] },
+  { field: 'form', absent: 'ideal', values: ['parallel'], required: [FORM_TERMS.parallel[0]], forbidden: [...FORM_TERMS.ideal] },
+] as const;
+
+export const CONTROLLER_SCHEMA: SectionDef = {
+  description: 'The PID controller: structure, form, gains (in the form written), derivative filter, setpoint weights, anti-windup, output limits.',
+  fields: {
+    structure: {
+      kind: 'choice',
+      choices: STRUCTURE_NAMES,
+      default: 'pid',
+      description: 'Controller structure: p, pi, pd, pid; pi_d / i_pd (setpoint weights by name); smith_pi, feedforward, cascade, scheduled (with their section).',
+    },
+    form: {
+      kind: 'choice',
+      choices: FORMS,
+      default: 'ideal',
+      description: 'How the gains are written: ideal Kc(1 + 1/(Ti s) + Td s), parallel Kp + Ki/s + Kd s, series Kc(1 + 1/(Ti s))(1 + Td s).',
+    },
+    ...TERM_FIELDS,
+    ...TUNING_FIELDS,
+    output_limits: {
+      kind: 'pair',
+      of: 'number',
+      strict: true,
+      rule: { allowInfinity: true, allowNegativeInfinity: true },
+      description: 'Controller output limits [low, high] (default: the actuator limits).',
+    },
+    ...STRUCTURE_SECTION_FIELDS,
+  },
+  cases: FORM_CASES,
+};
+
+export const CONTROLLER_FIELDS = fieldNames(CONTROLLER_SCHEMA);
+
+/** A trial `gains:` event: new values for some of the controller's fields, in the controller's form. */
+export const GAINS_EVENT_SCHEMA: SectionDef = {
+  description: "New gains from this instant, in the controller's form (fields left out keep their value); the switch is bumpless.",
+  fields: { ...TERM_FIELDS, ...TUNING_FIELDS },
+};
+
 
 const hasIntegral = (s: ControllerStructure): boolean => s === 'pi' || s === 'pid';
 const hasDerivative = (s: ControllerStructure): boolean => s === 'pd' || s === 'pid';
@@ -82,7 +151,7 @@ function readTerms(
   } else if (!base) ok = false;
   const iN = f.get(iKey);
   if (iN) {
-    const v = parallel ? r.number(iN, f.at(iKey)) : r.time(iN, f.at(iKey), { gt: 0, allowInfinity: true });
+    const v = parallel ? r.number(iN, f.at(iKey)) : r.time(iN, f.at(iKey), ruleOf(CONTROLLER_SCHEMA, 'ti'));
     if (v === undefined) ok = false;
     else if (!hasIntegral(structure)) {
       const active = parallel ? v !== 0 : v !== Infinity;
@@ -91,7 +160,7 @@ function readTerms(
   }
   const dN = f.get(dKey);
   if (dN) {
-    const v = parallel ? r.number(dN, f.at(dKey)) : r.time(dN, f.at(dKey), { ge: 0 });
+    const v = parallel ? r.number(dN, f.at(dKey)) : r.time(dN, f.at(dKey), ruleOf(CONTROLLER_SCHEMA, 'td'));
     if (v === undefined) ok = false;
     else if (!hasDerivative(structure)) {
       if (v !== 0) r.warn('IGNORED_FIELD', `${f.at(dKey)} is ignored: structure '${structure}' has no derivative action`, dN.span);
@@ -111,43 +180,31 @@ interface Tuning {
 }
 
 function readTuning(r: Reader, f: Fields, base: Tuning): Tuning | undefined {
+  const s = GAINS_EVENT_SCHEMA;
   const out = { ...base };
   let ok = true;
-  const nn = f.get('derivative_filter');
-  if (nn) {
-    const v = r.number(nn, f.at('derivative_filter'), { gt: 0 });
-    if (v === undefined) ok = false;
-    else out.n = v;
-  }
+  const n = numberField(r, f, s, 'derivative_filter', null);
+  if (n === undefined) ok = false;
+  else if (n !== null) out.n = n;
   const sw = f.get('setpoint_weight');
   if (sw) {
-    const wf = r.fields(sw, f.at('setpoint_weight'), ['p', 'd'], f.keySpan('setpoint_weight'));
+    const ws = SETPOINT_WEIGHT_SCHEMA;
+    const wf = r.fields(sw, f.at('setpoint_weight'), fieldNames(ws), f.keySpan('setpoint_weight'));
     if (!wf) ok = false;
-    const bp = wf?.get('p');
-    const cd = wf?.get('d');
-    if (bp) {
-      const v = r.number(bp, `${f.at('setpoint_weight')}.p`);
-      if (v === undefined) ok = false;
-      else out.b = v;
-    }
-    if (cd) {
-      const v = r.number(cd, `${f.at('setpoint_weight')}.d`);
-      if (v === undefined) ok = false;
-      else out.c = v;
+    else {
+      const b = numberField(r, wf, ws, 'p', null);
+      const c = numberField(r, wf, ws, 'd', null);
+      if (b === undefined || c === undefined) ok = false;
+      if (typeof b === 'number') out.b = b;
+      if (typeof c === 'number') out.c = c;
     }
   }
-  const aw = f.get('anti_windup');
-  if (aw) {
-    const v = r.choice(aw, f.at('anti_windup'), ANTI_WINDUP);
-    if (v === undefined) ok = false;
-    else out.antiWindup = v;
-  }
-  const tt = f.get('tracking_time');
-  if (tt) {
-    const v = r.time(tt, f.at('tracking_time'), { gt: 0 });
-    if (v === undefined) ok = false;
-    else out.trackingTime = v;
-  }
+  const aw = choiceField<AntiWindup, null>(r, f, s, 'anti_windup', null);
+  if (aw === undefined) ok = false;
+  else if (aw !== null) out.antiWindup = aw;
+  const tt = numberField(r, f, s, 'tracking_time', null);
+  if (tt === undefined) ok = false;
+  else if (tt !== null) out.trackingTime = tt;
   return ok ? out : undefined;
 }
 
@@ -179,12 +236,11 @@ export function readController(
   actuator: ActuatorSpec,
   options: ControllerReadOptions = {},
 ): ControllerSpec | undefined {
+  const s = CONTROLLER_SCHEMA;
   const f = r.fields(node, options.path ?? 'loop.controller', CONTROLLER_FIELDS, owner);
   if (!f) return undefined;
-  const sn = f.get('structure');
-  const fn = f.get('form');
-  const named = sn ? r.choice(sn, f.at('structure'), STRUCTURE_NAMES) : 'pid';
-  const form = fn ? r.choice(fn, f.at('form'), FORMS) : 'ideal';
+  const named = choiceField<StructureName, StructureName>(r, f, s, 'structure', 'pid');
+  const form = choiceField<PidForm, PidForm>(r, f, s, 'form', 'ideal');
   if (named === undefined || form === undefined) return undefined;
   const structure = baseStructure(named);
   checkFamily(r, f, form);
@@ -209,11 +265,8 @@ export function readController(
     : { ok: false };
   let outputMin = actuator.min;
   let outputMax = actuator.max;
-  const ol = f.get('output_limits');
-  if (ol) {
-    const p = r.pair(ol, f.at('output_limits'), false, true, { allowInfinity: true, allowNegativeInfinity: true });
-    if (p) [outputMin, outputMax] = p;
-  }
+  const limits = pairField(r, f, s, 'output_limits', null);
+  if (limits) [outputMin, outputMax] = limits;
   if (!values || !tuning || !section.ok) return undefined;
   const gains = convert(r, f, form, values, tuning);
   if (!gains) return undefined;
@@ -228,8 +281,7 @@ export function readController(
  * settings with the named fields replaced.
  */
 export function readGainsOverride(r: Reader, node: YNode, path: string, owner: Span, base: ControllerSpec): GainSet | undefined {
-  const allowed = [...FORM_TERMS.ideal, ...FORM_TERMS.parallel, ...TUNING_FIELDS];
-  const f = r.fields(node, path, allowed, owner);
+  const f = r.fields(node, path, fieldNames(GAINS_EVENT_SCHEMA), owner);
   if (!f) return undefined;
   checkFamily(r, f, base.form);
   const values = readTerms(r, f, base.form, base.structure, base.values);

@@ -1,23 +1,34 @@
 /** The `model:` section: dispatch on `type` to one reader per model kind. */
 import type { ModelType, Span } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
-import { readFirstOrder } from './first-order.js';
-import { readIntegrating } from './integrating.js';
+import type { FieldDef, SectionDef } from './fields.js';
+import { FIRST_ORDER_SCHEMA, readFirstOrder } from './first-order.js';
+import { INTEGRATING_SCHEMA, readIntegrating } from './integrating.js';
 import type { ModelRead } from './model-read.js';
-import { readOde } from './ode.js';
+import { ODE_SCHEMA, readOde } from './ode.js';
 import type { Reader } from './reader.js';
-import { readSecondOrder } from './second-order.js';
-import { readStateSpace } from './state-space.js';
-import { readTransfer } from './transfer.js';
+import { readSecondOrder, SECOND_ORDER_SCHEMA } from './second-order.js';
+import { readStateSpace, STATE_SPACE_SCHEMA } from './state-space.js';
+import { readTransfer, TRANSFER_SCHEMA } from './transfer.js';
 
-export const MODEL_TYPES: readonly ModelType[] = [
-  'ode',
-  'transfer',
-  'first_order',
-  'second_order',
-  'integrating',
-  'state_space',
-];
+/** One table per model kind, selected by `type`. */
+export const MODEL_VARIANTS: Readonly<Record<ModelType, SectionDef>> = {
+  ode: ODE_SCHEMA,
+  transfer: TRANSFER_SCHEMA,
+  first_order: FIRST_ORDER_SCHEMA,
+  second_order: SECOND_ORDER_SCHEMA,
+  integrating: INTEGRATING_SCHEMA,
+  state_space: STATE_SPACE_SCHEMA,
+};
+
+export const MODEL_TYPES: readonly ModelType[] = Object.keys(MODEL_VARIANTS) as ModelType[];
+
+export const MODEL_FIELD: FieldDef = {
+  kind: 'variants',
+  variants: MODEL_VARIANTS,
+  required: true,
+  description: `The process model; \`type\` selects the kind: ${Object.keys(MODEL_VARIANTS).join(', ')}.`,
+};
 
 export function readModel(r: Reader, node: YNode, owner: Span): ModelRead | undefined {
   const m = r.mapping(node, 'model');

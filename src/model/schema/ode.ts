@@ -6,34 +6,75 @@ import { parseExpression } from '../expr/parser.js';
 import { RESERVED_NAMES } from '../expr/functions.js';
 import type { Expr, Span } from '../types.js';
 import type { YMap, YNode } from '../yaml-doc.js';
+import { fieldNames, fieldNode, numberField, type NameRule, type SectionDef } from './fields.js';
 import type { ModelRead } from './model-read.js';
 import { describe, type Reader } from './reader.js';
 
-export const ODE_FIELDS = [
-  'type',
-  'params',
-  'states',
-  'input',
-  'disturbances',
-  'derivatives',
-  'output',
-  'measurements',
-  'delay',
-] as const;
-
 const IDENT = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
+/** Names declared by an ode model (parameters, states, input, disturbances). */
+export const ODE_NAME: NameRule = { pattern: IDENT, reserved: RESERVED_NAMES };
+/** Measurement names only need to be names (they are not used inside expressions). */
+const MEASUREMENT_NAME: NameRule = { pattern: IDENT };
+
+export const ODE_STATE_SCHEMA: SectionDef = {
+  description: 'One state variable.',
+  fields: { initial: { kind: 'number', required: true, description: 'Value at t = 0.' } },
+};
+
+export const ODE_SCHEMA: SectionDef = {
+  description:
+    'Nonlinear plant written as expressions: dx/dt = f(t, x, u, d, p) per state, y = g(t, x, u, d, p). Expressions use the declared names, t, and the built-in functions and constants.',
+  fields: {
+    type: { kind: 'choice', choices: ['ode'], required: true, description: 'Model kind.' },
+    params: { kind: 'names', names: ODE_NAME, value: { kind: 'number' }, description: 'Named constants: name -> number.' },
+    states: {
+      kind: 'names',
+      names: ODE_NAME,
+      value: { kind: 'section', section: ODE_STATE_SCHEMA },
+      minEntries: 1,
+      required: true,
+      description: 'State variables, in order: name -> { initial }.',
+    },
+    input: {
+      kind: 'text',
+      name: ODE_NAME,
+      required: true,
+      hint: ' (the name of the manipulated variable in the expressions)',
+      description: 'Name of the manipulated variable (the actuator output) in the expressions.',
+    },
+    disturbances: { kind: 'names', names: ODE_NAME, value: { kind: 'number' }, description: 'Named disturbances and their initial values.' },
+    derivatives: { kind: 'names', names: ODE_NAME, value: { kind: 'expression' }, required: true, description: 'One expression per state: state name -> d(state)/dt.' },
+    output: {
+      kind: 'expression',
+      required: true,
+      hint: ' (the controlled variable, an expression)',
+      description: 'The controlled variable, an expression.',
+    },
+    measurements: {
+      kind: 'names',
+      names: MEASUREMENT_NAME,
+      value: { kind: 'expression' },
+      description: 'Further named measurements (e.g. the inner variable of a cascade): name -> expression.',
+    },
+    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time on the manipulated input (>= 0), s or with a unit.' },
+  },
+};
+
+export const ODE_FIELDS = fieldNames(ODE_SCHEMA);
+
 export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefined {
+  const S = ODE_SCHEMA;
   const f = r.fields(node, 'model', ODE_FIELDS, owner);
   if (!f) return undefined;
   const before = r.errorCount();
   const declared = new Map<string, string>(); // name -> what declared it
   const declare = (name: string, what: string, span: Span): boolean => {
-    if (!IDENT.test(name)) {
+    if (!ODE_NAME.pattern.test(name)) {
       r.error('BAD_NAME', `${what} name '${name}' must be a name of letters, digits and _ (not starting with a digit)`, span);
       return false;
     }
-    if (RESERVED_NAMES.has(name)) {
+    if (ODE_NAME.reserved?.has(name)) {
       r.error('BAD_NAME', `${what} name '${name}' is reserved (t, pi, e and the function names)`, span);
       return false;
     }
@@ -59,22 +100,21 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   const states: { name: string; initial: number }[] = [];
   // States whose name was refused: their derivatives are skipped without further noise.
   const badStates = new Set<string>();
-  const sn = f.require('states');
+  const sn = fieldNode(f, S, 'states');
   if (sn) {
     const m = r.mapping(sn, 'model.states');
     if (m && m.entries.length === 0) r.error('MISSING_FIELD', 'model.states must declare at least one state', sn.span);
     for (const e of m?.entries ?? []) {
       const ok = declare(e.key, 'state', e.keySpan);
       if (!ok) badStates.add(e.key);
-      const sf = r.fields(e.value, `model.states.${e.key}`, ['initial'], e.keySpan);
-      const iv = sf?.require('initial');
-      const initial = iv && r.number(iv, `model.states.${e.key}.initial`);
+      const sf = r.fields(e.value, `model.states.${e.key}`, fieldNames(ODE_STATE_SCHEMA), e.keySpan);
+      const initial = sf ? numberField(r, sf, ODE_STATE_SCHEMA, 'initial', undefined) : undefined;
       if (ok && initial !== undefined) states.push({ name: e.key, initial });
     }
   }
 
   let input = '';
-  const inn = f.require('input', ' (the name of the manipulated variable in the expressions)');
+  const inn = fieldNode(f, S, 'input');
   if (inn) {
     const s = r.string(inn, 'model.input');
     if (s !== undefined && declare(s, 'input', inn.span)) input = s;
@@ -90,8 +130,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
     }
   }
 
-  const dl = f.get('delay');
-  const delay = dl ? r.time(dl, 'model.delay', { ge: 0 }) : 0;
+  const delay = numberField(r, f, S, 'delay', 0);
 
   // Expressions may use every declared name (even ones whose value failed) plus t, so that one
   // bad number does not also produce "unknown name" noise.
@@ -99,7 +138,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   const expr = (n: YNode, path: string): Expr | undefined => readExpression(r, n, path, names);
 
   const derivatives: Expr[] = [];
-  const dv = f.require('derivatives');
+  const dv = fieldNode(f, S, 'derivatives');
   if (dv) {
     const m = r.mapping(dv, 'model.derivatives');
     if (m) {
@@ -127,15 +166,15 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
     }
   }
 
-  const on = f.require('output', ' (the controlled variable, an expression)');
-  const output = on && expr(on, 'model.output');
+  const on = fieldNode(f, S, 'output');
+  const output = on ? expr(on, 'model.output') : undefined;
 
   const measurements: Record<string, Expr> = {};
   const mn = f.get('measurements');
   if (mn) {
     const m = r.mapping(mn, 'model.measurements');
     for (const e of m?.entries ?? []) {
-      if (!IDENT.test(e.key)) {
+      if (!MEASUREMENT_NAME.pattern.test(e.key)) {
         r.error('BAD_NAME', `measurement name '${e.key}' must be a name of letters, digits and _`, e.keySpan);
         continue;
       }

@@ -1,21 +1,33 @@
 /** `type: state_space` — dx = A x + B u, y = C x + D u (single input, single output). */
 import type { Span } from '../types.js';
 import type { YMap } from '../yaml-doc.js';
+import { fieldNames, fieldNode, numberField, numbersField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 
-export const STATE_SPACE_FIELDS = ['type', 'a', 'b', 'c', 'd', 'delay'] as const;
+export const STATE_SPACE_SCHEMA: SectionDef = {
+  description: 'Linear state space, one input and one output: dx/dt = A x + B u, y = C x + D u. The input disturbance `load` adds to the input.',
+  fields: {
+    type: { kind: 'choice', choices: ['state_space'], required: true, description: 'Model kind.' },
+    a: { kind: 'matrix', required: true, description: 'A, n x n, as a list of rows.' },
+    b: { kind: 'numbers', required: true, description: 'B, n entries (input column).' },
+    c: { kind: 'numbers', required: true, description: 'C, n entries (output row).' },
+    d: { kind: 'number', default: 0, description: 'D, direct feed-through.' },
+    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time on the input (>= 0), s or with a unit.' },
+  },
+};
+
+export const STATE_SPACE_FIELDS = fieldNames(STATE_SPACE_SCHEMA);
 
 export function readStateSpace(r: Reader, node: YMap, owner: Span): ModelRead | undefined {
+  const s = STATE_SPACE_SCHEMA;
   const f = r.fields(node, 'model', STATE_SPACE_FIELDS, owner);
   if (!f) return undefined;
-  const an = f.require('a');
-  const bn = f.require('b');
-  const cn = f.require('c');
-  const dn = f.get('d');
-  const d = dn ? r.number(dn, 'model.d') : 0;
-  const dl = f.get('delay');
-  const delay = dl ? r.time(dl, 'model.delay', { ge: 0 }) : 0;
+  const an = fieldNode(f, s, 'a');
+  const bn = fieldNode(f, s, 'b');
+  const cn = fieldNode(f, s, 'c');
+  const d = numberField(r, f, s, 'd', 0);
+  const delay = numberField(r, f, s, 'delay', 0);
   let a: number[][] | undefined;
   if (an) {
     const rows = r.list(an, 'model.a');
@@ -30,8 +42,8 @@ export function readStateSpace(r: Reader, node: YMap, owner: Span): ModelRead | 
       if (ok) a = out;
     }
   }
-  const b = bn && r.numbers(bn, 'model.b');
-  const c = cn && r.numbers(cn, 'model.c');
+  const b = bn ? numbersField(r, f, s, 'b', undefined) : undefined;
+  const c = cn ? numbersField(r, f, s, 'c', undefined) : undefined;
   if (a === undefined || b === undefined || c === undefined || d === undefined || delay === undefined) return undefined;
   const n = a.length;
   let ok = true;

@@ -17,6 +17,7 @@ import type {
   StructureName,
 } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
+import { fieldNames, ruleOf, type FieldDef, type SectionDef } from './fields.js';
 import type { Fields, Reader } from './reader.js';
 
 /** Every structure name accepted, in the order messages list them. */
@@ -40,6 +41,110 @@ const SECTION_OF: Readonly<Partial<Record<StructureName, (typeof STRUCTURE_SECTI
   feedforward: 'feedforward',
   cascade: 'cascade',
   scheduled: 'schedule',
+};
+
+const MODEL_VALUE = 'Left out: taken from the plant\'s low-order approximation.';
+
+export const SMITH_SCHEMA: SectionDef = {
+  description: 'Smith predictor internal model (first order with dead time) and detuning factors; values left out come from the plant.',
+  fields: {
+    gain: { kind: 'number', description: `Model gain (not 0). ${MODEL_VALUE}` },
+    time_constant: { kind: 'time', rule: { ge: 0 }, description: `Model time constant (>= 0), s or with a unit. ${MODEL_VALUE}` },
+    delay: { kind: 'time', rule: { ge: 0 }, description: `Model dead time (>= 0), s or with a unit. ${MODEL_VALUE}` },
+    gain_factor: { kind: 'number', rule: { gt: 0 }, default: 1, description: 'Factor on the model gain (> 0), to rehearse a wrong model.' },
+    time_constant_factor: { kind: 'number', rule: { gt: 0 }, default: 1, description: 'Factor on the model time constant (> 0).' },
+    delay_factor: { kind: 'number', rule: { ge: 0 }, default: 1, description: 'Factor on the model dead time (>= 0).' },
+  },
+};
+
+export const LEAD_LAG_SCHEMA: SectionDef = {
+  description: 'Lead-lag (lead s + 1)/(lag s + 1) of the feedforward.',
+  fields: {
+    lead: { kind: 'time', rule: { ge: 0 }, description: `Lead time (>= 0), s or with a unit. ${MODEL_VALUE}` },
+    lag: { kind: 'time', rule: { gt: 0 }, description: `Lag time (> 0), s or with a unit. ${MODEL_VALUE}` },
+  },
+};
+
+export const FEEDFORWARD_SCHEMA: SectionDef = {
+  description: 'Feedforward from a measured disturbance: static gain, lead-lag and delay.',
+  fields: {
+    disturbance: {
+      kind: 'text',
+      required: true,
+      hint: ' (the name of the measured disturbance)',
+      description: 'The measured disturbance (a name from the model).',
+    },
+    gain: { kind: 'number', description: `Static feedforward gain. ${MODEL_VALUE}` },
+    lead_lag: {
+      kind: 'either',
+      options: [
+        { kind: 'choice', choices: ['model'] },
+        { kind: 'section', section: LEAD_LAG_SCHEMA },
+      ],
+      description: "Dynamic compensation: 'model' (from the plant) or { lead, lag }.",
+    },
+    delay: { kind: 'time', rule: { ge: 0 }, description: 'Delay of the feedforward path (>= 0), s or with a unit.' },
+  },
+};
+
+export const CASCADE_INNER_SCHEMA: SectionDef = {
+  description: 'Inner PI controller (ideal form); left out: tuned from the plant.',
+  fields: {
+    kc: { kind: 'number', description: 'Inner controller gain.' },
+    ti: { kind: 'time', rule: { gt: 0, allowInfinity: true }, description: 'Inner integral time (> 0; .inf = none), s or with a unit.' },
+  },
+};
+
+export const CASCADE_SCHEMA: SectionDef = {
+  description: 'Cascade: an inner PI loop on a plant measurement; the outer controller sets its setpoint.',
+  fields: {
+    inner_measurement: {
+      kind: 'text',
+      required: true,
+      hint: ' (a name from model.measurements)',
+      description: 'The inner measured variable (a name from model.measurements).',
+    },
+    inner: { kind: 'section', section: CASCADE_INNER_SCHEMA, description: CASCADE_INNER_SCHEMA.description },
+    setpoint_limits: {
+      kind: 'pair',
+      of: 'number',
+      strict: true,
+      rule: { allowInfinity: true, allowNegativeInfinity: true },
+      description: 'Limits [low, high] on the inner setpoint.',
+    },
+  },
+};
+
+export const SCHEDULE_ROW_SCHEMA: SectionDef = {
+  description: 'One row of the gain schedule (ideal form); a row with only `at` is tuned from the plant there.',
+  fields: {
+    at: { kind: 'number', required: true, hint: ' (the value of the scheduling variable)', description: 'Value of the scheduling variable (rows in increasing order).' },
+    kc: { kind: 'number', description: 'Controller gain at this row.' },
+    ti: { kind: 'time', rule: { gt: 0, allowInfinity: true }, description: 'Integral time at this row (> 0; .inf = none), s or with a unit.' },
+    td: { kind: 'time', rule: { ge: 0 }, description: 'Derivative time at this row (>= 0), s or with a unit.' },
+  },
+};
+
+export const SCHEDULE_SCHEMA: SectionDef = {
+  description: 'Gain schedule: gains interpolated linearly in a scheduling variable.',
+  fields: {
+    variable: { kind: 'text', default: 'setpoint', description: "Scheduling variable: 'setpoint', 'measurement' or a disturbance name." },
+    table: {
+      kind: 'list',
+      items: { kind: 'section', section: SCHEDULE_ROW_SCHEMA },
+      required: true,
+      hint: ' (rows { at, kc, ti, td }; a row with only at is tuned)',
+      description: 'Rows { at, kc, ti, td } in increasing order of at (at least one).',
+    },
+  },
+};
+
+/** The structure sections as fields of the controller table. */
+export const STRUCTURE_SECTION_FIELDS: Readonly<Record<(typeof STRUCTURE_SECTIONS)[number], FieldDef>> = {
+  smith: { kind: 'section', section: SMITH_SCHEMA, description: `structure smith_pi: ${SMITH_SCHEMA.description}` },
+  feedforward: { kind: 'section', section: FEEDFORWARD_SCHEMA, description: `structure feedforward: ${FEEDFORWARD_SCHEMA.description}` },
+  cascade: { kind: 'section', section: CASCADE_SCHEMA, description: `structure cascade: ${CASCADE_SCHEMA.description}` },
+  schedule: { kind: 'section', section: SCHEDULE_SCHEMA, description: `structure scheduled: ${SCHEDULE_SCHEMA.description}` },
 };
 
 /** The PID law a structure name runs: its terms are read as for this plain structure. */
@@ -124,16 +229,16 @@ function readSmith(r: Reader, node: YNode | undefined, path: string, f: Fields):
   if (!node) {
     return { kind: 'smith_pi', gain: null, timeConstant: null, delay: null, gainFactor: 1, timeConstantFactor: 1, delayFactor: 1 };
   }
-  const keys = ['gain', 'time_constant', 'delay', 'gain_factor', 'time_constant_factor', 'delay_factor'];
-  const sf = r.fields(node, path, keys, f.keySpan('smith'));
+  const S = SMITH_SCHEMA;
+  const sf = r.fields(node, path, fieldNames(S), f.keySpan('smith'));
   if (!sf) return undefined;
   const gain = optionalNumber(r, sf, 'gain');
   if (gain === 0) r.error('BAD_VALUE', `${sf.at('gain')} must not be 0`, sf.get('gain')!.span);
-  const timeConstant = optionalTime(r, sf, 'time_constant', { ge: 0 });
-  const delay = optionalTime(r, sf, 'delay', { ge: 0 });
-  const gainFactor = optionalNumber(r, sf, 'gain_factor', { gt: 0 }, 1);
-  const timeConstantFactor = optionalNumber(r, sf, 'time_constant_factor', { gt: 0 }, 1);
-  const delayFactor = optionalNumber(r, sf, 'delay_factor', { ge: 0 }, 1);
+  const timeConstant = optionalTime(r, sf, 'time_constant', ruleOf(S, 'time_constant'));
+  const delay = optionalTime(r, sf, 'delay', ruleOf(S, 'delay'));
+  const gainFactor = optionalNumber(r, sf, 'gain_factor', ruleOf(S, 'gain_factor'), 1);
+  const timeConstantFactor = optionalNumber(r, sf, 'time_constant_factor', ruleOf(S, 'time_constant_factor'), 1);
+  const delayFactor = optionalNumber(r, sf, 'delay_factor', ruleOf(S, 'delay_factor'), 1);
   if (
     gain === undefined ||
     timeConstant === undefined ||
@@ -162,7 +267,7 @@ function checkDisturbance(r: Reader, node: YNode, path: string, ctx: StructureCo
 }
 
 function readFeedforward(r: Reader, node: YNode, path: string, f: Fields, ctx: StructureContext): StructureExtension | undefined {
-  const sf = r.fields(node, path, ['disturbance', 'gain', 'lead_lag', 'delay'], f.keySpan('feedforward'));
+  const sf = r.fields(node, path, fieldNames(FEEDFORWARD_SCHEMA), f.keySpan('feedforward'));
   if (!sf) return undefined;
   const dn = sf.require('disturbance', ' (the name of the measured disturbance)');
   const disturbance = dn && checkDisturbance(r, dn, sf.at('disturbance'), ctx);
@@ -172,17 +277,17 @@ function readFeedforward(r: Reader, node: YNode, path: string, f: Fields, ctx: S
   if (ln) {
     if (ln.kind === 'scalar' && ln.value === 'model') leadLag = { lead: null, lag: null };
     else {
-      const lf = r.fields(ln, sf.at('lead_lag'), ['lead', 'lag'], sf.keySpan('lead_lag'));
+      const lf = r.fields(ln, sf.at('lead_lag'), fieldNames(LEAD_LAG_SCHEMA), sf.keySpan('lead_lag'));
       if (!lf) leadLag = undefined;
       else {
-        const lead = optionalTime(r, lf, 'lead', { ge: 0 });
-        const lag = optionalTime(r, lf, 'lag', { gt: 0 });
+        const lead = optionalTime(r, lf, 'lead', ruleOf(LEAD_LAG_SCHEMA, 'lead'));
+        const lag = optionalTime(r, lf, 'lag', ruleOf(LEAD_LAG_SCHEMA, 'lag'));
         leadLag = lead === undefined || lag === undefined ? undefined : { lead, lag };
       }
     }
   }
   const dl = sf.get('delay');
-  const delay = dl ? r.time(dl, sf.at('delay'), { ge: 0 }) : leadLag !== null && leadLag !== undefined ? null : 0;
+  const delay = dl ? r.time(dl, sf.at('delay'), ruleOf(FEEDFORWARD_SCHEMA, 'delay')) : leadLag !== null && leadLag !== undefined ? null : 0;
   if (disturbance === undefined || gain === undefined || leadLag === undefined || delay === undefined) return undefined;
   return { kind: 'feedforward', disturbance, gain, leadLag, delay };
 }
@@ -201,9 +306,9 @@ function readIdealGains(
   const kn = gf.get('kc');
   const kc = kn ? r.number(kn, gf.at('kc')) : null;
   const tin = gf.get('ti');
-  const ti = tin ? r.time(tin, gf.at('ti'), { gt: 0, allowInfinity: true }) : Infinity;
+  const ti = tin ? r.time(tin, gf.at('ti'), ruleOf(SCHEDULE_ROW_SCHEMA, 'ti')) : Infinity;
   const tdn = gf.get('td');
-  const td = tdn ? r.time(tdn, gf.at('td'), { ge: 0 }) : 0;
+  const td = tdn ? r.time(tdn, gf.at('td'), ruleOf(SCHEDULE_ROW_SCHEMA, 'td')) : 0;
   if (kc === undefined || ti === undefined || td === undefined) return undefined;
   if (kc === null) {
     if (tin || tdn) r.error('MISSING_FIELD', `missing field 'kc' in ${path} (ti and td without kc)`, gf.ownerSpan);
@@ -220,7 +325,7 @@ function readCascade(
   tuning: Omit<GainSet, 'kc' | 'ti' | 'td'>,
   ctx: StructureContext,
 ): StructureExtension | undefined {
-  const sf = r.fields(node, path, ['inner_measurement', 'inner', 'setpoint_limits'], f.keySpan('cascade'));
+  const sf = r.fields(node, path, fieldNames(CASCADE_SCHEMA), f.keySpan('cascade'));
   if (!sf) return undefined;
   const mn = sf.require('inner_measurement', ' (a name from model.measurements)');
   let innerMeasurement: string | undefined;
@@ -240,14 +345,14 @@ function readCascade(
   let inner: GainSet | null | undefined = null;
   const inn = sf.get('inner');
   if (inn) {
-    const g = readIdealGains(r, inn, sf.at('inner'), sf.keySpan('inner'), ['kc', 'ti'], { ...tuning, b: 1, c: 0 });
+    const g = readIdealGains(r, inn, sf.at('inner'), sf.keySpan('inner'), fieldNames(CASCADE_INNER_SCHEMA), { ...tuning, b: 1, c: 0 });
     inner = g === undefined ? undefined : g.gains;
   }
   let setpointMin = -Infinity;
   let setpointMax = Infinity;
   const ln = sf.get('setpoint_limits');
   if (ln) {
-    const p = r.pair(ln, sf.at('setpoint_limits'), false, true, { allowInfinity: true, allowNegativeInfinity: true });
+    const p = r.pair(ln, sf.at('setpoint_limits'), false, true, ruleOf(CASCADE_SCHEMA, 'setpoint_limits'));
     if (!p) return undefined;
     [setpointMin, setpointMax] = p;
   }
@@ -263,7 +368,7 @@ function readSchedule(
   tuning: Omit<GainSet, 'kc' | 'ti' | 'td'>,
   ctx: StructureContext,
 ): StructureExtension | undefined {
-  const sf = r.fields(node, path, ['variable', 'table'], f.keySpan('schedule'));
+  const sf = r.fields(node, path, fieldNames(SCHEDULE_SCHEMA), f.keySpan('schedule'));
   if (!sf) return undefined;
   let variable: string | undefined = 'setpoint';
   const vn = sf.get('variable');
@@ -279,7 +384,7 @@ function readSchedule(
   let ok = !!seq;
   seq?.items.forEach((item, i) => {
     const rp = `${sf.at('table')}[${i}]`;
-    const g = readIdealGains(r, item, rp, item.span, ['at', 'kc', 'ti', 'td'], tuning);
+    const g = readIdealGains(r, item, rp, item.span, fieldNames(SCHEDULE_ROW_SCHEMA), tuning);
     if (!g) {
       ok = false;
       return;

@@ -1,20 +1,37 @@
 /** `type: transfer` — num(s)/den(s) e^{-L s}, coefficients in descending powers of s. */
 import type { Span } from '../types.js';
 import type { YMap } from '../yaml-doc.js';
+import { fieldNames, fieldNode, numberField, numbersField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 
-export const TRANSFER_FIELDS = ['type', 'numerator', 'denominator', 'delay'] as const;
+export const TRANSFER_SCHEMA: SectionDef = {
+  description: 'Transfer function num(s)/den(s) e^(-L s), coefficients in descending powers of s. The input disturbance `load` adds to the input.',
+  fields: {
+    type: { kind: 'choice', choices: ['transfer'], required: true, description: 'Model kind.' },
+    numerator: { kind: 'numbers', minItems: 1, required: true, description: 'Numerator coefficients, highest power of s first.' },
+    denominator: {
+      kind: 'numbers',
+      minItems: 1,
+      firstNonZero: true,
+      required: true,
+      description: 'Denominator coefficients, highest power of s first (the first must not be 0; degree >= the numerator\'s).',
+    },
+    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+  },
+};
+
+export const TRANSFER_FIELDS = fieldNames(TRANSFER_SCHEMA);
 
 export function readTransfer(r: Reader, node: YMap, owner: Span): ModelRead | undefined {
+  const s = TRANSFER_SCHEMA;
   const f = r.fields(node, 'model', TRANSFER_FIELDS, owner);
   if (!f) return undefined;
-  const nn = f.require('numerator');
-  const dnode = f.require('denominator');
-  const numerator = nn && r.numbers(nn, 'model.numerator');
-  const denominator = dnode && r.numbers(dnode, 'model.denominator');
-  const dl = f.get('delay');
-  const delay = dl ? r.time(dl, 'model.delay', { ge: 0 }) : 0;
+  const nn = fieldNode(f, s, 'numerator');
+  const dnode = fieldNode(f, s, 'denominator');
+  const numerator = nn ? numbersField(r, f, s, 'numerator', undefined) : undefined;
+  const denominator = dnode ? numbersField(r, f, s, 'denominator', undefined) : undefined;
+  const delay = numberField(r, f, s, 'delay', 0);
   if (numerator === undefined || denominator === undefined || delay === undefined || !nn || !dnode) return undefined;
   let ok = true;
   if (numerator.length === 0) {

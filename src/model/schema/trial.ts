@@ -1,12 +1,54 @@
 /** The `loop.trial:` section: duration, initial conditions and the event script. */
 import type { ControllerSpec, Span, TrialEvent, TrialSpec } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
-import { readGainsOverride } from './controller.js';
+import { GAINS_EVENT_SCHEMA, readGainsOverride } from './controller.js';
+import { fieldNames, fieldNode, numberField, type SectionDef } from './fields.js';
 import type { Reader } from './reader.js';
 
-export const TRIAL_FIELDS = ['duration', 'initial_setpoint', 'initial_output', 'events'] as const;
 const EVENT_KINDS = ['setpoint', 'setpoint_ramp', 'disturbance', 'mode', 'gains'] as const;
-const EVENT_FIELDS = ['at', ...EVENT_KINDS, 'output', 'label'] as const;
+const MODES = ['manual', 'auto'] as const;
+
+export const RAMP_SCHEMA: SectionDef = {
+  description: 'Ramp the setpoint from its current value to `to` over `duration`.',
+  fields: {
+    to: { kind: 'number', required: true, description: 'Setpoint at the end of the ramp.' },
+    duration: { kind: 'time', rule: { gt: 0 }, required: true, description: 'Length of the ramp (> 0), s or with a unit.' },
+  },
+};
+
+export const EVENT_SCHEMA: SectionDef = {
+  description: 'One scripted event at time `at`: exactly one of setpoint, setpoint_ramp, disturbance, mode, gains.',
+  fields: {
+    at: { kind: 'time', rule: { ge: 0 }, required: true, hint: ' (the event time)', description: 'When, from the start of the trial (>= 0, within the duration), s or with a unit.' },
+    setpoint: { kind: 'number', description: 'Step the setpoint to this value.' },
+    setpoint_ramp: { kind: 'section', section: RAMP_SCHEMA, description: RAMP_SCHEMA.description },
+    disturbance: {
+      kind: 'names',
+      value: { kind: 'number' },
+      minEntries: 1,
+      description: 'Set disturbances (names from the model; linear kinds have `load`) to these values.',
+    },
+    mode: { kind: 'choice', choices: MODES, description: 'manual: hold the controller output (at `output`, or where it is); auto: bumpless return.' },
+    gains: { kind: 'section', section: GAINS_EVENT_SCHEMA, description: GAINS_EVENT_SCHEMA.description },
+    output: { kind: 'number', description: 'With mode: manual, the output to hold.' },
+    label: { kind: 'text', description: 'With gains: a name for the new gain set.' },
+  },
+  oneOfGroups: EVENT_KINDS.map((k) => [k]),
+  requires: { output: ['mode'], label: ['gains'] },
+};
+
+export const TRIAL_SCHEMA: SectionDef = {
+  description: 'The scripted closed-loop run: its duration, initial conditions and events.',
+  fields: {
+    duration: { kind: 'time', rule: { gt: 0 }, required: true, description: 'Length of the trial (> 0), s or with a unit.' },
+    initial_setpoint: { kind: 'number', description: 'Setpoint before the first event (default: the plant output at t = 0).' },
+    initial_output: { kind: 'number', description: 'Controller output at t = 0 (bumpless start; default: computed from the initial state).' },
+    events: { kind: 'list', items: { kind: 'section', section: EVENT_SCHEMA }, description: 'Events in any order (sorted by time; same-time events keep their order).' },
+  },
+};
+
+export const TRIAL_FIELDS = fieldNames(TRIAL_SCHEMA);
+const EVENT_FIELDS = fieldNames(EVENT_SCHEMA);
 
 export interface TrialContext {
   /** Disturbance names of the model (null when the model failed: names are not checked). */
@@ -16,15 +58,13 @@ export interface TrialContext {
 }
 
 export function readTrial(r: Reader, node: YNode, owner: Span, ctx: TrialContext): TrialSpec | undefined {
+  const s = TRIAL_SCHEMA;
   const f = r.fields(node, 'loop.trial', TRIAL_FIELDS, owner);
   if (!f) return undefined;
   const before = r.errorCount();
-  const dn = f.require('duration');
-  const duration = dn && r.time(dn, 'loop.trial.duration', { gt: 0 });
-  const isn = f.get('initial_setpoint');
-  const initialSetpoint = isn ? r.number(isn, 'loop.trial.initial_setpoint') : null;
-  const ion = f.get('initial_output');
-  const initialOutput = ion ? r.number(ion, 'loop.trial.initial_output') : null;
+  const duration = numberField(r, f, s, 'duration', undefined);
+  const initialSetpoint = numberField(r, f, s, 'initial_setpoint', null);
+  const initialOutput = numberField(r, f, s, 'initial_output', null);
   const events: TrialEvent[] = [];
   const en = f.get('events');
   const seq = en && r.list(en, 'loop.trial.events');
@@ -47,8 +87,8 @@ function readEvent(
 ): void {
   const f = r.fields(node, path, EVENT_FIELDS, node.span);
   if (!f) return;
-  const an = f.require('at', ' (the event time)');
-  const at = an && r.time(an, `${path}.at`, { ge: 0 });
+  const an = fieldNode(f, EVENT_SCHEMA, 'at');
+  const at = an ? numberField(r, f, EVENT_SCHEMA, 'at', undefined) : undefined;
   if (at !== undefined && duration !== null && at > duration && an) {
     r.error('EVENT_AFTER_END', `${path}.at (${at} s) is after the end of the trial (duration ${duration} s)`, an.span);
   }
@@ -77,12 +117,10 @@ function readEvent(
       return;
     }
     case 'setpoint_ramp': {
-      const rf = r.fields(value, `${path}.setpoint_ramp`, ['to', 'duration'], f.keySpan(kind));
+      const rf = r.fields(value, `${path}.setpoint_ramp`, fieldNames(RAMP_SCHEMA), f.keySpan(kind));
       if (!rf) return;
-      const tn = rf.require('to');
-      const dn = rf.require('duration');
-      const to = tn && r.number(tn, `${path}.setpoint_ramp.to`);
-      const d = dn && r.time(dn, `${path}.setpoint_ramp.duration`, { gt: 0 });
+      const to = numberField(r, rf, RAMP_SCHEMA, 'to', undefined);
+      const d = numberField(r, rf, RAMP_SCHEMA, 'duration', undefined);
       if (to !== undefined && d !== undefined && at !== undefined) out.push({ kind: 'setpoint_ramp', at: t, to, duration: d });
       return;
     }
@@ -105,7 +143,7 @@ function readEvent(
       return;
     }
     case 'mode': {
-      const mode = r.choice(value, `${path}.mode`, ['manual', 'auto'] as const);
+      const mode = r.choice(value, `${path}.mode`, MODES);
       const on = f.get('output');
       const output = on ? r.number(on, `${path}.output`) : null;
       if (mode !== undefined && output !== undefined && at !== undefined) out.push({ kind: 'mode', at: t, mode, output });

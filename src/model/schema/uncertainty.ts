@@ -1,7 +1,15 @@
 /** The `uncertainty:` section: name -> [low, high] for robustness sweeps. */
 import type { Span } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
+import type { FieldDef } from './fields.js';
 import type { Reader } from './reader.js';
+
+export const UNCERTAINTY_FIELD: FieldDef = {
+  kind: 'names',
+  value: { kind: 'pair', of: 'number_or_time', strict: false },
+  description:
+    'Ranges for robustness sweeps and worst-case checks: name -> [low, high]. Names are ode parameters, or gain, time_constant, delay, natural_frequency, damping, d of the linear kinds; times may carry units (>= 0).',
+};
 
 export function readUncertainty(
   r: Reader,
