@@ -9,8 +9,10 @@ import { exportCommand } from './commands/export.js';
 import { fitCommand } from './commands/fit.js';
 import { optimizeCommand } from './commands/optimize.js';
 import { runCommand } from './commands/run.js';
+import { schemaCommand } from './commands/schema.js';
 import { screenCommand } from './commands/screen.js';
 import { suggestCommand } from './commands/suggest.js';
+import { StructureUnavailable } from '../tune/index.js';
 import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { demoPlantPath } from './plants-dir.js';
@@ -37,6 +39,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await exportCommand(rest, io);
       case 'check':
         return await checkCommand(rest, io);
+      case 'schema':
+        return await schemaCommand(rest, io);
       case 'suggest':
         return await suggestCommand(rest, io);
       case 'diagnose':
@@ -60,6 +64,12 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
     if (error instanceof UserError) {
       if (error.message !== '') io.err(`looprig: ${error.message}\n`);
       return error.exitCode;
+    }
+    // A controller structure the plant cannot support (e.g. a Smith predictor on an integrating
+    // plant) is a finding about the file, reported like any other bad input.
+    if (error instanceof StructureUnavailable) {
+      io.err(`looprig: ${error.message}\n`);
+      return UserError.USAGE;
     }
     throw error;
   }
