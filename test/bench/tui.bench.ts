@@ -12,8 +12,9 @@
  *    pressed every 100 ms, and whether every key took effect (the gain shown at the end equals
  *    the gain the presses ask for).
  *
- * Run: `npx tsx test/bench/tui.bench.ts` or `npm run bench -- tui`. Timings are reported, never
- * asserted.
+ * Run: `npx tsx test/bench/tui.bench.ts` or `npm run bench -- tui` (heap figures after garbage
+ * collection: `node --expose-gc --import tsx test/bench/tui.bench.ts`). Timings are reported,
+ * never asserted.
  */
 import { EventEmitter } from 'node:events';
 import { readdirSync, readFileSync } from 'node:fs';
@@ -198,6 +199,12 @@ export async function run(): Promise<void> {
   const firstEdit = engine.editFromSpec(m.setup.plant.loop.controller);
   const first = state.paramList(firstEdit)[0];
   let expected = state.paramValue(firstEdit, first);
+  const gc = (globalThis as { gc?: () => void }).gc;
+  const heap = (): number => {
+    gc?.();
+    return process.memoryUsage().heapUsed / 1e6;
+  };
+  const heap0 = heap();
   const wall0 = performance.now();
   const sim0 = simTime();
   const presses = 40;
@@ -209,6 +216,7 @@ export async function run(): Promise<void> {
   await sleep(200);
   const wall = (performance.now() - wall0) / 1000;
   const sim = simTime() - sim0;
+  const heap1 = heap();
   const all = strip(m.stdout.writes.map((w) => w.text).join(''));
   const shownAll = [...all.matchAll(/> (?:Kc|Kp)'?\s+(\S+)/g)];
   const shown = shownAll.length > 0 ? Number(shownAll[shownAll.length - 1][1]) : NaN;
@@ -219,6 +227,10 @@ export async function run(): Promise<void> {
     `  ${presses} gain keys at 10/s: gain shown ${shown}, expected ${Number(expected.toPrecision(4))} -> ${Math.abs(shown - Number(expected.toPrecision(4))) <= 1e-9 * Math.abs(expected) ? 'no key dropped' : 'KEYS DROPPED'}`,
   );
   console.log(`  ratio reached/asked: ${(achieved / 100).toFixed(2)}`);
+  // The live trend redraws ~20 times a second; memory must not grow with the frames drawn.
+  console.log(
+    `  heap ${heap0.toFixed(1)} -> ${heap1.toFixed(1)} MB over the run (${m.stdout.writes.length} terminal writes)${gc === undefined ? '; run under node --expose-gc for a figure after collection' : ''}`,
+  );
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1]).href) {

@@ -2,7 +2,7 @@
  * One screen line made of styled pieces, cut or padded to an exact width so that no panel can
  * push another out of place, whatever the terminal size.
  */
-import { Text } from 'ink';
+import { Text, Transform } from 'ink';
 
 export interface Piece {
   text: string;
@@ -72,6 +72,29 @@ export function styledLine(pieces: readonly Piece[], color: boolean): string {
   return out;
 }
 
+const blanks = new Map<number, string>();
+/** The same string object for every line of a width: what Ink measures and caches. */
+function blank(width: number): string {
+  let b = blanks.get(width);
+  if (b === undefined) {
+    b = ' '.repeat(width);
+    blanks.set(width, b);
+  }
+  return b;
+}
+
+/**
+ * One screen line. Ink measures a text node's content for layout and keeps every string it has
+ * measured for the life of the process; a live trend changes its lines on every frame, so that
+ * store would grow without end. The node therefore holds a blank line of the same width (one
+ * string per width, measured once), and the styled content replaces it at output time, after
+ * layout, through Ink's Transform. Lines are cut to `width` first, so the layout stays right.
+ */
 export function Line(props: { pieces: readonly Piece[]; width: number; color: boolean }) {
-  return <Text wrap="truncate">{styledLine(fitPieces(props.pieces, props.width), props.color)}</Text>;
+  const content = styledLine(fitPieces(props.pieces, props.width), props.color);
+  return (
+    <Transform transform={() => content}>
+      <Text>{blank(props.width)}</Text>
+    </Transform>
+  );
 }
