@@ -3,7 +3,7 @@
  * one marked ('>' always, highlighted too when colour is on), beside the baseline's value.
  */
 import { Box } from 'ink';
-import { formatPlain, paramInfo, paramList, paramValue, type GainEdit } from '../state.js';
+import { paramInfo, paramList, paramValue, type GainEdit } from '../state.js';
 import type { Theme } from '../theme.js';
 import { Line, fit, type Piece } from './line.js';
 
@@ -71,4 +71,3 @@ export function GainsPanel(p: GainsProps) {
   );
 }
 
-export { formatPlain };
