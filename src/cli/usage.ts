@@ -11,6 +11,7 @@ Usage:
                                 velocity-form coefficients (looprig export --help)
   looprig compare FILE [--json] the file's candidate controllers (or ones chosen from the
                                 diagnosis) on the same trial, side by side (looprig compare --help)
+  looprig schema                print the JSON Schema of plant files (for editors)
   looprig help                  show this text
 
 Options for run:

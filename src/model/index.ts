@@ -31,3 +31,8 @@ export { DEFAULT_ACTUATOR } from './schema/actuator.js';
 export { DEFAULT_SENSOR } from './schema/sensor.js';
 export { DEFAULT_DERIVATIVE_FILTER } from './schema/controller.js';
 export { LOAD_DISTURBANCE } from './schema/model-read.js';
+export { plantJsonSchema, VALIDATOR_ONLY, type JsonSchema } from './schema/json-schema.js';
+export { yamlJsonView } from './yaml-doc.js';
+export { durationPattern, type DurationPatternOptions } from './units.js';
+export { PLANT_SCHEMA } from './schema/plant.js';
+export type { FieldDef, FieldType, SectionDef, NameRule, FieldCase } from './schema/fields.js';

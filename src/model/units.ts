@@ -12,7 +12,40 @@ export type DurationResult =
 
 // Number part: sign, digits with optional fraction (or a leading-dot fraction), exponent;
 // "inf" lets `ti: inf s` mean no integral action.
-const DURATION = /^\s*([+-]?(?:(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?|inf))\s*([A-Za-z]*)\s*$/;
+const NUMBER_PART = String.raw`(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?`;
+const DURATION = new RegExp(String.raw`^\s*([+-]?(?:${NUMBER_PART}|inf))\s*([A-Za-z]*)\s*$`);
+// The same number written with at least one non-zero digit in its mantissa (a value > 0).
+const POSITIVE_PART = String.raw`(?:\d*[1-9]\d*(?:\.\d*)?|\d+\.\d*[1-9]\d*|\.\d*[1-9]\d*)(?:[eE][+-]?\d+)?`;
+
+/** Which time texts a pattern from `durationPattern` accepts. */
+export interface DurationPatternOptions {
+  /** any sign, >= 0 (no minus sign), or > 0 (no minus sign, not zero). */
+  sign: 'any' | 'non_negative' | 'positive';
+  /** Accept "inf" (and "+inf"). */
+  infinity?: boolean;
+  /** Accept "-inf" (only with sign 'any'). */
+  negativeInfinity?: boolean;
+}
+
+/**
+ * A regular expression (as source text, for JSON Schema `pattern`) for the time texts that
+ * `tryParseDuration` reads with a known unit, restricted by sign. Built from the same pieces as
+ * the parser's own expression and the same unit table.
+ */
+export function durationPattern(options: DurationPatternOptions): string {
+  const units = Object.keys(TIME_UNITS)
+    .sort((a, b) => b.length - a.length)
+    .join('|');
+  const alternatives =
+    options.sign === 'any'
+      ? [`[+-]?${NUMBER_PART}`]
+      : options.sign === 'non_negative'
+        ? [`\\+?${NUMBER_PART}`]
+        : [`\\+?${POSITIVE_PART}`];
+  if (options.infinity) alternatives.push('\\+?inf');
+  if (options.negativeInfinity && options.sign === 'any') alternatives.push('-inf');
+  return String.raw`^\s*(?:${alternatives.join('|')})\s*(?:${units})?\s*$`;
+}
 
 /**
  * Parse a time without throwing. Numbers are seconds; strings are `<number> [unit]` with unit

@@ -537,3 +537,36 @@ function safeParse(s: string): unknown {
     return undefined;
   }
 }
+
+// ---------------------------------------------------------------- JSON view
+
+/**
+ * The plant file as JSON data, the way a JSON Schema validator (or an editor's YAML language
+ * server) sees it: YAML's .inf, -.inf and .nan, which JSON cannot hold, become the text
+ * '.inf', '-.inf' and '.nan'. Returns undefined for text with YAML errors or too many aliases.
+ */
+export function yamlJsonView(text: string): unknown {
+  const doc = parseDocument(text, { prettyErrors: false });
+  if (doc.errors.length > 0) return undefined;
+  const fix = (v: unknown): unknown => {
+    if (typeof v === 'number') {
+      if (Number.isNaN(v)) return '.nan';
+      if (v === Infinity) return '.inf';
+      if (v === -Infinity) return '-.inf';
+      return v;
+    }
+    if (Array.isArray(v)) return v.map(fix);
+    if (v !== null && typeof v === 'object') {
+      const out: Record<string, unknown> = {};
+      for (const [k, x] of Object.entries(v as Record<string, unknown>)) out[k] = fix(x);
+      return out;
+    }
+    return v;
+  };
+  try {
+    return fix(doc.toJS({ maxAliasCount: ALIAS_BUDGET.aliases }));
+  } catch {
+    // yaml refuses an alias expansion beyond the budget: no JSON view either.
+    return undefined;
+  }
+}
