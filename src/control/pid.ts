@@ -39,7 +39,7 @@
  * update() allocates nothing: all state is numeric fields.
  */
 import type { AntiWindup, GainSet } from '../model/types.js';
-import type { DiscreteController } from '../sim/index.js';
+import type { DiscreteController, PidLaw } from '../sim/index.js';
 
 /** Options of a PID controller besides its gains. */
 export interface PidOptions {
@@ -142,6 +142,27 @@ export class PidController implements DiscreteController {
   /** The unlimited output v = P + I + D of the last update. */
   get lastRequest(): number {
     return this.v;
+  }
+
+  /**
+   * The coefficients in force, for engines that generate this law inline (sim's batch runner).
+   * A subclass may change the law, so it gets null (and is then run as an object).
+   */
+  pidLaw(): PidLaw | null {
+    if (Object.getPrototypeOf(this) !== PidController.prototype) return null;
+    return {
+      sampleTime: this.sampleTime,
+      kc: this.kc,
+      b: this.b,
+      c: this.c,
+      bi: this.bi,
+      ad: this.ad,
+      bd: this.bd,
+      ar: this.ar,
+      antiWindup: this.gainsNow.antiWindup,
+      outputMin: this.outputMin,
+      outputMax: this.outputMax,
+    };
   }
 
   private load(g: GainSet): void {

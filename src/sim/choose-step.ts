@@ -89,12 +89,74 @@ export function numericalJacobian(
 /**
  * Estimate the fastest mode of the plant: exact A for linear kinds, else the numerical Jacobian
  * at the initial state with input `u`. Non-finite entries (e.g. sqrt at 0) count as Infinity.
+ * Remembered per plant object (checked against copies of the numbers it depends on), because
+ * every run of a loop asks for it and a sweep or an optimiser runs the same plant many times.
  */
 export function fastestMode(plant: PlantDynamics, u = 0): number {
   if (plant.nx === 0) return 0;
+  const memo = recall(plant, u);
+  if (memo !== null) return memo;
   const a = plant.linear !== null ? plant.linear.a : numericalJacobian(plant, plant.x0, u, plant.d0);
-  for (let i = 0; i < a.length; i++) if (!Number.isFinite(a[i])) return Infinity;
-  return spectralRadiusEstimate(a, plant.nx);
+  let rho = NaN;
+  for (let i = 0; i < a.length; i++) {
+    if (!Number.isFinite(a[i])) {
+      rho = Infinity;
+      break;
+    }
+  }
+  if (rho !== Infinity) rho = spectralRadiusEstimate(a, plant.nx);
+  store(plant, u, rho);
+  return rho;
+}
+
+/** What `fastestMode` depended on, copied, and its answer. */
+interface ModeMemo {
+  u: number;
+  x0: Float64Array;
+  params: Float64Array;
+  d0: Float64Array;
+  a: Float64Array | null;
+  deriv: PlantDynamics['deriv'];
+  rho: number;
+}
+
+const MEMO_PER_PLANT = 4;
+const modeMemo = new WeakMap<PlantDynamics, ModeMemo[]>();
+
+function sameNumbers(a: Float64Array, b: Float64Array): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) return false;
+  return true;
+}
+
+function recall(plant: PlantDynamics, u: number): number | null {
+  const list = modeMemo.get(plant);
+  if (list === undefined) return null;
+  const a = plant.linear !== null ? plant.linear.a : null;
+  for (const m of list) {
+    if (!Object.is(m.u, u) || m.deriv !== plant.deriv || (m.a === null) !== (a === null)) continue;
+    if (a !== null && m.a !== null && !sameNumbers(m.a, a)) continue;
+    if (sameNumbers(m.x0, plant.x0) && sameNumbers(m.params, plant.params) && sameNumbers(m.d0, plant.d0)) return m.rho;
+  }
+  return null;
+}
+
+function store(plant: PlantDynamics, u: number, rho: number): void {
+  let list = modeMemo.get(plant);
+  if (list === undefined) {
+    list = [];
+    modeMemo.set(plant, list);
+  }
+  if (list.length >= MEMO_PER_PLANT) list.shift();
+  list.push({
+    u,
+    x0: Float64Array.from(plant.x0),
+    params: Float64Array.from(plant.params),
+    d0: Float64Array.from(plant.d0),
+    a: plant.linear !== null ? Float64Array.from(plant.linear.a) : null,
+    deriv: plant.deriv,
+    rho,
+  });
 }
 
 /** Warning text when h·ρ is outside the method's real-axis stability interval, else null. */
@@ -142,4 +204,32 @@ export function chooseStep(plant: PlantDynamics, sampleTime: number, integrator:
 export function roundStep(sampleTime: number, step: number): { step: number; substeps: number } {
   const substeps = Math.max(1, Math.round(sampleTime / step));
   return { step: sampleTime / substeps, substeps };
+}
+
+/**
+ * The engine's step for a loop: the loop's own step rounded to divide the sample time (with a
+ * note when rounding changed it and a stability warning from the fastest mode at `uStart`), or,
+ * when the loop leaves it open (step <= 0 or not finite), `chooseStep` at `uStart`.
+ * Shared by `Simulation` and the batch runner so that both take the same step.
+ */
+export function loopStep(
+  plant: PlantDynamics,
+  sampleTime: number,
+  requested: number,
+  integrator: IntegratorName,
+  uStart: number,
+): { step: number; substeps: number; warnings: string[] } {
+  const warnings: string[] = [];
+  if (requested > 0 && Number.isFinite(requested)) {
+    const rounded = roundStep(sampleTime, requested);
+    if (Math.abs(rounded.step - requested) > 1e-9 * requested) {
+      warnings.push(`integration step ${requested} s rounded to ${rounded.step} s to divide the sample time`);
+    }
+    const w = stabilityWarning(integrator, rounded.step, fastestMode(plant, uStart));
+    if (w !== null) warnings.push(w);
+    return { step: rounded.step, substeps: rounded.substeps, warnings };
+  }
+  const c = chooseStep(plant, sampleTime, integrator, uStart);
+  for (const w of c.warnings) warnings.push(w);
+  return { step: c.step, substeps: c.substeps, warnings };
 }

@@ -8,6 +8,16 @@
  * interpolated value (1 − f)·v[j−m] + f·v[j−m−1] is exactly the mean of the delayed signal over
  * step j, so a fractional delay still delivers the right integral of the input.
  */
+/**
+ * A delay in integration steps of h. L/h within 1e-9 of an integer is snapped to it: 0.35/0.025
+ * evaluates to 14.000000000000002, which must read as the exact 14-step delay it stands for.
+ */
+export function delayInSteps(delay: number, h: number): number {
+  const q = delay / h;
+  const r = Math.round(q);
+  return Math.abs(q - r) <= 1e-9 * Math.max(1, r) ? r : q;
+}
+
 export class DelayLine {
   private readonly buf: Float64Array;
   /** Index of the newest entry. */

@@ -152,10 +152,26 @@ function inverseParams(src: string, used: Set<number>): string {
   });
 }
 
-interface Prepared {
+/** Checked sources with divisions by a parameter rewritten (see `inverseParams`). */
+export interface PreparedSources {
+  /** One expression per state, as the generated step evaluates it. */
   deriv: string[];
+  /** The output expression as the `outputSequence` variant evaluates it. */
   output: string;
+  /** Parameters whose inverse `$ip<j>` the expressions use. */
   inverses: Set<number>;
+}
+type Prepared = PreparedSources;
+
+/**
+ * The plant's sources exactly as the generated step uses them (checked, divisions by a parameter
+ * rewritten): for other generators (sim's batch runner) that must repeat the same arithmetic.
+ */
+export function prepareSources(
+  plant: PlantDynamics,
+  helpers: Readonly<Record<string, unknown>> = DEFAULT_HELPERS,
+): PreparedSources {
+  return prepare(plant, helpers);
 }
 
 function prepare(plant: PlantDynamics, helpers: Readonly<Record<string, unknown>>): Prepared {
@@ -182,44 +198,87 @@ function loadLocals(np: number, nd: number, inverses: Set<number>): string {
   return lines.join('\n');
 }
 
-/** `{ const t = T, x_0 = S0, ...; K0 = (E0); ... }` — one stage evaluation. */
-function stage(nx: number, tExpr: string, xExpr: (i: number) => string, target: string, deriv: string[]): string {
+/** `{ const t = T, x_0 = S0, ...[, extra]; K0 = (E0); ... }` — one stage evaluation. */
+function stage(
+  nx: number,
+  tExpr: string,
+  xExpr: (i: number) => string,
+  target: (i: number) => string,
+  deriv: string[],
+  extra: string,
+): string {
   const decl = [`t = ${tExpr}`];
   for (let i = 0; i < nx; i++) decl.push(`x_${i} = ${xExpr(i)}`);
+  if (extra !== '') decl.push(extra);
   const body: string[] = [];
-  for (let i = 0; i < nx; i++) body.push(`${target}${i} = (${deriv[i]});`);
+  for (let i = 0; i < nx; i++) body.push(`${target(i)} = (${deriv[i]});`);
   return `{ const ${decl.join(', ')};\n${body.join('\n')} }`;
 }
 
-function stepBody(integrator: IntegratorName, nx: number, deriv: string[]): string {
-  const X = (i: number): string => `$x${i}`;
+/** Names used by the generated code of one integration step (see `integratorStages`). */
+export interface StageNames {
+  /** The state variable i (a `let` the update adds to). */
+  x: (i: number) => string;
+  /** The stage value k_s of state i (s = 1..4), declared by the caller. */
+  k: (s: number, i: number) => string;
+  /** Extra `const` bindings visible to the sources in every stage, e.g. `p_0 = c3_p0` ('' = none). */
+  extra: string;
+}
+
+/** Number of stage evaluations per step of each method. */
+export const INTEGRATOR_STAGES: Readonly<Record<IntegratorName, number>> = Object.freeze({ rk4: 4, heun: 2, euler: 1 });
+
+/**
+ * The code of one integration step as separate stage blocks plus the state update, so that a
+ * generator can interleave the stages of several independent systems. Expects `$t` (step start),
+ * `h`, `$h2` = 0.5 h and `$h6` = h / 6 in scope.
+ */
+export function integratorStages(
+  integrator: IntegratorName,
+  nx: number,
+  deriv: string[],
+  names: StageNames,
+): { stages: string[]; update: string } {
+  const X = names.x;
+  const K = names.k;
+  const ex = names.extra;
+  const stages: string[] = [];
   const lines: string[] = [];
   const update = (f: (i: number) => string): void => {
     for (let i = 0; i < nx; i++) lines.push(`${X(i)} += ${f(i)};`);
   };
   switch (integrator) {
     case 'euler':
-      lines.push(stage(nx, '$t', X, '$k1_', deriv));
-      update((i) => `h * $k1_${i}`);
+      stages.push(stage(nx, '$t', X, (i) => K(1, i), deriv, ex));
+      update((i) => `h * ${K(1, i)}`);
       break;
     case 'heun':
       // Heun's method (explicit trapezoidal rule), order 2.
-      lines.push(stage(nx, '$t', X, '$k1_', deriv));
-      lines.push(stage(nx, '$t + h', (i) => `${X(i)} + h * $k1_${i}`, '$k2_', deriv));
-      update((i) => `$h2 * ($k1_${i} + $k2_${i})`);
+      stages.push(stage(nx, '$t', X, (i) => K(1, i), deriv, ex));
+      stages.push(stage(nx, '$t + h', (i) => `${X(i)} + h * ${K(1, i)}`, (i) => K(2, i), deriv, ex));
+      update((i) => `$h2 * (${K(1, i)} + ${K(2, i)})`);
       break;
     case 'rk4':
       // Classic fourth-order Runge–Kutta (Butcher 2016, sec. 235).
-      lines.push(stage(nx, '$t', X, '$k1_', deriv));
-      lines.push(stage(nx, '$t + $h2', (i) => `${X(i)} + $h2 * $k1_${i}`, '$k2_', deriv));
-      lines.push(stage(nx, '$t + $h2', (i) => `${X(i)} + $h2 * $k2_${i}`, '$k3_', deriv));
-      lines.push(stage(nx, '$t + h', (i) => `${X(i)} + h * $k3_${i}`, '$k4_', deriv));
-      update((i) => `$h6 * ($k1_${i} + 2 * ($k2_${i} + $k3_${i}) + $k4_${i})`);
+      stages.push(stage(nx, '$t', X, (i) => K(1, i), deriv, ex));
+      stages.push(stage(nx, '$t + $h2', (i) => `${X(i)} + $h2 * ${K(1, i)}`, (i) => K(2, i), deriv, ex));
+      stages.push(stage(nx, '$t + $h2', (i) => `${X(i)} + $h2 * ${K(2, i)}`, (i) => K(3, i), deriv, ex));
+      stages.push(stage(nx, '$t + h', (i) => `${X(i)} + h * ${K(3, i)}`, (i) => K(4, i), deriv, ex));
+      update((i) => `$h6 * (${K(1, i)} + 2 * (${K(2, i)} + ${K(3, i)}) + ${K(4, i)})`);
       break;
     default:
       throw new RangeError(`unknown integrator ${String(integrator)}`);
   }
-  return lines.join('\n');
+  return { stages, update: lines.join('\n') };
+}
+
+function stepBody(integrator: IntegratorName, nx: number, deriv: string[]): string {
+  const { stages, update } = integratorStages(integrator, nx, deriv, {
+    x: (i) => `$x${i}`,
+    k: (s, i) => `$k${s}_${i}`,
+    extra: '',
+  });
+  return [...stages, update].join('\n');
 }
 
 /** The JavaScript source of the step function (exposed for inspection and tests). */

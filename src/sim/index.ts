@@ -10,6 +10,7 @@ export type {
   RunStatus,
   TrialResult,
   TrialSpec,
+  PidLaw,
 } from './types.js';
 export {
   generateStepper,
@@ -20,7 +21,7 @@ export {
   INTEGRATOR_ORDER,
 } from './generate-stepper.js';
 export type { StepFunction, OutputFunction, StepperOptions } from './generate-stepper.js';
-export { chooseStep, roundStep, fastestMode, numericalJacobian, spectralRadiusEstimate, stabilityWarning, MAX_SUBSTEPS } from './choose-step.js';
+export { loopStep, chooseStep, roundStep, fastestMode, numericalJacobian, spectralRadiusEstimate, stabilityWarning, MAX_SUBSTEPS } from './choose-step.js';
 export type { StepChoice } from './choose-step.js';
 export { DelayLine } from './delay-line.js';
 export { Actuator } from './actuator.js';

@@ -34,6 +34,16 @@ export class Sensor {
     this.rng = new Rng(spec.seed);
   }
 
+  /** Filter pole a = exp(−Ts/T) (0 without a filter), for generators repeating `measure`. */
+  get filterPole(): number {
+    return this.a;
+  }
+
+  /** Filter slope coefficient 1 − (T/Ts)(1 − a) (1 without a filter). */
+  get filterSlope(): number {
+    return this.slope;
+  }
+
   /** One sample of the measurement chain for the (delayed) plant output w. */
   measure(w: number): number {
     let v = w;

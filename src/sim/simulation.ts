@@ -20,8 +20,8 @@
  */
 import type { GainSet, IntegratorName } from '../model/types.js';
 import { Actuator } from './actuator.js';
-import { chooseStep, fastestMode, roundStep, stabilityWarning } from './choose-step.js';
-import { DelayLine } from './delay-line.js';
+import { loopStep } from './choose-step.js';
+import { DelayLine, delayInSteps as delaySteps } from './delay-line.js';
 import { generateOutput, generateStepper, type OutputFunction, type StepFunction } from './generate-stepper.js';
 import { Sensor } from './sensor.js';
 import { TraceRing } from './trace.js';
@@ -43,16 +43,6 @@ export type ControllerMode = 'manual' | 'auto';
 
 /** Tolerance on sample-instant comparisons, as a fraction of the sample time. */
 const TIME_EPS = 1e-9;
-
-/**
- * A delay in integration steps. L/h within 1e-9 of an integer is snapped to it: 0.35/0.025
- * evaluates to 14.000000000000002, which must read as the exact 14-step delay it stands for.
- */
-function delaySteps(delay: number, h: number): number {
-  const q = delay / h;
-  const r = Math.round(q);
-  return Math.abs(q - r) <= 1e-9 * Math.max(1, r) ? r : q;
-}
 
 /** A running closed loop. Create with `createSimulation`. */
 export class Simulation {
@@ -127,21 +117,10 @@ export class Simulation {
     this.actuator = new Actuator(loop.actuator, u0);
     const uStart = this.actuator.end;
 
-    if (loop.step > 0 && Number.isFinite(loop.step)) {
-      const rounded = roundStep(ts, loop.step);
-      this.step = rounded.step;
-      this.substeps = rounded.substeps;
-      if (Math.abs(rounded.step - loop.step) > 1e-9 * loop.step) {
-        this.warnings.push(`integration step ${loop.step} s rounded to ${rounded.step} s to divide the sample time`);
-      }
-      const w = stabilityWarning(loop.integrator, this.step, fastestMode(plant, uStart));
-      if (w !== null) this.warnings.push(w);
-    } else {
-      const c = chooseStep(plant, ts, loop.integrator, uStart);
-      this.step = c.step;
-      this.substeps = c.substeps;
-      for (const w of c.warnings) this.warnings.push(w);
-    }
+    const chosen = loopStep(plant, ts, loop.step, loop.integrator, uStart);
+    this.step = chosen.step;
+    this.substeps = chosen.substeps;
+    for (const w of chosen.warnings) this.warnings.push(w);
 
     this.x = Float64Array.from(plant.x0);
     this.p = plant.params;

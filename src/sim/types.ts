@@ -4,6 +4,7 @@
  */
 import type {
   ActuatorSpec,
+  AntiWindup,
   GainSet,
   IntegratorName,
   SensorSpec,
@@ -36,6 +37,34 @@ export interface DiscreteController {
    * own, reused every sample: read them, do not keep or write them. Must not allocate.
    */
   observe?(t: number, d: Float64Array, m: Float64Array): void;
+  /**
+   * Optional: when this controller is exactly the plain discrete PID law of control/pid.ts, its
+   * coefficients in force (else null). The batch runner then generates the same law inline for
+   * several loops at once; a controller without it is run one loop at a time.
+   */
+  pidLaw?(): PidLaw | null;
+}
+
+/**
+ * Coefficients of the plain discrete PID law (see control/pid.ts for the discretisation):
+ * P = kc (b r − y); D_k = ad D_{k−1} + bd (w_k − w_{k−1}), w = c r − y; I += bi e (+ ar (u − v)
+ * with back-calculation); output limited to [outputMin, outputMax].
+ */
+export interface PidLaw {
+  /** s */
+  sampleTime: number;
+  kc: number;
+  b: number;
+  c: number;
+  /** kc h / ti (0 without integral action). */
+  bi: number;
+  ad: number;
+  bd: number;
+  /** h / tracking time (back-calculation). */
+  ar: number;
+  antiWindup: AntiWindup;
+  outputMin: number;
+  outputMax: number;
 }
 
 /** Everything a simulation needs besides the plant and the controller. */

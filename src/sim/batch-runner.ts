@@ -1,0 +1,382 @@
+/**
+ * Many independent trials at once: `runTrialBatch` runs one trial on several loops (sweep cases,
+ * optimiser probes) and returns what `runTrial` would return for each, bit for bit.
+ *
+ * Loops whose plants share their sources, integrator, sample time and integration step are run
+ * together, up to `width` at a time, by one generated function (batch-stepper.ts). A loop outside
+ * the generated subset runs on its own through `runTrial`, and the result says which and why. The
+ * subset: a controller that is the plain PID law (`DiscreteController.pidLaw`), any actuator
+ * (limits, rate limit), any sensor (delay, filter, noise, quantisation), input delay, and trials
+ * made of setpoint steps, setpoint ramps and disturbance changes (no mode or gain events).
+ */
+import { MATH_HELPERS } from '../model/index.js';
+import type { TrialEvent } from '../model/types.js';
+import { Rng } from '../num/index.js';
+import { Actuator } from './actuator.js';
+import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, type BatchCopyShape } from './batch-stepper.js';
+import { loopStep } from './choose-step.js';
+import { delayInSteps } from './delay-line.js';
+import { generateOutput } from './generate-stepper.js';
+import { runTrial, type TrialOptions } from './run-trial.js';
+import { Sensor } from './sensor.js';
+import { createTrace } from './trace.js';
+import type { DiscreteController, LoopConfig, PidLaw, PlantDynamics, Trace, TrialResult, TrialSpec } from './types.js';
+
+/** One loop of a batch. */
+export interface BatchMember {
+  plant: PlantDynamics;
+  controller: DiscreteController;
+  loop: LoopConfig;
+}
+
+/** Options of `runTrialBatch`. */
+export interface BatchOptions extends TrialOptions {
+  /**
+   * Most loops generated into one function (default 8). Wider batches interleave more work but
+   * hold more live values than the processor has registers; 8 measured best on the surge tank
+   * (test/bench/sweep.bench.ts).
+   */
+  width?: number;
+}
+
+/** Result of `runTrialBatch`. */
+export interface BatchResult {
+  /** One per member, in order, equal to `runTrial(member...)`. */
+  results: TrialResult[];
+  /** Whether each member ran in a generated batch (false = on its own through runTrial). */
+  batched: boolean[];
+  /** Why members ran on their own, once per reason. */
+  notes: string[];
+}
+
+/** Default `width`. */
+export const DEFAULT_BATCH_WIDTH = 8;
+
+const TIME_EPS = 1e-9;
+
+/** Sample index at which each applied event takes effect, mirroring runTrial's event loop. */
+interface Schedule {
+  rows: number;
+  lastRow: number;
+  applied: { k: number; ev: TrialEvent }[];
+}
+
+function schedule(trial: TrialSpec, ts: number): Schedule | string {
+  const lastRow = Math.ceil(trial.duration / ts - 1e-9);
+  const events = [...trial.events].sort((a, b) => a.at - b.at);
+  const applied: { k: number; ev: TrialEvent }[] = [];
+  let kNow = 0;
+  for (const ev of events) {
+    const k = Math.max(0, Math.ceil(ev.at / ts - 1e-9));
+    if (k > lastRow) break;
+    // Simulation.advance(k ts) runs samples while sampleIndex < ceil(k ts / ts - eps).
+    const target = Math.ceil((k * ts) / ts - TIME_EPS);
+    if (target > kNow) kNow = target;
+    if (ev.kind === 'mode' || ev.kind === 'gains') return `the trial has a ${ev.kind} event`;
+    applied.push({ k: kNow, ev });
+  }
+  const final = Math.max(kNow, Math.ceil((lastRow * ts) / ts - TIME_EPS));
+  if (final !== lastRow) return 'the trial ends off its own sample grid';
+  return { rows: lastRow + 1, lastRow, applied };
+}
+
+/** Why this member cannot be generated (null = it can). */
+function unsupported(m: BatchMember, sched: Schedule | string): string | null {
+  if (typeof sched === 'string') return sched;
+  const c = m.controller;
+  if (typeof c.pidLaw !== 'function') return 'the controller is not the plain PID law';
+  if (c.observe !== undefined || (c.measurementNames !== undefined && c.measurementNames.length > 0)) {
+    return 'the controller observes the plant';
+  }
+  for (const a of sched.applied) {
+    if (a.ev.kind === 'disturbance' && m.plant.disturbanceNames.indexOf(a.ev.name) < 0) return `unknown disturbance ${a.ev.name}`;
+  }
+  return null;
+}
+
+/** A member prepared for a batch: its numbers, shape, trace and step. */
+interface Prepared {
+  index: number;
+  member: BatchMember;
+  law: PidLaw;
+  shape: Omit<BatchCopyShape, 'noiseGroup'>;
+  seed: number | null;
+  numbers: Float64Array;
+  state: Float64Array;
+  inLine: Float64Array;
+  sensorLine: Float64Array;
+  trace: Trace;
+  step: number;
+  substeps: number;
+  warnings: string[];
+  key: string;
+}
+
+/** Writes t, r and d of every row as `Simulation` would hold them (the loop cannot change them). */
+function fillSchedule(trace: Trace, sched: Schedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): void {
+  let r = rInit;
+  let rampActive = false;
+  let rampFrom = 0;
+  let rampTo = 0;
+  let rampStart = 0;
+  let rampEnd = 0;
+  const d = Float64Array.from(d0);
+  let next = 0;
+  const applied = sched.applied;
+  for (let k = 0; k <= sched.lastRow; k++) {
+    while (next < applied.length && applied[next].k === k) {
+      const ev = applied[next++].ev;
+      if (ev.kind === 'setpoint') {
+        rampActive = false;
+        r = ev.value;
+      } else if (ev.kind === 'setpoint_ramp') {
+        if (!(ev.duration > 0)) {
+          rampActive = false;
+          r = ev.to;
+        } else {
+          rampActive = true;
+          rampFrom = r;
+          rampTo = ev.to;
+          rampStart = k * ts;
+          rampEnd = k * ts + ev.duration;
+        }
+      } else if (ev.kind === 'disturbance') {
+        d[names.indexOf(ev.name)] = ev.value;
+      }
+    }
+    const t = k * ts;
+    if (rampActive) {
+      if (t >= rampEnd - TIME_EPS * ts) {
+        r = rampTo;
+        rampActive = false;
+      } else {
+        r = rampFrom + ((rampTo - rampFrom) * (t - rampStart)) / (rampEnd - rampStart);
+      }
+    }
+    trace.t[k] = t;
+    trace.r[k] = r;
+    for (let j = 0; j < d.length; j++) trace.d[j][k] = d[j];
+  }
+}
+
+function prepare(
+  index: number,
+  m: BatchMember,
+  trial: TrialSpec,
+  sched: Schedule,
+  helpers: Readonly<Record<string, (...args: number[]) => number>>,
+): Prepared | string {
+  const { plant, loop } = m;
+  // The checks and start-up of Simulation's constructor, in the same order.
+  const ts = loop.sampleTime;
+  if (!(ts > 0) || !Number.isFinite(ts)) throw new RangeError('sampleTime must be positive and finite');
+  if (!(loop.integrator in { rk4: 1, heun: 1, euler: 1 })) throw new RangeError(`unknown integrator ${loop.integrator}`);
+  if (plant.x0.length !== plant.nx) throw new TypeError('x0 length must equal nx');
+  const u0 = trial.initialOutput ?? Math.min(Math.max(0, loop.actuator.min), loop.actuator.max);
+  const uStart = new Actuator(loop.actuator, u0).end;
+  const chosen = loopStep(plant, ts, loop.step, loop.integrator, uStart);
+  const law = (m.controller.pidLaw as () => PidLaw | null).call(m.controller);
+  if (law === null) return 'the controller is not the plain PID law';
+  const h = chosen.step;
+  if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
+  if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
+  const inSteps = delayInSteps(plant.inputDelay, h);
+  const outFn = generateOutput(plant, plant.outputSource, helpers);
+  const y0 = outFn(Float64Array.from(plant.x0), plant.params, Float64Array.from(plant.d0), uStart, 0);
+  const outSteps = delayInSteps(loop.sensor.delay, h);
+  const sensor = new Sensor(loop.sensor, ts);
+  const rInit = trial.initialSetpoint ?? y0;
+
+  const inLine = plant.inputDelay > 0 ? new Float64Array(Math.floor(inSteps) + 2).fill(uStart) : new Float64Array(0);
+  const sensorLine = loop.sensor.delay > 0 ? new Float64Array(Math.floor(outSteps) + 2).fill(y0) : new Float64Array(0);
+  const trace = createTrace(sched.rows, plant.disturbanceNames);
+  fillSchedule(trace, sched, ts, rInit, plant.d0, plant.disturbanceNames);
+
+  const nf = BATCH_FIELDS.length;
+  const np = plant.params.length;
+  const widths = batchWidths(plant.nx, np);
+  const numbers = new Float64Array(widths.p);
+  const a = loop.actuator;
+  const s = loop.sensor;
+  const values: Record<(typeof BATCH_FIELDS)[number], number> = {
+    kc: law.kc,
+    b: law.b,
+    c: law.c,
+    bi: law.bi,
+    ad: law.ad,
+    bd: law.bd,
+    ar: law.ar,
+    omin: law.outputMin,
+    omax: law.outputMax,
+    amin: a.min,
+    amax: a.max,
+    rate: a.rateLimit,
+    rInit,
+    fa: sensor.filterPole,
+    fslope: sensor.filterSlope,
+    noise: s.noiseStd,
+    res: s.resolution,
+    inDelay: inSteps,
+    outDelay: outSteps,
+  };
+  BATCH_FIELDS.forEach((f, i) => {
+    numbers[i] = values[f];
+  });
+  // The inverses are those the one-loop stepper computes once per call as 1 / p_j.
+  for (let j = 0; j < np; j++) {
+    numbers[nf + j] = plant.params[j];
+    numbers[nf + np + j] = 1 / plant.params[j];
+  }
+  const state = new Float64Array(widths.z);
+  for (const f of ['start', 'end', 'uPlant'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
+  state.set(plant.x0, BATCH_STATE.length);
+  const shape = {
+    inputDelay: plant.inputDelay > 0,
+    sensorDelay: s.delay > 0,
+    filtered: s.filterTime > 0,
+    quantised: s.resolution > 0,
+    rateLimited: a.rateLimit !== Infinity,
+    antiWindup: law.antiWindup,
+  };
+  const key = [
+    loop.integrator,
+    ts,
+    h,
+    chosen.substeps,
+    plant.nx,
+    plant.params.length,
+    plant.d0.length,
+    plant.outputSource,
+    ...plant.derivSource,
+  ].join('\u0000');
+  return {
+    index,
+    member: m,
+    law,
+    shape,
+    seed: s.noiseStd > 0 ? Math.trunc(s.seed) >>> 0 : null,
+    numbers,
+    state,
+    inLine,
+    sensorLine,
+    trace,
+    step: h,
+    substeps: chosen.substeps,
+    warnings: chosen.warnings,
+    key,
+  };
+}
+
+/** Run one generated batch of prepared members; writes their results. */
+function runChunk(
+  chunk: Prepared[],
+  sched: Schedule,
+  helpers: Readonly<Record<string, (...args: number[]) => number>>,
+  out: TrialResult[],
+): void {
+  const first = chunk[0];
+  const plant = first.member.plant;
+  const seeds: number[] = [];
+  const shapes: BatchCopyShape[] = chunk.map((p) => {
+    let g = -1;
+    if (p.seed !== null) {
+      g = seeds.indexOf(p.seed);
+      if (g < 0) {
+        g = seeds.length;
+        seeds.push(p.seed);
+      }
+    }
+    return { ...p.shape, noiseGroup: g };
+  });
+  const fn = generateBatch(plant, first.member.loop.integrator, shapes, helpers);
+  const wp = first.numbers.length;
+  const wz = first.state.length;
+  const P = new Float64Array(wp * chunk.length);
+  const Z = new Float64Array(wz * chunk.length);
+  const B: Float64Array[] = [];
+  const T: (Float64Array | Uint8Array)[] = [];
+  chunk.forEach((p, c) => {
+    P.set(p.numbers, c * wp);
+    Z.set(p.state, c * wz);
+    B.push(p.inLine, p.sensorLine);
+    const tr = p.trace;
+    T.push(tr.r, tr.y, tr.ym, tr.uc, tr.u, tr.sat, ...tr.d);
+    if (T.length !== (c + 1) * (BATCH_CHANNELS + tr.d.length)) throw new TypeError('trace channel layout');
+  });
+  const G = seeds.map((s) => new Rng(s));
+  const OUT = new Float64Array(chunk.length);
+  const ts = first.member.loop.sampleTime;
+  fn(P, Z, B, T, G, OUT, sched.lastRow, ts, first.step, first.substeps);
+  chunk.forEach((p, c) => {
+    const diverged = OUT[c] > 0;
+    const rows = diverged ? OUT[c] : sched.rows;
+    const tr = p.trace;
+    tr.length = rows;
+    if (diverged) {
+      // Rows after the divergence were never recorded: zero, as in an unwritten trace.
+      for (const ch of [tr.t, tr.r, tr.y, tr.ym, tr.uc, tr.u, tr.sat, ...tr.d]) ch.fill(0, rows);
+    }
+    out[p.index] = {
+      trace: tr,
+      steps: (diverged ? rows : sched.lastRow) * p.substeps,
+      status: diverged ? 'diverged' : 'ok',
+      divergedAt: diverged ? rows * ts : null,
+      step: p.step,
+      warnings: p.warnings,
+    };
+  });
+}
+
+/**
+ * Run `trial` on every member. Each result equals `runTrial(m.plant, m.controller, m.loop, trial)`
+ * bit for bit; members in the generated subset are run together (their controller objects are only
+ * read), the others one at a time through `runTrial` (which updates their controller objects).
+ */
+export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec, options: BatchOptions = {}): BatchResult {
+  if (!(trial.duration >= 0) || !Number.isFinite(trial.duration)) throw new RangeError('duration must be >= 0');
+  const width = options.width ?? DEFAULT_BATCH_WIDTH;
+  if (!Number.isInteger(width) || width < 1) throw new RangeError('width must be a positive integer');
+  const helpers = options.helpers ?? MATH_HELPERS;
+  const results: TrialResult[] = new Array<TrialResult>(members.length);
+  const batched = members.map(() => false);
+  const notes: string[] = [];
+  const scheds = new Map<number, Schedule | string>();
+  const groups = new Map<string, Prepared[]>();
+  const single: number[] = [];
+  members.forEach((m, i) => {
+    const ts = m.loop.sampleTime;
+    let sched = scheds.get(ts);
+    if (sched === undefined) {
+      sched = ts > 0 && Number.isFinite(ts) ? schedule(trial, ts) : 'bad sample time';
+      scheds.set(ts, sched);
+    }
+    let why = unsupported(m, sched);
+    let p: Prepared | string | null = null;
+    if (why === null) {
+      p = prepare(i, m, trial, sched as Schedule, helpers);
+      if (typeof p === 'string') why = p;
+    }
+    if (why !== null || p === null || typeof p === 'string') {
+      single.push(i);
+      const note = `run one at a time: ${why ?? 'not supported'}`;
+      if (!notes.includes(note)) notes.push(note);
+      return;
+    }
+    const list = groups.get(p.key);
+    if (list === undefined) groups.set(p.key, [p]);
+    else list.push(p);
+  });
+  for (const list of groups.values()) {
+    const sched = scheds.get(list[0].member.loop.sampleTime) as Schedule;
+    // Equal chunks rather than full ones plus a remainder: fewer distinct generated widths.
+    const chunks = Math.ceil(list.length / width);
+    const size = Math.ceil(list.length / chunks);
+    for (let i = 0; i < list.length; i += size) runChunk(list.slice(i, i + size), sched, helpers, results);
+    for (const p of list) batched[p.index] = true;
+  }
+  for (const i of single) {
+    const m = members[i];
+    results[i] = runTrial(m.plant, m.controller, m.loop, trial, { helpers: options.helpers });
+  }
+  return { results, batched, notes };
+}
