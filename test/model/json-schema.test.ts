@@ -5,7 +5,7 @@
  * the bundled plants (a required field removed, an unknown field added, a wrong type, a bad
  * choice) are refused by both.
  */
-import Ajv from 'ajv';
+import { Ajv } from 'ajv';
 import fc from 'fast-check';
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
