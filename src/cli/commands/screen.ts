@@ -14,6 +14,10 @@ export async function screenCommand(args: readonly string[], io: Io): Promise<nu
   // React picks its build when first loaded: the screen runs the production one unless asked
   // otherwise. Loaded here, not at the top, so other commands never pay for Ink and React.
   process.env.NODE_ENV ??= 'production';
+  // Ink draws nothing until exit when it thinks it runs in CI; with a terminal on both ends a
+  // person is at the keys, whatever the environment says (read once, when Ink is loaded).
+  delete process.env.CI;
+  delete process.env.CONTINUOUS_INTEGRATION;
   const { runScreen } = await import('../../tui/index.js');
   return runScreen(file, {
     io: { readText: (p) => io.readText(p), writeText: (p, t) => io.writeText(p, t) },
