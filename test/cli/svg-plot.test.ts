@@ -107,7 +107,8 @@ describe('svgPlot', () => {
   it('niceTicks steps by 1, 2 or 5 x 10^k and covers the range', () => {
     expect(niceTicks(0, 10, 5)).toEqual([0, 2, 4, 6, 8, 10]);
     expect(niceTicks(0.13, 0.87, 6)).toEqual([0.2, 0.4, 0.6, 0.8]); // raw step 0.123 -> 0.2
-    expect(niceTicks(-3, 7, 4)).toEqual([-2, 0, 2, 4, 6]);
+    expect(niceTicks(-3, 7, 4)).toEqual([0, 5]); // raw step 2.5 -> 5
+    expect(niceTicks(-3, 7, 5)).toEqual([-2, 0, 2, 4, 6]);
     expect(niceTicks(0, 3600, 10)).toEqual([0, 500, 1000, 1500, 2000, 2500, 3000, 3500]);
   });
 
