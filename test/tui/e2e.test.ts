@@ -114,7 +114,12 @@ beforeAll(() => {
 }, 180_000);
 
 afterAll(() => {
-  if (hasTmux) spawnSync('tmux', ['-L', socket, 'kill-server']);
+  if (hasTmux) {
+    const path = spawnSync('tmux', ['-L', socket, 'display-message', '-p', '#{socket_path}'], { encoding: 'utf8' }).stdout.trim();
+    spawnSync('tmux', ['-L', socket, 'kill-server']);
+    // tmux leaves the socket file behind.
+    if (path !== '') rmSync(path, { force: true });
+  }
   if (work !== '') rmSync(work, { recursive: true, force: true });
 });
 
