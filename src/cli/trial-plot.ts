@@ -117,7 +117,7 @@ export function trialPlotSvg(input: TrialPlotInput): string {
   const c = plant.loop.controller;
   const subtitle = [
     input.file,
-    `${c.structure} (${c.form}) ${gainsText(plant)}`,
+    `${c.named ?? c.structure} (${c.form}) ${gainsText(plant)}`,
     `sample time ${num(plant.loop.sampleTime)} s`,
     ...(input.note ? [input.note] : []),
   ].join('  ·  ');

@@ -215,7 +215,7 @@ export function exportPlant(plant: PlantSpec, file: string, a: Omit<ExportArgs, 
   return {
     file,
     plant: plant.name,
-    structure: c.structure,
+    structure: c.named ?? c.structure,
     source: { form: c.form, values: { ...c.values } },
     form,
     timeUnit: a.timeUnit,
@@ -294,6 +294,9 @@ export function exportText(r: ExportReport): string {
     .join(', ');
   lines.push(`${r.plant}  (${r.file})`);
   lines.push(`controller ${r.structure}, written in the ${r.source.form} form: ${src}`);
+  if (!['p', 'pi', 'pd', 'pid'].includes(r.structure)) {
+    lines.push(`(structure ${r.structure}: these are the main PID gains; the settings of its own section are as written in the file)`);
+  }
   lines.push('');
   lines.push(`${FORM_TITLE[r.form]}`);
   lines.push(
