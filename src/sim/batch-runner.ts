@@ -112,8 +112,16 @@ interface Prepared {
   key: string;
 }
 
-/** Writes t, r and d of every row as `Simulation` would hold them (the loop cannot change them). */
-function fillSchedule(trace: Trace, sched: Schedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): void {
+/** The setpoint and disturbance of every row, as `Simulation` holds them (the loop cannot change them). */
+interface Rows {
+  t: Float64Array;
+  r: Float64Array;
+  d: Float64Array[];
+}
+
+function scheduleRows(sched: Schedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): Rows {
+  const rows = sched.rows;
+  const out: Rows = { t: new Float64Array(rows), r: new Float64Array(rows), d: names.map(() => new Float64Array(rows)) };
   let r = rInit;
   let rampActive = false;
   let rampFrom = 0;
@@ -153,9 +161,27 @@ function fillSchedule(trace: Trace, sched: Schedule, ts: number, rInit: number, 
         r = rampFrom + ((rampTo - rampFrom) * (t - rampStart)) / (rampEnd - rampStart);
       }
     }
-    trace.t[k] = t;
-    trace.r[k] = r;
-    for (let j = 0; j < d.length; j++) trace.d[j][k] = d[j];
+    out.t[k] = t;
+    out.r[k] = r;
+    for (let j = 0; j < d.length; j++) out.d[j][k] = d[j];
+  }
+  return out;
+}
+
+/**
+ * Rows by (sample time, initial setpoint, initial disturbances): the cases of a sweep share them,
+ * so they are worked out once per call and copied into each trace.
+ */
+class RowCache {
+  private readonly map = new Map<string, Rows>();
+  get(sched: Schedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): Rows {
+    const key = [ts, Object.is(rInit, -0) ? '-0' : rInit, ...Array.from(d0, (v) => (Object.is(v, -0) ? '-0' : v)), ...names].join('\u0000');
+    let rows = this.map.get(key);
+    if (rows === undefined) {
+      rows = scheduleRows(sched, ts, rInit, d0, names);
+      this.map.set(key, rows);
+    }
+    return rows;
   }
 }
 
@@ -165,6 +191,7 @@ function prepare(
   trial: TrialSpec,
   sched: Schedule,
   helpers: Readonly<Record<string, (...args: number[]) => number>>,
+  rowCache: RowCache,
 ): Prepared | string {
   const { plant, loop } = m;
   // The checks and start-up of Simulation's constructor, in the same order.
@@ -190,7 +217,10 @@ function prepare(
   const inLine = plant.inputDelay > 0 ? new Float64Array(Math.floor(inSteps) + 2).fill(uStart) : new Float64Array(0);
   const sensorLine = loop.sensor.delay > 0 ? new Float64Array(Math.floor(outSteps) + 2).fill(y0) : new Float64Array(0);
   const trace = createTrace(sched.rows, plant.disturbanceNames);
-  fillSchedule(trace, sched, ts, rInit, plant.d0, plant.disturbanceNames);
+  const rows = rowCache.get(sched, ts, rInit, plant.d0, plant.disturbanceNames);
+  trace.t.set(rows.t);
+  trace.r.set(rows.r);
+  for (let j = 0; j < trace.d.length; j++) trace.d[j].set(rows.d[j]);
 
   const nf = BATCH_FIELDS.length;
   const np = plant.params.length;
@@ -343,6 +373,7 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
   const scheds = new Map<number, Schedule | string>();
   const groups = new Map<string, Prepared[]>();
   const single: number[] = [];
+  const rowCache = new RowCache();
   members.forEach((m, i) => {
     const ts = m.loop.sampleTime;
     let sched = scheds.get(ts);
@@ -353,12 +384,12 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
     let why = unsupported(m, sched);
     let p: Prepared | string | null = null;
     if (why === null) {
-      p = prepare(i, m, trial, sched as Schedule, helpers);
+      p = prepare(i, m, trial, sched as Schedule, helpers, rowCache);
       if (typeof p === 'string') why = p;
     }
     if (why !== null || p === null || typeof p === 'string') {
       single.push(i);
-      const note = `run one at a time: ${why ?? 'not supported'}`;
+      const note = why ?? 'not supported';
       if (!notes.includes(note)) notes.push(note);
       return;
     }

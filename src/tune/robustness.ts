@@ -3,12 +3,17 @@
  * box (all combinations of low/high; up to MAX_CORNER_DIMS uncertain quantities) plus a seeded
  * Monte-Carlo sample (uniform in each range) is simulated on the full plant; the worst figures and
  * the envelope of the output traces are returned.
+ *
+ * The cases are independent runs of one loop structure, so by default they are simulated
+ * together by sim's batch runner (several loops in one generated function, results bit-identical
+ * to one run at a time); `runner: 'sequential'` runs them one at a time, the reference path.
  */
-import { applyStructure } from '../control/index.js';
+import { trialMetrics } from '../analysis/index.js';
+import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
-import type { ControllerStructure, GainSet, PlantSpec } from '../model/types.js';
+import type { ControllerStructure, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
 import { Rng } from '../num/index.js';
-import { withParams, type PlantDynamics, type TrialResult } from '../sim/index.js';
+import { runTrialBatch, withParams, type DiscreteController, type PlantDynamics, type TrialResult } from '../sim/index.js';
 import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { gainMargins, simulateGains } from './evaluate.js';
 import { specWithValues } from './uncertain-spec.js';
@@ -31,6 +36,12 @@ export interface RobustnessOptions {
   nominal?: boolean;
   /** Keep each case's output trace for the envelope (default true). */
   envelope?: boolean;
+  /**
+   * How the cases are simulated: 'batched' (default) several at once by sim's batch runner, with
+   * the same results as 'sequential', one `runTrial` per case. Cases outside the batch runner's
+   * subset run one at a time either way (a note says so).
+   */
+  runner?: 'batched' | 'sequential';
 }
 
 /** One simulated case. */
@@ -155,9 +166,11 @@ export function robustnessSweep(
   const keep = options.envelope ?? true;
   const cases: RobustnessCase[] = [];
   let envelope: TraceEnvelope | null = null;
-  for (const c of list) {
+  const runs = options.runner === 'sequential' ? null : batchedRuns(list, g, structure, notes);
+  for (let i = 0; i < list.length; i++) {
+    const c = list[i];
     const ctx = c.ctx;
-    const { result, metrics } = simulateGains(ctx, g, structure);
+    const { result, metrics } = runs === null ? simulateGains(ctx, g, structure) : runs[i];
     cases.push(caseFigures(c.kind, c.values, result, metrics, gainMargins(ctx, g)));
     if (keep) {
       const tr = result.trace;
@@ -184,6 +197,70 @@ export function robustnessSweep(
     }
   }
   return { summary: summarise(cases), cases, envelope, notes };
+}
+
+/**
+ * The controller `simulateGains` builds for a gain set: the plain law of `structure` (a structure
+ * around the file's law is not part of a gain set). Kept in step with evaluate.ts: the sweep's
+ * tests compare the batched path with `simulateGains` case by case.
+ */
+function gainController(ctx: TuningContext, gains: GainSet, structure: ControllerStructure): DiscreteController {
+  const { extension: _structure, named: _named, ...plain } = ctx.spec.loop.controller;
+  return buildController({ ...plain, structure, gains }, ctx.spec.loop.sampleTime);
+}
+
+function sameNumber(a: number | null, b: number | null): boolean {
+  return a === null || b === null ? a === b : Object.is(a, b);
+}
+
+/** Same trial, field by field (the cases' contexts each hold their own copy of the file's trial). */
+function sameTrial(a: TrialSpec, b: TrialSpec): boolean {
+  if (a === b) return true;
+  if (!sameNumber(a.duration, b.duration) || !sameNumber(a.initialSetpoint, b.initialSetpoint)) return false;
+  if (!sameNumber(a.initialOutput, b.initialOutput) || a.events.length !== b.events.length) return false;
+  for (let i = 0; i < a.events.length; i++) {
+    const x = a.events[i] as unknown as Record<string, unknown>;
+    const y = b.events[i] as unknown as Record<string, unknown>;
+    const keys = Object.keys(x);
+    if (keys.length !== Object.keys(y).length) return false;
+    for (const k of keys) {
+      const u = x[k];
+      const v = y[k];
+      if (typeof u === 'number' && typeof v === 'number' ? !Object.is(u, v) : u !== v) return false;
+    }
+  }
+  return true;
+}
+
+/** All cases simulated through the batch runner (grouped by trial), with their metrics. */
+function batchedRuns(
+  list: SweepPlan['cases'],
+  gains: GainSet,
+  structure: ControllerStructure,
+  notes: string[],
+): { result: TrialResult; metrics: TrialMetrics }[] {
+  const out = new Array<{ result: TrialResult; metrics: TrialMetrics }>(list.length);
+  const groups: { trial: TrialSpec; idx: number[] }[] = [];
+  list.forEach((c, i) => {
+    const grp = groups.find((x) => sameTrial(x.trial, c.ctx.trial));
+    if (grp === undefined) groups.push({ trial: c.ctx.trial, idx: [i] });
+    else grp.idx.push(i);
+  });
+  let single = 0;
+  const why: string[] = [];
+  for (const grp of groups) {
+    const members = grp.idx.map((i) => ({ plant: list[i].ctx.dynamics, controller: gainController(list[i].ctx, gains, structure), loop: list[i].ctx.loop }));
+    const b = runTrialBatch(members, grp.trial);
+    grp.idx.forEach((i, j) => {
+      const ctx = list[i].ctx;
+      const result = b.results[j];
+      out[i] = { result, metrics: trialMetrics(result.trace, ctx.trial, ctx.spec.loop.requirements) };
+      if (!b.batched[j]) single++;
+    });
+    for (const n of b.notes) if (!why.includes(n)) why.push(n);
+  }
+  if (single > 0) notes.push(`${single} of ${list.length} cases simulated one at a time (${why.join('; ')})`);
+  return out;
 }
 
 /** The figures of one simulated case. */
