@@ -16,7 +16,15 @@
 import { closedLoopCheck, loopExtras } from '../analysis/index.js';
 import type { Margins, RequirementResult } from '../analysis/index.js';
 import type { GainSet, PlantSpec, Requirements } from '../model/types.js';
-import { gainMargins, MAX_CORNER_DIMS, planSweep, tuningContext, type TuningContext } from '../tune/index.js';
+import {
+  gainMargins,
+  MAX_CORNER_DIMS,
+  planSweep,
+  resolveController,
+  structureMargins,
+  tuningContext,
+  type TuningContext,
+} from '../tune/index.js';
 import { num } from './format.js';
 import { simulatePlant, type SimulatedTrial } from './simulate-plant.js';
 
@@ -106,6 +114,8 @@ function frequencyFigures(ctx: TuningContext, gains: GainSet, wanted: ReadonlySe
     return out;
   }
   const spec = ctx.spec;
+  const ext = spec.loop.controller.extension;
+  if (ext !== undefined && (ext.kind === 'smith_pi' || ext.kind === 'cascade')) return structuredFigures(ctx, wanted);
   const m: Margins | null = gainMargins(ctx, gains);
   if (m === null) {
     for (const name of wanted) out.set(name, { measured: NaN, available: false, note: 'not available: no frequency response' });
@@ -143,6 +153,33 @@ function frequencyFigures(ctx: TuningContext, gains: GainSet, wanted: ReadonlySe
       available: true,
       note: !cl.wellPosed ? 'the loop is not well posed' : d.pole ? `dominant pole ${fmtPole(d.pole)} rad/s` : 'no closed-loop poles',
     });
+  }
+  return out;
+}
+
+/**
+ * A Smith predictor or a cascade is not the plain PID loop: Ms, GM and PM come from tune's
+ * structureMargins (loop broken at the actuator, grid figures); bandwidth and the dominant
+ * damping of such a loop are not computed (not available).
+ */
+function structuredFigures(ctx: TuningContext, wanted: ReadonlySet<string>): Map<string, Figure> {
+  const out = new Map<string, Figure>();
+  const c = ctx.spec.loop.controller;
+  const name = c.named ?? c.structure;
+  let m: ReturnType<typeof structureMargins> = null;
+  let why = '';
+  try {
+    m = structureMargins(ctx, resolveController(ctx, c).controller);
+    if (m === null) why = 'no linear model of the loop';
+  } catch (error) {
+    why = (error as Error).message;
+  }
+  for (const n of wanted) {
+    if (m === null) out.set(n, { measured: NaN, available: false, note: `not available: ${why}` });
+    else if (n === 'max_sensitivity') out.set(n, { measured: m.maxSensitivity, available: true, note: `${name}, loop broken at the actuator` });
+    else if (n === 'gain_margin') out.set(n, { measured: m.gainMargin, available: true, note: `${name}, loop broken at the actuator` });
+    else if (n === 'phase_margin_deg') out.set(n, { measured: m.phaseMarginDeg, available: true, note: `${name}, loop broken at the actuator` });
+    else out.set(n, { measured: NaN, available: false, note: `not available for structure ${name} (not the plain PID loop)` });
   }
   return out;
 }

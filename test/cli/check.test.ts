@@ -10,6 +10,8 @@ import { main } from '../../src/cli/index.js';
 import { dominantDamping } from '../../src/cli/check-plant.js';
 import { plotName } from '../../src/cli/commands/check.js';
 import { expectClose } from '../helpers/expect-close.js';
+import { loadPlant } from '../../src/model/index.js';
+import { gainMargins, resolveController, structureMargins, tuningContext } from '../../src/tune/index.js';
 import { fakeIo } from './fake-io.js';
 
 const FIX = 'test/fixtures/check';
@@ -139,6 +141,20 @@ describe('check: frequency domain against closed forms', () => {
     expect(r.code).toBe(1);
     const text = await cli(['check', f]);
     expect(text.out).toMatch(/gain_margin\s+nominal\s+n\/a\s+>= 2\s+N\/A/);
+  });
+
+  it('a Smith predictor: Ms, GM, PM of the loop broken at the actuator (tune.structureMargins); bandwidth not available', async () => {
+    const f = `${FIX}/smith-predictor.yaml`;
+    const rows = rowsOf(JSON.parse((await cli(['check', f, '--json'])).out), f);
+    const plant = loadPlant(readFileSync(f, 'utf8'), f).plant!;
+    const ctx = tuningContext(plant);
+    const m = structureMargins(ctx, resolveController(ctx, plant.loop.controller).controller)!;
+    expect(rows.find((x) => x.name === 'max_sensitivity')!.measured).toBe(m.maxSensitivity);
+    expect(rows.find((x) => x.name === 'gain_margin')!.measured).toBe(m.gainMargin);
+    // The plain PI on the same plant (no predictor) would have a very different loop: Ms > 2.
+    const plain = gainMargins(ctx, plant.loop.controller.gains)!;
+    expect(Math.abs(plain.maxSensitivity - m.maxSensitivity)).toBeGreaterThan(0.1);
+    expect(rows.find((x) => x.name === 'bandwidth')).toMatchObject({ status: 'not available', measured: null });
   });
 
   it('dominantDamping: slowest pole and those decaying at most 2x faster; real poles count as 1', () => {
