@@ -234,7 +234,16 @@ export function checkPlant(plant: PlantSpec): PlantCheck {
   })();
   let nominal: SimulatedTrial | null = null;
   const perCase: { values: Record<string, number>; figures: Map<string, Figure> }[] = [];
+  // A structure's model-derived values (a Smith model, a cascade's inner gains ...) are derived
+  // once, from the nominal plant, and kept in every case: the controller does not learn the
+  // perturbed plant.
+  const c0 = plant.loop.controller;
+  const resolved = worst && base !== null && c0.extension !== undefined ? resolveController(base, c0).controller : null;
   for (const c of plan.cases) {
+    if (resolved !== null && c.ctx !== null) {
+      const spec = { ...c.ctx.spec, loop: { ...c.ctx.spec.loop, controller: resolved } };
+      c.ctx = { ...c.ctx, spec };
+    }
     const sim = c.ctx === null ? simulatePlant(plant) : simulatePlant(c.ctx.spec, c.ctx.dynamics);
     if (nominal === null) nominal = sim;
     const figures = timeFigures(sim, multipleSteps);

@@ -242,6 +242,21 @@ describe('check: finding files, shards, bad input', () => {
     expect(r.out).toMatch(/2 files: 0 pass, 1 fail, 1 invalid/);
   });
 
+  it('a structure the plant cannot support is an invalid file: exit 2 with the reason', async () => {
+    const text = [
+      'name: Smith on an integrator',
+      'model: { type: integrating, gain: 0.1, delay: 5 s }',
+      'loop:',
+      '  sample_time: 0.5 s',
+      '  controller: { structure: smith_pi, kc: 1, ti: 20 s }',
+      '  trial: { duration: 100 s, events: [{ at: 5 s, setpoint: 1 }] }',
+      '',
+    ].join('\n');
+    const r = await cli(['check', 's.yaml'], { 's.yaml': text });
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/^s\.yaml: the Smith predictor .*integrating plant/);
+  });
+
   it('a missing path, no arguments, a bad option: exit 2', async () => {
     expect((await cli(['check', 'no/such/place'])).err).toBe('looprig: check: cannot read no/such/place: no such file or folder\n');
     expect((await cli(['check'])).code).toBe(2);

@@ -11,6 +11,7 @@ import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { formatDiagnostic, loadPlant } from '../../model/index.js';
+import { StructureUnavailable } from '../../tune/index.js';
 import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
 import { UserError } from '../errors.js';
 import { findPlantFiles, parseShard, shardOf, topLevelKeys, type PlantFileEntry } from '../find-plant-files.js';
@@ -117,7 +118,14 @@ function checkFile(entry: PlantFileEntry, io: Io): FileOutcome {
     return invalid(errors);
   }
   for (const w of warnings) io.err(`${w}\n`);
-  const check = checkPlant(loaded.plant);
+  let check: PlantCheck;
+  try {
+    check = checkPlant(loaded.plant);
+  } catch (error) {
+    // A structure this plant cannot support (e.g. a Smith predictor on an integrating plant).
+    if (error instanceof StructureUnavailable) return invalid([`${file}: ${error.message}`]);
+    throw error;
+  }
   return { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, check, errors: [], warnings, svg: null };
 }
 
