@@ -279,7 +279,8 @@ export function checkPlant(plant: PlantSpec): PlantCheck {
     }
     const f = perCase[pick].figures.get(c.name)!;
     const where = Object.entries(perCase[pick].values)
-      .map(([k, v]) => `${k} = ${num(v)}`)
+      // The linear kinds' time_constant and delay are times (s); ode parameters carry no unit.
+      .map(([k, v]) => `${k} = ${num(v)}${plant.model.type !== 'ode' && (k === 'delay' || k === 'time_constant') ? ' s' : ''}`)
       .join(', ');
     rows.push(
       row(c, 'worst case', limit, {

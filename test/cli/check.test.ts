@@ -195,7 +195,7 @@ describe('check: worst case over the uncertainty box', () => {
       expect(rows.find((x) => x.name === n && x.case === 'nominal')!.measured).toBe(values[0]);
     }
     // The corner with the largest gain and delay is the worst for all four here.
-    expect(rows.find((x) => x.case === 'worst case')!.note).toMatch(/delay = 3, gain = 3/);
+    expect(rows.find((x) => x.case === 'worst case')!.note).toMatch(/delay = 3 s, gain = 3/);
     expect(doc.exit_code).toBe(1);
   });
 
