@@ -1,18 +1,22 @@
-/** Help text of the command line (our own wording). */
+/** Help text of the command line (our own wording). Each command also answers `--help`. */
 export const USAGE = `looprig - try PID gains on a simulated process before touching the real one
 
 Usage:
-  looprig                       run the bundled demo plant (surge tank level)
-  looprig run FILE [options]    simulate the trial described in a plant file and report metrics
-  looprig check FILE|DIR...      validate plant files, run their trials, check their requirements;
-                                exit 0 all pass, 1 a requirement failed, 2 an invalid file
-                                (looprig check --help)
-  looprig export FILE [options] the gains in your controller's form and units, and discrete
-                                velocity-form coefficients (looprig export --help)
-  looprig compare FILE [--json] the file's candidate controllers (or ones chosen from the
-                                diagnosis) on the same trial, side by side (looprig compare --help)
-  looprig schema                print the JSON Schema of plant files (for editors)
-  looprig help                  show this text
+  looprig [FILE]                 the terminal screen on FILE (no FILE: the bundled demo plant);
+                                 without a terminal, the run summary instead
+  looprig run FILE [options]     simulate the file's trial and report metrics and requirements
+  looprig check FILE|DIR...      validate plant files, run their trials, check their requirements
+                                 (exit 0 all pass, 1 a requirement failed, 2 an invalid file)
+  looprig diagnose FILE          is plain PID enough? operating point, poles and zeros, margins, flags
+  looprig suggest FILE           every published tuning rule, each simulated on the full plant
+  looprig optimize FILE          gains that minimise IAE (or ITAE) subject to Ms <= 1.6; --write saves
+  looprig compare FILE           controller structures side by side on the same trial
+  looprig fit LOG.csv            fit a model to a logged bump test; --out writes a plant file
+  looprig export FILE            the gains in your controller's form and units, and discrete
+                                 velocity-form coefficients
+  looprig schema                 print the JSON Schema of plant files (for editors)
+  looprig help                   show this text
+  looprig COMMAND --help         the options of one command
 
 Options for run:
   --json              print one JSON document on stdout instead of the summary
@@ -25,6 +29,10 @@ Options for run:
   --step DT           override the integration step, e.g. --step 0.01s
   -h, --help          show this text
 
-Exit status: 0 the run completed (a diverging loop is a result, reported as such),
-2 bad arguments or a plant file with errors (printed as FILE:LINE:COL: message).
+Exit status: 0 the command completed (a diverging loop is a result, reported as such),
+1 a requirement failed (check), 2 bad arguments or a plant file with errors (printed as
+FILE:LINE:COL: message).
+
+Simulated gains are a starting point: verify them on the equipment with interlocks in place and a
+manual fallback ready, and defer to local codes and licensed practice.
 `;
