@@ -13,7 +13,7 @@ import { MATH_HELPERS } from '../model/index.js';
 import type { TrialEvent } from '../model/types.js';
 import { Rng } from '../num/index.js';
 import { Actuator } from './actuator.js';
-import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, type BatchCopyShape } from './batch-stepper.js';
+import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, type BatchShape } from './batch-stepper.js';
 import { loopStep } from './choose-step.js';
 import { delayInSteps } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
@@ -99,7 +99,7 @@ interface Prepared {
   index: number;
   member: BatchMember;
   law: PidLaw;
-  shape: Omit<BatchCopyShape, 'noiseGroup'>;
+  shape: Omit<BatchShape, 'width'>;
   seed: number | null;
   numbers: Float64Array;
   state: Float64Array;
@@ -248,6 +248,7 @@ function prepare(
     res: s.resolution,
     inDelay: inSteps,
     outDelay: outSteps,
+    ng: 0,
   };
   BATCH_FIELDS.forEach((f, i) => {
     numbers[i] = values[f];
@@ -264,11 +265,13 @@ function prepare(
     inputDelay: plant.inputDelay > 0,
     sensorDelay: s.delay > 0,
     filtered: s.filterTime > 0,
+    noisy: s.noiseStd > 0,
     quantised: s.resolution > 0,
     rateLimited: a.rateLimit !== Infinity,
     antiWindup: law.antiWindup,
   };
   const key = [
+    JSON.stringify(shape),
     loop.integrator,
     ts,
     h,
@@ -307,18 +310,17 @@ function runChunk(
   const first = chunk[0];
   const plant = first.member.plant;
   const seeds: number[] = [];
-  const shapes: BatchCopyShape[] = chunk.map((p) => {
-    let g = -1;
-    if (p.seed !== null) {
-      g = seeds.indexOf(p.seed);
-      if (g < 0) {
-        g = seeds.length;
-        seeds.push(p.seed);
-      }
+  const ngAt = BATCH_FIELDS.indexOf('ng');
+  for (const p of chunk) {
+    if (p.seed === null) continue;
+    let g = seeds.indexOf(p.seed);
+    if (g < 0) {
+      g = seeds.length;
+      seeds.push(p.seed);
     }
-    return { ...p.shape, noiseGroup: g };
-  });
-  const fn = generateBatch(plant, first.member.loop.integrator, shapes, helpers);
+    p.numbers[ngAt] = g;
+  }
+  const fn = generateBatch(plant, first.member.loop.integrator, { ...first.shape, width: chunk.length }, helpers);
   const wp = first.numbers.length;
   const wz = first.state.length;
   const P = new Float64Array(wp * chunk.length);

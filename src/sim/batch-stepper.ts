@@ -56,6 +56,8 @@ export const BATCH_FIELDS = [
   'res',
   'inDelay',
   'outDelay',
+  /** Index in `G` of the copy's noise generator. */
+  'ng',
 ] as const;
 
 /**
@@ -79,6 +81,8 @@ export const BATCH_STATE = [
   'uPlant',
   'ih',
   'sh',
+  /** Integral of the ramp path up to the last integration step of the sample (Actuator.fillSteps). */
+  'prev',
 ] as const;
 
 /** Trace channels per copy in the `T` argument: r (read), y, ym, uc, u, sat, then d_0 … (read). */
@@ -89,15 +93,20 @@ export function batchWidths(nx: number, np: number): { p: number; z: number } {
   return { p: BATCH_FIELDS.length + 2 * np, z: BATCH_STATE.length + nx };
 }
 
-/** What the code of one copy depends on (everything else is a number in `P`). */
-export interface BatchCopyShape {
+/**
+ * What the generated code depends on besides the plant: the loop features, the same for every
+ * copy of one batch function (everything else is a number in `P`).
+ */
+export interface BatchShape {
+  /** Copies advanced together (K). */
+  width: number;
   /** Input delay line present (plant input delay > 0). */
   inputDelay: boolean;
   /** Sensor delay line present. */
   sensorDelay: boolean;
   filtered: boolean;
-  /** Index of the shared noise generator in `G`, or -1 without noise. */
-  noiseGroup: number;
+  /** Additive sensor noise; copy c uses the deviate of generator `P[ng]` of `G`. */
+  noisy: boolean;
   quantised: boolean;
   /** Finite actuator rate limit. */
   rateLimited: boolean;
@@ -110,12 +119,13 @@ export interface BatchCopyShape {
  * - `P` per-copy constants (BATCH_FIELDS, parameters, inverses), `Z` per-copy state (BATCH_STATE, x);
  * - `B` delay-line buffers, [2c] input and [2c + 1] sensor (prefilled; an unused one may be empty);
  * - `T` trace arrays, BATCH_CHANNELS + nd per copy (r and d_j prefilled per row);
- * - `G` the noise generators;
+ * - `G` the noise generators (one draw each per sample);
  * - `OUT[c]` receives the number of rows recorded before copy c diverged (0 = it did not).
  *
- * All state lives in the arrays between samples, not in locals across the whole loop: a body for K
- * copies with hundreds of loop-carried locals took the optimising compiler about a second to
- * compile at K = 8; with short live ranges it compiles in a small fraction of that.
+ * Shape of the code: the measure/control/actuate/record part is ONE loop over the copies (short
+ * code, so it compiles fast), and only the integration, where the copies' independent stage chains
+ * keep the processor busy, is written out K times. State lives in `Z` between samples: a body with
+ * hundreds of loop-carried locals took the optimising compiler about a second at K = 8.
  */
 export type BatchFunction = (
   P: Float64Array,
@@ -134,10 +144,12 @@ export type BatchFunction = (
 export function batchSource(
   plant: PlantDynamics,
   integrator: IntegratorName,
-  shapes: readonly BatchCopyShape[],
+  shape: BatchShape,
   helpers: Readonly<Record<string, (...args: number[]) => number>> = MATH_HELPERS,
 ): string {
   if (!(integrator in INTEGRATOR_STAGES)) throw new RangeError(`unknown integrator ${String(integrator)}`);
+  const K = shape.width;
+  if (!Number.isInteger(K) || K < 1) throw new RangeError('batch width must be a positive integer');
   const nx = plant.nx;
   const np = plant.params.length;
   const nd = plant.d0.length;
@@ -146,181 +158,173 @@ export function batchSource(
   const rawOutput = plant.outputSource;
   const inverses = [...prepared.inverses].sort((a, b) => a - b);
   const widths = batchWidths(nx, np);
-  const K = shapes.length;
   const nch = BATCH_CHANNELS + nd;
   const nf = BATCH_FIELDS.length;
-  const groups = new Set<number>();
-  for (const s of shapes) if (s.noiseGroup >= 0) groups.add(s.noiseGroup);
-  const P = (c: number, f: (typeof BATCH_FIELDS)[number]): string => `P[${c * widths.p + BATCH_FIELDS.indexOf(f)}]`;
-  const Zi = (c: number, f: (typeof BATCH_STATE)[number]): number => c * widths.z + BATCH_STATE.indexOf(f);
-  const Zx = (c: number, i: number): string => `Z[${c * widths.z + BATCH_STATE.length + i}]`;
-  const Tc = (c: number, j: number): string => `T[${c * nch + j}]`;
-  const q = (c: number, name: string): string => `q${c}_${name}`;
+  const ns = BATCH_STATE.length;
+  const F = (f: (typeof BATCH_FIELDS)[number]): number => BATCH_FIELDS.indexOf(f);
+  const S = (f: (typeof BATCH_STATE)[number]): number => BATCH_STATE.indexOf(f);
 
-  /** Bindings of the plant sources' names for copy c: p (and inverses), d, u, x from locals q<c>_… */
-  const binds = (c: number, u: string | null, withInverses: boolean): string => {
+  /** Bindings of the plant sources' names: x (null = bound elsewhere), p (and inverses), d, u. */
+  const binds = (
+    x: ((i: number) => string) | null,
+    p: (j: number) => string,
+    ip: ((j: number) => string) | null,
+    d: (k: number) => string,
+    u: string,
+  ): string => {
     const b: string[] = [];
-    for (let j = 0; j < np; j++) b.push(`p_${j} = ${q(c, `p${j}`)}`);
-    if (withInverses) for (const j of inverses) b.push(`$ip${j} = ${q(c, `ip${j}`)}`);
-    for (let k = 0; k < nd; k++) b.push(`d_${k} = ${q(c, `d${k}`)}`);
-    if (u !== null) b.push(`u = ${u}`);
+    if (x !== null) for (let i = 0; i < nx; i++) b.push(`x_${i} = ${x(i)}`);
+    for (let j = 0; j < np; j++) b.push(`p_${j} = ${p(j)}`);
+    if (ip !== null) for (const j of inverses) b.push(`$ip${j} = ${ip(j)}`);
+    for (let k = 0; k < nd; k++) b.push(`d_${k} = ${d(k)}`);
+    b.push(`u = ${u}`);
     return b.join(', ');
   };
-  const xsOf = (c: number): string => {
-    const b: string[] = [];
-    for (let i = 0; i < nx; i++) b.push(`x_${i} = ${q(c, `x${i}`)}`);
-    return b.join(', ');
-  };
-  /** const q<c>_p<j>, q<c>_ip<j> (used inverses), q<c>_d<k> loaded for this sample. */
-  const loadPlantNumbers = (c: number, inv: boolean): string => {
+  /** DelayLine.read(delay) on buffer expression `buf` with head `head`, into `target`. */
+  const readLine = (buf: string, head: string, delay: string, target: string): string =>
+    `{ const $b = ${buf}, $cap = $b.length, $dl = ${delay}, $m = Math.floor($dl), $f = $dl - $m;\n` +
+    `let $j = ${head} - $m; if ($j < 0) $j += $cap; const $a = $b[$j];\n` +
+    `if ($f === 0) ${target} = $a; else { let $j2 = $j - 1; if ($j2 < 0) $j2 += $cap; ${target} = (1 - $f) * $a + $f * $b[$j2]; } }`;
+  /** DelayLine.push(value) on buffer `buf` whose head is Z[zi]. */
+  const pushLine = (buf: string, zi: string, value: string): string =>
+    `{ const $b = ${buf}; let $hd = Z[${zi}] + 1; if ($hd === $b.length) $hd = 0; $b[$hd] = ${value}; Z[${zi}] = $hd; }`;
+
+  // ---- measure, control, actuate, record: one loop over the copies.
+  const a: string[] = [];
+  a.push(`for (let c = 0; c < ${K}; c++) {`, `const o = c * ${widths.p}, zo = c * ${widths.z}, to = c * ${nch};`);
+  // The setpoint weight c is read as cw: c is the copy index here.
+  a.push(`const ${BATCH_FIELDS.map((f, i) => `${f === 'c' ? 'cw' : f} = P[o + ${i}]`).join(', ')};`);
+  a.push(`let ${BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh').map((f) => `${f} = Z[zo + ${S(f)}]`).join(', ')};`);
+  a.push('const r = T[to][k];');
+  const ds = (k: number): string => `T[to + ${BATCH_CHANNELS + k}][k]`;
+  a.push(
+    `let y = 0; { const ${['t = $tk', binds((i) => `Z[zo + ${ns + i}]`, (j) => `P[o + ${nf + j}]`, null, ds, 'uPlant')].join(', ')}; y = (${rawOutput}); }`,
+  );
+  // Measure: sensor delay, filter, noise, quantisation (sensor.ts).
+  a.push('let ym = y;');
+  if (shape.sensorDelay) a.push(readLine('B[2 * c + 1]', `Z[zo + ${S('sh')}]`, 'outDelay', 'ym'));
+  if (shape.filtered) {
+    a.push(
+      'if (k === 0) { z = ym; wPrev = ym; } else { z = fa * z + (1 - fa) * wPrev + (ym - wPrev) * fslope; wPrev = ym; }',
+      'ym = z;',
+    );
+  }
+  if (shape.noisy) a.push('ym += noise * $NZ[ng];');
+  if (shape.quantised) a.push('ym = res * Math.round(ym / res);');
+  // Controller (control/pid.ts): initialise at the first sample (bumpless start), then update.
+  a.push(
+    'if (k === 0) { const $r0 = rInit === rInit ? rInit : r; I = end - kc * (b * $r0 - ym); D = 0; rPrev = $r0; yPrev = ym; e = $r0 - ym; v = end; }',
+    'const pp = kc * (b * r - ym);',
+    'const dn = ad * D + bd * (cw * r - ym - (cw * rPrev - yPrev));',
+    'D = dn;',
+    'const vv = pp + I + dn;',
+    'e = r - ym; v = vv; rPrev = r; yPrev = ym;',
+    'const uc = vv < omin ? omin : vv > omax ? omax : vv;',
+  );
+  // Actuator (actuator.ts): position limits, rate-limit ramp within the sample.
+  a.push(
+    'start = end;',
+    'const tg = uc < amin ? amin : uc > amax ? amax : uc;',
+    'let sat = uc <= amin || uc >= amax;',
+    'rampTime = 0; rampSign = 0;',
+  );
+  if (shape.rateLimited) {
+    a.push(
+      'if (tg === start) end = tg; else { const $df = tg - start; const $tr = Math.abs($df) / rate; rampSign = $df > 0 ? 1 : -1; ' +
+        'if ($tr >= ts) { rampTime = ts; end = start + rampSign * rate * ts; sat = true; } else { rampTime = $tr; end = tg; } }',
+    );
+  } else {
+    a.push('end = tg;');
+  }
+  a.push('if (uc !== uc) end = uc;');
+  // Anti-windup with what the actuator delivered (the controller's track step).
+  a.push('const inc = bi * e;');
+  if (shape.antiWindup === 'none') a.push('I += inc;');
+  else if (shape.antiWindup === 'clamp') a.push('if (!((v > end && inc > 0) || (v < end && inc < 0))) I += inc;');
+  else if (shape.antiWindup === 'back_calculation') a.push('I += inc + ar * (end - v);');
+  else throw new RangeError(`unknown anti-windup ${String(shape.antiWindup)}`);
+  a.push('T[to + 1][k] = y; T[to + 2][k] = ym; T[to + 3][k] = uc; T[to + 4][k] = end; T[to + 5][k] = sat ? 1 : 0;');
+  a.push(
+    BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'uPlant' && f !== 'prev')
+      .map((f) => `Z[zo + ${S(f)}] = ${f};`)
+      .join(' '),
+    `Z[zo + ${S('prev')}] = 0;`,
+    '}',
+  );
+  const phaseA = a.join('\n');
+
+  // ---- integration over [t_k, t_k+1]: n steps; the plant input of each copy and step is worked
+  // out in a loop over the copies, the stages are written out per copy and interleaved.
+  const q = (c: number, name: string): string => `q${c}_${name}`;
+  const pre: string[] = [];
+  for (let c = 0; c < K; c++) {
     const b: string[] = [];
     for (let j = 0; j < np; j++) b.push(`${q(c, `p${j}`)} = P[${c * widths.p + nf + j}]`);
-    if (inv) for (const j of inverses) b.push(`${q(c, `ip${j}`)} = P[${c * widths.p + nf + np + j}]`);
-    for (let k = 0; k < nd; k++) b.push(`${q(c, `d${k}`)} = ${Tc(c, BATCH_CHANNELS + k)}[k]`);
-    return b.length > 0 ? `const ${b.join(', ')};` : '';
-  };
-  const join = (...parts: string[]): string => parts.filter((p) => p !== '').join(', ');
-  /** DelayLine.read(delay) of copy c's line (0 input, 1 sensor) with head `head`, into `target`. */
-  const readLine = (c: number, line: 0 | 1, head: string, target: string): string => {
-    const delay = P(c, line === 0 ? 'inDelay' : 'outDelay');
-    return (
-      `{ const $b = B[${2 * c + line}], $cap = $b.length, $dl = ${delay}, $m = Math.floor($dl), $f = $dl - $m;\n` +
-      `let $j = ${head} - $m; if ($j < 0) $j += $cap; const $a = $b[$j];\n` +
-      `if ($f === 0) ${target} = $a; else { let $j2 = $j - 1; if ($j2 < 0) $j2 += $cap; ${target} = (1 - $f) * $a + $f * $b[$j2]; } }`
-    );
-  };
-  /** DelayLine.push(value) on copy c's line; the head lives in Z. */
-  const pushLine = (c: number, line: 0 | 1, value: string): string => {
-    const zi = Zi(c, line === 0 ? 'ih' : 'sh');
-    return `{ const $b = B[${2 * c + line}]; let $hd = Z[${zi}] + 1; if ($hd === $b.length) $hd = 0; $b[$hd] = ${value}; Z[${zi}] = $hd; }`;
-  };
-
-  const body: string[] = [];
-  for (const g of groups) body.push(`const $n${g} = G[${g}].nextGaussian();`);
-  const st = BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh');
-  for (let c = 0; c < K; c++) {
-    const sh = shapes[c];
-    const o = c * widths.p;
-    const lines: string[] = ['{'];
-    lines.push(`const ${BATCH_FIELDS.map((f, i) => `${f} = P[${o + i}]`).join(', ')};`);
-    lines.push(`let ${st.map((f) => `${f} = Z[${Zi(c, f)}]`).join(', ')};`);
+    for (const j of inverses) b.push(`${q(c, `ip${j}`)} = P[${c * widths.p + nf + np + j}]`);
+    for (let k = 0; k < nd; k++) b.push(`${q(c, `d${k}`)} = T[${c * nch + BATCH_CHANNELS + k}][k]`);
+    if (b.length > 0) pre.push(`const ${b.join(', ')};`);
     const xs: string[] = [];
-    for (let i = 0; i < nx; i++) xs.push(`${q(c, `x${i}`)} = ${Zx(c, i)}`);
-    if (xs.length > 0) lines.push(`const ${xs.join(', ')};`);
-    lines.push(loadPlantNumbers(c, false));
-    lines.push(`const r = ${Tc(c, 0)}[k];`);
-    // Measure: y(t_k) (raw output source, as generateOutput), sensor delay, filter, noise, quantisation.
-    lines.push(`let y = 0; { const ${join('t = $tk', xsOf(c), binds(c, 'uPlant', false))}; y = (${rawOutput}); }`);
-    lines.push('let ym = y;');
-    if (sh.sensorDelay) lines.push(readLine(c, 1, `Z[${Zi(c, 'sh')}]`, 'ym'));
-    if (sh.filtered) {
-      lines.push(
-        'if (k === 0) { z = ym; wPrev = ym; } else { z = fa * z + (1 - fa) * wPrev + (ym - wPrev) * fslope; wPrev = ym; }',
-        'ym = z;',
-      );
-    }
-    if (sh.noiseGroup >= 0) lines.push(`ym += noise * $n${sh.noiseGroup};`);
-    if (sh.quantised) lines.push('ym = res * Math.round(ym / res);');
-    // Controller: initialise at the first sample (bumpless start), then the PID update.
-    lines.push(
-      'if (k === 0) { const $r0 = rInit === rInit ? rInit : r; I = end - kc * (b * $r0 - ym); D = 0; rPrev = $r0; yPrev = ym; e = $r0 - ym; v = end; }',
-      'const pp = kc * (b * r - ym);',
-      'const dn = ad * D + bd * (c * r - ym - (c * rPrev - yPrev));',
-      'D = dn;',
-      'const vv = pp + I + dn;',
-      'e = r - ym; v = vv; rPrev = r; yPrev = ym;',
-      'const uc = vv < omin ? omin : vv > omax ? omax : vv;',
-    );
-    // Actuator: position limits, rate-limit ramp within the sample.
-    lines.push(
-      'start = end;',
-      'const tg = uc < amin ? amin : uc > amax ? amax : uc;',
-      'let sat = uc <= amin || uc >= amax;',
-      'rampTime = 0; rampSign = 0;',
-    );
-    if (sh.rateLimited) {
-      lines.push(
-        'if (tg === start) end = tg; else { const $df = tg - start; const $tr = Math.abs($df) / rate; rampSign = $df > 0 ? 1 : -1; ' +
-          'if ($tr >= ts) { rampTime = ts; end = start + rampSign * rate * ts; sat = true; } else { rampTime = $tr; end = tg; } }',
-      );
-    } else {
-      lines.push('end = tg;');
-    }
-    lines.push('if (uc !== uc) end = uc;');
-    // Anti-windup with what the actuator delivered (the controller's track step).
-    lines.push('const inc = bi * e;');
-    if (sh.antiWindup === 'none') lines.push('I += inc;');
-    else if (sh.antiWindup === 'clamp') lines.push('if (!((v > end && inc > 0) || (v < end && inc < 0))) I += inc;');
-    else if (sh.antiWindup === 'back_calculation') lines.push('I += inc + ar * (end - v);');
-    else throw new RangeError(`unknown anti-windup ${String(sh.antiWindup)}`);
-    // Trace row k.
-    lines.push(`${Tc(c, 1)}[k] = y; ${Tc(c, 2)}[k] = ym; ${Tc(c, 3)}[k] = uc; ${Tc(c, 4)}[k] = end; ${Tc(c, 5)}[k] = sat ? 1 : 0;`);
-    lines.push(st.filter((f) => f !== 'uPlant').map((f) => `Z[${Zi(c, f)}] = ${f};`).join(' '));
-    lines.push('}');
-    body.push(lines.join('\n'));
+    for (let i = 0; i < nx; i++) xs.push(`${q(c, `x${i}`)} = Z[${c * widths.z + ns + i}]`);
+    if (xs.length > 0) pre.push(`let ${xs.join(', ')};`);
   }
-  body.push('if (k === kLast) break;');
+  const input: string[] = [`for (let c = 0; c < ${K}; c++) {`, `const o = c * ${widths.p}, zo = c * ${widths.z};`];
+  input.push(`let u = Z[zo + ${S('end')}];`);
+  if (shape.rateLimited) {
+    // Actuator.fillSteps: the mean of the ramp-then-hold path over step $i.
+    input.push(
+      `const $tr = Z[zo + ${S('rampTime')}];`,
+      `if ($tr !== 0) { const $st = Z[zo + ${S('start')}], $sg = Z[zo + ${S('rampSign')}], $rl = P[o + ${F('rate')}], $en = u; ` +
+        'const $s = ($i + 1) * h; const $nx = $s <= $tr ? $st * $s + 0.5 * $sg * $rl * $s * $s ' +
+        ': $st * $tr + 0.5 * $sg * $rl * $tr * $tr + $en * ($s - $tr); ' +
+        `u = ($nx - Z[zo + ${S('prev')}]) / h; Z[zo + ${S('prev')}] = $nx; }`,
+    );
+  }
+  if (shape.inputDelay) {
+    input.push(pushLine('B[2 * c]', `zo + ${S('ih')}`, 'u'));
+    input.push(readLine('B[2 * c]', `Z[zo + ${S('ih')}]`, `P[o + ${F('inDelay')}]`, 'u'));
+  }
+  input.push('$U[c] = u;', '}');
 
-  // Integration over [t_k, t_k+1]: n steps, the K copies' stages interleaved.
-  const integ: string[] = [];
+  const sub: string[] = ['const $t = $tk + $i * h;', ...input];
+  const perCopy: { stages: string[]; update: string }[] = [];
   for (let c = 0; c < K; c++) {
-    const xs: string[] = [];
-    for (let i = 0; i < nx; i++) xs.push(`${q(c, `x${i}`)} = ${Zx(c, i)}`);
-    if (xs.length > 0) integ.push(`let ${xs.join(', ')};`);
-    integ.push(loadPlantNumbers(c, true));
-    integ.push(
-      `const ${q(c, 'end')} = Z[${Zi(c, 'end')}], ${q(c, 'rampTime')} = Z[${Zi(c, 'rampTime')}];`,
-      `let ${q(c, 'u')} = 0, ${q(c, 'prev')} = 0;`,
+    sub.push(`const ${q(c, 'u')} = $U[${c}];`);
+    perCopy.push(
+      integratorStages(integrator, nx, prepared.deriv, {
+        x: (i) => q(c, `x${i}`),
+        k: (s, i) => q(c, `k${s}_${i}`),
+        extra: binds(null, (j) => q(c, `p${j}`), (j) => q(c, `ip${j}`), (k) => q(c, `d${k}`), q(c, 'u')),
+      }),
     );
   }
-  const sub: string[] = ['const $t = $tk + $i * h;'];
-  for (let c = 0; c < K; c++) {
-    const sh = shapes[c];
-    const v = (name: string): string => q(c, name);
-    sub.push(`${v('u')} = ${v('end')};`);
-    if (sh.rateLimited) {
-      // Actuator.fillSteps: the mean of the ramp-then-hold path over step $i.
-      sub.push(
-        `if (${v('rampTime')} !== 0) { const $tr = ${v('rampTime')}, $st = Z[${Zi(c, 'start')}], $sg = Z[${Zi(c, 'rampSign')}], $rl = ${P(c, 'rate')}; ` +
-          `const $s = ($i + 1) * h; const $nx = $s <= $tr ? $st * $s + 0.5 * $sg * $rl * $s * $s ` +
-          `: $st * $tr + 0.5 * $sg * $rl * $tr * $tr + ${v('end')} * ($s - $tr); ` +
-          `${v('u')} = ($nx - ${v('prev')}) / h; ${v('prev')} = $nx; }`,
-      );
-    }
-    if (sh.inputDelay) {
-      sub.push(pushLine(c, 0, v('u')));
-      sub.push(readLine(c, 0, `Z[${Zi(c, 'ih')}]`, v('u')));
-    }
-  }
-  const perCopy = shapes.map((_s, c) =>
-    integratorStages(integrator, nx, prepared.deriv, {
-      x: (i) => q(c, `x${i}`),
-      k: (s, i) => q(c, `k${s}_${i}`),
-      extra: binds(c, q(c, 'u'), true),
-    }),
-  );
   const stageCount = INTEGRATOR_STAGES[integrator];
   for (let c = 0; c < K; c++) {
     const ks: string[] = [];
-    for (let s = 1; s <= stageCount; s++) for (let i = 0; i < nx; i++) ks.push(`${q(c, `k${s}_${i}`)} = 0`);
+    for (let s2 = 1; s2 <= stageCount; s2++) for (let i = 0; i < nx; i++) ks.push(`${q(c, `k${s2}_${i}`)} = 0`);
     if (ks.length > 0) sub.push(`let ${ks.join(', ')};`);
   }
-  for (let s = 0; s < stageCount; s++) for (let c = 0; c < K; c++) sub.push(perCopy[c].stages[s]);
+  for (let st = 0; st < stageCount; st++) for (let c = 0; c < K; c++) sub.push(perCopy[c].stages[st]);
   for (let c = 0; c < K; c++) sub.push(perCopy[c].update);
-  for (let c = 0; c < K; c++) {
-    if (!shapes[c].sensorDelay) continue;
-    sub.push(
-      `{ let $yo = 0; { const ${join('t = $t + h', xsOf(c), binds(c, q(c, 'u'), true))}; $yo = (${prepared.output}); } ${pushLine(c, 1, '$yo')} }`,
-    );
+  if (shape.sensorDelay) {
+    for (let c = 0; c < K; c++) {
+      const bind = binds(
+        (i) => q(c, `x${i}`),
+        (j) => q(c, `p${j}`),
+        (j) => q(c, `ip${j}`),
+        (k) => q(c, `d${k}`),
+        q(c, 'u'),
+      );
+      sub.push(`{ let $yo = 0; { const t = $t + h, ${bind}; $yo = (${prepared.output}); } ${pushLine(`B[${2 * c + 1}]`, `${c * widths.z + S('sh')}`, '$yo')} }`);
+    }
   }
   const after: string[] = [];
   for (let c = 0; c < K; c++) {
     const fin: string[] = [];
     for (let i = 0; i < nx; i++) {
-      after.push(`${Zx(c, i)} = ${q(c, `x${i}`)};`);
+      after.push(`Z[${c * widths.z + ns + i}] = ${q(c, `x${i}`)};`);
       fin.push(`Number.isFinite(${q(c, `x${i}`)})`);
     }
-    after.push(`Z[${Zi(c, 'uPlant')}] = ${q(c, 'u')};`);
+    after.push(`Z[${c * widths.z + S('uPlant')}] = $U[${c}];`);
     if (nx > 0) after.push(`if (OUT[${c}] === 0 && !(${fin.join(' && ')})) { OUT[${c}] = k + 1; $alive--; }`);
   }
   after.push('if ($alive === 0) break;');
@@ -328,12 +332,15 @@ export function batchSource(
   return `"use strict";
 return function batch(P, Z, B, T, G, OUT, kLast, ts, h, n) {
 const $h2 = 0.5 * h, $h6 = h / 6;
+const $U = new Float64Array(${K}), $NZ = new Float64Array(G.length);
 let $alive = ${K};
 for (let k = 0; k <= kLast; k++) {
 const $tk = k * ts;
-${body.join('\n')}
+for (let g = 0; g < G.length; g++) $NZ[g] = G[g].nextGaussian();
+${phaseA}
+if (k === kLast) break;
 {
-${integ.join('\n')}
+${pre.join('\n')}
 for (let $i = 0; $i < n; $i++) {
 ${sub.join('\n')}
 }
@@ -348,15 +355,15 @@ const cache = new Map<string, BatchFunction>();
 const helperIds = new WeakMap<object, number>();
 let nextHelperId = 1;
 
-function shapeKey(s: BatchCopyShape): string {
-  return [s.inputDelay ? 'I' : 'i', s.sensorDelay ? 'S' : 's', s.filtered ? 'F' : 'f', s.noiseGroup, s.quantised ? 'Q' : 'q', s.rateLimited ? 'R' : 'r', s.antiWindup].join('');
+function shapeKey(s: BatchShape): string {
+  return [s.width, s.inputDelay ? 'I' : 'i', s.sensorDelay ? 'S' : 's', s.filtered ? 'F' : 'f', s.noisy ? 'N' : 'n', s.quantised ? 'Q' : 'q', s.rateLimited ? 'R' : 'r', s.antiWindup].join('');
 }
 
-/** The compiled batch function for this plant structure and these copy shapes (cached by source text). */
+/** The compiled batch function for this plant structure and loop shape (cached by source text). */
 export function generateBatch(
   plant: PlantDynamics,
   integrator: IntegratorName,
-  shapes: readonly BatchCopyShape[],
+  shape: BatchShape,
   helpers: Readonly<Record<string, (...args: number[]) => number>> = MATH_HELPERS,
 ): BatchFunction {
   let hid = helperIds.get(helpers);
@@ -370,13 +377,13 @@ export function generateBatch(
     plant.nx,
     plant.params.length,
     plant.d0.length,
-    shapes.map(shapeKey).join('/'),
+    shapeKey(shape),
     plant.outputSource,
     ...plant.derivSource,
   ].join('\u0000');
   const hit = cache.get(key);
   if (hit !== undefined) return hit;
-  const src = batchSource(plant, integrator, shapes, helpers);
+  const src = batchSource(plant, integrator, shape, helpers);
   // eslint-disable-next-line @typescript-eslint/no-implied-eval -- generated from checked trees
   const fn = new Function('F', src)(helpers) as BatchFunction;
   if (cache.size >= CACHE_LIMIT) {

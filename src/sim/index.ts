@@ -37,4 +37,4 @@ export { withParams } from './with-params.js';
 export { runTrialBatch, DEFAULT_BATCH_WIDTH } from './batch-runner.js';
 export type { BatchMember, BatchOptions, BatchResult } from './batch-runner.js';
 export { generateBatch, batchSource, batchWidths, BATCH_FIELDS, BATCH_STATE, BATCH_CHANNELS } from './batch-stepper.js';
-export type { BatchFunction, BatchCopyShape } from './batch-stepper.js';
+export type { BatchFunction, BatchShape } from './batch-stepper.js';

@@ -187,7 +187,7 @@ describe('runTrialBatch equals runTrial bit for bit', () => {
       const spec = loadPlant(readFileSync(join(dir, f), 'utf8'), f).plant;
       if (spec === undefined) continue;
       const ctx = tuningContext(spec);
-      const plan = planSweep(spec, { samples: 3 }, ctx);
+      const plan = planSweep(spec, { samples: 2 }, ctx);
       const { extension: _e, named: _n, ...plain } = spec.loop.controller;
       const make = (): DiscreteController => buildController(plain, spec.loop.sampleTime);
       const members = plan.cases.map((c) => ({ plant: c.ctx.dynamics, controller: make(), loop: c.ctx.loop }));
@@ -238,16 +238,25 @@ describe('runTrialBatch outside the generated subset', () => {
     expect(pid({}, 0.5).pidLaw()).not.toBeNull();
   });
 
-  it('the generated source calls nothing per sample but the shared noise draw, Math and Number.isFinite', () => {
-    const src = batchSource(H.tank(), 'rk4', [
-      { inputDelay: true, sensorDelay: true, filtered: true, noiseGroup: 0, quantised: true, rateLimited: true, antiWindup: 'clamp' },
-      { inputDelay: false, sensorDelay: false, filtered: false, noiseGroup: 0, quantised: false, rateLimited: false, antiWindup: 'none' },
-    ]);
+  it('the generated source calls nothing per sample but the noise draws, Math and Number.isFinite', () => {
+    const src = batchSource(H.tank(), 'rk4', {
+      width: 2,
+      inputDelay: true,
+      sensorDelay: true,
+      filtered: true,
+      noisy: true,
+      quantised: true,
+      rateLimited: true,
+      antiWindup: 'clamp',
+    });
     const called = new Set([...src.matchAll(/([A-Za-z_$][\w$]*(?:\.[A-Za-z_$][\w$]*)*)\s*\(/g)].map((m) => m[1]));
     for (const kw of ['function', 'batch', 'if', 'for']) called.delete(kw);
+    // Two work arrays made once per call, before the sample loop.
+    expect(src.indexOf('new Float64Array')).toBeLessThan(src.indexOf('for (let k = 0'));
+    called.delete('Float64Array');
     const other = [...called].filter((n) => !n.startsWith('Math.') && n !== 'Number.isFinite');
     expect(other).toEqual(['nextGaussian']);
-    // One draw per sample for both copies (same generator).
+    // One draw per generator and sample, however many copies use it.
     expect(src.match(/nextGaussian/g)).toHaveLength(1);
   });
 });

@@ -1,0 +1,160 @@
+/**
+ * Sweep benchmark: simulations per second of the robustness sweep's cases on the surge tank
+ * (plants/surge-tank.yaml: corners + 48 samples = 51 cases, 3601 samples each), one runTrial at a
+ * time against sim's batch runner, and the whole robustnessSweep (simulations + metrics + margins)
+ * with runner 'sequential' against 'batched'. The baseline, measured in the same run, is a
+ * hand-written closed loop of the same plant (RK4, PI with clamping, valve limits and rate limit,
+ * first-order sensor filter; no noise, no trace), as in tune.bench.ts.
+ *
+ * Timing: rounds interleaved so that drift and other load hit every contender alike; the figure
+ * is the best round (least disturbed), the median is shown beside it.
+ *
+ * Run: `npx tsx test/bench/sweep.bench.ts` or `npm run bench -- sweep`.
+ */
+import { readFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { buildController } from '../../src/control/index.js';
+import { loadPlant } from '../../src/model/index.js';
+import type { PlantSpec } from '../../src/model/types.js';
+import { runTrial, runTrialBatch } from '../../src/sim/index.js';
+import { planSweep, robustnessSweep, tuningContext } from '../../src/tune/index.js';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+
+function load(path: string): PlantSpec {
+  const r = loadPlant(readFileSync(path, 'utf8'), path);
+  if (!r.plant) throw new Error(`${path} does not load`);
+  return r.plant;
+}
+
+/** Hand-written surge-tank loop with the file's numbers (one simulation). */
+function handTank(spec: PlantSpec): () => number {
+  const m = spec.model;
+  if (m.type !== 'ode') throw new Error('surge tank expected');
+  const area = m.params.area;
+  const qmax = m.params.max_inflow;
+  const c = m.params.drain_coeff;
+  const ts = spec.loop.sampleTime;
+  const g = spec.loop.controller.gains;
+  const tf = spec.sensor.filterTime;
+  const rate = spec.actuator.rateLimit;
+  const rows = Math.ceil(spec.loop.trial.duration / ts) + 1;
+  const y = new Float64Array(rows);
+  const f = (lv: number, u: number, q: number): number => (qmax * u + q - c * Math.sqrt(Math.max(lv, 0))) / area;
+  return () => {
+    let h = 1;
+    let u = 0.5;
+    let ym = 1;
+    let integ = 0.5;
+    const af = Math.exp(-ts / tf);
+    for (let k = 0; k < rows; k++) {
+      const t = k * ts;
+      const r = t >= 60 && t < 2520 ? 1.3 : 1;
+      const q = t >= 1500 ? 0.0015 : 0;
+      ym = af * ym + (1 - af) * h;
+      const e = r - ym;
+      let uc = g.kc * e + integ;
+      uc = Math.min(Math.max(uc, 0), 1);
+      const du = Math.min(Math.max(uc - u, -rate * ts), rate * ts);
+      u += du;
+      if (u > 0 && u < 1) integ += (g.kc * ts * e) / g.ti;
+      y[k] = h;
+      const k1 = f(h, u, q);
+      const k2 = f(h + 0.5 * ts * k1, u, q);
+      const k3 = f(h + 0.5 * ts * k2, u, q);
+      const k4 = f(h + ts * k3, u, q);
+      h += (ts / 6) * (k1 + 2 * (k2 + k3) + k4);
+    }
+    return y[rows - 1];
+  };
+}
+
+interface Contender {
+  name: string;
+  /** Simulations done by one call. */
+  sims: number;
+  run: () => void;
+}
+
+/** Best and median simulations per second of each contender over interleaved rounds. */
+function measure(cs: Contender[], rounds: number, minMs: number): Map<string, { best: number; median: number }> {
+  for (const c of cs) for (let i = 0; i < 3; i++) c.run(); // warm-up: JIT, generated code
+  const rates = new Map<string, number[]>(cs.map((c) => [c.name, []]));
+  for (let r = 0; r < rounds; r++) {
+    for (const c of cs) {
+      let n = 0;
+      const t0 = performance.now();
+      let t = t0;
+      while (t - t0 < minMs) {
+        c.run();
+        n++;
+        t = performance.now();
+      }
+      (rates.get(c.name) as number[]).push((n * c.sims * 1000) / (t - t0));
+    }
+  }
+  const out = new Map<string, { best: number; median: number }>();
+  for (const [name, xs] of rates) {
+    const s = [...xs].sort((a, b) => a - b);
+    out.set(name, { best: s[s.length - 1], median: s[s.length >> 1] });
+  }
+  return out;
+}
+
+export async function run(): Promise<void> {
+  const tank = load(join(root, 'plants', 'surge-tank.yaml'));
+  const ctx = tuningContext(tank);
+  const options = { samples: 48 };
+  const plan = planSweep(tank, options, ctx);
+  const n = plan.cases.length;
+  const gains = tank.loop.controller.gains;
+  const { extension: _e, named: _n, ...plain } = tank.loop.controller;
+  const controller = () => buildController(plain, tank.loop.sampleTime);
+  const hand = handTank(tank);
+  let sink = 0;
+
+  const first = performance.now();
+  robustnessSweep(tank, gains, { ...options, runner: 'batched' }, ctx, plan);
+  const coldBatched = performance.now() - first;
+
+  const rates = measure(
+    [
+      { name: 'hand', sims: 1, run: () => (sink += hand()) },
+      {
+        name: 'runTrial',
+        sims: n,
+        run: () => {
+          for (const c of plan.cases) sink += runTrial(c.ctx.dynamics, controller(), c.ctx.loop, c.ctx.trial).steps;
+        },
+      },
+      {
+        name: 'batch',
+        sims: n,
+        run: () => {
+          const members = plan.cases.map((c) => ({ plant: c.ctx.dynamics, controller: controller(), loop: c.ctx.loop }));
+          sink += runTrialBatch(members, ctx.trial).results.length;
+        },
+      },
+      { name: 'sweepSeq', sims: n, run: () => (sink += robustnessSweep(tank, gains, { ...options, runner: 'sequential' }, ctx, plan).cases.length) },
+      { name: 'sweepBatch', sims: n, run: () => (sink += robustnessSweep(tank, gains, { ...options, runner: 'batched' }, ctx, plan).cases.length) },
+    ],
+    7,
+    250,
+  );
+  if (!Number.isFinite(sink)) throw new Error('benchmark result not finite');
+  const r = (k: string): { best: number; median: number } => rates.get(k) as { best: number; median: number };
+  const fmt = (k: string): string => `${r(k).best.toFixed(0).padStart(6)} sims/s (median ${r(k).median.toFixed(0)})`;
+  const hb = r('hand').best;
+  console.log(`robustness sweep cases on the surge tank: ${n} simulations of ${tank.loop.trial.duration / tank.loop.sampleTime + 1} samples`);
+  console.log(`  hand-written loop (no noise, no trace)      ${fmt('hand')}`);
+  console.log(`  simulations, runTrial one at a time          ${fmt('runTrial')}   hand/this ${(hb / r('runTrial').best).toFixed(2)}x`);
+  console.log(`  simulations, runTrialBatch (batched)         ${fmt('batch')}   hand/this ${(hb / r('batch').best).toFixed(2)}x`);
+  console.log(`    batched / sequential simulations: ${(r('batch').best / r('runTrial').best).toFixed(2)}x (median ${(r('batch').median / r('runTrial').median).toFixed(2)}x)`);
+  console.log(`  whole sweep (+ metrics + margins), sequential ${fmt('sweepSeq')}`);
+  console.log(`  whole sweep (+ metrics + margins), batched    ${fmt('sweepBatch')}`);
+  console.log(`    batched / sequential sweep: ${(r('sweepBatch').best / r('sweepSeq').best).toFixed(2)}x (median ${(r('sweepBatch').median / r('sweepSeq').median).toFixed(2)}x)`);
+  console.log(`  first batched sweep in this process (generated code compiled): ${coldBatched.toFixed(0)} ms`);
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();
