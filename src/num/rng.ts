@@ -7,10 +7,12 @@
  * (`Math.imul`, shifts, `>>> 0`) and IEEE double arithmetic are used. No allocation per draw.
  */
 export class Rng {
-  private s0 = 0;
-  private s1 = 0;
-  private s2 = 0;
-  private s3 = 0;
+  /**
+   * The four 32-bit state words. An Int32Array, not four number fields: the words use all 32 bits,
+   * beyond the small-integer range of a field, so fields would hold boxed doubles and every draw
+   * would convert back and forth; the typed array keeps them as machine integers.
+   */
+  private readonly s = new Int32Array(4);
   /** Second deviate of the last polar-method pair (the method yields two at a time). */
   private spare = 0;
   private hasSpare = false;
@@ -33,28 +35,33 @@ export class Rng {
       r = Math.imul(r ^ (r >>> 13), 0xc2b2ae35);
       return (r ^ (r >>> 16)) >>> 0;
     };
-    this.s0 = next();
-    this.s1 = next();
-    this.s2 = next();
-    this.s3 = next();
-    if ((this.s0 | this.s1 | this.s2 | this.s3) === 0) this.s0 = 1;
+    const s = this.s;
+    s[0] = next();
+    s[1] = next();
+    s[2] = next();
+    s[3] = next();
+    if ((s[0] | s[1] | s[2] | s[3]) === 0) s[0] = 1;
     this.hasSpare = false;
     this.spare = 0;
   }
 
   /** Next unsigned 32-bit integer. */
   nextUint32(): number {
-    const s1 = this.s1;
+    const s = this.s;
+    const s0 = s[0];
+    const s1 = s[1];
+    let s2 = s[2];
+    let s3 = s[3];
     const m = Math.imul(s1, 5);
     const rot = (m << 7) | (m >>> 25);
     const result = Math.imul(rot, 9) >>> 0;
     const t = s1 << 9;
-    this.s2 ^= this.s0;
-    this.s3 ^= this.s1;
-    this.s1 ^= this.s2;
-    this.s0 ^= this.s3;
-    this.s2 ^= t;
-    this.s3 = (this.s3 << 11) | (this.s3 >>> 21);
+    s2 ^= s0;
+    s3 ^= s1;
+    s[1] = s1 ^ s2;
+    s[0] = s0 ^ s3;
+    s[2] = s2 ^ t;
+    s[3] = (s3 << 11) | (s3 >>> 21);
     return result;
   }
 

@@ -32,9 +32,10 @@ export interface BatchMember {
 /** Options of `runTrialBatch`. */
 export interface BatchOptions extends TrialOptions {
   /**
-   * Most loops generated into one function (default 8). Wider batches interleave more work but
-   * hold more live values than the processor has registers; 8 measured best on the surge tank
-   * (test/bench/sweep.bench.ts).
+   * Most loops generated into one function (default 4). Measured on the bundled plants
+   * (test/bench/sweep.bench.ts) the gain comes mostly from running the whole loop inline, one
+   * generated function with no call per sample, and little from more copies side by side; wider
+   * functions only take longer to compile.
    */
   width?: number;
 }
@@ -50,7 +51,7 @@ export interface BatchResult {
 }
 
 /** Default `width`. */
-export const DEFAULT_BATCH_WIDTH = 8;
+export const DEFAULT_BATCH_WIDTH = 4;
 
 const TIME_EPS = 1e-9;
 
@@ -185,6 +186,24 @@ class RowCache {
   }
 }
 
+/**
+ * The sensor noise deviates of a seed, one per row: `Sensor.measure` draws exactly one Gaussian
+ * deviate per sample from `new Rng(seed)`, so the sequence depends on the seed alone.
+ */
+class NoiseCache {
+  private readonly map = new Map<number, Float64Array>();
+  get(seed: number, rows: number): Float64Array {
+    let g = this.map.get(seed);
+    if (g === undefined || g.length < rows) {
+      const rng = new Rng(seed);
+      g = new Float64Array(rows);
+      for (let k = 0; k < rows; k++) g[k] = rng.nextGaussian();
+      this.map.set(seed, g);
+    }
+    return g.length === rows ? g : g.subarray(0, rows);
+  }
+}
+
 function prepare(
   index: number,
   m: BatchMember,
@@ -304,22 +323,18 @@ function prepare(
 function runChunk(
   chunk: Prepared[],
   sched: Schedule,
+  noise: NoiseCache,
   helpers: Readonly<Record<string, (...args: number[]) => number>>,
   out: TrialResult[],
 ): void {
   const first = chunk[0];
   const plant = first.member.plant;
-  const seeds: number[] = [];
   const ngAt = BATCH_FIELDS.indexOf('ng');
-  for (const p of chunk) {
-    if (p.seed === null) continue;
-    let g = seeds.indexOf(p.seed);
-    if (g < 0) {
-      g = seeds.length;
-      seeds.push(p.seed);
-    }
-    p.numbers[ngAt] = g;
-  }
+  const seeds: number[] = [];
+  for (const p of chunk) if (p.seed !== null && !seeds.includes(p.seed)) seeds.push(p.seed);
+  const G = new Float64Array(seeds.length * sched.rows);
+  seeds.forEach((seed, g) => G.set(noise.get(seed, sched.rows), g * sched.rows));
+  for (const p of chunk) if (p.seed !== null) p.numbers[ngAt] = seeds.indexOf(p.seed) * sched.rows;
   const fn = generateBatch(plant, first.member.loop.integrator, { ...first.shape, width: chunk.length }, helpers);
   const wp = first.numbers.length;
   const wz = first.state.length;
@@ -335,7 +350,6 @@ function runChunk(
     T.push(tr.r, tr.y, tr.ym, tr.uc, tr.u, tr.sat, ...tr.d);
     if (T.length !== (c + 1) * (BATCH_CHANNELS + tr.d.length)) throw new TypeError('trace channel layout');
   });
-  const G = seeds.map((s) => new Rng(s));
   const OUT = new Float64Array(chunk.length);
   const ts = first.member.loop.sampleTime;
   fn(P, Z, B, T, G, OUT, sched.lastRow, ts, first.step, first.substeps);
@@ -376,6 +390,7 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
   const groups = new Map<string, Prepared[]>();
   const single: number[] = [];
   const rowCache = new RowCache();
+  const noise = new NoiseCache();
   members.forEach((m, i) => {
     const ts = m.loop.sampleTime;
     let sched = scheds.get(ts);
@@ -404,7 +419,7 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
     // Equal chunks rather than full ones plus a remainder: fewer distinct generated widths.
     const chunks = Math.ceil(list.length / width);
     const size = Math.ceil(list.length / chunks);
-    for (let i = 0; i < list.length; i += size) runChunk(list.slice(i, i + size), sched, helpers, results);
+    for (let i = 0; i < list.length; i += size) runChunk(list.slice(i, i + size), sched, noise, helpers, results);
     for (const p of list) batched[p.index] = true;
   }
   for (const i of single) {

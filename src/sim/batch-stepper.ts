@@ -28,7 +28,6 @@
  * before `new Function` sees them (as for the one-loop stepper).
  */
 import { MATH_HELPERS, type AntiWindup, type IntegratorName } from '../model/index.js';
-import type { Rng } from '../num/index.js';
 import { checkSource, integratorStages, INTEGRATOR_STAGES, prepareSources } from './generate-stepper.js';
 import type { PlantDynamics } from './types.js';
 
@@ -56,7 +55,7 @@ export const BATCH_FIELDS = [
   'res',
   'inDelay',
   'outDelay',
-  /** Index in `G` of the copy's noise generator. */
+  /** Offset in `G` of the copy's noise deviates (row k at ng + k). */
   'ng',
 ] as const;
 
@@ -105,7 +104,7 @@ export interface BatchShape {
   /** Sensor delay line present. */
   sensorDelay: boolean;
   filtered: boolean;
-  /** Additive sensor noise; copy c uses the deviate of generator `P[ng]` of `G`. */
+  /** Additive sensor noise; copy c adds noise · G[ng + k] at row k. */
   noisy: boolean;
   quantised: boolean;
   /** Finite actuator rate limit. */
@@ -119,7 +118,8 @@ export interface BatchShape {
  * - `P` per-copy constants (BATCH_FIELDS, parameters, inverses), `Z` per-copy state (BATCH_STATE, x);
  * - `B` delay-line buffers, [2c] input and [2c + 1] sensor (prefilled; an unused one may be empty);
  * - `T` trace arrays, BATCH_CHANNELS + nd per copy (r and d_j prefilled per row);
- * - `G` the noise generators (one draw each per sample);
+ * - `G` the noise deviates: a copy's seed gives one standard normal deviate per row (Sensor draws
+ *   exactly one per sample), so copies with the same seed share one sequence, drawn beforehand;
  * - `OUT[c]` receives the number of rows recorded before copy c diverged (0 = it did not).
  *
  * Shape of the code: the measure/control/actuate/record part is ONE loop over the copies (short
@@ -132,7 +132,7 @@ export type BatchFunction = (
   Z: Float64Array,
   B: Float64Array[],
   T: (Float64Array | Uint8Array)[],
-  G: Rng[],
+  G: Float64Array,
   OUT: Float64Array,
   kLast: number,
   ts: number,
@@ -192,9 +192,7 @@ export function batchSource(
   // ---- measure, control, actuate, record: one loop over the copies.
   const a: string[] = [];
   a.push(`for (let c = 0; c < ${K}; c++) {`, `const o = c * ${widths.p}, zo = c * ${widths.z}, to = c * ${nch};`);
-  // The setpoint weight c is read as cw: c is the copy index here.
-  a.push(`const ${BATCH_FIELDS.map((f, i) => `${f === 'c' ? 'cw' : f} = P[o + ${i}]`).join(', ')};`);
-  a.push(`let ${BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh').map((f) => `${f} = Z[zo + ${S(f)}]`).join(', ')};`);
+  const declAt = a.length;
   a.push('const r = T[to][k];');
   const ds = (k: number): string => `T[to + ${BATCH_CHANNELS + k}][k]`;
   a.push(
@@ -209,7 +207,7 @@ export function batchSource(
       'ym = z;',
     );
   }
-  if (shape.noisy) a.push('ym += noise * $NZ[ng];');
+  if (shape.noisy) a.push('ym += noise * G[ng + k];');
   if (shape.quantised) a.push('ym = res * Math.round(ym / res);');
   // Controller (control/pid.ts): initialise at the first sample (bumpless start), then update.
   a.push(
@@ -251,6 +249,18 @@ export function batchSource(
     `Z[zo + ${S('prev')}] = 0;`,
     '}',
   );
+  {
+    // Declare only the numbers this shape's code reads (the setpoint weight c is read as cw: c is
+    // the copy index here).
+    const text = a.join('\n');
+    const used = (name: string): boolean => new RegExp(`(^|[^\\w$.])${name.replace('$', '\\$')}([^\\w$]|$)`).test(text);
+    const fields = BATCH_FIELDS.map((f, i) => [f === 'c' ? 'cw' : f, i] as const).filter(([f]) => used(f));
+    const state = BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'prev').filter(used);
+    const decl: string[] = [];
+    if (fields.length > 0) decl.push(`const ${fields.map(([f, i]) => `${f} = P[o + ${i}]`).join(', ')};`);
+    if (state.length > 0) decl.push(`let ${state.map((f) => `${f} = Z[zo + ${S(f)}]`).join(', ')};`);
+    a.splice(declAt, 0, ...decl);
+  }
   const phaseA = a.join('\n');
 
   // ---- integration over [t_k, t_k+1]: n steps; the plant input of each copy and step is worked
@@ -332,11 +342,10 @@ export function batchSource(
   return `"use strict";
 return function batch(P, Z, B, T, G, OUT, kLast, ts, h, n) {
 const $h2 = 0.5 * h, $h6 = h / 6;
-const $U = new Float64Array(${K}), $NZ = new Float64Array(G.length);
+const $U = new Float64Array(${K});
 let $alive = ${K};
 for (let k = 0; k <= kLast; k++) {
 const $tk = k * ts;
-for (let g = 0; g < G.length; g++) $NZ[g] = G[g].nextGaussian();
 ${phaseA}
 if (k === kLast) break;
 {

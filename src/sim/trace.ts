@@ -39,6 +39,8 @@ export class TraceRing {
   readonly capacity: number;
   /** Rows written since the start (may exceed capacity). */
   recorded = 0;
+  /** Storage index of the next row: recorded mod capacity, kept without a division per row. */
+  private next = 0;
 
   constructor(capacity: number, disturbanceNames: readonly string[]) {
     if (!Number.isInteger(capacity) || capacity < 1) throw new RangeError('capacity must be a positive integer');
@@ -54,7 +56,8 @@ export class TraceRing {
   /** Append one row; the oldest row is overwritten when full. */
   write(t: number, r: number, y: number, ym: number, uc: number, u: number, sat: boolean, d: Float64Array): void {
     const s = this.storage;
-    const i = this.recorded % this.capacity;
+    const i = this.next;
+    this.next = i + 1 === this.capacity ? 0 : i + 1;
     s.t[i] = t;
     s.r[i] = r;
     s.y[i] = y;
