@@ -13,7 +13,7 @@ import { MATH_HELPERS } from '../model/index.js';
 import type { TrialEvent } from '../model/types.js';
 import { Rng } from '../num/index.js';
 import { Actuator } from './actuator.js';
-import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, type BatchShape } from './batch-stepper.js';
+import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
 import { loopStep } from './choose-step.js';
 import { delayInSteps } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
@@ -243,7 +243,8 @@ function prepare(
 
   const nf = BATCH_FIELDS.length;
   const np = plant.params.length;
-  const widths = batchWidths(plant.nx, np);
+  const lifted = liftedSources(plant, helpers);
+  const widths = batchWidths(plant.nx, np, lifted.values.length);
   const numbers = new Float64Array(widths.p);
   const a = loop.actuator;
   const s = loop.sensor;
@@ -277,6 +278,7 @@ function prepare(
     numbers[nf + j] = plant.params[j];
     numbers[nf + np + j] = 1 / plant.params[j];
   }
+  numbers.set(lifted.values, nf + 2 * np);
   const state = new Float64Array(widths.z);
   for (const f of ['start', 'end', 'uPlant'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
   state.set(plant.x0, BATCH_STATE.length);
@@ -298,8 +300,9 @@ function prepare(
     plant.nx,
     plant.params.length,
     plant.d0.length,
-    plant.outputSource,
-    ...plant.derivSource,
+    lifted.raw,
+    lifted.output,
+    ...lifted.deriv,
   ].join('\u0000');
   return {
     index,

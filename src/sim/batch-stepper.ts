@@ -87,9 +87,54 @@ export const BATCH_STATE = [
 /** Trace channels per copy in the `T` argument: r (read), y, ym, uc, u, sat, then d_0 … (read). */
 export const BATCH_CHANNELS = 6;
 
-/** Numbers per copy in `P` and in `Z`. */
-export function batchWidths(nx: number, np: number): { p: number; z: number } {
-  return { p: BATCH_FIELDS.length + 2 * np, z: BATCH_STATE.length + nx };
+/** Numbers per copy in `P` (fields, parameters, inverses, lifted literals) and in `Z`. */
+export function batchWidths(nx: number, np: number, nl = 0): { p: number; z: number } {
+  return { p: BATCH_FIELDS.length + 2 * np + nl, z: BATCH_STATE.length + nx };
+}
+
+/** Sources with their numeric literals lifted out (see `liftedSources`). */
+export interface LiftedSources {
+  /** Prepared derivative expressions (as the one-loop stepper evaluates them) with `$L<j>` for literals. */
+  deriv: string[];
+  /** Prepared output expression (sensor-delay variant), lifted. */
+  output: string;
+  /** Raw output expression (the sampled output, as `generateOutput` evaluates it), lifted. */
+  raw: string;
+  /** The literal values, `$L0` first. */
+  values: number[];
+  inverses: number[];
+}
+
+const LITERAL = /(?<![\w$.])(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?(?![\w$.])/g;
+
+/**
+ * Linear kinds are compiled with their coefficients written into the sources as numbers, so two
+ * sweep cases of a transfer function have different sources and could not share generated code.
+ * Every numeric literal is therefore replaced by a name `$L<j>` whose value each copy supplies.
+ * The arithmetic is unchanged (a literal and a variable holding the same double give the same
+ * IEEE results), except next to `**`, where the engine may treat a constant exponent specially:
+ * those literals stay in the text. The replacement is done after the sources were checked and
+ * their divisions by parameters rewritten, so it cannot change what the one-loop stepper does.
+ */
+export function liftedSources(
+  plant: PlantDynamics,
+  helpers: Readonly<Record<string, (...args: number[]) => number>> = MATH_HELPERS,
+): LiftedSources {
+  const prepared = prepareSources(plant, helpers);
+  checkSource(plant.outputSource, plant.nx, plant.params.length, plant.d0.length, helpers);
+  const values: number[] = [];
+  const lift = (src: string): string =>
+    src.replace(LITERAL, (lit: string, at: number) => {
+      const before = src.slice(0, at).replace(/[\s(]+$/, '');
+      const after = src.slice(at + lit.length).replace(/^[\s)]+/, '');
+      if (before.endsWith('**') || after.startsWith('**')) return lit;
+      values.push(Number(lit));
+      return `$L${values.length - 1}`;
+    });
+  const deriv = prepared.deriv.map(lift);
+  const output = lift(prepared.output);
+  const raw = lift(plant.outputSource);
+  return { deriv, output, raw, values, inverses: [...prepared.inverses].sort((a, b) => a - b) };
 }
 
 /**
@@ -153,11 +198,11 @@ export function batchSource(
   const nx = plant.nx;
   const np = plant.params.length;
   const nd = plant.d0.length;
-  const prepared = prepareSources(plant, helpers);
-  checkSource(plant.outputSource, nx, np, nd, helpers);
-  const rawOutput = plant.outputSource;
-  const inverses = [...prepared.inverses].sort((a, b) => a - b);
-  const widths = batchWidths(nx, np);
+  const prepared = liftedSources(plant, helpers);
+  const rawOutput = prepared.raw;
+  const inverses = prepared.inverses;
+  const nl = prepared.values.length;
+  const widths = batchWidths(nx, np, nl);
   const nch = BATCH_CHANNELS + nd;
   const nf = BATCH_FIELDS.length;
   const ns = BATCH_STATE.length;
@@ -171,12 +216,14 @@ export function batchSource(
     ip: ((j: number) => string) | null,
     d: (k: number) => string,
     u: string,
+    lit: (j: number) => string,
   ): string => {
     const b: string[] = [];
     if (x !== null) for (let i = 0; i < nx; i++) b.push(`x_${i} = ${x(i)}`);
     for (let j = 0; j < np; j++) b.push(`p_${j} = ${p(j)}`);
     if (ip !== null) for (const j of inverses) b.push(`$ip${j} = ${ip(j)}`);
     for (let k = 0; k < nd; k++) b.push(`d_${k} = ${d(k)}`);
+    for (let j = 0; j < nl; j++) b.push(`$L${j} = ${lit(j)}`);
     b.push(`u = ${u}`);
     return b.join(', ');
   };
@@ -196,7 +243,7 @@ export function batchSource(
   a.push('const r = T[to][k];');
   const ds = (k: number): string => `T[to + ${BATCH_CHANNELS + k}][k]`;
   a.push(
-    `let y = 0; { const ${['t = $tk', binds((i) => `Z[zo + ${ns + i}]`, (j) => `P[o + ${nf + j}]`, null, ds, 'uPlant')].join(', ')}; y = (${rawOutput}); }`,
+    `let y = 0; { const ${['t = $tk', binds((i) => `Z[zo + ${ns + i}]`, (j) => `P[o + ${nf + j}]`, null, ds, 'uPlant', (j) => `P[o + ${nf + 2 * np + j}]`)].join(', ')}; y = (${rawOutput}); }`,
   );
   // Measure: sensor delay, filter, noise, quantisation (sensor.ts).
   a.push('let ym = y;');
@@ -272,6 +319,7 @@ export function batchSource(
     for (let j = 0; j < np; j++) b.push(`${q(c, `p${j}`)} = P[${c * widths.p + nf + j}]`);
     for (const j of inverses) b.push(`${q(c, `ip${j}`)} = P[${c * widths.p + nf + np + j}]`);
     for (let k = 0; k < nd; k++) b.push(`${q(c, `d${k}`)} = T[${c * nch + BATCH_CHANNELS + k}][k]`);
+    for (let j = 0; j < nl; j++) b.push(`${q(c, `L${j}`)} = P[${c * widths.p + nf + 2 * np + j}]`);
     if (b.length > 0) pre.push(`const ${b.join(', ')};`);
     const xs: string[] = [];
     for (let i = 0; i < nx; i++) xs.push(`${q(c, `x${i}`)} = Z[${c * widths.z + ns + i}]`);
@@ -303,7 +351,7 @@ export function batchSource(
       integratorStages(integrator, nx, prepared.deriv, {
         x: (i) => q(c, `x${i}`),
         k: (s, i) => q(c, `k${s}_${i}`),
-        extra: binds(null, (j) => q(c, `p${j}`), (j) => q(c, `ip${j}`), (k) => q(c, `d${k}`), q(c, 'u')),
+        extra: binds(null, (j) => q(c, `p${j}`), (j) => q(c, `ip${j}`), (k) => q(c, `d${k}`), q(c, 'u'), (j) => q(c, `L${j}`)),
       }),
     );
   }
@@ -323,6 +371,7 @@ export function batchSource(
         (j) => q(c, `ip${j}`),
         (k) => q(c, `d${k}`),
         q(c, 'u'),
+        (j) => q(c, `L${j}`),
       );
       sub.push(`{ let $yo = 0; { const t = $t + h, ${bind}; $yo = (${prepared.output}); } ${pushLine(`B[${2 * c + 1}]`, `${c * widths.z + S('sh')}`, '$yo')} }`);
     }
@@ -380,6 +429,7 @@ export function generateBatch(
     hid = nextHelperId++;
     helperIds.set(helpers, hid);
   }
+  const lifted = liftedSources(plant, helpers);
   const key = [
     integrator,
     hid,
@@ -387,8 +437,9 @@ export function generateBatch(
     plant.params.length,
     plant.d0.length,
     shapeKey(shape),
-    plant.outputSource,
-    ...plant.derivSource,
+    lifted.raw,
+    lifted.output,
+    ...lifted.deriv,
   ].join('\u0000');
   const hit = cache.get(key);
   if (hit !== undefined) return hit;

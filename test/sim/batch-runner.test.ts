@@ -14,6 +14,8 @@ import { loadPlant } from '../../src/model/index.js';
 import type { AntiWindup, GainSet, TrialEvent, TrialSpec } from '../../src/model/types.js';
 import {
   batchSource,
+  generateBatch,
+  liftedSources,
   runTrial,
   runTrialBatch,
   type BatchMember,
@@ -199,6 +201,41 @@ describe('runTrialBatch equals runTrial bit for bit', () => {
       files++;
     }
     expect(files).toBeGreaterThanOrEqual(5);
+  });
+});
+
+describe('literals lifted out of the sources', () => {
+  const linear = (k: number, tau: number, src?: string): PlantDynamics =>
+    H.makePlant({
+      states: [['x', 0]],
+      disturbances: [['load', 0]],
+      derivSource: [src ?? `(((${-1 / tau}) * x_0) + (${k / tau} * (u + d_0)))`],
+      outputSource: 'x_0',
+      deriv: (_t, x, u, d, _p, dx) => {
+        dx[0] = (-1 / tau) * x[0] + (k / tau) * (u + d[0]);
+      },
+      output: (_t, x) => x[0],
+    });
+
+  it('two linear plants with other coefficients share one template and one generated function', () => {
+    const a = liftedSources(linear(2, 5));
+    const b = liftedSources(linear(1.7, 4.2));
+    expect(a.deriv).toEqual(b.deriv);
+    expect(a.values).toEqual([0.2, 0.4]);
+    expect(b.values).toEqual([-1 / 4.2, 1.7 / 4.2].map(Math.abs));
+    const shape = { width: 2, inputDelay: false, sensorDelay: false, filtered: false, noisy: false, quantised: false, rateLimited: false, antiWindup: 'none' as const };
+    expect(generateBatch(linear(2, 5), 'rk4', shape)).toBe(generateBatch(linear(1.7, 4.2), 'rk4', shape));
+  });
+
+  it('a literal next to ** stays in the text; x_0 and p_1 are names, not literals', () => {
+    const l = liftedSources(linear(1, 1, '(x_0 ** 2) - 3 * 2 ** x_0 + 0.5e-3 * x_0'));
+    expect(l.deriv[0]).toBe('(x_0 ** 2) - $L0 * 2 ** x_0 + $L1 * x_0');
+    expect(l.values).toEqual([3, 0.0005]);
+  });
+
+  it('linear plants whose coefficients differ per case run batched and equal runTrial', () => {
+    const cases: Case[] = [0.5, 1, 1.5, 2, 2.5].map((k, i) => ({ plant: linear(k, 3 + i), gains: { kc: 0.7, ti: 3 }, loop: loopConfig(0.2, 0.05) }));
+    expectSameAsRunTrial(cases, trial(20, STEPS));
   });
 });
 
