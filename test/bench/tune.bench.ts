@@ -130,13 +130,19 @@ export async function run(): Promise<void> {
   const ctx = tuningContext(tank);
   const plan = planSweep(tank, { samples: 48 }, ctx);
   const sweepMs = timeIt(() => {
-    robustnessSweep(tank, tank.loop.controller.gains, { samples: 48 }, ctx, plan);
+    robustnessSweep(tank, tank.loop.controller.gains, { samples: 48, runner: 'sequential' }, ctx, plan);
+  }, 3);
+  const batchedMs = timeIt(() => {
+    robustnessSweep(tank, tank.loop.controller.gains, { samples: 48, runner: 'batched' }, ctx, plan);
   }, 3);
   const perSim = sweepMs / plan.cases.length;
   const hand = handTankMs(tank);
   console.log(`  sequential: ${plan.cases.length} simulations in ${sweepMs.toFixed(0)} ms = ${(1000 / perSim).toFixed(0)} sims/s`);
+  console.log(
+    `  batched (sim's batch runner): ${batchedMs.toFixed(0)} ms = ${((1000 * plan.cases.length) / batchedMs).toFixed(0)} sims/s ` +
+      `(batched/sequential throughput ${(sweepMs / batchedMs).toFixed(2)}x; metrics and margins included; sweep.bench.ts splits them off)`,
+  );
   console.log(`  hand-written loop (same plant, PI, limits, filter; no noise, no trace): ${(1000 / hand).toFixed(0)} sims/s (engine/hand time ratio ${(perSim / hand).toFixed(2)})`);
-  console.log('  batched (K loops interleaved in one generated step): not built (see the tune report)');
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();
