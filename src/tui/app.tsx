@@ -10,31 +10,50 @@ import { loadPlant } from '../model/index.js';
 import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
-import { defaultSwitchTime, editFromSpec, evaluate, fileGainSwitches, rehearsalTrial, runningGains, type Evaluation, type LoopSetup } from './engine.js';
-import { HINT, keyTokens } from './keymap.js';
+import {
+  defaultSwitchTime,
+  evaluate,
+  fileEdit,
+  fileGainSwitches,
+  rehearsalTrial,
+  runningGains,
+  structureMarginsView,
+  type Evaluation,
+  type LoopSetup,
+} from './engine.js';
+import { useEnvelope, type EnvelopeState } from './hooks/use-envelope.js';
+import { useTuningAids } from './hooks/use-tuning-aids.js';
+import { HINT, LIST_HINT, keyTokens } from './keymap.js';
 import { computeLayout, type Layout } from './layout.js';
 import { LiveRun } from './live-run.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
 import type { MarginsView, Notice, NoticeSource } from './notices.js';
 import { CautionOverlay } from './panels/CautionOverlay.js';
 import { ChartPanel } from './panels/ChartPanel.js';
-import { GainsPanel } from './panels/GainsPanel.js';
+import { CompareOverlay } from './panels/CompareOverlay.js';
+import { GainsPanel, gainPanelLines } from './panels/GainsPanel.js';
 import { Heading } from './panels/Heading.js';
 import { HelpOverlay } from './panels/HelpOverlay.js';
 import { Line, fit, type Piece } from './panels/line.js';
 import { MetricsPanel } from './panels/MetricsPanel.js';
 import { NoticesPanel, noticePieces } from './panels/NoticesPanel.js';
+import { OptimizePanel } from './panels/OptimizePanel.js';
 import { StatusLine } from './panels/StatusLine.js';
+import { SuggestPanel } from './panels/SuggestPanel.js';
 import { planSave } from './save-gains.js';
 import {
+  frameId,
   initialState,
   isDirty,
+  namedOf,
   paramInfo,
   paramList,
   reduce,
   speedOf,
   type Action,
   type Effect,
+  type GainEdit,
+  type Overlay,
   type RunMode,
   type ScreenState,
 } from './state.js';
@@ -104,15 +123,17 @@ export function App(props: AppProps) {
   const [state, dispatch] = useReducer(reducer, undefined, () =>
     initialState({
       fileName: props.fileName,
-      file: editFromSpec(plant.loop.controller),
+      file: fileEdit(setup),
       trialDuration: trial.duration,
       switchAt: defaultSwitchTime(trial),
       caution: props.caution,
       mode: props.mode,
+      uncertainty: Object.keys(plant.uncertainty).length > 0,
     }),
   );
   const size = useTerminalSize(props.size);
-  const layout = computeLayout(size.columns, size.rows, paramList(state.current).length + 1);
+  const layout = computeLayout(size.columns, size.rows, gainPanelLines(state.current));
+  const aids = useTuningAids(setup, dispatch);
 
   // ---------------------------------------------------------------- instant evaluation
   const baselineEdit = state.baseline?.edit ?? null;
@@ -120,20 +141,24 @@ export function App(props: AppProps) {
   const now: Evaluation = useMemo(() => {
     if (rehearsing) return evaluate(setup, baselineEdit, rehearsalTrial(trial, state.current, state.switchAt));
     return evaluate(setup, state.current);
-  }, [setup, state.current.gains, state.current.structure, rehearsing, baselineEdit, state.switchAt]);
+  }, [setup, state.current.gains, state.current.structure, frameId(state.current), rehearsing, baselineEdit, state.switchAt]);
   const base: Evaluation | null = useMemo(
     () => (baselineEdit === null ? null : evaluate(setup, baselineEdit)),
     [setup, baselineEdit],
   );
   // Margins come one frame after the trial: the new gain and its trial are drawn at once, the
   // frequency-domain figures follow as soon as they are computed.
-  const marginsNow = useDeferred(() => props.notices.margins(runningGains(state.current)), [props.notices, state.current.gains]);
-  const marginsBase = useDeferred(
-    () => (baselineEdit === null ? null : props.notices.margins(runningGains(baselineEdit))),
-    [props.notices, baselineEdit],
-  );
+  // A Smith predictor's or a cascade's loop is not the PID loop: tune computes their margins.
+  const marginsOf = (e: GainEdit): MarginsView | null => {
+    const structured = structureMarginsView(setup, e);
+    return structured === undefined ? props.notices.margins(runningGains(e)) : structured;
+  };
+  const marginsNow = useDeferred(() => marginsOf(state.current), [props.notices, state.current.gains, frameId(state.current)]);
+  const marginsBase = useDeferred(() => (baselineEdit === null ? null : marginsOf(baselineEdit)), [props.notices, baselineEdit]);
+  const envelope = useEnvelope(setup, state.current, state.envelope && state.mode === 'instant' && !rehearsing);
   const plantNotices = useMemo(() => {
     const list = props.notices.plantNotices();
+    for (const b of setup.basis) list.push({ tone: 'info', title: namedOf(state.file), text: b });
     for (const g of fileGainSwitches(trial)) {
       list.push({ tone: 'info', text: `the file's trial switches gains at ${g.at} s ('${g.label}'); the screen runs the edited set throughout (g rehearses a switch)` });
     }
@@ -151,8 +176,11 @@ export function App(props: AppProps) {
   const latest = useRef(state);
   latest.current = state;
   useEffect(() => {
-    live.current?.setGains(state.current);
-  }, [state.current.gains, state.current.structure]);
+    if (live.current?.setGains(state.current) === true) {
+      achieved.current = NaN;
+      dispatch({ type: 'notify', message: { text: 'live run restarted: the edited set runs another controller structure', tone: 'info' } });
+    }
+  }, [state.current.gains, state.current.structure, frameId(state.current)]);
   useEffect(() => {
     if (state.mode !== 'live' || state.paused) return undefined;
     let last = performance.now();
@@ -214,6 +242,9 @@ export function App(props: AppProps) {
         run?.restart();
         achieved.current = NaN;
         setFrame((f) => f + 1);
+        return;
+      default:
+        aids.run(e, state.current);
         return;
     }
   }
@@ -277,7 +308,23 @@ export function App(props: AppProps) {
     const o = state.overlay;
     const bodyLines = layout.lines - 3;
     if (o.kind === 'caution') return <CautionOverlay width={layout.width} height={bodyLines} theme={theme} />;
-    if (o.kind === 'help') return <HelpOverlay width={layout.width} height={bodyLines} theme={theme} />;
+    if (o.kind === 'help') return <HelpOverlay width={layout.width} height={bodyLines} theme={theme} page={o.page} />;
+    if (o.kind === 'suggest') return <SuggestPanel view={o.view} selected={o.selected} width={layout.width} height={bodyLines} theme={theme} />;
+    if (o.kind === 'optimize') {
+      return <OptimizePanel view={o.view} outcome={o.outcome} cancelling={o.cancelling} width={layout.width} height={bodyLines} theme={theme} />;
+    }
+    if (o.kind === 'compare') {
+      return (
+        <CompareOverlay
+          result={o.entries === null ? null : aids.compare}
+          selected={o.selected}
+          edited={o.edited === null ? null : (o.entries?.[o.edited]?.name ?? null)}
+          width={layout.width}
+          height={bodyLines}
+          theme={theme}
+        />
+      );
+    }
     return (
       <Panels
         layout={layout}
@@ -292,6 +339,8 @@ export function App(props: AppProps) {
         notices={notices}
         margins={marginsNow}
         actuator={plant.actuator}
+        envelope={envelope}
+        envelopeWanted={state.envelope}
       />
     );
   })();
@@ -307,7 +356,7 @@ export function App(props: AppProps) {
         paused={state.paused}
         time={simTime}
         manual={state.manual}
-        structure={state.current.structure}
+        structure={namedOf(state.current)}
         form={state.current.form}
         rehearseAt={rehearsing ? state.switchAt : null}
         baseline={state.baseline === null ? null : state.baseline.label === 'file' ? "file's gains" : 'kept set'}
@@ -316,7 +365,7 @@ export function App(props: AppProps) {
       />
       {body}
       <MessageLine state={state} width={layout.width} theme={theme} notices={layout.noticesWidth > 0 ? [] : notices} dispatch={dispatch} />
-      <Line pieces={[{ text: HINT, color: theme.dim }]} width={layout.width} color={theme.color} />
+      <Line pieces={[{ text: hintFor(state.overlay), color: theme.dim }]} width={layout.width} color={theme.color} />
     </Box>
   );
 }
@@ -333,6 +382,20 @@ function useDeferred<T>(compute: () => T, deps: readonly unknown[]): T | 'pendin
   }, deps);
   const fresh = value !== null && value.deps.length === deps.length && value.deps.every((d, i) => Object.is(d, deps[i]));
   return fresh ? value.value : 'pending';
+}
+
+/** The hint line: the main keys, or the keys of the open list or view. */
+function hintFor(o: Overlay): string {
+  switch (o.kind) {
+    case 'suggest':
+      return LIST_HINT;
+    case 'optimize':
+      return o.outcome === null ? 'Esc stops the optimiser (the best so far is offered)' : 'Enter apply  Esc discard';
+    case 'compare':
+      return '↑↓ Tab switch the edited candidate  Esc back';
+    default:
+      return HINT;
+  }
 }
 
 function fmt(v: number | null): string {
@@ -352,6 +415,9 @@ interface PanelsProps {
   notices: Notice[];
   margins: MarginsView | null | 'pending';
   actuator: { min: number; max: number };
+  /** The robustness envelope (null: not wanted, or not drawn in this mode). */
+  envelope: EnvelopeState | null;
+  envelopeWanted: boolean;
 }
 
 function Panels(p: PanelsProps) {
@@ -364,6 +430,7 @@ function Panels(p: PanelsProps) {
     band: theme.band,
     output: theme.output,
     limit: theme.limit,
+    envelope: theme.envelope,
   };
   const points = pointsForWidth(w);
   let trace = p.now.result.trace;
@@ -386,6 +453,9 @@ function Panels(p: PanelsProps) {
   ];
   if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· baseline only ' : '· baseline ', color: theme.baseline });
   if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
+  const env = p.run === null ? p.envelope : null;
+  if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
+  else if (p.envelopeWanted) legend.push({ text: '░ envelope: instant trial only ', color: theme.dim });
   const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
   const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
   if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
@@ -393,7 +463,15 @@ function Panels(p: PanelsProps) {
   const showTrend = layout.trendRows > 0;
   const trendGrid = showTrend
     ? renderChart(
-        trendSeries({ trace, baseline: baselineTrace, t0, t1, points, band: bandLines(steps, p.req) }),
+        trendSeries({
+          trace,
+          baseline: baselineTrace,
+          t0,
+          t1,
+          points,
+          band: bandLines(steps, p.req),
+          envelope: env?.envelope ? { t: env.envelope.t, lo: env.envelope.lo, hi: env.envelope.hi, length: env.envelope.t.length } : null,
+        }),
         { width: w, height: layout.trendRows, labelWidth: LABEL_WIDTH },
       )
     : null;
@@ -478,6 +556,18 @@ function Panels(p: PanelsProps) {
       {bottom}
     </Box>
   );
+}
+
+/** The envelope's legend entry: its cases, or how far its sweep has come. */
+function envelopeLegend(e: EnvelopeState): string {
+  if (e.error !== null) return `░ envelope failed: ${e.error} `;
+  if (e.total === 0) return '░ envelope … ';
+  const cases = e.done < e.total ? `${e.done}/${e.total} cases…` : `${e.total} cases`;
+  // The widest spread, so that an envelope hidden under the PV line still says how wide it is.
+  let spread = 0;
+  const env = e.envelope;
+  if (env !== null) for (let i = 0; i < env.t.length; i++) if (Number.isFinite(env.hi[i] - env.lo[i])) spread = Math.max(spread, env.hi[i] - env.lo[i]);
+  return `░ envelope ${cases}, spread ≤ ${Number(spread.toPrecision(2))}${e.anyDiverged ? ', one diverges' : ''} `;
 }
 
 /** The margins of the edited gains as one notices line, or null without a diagnosis. */

@@ -85,8 +85,38 @@ function f(x: number, digits = 3): string {
   return String(Number(x.toPrecision(digits)));
 }
 
-/** The table as fixed-width text lines: a header, then one line per candidate (all of them). */
-export function compareTable(result: CompareResult): string[] {
+/**
+ * Columns left out, in this order, when the table is wider than the screen: the least needed to
+ * choose between candidates first. The candidate's name and the step figures stay.
+ */
+const DROP_ORDER: readonly string[] = ['peak u', 'td', 'IAE dist', 'worst Ms', 'ti', 'settling', 'structure'];
+
+/**
+ * The table as fixed-width text lines: a header, then one line per candidate (all of them).
+ * With `width`, columns are left out (DROP_ORDER) until each line fits, the first marker column
+ * (2 characters, see ComparePanel) included.
+ */
+export function compareTable(result: CompareResult, width = Infinity): string[] {
+  const rows = tableCells(result);
+  const keep = rows[0].map(() => true);
+  const lineWidth = (): number => {
+    let w = -2;
+    rows[0].forEach((_, i) => {
+      if (keep[i]) w += 2 + Math.max(...rows.map((r) => r[i].length));
+    });
+    return w + 2;
+  };
+  for (const name of DROP_ORDER) {
+    if (lineWidth() <= width) break;
+    keep[rows[0].indexOf(name)] = false;
+  }
+  const kept = rows.map((r) => r.filter((_, i) => keep[i]));
+  const widths: number[] = [];
+  for (const row of kept) row.forEach((cell, i) => (widths[i] = Math.max(widths[i] ?? 0, cell.length)));
+  return kept.map((row) => row.map((cell, i) => cell.padEnd(widths[i])).join('  ').trimEnd());
+}
+
+function tableCells(result: CompareResult): string[][] {
   const head = ['candidate', 'structure', 'kc', 'ti', 'td', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'Ms', 'worst Ms'];
   const rows: string[][] = [head];
   for (const c of result.candidates) {
@@ -110,7 +140,5 @@ export function compareTable(result: CompareResult): string[] {
       r.worst === null ? '-' : r.worst.anyDiverged ? 'diverges' : f(r.worst.worstMs),
     ]);
   }
-  const widths: number[] = [];
-  for (const row of rows) row.forEach((cell, i) => (widths[i] = Math.max(widths[i] ?? 0, cell.length)));
-  return rows.map((row) => row.map((cell, i) => cell.padEnd(widths[i])).join('  ').trimEnd());
+  return rows;
 }

@@ -1,20 +1,33 @@
 /**
  * The screen's window on the core: set a loop up from a plant file, run a trial with a gain
  * set, measure it. Every number drawn comes from here; nothing here is physics of its own.
+ *
+ * A controller with a richer structure (Smith predictor, feedforward, cascade, gain schedule,
+ * the named 2-DOF laws) runs as `looprig run` runs it: tune's `resolveController` fills the
+ * values the file leaves to the model (once, when the file is opened), and the edited gain set
+ * is the PID law inside that structure.
  */
 import { checkRequirements, trialMetrics, type RequirementResult, type TrialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant, MATH_HELPERS, fromIdeal } from '../model/index.js';
-import type { ControllerSpec, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
-import { chooseStep, runTrial } from '../sim/index.js';
+import type { ControllerSpec, ControllerStructure, GainSet, PidForm, PlantSpec, StructureName, TrialSpec } from '../model/types.js';
+import { runTrial } from '../sim/index.js';
 import type { DiscreteController, LoopConfig, PlantDynamics, TrialResult } from '../sim/types.js';
-import { formParams, type GainEdit } from './state.js';
+import { loopConfigOf, resolveController, structureMargins, tuningContext, type TuningContext } from '../tune/index.js';
+import type { MarginsView } from './notices.js';
+import { formParams, type ControllerFrame, type GainEdit } from './state.js';
 
 /** A compiled loop, made once per file. */
 export interface LoopSetup {
   readonly plant: PlantSpec;
   readonly dynamics: PlantDynamics;
   readonly config: LoopConfig;
+  /** The file's controller with every model-derived value filled in (what the engine builds). */
+  readonly controller: ControllerSpec;
+  /** How the structure's model-derived values were obtained (empty for a plain law). */
+  readonly basis: readonly string[];
+  /** The tune layer's preparation of the file (linear model, frequency response), made on first use. */
+  context(): TuningContext;
 }
 
 /** One evaluated trial. */
@@ -26,23 +39,57 @@ export interface Evaluation {
   readonly elapsedMs: number;
 }
 
-/** Compile the plant and fix the integration step. */
+/**
+ * Compile the plant, fix the integration step and resolve the controller's structure. Throws the
+ * tune layer's `StructureUnavailable` when the file's structure cannot be set up for this plant
+ * (e.g. a Smith predictor on an integrating plant), as `looprig run` refuses it.
+ */
 export function setupLoop(plant: PlantSpec): LoopSetup {
   const dynamics = compilePlant(plant);
   const loop = plant.loop;
-  const step = loop.step ?? chooseStep(dynamics, loop.sampleTime, loop.integrator).step;
-  const config: LoopConfig = {
-    actuator: plant.actuator,
-    sensor: plant.sensor,
-    sampleTime: loop.sampleTime,
-    step,
-    integrator: loop.integrator,
-  };
-  return { plant, dynamics, config };
+  // The integration step as `looprig run` and the tune layer choose it (from the trial's initial output).
+  const config: LoopConfig = loopConfigOf(plant, dynamics).loop;
+  let ctx: TuningContext | null = null;
+  const context = (): TuningContext => (ctx ??= tuningContext(plant, dynamics));
+  const file = loop.controller;
+  let controller = file;
+  let basis: string[] = [];
+  if (file.extension !== undefined) {
+    const r = resolveController(context(), file);
+    // The resolved spec is in the ideal form; the screen keeps editing in the file's form.
+    controller = r.controller;
+    basis = [...r.basis, ...r.notes];
+  }
+  return { plant, dynamics, config, controller, basis, context };
 }
 
-/** The file's controller as an editable gain set, in the file's form. */
-export function editFromSpec(spec: ControllerSpec): GainEdit {
+/** The structure name a controller spec runs (pi_d, smith_pi ... or the plain law). */
+export function structureName(spec: ControllerSpec): StructureName {
+  return spec.named ?? spec.structure;
+}
+
+/** The frame of a controller spec: what around the PID law is fixed, and whether the law is editable. */
+export function frameOf(spec: ControllerSpec, id: string, candidate: string | null): ControllerFrame {
+  const named = structureName(spec);
+  return {
+    id,
+    named,
+    candidate,
+    // A schedule's table holds the gains that run; the spec's own gains are only its start.
+    editable: spec.extension?.kind !== 'scheduled',
+    fixedWeights: named === 'pi_d' || named === 'i_pd',
+    extended: spec.extension !== undefined,
+    spec,
+  };
+}
+
+/** The frame of the file's own controller. */
+export function fileFrame(setup: LoopSetup): ControllerFrame {
+  return frameOf(setup.controller, 'file', null);
+}
+
+/** The file's controller as an editable gain set, in the file's form (with its frame when given). */
+export function editFromSpec(spec: ControllerSpec, frame?: ControllerFrame): GainEdit {
   const gains = applyStructure(spec.structure, spec.gains);
   const converted = fromIdeal(spec.form, { kc: gains.kc, ti: gains.ti, td: gains.td });
   const values: Record<string, number> = {};
@@ -50,13 +97,72 @@ export function editFromSpec(spec: ControllerSpec): GainEdit {
     const v = spec.values[k];
     values[k] = typeof v === 'number' && !Number.isNaN(v) ? v : (converted?.[k] ?? NaN);
   }
-  return { structure: spec.structure, form: spec.form, values, gains };
+  const edit: GainEdit = { structure: spec.structure, form: spec.form, values, gains };
+  return frame === undefined ? edit : { ...edit, frame };
 }
 
-/** A controller of the file's kind with these gains. */
+/** The file's controller as the screen edits it first. */
+export function fileEdit(setup: LoopSetup): GainEdit {
+  return editFromSpec(setup.plant.loop.controller, fileFrame(setup));
+}
+
+/**
+ * A gain set (ideal form) as an edit in `form` inside `frame`: the values re-expressed in that
+ * form, or in the ideal form when that form cannot hold them (series needs Ti >= 4 Td).
+ */
+export function editWithGains(gains: GainSet, structure: ControllerStructure, form: PidForm, frame: ControllerFrame | undefined): GainEdit {
+  const g = applyStructure(structure, gains);
+  let shown: PidForm = form;
+  let all = fromIdeal(form, { kc: g.kc, ti: g.ti, td: g.td });
+  if (all === null) {
+    shown = 'ideal';
+    all = { kc: g.kc, ti: g.ti, td: g.td };
+  }
+  const values: Record<string, number> = {};
+  for (const k of formParams(structure, shown)) values[k] = all[k];
+  const edit: GainEdit = { structure, form: shown, values, gains: g };
+  return frame === undefined ? edit : { ...edit, frame };
+}
+
+/** The controller spec an edit runs: its frame's (a compare candidate's) or the file's, with the edited law. */
+export function specFor(setup: LoopSetup, edit: GainEdit): ControllerSpec {
+  const spec = edit.frame?.spec ?? setup.controller;
+  return { ...spec, structure: edit.structure, gains: edit.gains };
+}
+
+/** A controller of the edit's structure (the file's, or a compare candidate's) with these gains. */
 export function controllerFor(setup: LoopSetup, edit: GainEdit): DiscreteController {
-  const spec = setup.plant.loop.controller;
-  return buildController({ ...spec, structure: edit.structure, gains: edit.gains }, setup.config.sampleTime);
+  return buildController(specFor(setup, edit), setup.config.sampleTime, setup.dynamics);
+}
+
+/**
+ * Margins of a structure whose loop is not the plain PID loop (Smith predictor, cascade: broken
+ * at the actuator, from tune's `structureMargins`); undefined when the PID loop's own margins
+ * apply (plain laws, 2-DOF weights, feedforward, a schedule at its start), which the notice
+ * source computes.
+ */
+export function structureMarginsView(setup: LoopSetup, edit: GainEdit): MarginsView | null | undefined {
+  const kind = (edit.frame?.spec ?? setup.controller).extension?.kind;
+  if (kind !== 'smith_pi' && kind !== 'cascade') return undefined;
+  const m = structureMargins(setup.context(), specFor(setup, edit));
+  if (m === null) return null;
+  return { gainMargin: m.gainMargin, phaseMarginDeg: m.phaseMarginDeg, maxSensitivity: m.maxSensitivity, closedLoopStable: m.closedLoopStable };
+}
+
+/**
+ * The plant file as the tune layer should see it for this edit: the file with the edited gain
+ * set as its controller (plain law), so that rules keep the edit's filter, weights and
+ * anti-windup, and every figure they report is for the gain set they would leave behind.
+ */
+export function plantFor(setup: LoopSetup, edit: GainEdit): PlantSpec {
+  const { extension: _e, named: _n, ...plain } = setup.plant.loop.controller;
+  const controller: ControllerSpec = { ...plain, structure: edit.structure, gains: edit.gains };
+  return { ...setup.plant, loop: { ...setup.plant.loop, controller } };
+}
+
+/** The tune layer's context of the file, seen with the edit as its controller (shares the linear model). */
+export function contextFor(setup: LoopSetup, edit: GainEdit): TuningContext {
+  return { ...setup.context(), spec: plantFor(setup, edit) };
 }
 
 /** The gains the controller law runs for a gain set (structure imposed). */

@@ -31,12 +31,16 @@ export type KeyCommand =
   | 'disturbance_step_down'
   | 'toggle_manual'
   | 'restart_live'
+  | 'suggest'
+  | 'optimize'
+  | 'toggle_envelope'
+  | 'compare'
   | 'save'
   | 'help'
   | 'quit';
 
 /** A group heading of the help overlay. */
-export type KeyGroup = 'edit' | 'compare' | 'run' | 'file';
+export type KeyGroup = 'edit' | 'compare' | 'tune' | 'run' | 'file';
 
 export interface KeyBinding {
   /** Key tokens as produced by `keyToken` (a printable character, or a name such as 'up'). */
@@ -83,6 +87,10 @@ export const KEYMAP: readonly KeyBinding[] = [
   { keys: ['D'], command: 'disturbance_step_down', group: 'run', help: 'live: disturbance step −' },
   { keys: ['m'], command: 'toggle_manual', group: 'run', help: 'live: manual / auto' },
   { keys: ['z'], command: 'restart_live', group: 'run', help: 'live: restart at t = 0' },
+  { keys: ['p'], command: 'suggest', group: 'tune', help: 'rule gain sets (simulated)' },
+  { keys: ['O'], command: 'optimize', group: 'tune', help: 'optimise gains (Esc stops)' },
+  { keys: ['v'], command: 'toggle_envelope', group: 'tune', help: 'envelope over uncertainty' },
+  { keys: ['c'], command: 'compare', group: 'tune', help: 'compare the candidates' },
   { keys: ['w'], command: 'save', group: 'file', help: 'save to the file (asks)' },
   { keys: ['?', 'h'], command: 'help', group: 'file', help: 'this help' },
   { keys: ['q', 'ctrl-c'], command: 'quit', group: 'file', help: 'quit (asks if unsaved)' },
@@ -94,8 +102,45 @@ export const PROMPT_KEYS: readonly { keys: string; help: string }[] = [
   { keys: 'Enter Esc', help: 'accept / cancel a value' },
 ];
 
+/** What a key does inside the suggestion list, the optimiser and the comparison view. */
+export type ListCommand = 'list_prev' | 'list_next' | 'list_choose' | 'list_close';
+
+export interface ListBinding {
+  readonly keys: readonly string[];
+  readonly command: ListCommand;
+  readonly help: string;
+}
+
+/**
+ * The keys of the lists and views (rules, optimiser, comparison): the reducer routes them through
+ * this table and the help overlay prints it, as for KEYMAP. In the comparison view moving the
+ * selection switches the edited candidate at once.
+ */
+export const LIST_KEYMAP: readonly ListBinding[] = [
+  { keys: ['up', 'k', 'shift-tab'], command: 'list_prev', help: 'previous (compare: edit it)' },
+  { keys: ['down', 'j', 'tab'], command: 'list_next', help: 'next (compare: edit it)' },
+  { keys: ['enter'], command: 'list_choose', help: 'apply the gain set (u undo)' },
+  { keys: ['esc'], command: 'list_close', help: 'close; optimiser: stop it' },
+];
+
+const byListToken = new Map<string, ListCommand>();
+for (const b of LIST_KEYMAP) {
+  for (const k of b.keys) {
+    if (byListToken.has(k)) throw new Error(`list keymap: '${k}' bound twice`);
+    byListToken.set(k, b.command);
+  }
+}
+
+/** The list command bound to a key token, or null. */
+export function listCommandFor(token: string): ListCommand | null {
+  return byListToken.get(token) ?? null;
+}
+
 /** The always-visible one-line hint (short on purpose: it must fit 80 columns). */
-export const HINT = '↑↓ select  ←→ ±1%  [ ] ±10%  Enter type  u undo  l live  w save  ? keys  q quit';
+export const HINT = '↑↓ ←→ edit  u undo  p rules  O optimise  v envelope  c compare  ? keys  q quit';
+
+/** The hint line while a list or view is open. */
+export const LIST_HINT = '↑↓ choose  Enter apply  Esc close';
 
 /** Minimal shape of Ink's key record that `keyToken` reads. */
 export interface KeyFlags {
@@ -180,6 +225,7 @@ const KEY_NAMES: Record<string, string> = {
   tab: 'Tab',
   space: 'Space',
   'ctrl-c': 'Ctrl-C',
+  'shift-tab': 'S-Tab',
 };
 
 /** How a key token is written for people. */
@@ -190,13 +236,14 @@ export function keyLabel(token: string): string {
 const GROUP_TITLES: Record<KeyGroup, string> = {
   edit: 'Edit the gain set',
   compare: 'Baseline and rehearsal',
+  tune: 'Tuning aids',
   run: 'Running',
   file: 'File and screen',
 };
 
 /** The help overlay's text, one entry per line, built from `KEYMAP`. */
 export function helpLines(): { title: string; rows: { keys: string; help: string }[] }[] {
-  const groups: KeyGroup[] = ['edit', 'compare', 'run', 'file'];
+  const groups: KeyGroup[] = ['edit', 'compare', 'tune', 'run', 'file'];
   return groups.map((g) => ({
     title: GROUP_TITLES[g],
     rows: KEYMAP.filter((b) => b.group === g).map((b) => ({
@@ -204,4 +251,9 @@ export function helpLines(): { title: string; rows: { keys: string; help: string
       help: b.help,
     })),
   }));
+}
+
+/** The list keys for the help overlay, built from `LIST_KEYMAP`. */
+export function listHelpLines(): { keys: string; help: string }[] {
+  return LIST_KEYMAP.map((b) => ({ keys: b.keys.map(keyLabel).join(' '), help: b.help }));
 }

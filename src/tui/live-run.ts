@@ -10,7 +10,7 @@ import type { TrialEvent } from '../model/types.js';
 import { createSimulation, createTrace, type Simulation } from '../sim/index.js';
 import type { Trace } from '../sim/types.js';
 import { controllerFor, runningGains, type LoopSetup } from './engine.js';
-import type { GainEdit } from './state.js';
+import { frameId, type GainEdit } from './state.js';
 import type { BandStep } from './trend-series.js';
 
 /** Simulated seconds advanced per engine call, so that the wall-time budget is checked often. */
@@ -162,10 +162,20 @@ export class LiveRun {
     this.sim.setSetpoint(r);
   }
 
-  /** The gain set being edited changed: it takes effect at the next sample, bumplessly. */
-  setGains(edit: GainEdit): void {
+  /**
+   * The gain set being edited changed: it takes effect at the next sample, bumplessly. A gain set
+   * of another controller structure (a comparison candidate) cannot be switched into the running
+   * law: the run restarts with it. @returns true when the run restarted.
+   */
+  setGains(edit: GainEdit): boolean {
+    const other = frameId(edit) !== frameId(this.gains);
     this.gains = edit;
+    if (other) {
+      this.restart();
+      return true;
+    }
     this.sim.setGains(runningGains(edit));
+    return false;
   }
 
   stepSetpoint(sign: 1 | -1): number {

@@ -7,8 +7,9 @@
  * The reducer does no physics either. Form conversions and unit parsing come in through
  * `EditMath`, which the shell fills with the core's functions.
  */
-import type { AntiWindup, ControllerStructure, GainSet, PidForm } from '../model/types.js';
-import { commandFor, NUDGE, SPEEDS, type KeyCommand } from './keymap.js';
+import type { AntiWindup, ControllerSpec, ControllerStructure, GainSet, PidForm, StructureName } from '../model/types.js';
+import { commandFor, listCommandFor, NUDGE, SPEEDS, type KeyCommand } from './keymap.js';
+import type { CandidateEntry, OptimizeOutcome, OptimizeView, SuggestView } from './tuning-views.js';
 
 /** The three time-domain parameters of a PID form, in that form's own meaning. */
 export interface FormTriple {
@@ -27,6 +28,27 @@ export interface EditMath {
   parseSeconds(text: string): number;
 }
 
+/**
+ * What surrounds the edited PID law: the file's own controller structure, or a comparison
+ * candidate's. The reducer reads the flags; `spec` is for the engine (engine.ts `frameOf`).
+ */
+export interface ControllerFrame {
+  /** 'file' for the file's own controller; 'candidate:<name>' for a comparison candidate. */
+  readonly id: string;
+  /** Structure name (pi, i_pd, smith_pi, cascade ...). */
+  readonly named: StructureName;
+  /** The comparison candidate's name (null: the file's controller). */
+  readonly candidate: string | null;
+  /** False when the law's gains are not the ones that run (a gain schedule: its table holds them). */
+  readonly editable: boolean;
+  /** b and c are fixed by the structure's name (pi_d: 1, 0; i_pd: 0, 0): not offered for editing. */
+  readonly fixedWeights: boolean;
+  /** A structure around the law (Smith predictor, feedforward, cascade, schedule). */
+  readonly extended: boolean;
+  /** The resolved controller the engine builds around the edited gains. */
+  readonly spec: ControllerSpec;
+}
+
 /** One gain set as edited: the form the user sees, its values, and the same set in ideal form. */
 export interface GainEdit {
   readonly structure: ControllerStructure;
@@ -35,6 +57,18 @@ export interface GainEdit {
   readonly values: Readonly<Record<string, number>>;
   /** Ideal form, what the controller runs. n, b, c, antiWindup and trackingTime live only here. */
   readonly gains: GainSet;
+  /** The structure around the law; absent = the file's own controller. */
+  readonly frame?: ControllerFrame;
+}
+
+/** The frame id of an edit ('file' when it has none). */
+export function frameId(e: GainEdit): string {
+  return e.frame?.id ?? 'file';
+}
+
+/** The structure name an edit runs, for display. */
+export function namedOf(e: GainEdit): StructureName {
+  return e.frame?.named ?? e.structure;
 }
 
 export type ParamId = 'kc' | 'ti' | 'td' | 'kp' | 'ki' | 'kd' | 'n' | 'b' | 'c';
@@ -44,7 +78,14 @@ export type RunMode = 'instant' | 'live';
 export type Overlay =
   | { kind: 'none' }
   | { kind: 'caution' }
-  | { kind: 'help' }
+  /** `page` counts up with ↓; the overlay shows it modulo its page count. */
+  | { kind: 'help'; page: number }
+  /** The tuning rules' gain sets, filled in as they are computed. */
+  | { kind: 'suggest'; view: SuggestView | null; selected: number }
+  /** The optimiser: running (`outcome` null), then its result offered to apply. */
+  | { kind: 'optimize'; view: OptimizeView | null; outcome: OptimizeOutcome | null; cancelling: boolean }
+  /** The comparison view; `entries` null while it is computed. `selected` indexes `entries`. */
+  | { kind: 'compare'; entries: readonly CandidateEntry[] | null; selected: number; edited: number | null }
   /** A typed value; `placeholder` shows the present value, an empty entry keeps it. */
   | { kind: 'input'; target: 'param' | 'switch_time'; text: string; placeholder: string; error: string | null }
   | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string };
@@ -56,7 +97,15 @@ export type Effect =
   | { kind: 'setpoint_step'; sign: 1 | -1 }
   | { kind: 'disturbance_step'; sign: 1 | -1 }
   | { kind: 'manual'; on: boolean }
-  | { kind: 'restart_live' };
+  | { kind: 'restart_live' }
+  /** Start computing the rule suggestions for the current gain set; stop them. */
+  | { kind: 'suggest_start' }
+  | { kind: 'suggest_stop' }
+  /** Start the optimiser from the current gain set; stop it (the best so far is reported). */
+  | { kind: 'optimize_start' }
+  | { kind: 'optimize_cancel' }
+  /** Compute (or reuse) the comparison of the file's candidates. */
+  | { kind: 'compare_start' };
 
 export interface Message {
   text: string;
@@ -84,6 +133,10 @@ export interface ScreenState {
   readonly speedIndex: number;
   readonly paused: boolean;
   readonly manual: boolean;
+  /** The file has an uncertainty section (a robustness envelope can be drawn). */
+  readonly hasUncertainty: boolean;
+  /** Draw the robustness envelope on the trend. */
+  readonly envelope: boolean;
   readonly overlay: Overlay;
   readonly message: Message | null;
   readonly effects: readonly Effect[];
@@ -97,6 +150,8 @@ export interface InitOptions {
   /** Show the safety caution first (once per session). */
   caution: boolean;
   mode?: RunMode;
+  /** The file has an uncertainty section (default false). */
+  uncertainty?: boolean;
 }
 
 /** Cap on the undo history: a long session must not grow without bound. */
@@ -120,6 +175,8 @@ export function initialState(o: InitOptions): ScreenState {
     speedIndex: DEFAULT_SPEED,
     paused: false,
     manual: false,
+    hasUncertainty: o.uncertainty ?? false,
+    envelope: false,
     overlay: o.caution ? { kind: 'caution' } : { kind: 'none' },
     message: null,
     effects: [],
@@ -136,11 +193,12 @@ export function formParams(structure: ControllerStructure, form: PidForm): Param
   return names.filter((_, i) => i === 0 || (i === 1 && hasI) || (i === 2 && hasD));
 }
 
-/** Every editable parameter of a gain set, in display order. */
+/** Every editable parameter of a gain set, in display order (b and c only where the structure leaves them free). */
 export function paramList(e: GainEdit): ParamId[] {
   const hasD = e.structure === 'pd' || e.structure === 'pid';
   const list = formParams(e.structure, e.form);
   if (hasD) list.push('n');
+  if (e.frame?.fixedWeights === true) return list;
   list.push('b');
   if (hasD) list.push('c');
   return list;
@@ -269,7 +327,7 @@ export function withForm(e: GainEdit, form: PidForm, math: EditMath): GainEdit |
  * shown in does not count: a save writes the file's own form.
  */
 export function sameEdit(a: GainEdit, b: GainEdit): boolean {
-  if (a.structure !== b.structure) return false;
+  if (a.structure !== b.structure || frameId(a) !== frameId(b)) return false;
   const g = a.gains;
   const h = b.gains;
   return close(g.kc, h.kc) && close(g.ti, h.ti) && close(g.td, h.td) && g.n === h.n && g.b === h.b && g.c === h.c && g.antiWindup === h.antiWindup;
@@ -307,7 +365,15 @@ export type Action =
   | { type: 'save_failed'; text: string }
   /** The shell took the queued effects. */
   | { type: 'effects_taken'; count: number }
-  | { type: 'notify'; message: Message | null };
+  | { type: 'notify'; message: Message | null }
+  /** The suggestion list so far (ignored once the list is closed). */
+  | { type: 'suggest_progress'; view: SuggestView }
+  | { type: 'optimize_progress'; view: OptimizeView }
+  | { type: 'optimize_done'; outcome: OptimizeOutcome }
+  /** The comparison's candidates that ran; `edited` = the one the current gain set already is (or null). */
+  | { type: 'compare_ready'; entries: readonly CandidateEntry[]; edited: number | null }
+  /** A tuning aid could not run: its overlay closes and the reason is shown. */
+  | { type: 'aid_failed'; text: string };
 
 const FORMS: readonly PidForm[] = ['ideal', 'parallel', 'series'];
 const ANTI_WINDUP: readonly AntiWindup[] = ['none', 'clamp', 'back_calculation'];
@@ -321,6 +387,21 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
       return press(s, a.token, math);
     case 'dismiss':
       return s.overlay.kind === 'caution' || s.overlay.kind === 'help' ? { ...s, overlay: { kind: 'none' } } : s;
+    case 'suggest_progress':
+      if (s.overlay.kind !== 'suggest') return s;
+      return { ...s, overlay: { ...s.overlay, view: a.view, selected: Math.min(s.overlay.selected, Math.max(0, a.view.rows.length - 1)) } };
+    case 'optimize_progress':
+      return s.overlay.kind === 'optimize' && s.overlay.outcome === null ? { ...s, overlay: { ...s.overlay, view: a.view } } : s;
+    case 'optimize_done':
+      return s.overlay.kind === 'optimize' ? { ...s, overlay: { ...s.overlay, outcome: a.outcome, cancelling: false } } : s;
+    case 'compare_ready':
+      if (s.overlay.kind !== 'compare') return s;
+      if (a.entries.length === 0) return info({ ...s, overlay: { kind: 'none' } }, 'no candidate of the comparison could be run', 'warn');
+      return { ...s, overlay: { kind: 'compare', entries: a.entries, selected: a.edited ?? 0, edited: a.edited } };
+    case 'aid_failed':
+      return s.overlay.kind === 'suggest' || s.overlay.kind === 'optimize' || s.overlay.kind === 'compare'
+        ? { ...s, overlay: { kind: 'none' }, message: { text: a.text, tone: 'error' } }
+        : { ...s, message: { text: a.text, tone: 'error' } };
     case 'input_change':
       return s.overlay.kind === 'input' ? { ...s, overlay: { ...s.overlay, text: a.text, error: null } } : s;
     case 'input_cancel':
@@ -358,7 +439,12 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
  */
 function press(s: ScreenState, token: string, math: EditMath): ScreenState {
   const o = s.overlay;
-  if (o.kind === 'caution' || o.kind === 'help') return { ...s, overlay: { kind: 'none' } };
+  if (o.kind === 'help') {
+    // ↓ / PgDn turns the page (the overlay wraps it); any other key closes.
+    return token === 'down' || token === 'pgdn' ? { ...s, overlay: { kind: 'help', page: o.page + 1 } } : { ...s, overlay: { kind: 'none' } };
+  }
+  if (o.kind === 'caution') return { ...s, overlay: { kind: 'none' } };
+  if (o.kind === 'suggest' || o.kind === 'optimize' || o.kind === 'compare') return listKey(s, token);
   // The text field takes its own keys; only Esc is ours.
   if (o.kind === 'input') return token === 'esc' ? { ...s, overlay: { kind: 'none' } } : s;
   if (o.kind === 'confirm') {
@@ -373,7 +459,72 @@ function press(s: ScreenState, token: string, math: EditMath): ScreenState {
 function push(s: ScreenState, next: GainEdit, message: Message | null = null): ScreenState {
   const past = [...s.past, s.current];
   if (past.length > UNDO_LIMIT) past.shift();
-  return { ...s, current: next, past, future: [], message };
+  // A rehearsal switches gains inside one structure; another structure ends it.
+  const rehearse = s.rehearse && frameId(next) === frameId(s.baseline?.edit ?? s.file);
+  return { ...s, current: next, past, future: [], message, rehearse };
+}
+
+/** Why the current gain set cannot be edited here, or null when it can. */
+function readOnlyReason(e: GainEdit): string | null {
+  if (e.frame === undefined || e.frame.editable) return null;
+  return `the ${e.frame.named} gains come from its schedule table: read-only here (edit the table in the file)`;
+}
+
+/** Why the tuning aids (rules, optimiser, envelope) do not apply to the current gain set, or null. */
+function aidRefusal(e: GainEdit, what: string): string | null {
+  const f = e.frame;
+  if (f === undefined || !f.extended) return null;
+  return `${what} work on the plain PID law; this loop runs a ${f.named} structure around it (c compares structures)`;
+}
+
+/** Keys inside the suggestion list, the optimiser and the comparison view (keymap's LIST_KEYMAP). */
+function listKey(s: ScreenState, token: string): ScreenState {
+  const o = s.overlay;
+  const c = listCommandFor(token);
+  if (c === null) return s;
+  if (o.kind === 'suggest') {
+    const n = o.view?.rows.length ?? 0;
+    switch (c) {
+      case 'list_prev':
+        return n === 0 ? s : { ...s, overlay: { ...o, selected: (o.selected + n - 1) % n } };
+      case 'list_next':
+        return n === 0 ? s : { ...s, overlay: { ...o, selected: (o.selected + 1) % n } };
+      case 'list_choose': {
+        const row = o.view?.rows[o.selected];
+        if (row === undefined) return s;
+        const closed = effect({ ...s, overlay: { kind: 'none' } }, { kind: 'suggest_stop' });
+        return push(closed, row.edit, { text: `gain set of ${row.label} applied (u undoes)`, tone: 'info' });
+      }
+      case 'list_close':
+        return effect({ ...s, overlay: { kind: 'none' }, message: null }, { kind: 'suggest_stop' });
+    }
+  }
+  if (o.kind === 'optimize') {
+    if (o.outcome === null) {
+      if (c !== 'list_close' || o.cancelling) return s;
+      return effect({ ...s, overlay: { ...o, cancelling: true } }, { kind: 'optimize_cancel' });
+    }
+    if (c === 'list_close') return info({ ...s, overlay: { kind: 'none' } }, 'optimiser result not applied');
+    if (c !== 'list_choose') return s;
+    const edit = o.outcome.edit;
+    if (edit === null) return info({ ...s, overlay: { kind: 'none' } }, 'the optimiser found no gain set to apply', 'warn');
+    return push({ ...s, overlay: { kind: 'none' } }, edit, { text: 'optimised gain set applied (u undoes)', tone: 'info' });
+  }
+  if (o.kind === 'compare') {
+    const entries = o.entries;
+    if (c === 'list_close' || c === 'list_choose') {
+      const what = o.edited === null ? '' : `: editing '${entries?.[o.edited]?.name}'`;
+      return info({ ...s, overlay: { kind: 'none' } }, `comparison closed${what}`);
+    }
+    if (entries === null || entries.length === 0) return s;
+    const n = entries.length;
+    const next = c === 'list_prev' ? (o.selected + n - 1) % n : (o.selected + 1) % n;
+    const e = entries[next];
+    const moved: ScreenState = { ...s, overlay: { ...o, selected: next, edited: next } };
+    const ro = e.edit.frame !== undefined && !e.edit.frame.editable ? ' (read-only: schedule table)' : '';
+    return push(moved, e.edit, { text: `editing candidate '${e.name}' (${e.structure})${ro}; u goes back`, tone: 'info' });
+  }
+  return s;
 }
 
 function effect(s: ScreenState, e: Effect): ScreenState {
@@ -408,8 +559,23 @@ function nudge(s: ScreenState, sign: 1 | -1, size: number, math: EditMath): Scre
   return push(s, edited);
 }
 
+/** Commands that change the gain set (refused on a read-only one). */
+const EDITS: ReadonlySet<KeyCommand> = new Set<KeyCommand>([
+  'nudge_up_fine',
+  'nudge_down_fine',
+  'nudge_up_coarse',
+  'nudge_down_coarse',
+  'type_value',
+  'next_form',
+  'next_anti_windup',
+]);
+
 function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
   const n = paramList(s.current).length;
+  if (EDITS.has(c)) {
+    const ro = readOnlyReason(s.current);
+    if (ro !== null) return info(s, ro, 'warn');
+  }
   switch (c) {
     case 'select_prev':
       return { ...s, selected: (Math.min(s.selected, n - 1) + n - 1) % n };
@@ -461,6 +627,9 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
     case 'toggle_rehearse': {
       if (s.rehearse) return info({ ...s, rehearse: false }, 'rehearsal off');
       const baseline = s.baseline ?? { edit: s.file, label: 'file' as const };
+      if (frameId(baseline.edit) !== frameId(s.current)) {
+        return info(s, 'a rehearsal switches gains inside one structure; the baseline runs another (b keeps this one)', 'warn');
+      }
       return info(
         { ...s, rehearse: true, baseline },
         `rehearsal: baseline until ${formatPlain(s.switchAt)} s, then the new gains (t sets the time)`,
@@ -491,7 +660,9 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
     case 'restart_live':
       if (s.mode !== 'live') return info(s, 'restart applies to the live run (l)');
       return effect({ ...s, manual: false }, { kind: 'restart_live' });
-    case 'save':
+    case 'save': {
+      const why = saveRefusal(s);
+      if (why !== null) return info(s, why, 'warn');
       return {
         ...s,
         overlay: {
@@ -502,12 +673,44 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
             : `No changes since loading. Write the gain set into ${s.fileName} anyway?`,
         },
       };
+    }
     case 'help':
-      return { ...s, overlay: { kind: 'help' } };
+      return { ...s, overlay: { kind: 'help', page: 0 } };
+    case 'suggest': {
+      const why = aidRefusal(s.current, 'tuning rules') ?? readOnlyReason(s.current);
+      if (why !== null) return info(s, why, 'warn');
+      return effect({ ...s, overlay: { kind: 'suggest', view: null, selected: 0 } }, { kind: 'suggest_start' });
+    }
+    case 'optimize': {
+      const why = aidRefusal(s.current, 'the optimiser and the rules') ?? readOnlyReason(s.current);
+      if (why !== null) return info(s, why, 'warn');
+      return effect({ ...s, overlay: { kind: 'optimize', view: null, outcome: null, cancelling: false } }, { kind: 'optimize_start' });
+    }
+    case 'toggle_envelope': {
+      if (s.envelope) return info({ ...s, envelope: false }, 'robustness envelope off');
+      if (!s.hasUncertainty) return info(s, 'the file has no uncertainty section: there is no range to draw an envelope over', 'warn');
+      const why = aidRefusal(s.current, 'the envelope and the rules');
+      if (why !== null) return info(s, why, 'warn');
+      return info({ ...s, envelope: true }, 'robustness envelope on (the uncertainty: nominal, corners, a seeded sample)');
+    }
+    case 'compare':
+      return effect({ ...s, overlay: { kind: 'compare', entries: null, selected: 0, edited: null } }, { kind: 'compare_start' });
     case 'quit':
       if (!isDirty(s)) return effect(s, { kind: 'quit' });
       return { ...s, overlay: { kind: 'confirm', question: 'quit', text: 'There are unsaved changes. Quit without saving?' } };
   }
+}
+
+/** Why the current gain set cannot be written into the file, or null when it can. */
+export function saveRefusal(s: ScreenState): string | null {
+  const e = s.current;
+  if (frameId(e) !== frameId(s.file)) {
+    return `the edited set is candidate '${e.frame?.candidate ?? '?'}' (${namedOf(e)}): only the file's own controller is written (u goes back)`;
+  }
+  if (e.structure !== s.file.structure) {
+    return `the edited law is ${e.structure.toUpperCase()}, the file's ${s.file.structure.toUpperCase()}: set loop.controller.structure in the file first (u goes back)`;
+  }
+  return null;
 }
 
 function answer(s: ScreenState, yes: boolean): ScreenState {

@@ -14,6 +14,8 @@ export interface Theme {
   readonly band: string | undefined;
   readonly output: string | undefined;
   readonly limit: string | undefined;
+  /** The robustness envelope on the trend. */
+  readonly envelope: string | undefined;
   readonly ok: string | undefined;
   readonly bad: string | undefined;
   readonly warn: string | undefined;
@@ -28,6 +30,7 @@ const PALETTE = {
   band: 'red',
   output: 'greenBright',
   limit: 'red',
+  envelope: 'blue',
   ok: 'green',
   bad: 'redBright',
   warn: 'yellow',
@@ -45,6 +48,7 @@ export function makeTheme(color: boolean): Theme {
     band: undefined,
     output: undefined,
     limit: undefined,
+    envelope: undefined,
     ok: undefined,
     bad: undefined,
     warn: undefined,
@@ -85,4 +89,6 @@ export const GLYPHS = {
   band: ['┼', '┤', '╶', '╴', '-', ' ', ' ', ' ', ' ', ' '],
   output: ['┼', '┤', '╶', '╴', '─', '╰', '╭', '╮', '╯', '│'],
   limit: ['┼', '┤', '╶', '╴', '=', ' ', ' ', ' ', ' ', ' '],
+  // The envelope's edges as shaded cells, no verticals: a band, not a line.
+  envelope: ['┼', '┤', '╶', '╴', '░', ' ', ' ', ' ', ' ', ' '],
 } as const;

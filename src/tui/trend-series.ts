@@ -59,12 +59,36 @@ export interface TrendInput {
   /** Chart points (data columns + 1). */
   points: number;
   band: readonly BandLine[];
+  /** Robustness envelope of the output (lowest and highest over the uncertainty cases), drawn beneath all. */
+  envelope?: EnvelopeInput | null;
+}
+
+/** An output envelope sampled at instants `t` (the first `length` rows). */
+export interface EnvelopeInput {
+  t: ArrayLike<number>;
+  lo: ArrayLike<number>;
+  hi: ArrayLike<number>;
+  length: number;
+}
+
+/**
+ * The envelope's two edges on the chart's columns: the lowest value in each column of the lower
+ * edge, the highest of the upper edge. An edge at ±Infinity (a case that diverged) is drawn at the
+ * chart's border by the chart.
+ */
+export function envelopeSeries(env: EnvelopeInput, t0: number, t1: number, points: number): ChartSeries[] {
+  const lo = chartPoints(env.t, env.lo, env.length, t0, t1, points).lo;
+  const hi = chartPoints(env.t, env.hi, env.length, t0, t1, points).hi;
+  return [
+    { values: lo, tag: 'envelope', symbols: GLYPHS.envelope },
+    { values: hi, tag: 'envelope', symbols: GLYPHS.envelope },
+  ];
 }
 
 /** Chart series for the trend panel, bottom to top: band, baseline, setpoint, process value. */
 export function trendSeries(inp: TrendInput): ChartSeries[] {
   const { trace, baseline, t0, t1, points } = inp;
-  const out: ChartSeries[] = [];
+  const out: ChartSeries[] = inp.envelope ? envelopeSeries(inp.envelope, t0, t1, points) : [];
   const times = new Float64Array(points);
   for (let k = 0; k < points; k++) times[k] = points > 1 ? t0 + ((t1 - t0) * k) / (points - 1) : t0;
   // Lines of one kind that do not overlap in time share one series; overlapping ones get their own.

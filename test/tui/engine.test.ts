@@ -7,16 +7,21 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
+import { buildController } from '../../src/control/index.js';
+import { runTrial } from '../../src/sim/index.js';
+import { resolveController, structureMargins, StructureUnavailable, tuningContext } from '../../src/tune/index.js';
 import {
   defaultSwitchTime,
   editFromSpec,
   evaluate,
+  fileEdit,
   rehearsalTrial,
   screenTrial,
   setupLoop,
+  structureMarginsView,
 } from '../../src/tui/engine.js';
 import { LiveRun, stepSizes } from '../../src/tui/live-run.js';
-import { withParam } from '../../src/tui/state.js';
+import { paramList, withParam } from '../../src/tui/state.js';
 import { CORE_EDIT_MATH } from '../../src/tui/edit-math.js';
 
 const fixtures = join(import.meta.dirname, '..', 'fixtures', 'plants');
@@ -138,5 +143,147 @@ describe('tui live run', () => {
     const rate = surge.plant.actuator.rateLimit * surge.config.sampleTime;
     expect(Math.abs(after.u[after.length - 1] - uBefore)).toBeLessThanOrEqual(rate + 1e-12);
     expect(Math.abs(after.uc[after.length - 2] - uBefore)).toBeLessThan(0.01);
+  });
+});
+
+// ---------------------------------------------------------------- richer structures
+
+const repoPlants = join(import.meta.dirname, '..', '..', 'plants');
+const here = join(import.meta.dirname, 'fixtures');
+function load(dir: string, name: string): PlantSpec {
+  const text = readFileSync(join(dir, name), 'utf8');
+  const r = loadPlant(text, name);
+  if (r.plant === undefined) throw new Error(`${name} does not load: ${r.diagnostics[0]?.message}`);
+  return r.plant;
+}
+function inline(text: string): PlantSpec {
+  const r = loadPlant(text, 'inline.yaml');
+  if (r.plant === undefined) throw new Error(`inline plant does not load: ${r.diagnostics[0]?.message}`);
+  return r.plant;
+}
+
+/** The core's own run of a file's resolved controller, as `looprig run` does it (cli/commands/run.ts). */
+function coreRun(spec: PlantSpec) {
+  const ctx = tuningContext(spec);
+  const resolved = spec.loop.controller.extension === undefined ? spec.loop.controller : resolveController(ctx, spec.loop.controller).controller;
+  return runTrial(ctx.dynamics, buildController(resolved, spec.loop.sampleTime, ctx.dynamics), ctx.loop, ctx.trial);
+}
+
+function sameTrace(a: { length: number; t: Float64Array; y: Float64Array; u: Float64Array }, b: typeof a): void {
+  expect(a.length).toBe(b.length);
+  for (let i = 0; i < a.length; i++) {
+    if (a.t[i] !== b.t[i] || a.y[i] !== b.y[i] || a.u[i] !== b.u[i]) throw new Error(`row ${i} differs`);
+  }
+}
+
+describe('tui engine: a loop.controller with a richer structure', () => {
+  it('smith_pi on a FOPDT: opens, and the screen runs the predictor the core resolves, sample for sample', () => {
+    const spec = load(here, 'smith-fopdt.yaml');
+    const setup = setupLoop(spec);
+    const edit = fileEdit(setup);
+    expect(edit.frame).toMatchObject({ id: 'file', named: 'smith_pi', editable: true, extended: true, fixedWeights: false });
+    // The model the file leaves open is the plant's own (first order, no sensor lag): k 2, tau 20 s, dead time 30 s.
+    expect(setup.basis[0]).toMatch(/internal model: k 2, tau 20 s, dead time 30 s/);
+    const screen = evaluate(setup, edit);
+    expect(screen.result.status).toBe('ok');
+    sameTrace(screen.result.trace, coreRun(spec).trace);
+    // The predictor removes the dead time from the loop: the plain PI with the same gains overshoots more.
+    const plainSetup = setupLoop(inline(readFileSync(join(here, 'smith-fopdt.yaml'), 'utf8').replace('smith_pi', 'pi')));
+    const plain = evaluate(plainSetup, fileEdit(plainSetup));
+    expect(fileEdit(plainSetup).gains).toEqual(edit.gains);
+    expect(screen.metrics.steps[0].overshootPct).toBeLessThan(plain.metrics.steps[0].overshootPct);
+  });
+
+  it("smith_pi: the margins are the structure's (tune's structureMargins, loop broken at the actuator)", () => {
+    const setup = setupLoop(load(here, 'smith-fopdt.yaml'));
+    const edit = fileEdit(setup);
+    const m = structureMarginsView(setup, edit);
+    const ref = structureMargins(setup.context(), setup.controller)!;
+    expect(m).toEqual({ gainMargin: ref.gainMargin, phaseMarginDeg: ref.phaseMarginDeg, maxSensitivity: ref.maxSensitivity, closedLoopStable: null });
+    // A plain law's margins are the PID loop's: the notice source computes them.
+    const surge = setupLoop(plant('surge-tank.yaml'));
+    expect(structureMarginsView(surge, fileEdit(surge))).toBeUndefined();
+  });
+
+  it('an edited gain inside the structure reaches the predictor (a different trial than the file gains)', () => {
+    const setup = setupLoop(load(here, 'smith-fopdt.yaml'));
+    const edit = fileEdit(setup);
+    const raised = withParam(edit, 'kc', 1.2, CORE_EDIT_MATH);
+    if ('error' in raised) throw new Error(raised.error);
+    expect(raised.frame).toBe(edit.frame);
+    expect(evaluate(setup, raised).metrics.overall.iae).not.toBe(evaluate(setup, edit).metrics.overall.iae);
+  });
+
+  it('the jacketed reactor (plain PI, a compare list, a measured jacket temperature) opens and runs as looprig run', () => {
+    const spec = load(repoPlants, 'jacketed-reactor-temperature.yaml');
+    const setup = setupLoop(spec);
+    expect(fileEdit(setup).frame).toMatchObject({ named: 'pi', extended: false });
+    sameTrace(evaluate(setup, fileEdit(setup)).result.trace, coreRun(spec).trace);
+  });
+
+  it('feedforward from a model disturbance: the law gets the plant disturbance names (it threw without them)', () => {
+    const spec = inline(`name: ff
+model:
+  type: ode
+  states: { x: { initial: 0 } }
+  input: u
+  disturbances: { load: 0 }
+  derivatives: { x: (u + load - x) / 10 }
+  output: x
+loop:
+  sample_time: 0.5 s
+  controller: { structure: feedforward, kc: 2, ti: 10 s, feedforward: { disturbance: load } }
+  trial: { duration: 100 s, initial_setpoint: 0, initial_output: 0, events: [{ at: 5 s, setpoint: 1 }, { at: 50 s, disturbance: { load: 0.5 } }] }
+`);
+    const setup = setupLoop(spec);
+    // The static gain from the model: -Gd(0)/Gu(0) = -1 (both paths have gain 1; the model's
+    // linearisation is numerical, hence 6 digits).
+    const ext = setup.controller.extension;
+    expect(ext?.kind).toBe('feedforward');
+    expect(ext?.kind === 'feedforward' ? ext.gain : NaN).toBeCloseTo(-1, 6);
+    sameTrace(evaluate(setup, fileEdit(setup)).result.trace, coreRun(spec).trace);
+  });
+
+  it('a gain schedule: runs its table; the gain panel is read-only (the table holds the gains)', () => {
+    const spec = inline(`name: sched
+model: { type: first_order, gain: 2, time_constant: 20 s, delay: 2 s }
+loop:
+  sample_time: 0.5 s
+  controller:
+    structure: scheduled
+    kc: 0.5
+    ti: 20 s
+    schedule: { variable: setpoint, table: [{ at: 0, kc: 0.5, ti: 20 s }, { at: 2, kc: 1, ti: 20 s }] }
+  trial: { duration: 100 s, initial_setpoint: 0, events: [{ at: 5 s, setpoint: 1 }] }
+`);
+    const setup = setupLoop(spec);
+    const edit = fileEdit(setup);
+    expect(edit.frame).toMatchObject({ named: 'scheduled', editable: false });
+    sameTrace(evaluate(setup, edit).result.trace, coreRun(spec).trace);
+  });
+
+  it('i_pd: b and c are fixed by the name, so they are not offered for editing', () => {
+    const spec = inline(`name: ipd
+model: { type: first_order, gain: 2, time_constant: 20 s, delay: 2 s }
+loop:
+  sample_time: 0.5 s
+  controller: { structure: i_pd, kc: 0.5, ti: 20 s, td: 1 s }
+  trial: { duration: 60 s, initial_setpoint: 0, events: [{ at: 5 s, setpoint: 1 }] }
+`);
+    const edit = fileEdit(setupLoop(spec));
+    expect(edit.frame).toMatchObject({ named: 'i_pd', fixedWeights: true });
+    expect(edit.gains).toMatchObject({ b: 0, c: 0 });
+    expect(paramList(edit)).toEqual(['kc', 'ti', 'td', 'n']);
+  });
+
+  it('a structure the plant cannot support: setupLoop refuses with the reason (as looprig run does)', () => {
+    const spec = inline(`name: Smith on an integrator
+model: { type: integrating, gain: 0.1, delay: 5 s }
+loop:
+  sample_time: 0.5 s
+  controller: { structure: smith_pi, kc: 1, ti: 20 s }
+  trial: { duration: 100 s, events: [{ at: 5 s, setpoint: 1 }] }
+`);
+    expect(() => setupLoop(spec)).toThrow(StructureUnavailable);
   });
 });

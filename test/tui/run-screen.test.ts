@@ -59,3 +59,24 @@ describe('tui runScreen refusals', () => {
     expect(err.text()).toContain("use 'looprig run FILE'");
   });
 });
+
+describe('tui runScreen: a structure the plant cannot support', () => {
+  it('exit 2 with the reason from the tune layer, no stack trace, the terminal never taken', async () => {
+    const text = [
+      'name: Smith on an integrator',
+      'model: { type: integrating, gain: 0.1, delay: 5 s }',
+      'loop:',
+      '  sample_time: 0.5 s',
+      '  controller: { structure: smith_pi, kc: 1, ti: 20 s }',
+      '  trial: { duration: 100 s, events: [{ at: 5 s, setpoint: 1 }] }',
+      '',
+    ].join('\n');
+    const err = sink();
+    const out = sink();
+    const code = await runScreen('s.yaml', { io: { readText: () => text, writeText: () => undefined }, stderr: err.stream, stdout: out.stream });
+    expect(code).toBe(2);
+    expect(err.text()).toMatch(/^s\.yaml: cannot set the loop up: the Smith predictor .*integrating plant/);
+    expect(err.text()).not.toMatch(/\n\s+at /);
+    expect(out.text()).toBe('');
+  });
+});

@@ -7,7 +7,7 @@ import { Box } from 'ink';
 import type { CompareResult } from '../../tune/index.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from '../chart.js';
 import { CANDIDATE_COLORS, compareSeries, compareTable, runnable } from '../compare-view.js';
-import type { Theme } from '../theme.js';
+import { makeTheme, type Theme } from '../theme.js';
 import { ChartPanel } from './ChartPanel.js';
 import { Line, type Piece } from './line.js';
 
@@ -30,6 +30,33 @@ export function compareLegend(result: CompareResult, selected: number, theme: Th
   return pieces;
 }
 
+const TITLE = 'compare: output';
+
+/**
+ * The legend laid out for a width: [] when it fits beside the title in the heading, else its
+ * entries on lines of their own (wrapped between entries: no name is cut).
+ */
+export function legendRows(legend: readonly Piece[], width: number): Piece[][] {
+  const total = legend.reduce((n, p) => n + p.text.length, 0);
+  if (TITLE.length + 4 + total <= width) return [];
+  const rows: Piece[][] = [[]];
+  let used = 0;
+  for (const piece of legend) {
+    if (used > 0 && used + piece.text.length > width) {
+      rows.push([]);
+      used = 0;
+    }
+    rows[rows.length - 1].push(piece);
+    used += piece.text.length;
+  }
+  return rows;
+}
+
+/** Lines the legend takes above the chart heading at this width (see `legendRows`). */
+export function compareLegendLines(result: CompareResult, selected: number, width: number): number {
+  return legendRows(compareLegend(result, selected, makeTheme(false)), width).length;
+}
+
 export function ComparePanel(p: ComparePanelProps) {
   const ran = runnable(p.result);
   const trace = ran.length > 0 ? ran[Math.min(p.selected, ran.length - 1)].result!.trace : null;
@@ -40,13 +67,20 @@ export function ComparePanel(p: ComparePanelProps) {
   const grid = renderChart(series, { width: p.width, height: p.chartHeight, labelWidth: LABEL_WIDTH });
   const colors: Record<string, string | undefined> = { sp: p.theme.sp };
   CANDIDATE_COLORS.forEach((c, i) => (colors[`c${i}`] = p.theme.color ? c : undefined));
-  const table = compareTable(p.result);
+  // Two characters of each table line are the selection marker.
+  const table = compareTable(p.result, p.width - 2);
   const selName = ran[Math.min(p.selected, Math.max(0, ran.length - 1))]?.name;
+  const legend = compareLegend(p.result, p.selected, p.theme);
+  // A legend too long for the heading gets its own line (the names must not be cut off).
+  const own = legendRows(legend, p.width);
   return (
     <Box flexDirection="column" width={p.width}>
+      {own.map((pieces, i) => (
+        <Line key={`legend${i}`} pieces={pieces} width={p.width} color={p.theme.color} />
+      ))}
       <ChartPanel
-        title="compare: output"
-        legend={compareLegend(p.result, p.selected, p.theme)}
+        title={TITLE}
+        legend={own.length > 0 ? [] : legend}
         grid={grid}
         t0={t0}
         t1={t1}

@@ -3,7 +3,7 @@
  * one marked ('>' always, highlighted too when colour is on), beside the baseline's value.
  */
 import { Box } from 'ink';
-import { paramInfo, paramList, paramValue, type GainEdit } from '../state.js';
+import { namedOf, paramInfo, paramList, paramValue, type GainEdit } from '../state.js';
 import type { Theme } from '../theme.js';
 import { Line, fit, type Piece } from './line.js';
 
@@ -27,22 +27,54 @@ export function showValue(v: number): string {
   return String(Number(v.toPrecision(4)));
 }
 
+/** The edit's frame notes shown under the heading: candidate, read-only, fixed weights. */
+export function frameNotes(e: GainEdit): string[] {
+  const f = e.frame;
+  if (f === undefined) return [];
+  const out: string[] = [];
+  if (f.candidate !== null) out.push(`candidate: ${f.candidate}`);
+  if (!f.editable) out.push('read-only: gains from its schedule table');
+  if (f.fixedWeights) out.push(`b ${showValue(e.gains.b)}, c ${showValue(e.gains.c)}: fixed by ${f.named}`);
+  return out;
+}
+
+/** Lines the panel needs for an edit: heading, frame notes, parameters. */
+export function gainPanelLines(e: GainEdit): number {
+  return 1 + frameNotes(e).length + paramList(e).length;
+}
+
+/** A gain set in its form as one short text, e.g. "Kc 0.068  Ti 250 s". */
+export function gainsText(e: GainEdit): string {
+  const parts: string[] = [];
+  for (const id of paramList(e)) {
+    if (id === 'n' || id === 'b' || id === 'c') continue;
+    const info = paramInfo(id, e.form);
+    parts.push(`${info.symbol} ${showValue(paramValue(e, id))}${info.unit === '' ? '' : ` ${info.unit}`}`);
+  }
+  return parts.join('  ');
+}
+
 export function gainLines(p: GainsProps): Piece[][] {
   const t = p.theme;
   const e = p.edit;
   const lines: Piece[][] = [
     [
-      { text: `${e.structure.toUpperCase()} ${e.form}`, bold: true },
+      { text: `${namedOf(e).toUpperCase()} ${e.form}`, bold: true },
       { text: `  anti-windup ${AW_WORDS[e.gains.antiWindup]}`, color: t.dim },
     ],
   ];
+  const notes = frameNotes(e);
+  for (const n of notes) lines.push([{ text: `  ${n}`, color: e.frame?.editable === false ? t.warn : t.dim }]);
+  const head = lines.length;
   const list = paramList(e);
   const sel = Math.min(p.selected, list.length - 1);
   list.forEach((id, i) => {
     const info = paramInfo(id, e.form);
     const value = paramValue(e, id);
     const mine = i === sel;
-    const base = p.baseline !== null && p.baseline.form === e.form ? paramValue(p.baseline, id) : null;
+    // The baseline may run another structure (a rule's PID over a PI): it has no value for every term.
+    const bv = p.baseline !== null && p.baseline.form === e.form ? paramValue(p.baseline, id) : undefined;
+    const base = typeof bv === 'number' ? bv : null;
     const text = `${mine ? '>' : ' '} ${fit(info.symbol, 4)}${fit(showValue(value), 9)}${fit(info.unit, 4)}`;
     const pieces: Piece[] = [{ text, inverse: mine && t.color, bold: mine }];
     if (base !== null) pieces.push({ text: ` base ${showValue(base)}`, color: t.baseline });
@@ -53,10 +85,12 @@ export function gainLines(p: GainsProps): Piece[][] {
     lines.push([{ text: `  (baseline is in ${p.baseline.form} form)`, color: t.dim }]);
   }
   if (lines.length <= p.rows) return lines;
-  // Too few rows: keep the heading line and scroll the parameters so the selected one shows.
-  const room = Math.max(1, p.rows - 1);
+  // Too few rows: keep the heading (and the frame notes, when they fit) and scroll the parameters
+  // so the selected one shows.
+  const keep = p.rows - head >= 1 ? head : 1;
+  const room = Math.max(1, p.rows - keep);
   const first = Math.min(Math.max(0, sel - room + 1), list.length - room);
-  return [lines[0], ...lines.slice(1 + Math.max(0, first), 1 + Math.max(0, first) + room)].slice(0, p.rows);
+  return [...lines.slice(0, keep), ...lines.slice(head + Math.max(0, first), head + Math.max(0, first) + room)].slice(0, p.rows);
 }
 
 export function GainsPanel(p: GainsProps) {

@@ -1,8 +1,9 @@
 /**
- * The key-help overlay, printed from the one keymap table (two columns when there is room).
+ * The key-help overlay, printed from the keymap tables (two columns when there is room, pages
+ * when even two columns do not hold it: ↓ turns the page).
  */
 import { Box } from 'ink';
-import { helpLines, PROMPT_KEYS } from '../keymap.js';
+import { helpLines, listHelpLines, PROMPT_KEYS } from '../keymap.js';
 import type { Theme } from '../theme.js';
 import { Line, fit, type Piece } from './line.js';
 
@@ -13,26 +14,39 @@ export function helpPieceLines(theme: Theme): Piece[][] {
     out.push([{ text: g.title, color: theme.heading, bold: true }]);
     for (const r of g.rows) out.push([{ text: fit(r.keys, keyW), color: theme.sp, bold: true }, { text: ' ' + r.help }]);
   }
+  out.push([{ text: 'In a list or view (p, O, c)', color: theme.heading, bold: true }]);
+  for (const r of listHelpLines()) out.push([{ text: fit(r.keys, keyW), color: theme.sp, bold: true }, { text: ' ' + r.help }]);
   out.push([{ text: 'In a question or a typed value', color: theme.heading, bold: true }]);
   for (const r of PROMPT_KEYS) out.push([{ text: fit(r.keys, keyW), color: theme.sp, bold: true }, { text: ' ' + r.help }]);
   return out;
 }
 
-export function HelpOverlay(p: { width: number; height: number; theme: Theme }) {
+/** How many pages the help takes at this size (one or two columns per page). */
+export function helpPages(width: number, height: number, lines: number): { pages: number; perColumn: number; twoCols: boolean } {
+  const room = Math.max(1, height - 1);
+  const twoCols = lines > room && width >= 70;
+  const perPage = twoCols ? 2 * room : room;
+  return { pages: Math.max(1, Math.ceil(lines / perPage)), perColumn: room, twoCols };
+}
+
+export function HelpOverlay(p: { width: number; height: number; theme: Theme; page?: number }) {
   const all = helpPieceLines(p.theme);
-  const footer: Piece[] = [{ text: 'any key closes this help', color: p.theme.dim }];
-  const room = p.height - 1;
-  const twoCols = all.length > room && p.width >= 70;
+  const { pages, perColumn: room, twoCols } = helpPages(p.width, p.height, all.length);
+  const page = (p.page ?? 0) % pages;
   const colW = twoCols ? Math.floor((p.width - 1) / 2) : p.width;
-  const left = twoCols ? all.slice(0, Math.ceil(all.length / 2)) : all;
-  const right = twoCols ? all.slice(Math.ceil(all.length / 2)) : [];
+  const perPage = twoCols ? 2 * room : room;
+  const shown = all.slice(page * perPage, (page + 1) * perPage);
+  const left = twoCols ? shown.slice(0, room) : shown;
+  const right = twoCols ? shown.slice(room) : [];
   const rows: Piece[][] = [];
   for (let i = 0; i < room; i++) {
     const l = left[i] ?? [];
     const r = right[i] ?? [];
     rows.push(twoCols ? [...padTo(l, colW), { text: ' ' }, ...r] : l);
   }
-  if (!twoCols && all.length > room) rows[room - 1] = [{ text: `… ${all.length - room + 1} more lines: enlarge the terminal`, color: p.theme.warn }];
+  const footer: Piece[] = [
+    { text: pages > 1 ? `page ${page + 1}/${pages}: ↓ next page, any other key closes this help` : 'any key closes this help', color: p.theme.dim },
+  ];
   rows.push(footer);
   return (
     <Box flexDirection="column" width={p.width}>

@@ -1,0 +1,217 @@
+/**
+ * tune's optimiser run in slices, so the screen keeps answering keys (Esc stops it) while it
+ * works. `optimizeGains` is one synchronous call with an evaluation budget and a start point, so
+ * the run here is a chain of short calls: each slice gets a small evaluation budget and starts
+ * from the best gain set found so far. Before the first slice the starting gain set is chosen as
+ * optimize.ts chooses it (the best rule of the structure on the same cost among those meeting the
+ * Ms target, else the most robust rule, else the gains being edited), the rules being run one
+ * slice at a time as well (SuggestJob).
+ *
+ * What slicing changes: every slice rebuilds the simplex around the best point (a restart, which
+ * the Nelder-Mead code does by itself after each convergence). Slices are cut by evaluation
+ * count, not by time, so the result is the same on any machine; it can differ from one
+ * uninterrupted `looprig optimize` run, and the result says so. The search ends when the budget
+ * is used, when a slice converges without improving the best cost, or on cancel.
+ */
+import type { Margins } from '../analysis/index.js';
+import type { GainSet } from '../model/types.js';
+import { DEFAULT_COST, optimizeGains, TUNING_RULES, type GainEvaluation, type OptimizeProgress } from '../tune/index.js';
+import { editWithGains, plantFor, type LoopSetup } from './engine.js';
+import type { GainEdit } from './state.js';
+import { SuggestJob } from './suggest-job.js';
+import type { OptimizeOutcome, OptimizeView } from './tuning-views.js';
+
+/** Options of the sliced run. */
+export interface OptimizeJobOptions {
+  /** Upper bound on Ms (default the file's max_sensitivity requirement, else 1.6 as `looprig optimize`). */
+  msTarget?: number;
+  /** Cost evaluations over all slices (default 300, as `looprig optimize`). */
+  maxEvaluations?: number;
+  /** Evaluations per slice (default 30: a few tens of ms on the bundled plants). */
+  sliceEvaluations?: number;
+  /** Wall-clock guard of one slice, ms (default 250); hitting it is reported (the result then depends on speed). */
+  sliceCapMs?: number;
+}
+
+/** Any feasible cost is below this (the optimiser's own rule, optimize.ts). */
+const INFEASIBLE = 1e15;
+
+function feasible(m: Margins | null, msTarget: number): boolean {
+  return m === null || (m.closedLoopStable !== false && m.maxSensitivity <= msTarget);
+}
+
+/** The optimiser's ordering of gain sets: feasible ones by cost, then infeasible ones by Ms. */
+function score(e: GainEvaluation, msTarget: number): number {
+  if (feasible(e.margins, msTarget)) return e.cost;
+  return INFEASIBLE + (e.margins!.closedLoopStable === false ? 1e6 : e.margins!.maxSensitivity);
+}
+
+export class OptimizeJob {
+  readonly structure: 'pi' | 'pid';
+  readonly msTarget: number;
+  readonly maxEvaluations: number;
+  private readonly slice: number;
+  private readonly capMs: number;
+  private readonly rules: SuggestJob;
+  private phase: 'start' | 'search' | 'done' = 'start';
+  private start: GainSet | null = null;
+  private startLabel: string | null = null;
+  private startCost = NaN;
+  private best: GainEvaluation | null = null;
+  private bestScore = Infinity;
+  private evaluations = 0;
+  private slices = 0;
+  /** Within the running slice (progress callback). */
+  private sliceEvaluations = 0;
+  private sliceBest = Infinity;
+  private stoppedBy: OptimizeOutcome['stoppedBy'] = 'evaluations';
+  private cancelled = false;
+  private readonly notes: string[] = [];
+
+  constructor(
+    private readonly setup: LoopSetup,
+    readonly base: GainEdit,
+    options: OptimizeJobOptions = {},
+  ) {
+    this.structure = base.structure === 'pid' || base.structure === 'pd' ? 'pid' : 'pi';
+    this.msTarget = options.msTarget ?? setup.plant.loop.requirements.maxSensitivity ?? 1.6;
+    this.maxEvaluations = options.maxEvaluations ?? 300;
+    this.slice = options.sliceEvaluations ?? 30;
+    this.capMs = options.sliceCapMs ?? 250;
+    this.rules = new SuggestJob(
+      setup,
+      base,
+      TUNING_RULES.filter((r) => r.structure === this.structure).map((r) => r.id),
+    );
+  }
+
+  get finished(): boolean {
+    return this.phase === 'done';
+  }
+
+  /** Stop at the next evaluation; the best so far is the result. */
+  cancel(): void {
+    this.cancelled = true;
+  }
+
+  /**
+   * One slice of work: rules for the start until `budgetMs` is used, or one optimiser slice.
+   * @returns true when the run is over (see `outcome`).
+   */
+  step(budgetMs: number): boolean {
+    if (this.phase === 'done') return true;
+    if (this.cancelled) return this.finish('cancelled');
+    if (this.phase === 'start') {
+      if (this.rules.step(budgetMs)) this.chooseStart();
+      return false;
+    }
+    return this.searchSlice();
+  }
+
+  private chooseStart(): void {
+    const ms = this.msTarget;
+    const candidates = this.rules.suggestions;
+    const ok = candidates.filter((x) => feasible(x.evaluation.margins, ms) && Number.isFinite(x.evaluation.cost));
+    ok.sort((a, b) => a.evaluation.cost - b.evaluation.cost);
+    if (ok.length > 0) {
+      this.start = ok[0].gains;
+      this.startLabel = ok[0].rule.label;
+    } else {
+      const any = candidates.filter((x) => x.evaluation.margins !== null || Number.isFinite(x.evaluation.cost));
+      any.sort((a, b) => (a.evaluation.margins?.maxSensitivity ?? Infinity) - (b.evaluation.margins?.maxSensitivity ?? Infinity));
+      if (any.length > 0) {
+        this.start = any[0].gains;
+        this.startLabel = any[0].rule.label;
+        this.notes.push(`no ${this.structure.toUpperCase()} rule meets Ms <= ${ms}: started from the most robust (${any[0].rule.label})`);
+      } else {
+        this.start = this.base.gains;
+        this.notes.push(`no ${this.structure.toUpperCase()} rule applies to this plant: started from the edited gains`);
+      }
+    }
+    this.phase = 'search';
+  }
+
+  private searchSlice(): boolean {
+    const spec = plantFor(this.setup, this.base);
+    const budget = Math.min(this.slice, this.maxEvaluations - this.evaluations);
+    const from = this.best?.gains ?? this.start!;
+    this.sliceEvaluations = 0;
+    this.sliceBest = Infinity;
+    const r = optimizeGains(
+      spec,
+      { structure: this.structure, cost: DEFAULT_COST, msTarget: this.msTarget, maxEvaluations: budget, timeBudgetMs: this.capMs, start: from },
+      (p: OptimizeProgress) => {
+        this.sliceEvaluations = p.evaluations;
+        this.sliceBest = p.bestCost;
+      },
+      () => this.cancelled,
+    );
+    this.slices++;
+    this.evaluations += r.evaluations;
+    this.sliceEvaluations = 0;
+    if (this.slices === 1) this.startCost = r.startCost;
+    const s = score(r.best, this.msTarget);
+    const improved = this.best === null || s < this.bestScore - 1e-9 * Math.abs(this.bestScore);
+    if (improved) {
+      this.best = r.best;
+      this.bestScore = s;
+    }
+    if (r.stoppedBy === 'time' && !this.notes.some((n) => n.startsWith('a slice'))) {
+      this.notes.push(`a slice hit its ${this.capMs} ms guard: the result depends on this machine's speed`);
+    }
+    if (r.stoppedBy === 'cancelled') return this.finish('cancelled');
+    if (this.evaluations >= this.maxEvaluations) return this.finish('evaluations');
+    if (r.stoppedBy === 'converged' && !improved) return this.finish('converged');
+    // An evaluation budget left unused by a converged slice that still improved: go on from there.
+    return false;
+  }
+
+  private finish(why: OptimizeOutcome['stoppedBy']): boolean {
+    this.stoppedBy = why;
+    this.phase = 'done';
+    return true;
+  }
+
+  view(): OptimizeView {
+    const bestCost = Math.min(this.best !== null && feasible(this.best.margins, this.msTarget) ? this.best.cost : Infinity, this.sliceBest);
+    return {
+      phase: this.phase === 'start' ? 'start' : 'search',
+      rulesDone: this.rules.view().done,
+      rulesTotal: this.rules.view().total,
+      evaluations: this.evaluations + this.sliceEvaluations,
+      maxEvaluations: this.maxEvaluations,
+      bestCost,
+      startCost: this.startCost,
+      startLabel: this.startLabel,
+      costLabel: DEFAULT_COST.kind.toUpperCase(),
+      msTarget: this.msTarget,
+      structure: this.structure,
+      slices: this.slices,
+    };
+  }
+
+  /** The result so far (final once `finished`). */
+  outcome(): OptimizeOutcome {
+    const b = this.best;
+    const notes = [...this.notes, 'run in slices from the best point so far: figures can differ from one looprig optimize run'];
+    if (b !== null && !feasible(b.margins, this.msTarget)) notes.unshift(`no gain set found that meets Ms <= ${this.msTarget}`);
+    const runs = b !== null && Number.isFinite(b.cost) && !b.flags.some((f) => f.code === 'DIVERGED' || f.code === 'UNSTABLE_LOOP');
+    const first = b?.metrics.firstStep ?? null;
+    const m = b?.margins ?? null;
+    return {
+      edit: b !== null && runs ? editWithGains(b.gains, this.structure, this.base.form, this.base.frame) : null,
+      cost: b?.cost ?? NaN,
+      startCost: this.startCost,
+      startLabel: this.startLabel,
+      evaluations: this.evaluations,
+      slices: this.slices,
+      stoppedBy: this.stoppedBy,
+      overshootPct: first === null ? NaN : first.overshootPct,
+      settlingTime: first === null ? NaN : Number.isNaN(first.settlingTime) ? Infinity : first.settlingTime,
+      ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+      gm: m === null ? NaN : m.gainMargin,
+      flags: b === null ? [] : b.flags.map((f) => f.message),
+      notes,
+    };
+  }
+}

@@ -1,0 +1,143 @@
+/**
+ * The tuning-rule suggestions: one row per rule with its gains (ideal form) and what the full
+ * simulation measured, the selected row marked '>' and detailed on its own line (gains in the
+ * edit's form, flags). Rules that start from the ultimate point are marked '~' and the relay /
+ * oscillation caution is shown whenever such a row is listed.
+ */
+import { Box } from 'ink';
+import { RELAY_CAUTION } from '../../tune/index.js';
+import type { Theme } from '../theme.js';
+import type { SuggestView } from '../tuning-views.js';
+import { gainsText } from './GainsPanel.js';
+import { Heading } from './Heading.js';
+import { Line, fit, type Piece } from './line.js';
+
+/** A figure in at most `digits` significant digits; '-' for NaN. */
+export function fig(x: number, digits = 3): string {
+  if (Number.isNaN(x)) return '-';
+  if (!Number.isFinite(x)) return x > 0 ? '∞' : '-∞';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a >= 1e5 || a < 1e-3) return x.toExponential(digits - 1);
+  return String(Number(x.toPrecision(digits)));
+}
+
+/** Word-wrap text to `width` columns. */
+export function wrap(text: string, width: number): string[] {
+  const out: string[] = [];
+  let line = '';
+  for (const word of text.split(/\s+/)) {
+    if (word === '') continue;
+    if (line === '') line = word;
+    else if (line.length + 1 + word.length <= width) line += ' ' + word;
+    else {
+      out.push(line);
+      line = word;
+    }
+    while (line.length > width) {
+      out.push(line.slice(0, width));
+      line = line.slice(width);
+    }
+  }
+  if (line !== '') out.push(line);
+  return out;
+}
+
+// Widths that fit 80 columns with the two marker columns (the longest rule label is 17).
+const COLS = [
+  { head: 'rule', w: 19 },
+  { head: 'kc', w: 6 },
+  { head: 'ti', w: 7 },
+  { head: 'td', w: 7 },
+  { head: 'oversh.', w: 8 },
+  { head: 'settle', w: 7 },
+  { head: 'IAE', w: 6 },
+  { head: 'Ms', w: 5 },
+  { head: 'GM', w: 4 },
+] as const;
+
+function cells(values: readonly string[]): string {
+  return values.map((v, i) => fit(v, COLS[i].w)).join(' ');
+}
+
+/** The table's lines as text: header, then one line per row ('>' marks the selected one, '!' a flagged one). */
+export function suggestTableLines(view: SuggestView, selected: number): string[] {
+  const out = [`  ${cells(COLS.map((c) => c.head))}`];
+  view.rows.forEach((r, i) => {
+    const g = r.edit.gains;
+    const label = `${r.label}${r.oscillation ? ' ~' : ''}`;
+    const line = cells([
+      label,
+      fig(g.kc),
+      Number.isFinite(g.ti) ? `${fig(g.ti)} s` : '-',
+      g.td > 0 ? `${fig(g.td)} s` : '-',
+      r.diverged ? 'diverged' : Number.isNaN(r.overshootPct) ? '-' : `${fig(r.overshootPct)} %`,
+      r.diverged ? '' : Number.isNaN(r.settlingTime) ? '-' : Number.isFinite(r.settlingTime) ? `${fig(r.settlingTime)} s` : 'never',
+      r.diverged ? '' : fig(r.iae),
+      r.ms === Infinity ? 'unst.' : fig(r.ms),
+      fig(r.gm),
+    ]);
+    out.push(`${i === selected ? '>' : ' '}${r.flags.length > 0 ? '!' : ' '}${line}`);
+  });
+  return out;
+}
+
+export interface SuggestPanelProps {
+  view: SuggestView | null;
+  selected: number;
+  width: number;
+  height: number;
+  theme: Theme;
+}
+
+export function SuggestPanel(p: SuggestPanelProps) {
+  const t = p.theme;
+  const v = p.view;
+  const rows: Piece[][] = [];
+  const progress = v === null ? 'computing…' : v.finished ? `${v.rows.length} rules` : `computing… ${v.done}/${v.total}`;
+  const lines = v === null ? [] : suggestTableLines(v, p.selected);
+  const caution = v !== null && v.rows.some((r) => r.oscillation) ? wrap(`~ ultimate point. ${RELAY_CAUTION}`, p.width) : [];
+  const sel = v?.rows[p.selected];
+  const detail: Piece[][] = [];
+  if (sel !== undefined) {
+    detail.push([
+      { text: `${sel.label}: `, bold: true },
+      { text: gainsText(sel.edit) },
+      { text: sel.flags.length > 0 ? `  ! ${sel.flags.join(', ')}` : '', color: t.warn },
+    ]);
+  }
+  if (v !== null && v.finished && v.skipped.length > 0) {
+    detail.push([{ text: `not applicable: ${v.skipped.map((k) => `${k.label} (${k.reason})`).join('; ')}`, color: t.dim }]);
+  }
+  // Under the heading: the table header, the rows, the detail lines, the caution. When lines are
+  // short the detail goes first; the caution stays as long as any row is shown, because it is
+  // about those rows.
+  const avail = Math.max(0, p.height - 1);
+  let tail: Piece[][] = [...detail, ...caution.map((c): Piece[] => [{ text: c, color: t.warn }])];
+  if (2 + tail.length > avail) tail = tail.slice(detail.length);
+  // Table rows that fit below the header; the list scrolls so the selected row shows.
+  const room = Math.max(0, avail - 1 - tail.length);
+  const body = lines.slice(1);
+  const first = Math.min(Math.max(0, p.selected - room + 1), Math.max(0, body.length - room));
+  if (avail - tail.length >= 1) {
+    rows.push([{ text: lines[0] ?? '', color: t.dim }]);
+    if (v === null) rows.push([{ text: '  computing the rules on the full plant…', color: t.dim }]);
+    for (const l of body.slice(first, first + room)) rows.push([{ text: l, bold: l.startsWith('>'), inverse: l.startsWith('>') && t.color }]);
+  }
+  while (rows.length < avail - tail.length) rows.push([]);
+  const shown = [...rows, ...tail].slice(0, avail);
+  while (shown.length < avail) shown.push([]);
+  return (
+    <Box flexDirection="column" width={p.width}>
+      <Heading
+        title="Tuning rules"
+        legend={[{ text: `simulated on the full plant · ${progress} `, color: t.dim }]}
+        width={p.width}
+        theme={t}
+      />
+      {shown.map((pieces, i) => (
+        <Line key={i} pieces={pieces} width={p.width} color={t.color} />
+      ))}
+    </Box>
+  );
+}
