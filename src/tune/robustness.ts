@@ -131,17 +131,8 @@ export interface SweepPlan {
 
 /** Prepare the cases of a sweep once (compiling / linearising each), to sweep several gain sets. */
 export function planSweep(spec: PlantSpec, options: RobustnessOptions = {}, base: TuningContext = tuningContext(spec)): SweepPlan {
-  const notes: string[] = [];
-  const ranges = spec.uncertainty;
-  const dims = Object.keys(ranges).length;
-  if (dims === 0) notes.push('the plant file has no uncertainty section: nominal case only');
-  if (dims > MAX_CORNER_DIMS && options.corners !== false) notes.push(`${dims} uncertain quantities: corners skipped, sample only`);
-  const list = sweepCases(ranges, {
-    corners: options.corners ?? true,
-    samples: dims === 0 ? 0 : options.samples ?? 20,
-    seed: options.seed ?? spec.sensor.seed,
-    nominal: options.nominal,
-  });
+  const notes = headNotesOf(spec, options);
+  const list = sweepValues(spec, options);
   const cases = list.map((c) => ({ ...c, ctx: caseContext(base, c.values) }));
   // Case notes (e.g. a start that is no equilibrium with these values) once each.
   for (const c of cases) for (const n of c.ctx.notes) if (!base.notes.includes(n) && !notes.includes(n)) notes.push(n);
@@ -159,44 +150,189 @@ export function robustnessSweep(
   base: TuningContext = tuningContext(spec),
   plan: SweepPlan = planSweep(spec, options, base),
 ): RobustnessResult {
+  const notes = [...plan.notes];
+  const keep = options.envelope ?? true;
+  const run = runCases(plan.cases, gains, options, spec, keep);
+  if (run.single > 0) notes.push(singleNote(run.single, plan.cases.length, run.why));
+  const envelope = keep ? envelopeOf(run.outputs) : null;
+  return { summary: summarise(run.cases), cases: run.cases, envelope, notes };
+}
+
+/** Simulate the listed cases (in list order) and take their figures; outputs kept for the envelope. */
+function runCases(
+  list: SweepPlan['cases'],
+  gains: GainSet,
+  options: RobustnessOptions,
+  spec: PlantSpec,
+  keep: boolean,
+): { cases: RobustnessCase[]; outputs: { t: Float64Array; y: Float64Array }[]; single: number; why: string[] } {
   const structure = options.structure ?? spec.loop.controller.structure;
   const g = applyStructure(structure, gains);
-  const notes = [...plan.notes];
-  const list = plan.cases;
-  const keep = options.envelope ?? true;
   const cases: RobustnessCase[] = [];
-  let envelope: TraceEnvelope | null = null;
-  const runs = options.runner === 'sequential' ? null : batchedRuns(list, g, structure, notes);
+  const outputs: { t: Float64Array; y: Float64Array }[] = [];
+  const batch = options.runner === 'sequential' ? null : batchedRuns(list, g, structure);
   for (let i = 0; i < list.length; i++) {
-    const c = list[i];
-    const ctx = c.ctx;
-    const { result, metrics } = runs === null ? simulateGains(ctx, g, structure) : runs[i];
-    cases.push(caseFigures(c.kind, c.values, result, metrics, gainMargins(ctx, g)));
-    if (keep) {
-      const tr = result.trace;
-      if (envelope === null) {
-        envelope = {
-          t: tr.t.slice(0, tr.length),
-          lo: tr.y.slice(0, tr.length),
-          hi: tr.y.slice(0, tr.length),
-          nominal: tr.y.slice(0, tr.length),
-        };
-      } else {
-        const n = Math.min(envelope.t.length, tr.length);
-        for (let i = 0; i < n; i++) {
-          const y = tr.y[i];
-          if (y < envelope.lo[i]) envelope.lo[i] = y;
-          if (y > envelope.hi[i]) envelope.hi[i] = y;
-        }
-        // A diverged case stops early: its absence after that is shown as an unbounded envelope.
-        for (let i = n; i < envelope.t.length; i++) {
-          envelope.lo[i] = -Infinity;
-          envelope.hi[i] = Infinity;
-        }
-      }
+    const ctx = list[i].ctx;
+    const { result, metrics } = batch === null ? simulateGains(ctx, g, structure) : batch.runs[i];
+    cases.push(caseFigures(list[i].kind, list[i].values, result, metrics, gainMargins(ctx, g)));
+    if (keep) outputs.push({ t: result.trace.t.slice(0, result.trace.length), y: result.trace.y.slice(0, result.trace.length) });
+  }
+  return { cases, outputs, single: batch?.single ?? 0, why: batch?.why ?? [] };
+}
+
+function singleNote(single: number, total: number, why: readonly string[]): string {
+  return `${single} of ${total} cases simulated one at a time (${why.join('; ')})`;
+}
+
+/** The envelope of the cases' outputs, in case order (the first case, the nominal, gives t). */
+function envelopeOf(outputs: readonly { t: Float64Array | null; y: Float64Array }[]): TraceEnvelope | null {
+  let envelope: TraceEnvelope | null = null;
+  for (const o of outputs) {
+    if (envelope === null) {
+      if (o.t === null) throw new RangeError('envelopeOf: the first case carries no time axis');
+      envelope = { t: o.t.slice(), lo: o.y.slice(), hi: o.y.slice(), nominal: o.y.slice() };
+      continue;
+    }
+    const n = Math.min(envelope.t.length, o.y.length);
+    for (let i = 0; i < n; i++) {
+      const y = o.y[i];
+      if (y < envelope.lo[i]) envelope.lo[i] = y;
+      if (y > envelope.hi[i]) envelope.hi[i] = y;
+    }
+    // A diverged case stops early: its absence after that is shown as an unbounded envelope.
+    for (let i = n; i < envelope.t.length; i++) {
+      envelope.lo[i] = -Infinity;
+      envelope.hi[i] = Infinity;
     }
   }
-  return { summary: summarise(cases), cases, envelope, notes };
+  return envelope;
+}
+
+/** Number of cases `planSweep(spec, options)` prepares (cheap: nothing is compiled). */
+export function sweepCaseCount(spec: PlantSpec, options: RobustnessOptions = {}): number {
+  return sweepValues(spec, options).length;
+}
+
+function sweepValues(spec: PlantSpec, options: RobustnessOptions): ReturnType<typeof sweepCases> {
+  const dims = Object.keys(spec.uncertainty).length;
+  return sweepCases(spec.uncertainty, {
+    corners: options.corners ?? true,
+    samples: dims === 0 ? 0 : options.samples ?? 20,
+    seed: options.seed ?? spec.sensor.seed,
+    nominal: options.nominal,
+  });
+}
+
+/**
+ * Part of a sweep: some of `planSweep`'s cases simulated on their own (e.g. in another thread).
+ * Plain data only (numbers, strings, typed arrays), so it survives a structured clone unchanged.
+ */
+export interface SweepPart {
+  /** Positions of the cases in the whole sweep's case list, ascending. */
+  indices: number[];
+  /** Number of cases of the whole sweep. */
+  total: number;
+  cases: RobustnessCase[];
+  /** Output of each case (trace length); `t` only on case 0 (the envelope's time axis). Null without envelope. */
+  outputs: { t: Float64Array | null; y: Float64Array }[] | null;
+  /** The sweep's own notes (no uncertainty, corners skipped). */
+  headNotes: string[];
+  /** Per case: its preparation notes not already among the plant's (as `planSweep` collects them). */
+  caseNotes: string[][];
+  /** Cases that ran outside the batch runner, and why. */
+  single: number;
+  why: string[];
+}
+
+/** The sweep's own notes, as `planSweep` writes them. */
+function headNotesOf(spec: PlantSpec, options: RobustnessOptions): string[] {
+  const notes: string[] = [];
+  const dims = Object.keys(spec.uncertainty).length;
+  if (dims === 0) notes.push('the plant file has no uncertainty section: nominal case only');
+  if (dims > MAX_CORNER_DIMS && options.corners !== false) notes.push(`${dims} uncertain quantities: corners skipped, sample only`);
+  return notes;
+}
+
+/**
+ * Simulate only the cases at `caseIndices` (positions in `planSweep`'s list) of the sweep of
+ * `gains`; only those cases are prepared. `cache` (position -> prepared case), when given, is
+ * read and filled, so that later parts of the same plant, options (but gains) and `base` skip the
+ * preparation. `mergeSweep` of parts that together cover every case
+ * once equals `robustnessSweep(spec, gains, options)` exactly.
+ */
+export function sweepPart(
+  spec: PlantSpec,
+  gains: GainSet,
+  options: RobustnessOptions,
+  caseIndices: readonly number[],
+  base: TuningContext = tuningContext(spec),
+  cache?: Map<number, SweepPlan['cases'][number]>,
+): SweepPart {
+  const all = sweepValues(spec, options);
+  const indices = [...caseIndices].sort((a, b) => a - b);
+  for (let j = 0; j < indices.length; j++) {
+    const i = indices[j];
+    if (!Number.isInteger(i) || i < 0 || i >= all.length) throw new RangeError(`sweepPart: case ${i} outside 0..${all.length - 1}`);
+    if (j > 0 && indices[j - 1] === i) throw new RangeError(`sweepPart: case ${i} listed twice`);
+  }
+  const list = indices.map((i) => {
+    let c = cache?.get(i);
+    if (c === undefined) {
+      c = { ...all[i], ctx: caseContext(base, all[i].values) };
+      cache?.set(i, c);
+    }
+    return c;
+  });
+  const keep = options.envelope ?? true;
+  const run = runCases(list, gains, options, spec, keep);
+  return {
+    indices,
+    total: all.length,
+    cases: run.cases,
+    outputs: keep ? run.outputs.map((o, j) => ({ t: indices[j] === 0 ? o.t : null, y: o.y })) : null,
+    headNotes: headNotesOf(spec, options),
+    caseNotes: list.map((c) => c.ctx.notes.filter((n) => !base.notes.includes(n))),
+    single: run.single,
+    why: run.why,
+  };
+}
+
+/**
+ * The sweep's result from parts covering every case exactly once (any order of parts): cases in
+ * sweep order, summary, envelope and notes as `robustnessSweep` gives them. The reasons of cases
+ * run one at a time are listed in case order of the parts. RangeError for a gap or an overlap.
+ */
+export function mergeSweep(parts: readonly SweepPart[]): RobustnessResult {
+  if (parts.length === 0) throw new RangeError('mergeSweep: no parts');
+  const total = parts[0].total;
+  const slot = new Array<{ part: SweepPart; j: number } | undefined>(total);
+  for (const part of parts) {
+    if (part.total !== total) throw new RangeError('mergeSweep: parts of different sweeps');
+    part.indices.forEach((i, j) => {
+      if (slot[i] !== undefined) throw new RangeError(`mergeSweep: case ${i} in two parts`);
+      slot[i] = { part, j };
+    });
+  }
+  const order = [...parts].sort((a, b) => (a.indices[0] ?? total) - (b.indices[0] ?? total));
+  const cases: RobustnessCase[] = [];
+  const notes = [...parts[0].headNotes];
+  const keep = parts[0].outputs !== null;
+  const outputs: { t: Float64Array | null; y: Float64Array }[] = [];
+  for (let i = 0; i < total; i++) {
+    const s = slot[i];
+    if (s === undefined) throw new RangeError(`mergeSweep: case ${i} missing`);
+    cases.push(s.part.cases[s.j]);
+    for (const n of s.part.caseNotes[s.j]) if (!notes.includes(n)) notes.push(n);
+    if (keep) outputs.push((s.part.outputs as NonNullable<SweepPart['outputs']>)[s.j]);
+  }
+  let single = 0;
+  const why: string[] = [];
+  for (const p of order) {
+    single += p.single;
+    for (const n of p.why) if (!why.includes(n)) why.push(n);
+  }
+  if (single > 0) notes.push(singleNote(single, total, why));
+  return { summary: summarise(cases), cases, envelope: keep ? envelopeOf(outputs) : null, notes };
 }
 
 /**
@@ -237,8 +373,7 @@ function batchedRuns(
   list: SweepPlan['cases'],
   gains: GainSet,
   structure: ControllerStructure,
-  notes: string[],
-): { result: TrialResult; metrics: TrialMetrics }[] {
+): { runs: { result: TrialResult; metrics: TrialMetrics }[]; single: number; why: string[] } {
   const out = new Array<{ result: TrialResult; metrics: TrialMetrics }>(list.length);
   const groups: { trial: TrialSpec; idx: number[] }[] = [];
   list.forEach((c, i) => {
@@ -259,8 +394,7 @@ function batchedRuns(
     });
     for (const n of b.notes) if (!why.includes(n)) why.push(n);
   }
-  if (single > 0) notes.push(`${single} of ${list.length} cases simulated one at a time (${why.join('; ')})`);
-  return out;
+  return { runs: out, single, why };
 }
 
 /** The figures of one simulated case. */

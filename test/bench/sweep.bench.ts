@@ -2,7 +2,9 @@
  * Sweep benchmark: simulations per second of the robustness sweep's cases on the surge tank
  * (plants/surge-tank.yaml: corners + 48 samples = 51 cases, 3601 samples each), one runTrial at a
  * time against sim's batch runner, and the whole robustnessSweep (simulations + metrics + margins)
- * with runner 'sequential' against 'batched'. The baseline, measured in the same run, is a
+ * with runner 'sequential' against 'batched' and against batched over threads (cli's SweepPool:
+ * this thread plus worker threads, os.availableParallelism() in all, plants and prepared cases
+ * kept warm in the workers as in a session that sweeps many gain sets). The baseline, measured in the same run, is a
  * hand-written closed loop of the same plant (RK4, PI with clamping, valve limits and rate limit,
  * first-order sensor filter; no noise, no trace), as in tune.bench.ts.
  *
@@ -18,6 +20,7 @@ import { buildController } from '../../src/control/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
 import { runTrial, runTrialBatch } from '../../src/sim/index.js';
+import { SweepPool } from '../../src/cli/parallel-sweep.js';
 import { planSweep, robustnessSweep, tuningContext } from '../../src/tune/index.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
@@ -102,6 +105,31 @@ function measure(cs: Contender[], rounds: number, minMs: number): Map<string, { 
   return out;
 }
 
+/** As `measure`, for contenders that return a promise (the worker pool); all of them awaited alike. */
+async function measureAsync(cs: { name: string; sims: number; run: () => unknown }[], rounds: number, minMs: number): Promise<Map<string, { best: number; median: number }>> {
+  for (const c of cs) for (let i = 0; i < 3; i++) await c.run();
+  const rates = new Map<string, number[]>(cs.map((c) => [c.name, []]));
+  for (let r = 0; r < rounds; r++) {
+    for (const c of cs) {
+      let n = 0;
+      const t0 = performance.now();
+      let t = t0;
+      while (t - t0 < minMs) {
+        await c.run();
+        n++;
+        t = performance.now();
+      }
+      (rates.get(c.name) as number[]).push((n * c.sims * 1000) / (t - t0));
+    }
+  }
+  const out = new Map<string, { best: number; median: number }>();
+  for (const [name, xs] of rates) {
+    const s = [...xs].sort((a, b) => a - b);
+    out.set(name, { best: s[s.length - 1], median: s[s.length >> 1] });
+  }
+  return out;
+}
+
 export async function run(): Promise<void> {
   const tank = load(join(root, 'plants', 'surge-tank.yaml'));
   const ctx = tuningContext(tank);
@@ -155,6 +183,38 @@ export async function run(): Promise<void> {
   console.log(`  whole sweep (+ metrics + margins), batched    ${fmt('sweepBatch')}`);
   console.log(`    batched / sequential sweep: ${(r('sweepBatch').best / r('sweepSeq').best).toFixed(2)}x (median ${(r('sweepBatch').median / r('sweepSeq').median).toFixed(2)}x)`);
   console.log(`  first batched sweep in this process (generated code compiled): ${coldBatched.toFixed(0)} ms`);
+
+  // Whole sweeps again, the pool beside them. The in-process sweeps get the prepared plan; the
+  // pool's threads keep their prepared cases after the warm-up, so all three skip preparation.
+  const file = join(root, 'plants', 'surge-tank.yaml');
+  const source = { text: readFileSync(file, 'utf8'), fileName: file };
+  const pool = new SweepPool();
+  try {
+    const t0 = performance.now();
+    await pool.sweep(source, gains, options);
+    const coldPool = performance.now() - t0;
+    const w = await measureAsync(
+      [
+        { name: 'seq', sims: n, run: () => (sink += robustnessSweep(tank, gains, { ...options, runner: 'sequential' }, ctx, plan).cases.length) },
+        { name: 'batch', sims: n, run: () => (sink += robustnessSweep(tank, gains, { ...options, runner: 'batched' }, ctx, plan).cases.length) },
+        { name: 'pool', sims: n, run: async () => (sink += (await pool.sweep(source, gains, options)).cases.length) },
+      ],
+      7,
+      250,
+    );
+    const q = (k: string): { best: number; median: number } => w.get(k) as { best: number; median: number };
+    console.log(
+      `  whole sweep sims/s: sequential ${q('seq').best.toFixed(0)} vs batched ${q('batch').best.toFixed(0)} vs batched+workers (${pool.jobs} threads) ${q('pool').best.toFixed(0)}` +
+        ` (medians ${q('seq').median.toFixed(0)} / ${q('batch').median.toFixed(0)} / ${q('pool').median.toFixed(0)})`,
+    );
+    console.log(
+      `    ratio to sequential: batched ${(q('batch').best / q('seq').best).toFixed(2)}x, batched+workers ${(q('pool').best / q('seq').best).toFixed(2)}x` +
+        ` (median ${(q('pool').median / q('seq').median).toFixed(2)}x); first pool sweep (workers started, plant loaded) ${coldPool.toFixed(0)} ms`,
+    );
+  } finally {
+    await pool.close();
+  }
+  if (!Number.isFinite(sink)) throw new Error('benchmark result not finite');
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();

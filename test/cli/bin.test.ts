@@ -38,7 +38,8 @@ beforeAll(() => {
       outDir: join(pkg, 'dist'),
     },
     include: [],
-    files: [join(root, 'src', 'cli', 'bin.ts')],
+    // The sweep worker is started by URL, not imported, so it is named here.
+    files: [join(root, 'src', 'cli', 'bin.ts'), join(root, 'src', 'cli', 'sweep-worker.ts')],
   };
   writeFileSync(join(pkg, 'tsconfig.json'), JSON.stringify(tsconfig));
   const tsc = spawnSync(process.execPath, [join(root, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', join(pkg, 'tsconfig.json')], {
@@ -72,6 +73,17 @@ describe('built bin (node dist/cli/bin.js)', () => {
     expect(r.stdout).toBe('');
     expect(r.stderr).toMatch(/^test\/fixtures\/bad\/unknown-type\.yaml:\d+:\d+: model\.type/);
     expect(r.stderr).not.toMatch(/\n\s+at /);
+  });
+
+  it('suggest --jobs 2 (worker threads from dist/cli/sweep-worker.js) prints what --jobs 1 prints', () => {
+    const args = ['suggest', 'plants/surge-tank.yaml', '--json', '--samples', '16'];
+    const one = looprig([...args, '--jobs', '1']);
+    const two = looprig([...args, '--jobs', '2']);
+    expect(two.stderr).toBe('');
+    expect(two.status).toBe(0);
+    expect(one.status).toBe(0);
+    expect(JSON.parse(two.stdout).suggestions[0].worst_case.cases).toBe(19);
+    expect(two.stdout).toBe(one.stdout);
   });
 
   it('no arguments: runs the demo plant found beside the installed dist/', () => {

@@ -5,12 +5,13 @@
 import { parseArgs } from 'node:util';
 import { parseDuration } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
-import { suggestGains, type SuggestResult, type Suggestion } from '../../tune/index.js';
+import { caseFigures, suggestGains, summarise, sweepCaseCount, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
+import { MIN_PARALLEL_CASES, sweepJobs, SweepPool } from '../parallel-sweep.js';
 
 export const SUGGEST_USAGE = `Usage: looprig suggest FILE [options]
 
@@ -25,6 +26,8 @@ Options:
   --lambda T     lambda / IMC closed-loop time constant (default: each rule's own)
   --relay        take the ultimate point from a relay test in the simulation instead of the model
   --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
+  --jobs N       threads for the worst-case sweeps when they have ${MIN_PARALLEL_CASES} or more cases (default:
+                 LOOPRIG_JOBS, else the machine's cores; 1 = this thread only); same results
   -h, --help     show this text
 `;
 
@@ -35,9 +38,10 @@ interface SuggestArgs {
   lambda: number | null;
   relay: boolean;
   samples: number;
+  jobs: number;
 }
 
-function parseSuggestArgs(args: readonly string[]): SuggestArgs | 'help' {
+function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs | 'help' {
   let parsed;
   try {
     parsed = parseArgs({
@@ -50,6 +54,7 @@ function parseSuggestArgs(args: readonly string[]): SuggestArgs | 'help' {
         lambda: { type: 'string' },
         relay: { type: 'boolean' },
         samples: { type: 'string' },
+        jobs: { type: 'string' },
         help: { type: 'boolean', short: 'h' },
       },
     });
@@ -72,6 +77,8 @@ function parseSuggestArgs(args: readonly string[]): SuggestArgs | 'help' {
   };
   const samples = values.samples === undefined ? 0 : Number(values.samples);
   if (!Number.isInteger(samples) || samples < 0) throw new UserError('suggest: --samples must be a whole number >= 0');
+  const jobs = values.jobs === undefined ? sweepJobs(env) : Number(values.jobs);
+  if (!Number.isInteger(jobs) || jobs < 1) throw new UserError('suggest: --jobs must be a whole number >= 1');
   return {
     file: positionals[0],
     json: values.json === true,
@@ -79,6 +86,7 @@ function parseSuggestArgs(args: readonly string[]): SuggestArgs | 'help' {
     lambda: time('lambda', values.lambda),
     relay: values.relay === true,
     samples,
+    jobs,
   };
 }
 
@@ -187,18 +195,34 @@ function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown 
 
 /** `looprig suggest ...` */
 export async function suggestCommand(args: readonly string[], io: Io): Promise<number> {
-  const options = parseSuggestArgs(args);
+  const options = parseSuggestArgs(args, io.env);
   if (options === 'help') {
     io.out(SUGGEST_USAGE);
     return 0;
   }
-  const { plant } = loadPlantFile(options.file, io);
+  const { plant, text } = loadPlantFile(options.file, io);
+  const sweep = { samples: options.samples };
+  // Large worst-case sweeps go over threads: the rules are evaluated here without them and each
+  // rule's sweep is then run by the pool, combined with its nominal case as suggestGains does.
+  const parallel = options.jobs > 1 && sweepCaseCount(plant, { ...sweep, nominal: false }) + 1 >= MIN_PARALLEL_CASES;
   const result = suggestGains(plant, {
     tauc: options.tauc,
     lambda: options.lambda,
     ultimate: options.relay ? 'relay' : 'model',
-    robustness: { samples: options.samples },
+    robustness: parallel ? false : sweep,
   });
+  if (parallel) {
+    const pool = new SweepPool(options.jobs);
+    try {
+      for (const s of result.suggestions) {
+        const others = await pool.sweep({ text, fileName: options.file }, s.gains, { ...sweep, nominal: false, structure: s.structure, envelope: false });
+        const e = s.evaluation;
+        s.worstCase = summarise([caseFigures('nominal', {}, e.result, e.metrics, e.margins), ...others.cases]);
+      }
+    } finally {
+      await pool.close();
+    }
+  }
   io.out(options.json ? toJson(suggestJson(options.file, plant, result)) : summaryText(plant, result));
   return 0;
 }
