@@ -16,6 +16,7 @@
 import { readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
+import { Worker } from 'node:worker_threads';
 import { buildController } from '../../src/control/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
@@ -105,6 +106,33 @@ function measure(cs: Contender[], rounds: number, minMs: number): Map<string, { 
   return out;
 }
 
+const SPIN = 'let s = 0; for (let i = 0; i < 1e8; i++) s += Math.sqrt(i);';
+
+/**
+ * What a second thread can give on this machine right now (others share its cores): the same
+ * arithmetic loop once alone, then in this thread and a worker at once; 2 = a free second core.
+ */
+async function threadScaling(): Promise<number> {
+  const spin = new Function(`${SPIN} return s;`) as () => number;
+  spin();
+  let t = performance.now();
+  spin();
+  const alone = performance.now() - t;
+  const w = new Worker(
+    `const { parentPort } = require('node:worker_threads'); parentPort.postMessage(0); parentPort.on('message', () => { ${SPIN} parentPort.postMessage(s); });`,
+    { eval: true },
+  );
+  await new Promise((resolve) => w.once('message', resolve)); // started (not timed)
+  t = performance.now();
+  const done = new Promise((resolve) => w.once('message', resolve));
+  w.postMessage(0);
+  spin();
+  await done;
+  const both = performance.now() - t;
+  await w.terminate();
+  return (2 * alone) / both;
+}
+
 /** As `measure`, for contenders that return a promise (the worker pool); all of them awaited alike. */
 async function measureAsync(cs: { name: string; sims: number; run: () => unknown }[], rounds: number, minMs: number): Promise<Map<string, { best: number; median: number }>> {
   for (const c of cs) for (let i = 0; i < 3; i++) await c.run();
@@ -190,6 +218,7 @@ export async function run(): Promise<void> {
   const source = { text: readFileSync(file, 'utf8'), fileName: file };
   const pool = new SweepPool();
   try {
+    const before = await threadScaling();
     const t0 = performance.now();
     await pool.sweep(source, gains, options);
     const coldPool = performance.now() - t0;
@@ -211,6 +240,8 @@ export async function run(): Promise<void> {
       `    ratio to sequential: batched ${(q('batch').best / q('seq').best).toFixed(2)}x, batched+workers ${(q('pool').best / q('seq').best).toFixed(2)}x` +
         ` (median ${(q('pool').median / q('seq').median).toFixed(2)}x); first pool sweep (workers started, plant loaded) ${coldPool.toFixed(0)} ms`,
     );
+    const after = await threadScaling();
+    console.log(`    two-thread scaling of a plain arithmetic loop on this machine now: ${before.toFixed(2)}x before, ${after.toFixed(2)}x after (2 = a free second core)`);
   } finally {
     await pool.close();
   }
