@@ -467,14 +467,14 @@ function push(s: ScreenState, next: GainEdit, message: Message | null = null): S
 /** Why the current gain set cannot be edited here, or null when it can. */
 function readOnlyReason(e: GainEdit): string | null {
   if (e.frame === undefined || e.frame.editable) return null;
-  return `the ${e.frame.named} gains come from its schedule table: read-only here (edit the table in the file)`;
+  return `read-only here: the ${e.frame.named} gains come from its table (edit it in the file)`;
 }
 
 /** Why the tuning aids (rules, optimiser, envelope) do not apply to the current gain set, or null. */
 function aidRefusal(e: GainEdit, what: string): string | null {
   const f = e.frame;
   if (f === undefined || !f.extended) return null;
-  return `${what} work on the plain PID law; this loop runs a ${f.named} structure around it (c compares structures)`;
+  return `${what} the plain PID law only; this loop is ${f.named}`;
 }
 
 /** Keys inside the suggestion list, the optimiser and the comparison view (keymap's LIST_KEYMAP). */
@@ -677,19 +677,19 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
     case 'help':
       return { ...s, overlay: { kind: 'help', page: 0 } };
     case 'suggest': {
-      const why = aidRefusal(s.current, 'tuning rules') ?? readOnlyReason(s.current);
+      const why = aidRefusal(s.current, 'the rules tune') ?? readOnlyReason(s.current);
       if (why !== null) return info(s, why, 'warn');
       return effect({ ...s, overlay: { kind: 'suggest', view: null, selected: 0 } }, { kind: 'suggest_start' });
     }
     case 'optimize': {
-      const why = aidRefusal(s.current, 'the optimiser and the rules') ?? readOnlyReason(s.current);
+      const why = aidRefusal(s.current, 'the optimiser tunes') ?? readOnlyReason(s.current);
       if (why !== null) return info(s, why, 'warn');
       return effect({ ...s, overlay: { kind: 'optimize', view: null, outcome: null, cancelling: false } }, { kind: 'optimize_start' });
     }
     case 'toggle_envelope': {
       if (s.envelope) return info({ ...s, envelope: false }, 'robustness envelope off');
       if (!s.hasUncertainty) return info(s, 'the file has no uncertainty section: there is no range to draw an envelope over', 'warn');
-      const why = aidRefusal(s.current, 'the envelope and the rules');
+      const why = aidRefusal(s.current, 'the envelope sweeps');
       if (why !== null) return info(s, why, 'warn');
       return info({ ...s, envelope: true }, 'robustness envelope on (the uncertainty: nominal, corners, a seeded sample)');
     }
@@ -705,10 +705,10 @@ function command(s: ScreenState, c: KeyCommand, math: EditMath): ScreenState {
 export function saveRefusal(s: ScreenState): string | null {
   const e = s.current;
   if (frameId(e) !== frameId(s.file)) {
-    return `the edited set is candidate '${e.frame?.candidate ?? '?'}' (${namedOf(e)}): only the file's own controller is written (u goes back)`;
+    return `candidate '${e.frame?.candidate ?? '?'}' is not the file's controller: not saved (u goes back)`;
   }
   if (e.structure !== s.file.structure) {
-    return `the edited law is ${e.structure.toUpperCase()}, the file's ${s.file.structure.toUpperCase()}: set loop.controller.structure in the file first (u goes back)`;
+    return `a ${e.structure.toUpperCase()} is not the file's ${s.file.structure.toUpperCase()}: not saved (change loop.controller.structure first)`;
   }
   return null;
 }

@@ -8,7 +8,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { loadPlant } from '../../src/model/index.js';
 import { compareCandidates } from '../../src/tune/index.js';
 import { compareSeries, compareTable, nextCandidate, overlaid, MAX_OVERLAID } from '../../src/tui/compare-view.js';
-import { ComparePanel } from '../../src/tui/panels/ComparePanel.js';
+import { ComparePanel, compareLegend, legendRows } from '../../src/tui/panels/ComparePanel.js';
 import { makeTheme } from '../../src/tui/theme.js';
 
 afterEach(() => cleanup());
@@ -50,5 +50,25 @@ describe('compare view', () => {
     expect(lines[0]).toContain('>━ single I-P (b 0)');
     expect(lines.some((l) => /^> single I-P \(b 0\)\s+i_pd/.test(l))).toBe(true);
     expect(lines.filter((l) => /^ {2}(single|cascade|feedforward)/.test(l))).toHaveLength(3);
+  });
+
+  it('table at a width: columns are left out in a fixed order until it fits; name and step figures stay', () => {
+    const wide = compareTable(result);
+    expect(wide[0].split(/\s{2,}/)).toHaveLength(12);
+    const narrow = compareTable(result, 78);
+    for (const l of narrow) expect(l.length).toBeLessThanOrEqual(78);
+    const head = narrow[0].split(/\s{2,}/);
+    for (const c of ['candidate', 'overshoot', 'IAE sp', 'Ms']) expect(head).toContain(c);
+    expect(head).not.toContain('peak u');
+  });
+
+  it('a legend too long for the heading wraps between entries onto its own lines: no name is cut', () => {
+    const theme = makeTheme(false);
+    const legend = compareLegend(result, 0, theme);
+    expect(legendRows(legend, 200)).toEqual([]);
+    const rows = legendRows(legend, 70);
+    expect(rows.length).toBeGreaterThan(1);
+    for (const r of rows) expect(r.reduce((n, p) => n + p.text.length, 0)).toBeLessThanOrEqual(70);
+    expect(rows.flat().map((p) => p.text)).toEqual(legend.map((p) => p.text));
   });
 });

@@ -2,7 +2,7 @@
  * The keymap is the one source for the key handler and the help overlay.
  */
 import { describe, it, expect } from 'vitest';
-import { commandFor, HINT, helpLines, keyLabel, keyToken, keyTokens, KEYMAP, PROMPT_KEYS } from '../../src/tui/keymap.js';
+import { commandFor, HINT, helpLines, keyLabel, keyToken, keyTokens, KEYMAP, LIST_HINT, LIST_KEYMAP, listCommandFor, listHelpLines, PROMPT_KEYS } from '../../src/tui/keymap.js';
 
 describe('tui keymap', () => {
   it('every key of the table resolves to its own command', () => {
@@ -53,5 +53,32 @@ describe('tui keymap', () => {
   it('the hint line fits an 80-column terminal and names help and quit', () => {
     expect(HINT.length).toBeLessThanOrEqual(80);
     expect(HINT).toContain('? keys');
+  });
+
+  it('the tuning aids have their keys in the one table, grouped, and on the hint line', () => {
+    const aids = { p: 'suggest', O: 'optimize', v: 'toggle_envelope', c: 'compare' } as const;
+    for (const [k, c] of Object.entries(aids)) {
+      expect(commandFor(k)).toBe(c);
+      expect(KEYMAP.find((b) => b.command === c)?.group).toBe('tune');
+      expect(HINT).toContain(`${k} `);
+    }
+    expect(helpLines().find((g) => g.title === 'Tuning aids')?.rows).toHaveLength(4);
+  });
+
+  it('the list keys come from their own table, for the reducer and the help alike', () => {
+    for (const b of LIST_KEYMAP) for (const k of b.keys) expect(listCommandFor(k)).toBe(b.command);
+    expect(listCommandFor('enter')).toBe('list_choose');
+    expect(listCommandFor('esc')).toBe('list_close');
+    expect(listCommandFor(']')).toBeNull();
+    expect(listHelpLines().map((r) => r.help)).toEqual(LIST_KEYMAP.map((b) => b.help));
+    expect(LIST_HINT.length).toBeLessThanOrEqual(80);
+  });
+
+  it('every help text fits its column of the two-column help at 80 columns (39 wide, 11 for the keys)', () => {
+    const all = [...helpLines().flatMap((g) => g.rows), ...listHelpLines(), ...PROMPT_KEYS];
+    for (const r of all) {
+      expect(r.keys.length, r.keys).toBeLessThanOrEqual(10);
+      expect(r.help.length, r.help).toBeLessThanOrEqual(28);
+    }
   });
 });

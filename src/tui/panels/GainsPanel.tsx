@@ -33,7 +33,7 @@ export function frameNotes(e: GainEdit): string[] {
   if (f === undefined) return [];
   const out: string[] = [];
   if (f.candidate !== null) out.push(`candidate: ${f.candidate}`);
-  if (!f.editable) out.push('read-only: gains from its schedule table');
+  if (!f.editable) out.push('read-only: schedule table gains');
   if (f.fixedWeights) out.push(`b ${showValue(e.gains.b)}, c ${showValue(e.gains.c)}: fixed by ${f.named}`);
   return out;
 }

@@ -1,0 +1,186 @@
+/**
+ * The screen's tuning aids against the tune layer they slice: the rule list, the sliced optimiser,
+ * the envelope swept in parts and the comparison's candidates as edits. Every check is an
+ * identity with a one-piece call of the same tune function (same engine, same inputs), or a
+ * property the method guarantees (the optimiser never ends worse than its start).
+ */
+import { describe, it, expect } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { loadPlant } from '../../src/model/index.js';
+import type { PlantSpec } from '../../src/model/types.js';
+import { compareCandidates, optimizeGains, robustnessSweep, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
+import { candidateEntries, editedEntry } from '../../src/tui/candidates.js';
+import { evaluate, fileEdit, plantFor, runningGains, setupLoop } from '../../src/tui/engine.js';
+import { EnvelopeJob, mergeEnvelope, sweepPlan } from '../../src/tui/envelope-job.js';
+import { OptimizeJob } from '../../src/tui/optimize-job.js';
+import { SliceRunner } from '../../src/tui/slice-runner.js';
+import { SuggestJob, usesOscillation } from '../../src/tui/suggest-job.js';
+
+function plant(dir: string, name: string): PlantSpec {
+  const r = loadPlant(readFileSync(join(dir, name), 'utf8'), name);
+  if (r.plant === undefined) throw new Error(`${name} does not load`);
+  return r.plant;
+}
+const fixtures = join(import.meta.dirname, '..', 'fixtures', 'plants');
+const repoPlants = join(import.meta.dirname, '..', '..', 'plants');
+
+describe('tui SuggestJob: the rules one slice at a time', () => {
+  const setup = setupLoop(plant(fixtures, 'surge-tank.yaml'));
+  const base = fileEdit(setup);
+
+  it('gives the rows of one suggestGains call, in rule-table order, figure for figure', () => {
+    const job = new SuggestJob(setup, base);
+    let slices = 0;
+    // A zero budget runs one rule per slice.
+    while (!job.step(0)) slices++;
+    expect(slices + 1).toBe(TUNING_RULES.length);
+    const once = suggestGains(plantFor(setup, base), { robustness: false });
+    const v = job.view();
+    expect(v.finished).toBe(true);
+    expect(v.rows.map((r) => r.label)).toEqual(once.suggestions.map((s) => s.rule.label));
+    expect(v.skipped.map((k) => k.label)).toEqual(once.skipped.map((k) => k.label));
+    v.rows.forEach((r, i) => {
+      const s = once.suggestions[i];
+      expect(r.edit.gains).toEqual(s.gains);
+      expect(r.iae).toBe(s.evaluation.metrics.overall.iae);
+      expect(r.overshootPct).toBe(s.evaluation.metrics.firstStep!.overshootPct);
+      expect(r.ms).toBe(s.evaluation.margins!.closedLoopStable === false ? Infinity : s.evaluation.margins!.maxSensitivity);
+    });
+  });
+
+  it("the rules keep the edit's filter, weights and anti-windup; the rows are in the edit's form", () => {
+    const job = new SuggestJob(setup, { ...base, form: 'parallel', values: { kp: 2, ki: 2 / 250 }, gains: { ...base.gains, antiWindup: 'none', b: 0.5 } });
+    job.step(1e9);
+    for (const r of job.view().rows) {
+      expect(r.edit.gains).toMatchObject({ antiWindup: 'none', b: 0.5 });
+      expect(r.edit.form).toBe('parallel');
+      // Ki = Kc / Ti (reference sheet section 13).
+      if (r.structure !== 'p') expect(r.edit.values.ki).toBeCloseTo(r.edit.gains.kc / r.edit.gains.ti, 12);
+    }
+  });
+
+  it('only the ultimate-point rules are marked as oscillation-based', () => {
+    const marked = TUNING_RULES.filter((r) => usesOscillation(r.id)).map((r) => r.id);
+    expect(marked).toEqual(['zn-ultimate-p', 'zn-ultimate-pi', 'zn-ultimate-pid']);
+  });
+});
+
+describe('tui OptimizeJob: the optimiser in slices', () => {
+  const setup = setupLoop(plant(fixtures, 'surge-tank.yaml'));
+  const base = fileEdit(setup);
+  const run = (o: ConstructorParameters<typeof OptimizeJob>[2]) => {
+    const job = new OptimizeJob(setup, base, o);
+    let guard = 0;
+    while (!job.step(10) && guard++ < 1000);
+    return job.outcome();
+  };
+
+  it("starts where optimizeGains starts (its own choice of rule and the start's cost)", () => {
+    // The fixture's controller is a PID: both search PID gains.
+    expect(new OptimizeJob(setup, base).structure).toBe('pid');
+    const ref = optimizeGains(plantFor(setup, base), { structure: 'pid', maxEvaluations: 1, timeBudgetMs: 1e9 });
+    const out = run({ maxEvaluations: 1, sliceEvaluations: 1, sliceCapMs: 1e9 });
+    expect(out.startLabel).toBe(ref.startRule!.rule.label);
+    expect(out.startCost).toBe(ref.startCost);
+  });
+
+  it('is the same on every run (slices are cut by evaluations), never worse than its start, within its budget', () => {
+    const o = { maxEvaluations: 60, sliceEvaluations: 20, sliceCapMs: 1e9 };
+    const a = run(o);
+    const b = run(o);
+    expect(a.edit).not.toBeNull();
+    expect(a.edit!.gains).toEqual(b.edit!.gains);
+    expect(a.cost).toBe(b.cost);
+    expect(a.cost).toBeLessThanOrEqual(a.startCost);
+    expect(a.evaluations).toBeLessThanOrEqual(60);
+    expect(a.slices).toBeGreaterThanOrEqual(3);
+    expect(a.notes.some((n) => n.includes('slices'))).toBe(true);
+  });
+
+  it('a cancel ends it at the next slice with the best so far', () => {
+    const job = new OptimizeJob(setup, base, { maxEvaluations: 300, sliceEvaluations: 10, sliceCapMs: 1e9 });
+    while (job.view().phase === 'start') job.step(10);
+    job.step(10);
+    job.cancel();
+    expect(job.step(10)).toBe(true);
+    const out = job.outcome();
+    expect(out.stoppedBy).toBe('cancelled');
+    expect(out.evaluations).toBe(10);
+    expect(out.edit).not.toBeNull();
+  });
+});
+
+describe('tui EnvelopeJob: the sweep in parts', () => {
+  const setup = setupLoop(plant(fixtures, 'fopdt-heater.yaml'));
+  const edit = fileEdit(setup);
+
+  it('merged part by part, the envelope is the one sweep over every case, sample for sample', () => {
+    const job = new EnvelopeJob(setup, edit);
+    let slices = 0;
+    while (!job.step(0)) slices++;
+    expect(slices).toBeGreaterThan(2);
+    const whole = robustnessSweep(setup.plant, runningGains(edit), { structure: edit.structure }, setup.context(), sweepPlan(setup)).envelope!;
+    const env = job.envelope!;
+    expect(job.done).toBe(job.total);
+    // Two uncertain quantities: the nominal case, 4 corners, tune's default sample of 20.
+    expect(job.total).toBe(25);
+    expect(Array.from(env.t)).toEqual(Array.from(whole.t));
+    expect(Array.from(env.lo)).toEqual(Array.from(whole.lo));
+    expect(Array.from(env.hi)).toEqual(Array.from(whole.hi));
+    expect(Array.from(env.nominal)).toEqual(Array.from(whole.nominal));
+  });
+
+  it('a shorter part (a case that diverged) leaves the envelope unbounded after its end', () => {
+    const a: TraceEnvelope = { t: Float64Array.of(0, 1, 2), lo: Float64Array.of(0, 1, 2), hi: Float64Array.of(1, 2, 3), nominal: Float64Array.of(0.5, 1.5, 2.5) };
+    const b: TraceEnvelope = { t: Float64Array.of(0, 1), lo: Float64Array.of(-1, 1.5), hi: Float64Array.of(0.5, 5), nominal: Float64Array.of(0, 0) };
+    const m = mergeEnvelope(mergeEnvelope(null, a), b);
+    expect(Array.from(m.lo)).toEqual([-1, 1, -Infinity]);
+    expect(Array.from(m.hi)).toEqual([1, 5, Infinity]);
+    expect(Array.from(m.nominal)).toEqual([0.5, 1.5, 2.5]);
+  });
+});
+
+describe('tui candidates: the comparison as edits', () => {
+  const spec = plant(repoPlants, 'jacketed-reactor-temperature.yaml');
+  const setup = setupLoop(spec);
+  const result = compareCandidates(spec, { robustness: false, context: setup.context() });
+  const entries = candidateEntries(setup, result, 'ideal');
+
+  it("the file's own kind of controller is edited in the file's frame; the others in their own", () => {
+    expect(entries.map((e) => e.name)).toEqual(['single PI (file)', 'single I-P (b 0)', 'cascade on jacket', 'feedforward supply']);
+    expect(entries[0].edit.frame?.id).toBe('file');
+    expect(entries[1].edit.frame).toMatchObject({ id: 'candidate:single I-P (b 0)', named: 'i_pd', fixedWeights: true, extended: false });
+    expect(entries[2].edit.frame).toMatchObject({ named: 'cascade', extended: true, editable: true });
+    expect(editedEntry(entries, fileEdit(setup))).toBe(0);
+    expect(editedEntry(entries, entries[2].edit)).toBe(2);
+  });
+
+  it("editing a candidate runs exactly the comparison's controller: the same trace", () => {
+    for (let i = 0; i < entries.length; i++) {
+      const mine = evaluate(setup, entries[i].edit).result.trace;
+      const theirs = result.candidates[i].result!.trace;
+      expect(mine.length, entries[i].name).toBe(theirs.length);
+      for (let k = 0; k < mine.length; k++) {
+        if (mine.y[k] !== theirs.y[k] || mine.u[k] !== theirs.u[k]) throw new Error(`${entries[i].name}: row ${k} differs`);
+      }
+    }
+  });
+});
+
+describe('tui SliceRunner', () => {
+  it('runs slices from timers until the work says it is finished; stop ends it; a throw goes to fail', async () => {
+    const r = new SliceRunner();
+    const seen: boolean[] = [];
+    let n = 0;
+    await new Promise<void>((done) => r.start(() => ++n >= 3, (f) => (seen.push(f), f && done()), () => undefined));
+    expect(seen).toEqual([false, false, true]);
+    expect(r.running).toBe(false);
+    let m = 0;
+    r.start(() => (++m, false), () => r.stop(), () => undefined);
+    await new Promise((res) => setTimeout(res, 30));
+    expect(m).toBe(1);
+    const err = await new Promise<Error>((res) => r.start(() => { throw new RangeError('bad'); }, () => undefined, res));
+    expect(err.message).toBe('bad');
+  });
+});
