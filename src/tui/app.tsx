@@ -155,7 +155,10 @@ export function App(props: AppProps) {
   };
   const marginsNow = useDeferred(() => marginsOf(state.current), [props.notices, state.current.gains, frameId(state.current)]);
   const marginsBase = useDeferred(() => (baselineEdit === null ? null : marginsOf(baselineEdit)), [props.notices, baselineEdit]);
-  const envelope = useEnvelope(setup, state.current, state.envelope && state.mode === 'instant' && !rehearsing);
+  // The sweep runs the plain law: a structure around it (a comparison candidate) has no envelope here.
+  const envelopeNote =
+    state.current.frame?.extended === true ? `plain law only, not ${state.current.frame.named}` : state.mode !== 'instant' || rehearsing ? 'instant trial only' : null;
+  const envelope = useEnvelope(setup, state.current, state.envelope && envelopeNote === null);
   const plantNotices = useMemo(() => {
     const list = props.notices.plantNotices();
     for (const b of setup.basis) list.push({ tone: 'info', title: namedOf(state.file), text: b });
@@ -163,7 +166,7 @@ export function App(props: AppProps) {
       list.push({ tone: 'info', text: `the file's trial switches gains at ${g.at} s ('${g.label}'); the screen runs the edited set throughout (g rehearses a switch)` });
     }
     return list;
-  }, [props.notices, trial]);
+  }, [props.notices, trial, setup]);
 
   // ---------------------------------------------------------------- live run
   const live = useRef<LiveRun | null>(null);
@@ -340,7 +343,7 @@ export function App(props: AppProps) {
         margins={marginsNow}
         actuator={plant.actuator}
         envelope={envelope}
-        envelopeWanted={state.envelope}
+        envelopeNote={state.envelope ? envelopeNote : null}
       />
     );
   })();
@@ -417,7 +420,8 @@ interface PanelsProps {
   actuator: { min: number; max: number };
   /** The robustness envelope (null: not wanted, or not drawn in this mode). */
   envelope: EnvelopeState | null;
-  envelopeWanted: boolean;
+  /** Why the envelope asked for is not drawn (null: drawn, or not asked for). */
+  envelopeNote: string | null;
 }
 
 function Panels(p: PanelsProps) {
@@ -455,7 +459,7 @@ function Panels(p: PanelsProps) {
   if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
   const env = p.run === null ? p.envelope : null;
   if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
-  else if (p.envelopeWanted) legend.push({ text: '░ envelope: instant trial only ', color: theme.dim });
+  else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, color: theme.dim });
   const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
   const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
   if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });

@@ -4,8 +4,23 @@
  */
 export { runScreen, NODE_SCREEN_IO, type ScreenOptions } from './run-screen.js';
 export { App, type AppProps, type ScreenIo } from './app.js';
-export { KEYMAP, HINT, NUDGE, SPEEDS, commandFor, keyToken, helpLines, type KeyBinding, type KeyCommand } from './keymap.js';
-export { reduce, initialState, isDirty, paramList, type ScreenState, type Action, type Effect, type GainEdit } from './state.js';
+export {
+  KEYMAP,
+  LIST_KEYMAP,
+  HINT,
+  NUDGE,
+  SPEEDS,
+  commandFor,
+  listCommandFor,
+  keyToken,
+  helpLines,
+  type KeyBinding,
+  type KeyCommand,
+  type ListBinding,
+  type ListCommand,
+} from './keymap.js';
+export { reduce, initialState, isDirty, paramList, type ScreenState, type Action, type Effect, type GainEdit, type ControllerFrame } from './state.js';
+export type { SuggestRow, SuggestView, OptimizeView, OptimizeOutcome, CandidateEntry } from './tuning-views.js';
 export { computeLayout, type Layout } from './layout.js';
 export { NO_DIAGNOSIS, type NoticeSource, type Notice, type MarginsView } from './notices.js';
 export { diagnoseSource } from './diagnose-source.js';

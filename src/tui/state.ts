@@ -518,7 +518,8 @@ function listKey(s: ScreenState, token: string): ScreenState {
     }
     if (entries === null || entries.length === 0) return s;
     const n = entries.length;
-    const next = c === 'list_prev' ? (o.selected + n - 1) % n : (o.selected + 1) % n;
+    // Not yet editing any candidate: the first move picks the first (or, going up, the last).
+    const next = o.edited === null ? (c === 'list_prev' ? n - 1 : 0) : c === 'list_prev' ? (o.selected + n - 1) % n : (o.selected + 1) % n;
     const e = entries[next];
     const moved: ScreenState = { ...s, overlay: { ...o, selected: next, edited: next } };
     const ro = e.edit.frame !== undefined && !e.edit.frame.editable ? ' (read-only: schedule table)' : '';

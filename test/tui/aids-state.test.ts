@@ -217,6 +217,13 @@ describe('tui state: the comparison view (c)', () => {
     expect(isDirty(s)).toBe(false);
   });
 
+  it('when the gain set is none of the candidates, the first ↓ picks the first one, the first ↑ the last', () => {
+    const open = act(keys(start(edit(9, 99)), 'compare'), { type: 'compare_ready', entries, edited: null });
+    expect(open.overlay).toMatchObject({ selected: 0, edited: null });
+    expect(press(open, 'down').current).toBe(entries[0].edit);
+    expect(press(open, 'up').current).toBe(entries[2].edit);
+  });
+
   it('no candidate ran: the view closes with a notice', () => {
     const s = act(keys(start(), 'compare'), { type: 'compare_ready', entries: [], edited: null });
     expect(s.overlay.kind).toBe('none');

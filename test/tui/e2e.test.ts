@@ -1,8 +1,9 @@
 /**
  * The screen end to end, as a person uses it: the built `looprig` in a real terminal (tmux,
  * 80x24), keys sent, the pane read back. Raises the proportional gain and checks that the shown
- * gain and the shown overshoot both change, resizes to 120x40 and back, quits and checks the exit
- * status and that the terminal was given back (alternate screen left, cursor shown).
+ * gain and the shown overshoot both change, resizes to 120x40 and back, opens the tuning-rule list
+ * and leaves it, quits and checks the exit status and that the terminal was given back (alternate
+ * screen left, cursor shown).
  *
  * Skipped, with a message, only when tmux is not installed.
  */
@@ -159,6 +160,16 @@ describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
     expect(kcShown(text)).toBe(kcRaised);
     expect(text.match(/Gain set/g)).toHaveLength(1);
     expect(text.match(/Trial trend/g)).toHaveLength(1);
+
+    // The rule list replaces the panels at 80x24, with the oscillation caution; Esc goes back.
+    type('p');
+    text = await waitFor((t) => /· \d+ rules /.test(t), 'the rule list');
+    for (const line of text.split('\n')) expect(line.length).toBeLessThanOrEqual(80);
+    expect(text).toContain('Caution: a relay test');
+    expect(text).not.toContain('Gain set');
+    tmux('send-keys', '-t', 'screen', 'Escape');
+    text = await waitFor((t) => t.includes('Gain set') && t.includes('Trial trend'), 'the main screen again');
+    expect(kcShown(text)).toBe(kcRaised);
 
     // Quit: unsaved changes, so it asks first.
     type('q');

@@ -176,6 +176,24 @@ function sameTrace(a: { length: number; t: Float64Array; y: Float64Array; u: Flo
   }
 }
 
+describe('tui live run: another controller structure', () => {
+  it('a gain set of another frame (a comparison candidate) restarts the run with its controller', () => {
+    const setup = setupLoop(load(here, 'smith-fopdt.yaml'));
+    const edit = fileEdit(setup);
+    const run = new LiveRun(setup, edit, 300);
+    run.advance(50, 1000);
+    expect(run.time).toBeGreaterThan(49);
+    const raised = withParam(edit, 'kc', 0.7, CORE_EDIT_MATH);
+    if ('error' in raised) throw new Error(raised.error);
+    // Same frame: the gains change in the running law, the run goes on.
+    expect(run.setGains(raised)).toBe(false);
+    expect(run.time).toBeGreaterThan(49);
+    const plain = { ...raised, frame: { ...raised.frame!, id: 'candidate:plain', extended: false, spec: { ...setup.controller, extension: undefined } } };
+    expect(run.setGains(plain)).toBe(true);
+    expect(run.time).toBe(0);
+  });
+});
+
 describe('tui engine: a loop.controller with a richer structure', () => {
   it('smith_pi on a FOPDT: opens, and the screen runs the predictor the core resolves, sample for sample', () => {
     const spec = load(here, 'smith-fopdt.yaml');
