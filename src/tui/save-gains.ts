@@ -8,7 +8,7 @@
  */
 import { controllerEdits, fromIdeal, savePlantValues, type ValueEdit } from '../model/index.js';
 import type { PidForm } from '../model/types.js';
-import { formParams, type GainEdit } from './state.js';
+import { formParams, frameId, type GainEdit } from './state.js';
 
 /** Significant digits written for each value (nudges make long binary fractions). */
 export const SAVE_DIGITS = 6;
@@ -27,6 +27,10 @@ const AW_WORDS = { none: 'none', clamp: 'clamp', back_calculation: 'back_calcula
  * @param fileForm the form the file uses
  */
 export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm: PidForm): SavePlan {
+  // Only the file's own controller block is written: a comparison candidate's structure, or
+  // another law (a rule's PID over the file's PI), would need fields the file does not have.
+  if (frameId(edit) !== frameId(file)) return { ok: false, error: `'${edit.frame?.candidate ?? edit.frame?.named}' is not the file's controller` };
+  if (edit.structure !== file.structure) return { ok: false, error: `the file's controller is a ${file.structure.toUpperCase()}, not a ${edit.structure.toUpperCase()}` };
   const converted = fromIdeal(fileForm, { kc: edit.gains.kc, ti: edit.gains.ti, td: edit.gains.td });
   if (converted === null) {
     return { ok: false, error: `the file uses the ${fileForm} form, which cannot hold these gains (series needs Ti >= 4 Td)` };

@@ -98,4 +98,13 @@ describe('tui save', () => {
     const plan = planSave(text, file, file, 'ideal');
     expect(plan).toMatchObject({ ok: true, text, changed: [] });
   });
+
+  it("a candidate's structure or another law is not written into the file's controller block", () => {
+    const text = read('surge-tank.yaml');
+    const file = fileEdit(text);
+    const frame = { id: 'candidate:cascade', named: 'cascade' as const, candidate: 'cascade', editable: true, fixedWeights: false, extended: true, spec: {} as never };
+    expect(planSave(text, file, { ...file, frame }, 'ideal')).toEqual({ ok: false, error: "'cascade' is not the file's controller" });
+    const pi = { ...file, structure: 'pi' as const, values: { kc: 2, ti: 30 } };
+    expect(planSave(text, file, pi, 'ideal')).toEqual({ ok: false, error: "the file's controller is a PID, not a PI" });
+  });
 });
