@@ -15,8 +15,8 @@
  */
 import type { Margins } from '../analysis/index.js';
 import type { GainSet } from '../model/types.js';
-import { DEFAULT_COST, optimizeGains, TUNING_RULES, type GainEvaluation, type OptimizeProgress } from '../tune/index.js';
-import { editWithGains, plantFor, type LoopSetup } from './engine.js';
+import { DEFAULT_COST, evaluateGains, optimizeGains, TUNING_RULES, type GainEvaluation, type OptimizeProgress } from '../tune/index.js';
+import { contextFor, editWithGains, plantFor, type LoopSetup } from './engine.js';
 import type { GainEdit } from './state.js';
 import { SuggestJob } from './suggest-job.js';
 import type { OptimizeOutcome, OptimizeView } from './tuning-views.js';
@@ -66,6 +66,7 @@ export class OptimizeJob {
   private sliceBest = Infinity;
   private stoppedBy: OptimizeOutcome['stoppedBy'] = 'evaluations';
   private cancelled = false;
+  private current: OptimizeOutcome['current'] = null;
   private readonly notes: string[] = [];
 
   constructor(
@@ -110,6 +111,9 @@ export class OptimizeJob {
 
   private chooseStart(): void {
     const ms = this.msTarget;
+    // The edited set on the same cost, for the result to be read against.
+    const now = evaluateGains(contextFor(this.setup, this.base), this.base.gains, this.base.structure, { cost: DEFAULT_COST, msLimit: ms });
+    this.current = { cost: now.cost, ms: now.margins === null ? NaN : now.margins.closedLoopStable === false ? Infinity : now.margins.maxSensitivity };
     const candidates = this.rules.suggestions;
     const ok = candidates.filter((x) => feasible(x.evaluation.margins, ms) && Number.isFinite(x.evaluation.cost));
     ok.sort((a, b) => a.evaluation.cost - b.evaluation.cost);
@@ -212,6 +216,7 @@ export class OptimizeJob {
       gm: m === null ? NaN : m.gainMargin,
       flags: b === null ? [] : b.flags.map((f) => f.message),
       notes,
+      current: this.current,
     };
   }
 }

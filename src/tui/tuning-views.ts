@@ -83,6 +83,11 @@ export interface OptimizeOutcome {
   readonly gm: number;
   readonly flags: readonly string[];
   readonly notes: readonly string[];
+  /**
+   * The gain set being edited, on the same cost (its Ms may be above the target, which is why a
+   * result can have a larger cost than it); null when not evaluated.
+   */
+  readonly current: { readonly cost: number; readonly ms: number } | null;
 }
 
 /** One candidate of the comparison that ran, as an edit. */

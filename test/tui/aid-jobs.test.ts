@@ -9,9 +9,9 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
-import { compareCandidates, optimizeGains, robustnessSweep, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
+import { compareCandidates, evaluateGains, optimizeGains, robustnessSweep, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
 import { candidateEntries, editedEntry } from '../../src/tui/candidates.js';
-import { evaluate, fileEdit, plantFor, runningGains, setupLoop } from '../../src/tui/engine.js';
+import { contextFor, evaluate, fileEdit, plantFor, runningGains, setupLoop } from '../../src/tui/engine.js';
 import { EnvelopeJob, mergeEnvelope, sweepPlan } from '../../src/tui/envelope-job.js';
 import { OptimizeJob } from '../../src/tui/optimize-job.js';
 import { SliceRunner } from '../../src/tui/slice-runner.js';
@@ -96,6 +96,8 @@ describe('tui OptimizeJob: the optimiser in slices', () => {
     expect(a.evaluations).toBeLessThanOrEqual(60);
     expect(a.slices).toBeGreaterThanOrEqual(3);
     expect(a.notes.some((n) => n.includes('slices'))).toBe(true);
+    // The edited set on the same cost, to read the result against.
+    expect(a.current!.cost).toBe(evaluateGains(contextFor(setup, base), base.gains, base.structure).cost);
   });
 
   it('a cancel ends it at the next slice with the best so far', () => {

@@ -105,6 +105,7 @@ describe('tui state: the optimiser (O)', () => {
     gm: 3,
     flags: [],
     notes: [],
+    current: null,
   });
 
   it('O starts it; Esc while it runs asks the shell to stop (once) and keeps the overlay for the result', () => {

@@ -59,6 +59,11 @@ export function optimizeLines(view: OptimizeView | null, outcome: OptimizeOutcom
   const ts = Number.isNaN(outcome.settlingTime) ? '-' : Number.isFinite(outcome.settlingTime) ? `${fig(outcome.settlingTime)} s` : 'never';
   const ms = outcome.ms === Infinity ? 'unstable' : fig(outcome.ms);
   out.push([{ text: `  overshoot ${os}, settling ${ts}, Ms ${ms}, GM ${fig(outcome.gm)}` }]);
+  const now = outcome.current;
+  if (now !== null) {
+    const above = now.ms > view.msTarget ? ' (Ms above the target)' : '';
+    out.push([{ text: `  the edited set: ${c} ${fig(now.cost, 5)}, Ms ${now.ms === Infinity ? 'unstable' : fig(now.ms)}${above}`, color: theme.dim }]);
+  }
   for (const f of outcome.flags) for (const l of wrap(`! ${f}`, width - 2)) out.push([{ text: `  ${l}`, color: theme.warn }]);
   for (const n of outcome.notes) for (const l of wrap(`note: ${n}`, width - 2)) out.push([{ text: `  ${l}`, color: theme.dim }]);
   out.push([]);
