@@ -6,7 +6,7 @@
 import { Box, Text, useApp, useInput, useStdout } from 'ink';
 import TextInput from 'ink-text-input';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
-import { loadPlant } from '../model/index.js';
+import { gainNote, loadPlant } from '../model/index.js';
 import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
@@ -264,7 +264,8 @@ export function App(props: AppProps) {
       dispatch({ type: 'save_conflict' });
       return;
     }
-    const plan = planSave(onDiskText ? disk : loaded.current, state.file, state.current, fileForm);
+    // The record beside each saved value: today's date and where the gains came from.
+    const plan = planSave(onDiskText ? disk : loaded.current, state.file, state.current, fileForm, gainNote(new Date().toISOString().slice(0, 10), 'looprig screen'));
     if (!plan.ok) {
       dispatch({ type: 'save_failed', text: `not written: ${plan.error}` });
       return;

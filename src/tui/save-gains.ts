@@ -25,8 +25,9 @@ const AW_WORDS = { none: 'none', clamp: 'clamp', back_calculation: 'back_calcula
  * @param file the gain set the file holds (as loaded)
  * @param edit the gain set to write
  * @param fileForm the form the file uses
+ * @param note record comment written beside each changed value (e.g. from `gainNote`), or none
  */
-export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm: PidForm): SavePlan {
+export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm: PidForm, note?: string): SavePlan {
   // Only the file's own controller block is written: a comparison candidate's structure, or
   // another law (a rule's PID over the file's PI), would need fields the file does not have.
   if (frameId(edit) !== frameId(file)) return { ok: false, error: `'${edit.frame?.candidate ?? edit.frame?.named}' is not the file's controller` };
@@ -51,17 +52,17 @@ export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm:
   }
   let edits: ValueEdit[];
   try {
-    edits = controllerEdits(text, values, { digits: SAVE_DIGITS });
+    edits = controllerEdits(text, values, { digits: SAVE_DIGITS, note });
     if (edit.gains.antiWindup !== file.gains.antiWindup) {
-      edits.push({ path: ['loop', 'controller', 'anti_windup'], value: AW_WORDS[edit.gains.antiWindup] });
+      edits.push({ path: ['loop', 'controller', 'anti_windup'], value: AW_WORDS[edit.gains.antiWindup], note });
       changed.push('anti_windup');
     }
     if (edit.gains.b !== file.gains.b || edit.gains.c !== file.gains.c) {
       if (!/\bsetpoint_weight\s*:/.test(text)) {
         return { ok: false, error: 'the file has no setpoint_weight field to write b and c into; add setpoint_weight: { p: 1, d: 0 } under loop.controller' };
       }
-      if (edit.gains.b !== file.gains.b) edits.push({ path: ['loop', 'controller', 'setpoint_weight', 'p'], value: edit.gains.b });
-      if (edit.gains.c !== file.gains.c) edits.push({ path: ['loop', 'controller', 'setpoint_weight', 'd'], value: edit.gains.c });
+      if (edit.gains.b !== file.gains.b) edits.push({ path: ['loop', 'controller', 'setpoint_weight', 'p'], value: edit.gains.b, note });
+      if (edit.gains.c !== file.gains.c) edits.push({ path: ['loop', 'controller', 'setpoint_weight', 'd'], value: edit.gains.c, note });
       changed.push('setpoint_weight');
     }
     const out = savePlantValues(text, edits);

@@ -108,3 +108,24 @@ describe('tui save', () => {
     expect(planSave(text, file, pi, 'ideal')).toEqual({ ok: false, error: "the file's controller is a PID, not a PI" });
   });
 });
+
+describe('planSave with a record note', () => {
+  it('writes the note beside each changed value and nowhere else', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { loadPlant } = await import('../../src/model/index.js');
+    const text = readFileSync(new URL('../../plants/surge-tank.yaml', import.meta.url), 'utf8');
+    const plant = loadPlant(text, 'surge-tank.yaml').plant!;
+    const c = plant.loop.controller;
+    const file = { structure: c.structure, form: c.form, values: c.values, gains: c.gains };
+    const edit = { ...file, gains: { ...c.gains, kc: c.gains.kc * 1.5 } };
+    const plan = planSave(text, file as never, edit as never, c.form, '2026-12-02 looprig screen');
+    expect(plan.ok).toBe(true);
+    if (!plan.ok) return;
+    const before = text.split('\n');
+    const after = plan.text.split('\n');
+    expect(after.length).toBe(before.length);
+    const changed = after.filter((l, i) => l !== before[i]);
+    expect(changed).toHaveLength(1);
+    expect(changed[0]).toMatch(/kc: 4\.5\b.*2026-12-02 looprig screen/);
+  });
+});
