@@ -1,7 +1,7 @@
 /**
  * Each tuning rule against the computed check values of the reference sheet
- * (/work/shared/reference/published-checks.md; "computed" values were produced for the sheet from
- * the formulas, so they check our transcription of each published formula). Values on the sheet are
+ * (shared/reference/published-checks.md beside the repository; "computed" values were produced for the sheet from
+ * the formulas, so they check how we copied each published formula). Values on the sheet are
  * rounded to 4 decimals: tolerance abs 1e-4 covers that rounding (and the rounding of Ku/Tu inputs).
  */
 import { describe, expect, it } from 'vitest';
