@@ -1,6 +1,6 @@
 /**
  * Half rule, ultimate point, and the robustness the sheet computes for each rule's settings.
- * Sources: reference sheet sections 1-6 and 10 (/work/shared/reference/published-checks.md).
+ * Sources: reference sheet sections 1-6 and 10 (shared/reference/published-checks.md).
  */
 import { describe, expect, it } from 'vitest';
 import { expectClose } from '../helpers/expect-close.js';
