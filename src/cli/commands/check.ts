@@ -7,9 +7,9 @@
  * evaluated ("not available" never passes a CI job); 2 a file is invalid (not a plant file, YAML
  * or schema errors, unreadable), bad arguments, or no plant file found. 2 wins over 1.
  */
+import { parseCommandArgs } from '../parse-command.js';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { parseArgs } from 'node:util';
 import { formatDiagnostic, loadPlant } from '../../model/index.js';
 import { StructureUnavailable } from '../../tune/index.js';
 import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
@@ -49,23 +49,12 @@ interface CheckArgs {
 }
 
 function parseCheckArgs(args: readonly string[]): CheckArgs | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        json: { type: 'boolean' },
-        shard: { type: 'string' },
-        svg: { type: 'string' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`check: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('check', args, {
+    json: { type: 'boolean' },
+    shard: { type: 'string' },
+    svg: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
   if (positionals.length === 0) throw new UserError('check: missing FILE or DIR');
   return {

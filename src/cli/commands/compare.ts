@@ -4,7 +4,7 @@
  * structure, gains, step and disturbance figures, actuator use, margins of the linearised loop
  * and the worst case over the file's uncertainty ranges.
  */
-import { parseArgs } from 'node:util';
+import { onePositional, parseCommandArgs } from '../parse-command.js';
 import type { PlantSpec } from '../../model/types.js';
 import { compareCandidates, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -39,25 +39,14 @@ interface CompareArgs {
 }
 
 function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        json: { type: 'boolean' },
-        samples: { type: 'string' },
-        nominal: { type: 'boolean' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`compare: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('compare', args, {
+    json: { type: 'boolean' },
+    samples: { type: 'string' },
+    nominal: { type: 'boolean' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
-  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'compare: missing FILE' : 'compare: one FILE expected');
+  onePositional('compare', positionals);
   const samples = values.samples === undefined ? 0 : Number(values.samples);
   if (!Number.isInteger(samples) || samples < 0) throw new UserError('compare: --samples must be a whole number >= 0');
   return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true };

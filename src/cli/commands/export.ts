@@ -11,7 +11,7 @@
  * for this file (series form with Ti < 4 Td, a proportional band without spans). A refused
  * conversion is 2, not 1, because 1 means "a requirement failed" to every looprig command.
  */
-import { parseArgs } from 'node:util';
+import { onePositional, parseCommandArgs } from '../parse-command.js';
 import { DISCRETISATION_METHODS, fromIdeal, seriesRealizable, velocityForm } from '../../control/index.js';
 import type { DiscretisationMethod, VelocityForm } from '../../control/index.js';
 import type { PidForm, PlantSpec } from '../../model/types.js';
@@ -63,31 +63,18 @@ interface ExportArgs {
 }
 
 function parseExportArgs(args: readonly string[]): ExportArgs | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        form: { type: 'string' },
-        'time-unit': { type: 'string' },
-        'proportional-band': { type: 'boolean' },
-        repeats: { type: 'boolean' },
-        discrete: { type: 'boolean' },
-        method: { type: 'string' },
-        json: { type: 'boolean' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`export: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('export', args, {
+    form: { type: 'string' },
+    'time-unit': { type: 'string' },
+    'proportional-band': { type: 'boolean' },
+    repeats: { type: 'boolean' },
+    discrete: { type: 'boolean' },
+    method: { type: 'string' },
+    json: { type: 'boolean' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
-  if (positionals.length !== 1) {
-    throw new UserError(positionals.length === 0 ? 'export: missing FILE' : `export: one FILE expected, got ${positionals.length}`);
-  }
+  onePositional('export', positionals);
   const form = values.form ?? null;
   if (form !== null && !(FORMS as readonly string[]).includes(form)) {
     throw new UserError(`export: --form is '${form}'; expected one of ${FORMS.join(', ')}`);

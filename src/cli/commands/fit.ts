@@ -4,7 +4,7 @@
  * without `--force`) or draw data against fit (`--show`). Bad logs exit 2 with
  * `LOG.csv:LINE:COL: message` diagnostics.
  */
-import { parseArgs } from 'node:util';
+import { parseCommandArgs } from '../parse-command.js';
 import * as asciichart from 'asciichart';
 import {
   buildPlantFile,
@@ -68,31 +68,20 @@ export interface FitOptions {
 
 /** Parse the arguments of `fit`; a mistake is a `UserError` with exit status 2. */
 export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        time: { type: 'string' },
-        input: { type: 'string' },
-        output: { type: 'string' },
-        from: { type: 'string' },
-        to: { type: 'string' },
-        model: { type: 'string', multiple: true },
-        'skip-bad-rows': { type: 'boolean' },
-        out: { type: 'string' },
-        force: { type: 'boolean' },
-        show: { type: 'boolean' },
-        json: { type: 'boolean' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`fit: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('fit', args, {
+    time: { type: 'string' },
+    input: { type: 'string' },
+    output: { type: 'string' },
+    from: { type: 'string' },
+    to: { type: 'string' },
+    model: { type: 'string', multiple: true },
+    'skip-bad-rows': { type: 'boolean' },
+    out: { type: 'string' },
+    force: { type: 'boolean' },
+    show: { type: 'boolean' },
+    json: { type: 'boolean' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
   if (positionals.length !== 1) {
     throw new UserError(positionals.length === 0 ? 'fit: missing LOG.csv' : `fit: one log file expected, got ${positionals.length}`);

@@ -3,7 +3,7 @@
  * minimise the cost on the full simulated trial subject to Ms <= target; progress on a terminal;
  * `--write` puts the result into the file (comments kept, atomic write).
  */
-import { parseArgs } from 'node:util';
+import { onePositional, parseCommandArgs } from '../parse-command.js';
 import { controllerEdits, gainNote, parseDuration, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
@@ -44,30 +44,19 @@ interface OptimizeArgs {
 }
 
 function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        json: { type: 'boolean' },
-        write: { type: 'boolean' },
-        ms: { type: 'string' },
-        cost: { type: 'string' },
-        'du-weight': { type: 'string' },
-        structure: { type: 'string' },
-        evaluations: { type: 'string' },
-        time: { type: 'string' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`optimize: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('optimize', args, {
+    json: { type: 'boolean' },
+    write: { type: 'boolean' },
+    ms: { type: 'string' },
+    cost: { type: 'string' },
+    'du-weight': { type: 'string' },
+    structure: { type: 'string' },
+    evaluations: { type: 'string' },
+    time: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
-  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'optimize: missing FILE' : 'optimize: one FILE expected');
+  onePositional('optimize', positionals);
   const ms = values.ms === undefined ? 1.6 : Number(values.ms);
   if (!(ms > 1) || !Number.isFinite(ms)) throw new UserError('optimize: --ms must be a number > 1');
   const cost = values.cost ?? 'iae';

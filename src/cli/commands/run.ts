@@ -2,7 +2,7 @@
  * `looprig run FILE`: simulate the plant file's trial with its controller and report the metrics.
  * A diverging loop is a result (exit 0, reported clearly); a bad file or bad arguments exit 2.
  */
-import { parseArgs } from 'node:util';
+import { onePositional, parseCommandArgs } from '../parse-command.js';
 import { checkRequirements, trialMetrics } from '../../analysis/index.js';
 import type { RequirementResult, TrialMetrics } from '../../analysis/index.js';
 import { fileController } from '../../tune/index.js';
@@ -34,30 +34,17 @@ export interface RunOptions {
 
 /** Parse the arguments of `run`; any mistake is a `UserError` with exit status 2. */
 export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        json: { type: 'boolean' },
-        csv: { type: 'string' },
-        svg: { type: 'string' },
-        set: { type: 'string', multiple: true },
-        duration: { type: 'string' },
-        step: { type: 'string' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`run: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('run', args, {
+    json: { type: 'boolean' },
+    csv: { type: 'string' },
+    svg: { type: 'string' },
+    set: { type: 'string', multiple: true },
+    duration: { type: 'string' },
+    step: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
-  if (positionals.length !== 1) {
-    throw new UserError(positionals.length === 0 ? 'run: missing FILE' : `run: one FILE expected, got ${positionals.length}`);
-  }
+  onePositional('run', positionals);
   const time = (flag: string, raw: string | undefined): number | null => {
     if (raw === undefined) return null;
     let v: number;

@@ -2,7 +2,7 @@
  * `looprig suggest FILE [--json]`: every tuning rule on the plant file, each gain set simulated on
  * the full plant (its trial, limits, delays), one row per rule.
  */
-import { parseArgs } from 'node:util';
+import { onePositional, parseCommandArgs } from '../parse-command.js';
 import { parseDuration } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { caseFigures, suggestGains, summarise, sweepCaseCount, type SuggestResult, type Suggestion } from '../../tune/index.js';
@@ -42,28 +42,17 @@ interface SuggestArgs {
 }
 
 function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs | 'help' {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: {
-        json: { type: 'boolean' },
-        tauc: { type: 'string' },
-        lambda: { type: 'string' },
-        relay: { type: 'boolean' },
-        samples: { type: 'string' },
-        jobs: { type: 'string' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    });
-  } catch (error) {
-    throw new UserError(`suggest: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('suggest', args, {
+    json: { type: 'boolean' },
+    tauc: { type: 'string' },
+    lambda: { type: 'string' },
+    relay: { type: 'boolean' },
+    samples: { type: 'string' },
+    jobs: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) return 'help';
-  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'suggest: missing FILE' : 'suggest: one FILE expected');
+  onePositional('suggest', positionals);
   const time = (flag: string, raw: string | undefined): number | null => {
     if (raw === undefined) return null;
     let v: number;
