@@ -3,6 +3,7 @@
  * its errors turned into a UserError that names the command, and the usual one-FILE check.
  */
 import { parseArgs, type ParseArgsConfig } from 'node:util';
+import { parseDuration } from '../model/index.js';
 import { UserError } from './errors.js';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
@@ -25,4 +26,25 @@ export function onePositional(command: string, positionals: readonly string[], n
   if (positionals.length === 0) throw new UserError(`${command}: missing ${noun}`);
   if (positionals.length > 1) throw new UserError(`${command}: one ${noun} expected, got ${positionals.length}`);
   return positionals[0];
+}
+
+/** A positive time option (`600`, `600 s`, `10min`) in seconds, or null when absent. */
+export function timeOption(command: string, flag: string, raw: string | undefined): number | null {
+  if (raw === undefined) return null;
+  let v: number;
+  try {
+    v = parseDuration(raw);
+  } catch {
+    throw new UserError(`${command}: --${flag} ${raw}: not a time (write e.g. 600, 600s, 10min)`);
+  }
+  if (!(v > 0) || !Number.isFinite(v)) throw new UserError(`${command}: --${flag} must be a positive time, got ${raw}`);
+  return v;
+}
+
+/** A whole-number option >= `min`, or `fallback` when absent. */
+export function countOption(command: string, flag: string, raw: string | undefined, fallback: number, min: number): number {
+  if (raw === undefined) return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < min) throw new UserError(`${command}: --${flag} must be a whole number >= ${min}`);
+  return n;
 }

@@ -4,7 +4,7 @@
  * structure, gains, step and disturbance figures, actuator use, margins of the linearised loop
  * and the worst case over the file's uncertainty ranges.
  */
-import { onePositional, parseCommandArgs } from '../parse-command.js';
+import { countOption, onePositional, parseCommandArgs } from '../parse-command.js';
 import type { PlantSpec } from '../../model/types.js';
 import { compareCandidates, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -47,8 +47,7 @@ function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
   });
   if (values.help) return 'help';
   onePositional('compare', positionals);
-  const samples = values.samples === undefined ? 0 : Number(values.samples);
-  if (!Number.isInteger(samples) || samples < 0) throw new UserError('compare: --samples must be a whole number >= 0');
+  const samples = countOption('compare', 'samples', values.samples, 0, 0);
   return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true };
 }
 

@@ -3,8 +3,8 @@
  * minimise the cost on the full simulated trial subject to Ms <= target; progress on a terminal;
  * `--write` puts the result into the file (comments kept, atomic write).
  */
-import { onePositional, parseCommandArgs } from '../parse-command.js';
-import { controllerEdits, gainNote, parseDuration, savePlantValues } from '../../model/index.js';
+import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
+import { controllerEdits, gainNote, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -65,19 +65,8 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
   if (!(duWeight >= 0) || !Number.isFinite(duWeight)) throw new UserError('optimize: --du-weight must be >= 0');
   const structure = values.structure ?? null;
   if (structure !== null && structure !== 'pi' && structure !== 'pid') throw new UserError('optimize: --structure must be pi or pid');
-  const evaluations = values.evaluations === undefined ? 300 : Number(values.evaluations);
-  if (!Number.isInteger(evaluations) || evaluations < 1) throw new UserError('optimize: --evaluations must be a whole number >= 1');
-  let timeMs = 2000;
-  if (values.time !== undefined) {
-    let t: number;
-    try {
-      t = parseDuration(values.time);
-    } catch {
-      throw new UserError(`optimize: --time ${values.time}: not a time`);
-    }
-    if (!(t > 0)) throw new UserError('optimize: --time must be positive');
-    timeMs = t * 1000;
-  }
+  const evaluations = countOption('optimize', 'evaluations', values.evaluations, 300, 1);
+  const timeMs = (timeOption('optimize', 'time', values.time) ?? 2) * 1000;
   return { file: positionals[0], json: values.json === true, write: values.write === true, ms, cost, duWeight, structure, evaluations, timeMs };
 }
 

@@ -2,11 +2,11 @@
  * `looprig run FILE`: simulate the plant file's trial with its controller and report the metrics.
  * A diverging loop is a result (exit 0, reported clearly); a bad file or bad arguments exit 2.
  */
-import { onePositional, parseCommandArgs } from '../parse-command.js';
+import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import { checkRequirements, trialMetrics } from '../../analysis/index.js';
 import type { RequirementResult, TrialMetrics } from '../../analysis/index.js';
 import { fileController } from '../../tune/index.js';
-import { compilePlant, parseDuration } from '../../model/index.js';
+import { compilePlant } from '../../model/index.js';
 import type { PlantSpec, Requirements } from '../../model/types.js';
 import { chooseStep, runTrial } from '../../sim/index.js';
 import type { LoopConfig, Trace, TrialResult } from '../../sim/types.js';
@@ -45,25 +45,14 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
   });
   if (values.help) return 'help';
   onePositional('run', positionals);
-  const time = (flag: string, raw: string | undefined): number | null => {
-    if (raw === undefined) return null;
-    let v: number;
-    try {
-      v = parseDuration(raw);
-    } catch {
-      throw new UserError(`run: --${flag} ${raw}: not a time (write e.g. 600, 600s, 10min)`);
-    }
-    if (!(v > 0) || !Number.isFinite(v)) throw new UserError(`run: --${flag} must be a positive time, got ${raw}`);
-    return v;
-  };
   return {
     file: positionals[0],
     json: values.json === true,
     csv: values.csv ?? null,
     svg: values.svg ?? null,
     overrides: parseOverrides(values.set ?? []),
-    duration: time('duration', values.duration),
-    step: time('step', values.step),
+    duration: timeOption('run', 'duration', values.duration),
+    step: timeOption('run', 'step', values.step),
   };
 }
 

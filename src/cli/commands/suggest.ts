@@ -2,8 +2,7 @@
  * `looprig suggest FILE [--json]`: every tuning rule on the plant file, each gain set simulated on
  * the full plant (its trial, limits, delays), one row per rule.
  */
-import { onePositional, parseCommandArgs } from '../parse-command.js';
-import { parseDuration } from '../../model/index.js';
+import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import type { PlantSpec } from '../../model/types.js';
 import { caseFigures, suggestGains, summarise, sweepCaseCount, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -53,26 +52,13 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
   });
   if (values.help) return 'help';
   onePositional('suggest', positionals);
-  const time = (flag: string, raw: string | undefined): number | null => {
-    if (raw === undefined) return null;
-    let v: number;
-    try {
-      v = parseDuration(raw);
-    } catch {
-      throw new UserError(`suggest: --${flag} ${raw}: not a time`);
-    }
-    if (!(v > 0) || !Number.isFinite(v)) throw new UserError(`suggest: --${flag} must be a positive time`);
-    return v;
-  };
-  const samples = values.samples === undefined ? 0 : Number(values.samples);
-  if (!Number.isInteger(samples) || samples < 0) throw new UserError('suggest: --samples must be a whole number >= 0');
-  const jobs = values.jobs === undefined ? sweepJobs(env) : Number(values.jobs);
-  if (!Number.isInteger(jobs) || jobs < 1) throw new UserError('suggest: --jobs must be a whole number >= 1');
+  const samples = countOption('suggest', 'samples', values.samples, 0, 0);
+  const jobs = countOption('suggest', 'jobs', values.jobs, sweepJobs(env), 1);
   return {
     file: positionals[0],
     json: values.json === true,
-    tauc: time('tauc', values.tauc),
-    lambda: time('lambda', values.lambda),
+    tauc: timeOption('suggest', 'tauc', values.tauc),
+    lambda: timeOption('suggest', 'lambda', values.lambda),
     relay: values.relay === true,
     samples,
     jobs,
