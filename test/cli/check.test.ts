@@ -38,10 +38,8 @@ const tmp = mkdtempSync(join(tmpdir(), 'looprig-check-'));
 afterAll(() => rmSync(tmp, { recursive: true, force: true }));
 
 describe('check on the bundled plants/', () => {
-  it('every requirement of every file in one table; exit 1 because one plant fails on purpose; a few seconds', async () => {
-    const t0 = performance.now();
+  it('every requirement of every file in one table; exit 1 because one plant fails on purpose', async () => {
     const r = await cli(['check', 'plants']);
-    const seconds = (performance.now() - t0) / 1000;
     expect(r.err).toBe('');
     // pipe-outlet-temperature.yaml fails settling_time deliberately (its header says so).
     expect(r.code).toBe(1);
@@ -50,8 +48,6 @@ describe('check on the bundled plants/', () => {
     for (const f of bundled) expect(r.out).toContain(`plants/${f}`);
     expect(lines.filter((l) => /\sFAIL(\s|$)/.test(l))).toEqual([expect.stringMatching(/^plants\/pipe-outlet-temperature\.yaml\s+settling_time\s+nominal/)]);
     expect(r.out).toContain(`${bundled.length} files: ${bundled.length - 1} pass, 1 fail, 0 invalid`);
-    // "Checks in a few seconds": under 10 s even on a busy shared machine (measured ~0.3 s alone).
-    expect(seconds).toBeLessThan(10);
   });
 
   it('--json: one document with a row per requirement, the same verdicts as `run`', async () => {
