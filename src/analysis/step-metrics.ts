@@ -491,9 +491,13 @@ function disturbanceMetrics(
 }
 
 function overallMetrics(trace: Trace, jumpAt: Uint8Array): OverallMetrics {
+  // Channels in locals: one pass over every row of every case of a sweep.
   const n = trace.length;
   const t = trace.t;
   const u = trace.u;
+  const r = trace.r;
+  const y = trace.y;
+  const sat = trace.sat;
   let iae = 0;
   let ise = 0;
   let itae = 0;
@@ -503,24 +507,35 @@ function overallMetrics(trace: Trace, jumpAt: Uint8Array): OverallMetrics {
   let maxU = n > 0 ? u[0] : NaN;
   let minU = n > 0 ? u[0] : NaN;
   const t0 = n > 0 ? t[0] : 0;
+  // Worked out before the loop: code compiled while the loop runs (on-stack replacement) would
+  // otherwise reach a comparison after it with no type feedback and be thrown away on every call.
+  const duration = n > 0 ? t[n - 1] - t0 : 0;
+  let tPrev = t0;
+  let uPrev = n > 0 ? u[0] : 0;
+  let ea = n > 0 ? Math.abs(r[0] - y[0]) : 0;
   for (let i = 1; i < n; i++) {
-    const h = t[i] - t[i - 1];
-    const ea = Math.abs(trace.r[i - 1] - trace.y[i - 1]);
+    const ti = t[i];
+    const h = ti - tPrev;
     // Left limit of the setpoint at t[i]: the old level when a step takes effect at sample i.
-    const rb = jumpAt[i] !== 0 ? trace.r[i - 1] : trace.r[i];
-    const eb = Math.abs(rb - trace.y[i]);
+    const rb = jumpAt[i] !== 0 ? r[i - 1] : r[i];
+    const yi = y[i];
+    const eb = Math.abs(rb - yi);
     iae += 0.5 * h * (ea + eb);
     ise += 0.5 * h * (ea * ea + eb * eb);
-    itae += 0.5 * h * ((t[i - 1] - t0) * ea + (t[i] - t0) * eb);
-    tv += Math.abs(u[i] - u[i - 1]);
-    if (trace.sat[i - 1] !== 0) satTime += h;
-    const a = Math.abs(u[i]);
+    itae += 0.5 * h * ((tPrev - t0) * ea + (ti - t0) * eb);
+    const ui = u[i];
+    tv += Math.abs(ui - uPrev);
+    if (sat[i - 1] !== 0) satTime += h;
+    const a = Math.abs(ui);
     if (!(a <= maxAbs)) maxAbs = a;
-    if (!(u[i] <= maxU)) maxU = u[i];
-    if (!(u[i] >= minU)) minU = u[i];
+    if (!(ui <= maxU)) maxU = ui;
+    if (!(ui >= minU)) minU = ui;
+    ea = Math.abs(r[i] - yi);
+    tPrev = ti;
+    uPrev = ui;
   }
   return {
-    duration: n > 0 ? t[n - 1] - t0 : 0,
+    duration,
     iae,
     ise,
     itae,
