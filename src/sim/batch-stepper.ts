@@ -120,6 +120,16 @@ export function liftedSources(
   plant: PlantDynamics,
   helpers: Readonly<Record<string, (...args: number[]) => number>> = MATH_HELPERS,
 ): LiftedSources {
+  // The cases of a sweep share their sources (only parameter values differ): checked and lifted
+  // once per text, not once per case and chunk.
+  const key = [plant.nx, plant.params.length, plant.d0.length, plant.outputSource, ...plant.derivSource].join('\u0000');
+  let byText = liftedCache.get(helpers);
+  if (byText === undefined) {
+    byText = new Map();
+    liftedCache.set(helpers, byText);
+  }
+  const hit = byText.get(key);
+  if (hit !== undefined) return { ...hit, deriv: [...hit.deriv], values: [...hit.values], inverses: [...hit.inverses] };
   const prepared = prepareSources(plant, helpers);
   checkSource(plant.outputSource, plant.nx, plant.params.length, plant.d0.length, helpers);
   const values: number[] = [];
@@ -134,8 +144,15 @@ export function liftedSources(
   const deriv = prepared.deriv.map(lift);
   const output = lift(prepared.output);
   const raw = lift(plant.outputSource);
-  return { deriv, output, raw, values, inverses: [...prepared.inverses].sort((a, b) => a - b) };
+  const lifted = { deriv, output, raw, values, inverses: [...prepared.inverses].sort((a, b) => a - b) };
+  if (byText.size >= LIFTED_LIMIT) byText.delete(byText.keys().next().value as string);
+  byText.set(key, lifted);
+  return { ...lifted, deriv: [...deriv], values: [...values], inverses: [...lifted.inverses] };
 }
+
+/** Most source texts kept per helper table. */
+const LIFTED_LIMIT = 64;
+const liftedCache = new WeakMap<object, Map<string, LiftedSources>>();
 
 /**
  * What the generated code depends on besides the plant: the loop features, the same for every

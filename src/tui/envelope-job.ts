@@ -5,7 +5,7 @@
  * plan and its output envelope is merged into the total by min / max per sample, which gives
  * the same envelope as one sweep over all cases (min and max do not depend on the order).
  */
-import { planSweep, robustnessSweep, type RobustnessCase, type SweepPlan, type TraceEnvelope } from '../tune/index.js';
+import { mergeEnvelopes, planSweep, robustnessSweep, type RobustnessCase, type SweepPlan, type TraceEnvelope } from '../tune/index.js';
 import { runningGains, type LoopSetup } from './engine.js';
 import type { GainEdit } from './state.js';
 
@@ -21,21 +21,11 @@ export function sweepPlan(setup: LoopSetup): SweepPlan {
   return p;
 }
 
-/** Merge `part` into `into` (min of lo, max of hi); a part shorter than the total (a diverged case) is unbounded after its end. */
+/** Merge `part` into `into` (tune's mergeEnvelopes); the nominal line stays the first part's (the nominal case is swept first). */
 export function mergeEnvelope(into: TraceEnvelope | null, part: TraceEnvelope): TraceEnvelope {
   if (into === null) return { t: part.t.slice(), lo: part.lo.slice(), hi: part.hi.slice(), nominal: part.nominal.slice() };
-  const long = into.t.length >= part.t.length ? into : part;
-  const n = long.t.length;
-  const lo = new Float64Array(n);
-  const hi = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    const a = i < into.t.length;
-    const b = i < part.t.length;
-    lo[i] = a && b ? Math.min(into.lo[i], part.lo[i]) : -Infinity;
-    hi[i] = a && b ? Math.max(into.hi[i], part.hi[i]) : Infinity;
-  }
-  // The nominal output comes from the part that held the nominal case (the first one swept).
-  return { t: long.t.slice(), lo, hi, nominal: into.nominal };
+  const m = mergeEnvelopes(into, part);
+  return { t: m.t, lo: m.lo, hi: m.hi, nominal: into.nominal };
 }
 
 export class EnvelopeJob {

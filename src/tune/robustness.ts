@@ -13,8 +13,9 @@ import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { ControllerStructure, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
 import { Rng } from '../num/index.js';
-import { runTrialBatch, withParams, type DiscreteController, type PlantDynamics, type TrialResult } from '../sim/index.js';
+import { batchChunks, createTrace, DEFAULT_BATCH_WIDTH, runTrialBatch, withParams, type DiscreteController, type PlantDynamics, type Trace, type TrialResult } from '../sim/index.js';
 import type { Margins, TrialMetrics } from '../analysis/index.js';
+import { EnvelopeBuilder, finishEnvelope, mergeEnvelopes, type PartialEnvelope, type TraceEnvelope } from './envelope.js';
 import { gainMargins, simulateGains } from './evaluate.js';
 import { specWithValues } from './uncertain-spec.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
@@ -66,15 +67,6 @@ export interface RobustnessSummary {
   worstSettlingTime: number;
   worstIae: number;
   worstMs: number;
-}
-
-/** Output envelope over the cases, one row per trace sample. */
-export interface TraceEnvelope {
-  t: Float64Array;
-  lo: Float64Array;
-  hi: Float64Array;
-  /** The nominal output. */
-  nominal: Float64Array;
 }
 
 /** Result of `robustnessSweep`. */
@@ -152,60 +144,45 @@ export function robustnessSweep(
 ): RobustnessResult {
   const notes = [...plan.notes];
   const keep = options.envelope ?? true;
-  const run = runCases(plan.cases, gains, options, spec, keep);
+  const run = runCases(plan.cases, gains, options, spec, keep, true);
   if (run.single > 0) notes.push(singleNote(run.single, plan.cases.length, run.why));
-  const envelope = keep ? envelopeOf(run.outputs) : null;
-  return { summary: summarise(run.cases), cases: run.cases, envelope, notes };
+  return { summary: summarise(run.cases), cases: run.cases, envelope: finishEnvelope(run.envelope), notes };
 }
 
-/** Simulate the listed cases (in list order) and take their figures; outputs kept for the envelope. */
+/**
+ * Simulate the listed cases and take their figures (in list order); their outputs go into the
+ * envelope as each case is done (`firstIsNominal`: the first case gives the nominal line).
+ */
 function runCases(
   list: SweepPlan['cases'],
   gains: GainSet,
   options: RobustnessOptions,
   spec: PlantSpec,
   keep: boolean,
-): { cases: RobustnessCase[]; outputs: { t: Float64Array; y: Float64Array }[]; single: number; why: string[] } {
+  firstIsNominal: boolean,
+): { cases: RobustnessCase[]; envelope: PartialEnvelope | null; single: number; why: string[] } {
   const structure = options.structure ?? spec.loop.controller.structure;
   const g = applyStructure(structure, gains);
-  const cases: RobustnessCase[] = [];
-  const outputs: { t: Float64Array; y: Float64Array }[] = [];
-  const batch = options.runner === 'sequential' ? null : batchedRuns(list, g, structure);
-  for (let i = 0; i < list.length; i++) {
+  const cases = new Array<RobustnessCase>(list.length);
+  const envelope = keep ? new EnvelopeBuilder() : null;
+  const take = (i: number, result: TrialResult, metrics: TrialMetrics): void => {
     const ctx = list[i].ctx;
-    const { result, metrics } = batch === null ? simulateGains(ctx, g, structure) : batch.runs[i];
-    cases.push(caseFigures(list[i].kind, list[i].values, result, metrics, gainMargins(ctx, g)));
-    if (keep) outputs.push({ t: result.trace.t.slice(0, result.trace.length), y: result.trace.y.slice(0, result.trace.length) });
+    cases[i] = caseFigures(list[i].kind, list[i].values, result, metrics, gainMargins(ctx, g));
+    envelope?.add(result.trace, firstIsNominal && i === 0);
+  };
+  if (options.runner === 'sequential') {
+    for (let i = 0; i < list.length; i++) {
+      const { result, metrics } = simulateGains(list[i].ctx, g, structure);
+      take(i, result, metrics);
+    }
+    return { cases, envelope: envelope?.part() ?? null, single: 0, why: [] };
   }
-  return { cases, outputs, single: batch?.single ?? 0, why: batch?.why ?? [] };
+  const batch = batchedRuns(list, g, structure, take);
+  return { cases, envelope: envelope?.part() ?? null, single: batch.single, why: batch.why };
 }
 
 function singleNote(single: number, total: number, why: readonly string[]): string {
   return `${single} of ${total} cases simulated one at a time (${why.join('; ')})`;
-}
-
-/** The envelope of the cases' outputs, in case order (the first case, the nominal, gives t). */
-function envelopeOf(outputs: readonly { t: Float64Array | null; y: Float64Array }[]): TraceEnvelope | null {
-  let envelope: TraceEnvelope | null = null;
-  for (const o of outputs) {
-    if (envelope === null) {
-      if (o.t === null) throw new RangeError('envelopeOf: the first case carries no time axis');
-      envelope = { t: o.t.slice(), lo: o.y.slice(), hi: o.y.slice(), nominal: o.y.slice() };
-      continue;
-    }
-    const n = Math.min(envelope.t.length, o.y.length);
-    for (let i = 0; i < n; i++) {
-      const y = o.y[i];
-      if (y < envelope.lo[i]) envelope.lo[i] = y;
-      if (y > envelope.hi[i]) envelope.hi[i] = y;
-    }
-    // A diverged case stops early: its absence after that is shown as an unbounded envelope.
-    for (let i = n; i < envelope.t.length; i++) {
-      envelope.lo[i] = -Infinity;
-      envelope.hi[i] = Infinity;
-    }
-  }
-  return envelope;
 }
 
 /** Number of cases `planSweep(spec, options)` prepares (cheap: nothing is compiled). */
@@ -233,8 +210,8 @@ export interface SweepPart {
   /** Number of cases of the whole sweep. */
   total: number;
   cases: RobustnessCase[];
-  /** Output of each case (trace length); `t` only on case 0 (the envelope's time axis). Null without envelope. */
-  outputs: { t: Float64Array | null; y: Float64Array }[] | null;
+  /** Envelope of the part's outputs (the nominal line on the part holding case 0); null without envelope. */
+  envelope: PartialEnvelope | null;
   /** The sweep's own notes (no uncertainty, corners skipped). */
   headNotes: string[];
   /** Per case: its preparation notes not already among the plant's (as `planSweep` collects them). */
@@ -284,12 +261,12 @@ export function sweepPart(
     return c;
   });
   const keep = options.envelope ?? true;
-  const run = runCases(list, gains, options, spec, keep);
+  const run = runCases(list, gains, options, spec, keep, indices[0] === 0);
   return {
     indices,
     total: all.length,
     cases: run.cases,
-    outputs: keep ? run.outputs.map((o, j) => ({ t: indices[j] === 0 ? o.t : null, y: o.y })) : null,
+    envelope: run.envelope,
     headNotes: headNotesOf(spec, options),
     caseNotes: list.map((c) => c.ctx.notes.filter((n) => !base.notes.includes(n))),
     single: run.single,
@@ -316,15 +293,14 @@ export function mergeSweep(parts: readonly SweepPart[]): RobustnessResult {
   const order = [...parts].sort((a, b) => (a.indices[0] ?? total) - (b.indices[0] ?? total));
   const cases: RobustnessCase[] = [];
   const notes = [...parts[0].headNotes];
-  const keep = parts[0].outputs !== null;
-  const outputs: { t: Float64Array | null; y: Float64Array }[] = [];
   for (let i = 0; i < total; i++) {
     const s = slot[i];
     if (s === undefined) throw new RangeError(`mergeSweep: case ${i} missing`);
     cases.push(s.part.cases[s.j]);
     for (const n of s.part.caseNotes[s.j]) if (!notes.includes(n)) notes.push(n);
-    if (keep) outputs.push((s.part.outputs as NonNullable<SweepPart['outputs']>)[s.j]);
   }
+  let envelope: PartialEnvelope | null = null;
+  for (const p of order) if (p.envelope !== null) envelope = envelope === null ? p.envelope : mergeEnvelopes(envelope, p.envelope);
   let single = 0;
   const why: string[] = [];
   for (const p of order) {
@@ -332,7 +308,7 @@ export function mergeSweep(parts: readonly SweepPart[]): RobustnessResult {
     for (const n of p.why) if (!why.includes(n)) why.push(n);
   }
   if (single > 0) notes.push(singleNote(single, total, why));
-  return { summary: summarise(cases), cases, envelope: keep ? envelopeOf(outputs) : null, notes };
+  return { summary: summarise(cases), cases, envelope: finishEnvelope(envelope), notes };
 }
 
 /**
@@ -368,13 +344,17 @@ function sameTrial(a: TrialSpec, b: TrialSpec): boolean {
   return true;
 }
 
-/** All cases simulated through the batch runner (grouped by trial), with their metrics. */
+/**
+ * All cases simulated through the batch runner, grouped by trial, a chunk of loops at a time;
+ * each chunk's results are handed to `take` (with their metrics) before the next chunk runs, so
+ * a handful of traces is recorded into over and over instead of one trace per case.
+ */
 function batchedRuns(
   list: SweepPlan['cases'],
   gains: GainSet,
   structure: ControllerStructure,
-): { runs: { result: TrialResult; metrics: TrialMetrics }[]; single: number; why: string[] } {
-  const out = new Array<{ result: TrialResult; metrics: TrialMetrics }>(list.length);
+  take: (i: number, result: TrialResult, metrics: TrialMetrics) => void,
+): { single: number; why: string[] } {
   const groups: { trial: TrialSpec; idx: number[] }[] = [];
   list.forEach((c, i) => {
     const grp = groups.find((x) => sameTrial(x.trial, c.ctx.trial));
@@ -384,17 +364,29 @@ function batchedRuns(
   let single = 0;
   const why: string[] = [];
   for (const grp of groups) {
-    const members = grp.idx.map((i) => ({ plant: list[i].ctx.dynamics, controller: gainController(list[i].ctx, gains, structure), loop: list[i].ctx.loop }));
-    const b = runTrialBatch(members, grp.trial);
-    grp.idx.forEach((i, j) => {
-      const ctx = list[i].ctx;
-      const result = b.results[j];
-      out[i] = { result, metrics: trialMetrics(result.trace, ctx.trial, ctx.spec.loop.requirements) };
-      if (!b.batched[j]) single++;
-    });
-    for (const n of b.notes) if (!why.includes(n)) why.push(n);
+    const ctx0 = list[grp.idx[0]].ctx;
+    const rows = ctx0.loop.sampleTime > 0 ? Math.ceil(grp.trial.duration / ctx0.loop.sampleTime - 1e-9) + 1 : 0;
+    let traces: Trace[] | undefined;
+    for (const chunk of batchChunks(grp.idx, DEFAULT_BATCH_WIDTH)) {
+      const members = chunk.map((i) => ({ plant: list[i].ctx.dynamics, controller: gainController(list[i].ctx, gains, structure), loop: list[i].ctx.loop }));
+      // Storage only where every case of the chunk has the first case's sample grid and disturbances.
+      const fits = chunk.every((i) => list[i].ctx.loop.sampleTime === ctx0.loop.sampleTime && sameNames(list[i].ctx.dynamics.disturbanceNames, ctx0.dynamics.disturbanceNames));
+      if (fits && rows > 0 && traces === undefined) traces = Array.from({ length: DEFAULT_BATCH_WIDTH }, () => createTrace(rows, ctx0.dynamics.disturbanceNames));
+      const b = runTrialBatch(members, grp.trial, fits ? { traces } : {});
+      chunk.forEach((i, j) => {
+        const ctx = list[i].ctx;
+        const result = b.results[j];
+        take(i, result, trialMetrics(result.trace, ctx.trial, ctx.spec.loop.requirements));
+        if (!b.batched[j]) single++;
+      });
+      for (const n of b.notes) if (!why.includes(n)) why.push(n);
+    }
   }
-  return { runs: out, single, why };
+  return { single, why };
+}
+
+function sameNames(a: readonly string[], b: readonly string[]): boolean {
+  return a.length === b.length && a.every((n, i) => n === b[i]);
 }
 
 /** The figures of one simulated case. */

@@ -269,7 +269,7 @@ function longRun(): void {
 }
 
 function longRunInFreshProcess(): void {
-  const out = execFileSync(process.execPath, ['--import', 'tsx', fileURLToPath(import.meta.url)], {
+  const out = execFileSync(process.execPath, ['--import', 'tsx/esm', fileURLToPath(import.meta.url)], {
     env: { ...process.env, LOOPRIG_BENCH_LONG_RUN: '1' },
     encoding: 'utf8',
   });

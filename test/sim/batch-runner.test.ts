@@ -13,7 +13,9 @@ import { buildController, PidController } from '../../src/control/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import type { AntiWindup, GainSet, TrialEvent, TrialSpec } from '../../src/model/types.js';
 import {
+  batchChunks,
   batchSource,
+  createTrace,
   generateBatch,
   liftedSources,
   runTrial,
@@ -180,6 +182,43 @@ describe('runTrialBatch equals runTrial bit for bit', () => {
     expect(res[2].status).toBe('diverged');
     expect(res[1].status).toBe('ok');
     expect(res[2].divergedAt).toBeLessThan(res[0].divergedAt as number);
+  });
+
+  it('recording into the caller\'s traces, reused call after call (a diverged run first), changes nothing', () => {
+    const tr = trial(600, [{ kind: 'setpoint', at: 1, value: 0 }]);
+    const traces = [createTrace(1201, []), createTrace(1201, [])];
+    const rounds: Case[][] = [
+      [
+        { plant: H.unstable(3, 0.1), gains: { kc: 0, ti: Infinity }, loop: loopConfig(0.5, 0.1) },
+        { plant: H.unstable(0.5, 0.1), gains: { kc: 2, ti: 10 }, loop: loopConfig(0.5, 0.1, { sensor: { noiseStd: 0.01, seed: 3 } }) },
+      ],
+      [
+        { plant: H.unstable(0.5, 0.1), gains: { kc: 3, ti: 8 }, loop: loopConfig(0.5, 0.1, { sensor: { noiseStd: 0.01, seed: 3 } }) },
+        { plant: H.unstable(1.5, 0.1), gains: { kc: 0.01, ti: Infinity }, loop: loopConfig(0.5, 0.1) },
+      ],
+    ];
+    for (const cases of rounds) {
+      const members = cases.map((c) => ({ plant: c.plant, controller: pid(c.gains, c.loop.sampleTime), loop: c.loop }));
+      const res = runTrialBatch(members, tr, { traces });
+      cases.forEach((c, i) => {
+        expect(res.results[i].trace).toBe(traces[i]);
+        expect(difference(res.results[i], runTrial(c.plant, pid(c.gains, c.loop.sampleTime), c.loop, tr)), `case ${i}`).toBeNull();
+      });
+    }
+    const short = { plant: H.unstable(0.5, 0.1), controller: pid({ kc: 2, ti: 10 }, 0.5), loop: loopConfig(0.5, 0.1) };
+    expect(() => runTrialBatch([short], tr, { traces: [createTrace(100, [])] })).toThrow(RangeError);
+    expect(() => runTrialBatch([short, short], tr, { traces: [traces[0]] })).toThrow(RangeError);
+  });
+
+  it('batchChunks: consecutive chunks of at most the width, sizes differing by at most one', () => {
+    const sizes = (n: number, w: number): number[] => batchChunks(Array.from({ length: n }, (_, i) => i), w).map((c) => c.length);
+    expect(sizes(51, 4)).toEqual([...Array(12).fill(4), 3]);
+    expect(sizes(25, 4)).toEqual([4, 4, 4, 4, 3, 3, 3]);
+    expect(sizes(26, 4)).toEqual([4, 4, 4, 4, 4, 3, 3]);
+    expect(sizes(3, 8)).toEqual([3]);
+    expect(sizes(0, 4)).toEqual([]);
+    expect(batchChunks([1, 2, 3, 4, 5], 2)).toEqual([[1, 2], [3, 4], [5]]);
+    expect(() => batchChunks([1], 0)).toThrow(RangeError);
   });
 
   it('every bundled plant file: the robustness cases of its own controller', () => {
