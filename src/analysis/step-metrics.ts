@@ -269,6 +269,18 @@ export function checkRequirements(metrics: TrialMetrics, requirements: Requireme
   return out;
 }
 
+/** The plant-file names of the time-domain requirements that `requirements` sets (those `checkRequirements` checks), in its order. */
+export function timeRequirementNames(requirements: Requirements): string[] {
+  const none: TrialMetrics = {
+    overall: { duration: 0, iae: 0, ise: 0, itae: 0, uTotalVariation: 0, saturatedTime: 0, maxAbsOutput: 0, maxOutput: 0, minOutput: 0 },
+    steps: [],
+    ramps: [],
+    disturbances: [],
+    firstStep: null,
+  };
+  return checkRequirements(none, requirements).map((r) => r.name);
+}
+
 // ---------------------------------------------------------------- segments
 
 function nextEventTime(events: readonly TrialEvent[], k: number, tEnd: number): number {

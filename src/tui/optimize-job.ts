@@ -2,10 +2,10 @@
  * tune's optimiser run in slices, so the screen keeps answering keys (Esc stops it) while it
  * works. `optimizeGains` is one synchronous call with an evaluation budget and a start point, so
  * the run here is a chain of short calls: each slice gets a small evaluation budget and starts
- * from the best gain set found so far. Before the first slice the starting gain set is chosen as
- * optimize.ts chooses it (the best rule of the structure on the same cost among those meeting the
- * Ms target, else the most robust rule, else the gains being edited), the rules being run one
- * slice at a time as well (SuggestJob).
+ * from the best gain set found so far. Before the first slice the starting gain set is chosen by
+ * optimize.ts's own `chooseStart` among the structure's rules and the gains being edited (ranked
+ * as the optimiser ranks probes: Ms, the file's requirements, then the cost), the rules being run
+ * one slice at a time as well (SuggestJob).
  *
  * What slicing changes: every slice rebuilds the simplex around the best point (a restart, which
  * the Nelder-Mead code does by itself after each convergence). Slices are cut by evaluation
@@ -13,9 +13,20 @@
  * uninterrupted `looprig optimize` run, and the result says so. The search ends when the budget
  * is used, when a slice converges without improving the best cost, or on cancel.
  */
-import type { Margins } from '../analysis/index.js';
 import type { GainSet } from '../model/types.js';
-import { DEFAULT_COST, evaluateGains, optimizeGains, TUNING_RULES, type GainEvaluation, type OptimizeProgress } from '../tune/index.js';
+import {
+  chooseStart,
+  DEFAULT_COST,
+  evaluateGains,
+  INFEASIBLE_RANK,
+  optimizeGains,
+  optimizerScore,
+  TUNING_RULES,
+  type GainEvaluation,
+  type OptimizeProgress,
+  type StartCandidate,
+  UNMET_RANK,
+} from '../tune/index.js';
 import { contextFor, editWithGains, plantFor, type LoopSetup } from './engine.js';
 import type { GainEdit } from './state.js';
 import { SuggestJob } from './suggest-job.js';
@@ -31,19 +42,6 @@ export interface OptimizeJobOptions {
   sliceEvaluations?: number;
   /** Wall-clock guard of one slice, ms (default 250); hitting it is reported (the result then depends on speed). */
   sliceCapMs?: number;
-}
-
-/** Any feasible cost is below this (the optimiser's own rule, optimize.ts). */
-const INFEASIBLE = 1e15;
-
-function feasible(m: Margins | null, msTarget: number): boolean {
-  return m === null || (m.closedLoopStable !== false && m.maxSensitivity <= msTarget);
-}
-
-/** The optimiser's ordering of gain sets: feasible ones by cost, then infeasible ones by Ms. */
-function score(e: GainEvaluation, msTarget: number): number {
-  if (feasible(e.margins, msTarget)) return e.cost;
-  return INFEASIBLE + (e.margins!.closedLoopStable === false ? 1e6 : e.margins!.maxSensitivity);
 }
 
 export class OptimizeJob {
@@ -111,27 +109,16 @@ export class OptimizeJob {
 
   private chooseStart(): void {
     const ms = this.msTarget;
-    // The edited set on the same cost, for the result to be read against.
+    // The edited set on the same cost, for the result to be read against, and as a candidate start.
     const now = evaluateGains(contextFor(this.setup, this.base), this.base.gains, this.base.structure, { cost: DEFAULT_COST, msLimit: ms });
     this.current = { cost: now.cost, ms: now.margins === null ? NaN : now.margins.closedLoopStable === false ? Infinity : now.margins.maxSensitivity };
-    const candidates = this.rules.suggestions;
-    const ok = candidates.filter((x) => feasible(x.evaluation.margins, ms) && Number.isFinite(x.evaluation.cost));
-    ok.sort((a, b) => a.evaluation.cost - b.evaluation.cost);
-    if (ok.length > 0) {
-      this.start = ok[0].gains;
-      this.startLabel = ok[0].rule.label;
-    } else {
-      const any = candidates.filter((x) => x.evaluation.margins !== null || Number.isFinite(x.evaluation.cost));
-      any.sort((a, b) => (a.evaluation.margins?.maxSensitivity ?? Infinity) - (b.evaluation.margins?.maxSensitivity ?? Infinity));
-      if (any.length > 0) {
-        this.start = any[0].gains;
-        this.startLabel = any[0].rule.label;
-        this.notes.push(`no ${this.structure.toUpperCase()} rule meets Ms <= ${ms}: started from the most robust (${any[0].rule.label})`);
-      } else {
-        this.start = this.base.gains;
-        this.notes.push(`no ${this.structure.toUpperCase()} rule applies to this plant: started from the edited gains`);
-      }
-    }
+    const candidates: StartCandidate[] = this.rules.suggestions.map((x) => ({ label: x.rule.label, gains: x.gains, evaluation: x.evaluation, rule: x }));
+    const own = this.base.structure === this.structure;
+    if (own) candidates.push({ label: 'the edited gains', gains: this.base.gains, evaluation: now, rule: null });
+    const pick = chooseStart(candidates, ms, true, this.structure, 'the edited gains');
+    if (pick.note !== null) this.notes.push(pick.note);
+    this.start = pick.chosen?.gains ?? this.base.gains;
+    this.startLabel = pick.chosen?.label ?? 'the edited gains';
     this.phase = 'search';
   }
 
@@ -154,7 +141,7 @@ export class OptimizeJob {
     this.evaluations += r.evaluations;
     this.sliceEvaluations = 0;
     if (this.slices === 1) this.startCost = r.startCost;
-    const s = score(r.best, this.msTarget);
+    const s = optimizerScore(r.best, this.msTarget, true);
     const improved = this.best === null || s < this.bestScore - 1e-9 * Math.abs(this.bestScore);
     if (improved) {
       this.best = r.best;
@@ -177,7 +164,7 @@ export class OptimizeJob {
   }
 
   view(): OptimizeView {
-    const bestCost = Math.min(this.best !== null && feasible(this.best.margins, this.msTarget) ? this.best.cost : Infinity, this.sliceBest);
+    const bestCost = Math.min(this.best !== null && this.bestScore < UNMET_RANK ? this.best.cost : Infinity, this.sliceBest);
     return {
       phase: this.phase === 'start' ? 'start' : 'search',
       rulesDone: this.rules.view().done,
@@ -198,7 +185,8 @@ export class OptimizeJob {
   outcome(): OptimizeOutcome {
     const b = this.best;
     const notes = [...this.notes, 'run in slices from the best point so far: figures can differ from one looprig optimize run'];
-    if (b !== null && !feasible(b.margins, this.msTarget)) notes.unshift(`no gain set found that meets Ms <= ${this.msTarget}`);
+    if (b !== null && this.bestScore >= INFEASIBLE_RANK) notes.unshift(`no gain set found that meets Ms <= ${this.msTarget}`);
+    else if (b !== null && this.bestScore >= UNMET_RANK) notes.unshift("no gain set found that meets all of the file's requirements: the nearest found");
     const runs = b !== null && Number.isFinite(b.cost) && !b.flags.some((f) => f.code === 'DIVERGED' || f.code === 'UNSTABLE_LOOP');
     const first = b?.metrics.firstStep ?? null;
     const m = b?.margins ?? null;

@@ -14,6 +14,7 @@ const FLAG_WORDS: Record<GainFlag['code'], string> = {
   DIVERGED: 'diverged',
   UNSTABLE_LOOP: 'unstable',
   SATURATED: 'saturated',
+  NOISE_AT_RATE_LIMIT: 'noisy valve',
   MS_ABOVE_TARGET: 'Ms high',
   REQUIREMENT_FAILED: 'fails req.',
   NO_MARGINS: 'no margins',

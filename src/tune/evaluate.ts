@@ -8,11 +8,12 @@ import { applyStructure, buildController } from '../control/index.js';
 import type { ControllerStructure, GainSet } from '../model/types.js';
 import { runTrial, type TrialResult } from '../sim/index.js';
 import { trialCost, type CostSpec, DEFAULT_COST } from './cost.js';
+import { noiseActivity, type NoiseActivity } from './noise-activity.js';
 import type { TuningContext } from './tuning-context.js';
 
 /** A finding about one gain set. */
 export interface GainFlag {
-  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS' | 'NO_FILE_FORM';
+  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'NOISE_AT_RATE_LIMIT' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS' | 'NO_FILE_FORM';
   message: string;
 }
 
@@ -29,6 +30,8 @@ export interface GainEvaluation {
   cost: number;
   /** Fraction of the trial with the actuator at a limit, 0..1. */
   saturatedFraction: number;
+  /** What sensor noise alone does to the actuator (null without noise or without the plain PID law). */
+  noise: NoiseActivity | null;
   flags: GainFlag[];
 }
 
@@ -45,6 +48,15 @@ export interface EvaluateOptions {
 export function gainMargins(ctx: TuningContext, gains: GainSet): Margins | null {
   if (ctx.response === null) return null;
   return loopMargins(ctx.response, gains, ctx.spec.loop.sampleTime, ctx.spec.sensor);
+}
+
+/** Noise-driven actuator activity of a gain set (noise-activity.ts); null without sensor noise. */
+function noiseOf(ctx: TuningContext, gains: GainSet, structure: ControllerStructure): NoiseActivity | null {
+  const spec = ctx.spec;
+  if (!(spec.sensor.noiseStd > 0)) return null;
+  const { extension: _structure, named: _named, ...plain } = spec.loop.controller;
+  const law = buildController({ ...plain, structure, gains }, spec.loop.sampleTime).pidLaw?.() ?? null;
+  return law === null ? null : noiseActivity(law, spec.sensor.noiseStd, spec.actuator.rateLimit);
 }
 
 /** Simulate the file's trial with `gains` (structure imposed) and measure it. */
@@ -96,10 +108,19 @@ export function evaluateGains(
       message: `actuator at a limit for ${(100 * saturatedFraction).toFixed(0)} % of the trial`,
     });
   }
+  const noise = noiseOf(ctx, g, structure);
+  if (noise !== null && noise.rateLimitedShare > satFlag) {
+    flags.push({
+      code: 'NOISE_AT_RATE_LIMIT',
+      message:
+        `sensor noise alone moves the actuator ~${noise.stepStd.toPrecision(2)} per sample (1 sigma) against a rate limit of ${noise.rateStep.toPrecision(2)}: ` +
+        `rate-limited on ~${(100 * noise.rateLimitedShare).toFixed(0)} % of samples by noise (lower kc, more sensor filtering, or a weight on output variation)`,
+    });
+  }
   for (const r of requirements) {
     if (!r.pass) flags.push({ code: 'REQUIREMENT_FAILED', message: `${r.name} ${formatMeasured(r.measured)} (limit ${r.limit})` });
   }
-  return { gains: g, structure, result, metrics, margins, requirements, cost, saturatedFraction, flags };
+  return { gains: g, structure, result, metrics, margins, requirements, cost, saturatedFraction, noise, flags };
 }
 
 function formatMeasured(v: number): string {

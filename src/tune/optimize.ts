@@ -1,19 +1,25 @@
 /**
  * Gain optimisation on the full simulated trial: minimise the stated cost (IAE by default) subject
- * to Ms <= a target and the actuator limits (the simulation saturates and rate-limits exactly as
- * the plant file says, so every probe respects them).
+ * to Ms <= a target, the actuator limits (the simulation saturates and rate-limits exactly as the
+ * plant file says, so every probe respects them) and the file's own time-domain requirements
+ * (overshoot, rise and settling time, steady-state error, IAE, peak output, time at a limit): a
+ * practitioner who wrote `saturated_time: 15 min` does not want gains that sit on the valve's
+ * rate limit for most of the trial, however small their IAE.
  *
  * Method: Nelder–Mead (num/nelder-mead.ts) in log-parameters (log kc, log ti[, log td]), so
  * every probe has the right signs and steps are relative. It starts from the best rule's gains on
  * the same cost among the rules that meet the Ms target, and restarts around its best point. A
  * probe with Ms above the target, or an unstable linearised loop, is not simulated: it scores
  * INFEASIBLE + Ms, so any feasible point beats it and among infeasible ones the more robust wins.
+ * A simulated probe that fails a requirement scores UNMET + the sum of its relative shortfalls
+ * (measured / limit - 1), between the two: it beats no point that meets everything, and among
+ * such probes the nearer one wins, which pulls the search back into the feasible region.
  *
  * Determinism: the evaluation budget bounds the work; the wall-clock cap and the cancel callback
  * may stop it earlier (then the result depends on the machine's speed, and says so).
  * Never worse than the start: the simplex keeps its best vertex, and the start is one.
  */
-import type { Margins } from '../analysis/index.js';
+import { checkRequirements, timeRequirementNames, type Margins, type RequirementResult } from '../analysis/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import { nelderMead } from '../num/index.js';
 import { type CostSpec, DEFAULT_COST } from './cost.js';
@@ -34,6 +40,11 @@ export interface OptimizeOptions {
   maxEvaluations?: number;
   /** Wall-clock cap, ms (default 2000). */
   timeBudgetMs?: number;
+  /**
+   * Treat the file's time-domain requirements as constraints (default true); false optimises the
+   * cost under Ms and the actuator limits alone.
+   */
+  requirements?: boolean;
   /** Start from these gains instead of the best rule (must meet the Ms target to be used as start). */
   start?: GainSet;
   /** Rule parameters passed to the start search (see suggestGains). */
@@ -48,7 +59,7 @@ export interface OptimizeProgress {
   /** Cost evaluations so far. */
   evaluations: number;
   maxEvaluations: number;
-  /** Best feasible cost so far (Infinity if none yet). */
+  /** Best cost so far among probes meeting every constraint (Infinity if none yet). */
   bestCost: number;
   bestGains: GainSet;
   /** 0..1 of the larger of the evaluation and time budgets used. */
@@ -64,10 +75,16 @@ export interface OptimizeResult {
   structure: 'pi' | 'pid';
   cost: CostSpec;
   msTarget: number;
+  /** The file's requirements used as constraints (plant-file names, e.g. 'overshoot_pct'); empty when off or none. */
+  constraints: string[];
+  /** Whether the best gain set meets Ms and every constraint. */
+  feasible: boolean;
   /** The best gain set found, fully evaluated (trial, metrics, margins, flags). */
   best: GainEvaluation;
-  /** The starting point: the best rule that meets the Ms target (null when the start was given or none met it). */
+  /** The starting point when it is a rule (null for given gains or the file's own). */
   startRule: Suggestion | null;
+  /** What the start was: a rule's label, "the file's gains" or "given gains". */
+  startLabel: string;
   /** Cost of the starting gain set on the same cost. */
   startCost: number;
   evaluations: number;
@@ -77,7 +94,24 @@ export interface OptimizeResult {
 }
 
 /** Any feasible cost is below this; infeasible probes score INFEASIBLE + Ms. */
-const INFEASIBLE = 1e15;
+export const INFEASIBLE_RANK = 1e15;
+/** Probes meeting Ms but failing a requirement score UNMET + their shortfall (below INFEASIBLE). */
+export const UNMET_RANK = 1e12;
+const INFEASIBLE = INFEASIBLE_RANK;
+const UNMET = UNMET_RANK;
+/** Shortfall counted for a requirement never reached (NaN, e.g. a step that never settles). */
+const NOT_REACHED = 1e3;
+
+/** Sum of relative shortfalls of the failed requirements (0 = all met). */
+export function requirementShortfall(results: readonly RequirementResult[]): number {
+  let s = 0;
+  for (const r of results) {
+    if (r.pass) continue;
+    const over = Number.isFinite(r.measured) && r.limit > 0 ? r.measured / r.limit - 1 : NOT_REACHED;
+    s += Math.min(NOT_REACHED, Math.max(over, 1e-9));
+  }
+  return s;
+}
 
 class Stop extends Error {
   constructor(readonly why: OptimizeStop) {
@@ -88,6 +122,55 @@ class Stop extends Error {
 function feasible(m: Margins | null, msTarget: number): boolean {
   if (m === null) return true;
   return m.closedLoopStable !== false && m.maxSensitivity <= msTarget;
+}
+
+/**
+ * How the optimiser ranks an evaluated gain set (lower is better): its cost when it meets Ms and
+ * (with `requirements`) the file's requirements; UNMET + shortfall when it meets Ms only;
+ * INFEASIBLE + Ms above the target (an unstable loop last). A run that diverged costs Infinity.
+ */
+export function optimizerScore(e: GainEvaluation, msTarget: number, requirements: boolean): number {
+  const m = e.margins;
+  if (!feasible(m, msTarget)) return INFEASIBLE + (m!.closedLoopStable === false ? 1e6 : m!.maxSensitivity);
+  if (!Number.isFinite(e.cost)) return Infinity;
+  const short = requirements ? requirementShortfall(e.requirements) : 0;
+  return short > 0 ? UNMET + short : e.cost;
+}
+
+/** A gain set the optimiser may start from, evaluated on the cost. */
+export interface StartCandidate {
+  label: string;
+  gains: GainSet;
+  evaluation: GainEvaluation;
+  /** The rule it comes from (null for the file's or the edited gains). */
+  rule: Suggestion | null;
+}
+
+/**
+ * The start of a search: the best-ranked candidate (`optimizerScore`; ties keep list order), with
+ * a note when it misses a constraint. Null when no candidate gives a finite rank.
+ */
+export function chooseStart(
+  candidates: readonly StartCandidate[],
+  msTarget: number,
+  requirements: boolean,
+  structure: 'pi' | 'pid',
+  fallback = "the file's gains",
+): { chosen: StartCandidate | null; note: string | null } {
+  let chosen: StartCandidate | null = null;
+  let best = Infinity;
+  for (const c of candidates) {
+    const sc = optimizerScore(c.evaluation, msTarget, requirements);
+    if (sc < best) {
+      best = sc;
+      chosen = c;
+    }
+  }
+  const kind = structure.toUpperCase();
+  if (chosen === null) return { chosen, note: `no ${kind} rule applies to this plant: starting from ${fallback}` };
+  if (best >= INFEASIBLE) return { chosen, note: `no ${kind} rule meets Ms <= ${msTarget}: starting from the most robust (${chosen.label})` };
+  if (best >= UNMET) return { chosen, note: `no start meets all of the file's requirements: starting from the nearest (${chosen.label})` };
+  return { chosen, note: null };
 }
 
 /**
@@ -112,32 +195,35 @@ export function optimizeGains(
   const structure: 'pi' | 'pid' = options.structure ?? (fileStructure === 'pid' || fileStructure === 'pd' ? 'pid' : 'pi');
   const notes: string[] = [];
   const ctx: TuningContext = tuningContext(spec);
+  const useRequirements = options.requirements ?? true;
+  const requirements = spec.loop.requirements;
+  const constraints = useRequirements ? timeRequirementNames(requirements) : [];
   if (ctx.response === null) notes.push('no linear model: the Ms constraint cannot be checked');
 
-  // Start: the best rule of this structure meeting the Ms target, on the same cost.
+  // Start: the best of this structure's rules and the file's own gains, ranked as probes are.
   let startRule: Suggestion | null = null;
+  let startLabel = 'given gains';
   let start: GainSet;
   if (options.start) {
     start = { ...options.start };
   } else {
     const s = suggestGains(spec, { cost, lambda: options.lambda ?? null, tauc: options.tauc ?? null, robustness: false, context: ctx });
-    const candidates = s.suggestions.filter((x) => x.structure === structure);
-    const ok = candidates.filter((x) => feasible(x.evaluation.margins, msTarget) && Number.isFinite(x.evaluation.cost));
-    ok.sort((a, b) => a.evaluation.cost - b.evaluation.cost);
-    if (ok.length > 0) {
-      startRule = ok[0];
-      start = ok[0].gains;
+    const candidates: StartCandidate[] = s.suggestions
+      .filter((x) => x.structure === structure)
+      .map((x) => ({ label: x.rule.label, gains: x.gains, evaluation: x.evaluation, rule: x }));
+    if (fileStructure === structure) {
+      const g = spec.loop.controller.gains;
+      candidates.push({ label: "the file's gains", gains: g, evaluation: evaluateGains(ctx, g, structure, { cost, msLimit: msTarget }), rule: null });
+    }
+    const pick = chooseStart(candidates, msTarget, useRequirements, structure);
+    if (pick.note !== null) notes.push(pick.note);
+    if (pick.chosen === null) {
+      start = { ...spec.loop.controller.gains };
+      startLabel = "the file's gains";
     } else {
-      // None meets the target: start from the most robust one and let the penalty pull it in.
-      const any = candidates.filter((x) => x.evaluation.margins !== null || Number.isFinite(x.evaluation.cost));
-      any.sort((a, b) => (a.evaluation.margins?.maxSensitivity ?? Infinity) - (b.evaluation.margins?.maxSensitivity ?? Infinity));
-      if (any.length === 0) {
-        start = { ...spec.loop.controller.gains };
-        notes.push(`no ${structure.toUpperCase()} rule applies to this plant: starting from the file's gains`);
-      } else {
-        start = any[0].gains;
-        notes.push(`no ${structure.toUpperCase()} rule meets Ms <= ${msTarget}: starting from the most robust (${any[0].rule.label})`);
-      }
+      start = pick.chosen.gains;
+      startRule = pick.chosen.rule;
+      startLabel = pick.chosen.label;
     }
   }
   if (structure === 'pi') start = { ...start, td: 0 };
@@ -169,6 +255,7 @@ export function optimizeGains(
   let evaluations = 0;
   let bestCost = Infinity;
   let bestScore = Infinity;
+  let bestFeasible = false;
   let bestGains = start;
   let startCost = NaN;
   const score = (x: Float64Array): number => {
@@ -186,13 +273,15 @@ export function optimizeGains(
     } else {
       const { result, metrics } = simulateGains(ctx, g, structure);
       c = trialCost(result, metrics, cost);
-      s = c;
+      const shortfall = constraints.length > 0 && Number.isFinite(c) ? requirementShortfall(checkRequirements(metrics, requirements)) : 0;
+      s = shortfall > 0 ? UNMET + shortfall : c;
     }
     if (evaluations === 1) startCost = c;
     if (s < bestScore) {
       bestScore = s;
       bestGains = g;
-      if (c < bestCost) bestCost = c;
+      bestFeasible = s < UNMET;
+      if (bestFeasible && c < bestCost) bestCost = c;
     }
     onProgress?.({
       evaluations,
@@ -223,13 +312,17 @@ export function optimizeGains(
   }
   if (stoppedBy === 'time') notes.push(`stopped by the ${timeBudget} ms time cap: the result depends on this machine's speed`);
   if (bestScore >= INFEASIBLE) notes.push(`no gain set found that meets Ms <= ${msTarget}`);
+  else if (bestScore >= UNMET) notes.push("no gain set found that meets all of the file's requirements: the result is the nearest found (see its flags)");
   const best = evaluateGains(ctx, bestGains, structure, { cost, msLimit: msTarget });
   return {
     structure,
     cost,
     msTarget,
+    constraints,
+    feasible: bestFeasible,
     best,
     startRule,
+    startLabel,
     startCost,
     evaluations,
     stoppedBy,

@@ -1,9 +1,12 @@
 /**
  * optimizeGains: cost on the full simulation, Ms constraint, determinism, progress, budgets.
  */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { fopdtPlant, lagCubedPlant } from './plants.js';
-import { optimizeGains, suggestGains, type OptimizeProgress } from '../../src/tune/index.js';
+import { loadPlant } from '../../src/model/index.js';
+import { fopdtPlant, lagCubedPlant, plantFrom } from './plants.js';
+import { optimizeGains, optimizerScore, requirementShortfall, suggestGains, type OptimizeProgress } from '../../src/tune/index.js';
 
 describe('optimizeGains on the FOPDT reference plant (K=1, T=1, L=0.2)', () => {
   const spec = fopdtPlant({ duration: 30 });
@@ -73,5 +76,71 @@ describe('optimizeGains options and budgets', () => {
     expect(r.best.cost).toBeLessThan(r.startCost);
     expect(r.best.gains.td).toBeGreaterThan(0);
     expect(r.best.margins!.maxSensitivity).toBeLessThanOrEqual(1.6 + 1e-9);
+  });
+});
+
+describe("optimizeGains: the file's requirements are constraints", () => {
+  // The FOPDT reference loop with an overshoot requirement tighter than the IAE optimum's.
+  const spec = plantFrom(`name: FOPDT with a requirement
+model: { type: first_order, gain: 1, time_constant: 1 s, delay: 0.2 s }
+loop:
+  sample_time: 0.02 s
+  controller: { structure: pi, form: ideal, kc: 1, ti: 2 s }
+  trial:
+    duration: 30 s
+    initial_setpoint: 0
+    events:
+      - { at: 1 s, setpoint: 1 }
+      - { at: 15 s, disturbance: { load: 0.5 } }
+  requirements: { overshoot_pct: 2 }
+`);
+  const free = optimizeGains(spec, { structure: 'pi', maxEvaluations: 150, requirements: false });
+  const bound = optimizeGains(spec, { structure: 'pi', maxEvaluations: 150 });
+
+  it('without them the IAE optimum overshoots more than the file allows', () => {
+    expect(free.constraints).toEqual([]);
+    expect(free.best.metrics.firstStep!.overshootPct).toBeGreaterThan(2);
+  });
+  it('with them the result meets the requirement (and Ms), at a cost no lower than the free optimum', () => {
+    expect(bound.constraints).toEqual(['overshoot_pct']);
+    expect(bound.feasible).toBe(true);
+    expect(bound.best.requirements.every((r) => r.pass)).toBe(true);
+    expect(bound.best.margins!.maxSensitivity).toBeLessThanOrEqual(1.6 + 1e-9);
+    expect(bound.best.cost).toBeGreaterThanOrEqual(free.best.cost);
+  });
+  it('is never worse than the best rule (or the file\'s gains) meeting the same constraints', () => {
+    const rules = suggestGains(spec, { robustness: false }).suggestions.filter(
+      (s) => s.structure === 'pi' && s.evaluation.margins!.maxSensitivity <= 1.6 && s.evaluation.requirements.every((r) => r.pass),
+    );
+    for (const s of rules) expect(bound.best.cost).toBeLessThanOrEqual(s.evaluation.cost);
+  });
+  it('ranks probes: meets all < misses a requirement (by shortfall) < misses Ms', () => {
+    const ok = bound.best;
+    const over = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 3, limit: 2, pass: false, at: 1 }] };
+    const worse = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 5, limit: 2, pass: false, at: 1 }] };
+    const loose = { ...ok, margins: { ...ok.margins!, maxSensitivity: 2.5 } };
+    expect(optimizerScore(ok, 1.6, true)).toBe(ok.cost);
+    expect(optimizerScore(over, 1.6, true)).toBeGreaterThan(1e11);
+    expect(optimizerScore(over, 1.6, true)).toBeLessThan(optimizerScore(worse, 1.6, true));
+    expect(optimizerScore(worse, 1.6, true)).toBeLessThan(optimizerScore(loose, 1.6, true));
+    expect(optimizerScore(over, 1.6, false)).toBe(ok.cost);
+    expect(requirementShortfall(over.requirements)).toBeCloseTo(0.5, 12);
+  });
+});
+
+describe('optimizeGains on the surge tank demo (saturated_time 10 min in the file)', () => {
+  const file = join(__dirname, '..', '..', 'plants', 'surge-tank.yaml');
+  const spec = loadPlant(readFileSync(file, 'utf8'), file).plant!;
+  const r = optimizeGains(spec);
+  it("starts from the file's gains (every rule keeps the valve at a limit too long) and ends inside every requirement", () => {
+    expect(r.startLabel).toBe("the file's gains");
+    expect(r.feasible).toBe(true);
+    expect(r.best.metrics.overall.saturatedTime).toBeLessThanOrEqual(600);
+    expect(r.best.cost).toBeLessThan(r.startCost);
+  });
+  it('without the requirements the IAE optimum sits on the rate limit most of the trial, as the noise estimate says', () => {
+    const free = optimizeGains(spec, { requirements: false });
+    expect(free.best.saturatedFraction).toBeGreaterThan(0.5);
+    expect(free.best.flags.map((f) => f.code)).toContain('NOISE_AT_RATE_LIMIT');
   });
 });

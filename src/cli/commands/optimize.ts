@@ -16,8 +16,9 @@ import { loadPlantFile } from '../load-plant-file.js';
 export const OPTIMIZE_USAGE = `Usage: looprig optimize FILE [options]
 
 Searches PI or PID gains that minimise a cost on the full simulation of the file's trial, subject
-to Ms <= a target and the actuator limits. Starts from the best tuning rule; deterministic for a
-given file within the evaluation budget.
+to Ms <= a target, the actuator limits and the file's own requirements (overshoot_pct, rise_time,
+settling_time, steady_state_error, iae, max_output, saturated_time). Starts from the best tuning
+rule; deterministic for a given file within the evaluation budget.
 
 Options:
   --ms M             upper bound on the sensitivity peak Ms (default 1.6; 1.4 for more robustness)
@@ -26,6 +27,7 @@ Options:
   --structure pi|pid controller structure (default: the file's)
   --evaluations N    evaluation budget (default 300)
   --time T           wall-clock cap (default 2s)
+  --ignore-requirements  optimise under Ms and the actuator limits only
   --write            write the gains into FILE (comments kept)
   --json             one JSON document on stdout
   -h, --help         show this text
@@ -41,6 +43,7 @@ interface OptimizeArgs {
   structure: 'pi' | 'pid' | null;
   evaluations: number;
   timeMs: number;
+  requirements: boolean;
 }
 
 function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
@@ -53,6 +56,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     structure: { type: 'string' },
     evaluations: { type: 'string' },
     time: { type: 'string' },
+    'ignore-requirements': { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
   });
   if (values.help) return 'help';
@@ -67,7 +71,18 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
   if (structure !== null && structure !== 'pi' && structure !== 'pid') throw new UserError('optimize: --structure must be pi or pid');
   const evaluations = countOption('optimize', 'evaluations', values.evaluations, 300, 1);
   const timeMs = (timeOption('optimize', 'time', values.time) ?? 2) * 1000;
-  return { file: positionals[0], json: values.json === true, write: values.write === true, ms, cost, duWeight, structure, evaluations, timeMs };
+  return {
+    file: positionals[0],
+    json: values.json === true,
+    write: values.write === true,
+    ms,
+    cost,
+    duWeight,
+    structure,
+    evaluations,
+    timeMs,
+    requirements: values['ignore-requirements'] !== true,
+  };
 }
 
 function progressLine(p: OptimizeProgress, cost: string): string {
@@ -82,7 +97,8 @@ function summaryText(plant: PlantSpec, r: OptimizeResult, values: Record<string,
   const kind = r.cost.kind.toUpperCase();
   const lines = [
     `${plant.name}: optimised ${r.structure.toUpperCase()} (${kind}${r.cost.outputVariationWeight > 0 ? ` + ${r.cost.outputVariationWeight} x output variation` : ''}, Ms <= ${r.msTarget})`,
-    `  start: ${r.startRule ? r.startRule.rule.label : 'given gains'}, ${kind} ${num(r.startCost)}`,
+    `  constraints: Ms <= ${r.msTarget}, actuator limits${r.constraints.length > 0 ? `, ${r.constraints.join(', ')} (the file's requirements)` : ''}${r.feasible ? '' : ' - NOT all met'}`,
+    `  start: ${r.startLabel}, ${kind} ${num(r.startCost)}`,
     `  result: ${kind} ${num(b.cost)} after ${r.evaluations} evaluations (${r.stoppedBy}, ${num(r.elapsedMs / 1000, 3)} s)`,
     `  gains (${plant.loop.controller.form}): ${values ? Object.entries(values).map(([k, v]) => `${k}=${k === 'ti' || k === 'td' ? secs(v) : num(v)}`).join(' ') : 'not expressible in this form'}`,
     `  overshoot ${first ? `${num(first.overshootPct, 3)} %` : '-'}, settling ${first ? secs(first.settlingTime, 'never') : '-'}, Ms ${b.margins ? num(b.margins.maxSensitivity, 3) : '-'}, GM ${b.margins ? num(b.margins.gainMargin, 3, 'inf') : '-'}`,
@@ -109,7 +125,14 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
   const showProgress = io.isTTY && !o.json;
   const result = optimizeGains(
     plant,
-    { structure, msTarget: o.ms, cost: { kind: o.cost, outputVariationWeight: o.duWeight }, maxEvaluations: o.evaluations, timeBudgetMs: o.timeMs },
+    {
+      structure,
+      msTarget: o.ms,
+      cost: { kind: o.cost, outputVariationWeight: o.duWeight },
+      maxEvaluations: o.evaluations,
+      timeBudgetMs: o.timeMs,
+      requirements: o.requirements,
+    },
     showProgress ? (p) => io.err(progressLine(p, o.cost.toUpperCase())) : undefined,
   );
   if (showProgress) io.err('\n');
@@ -139,9 +162,11 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
         structure: result.structure,
         cost: { kind: result.cost.kind, output_variation_weight: result.cost.outputVariationWeight, value: finiteOrNull(b.cost) },
         ms_target: result.msTarget,
+        constraints: result.constraints,
+        feasible: result.feasible,
         values,
         ideal: { kc: b.gains.kc, ti: finiteOrNull(b.gains.ti), td: b.gains.td },
-        start: { rule: result.startRule?.rule.id ?? null, cost: finiteOrNull(result.startCost) },
+        start: { rule: result.startRule?.rule.id ?? null, label: result.startLabel, cost: finiteOrNull(result.startCost) },
         evaluations: result.evaluations,
         stopped_by: result.stoppedBy,
         elapsed_ms: result.elapsedMs,

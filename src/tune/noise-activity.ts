@@ -1,0 +1,77 @@
+/**
+ * How much sensor noise alone moves the actuator, sample to sample, and how often that alone
+ * drives it into its rate limit.
+ *
+ * Well above the loop's bandwidth the loop gain is small, S ≈ 1, so the controller passes the
+ * measurement noise straight to its output: u ≈ −C(z) n (common practice, no source). The
+ * simulated sensor adds white Gaussian noise of standard deviation σ once per sample, after its
+ * filter (sim/sensor.ts), so the change Δu_k = u_k − u_{k−1} it causes is Gaussian with standard
+ * deviation σ · ‖(1 − z⁻¹) C(z)‖₂, the 2-norm of the impulse response of the differenced law,
+ * obtained here by running the discrete PID law (sim's PidLaw) on a unit impulse.
+ */
+import type { PidLaw } from '../sim/index.js';
+
+/** Most impulse-response samples summed (the derivative filter pole ad decays long before). */
+const MAX_SAMPLES = 100_000;
+
+/**
+ * 2-norm of the impulse response from the measurement to the change of the controller output per
+ * sample (setpoint held, no limit reached): ‖(1 − z⁻¹) C(z)‖₂ in output units per measurement unit.
+ */
+export function noiseStepGain(law: PidLaw): number {
+  // Unit impulse in the measurement at k = 0: P = −kc δ_k; D_k = ad D_{k−1} − bd (δ_k − δ_{k−1});
+  // the integral, updated after the output, adds −bi from k = 1 on.
+  let sum = 0;
+  let prevV = 0;
+  let d = 0;
+  let integral = 0;
+  for (let k = 0; k < MAX_SAMPLES; k++) {
+    const impulse = k === 0 ? 1 : 0;
+    const before = k === 1 ? 1 : 0;
+    d = law.ad * d - law.bd * (impulse - before);
+    const v = -law.kc * impulse + integral + d;
+    const dv = v - prevV;
+    sum += dv * dv;
+    prevV = v;
+    integral -= law.bi * impulse;
+    if (k >= 2 && Math.abs(d) < 1e-15 * (1 + Math.abs(law.kc))) break;
+  }
+  return Math.sqrt(sum);
+}
+
+/**
+ * Complementary error function, |error| < 1.2e-7 everywhere: the Chebyshev-fitted form of
+ * Press, Teukolsky, Vetterling & Flannery, Numerical Recipes, 3rd ed., 2007, section 6.2 (erfcc)
+ * [from memory].
+ */
+export function erfc(x: number): number {
+  const z = Math.abs(x);
+  const t = 1 / (1 + 0.5 * z);
+  const r =
+    t *
+    Math.exp(
+      -z * z -
+        1.26551223 +
+        t * (1.00002368 + t * (0.37409196 + t * (0.09678418 + t * (-0.18628806 + t * (0.27886807 + t * (-1.13520398 + t * (1.48851587 + t * (-0.82215223 + t * 0.17087277)))))))),
+    );
+  return x >= 0 ? r : 2 - r;
+}
+
+/** The actuator's noise-driven activity under a gain set. */
+export interface NoiseActivity {
+  /** Standard deviation of the per-sample change of the controller output due to sensor noise. */
+  stepStd: number;
+  /** Largest change the rate limit allows in one sample (Infinity without one). */
+  rateStep: number;
+  /** Expected share of samples in which noise alone asks for more than `rateStep`, 0..1. */
+  rateLimitedShare: number;
+}
+
+/** Noise-driven actuator activity for a law, the sensor's noise σ and the actuator's rate limit (units/s). */
+export function noiseActivity(law: PidLaw, noiseStd: number, rateLimit: number): NoiseActivity {
+  const stepStd = noiseStd * noiseStepGain(law);
+  const rateStep = rateLimit * law.sampleTime;
+  // P(|Δu| > R h) for Δu ~ N(0, stepStd²).
+  const rateLimitedShare = !(stepStd > 0) || !Number.isFinite(rateStep) ? 0 : erfc(rateStep / (stepStd * Math.SQRT2));
+  return { stepStd, rateStep, rateLimitedShare };
+}
