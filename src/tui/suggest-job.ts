@@ -21,16 +21,6 @@ const FLAG_WORDS: Record<GainFlag['code'], string> = {
   NO_FILE_FORM: 'no file form',
 };
 
-/**
- * Rules whose input is the ultimate point. On a real loop that point is found by driving the loop
- * into a sustained oscillation (a relay test or the ultimate-cycle experiment), so the screen
- * shows tune's RELAY_CAUTION with them. Read from the rule table's ids (Ziegler-Nichols
- * ultimate-cycle family).
- */
-export function usesOscillation(ruleId: string): boolean {
-  return ruleId.includes('ultimate');
-}
-
 /** One suggestion as a row of the list, with the edit it becomes in the screen's form and frame. */
 export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
   const e = s.evaluation;
@@ -49,7 +39,7 @@ export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
     ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
     gm: m === null ? NaN : m.gainMargin,
     flags,
-    oscillation: usesOscillation(s.rule.id),
+    oscillation: s.rule.usesUltimate,
   };
 }
 

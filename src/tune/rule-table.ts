@@ -40,6 +40,11 @@ export interface TuningRule {
   structure: 'p' | 'pi' | 'pid';
   /** Short citation. */
   source: string;
+  /**
+   * The rule starts from the ultimate point, which on a real loop is measured by driving it into a
+   * sustained oscillation (relay test or ultimate-cycle experiment): shown with the caution.
+   */
+  usesUltimate: boolean;
   /** The rule's gains, or a sentence saying why it does not apply to this plant. */
   apply(inputs: RuleInputs, params: RuleParameters): RuleGains | string;
 }
@@ -91,20 +96,21 @@ const AMIGO = 'Åström & Hägglund, J. Process Control 14 (2004)';
 
 /** All rules, in display order. */
 export const TUNING_RULES: readonly TuningRule[] = [
-  { id: 'zn-step-p', label: 'ZN step P', structure: 'p', source: ZN, apply: znStep(znStepP) },
-  { id: 'zn-step-pi', label: 'ZN step PI', structure: 'pi', source: ZN, apply: znStep(znStepPi) },
-  { id: 'zn-step-pid', label: 'ZN step PID', structure: 'pid', source: ZN, apply: znStep(znStepPid) },
-  { id: 'zn-ultimate-p', label: 'ZN ultimate P', structure: 'p', source: ZN, apply: withUltimate(znUltimateP) },
-  { id: 'zn-ultimate-pi', label: 'ZN ultimate PI', structure: 'pi', source: ZN, apply: withUltimate(znUltimatePi) },
-  { id: 'zn-ultimate-pid', label: 'ZN ultimate PID', structure: 'pid', source: ZN, apply: withUltimate(znUltimatePid) },
-  { id: 'cohen-coon-p', label: 'Cohen-Coon P', structure: 'p', source: CC, apply: withFopdt(cohenCoonP) },
-  { id: 'cohen-coon-pi', label: 'Cohen-Coon PI', structure: 'pi', source: CC, apply: withFopdt(cohenCoonPi) },
-  { id: 'cohen-coon-pid', label: 'Cohen-Coon PID', structure: 'pid', source: CC, apply: withFopdt(cohenCoonPid) },
+  { id: 'zn-step-p', label: 'ZN step P', structure: 'p', source: ZN, usesUltimate: false, apply: znStep(znStepP) },
+  { id: 'zn-step-pi', label: 'ZN step PI', structure: 'pi', source: ZN, usesUltimate: false, apply: znStep(znStepPi) },
+  { id: 'zn-step-pid', label: 'ZN step PID', structure: 'pid', source: ZN, usesUltimate: false, apply: znStep(znStepPid) },
+  { id: 'zn-ultimate-p', label: 'ZN ultimate P', structure: 'p', source: ZN, usesUltimate: true, apply: withUltimate(znUltimateP) },
+  { id: 'zn-ultimate-pi', label: 'ZN ultimate PI', structure: 'pi', source: ZN, usesUltimate: true, apply: withUltimate(znUltimatePi) },
+  { id: 'zn-ultimate-pid', label: 'ZN ultimate PID', structure: 'pid', source: ZN, usesUltimate: true, apply: withUltimate(znUltimatePid) },
+  { id: 'cohen-coon-p', label: 'Cohen-Coon P', structure: 'p', source: CC, usesUltimate: false, apply: withFopdt(cohenCoonP) },
+  { id: 'cohen-coon-pi', label: 'Cohen-Coon PI', structure: 'pi', source: CC, usesUltimate: false, apply: withFopdt(cohenCoonPi) },
+  { id: 'cohen-coon-pid', label: 'Cohen-Coon PID', structure: 'pid', source: CC, usesUltimate: false, apply: withFopdt(cohenCoonPid) },
   {
     id: 'lambda-pi',
     label: 'Lambda PI',
     structure: 'pi',
     source: 'IMC/lambda (Dahlin 1968)',
+    usesUltimate: false,
     apply: (i, p) => (i.fopdt === null ? NEEDS_FOPDT : lambdaPi(i.fopdt, p.lambda ?? i.fopdt.tau1)),
   },
   {
@@ -112,6 +118,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'IMC PI',
     structure: 'pi',
     source: RMS,
+    usesUltimate: false,
     apply: (i, p) => {
       const m = p.lambda === null ? fopdtWithDelay(i) : i.fopdt ?? NEEDS_FOPDT;
       return typeof m === 'string' ? m : imcPi(m, p.lambda ?? 1.7 * m.theta);
@@ -122,6 +129,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'IMC PID',
     structure: 'pid',
     source: RMS,
+    usesUltimate: false,
     apply: (i, p) => {
       const m = p.lambda === null ? fopdtWithDelay(i) : i.fopdt ?? NEEDS_FOPDT;
       return typeof m === 'string' ? m : imcPid(m, p.lambda ?? 0.8 * m.theta);
@@ -132,6 +140,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'SIMC PI',
     structure: 'pi',
     source: SIMC,
+    usesUltimate: false,
     apply: (i, p) => {
       if (i.integrating !== null) {
         return i.integrating.theta > 0 || p.tauc !== null ? simcIntegratingPi(i.integrating, p.tauc ?? i.integrating.theta) : NEEDS_DELAY;
@@ -145,6 +154,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'SIMC PID',
     structure: 'pid',
     source: SIMC,
+    usesUltimate: false,
     apply: (i, p) => {
       if (i.sopdt === null) return 'needs a self-regulating plant with a second lag (second order plus delay approximation)';
       return i.sopdt.theta > 0 || p.tauc !== null ? simcPid(i.sopdt, p.tauc ?? i.sopdt.theta) : NEEDS_DELAY;
@@ -155,6 +165,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'Improved SIMC PID',
     structure: 'pid',
     source: ISIMC,
+    usesUltimate: false,
     apply: (i, p) => {
       const m = fopdtWithDelay(i);
       return typeof m === 'string' ? m : simcImprovedPid(m, p.tauc ?? m.theta);
@@ -165,6 +176,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'AMIGO PI',
     structure: 'pi',
     source: AMIGO,
+    usesUltimate: false,
     apply: (i) => {
       if (i.integrating !== null) return i.integrating.theta > 0 ? amigoIntegratingPi(i.integrating) : NEEDS_DELAY;
       const m = fopdtWithDelay(i);
@@ -176,6 +188,7 @@ export const TUNING_RULES: readonly TuningRule[] = [
     label: 'AMIGO PID',
     structure: 'pid',
     source: AMIGO,
+    usesUltimate: false,
     apply: (i) => {
       if (i.integrating !== null) return i.integrating.theta > 0 ? amigoIntegratingPid(i.integrating) : NEEDS_DELAY;
       const m = fopdtWithDelay(i);

@@ -43,7 +43,7 @@ export interface SuggestOptions {
 
 /** One rule's suggestion, simulated. */
 export interface Suggestion {
-  rule: Pick<TuningRule, 'id' | 'label' | 'source' | 'structure'>;
+  rule: Pick<TuningRule, 'id' | 'label' | 'source' | 'structure' | 'usesUltimate'>;
   structure: ControllerStructure;
   /** The gains as the rule writes them (SIMC: series form). */
   ruleGains: RuleGains;
@@ -154,7 +154,7 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
       worstCase = summarise([nominal, ...others.cases]);
     }
     suggestions.push({
-      rule: { id: rule.id, label: rule.label, source: rule.source, structure: rule.structure },
+      rule: { id: rule.id, label: rule.label, source: rule.source, structure: rule.structure, usesUltimate: rule.usesUltimate },
       structure: rule.structure,
       ruleGains: rg,
       gains: evaluation.gains,

@@ -15,7 +15,7 @@ import { contextFor, evaluate, fileEdit, plantFor, runningGains, setupLoop } fro
 import { EnvelopeJob, mergeEnvelope, sweepPlan } from '../../src/tui/envelope-job.js';
 import { OptimizeJob } from '../../src/tui/optimize-job.js';
 import { SliceRunner } from '../../src/tui/slice-runner.js';
-import { SuggestJob, usesOscillation } from '../../src/tui/suggest-job.js';
+import { SuggestJob } from '../../src/tui/suggest-job.js';
 
 function plant(dir: string, name: string): PlantSpec {
   const r = loadPlant(readFileSync(join(dir, name), 'utf8'), name);
@@ -61,7 +61,7 @@ describe('tui SuggestJob: the rules one slice at a time', () => {
   });
 
   it('only the ultimate-point rules are marked as oscillation-based', () => {
-    const marked = TUNING_RULES.filter((r) => usesOscillation(r.id)).map((r) => r.id);
+    const marked = TUNING_RULES.filter((r) => r.usesUltimate).map((r) => r.id);
     expect(marked).toEqual(['zn-ultimate-p', 'zn-ultimate-pi', 'zn-ultimate-pid']);
   });
 });

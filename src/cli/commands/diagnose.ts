@@ -3,12 +3,11 @@
  * description, low-order model, margins with the file's gains, and flags with evidence and advice.
  * Exit 0 whatever the flags (they are findings, not failures); 2 for bad arguments or a bad file.
  */
-import { parseArgs } from 'node:util';
 import { diagnosePlant, diagnosisJson, formatDiagnosis } from '../../diagnose/index.js';
-import { UserError } from '../errors.js';
 import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
+import { onePositional, parseCommandArgs } from '../parse-command.js';
 
 export const DIAGNOSE_USAGE = `Usage: looprig diagnose FILE [--json]
 
@@ -28,26 +27,15 @@ Exit status: 0 whatever the flags; 2 bad arguments or a plant file with errors.
 
 /** `looprig diagnose ...` */
 export async function diagnoseCommand(args: readonly string[], io: Io): Promise<number> {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: [...args],
-      allowPositionals: true,
-      strict: true,
-      options: { json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } },
-    });
-  } catch (error) {
-    throw new UserError(`diagnose: ${(error as Error).message}`);
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parseCommandArgs('diagnose', args, { json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } });
   if (values.help) {
     io.out(DIAGNOSE_USAGE);
     return 0;
   }
-  if (positionals.length !== 1) throw new UserError(positionals.length === 0 ? 'diagnose: missing FILE' : 'diagnose: one FILE expected');
+  const file = onePositional('diagnose', positionals);
   // The loader prints its diagnostics (errors: exit 2 through UserError; warnings: stderr).
-  const { plant } = loadPlantFile(positionals[0], io);
+  const { plant } = loadPlantFile(file, io);
   const d = diagnosePlant(plant);
-  io.out(values.json ? toJson({ file: positionals[0], ...diagnosisJson(d) }) : formatDiagnosis(d));
+  io.out(values.json ? toJson({ file, ...diagnosisJson(d) }) : formatDiagnosis(d));
   return 0;
 }
