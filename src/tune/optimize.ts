@@ -7,13 +7,17 @@
  * rate limit for most of the trial, however small their IAE.
  *
  * Method: Nelder–Mead (num/nelder-mead.ts) in log-parameters (log kc, log ti[, log td]), so
- * every probe has the right signs and steps are relative. It starts from the best rule's gains on
- * the same cost among the rules that meet the Ms target, and restarts around its best point. A
- * probe with Ms above the target, or an unstable linearised loop, is not simulated: it scores
- * INFEASIBLE + Ms, so any feasible point beats it and among infeasible ones the more robust wins.
- * A simulated probe that fails a requirement scores UNMET + the sum of its relative shortfalls
- * (measured / limit - 1), between the two: it beats no point that meets everything, and among
- * such probes the nearer one wins, which pulls the search back into the feasible region.
+ * every probe has the right signs and steps are relative. It starts from the best-ranked of the
+ * structure's rules and the file's own gains, and restarts around its best point.
+ *
+ * Ranking (`optimizerScore`), in tiers: a probe meeting every constraint scores ln(cost); one
+ * that meets Ms but fails a requirement scores UNMET_RANK + the sum of its relative shortfalls
+ * (measured / limit - 1); one with Ms above the target, or an unstable linearised loop, is not
+ * simulated and scores INFEASIBLE_RANK + Ms. So any point meeting everything beats any that does
+ * not, and within a tier the nearer one wins, which pulls the search into the feasible region.
+ * The logarithm keeps the tiers apart for any cost below e^100 while every score stays a number of
+ * modest size: next to an offset like 1e15 a double cannot tell Ms values less than 0.125 apart, and the simplex's
+ * relative convergence test would stop at once in an infeasible tier.
  *
  * Determinism: the evaluation budget bounds the work; the wall-clock cap and the cancel callback
  * may stop it earlier (then the result depends on the machine's speed, and says so).
@@ -93,14 +97,25 @@ export interface OptimizeResult {
   notes: string[];
 }
 
-/** Any feasible cost is below this; infeasible probes score INFEASIBLE + Ms. */
-export const INFEASIBLE_RANK = 1e15;
-/** Probes meeting Ms but failing a requirement score UNMET + their shortfall (below INFEASIBLE). */
-export const UNMET_RANK = 1e12;
+/** Probes meeting Ms but failing a requirement rank UNMET_RANK + their shortfall (any ln(cost) is below). */
+export const UNMET_RANK = 100;
+/** Probes above the Ms target rank INFEASIBLE_RANK + Ms (an unstable loop + UNSTABLE), above any shortfall. */
+export const INFEASIBLE_RANK = 1e5;
+const UNSTABLE = 1e4;
 const INFEASIBLE = INFEASIBLE_RANK;
 const UNMET = UNMET_RANK;
+
+/** The rank of a probe from what is known about it (see the module comment). */
+function rankOf(msInfeasible: boolean, unstable: boolean, ms: number, cost: number, shortfall: number): number {
+  if (msInfeasible) return INFEASIBLE + (unstable ? UNSTABLE : Math.min(ms, UNSTABLE));
+  if (!Number.isFinite(cost)) return Infinity;
+  if (shortfall > 0) return UNMET + shortfall;
+  return Math.log(Math.max(cost, 1e-300));
+}
 /** Shortfall counted for a requirement never reached (NaN, e.g. a step that never settles). */
 const NOT_REACHED = 1e3;
+/** At most this much shortfall is counted in all (keeps the requirement tier below INFEASIBLE_RANK). */
+const MAX_SHORTFALL = 5e4;
 
 /** Sum of relative shortfalls of the failed requirements (0 = all met). */
 export function requirementShortfall(results: readonly RequirementResult[]): number {
@@ -110,7 +125,7 @@ export function requirementShortfall(results: readonly RequirementResult[]): num
     const over = Number.isFinite(r.measured) && r.limit > 0 ? r.measured / r.limit - 1 : NOT_REACHED;
     s += Math.min(NOT_REACHED, Math.max(over, 1e-9));
   }
-  return s;
+  return Math.min(s, MAX_SHORTFALL);
 }
 
 class Stop extends Error {
@@ -125,16 +140,15 @@ function feasible(m: Margins | null, msTarget: number): boolean {
 }
 
 /**
- * How the optimiser ranks an evaluated gain set (lower is better): its cost when it meets Ms and
- * (with `requirements`) the file's requirements; UNMET + shortfall when it meets Ms only;
- * INFEASIBLE + Ms above the target (an unstable loop last). A run that diverged costs Infinity.
+ * How the optimiser ranks an evaluated gain set (lower is better): ln(cost) when it meets Ms and
+ * (with `requirements`) the file's requirements; UNMET_RANK + shortfall when it meets Ms only;
+ * INFEASIBLE_RANK + Ms above the target (an unstable loop last). A run that diverged ranks Infinity.
  */
 export function optimizerScore(e: GainEvaluation, msTarget: number, requirements: boolean): number {
   const m = e.margins;
-  if (!feasible(m, msTarget)) return INFEASIBLE + (m!.closedLoopStable === false ? 1e6 : m!.maxSensitivity);
-  if (!Number.isFinite(e.cost)) return Infinity;
-  const short = requirements ? requirementShortfall(e.requirements) : 0;
-  return short > 0 ? UNMET + short : e.cost;
+  const bad = !feasible(m, msTarget);
+  const short = !bad && requirements && Number.isFinite(e.cost) ? requirementShortfall(e.requirements) : 0;
+  return rankOf(bad, bad && m!.closedLoopStable === false, bad ? m!.maxSensitivity : NaN, e.cost, short);
 }
 
 /** A gain set the optimiser may start from, evaluated on the cost. */
@@ -269,12 +283,12 @@ export function optimizeGains(
     let s: number;
     let c = Infinity;
     if (!feasible(m, msTarget)) {
-      s = INFEASIBLE + (m!.closedLoopStable === false ? 1e6 : m!.maxSensitivity);
+      s = rankOf(true, m!.closedLoopStable === false, m!.maxSensitivity, c, 0);
     } else {
       const { result, metrics } = simulateGains(ctx, g, structure);
       c = trialCost(result, metrics, cost);
       const shortfall = constraints.length > 0 && Number.isFinite(c) ? requirementShortfall(checkRequirements(metrics, requirements)) : 0;
-      s = shortfall > 0 ? UNMET + shortfall : c;
+      s = rankOf(false, false, NaN, c, shortfall);
     }
     if (evaluations === 1) startCost = c;
     if (s < bestScore) {

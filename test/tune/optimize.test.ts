@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { loadPlant } from '../../src/model/index.js';
 import { fopdtPlant, lagCubedPlant, plantFrom } from './plants.js';
-import { optimizeGains, optimizerScore, requirementShortfall, suggestGains, type OptimizeProgress } from '../../src/tune/index.js';
+import { INFEASIBLE_RANK, optimizeGains, optimizerScore, requirementShortfall, suggestGains, UNMET_RANK, type OptimizeProgress } from '../../src/tune/index.js';
 
 describe('optimizeGains on the FOPDT reference plant (K=1, T=1, L=0.2)', () => {
   const spec = fopdtPlant({ duration: 30 });
@@ -119,11 +119,15 @@ loop:
     const over = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 3, limit: 2, pass: false, at: 1 }] };
     const worse = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 5, limit: 2, pass: false, at: 1 }] };
     const loose = { ...ok, margins: { ...ok.margins!, maxSensitivity: 2.5 } };
-    expect(optimizerScore(ok, 1.6, true)).toBe(ok.cost);
-    expect(optimizerScore(over, 1.6, true)).toBeGreaterThan(1e11);
+    expect(optimizerScore(ok, 1.6, true)).toBe(Math.log(ok.cost));
+    expect(optimizerScore(over, 1.6, true)).toBeGreaterThanOrEqual(UNMET_RANK);
+    expect(optimizerScore(loose, 1.6, true)).toBeGreaterThanOrEqual(INFEASIBLE_RANK);
     expect(optimizerScore(over, 1.6, true)).toBeLessThan(optimizerScore(worse, 1.6, true));
     expect(optimizerScore(worse, 1.6, true)).toBeLessThan(optimizerScore(loose, 1.6, true));
-    expect(optimizerScore(over, 1.6, false)).toBe(ok.cost);
+    expect(optimizerScore(over, 1.6, false)).toBe(Math.log(ok.cost));
+    // Ms values that differ in the third digit still rank apart (no precision lost to an offset).
+    const looser = { ...ok, margins: { ...ok.margins!, maxSensitivity: 2.501 } };
+    expect(optimizerScore(looser, 1.6, true)).toBeGreaterThan(optimizerScore(loose, 1.6, true));
     expect(requirementShortfall(over.requirements)).toBeCloseTo(0.5, 12);
   });
 });
