@@ -17,7 +17,7 @@ import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, 
 import { loopStep } from './choose-step.js';
 import { delayInSteps } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
-import { runTrial, type TrialOptions } from './run-trial.js';
+import { runTrial, trialRows, type TrialOptions } from './run-trial.js';
 import { Sensor } from './sensor.js';
 import { createTrace } from './trace.js';
 import type { DiscreteController, LoopConfig, PidLaw, PlantDynamics, Trace, TrialResult, TrialSpec } from './types.js';
@@ -89,7 +89,7 @@ interface Schedule {
 }
 
 function schedule(trial: TrialSpec, ts: number): Schedule | string {
-  const lastRow = Math.ceil(trial.duration / ts - 1e-9);
+  const lastRow = trialRows(trial.duration, ts) - 1;
   const events = [...trial.events].sort((a, b) => a.at - b.at);
   const applied: { k: number; ev: TrialEvent }[] = [];
   let kNow = 0;

@@ -30,7 +30,7 @@ export { createTrace, TraceRing } from './trace.js';
 export type { TraceChannel } from './trace.js';
 export { Simulation, createSimulation } from './simulation.js';
 export type { SimulationInit, ControllerMode } from './simulation.js';
-export { runTrial } from './run-trial.js';
+export { runTrial, trialRows } from './run-trial.js';
 export type { TrialOptions } from './run-trial.js';
 export { decimateMinMax } from './decimate.js';
 export { withParams } from './with-params.js';

@@ -10,6 +10,11 @@ export interface TrialOptions {
   helpers?: SimulationInit['helpers'];
 }
 
+/** Rows a trial of `duration` records at sample time `ts`: ceil(duration / ts) + 1 (t = 0 included). */
+export function trialRows(duration: number, ts: number): number {
+  return Math.ceil(duration / ts - 1e-9) + 1;
+}
+
 /**
  * Run one trial: ceil(duration / Ts) + 1 rows at t_k = k·Ts. An event with time `at` takes
  * effect at the first sample instant t_k >= at. A diverging run is returned with status
@@ -24,8 +29,8 @@ export function runTrial(
 ): TrialResult {
   if (!(trial.duration >= 0) || !Number.isFinite(trial.duration)) throw new RangeError('duration must be >= 0');
   const ts = loop.sampleTime;
-  const lastRow = Math.ceil(trial.duration / ts - 1e-9);
-  const rows = lastRow + 1;
+  const rows = trialRows(trial.duration, ts);
+  const lastRow = rows - 1;
   const sim = createSimulation(plant, controller, loop, {
     initialSetpoint: trial.initialSetpoint,
     initialOutput: trial.initialOutput,

@@ -13,7 +13,7 @@ import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { ControllerStructure, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
 import { Rng } from '../num/index.js';
-import { batchChunks, createTrace, DEFAULT_BATCH_WIDTH, runTrialBatch, withParams, type DiscreteController, type PlantDynamics, type Trace, type TrialResult } from '../sim/index.js';
+import { batchChunks, createTrace, DEFAULT_BATCH_WIDTH, runTrialBatch, trialRows, withParams, type DiscreteController, type PlantDynamics, type Trace, type TrialResult } from '../sim/index.js';
 import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { EnvelopeBuilder, finishEnvelope, mergeEnvelopes, type PartialEnvelope, type TraceEnvelope } from './envelope.js';
 import { gainMargins, simulateGains } from './evaluate.js';
@@ -365,7 +365,8 @@ function batchedRuns(
   const why: string[] = [];
   for (const grp of groups) {
     const ctx0 = list[grp.idx[0]].ctx;
-    const rows = ctx0.loop.sampleTime > 0 ? Math.ceil(grp.trial.duration / ctx0.loop.sampleTime - 1e-9) + 1 : 0;
+    const ts = ctx0.loop.sampleTime;
+    const rows = ts > 0 && Number.isFinite(ts) && grp.trial.duration >= 0 ? trialRows(grp.trial.duration, ts) : 0;
     let traces: Trace[] | undefined;
     for (const chunk of batchChunks(grp.idx, DEFAULT_BATCH_WIDTH)) {
       const members = chunk.map((i) => ({ plant: list[i].ctx.dynamics, controller: gainController(list[i].ctx, gains, structure), loop: list[i].ctx.loop }));
