@@ -38,7 +38,7 @@ export interface OptimizeOptions {
   structure?: 'pi' | 'pid';
   /** The cost (default IAE over the trial, no output-variation weight). */
   cost?: Partial<CostSpec>;
-  /** Upper bound on Ms (default 1.6; 1.4 for a more robust loop). */
+  /** Upper bound on Ms (default: the file's max_sensitivity requirement, else 1.6; 1.4 for a more robust loop). */
   msTarget?: number;
   /** Cost evaluations (simulations or Ms checks) at most (default 300): the deterministic budget. */
   maxEvaluations?: number;
@@ -201,7 +201,7 @@ export function optimizeGains(
   const now = options.now ?? (() => performance.now());
   const t0 = now();
   const cost: CostSpec = { ...DEFAULT_COST, ...options.cost };
-  const msTarget = options.msTarget ?? 1.6;
+  const msTarget = options.msTarget ?? spec.loop.requirements.maxSensitivity ?? 1.6;
   if (!(msTarget > 1)) throw new RangeError('msTarget must be > 1');
   const maxEvaluations = options.maxEvaluations ?? 300;
   const timeBudget = options.timeBudgetMs ?? 2000;

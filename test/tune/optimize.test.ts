@@ -114,6 +114,21 @@ loop:
     );
     for (const s of rules) expect(bound.best.cost).toBeLessThanOrEqual(s.evaluation.cost);
   });
+  it("the file's max_sensitivity requirement is the default Ms target", () => {
+    const strict = plantFrom(`name: FOPDT with an Ms requirement
+model: { type: first_order, gain: 1, time_constant: 1 s, delay: 0.2 s }
+loop:
+  sample_time: 0.02 s
+  controller: { structure: pi, form: ideal, kc: 1, ti: 2 s }
+  trial: { duration: 20 s, initial_setpoint: 0, events: [{ at: 1 s, setpoint: 1 }] }
+  requirements: { max_sensitivity: 1.3 }
+`);
+    const r = optimizeGains(strict, { maxEvaluations: 80 });
+    expect(r.msTarget).toBe(1.3);
+    expect(r.best.margins!.maxSensitivity).toBeLessThanOrEqual(1.3 + 1e-9);
+    expect(optimizeGains(strict, { maxEvaluations: 20, msTarget: 1.5 }).msTarget).toBe(1.5);
+  });
+
   it('ranks probes: meets all < misses a requirement (by shortfall) < misses Ms', () => {
     const ok = bound.best;
     const over = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 3, limit: 2, pass: false, at: 1 }] };

@@ -21,7 +21,8 @@ settling_time, steady_state_error, iae, max_output, saturated_time). Starts from
 rule; deterministic for a given file within the evaluation budget.
 
 Options:
-  --ms M             upper bound on the sensitivity peak Ms (default 1.6; 1.4 for more robustness)
+  --ms M             upper bound on the sensitivity peak Ms (default: the file's max_sensitivity
+                     requirement, else 1.6; 1.4 for more robustness)
   --cost iae|itae    error integral to minimise over the trial (default iae)
   --du-weight W      add W times the total variation of the controller output to the cost (default 0)
   --structure pi|pid controller structure (default: the file's)
@@ -37,7 +38,7 @@ interface OptimizeArgs {
   file: string;
   json: boolean;
   write: boolean;
-  ms: number;
+  ms: number | null;
   cost: 'iae' | 'itae';
   duWeight: number;
   structure: 'pi' | 'pid' | null;
@@ -61,8 +62,8 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
   });
   if (values.help) return 'help';
   onePositional('optimize', positionals);
-  const ms = values.ms === undefined ? 1.6 : Number(values.ms);
-  if (!(ms > 1) || !Number.isFinite(ms)) throw new UserError('optimize: --ms must be a number > 1');
+  const ms = values.ms === undefined ? null : Number(values.ms);
+  if (ms !== null && (!(ms > 1) || !Number.isFinite(ms))) throw new UserError('optimize: --ms must be a number > 1');
   const cost = values.cost ?? 'iae';
   if (cost !== 'iae' && cost !== 'itae') throw new UserError(`optimize: --cost must be iae or itae, got ${cost}`);
   const duWeight = values['du-weight'] === undefined ? 0 : Number(values['du-weight']);
@@ -127,7 +128,7 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     plant,
     {
       structure,
-      msTarget: o.ms,
+      msTarget: o.ms ?? undefined,
       cost: { kind: o.cost, outputVariationWeight: o.duWeight },
       maxEvaluations: o.evaluations,
       timeBudgetMs: o.timeMs,
