@@ -258,7 +258,16 @@ export interface TrialSpec {
   initialOutput: number | null;
   /** Sorted by `at`. */
   events: TrialEvent[];
+  /**
+   * How a linear model kind starts (default 'steady'): settled at the initial output and the
+   * initial load (its deviation variables at that operating point), or at rest (zero state), so
+   * that the initial output acts as a step at t = 0. Ode plants start from their initial states.
+   */
+  start?: TrialStart;
 }
+
+/** See `TrialSpec.start`. */
+export type TrialStart = 'steady' | 'rest';
 
 /** Limits a trial must meet. Absent = not required. Times in s. */
 export interface Requirements {

@@ -19,6 +19,7 @@ import { delayInSteps } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
 import { runTrial, trialRows, type TrialOptions } from './run-trial.js';
 import { Sensor } from './sensor.js';
+import { startState } from './start-state.js';
 import { createTrace } from './trace.js';
 import type { DiscreteController, LoopConfig, PidLaw, PlantDynamics, Trace, TrialResult, TrialSpec } from './types.js';
 
@@ -261,7 +262,8 @@ function prepare(
   if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
   const inSteps = delayInSteps(plant.inputDelay, h);
   const outFn = generateOutput(plant, plant.outputSource, helpers);
-  const y0 = outFn(Float64Array.from(plant.x0), plant.params, Float64Array.from(plant.d0), uStart, 0);
+  const start = startState(plant, uStart, trial.start ?? 'steady');
+  const y0 = outFn(Float64Array.from(start.x), plant.params, Float64Array.from(plant.d0), uStart, 0);
   const outSteps = delayInSteps(loop.sensor.delay, h);
   const sensor = new Sensor(loop.sensor, ts);
   const rInit = trial.initialSetpoint ?? y0;
@@ -318,7 +320,7 @@ function prepare(
   numbers.set(lifted.values, nf + 2 * np);
   const state = new Float64Array(widths.z);
   for (const f of ['start', 'end', 'uPlant'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
-  state.set(plant.x0, BATCH_STATE.length);
+  state.set(start.x, BATCH_STATE.length);
   const shape = {
     inputDelay: plant.inputDelay > 0,
     sensorDelay: s.delay > 0,
@@ -354,7 +356,7 @@ function prepare(
     trace,
     step: h,
     substeps: chosen.substeps,
-    warnings: chosen.warnings,
+    warnings: start.warning === null ? chosen.warnings : [...chosen.warnings, start.warning],
     key,
   };
 }

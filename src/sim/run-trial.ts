@@ -34,6 +34,7 @@ export function runTrial(
   const sim = createSimulation(plant, controller, loop, {
     initialSetpoint: trial.initialSetpoint,
     initialOutput: trial.initialOutput,
+    start: trial.start,
     traceCapacity: rows,
     helpers: options.helpers,
   });

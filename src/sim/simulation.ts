@@ -18,12 +18,13 @@
  *
  * Nothing in steps 2–8 allocates.
  */
-import type { GainSet, IntegratorName } from '../model/types.js';
+import type { GainSet, IntegratorName, TrialStart } from '../model/types.js';
 import { Actuator } from './actuator.js';
 import { loopStep } from './choose-step.js';
 import { DelayLine, delayInSteps as delaySteps } from './delay-line.js';
 import { generateOutput, generateStepper, type OutputFunction, type StepFunction } from './generate-stepper.js';
 import { Sensor } from './sensor.js';
+import { startState } from './start-state.js';
 import { TraceRing } from './trace.js';
 import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus } from './types.js';
 
@@ -33,6 +34,8 @@ export interface SimulationInit {
   initialSetpoint?: number | null;
   /** Controller output at t = 0; null/absent = clamp(0, actuator min, actuator max). */
   initialOutput?: number | null;
+  /** A linear model starts settled at the initial output ('steady', default) or at rest (start-state.ts). */
+  start?: TrialStart;
   /** Rows kept in the ring-buffer trace (default 4096). */
   traceCapacity?: number;
   /** The `F.*` helper table the plant sources call (default: model/'s MATH_HELPERS). */
@@ -122,7 +125,9 @@ export class Simulation {
     this.substeps = chosen.substeps;
     for (const w of chosen.warnings) this.warnings.push(w);
 
-    this.x = Float64Array.from(plant.x0);
+    const start = startState(plant, uStart, init.start ?? 'steady');
+    this.x = start.x;
+    if (start.warning !== null) this.warnings.push(start.warning);
     this.p = plant.params;
     this.d = Float64Array.from(plant.d0);
     this.us = new Float64Array(this.substeps);

@@ -86,6 +86,7 @@ export class LiveRun {
     this.sim = createSimulation(s.dynamics, controllerFor(s, this.gains), s.config, {
       initialSetpoint: trial.initialSetpoint,
       initialOutput: trial.initialOutput,
+      start: trial.start,
       traceCapacity: rows,
       helpers: MATH_HELPERS,
     });

@@ -330,6 +330,7 @@ function sameTrial(a: TrialSpec, b: TrialSpec): boolean {
   if (a === b) return true;
   if (!sameNumber(a.duration, b.duration) || !sameNumber(a.initialSetpoint, b.initialSetpoint)) return false;
   if (!sameNumber(a.initialOutput, b.initialOutput) || a.events.length !== b.events.length) return false;
+  if ((a.start ?? 'steady') !== (b.start ?? 'steady')) return false;
   for (let i = 0; i < a.events.length; i++) {
     const x = a.events[i] as unknown as Record<string, unknown>;
     const y = b.events[i] as unknown as Record<string, unknown>;

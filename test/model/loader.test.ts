@@ -51,6 +51,7 @@ describe('loadPlant: good fixtures', () => {
         { kind: 'setpoint', at: 60, value: 1.4 },
         { kind: 'disturbance', at: 300, name: 'extra_inflow', value: 0.15 },
       ],
+      start: 'steady',
     });
     expect(p.loop.requirements).toEqual({ overshootPct: 10, settlingTime: 150, maxSensitivity: 1.6, settlingBand: 0.02 });
   });

@@ -31,11 +31,13 @@ describe('open-loop step responses vs analytic solutions', () => {
     // Ogata, Modern Control Engineering, 5th ed. 2010, sec. 5-3 (first-order unit-step response).
     const K = 2;
     const T = 5;
+    // start: 'rest': the plant at its zero state while the output is 1 from t = 0 (a unit step).
     const res = runTrial(H.firstOrder(K, T), new ConstantController(1), loop(0.1, 0.1), {
       duration: 30,
       initialSetpoint: 0,
       initialOutput: 1,
       events: [],
+      start: 'rest',
     });
     expect(res.status).toBe('ok');
     expect(res.trace.length).toBe(301);
@@ -61,6 +63,7 @@ describe('open-loop step responses vs analytic solutions', () => {
       initialSetpoint: 0,
       initialOutput: 1,
       events: [],
+      start: 'rest',
     });
     let worst = 0;
     let peak = 0;

@@ -174,7 +174,7 @@ describe('divergence', () => {
 
   it('a step outside the RK4 stability region is warned about (and here diverges)', () => {
     // Lag with T = 0.002 s: λ = −500 1/s; h = 0.01 s gives h|λ| = 5 > 2.785 (RK4 real-axis limit).
-    const res = runTrial(H.firstOrder(1, 0.002), new ConstantController(1), loopConfig(0.1, 0.01), trial(20, [], 0, 1));
+    const res = runTrial(H.firstOrder(1, 0.002), new ConstantController(1), loopConfig(0.1, 0.01), { ...trial(20, [], 0, 1), start: 'rest' });
     expect(res.warnings.some((w) => w.includes('stability limit'))).toBe(true);
     expect(res.status).toBe('diverged');
   });

@@ -1,12 +1,13 @@
 /** The `loop.trial:` section: duration, initial conditions and the event script. */
-import type { ControllerSpec, Span, TrialEvent, TrialSpec } from '../types.js';
+import type { ControllerSpec, Span, TrialEvent, TrialSpec, TrialStart } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
 import { GAINS_EVENT_SCHEMA, readGainsOverride } from './controller.js';
-import { fieldNames, fieldNode, numberField, type SectionDef } from './fields.js';
+import { choiceField, fieldNames, fieldNode, numberField, type SectionDef } from './fields.js';
 import type { Reader } from './reader.js';
 
 const EVENT_KINDS = ['setpoint', 'setpoint_ramp', 'disturbance', 'mode', 'gains'] as const;
 const MODES = ['manual', 'auto'] as const;
+const TRIAL_STARTS: readonly TrialStart[] = ['steady', 'rest'];
 
 export const RAMP_SCHEMA: SectionDef = {
   description: 'Ramp the setpoint from its current value to `to` over `duration`.',
@@ -43,6 +44,13 @@ export const TRIAL_SCHEMA: SectionDef = {
     duration: { kind: 'time', rule: { gt: 0 }, required: true, description: 'Length of the trial (> 0), s or with a unit.' },
     initial_setpoint: { kind: 'number', description: 'Setpoint before the first event (default: the plant output at t = 0).' },
     initial_output: { kind: 'number', description: 'Controller output at t = 0 (bumpless start; default: computed from the initial state).' },
+    start: {
+      kind: 'choice',
+      choices: TRIAL_STARTS,
+      default: 'steady',
+      description:
+        'How a linear model starts: steady = settled at initial_output (and the initial load); rest = zero state, so initial_output is a step at t = 0. Ode plants start from their initial states.',
+    },
     events: { kind: 'list', items: { kind: 'section', section: EVENT_SCHEMA }, description: 'Events in any order (sorted by time; same-time events keep their order).' },
   },
 };
@@ -65,16 +73,17 @@ export function readTrial(r: Reader, node: YNode, owner: Span, ctx: TrialContext
   const duration = numberField(r, f, s, 'duration', undefined);
   const initialSetpoint = numberField(r, f, s, 'initial_setpoint', null);
   const initialOutput = numberField(r, f, s, 'initial_output', null);
+  const start = choiceField<TrialStart, 'steady'>(r, f, s, 'start', 'steady');
   const events: TrialEvent[] = [];
   const en = f.get('events');
   const seq = en && r.list(en, 'loop.trial.events');
   seq?.items.forEach((item, i) => readEvent(r, item, `loop.trial.events[${i}]`, duration ?? null, ctx, events));
   // Stable sort: events at the same instant keep their file order.
   const sorted = events.map((e, i) => ({ e, i })).sort((a, b) => a.e.at - b.e.at || a.i - b.i).map((x) => x.e);
-  if (r.errorCount() > before || duration === undefined || initialSetpoint === undefined || initialOutput === undefined) {
+  if (r.errorCount() > before || duration === undefined || initialSetpoint === undefined || initialOutput === undefined || start === undefined) {
     return undefined;
   }
-  return { duration, initialSetpoint, initialOutput, events: sorted };
+  return { duration, initialSetpoint, initialOutput, events: sorted, start };
 }
 
 function readEvent(
