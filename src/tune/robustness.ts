@@ -373,7 +373,7 @@ function batchedRuns(
       const members = chunk.map((i) => ({ plant: list[i].ctx.dynamics, controller: gainController(list[i].ctx, gains, structure), loop: list[i].ctx.loop }));
       // Storage only where every case of the chunk has the first case's sample grid and disturbances.
       const fits = chunk.every((i) => list[i].ctx.loop.sampleTime === ctx0.loop.sampleTime && sameNames(list[i].ctx.dynamics.disturbanceNames, ctx0.dynamics.disturbanceNames));
-      if (fits && rows > 0 && traces === undefined) traces = Array.from({ length: DEFAULT_BATCH_WIDTH }, () => createTrace(rows, ctx0.dynamics.disturbanceNames));
+      if (fits && rows > 0 && traces === undefined) traces = scratchTraces(rows, ctx0.dynamics.disturbanceNames);
       const b = runTrialBatch(members, grp.trial, fits ? { traces } : {});
       chunk.forEach((i, j) => {
         const ctx = list[i].ctx;
@@ -386,6 +386,27 @@ function batchedRuns(
   }
   return { single, why };
 }
+
+/**
+ * DEFAULT_BATCH_WIDTH traces of `rows` rows to record chunks into, kept from one call to the next
+ * (the screen sweeps a few cases per slice, the threads a part each: ~0.8 MB of zeroed buffers per
+ * call otherwise). Safe to share: a sweep reads a chunk's traces before the next chunk is run and
+ * keeps nothing of them, and nothing here runs re-entrantly.
+ */
+function scratchTraces(rows: number, names: readonly string[]): Trace[] {
+  const key = `${rows}\u0000${names.join('\u0000')}`;
+  let t = scratch.get(key);
+  if (t === undefined) {
+    t = Array.from({ length: DEFAULT_BATCH_WIDTH }, () => createTrace(rows, names));
+    if (scratch.size >= SCRATCH_SHAPES) scratch.delete(scratch.keys().next().value as string);
+    scratch.set(key, t);
+  }
+  return t;
+}
+
+/** Trace shapes (rows, disturbance names) kept by `scratchTraces`. */
+const SCRATCH_SHAPES = 4;
+const scratch = new Map<string, Trace[]>();
 
 function sameNames(a: readonly string[], b: readonly string[]): boolean {
   return a.length === b.length && a.every((n, i) => n === b[i]);
