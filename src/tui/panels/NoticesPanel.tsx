@@ -5,6 +5,7 @@ import { Box } from 'ink';
 import type { Notice } from '../notices.js';
 import type { Theme } from '../theme.js';
 import { Line, type Piece } from './line.js';
+import { wrap } from './wrap.js';
 
 function mark(n: Notice, theme: Theme): Piece {
   const text = n.tone === 'bad' ? '!! ' : n.tone === 'warn' ? '!  ' : '·  ';
@@ -17,19 +18,6 @@ export function noticePieces(n: Notice, theme: Theme): Piece[] {
   return n.title === undefined ? [mark(n, theme), { text: n.text }] : [mark(n, theme), { text: `${n.title}: `, bold: true }, { text: n.text }];
 }
 
-function wrap(text: string, room: number): string[] {
-  const out: string[] = [];
-  let cur = '';
-  for (const w of text.split(/\s+/)) {
-    if (cur.length > 0 && cur.length + 1 + w.length > room) {
-      out.push(cur);
-      cur = '';
-    }
-    cur = cur.length > 0 ? `${cur} ${w}` : w;
-  }
-  if (cur.length > 0) out.push(cur);
-  return out;
-}
 
 /**
  * The notices column: the margins of the edited gains, one line per titled notice (so every

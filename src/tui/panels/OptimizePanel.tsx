@@ -8,7 +8,8 @@ import type { OptimizeOutcome, OptimizeView } from '../tuning-views.js';
 import { gainsText } from './GainsPanel.js';
 import { Heading } from './Heading.js';
 import { Line, type Piece } from './line.js';
-import { fig, wrap } from './SuggestPanel.js';
+import { fig } from './SuggestPanel.js';
+import { wrap } from './wrap.js';
 
 /** A progress bar of `width` cells for a fraction 0..1 ('#' done, '.' to go: readable without colour). */
 export function progressBar(fraction: number, width: number): string {

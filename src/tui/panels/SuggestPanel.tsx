@@ -11,6 +11,7 @@ import type { SuggestView } from '../tuning-views.js';
 import { gainsText } from './GainsPanel.js';
 import { Heading } from './Heading.js';
 import { Line, fit, type Piece } from './line.js';
+import { wrap } from './wrap.js';
 
 /** A figure in at most `digits` significant digits; '-' for NaN. */
 export function fig(x: number, digits = 3): string {
@@ -22,26 +23,6 @@ export function fig(x: number, digits = 3): string {
   return String(Number(x.toPrecision(digits)));
 }
 
-/** Word-wrap text to `width` columns. */
-export function wrap(text: string, width: number): string[] {
-  const out: string[] = [];
-  let line = '';
-  for (const word of text.split(/\s+/)) {
-    if (word === '') continue;
-    if (line === '') line = word;
-    else if (line.length + 1 + word.length <= width) line += ' ' + word;
-    else {
-      out.push(line);
-      line = word;
-    }
-    while (line.length > width) {
-      out.push(line.slice(0, width));
-      line = line.slice(width);
-    }
-  }
-  if (line !== '') out.push(line);
-  return out;
-}
 
 // Widths that fit 80 columns with the two marker columns (the longest rule label is 17).
 const COLS = [
