@@ -283,7 +283,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   }
   if (spec.model.type === 'ode' && Number.isFinite(range)) flagNonlinear(flags, dyn, uMin, range, eqOptions);
   flagSampling(flags, h, d.margins, d.fopdt);
-  flagNoise(flags, gains, h, sensor.noiseStd, sensor.filterTime, range);
+  flagNoise(flags, gains, h, sensor.noiseStd, range);
   flagSetpoints(flags, spec, dyn, target, eqOptions);
 
   if (d.margins !== null && d.margins.closedLoopStable === false) {
@@ -462,9 +462,9 @@ function flagSampling(flags: Flag[], h: number, margins: Margins | null, fopdt: 
   });
 }
 
-function flagNoise(flags: Flag[], g: GainSet, h: number, noiseStd: number, filterTime: number, range: number): void {
+function flagNoise(flags: Flag[], g: GainSet, h: number, noiseStd: number, range: number): void {
   if (!(noiseStd > 0) || !Number.isFinite(range) || !(range > 0)) return;
-  const n = controllerNoise(g, h, noiseStd, filterTime);
+  const n = controllerNoise(g, h, noiseStd);
   const share = n.total / range;
   if (!(share > THRESHOLDS.noiseShare)) return;
   const fromD = g.td > 0 && n.total > 1.5 * n.proportionalOnly;
@@ -474,7 +474,7 @@ function flagNoise(flags: Flag[], g: GainSet, h: number, noiseStd: number, filte
     evidence: { output_noise_std: n.total, share_of_range: share, without_derivative_std: n.proportionalOnly },
     advice: fromD
       ? `Derivative action turns the sensor noise into controller-output noise of ${fmt(100 * share, 2)} % of the actuator range (${fmt(n.proportionalOnly / range * 100, 2)} % without it): wear on the actuator. Lower the derivative filter divisor N, filter the measurement, or drop the derivative.`
-      : `Sensor noise reaches the actuator at ${fmt(100 * share, 2)} % of its range through the proportional gain. Filter the measurement or lower kc.`,
+      : `Sensor noise reaches the actuator at ${fmt(100 * share, 2)} % of its range through the proportional gain. Lower kc, or filter the measurement in the controller (the plant file's sensor filter damps the process signal before the noise is added).`,
   });
 }
 

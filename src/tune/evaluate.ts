@@ -114,7 +114,7 @@ export function evaluateGains(
       code: 'NOISE_AT_RATE_LIMIT',
       message:
         `sensor noise alone moves the actuator ~${noise.stepStd.toPrecision(2)} per sample (1 sigma) against a rate limit of ${noise.rateStep.toPrecision(2)}: ` +
-        `rate-limited on ~${(100 * noise.rateLimitedShare).toFixed(0)} % of samples by noise (lower kc, more sensor filtering, or a weight on output variation)`,
+        `rate-limited on ~${(100 * noise.rateLimitedShare).toFixed(0)} % of samples by noise (lower kc, filter the measurement in the controller, or put a weight on output variation)`,
     });
   }
   for (const r of requirements) {

@@ -4,7 +4,10 @@
  * marks it: the transfer functions are used here as an in-house test batch, not as a citation.
  */
 import { describe, it, expect } from 'vitest';
-import { diagnosePlant } from '../../src/diagnose/index.js';
+import { PidController } from '../../src/control/index.js';
+import { controllerNoise, diagnosePlant } from '../../src/diagnose/index.js';
+import type { GainSet } from '../../src/model/types.js';
+import { Sensor } from '../../src/sim/index.js';
 import type { Diagnosis, FlagKind } from '../../src/diagnose/index.js';
 import { polyProduct } from '../analysis/tf-model.js';
 import { load, plantText, transfer } from './plant-yaml.js';
@@ -228,5 +231,29 @@ describe('bad input: a finding or a message, never a crash', () => {
     const f = flag(d, 'model_problem')!;
     expect(f).toBeDefined();
     expect(f.advice).toMatch(/non-finite/);
+  });
+});
+
+describe('controllerNoise against the simulated sensor and controller', () => {
+  it('the std of the P + D output on noise through sim/sensor.ts (filter on) is the computed one: the noise is added after the filter (Monte Carlo, 200k samples)', () => {
+    const g: GainSet = { kc: 2, ti: Infinity, td: 0.4, n: 10, b: 1, c: 1, antiWindup: 'none', trackingTime: NaN };
+    const h = 0.05;
+    const sigma = 0.02;
+    const sensor = new Sensor({ delay: 0, noiseStd: sigma, filterTime: 0.5, resolution: 0, seed: 3, span: null }, h);
+    const pid = new PidController(g, { sampleTime: h, outputMin: -Infinity, outputMax: Infinity });
+    pid.initialize(0, 0, 0);
+    let s1 = 0;
+    let s2 = 0;
+    const n = 200_000;
+    for (let k = 0; k < n; k++) {
+      const u = pid.update(0, sensor.measure(0));
+      pid.track(u);
+      s1 += u;
+      s2 += u * u;
+    }
+    const std = Math.sqrt(s2 / n - (s1 / n) ** 2);
+    // 200k draws: the sample std is within ~0.3 % (1/sqrt(2n), more with the D filter's memory); allow 1.5 %.
+    expect(std / controllerNoise(g, h, sigma).total).toBeGreaterThan(0.985);
+    expect(std / controllerNoise(g, h, sigma).total).toBeLessThan(1.015);
   });
 });
