@@ -37,6 +37,7 @@ import { HelpOverlay } from './panels/HelpOverlay.js';
 import { Line, fit, type Piece } from './panels/line.js';
 import { MetricsPanel } from './panels/MetricsPanel.js';
 import { NoticesPanel, noticePieces } from './panels/NoticesPanel.js';
+import { noiseNotice } from './noise-notice.js';
 import { OptimizePanel } from './panels/OptimizePanel.js';
 import { StatusLine } from './panels/StatusLine.js';
 import { SuggestPanel } from './panels/SuggestPanel.js';
@@ -153,6 +154,7 @@ export function App(props: AppProps) {
     const structured = structureMarginsView(setup, e);
     return structured === undefined ? props.notices.margins(runningGains(e)) : structured;
   };
+  const noiseNow = useMemo(() => noiseNotice(setup, state.current), [setup, state.current.gains, state.current.structure, frameId(state.current)]);
   const marginsNow = useDeferred(() => marginsOf(state.current), [props.notices, state.current.gains, frameId(state.current)]);
   const marginsBase = useDeferred(() => (baselineEdit === null ? null : marginsOf(baselineEdit)), [props.notices, baselineEdit]);
   // The sweep runs the plain law: a structure around it (a comparison candidate) has no envelope here.
@@ -304,6 +306,7 @@ export function App(props: AppProps) {
   const baseInput: MetricInput | null = base === null ? null : { metrics: base.metrics, checks: base.checks, margins: marginsBase };
 
   const notices: Notice[] = [...plantNotices];
+  if (noiseNow !== null) notices.unshift(noiseNow);
   if (now.result.status === 'diverged') notices.unshift({ tone: 'bad', text: `the trial diverged at ${fmt(now.result.divergedAt)} s` });
   if (run?.diverged) notices.unshift({ tone: 'bad', text: `the live run diverged at ${fmt(run.divergedAt)} s (z restarts)` });
   for (const w of now.result.warnings) notices.push({ tone: 'warn', text: w });

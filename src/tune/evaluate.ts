@@ -5,10 +5,10 @@
 import { checkRequirements, loopMargins, trialMetrics } from '../analysis/index.js';
 import type { Margins, RequirementResult, TrialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
-import type { ControllerStructure, GainSet } from '../model/types.js';
+import type { ControllerStructure, GainSet, PlantSpec } from '../model/types.js';
 import { runTrial, type TrialResult } from '../sim/index.js';
 import { trialCost, type CostSpec, DEFAULT_COST } from './cost.js';
-import { noiseActivity, type NoiseActivity } from './noise-activity.js';
+import { noiseActivity, noiseMessage, type NoiseActivity } from './noise-activity.js';
 import type { TuningContext } from './tuning-context.js';
 
 /** A finding about one gain set. */
@@ -35,6 +35,9 @@ export interface GainEvaluation {
   flags: GainFlag[];
 }
 
+/** Share of the trial (at a limit) or of the samples (noise at the rate limit) above which a flag is raised (common practice, no source). */
+export const FLAG_SHARE = 0.05;
+
 /** Options of `evaluateGains`. */
 export interface EvaluateOptions {
   cost?: CostSpec;
@@ -50,9 +53,11 @@ export function gainMargins(ctx: TuningContext, gains: GainSet): Margins | null 
   return loopMargins(ctx.response, gains, ctx.spec.loop.sampleTime, ctx.spec.sensor);
 }
 
-/** Noise-driven actuator activity of a gain set (noise-activity.ts); null without sensor noise. */
-function noiseOf(ctx: TuningContext, gains: GainSet, structure: ControllerStructure): NoiseActivity | null {
-  const spec = ctx.spec;
+/**
+ * Noise-driven actuator activity of a gain set on a plant file (noise-activity.ts); null without
+ * sensor noise or when the law is not the plain PID.
+ */
+export function gainNoiseActivity(spec: PlantSpec, gains: GainSet, structure: ControllerStructure): NoiseActivity | null {
   if (!(spec.sensor.noiseStd > 0)) return null;
   const { extension: _structure, named: _named, ...plain } = spec.loop.controller;
   const law = buildController({ ...plain, structure, gains }, spec.loop.sampleTime).pidLaw?.() ?? null;
@@ -101,22 +106,15 @@ export function evaluateGains(
       });
     }
   }
-  const satFlag = options.saturationFlag ?? 0.05;
+  const satFlag = options.saturationFlag ?? FLAG_SHARE;
   if (saturatedFraction > satFlag) {
     flags.push({
       code: 'SATURATED',
       message: `actuator at a limit for ${(100 * saturatedFraction).toFixed(0)} % of the trial`,
     });
   }
-  const noise = noiseOf(ctx, g, structure);
-  if (noise !== null && noise.rateLimitedShare > satFlag) {
-    flags.push({
-      code: 'NOISE_AT_RATE_LIMIT',
-      message:
-        `sensor noise alone moves the actuator ~${noise.stepStd.toPrecision(2)} per sample (1 sigma) against a rate limit of ${noise.rateStep.toPrecision(2)}: ` +
-        `rate-limited on ~${(100 * noise.rateLimitedShare).toFixed(0)} % of samples by noise (lower kc, filter the measurement in the controller, or put a weight on output variation)`,
-    });
-  }
+  const noise = gainNoiseActivity(ctx.spec, g, structure);
+  if (noise !== null && noise.rateLimitedShare > satFlag) flags.push({ code: 'NOISE_AT_RATE_LIMIT', message: noiseMessage(noise) });
   for (const r of requirements) {
     if (!r.pass) flags.push({ code: 'REQUIREMENT_FAILED', message: `${r.name} ${formatMeasured(r.measured)} (limit ${r.limit})` });
   }

@@ -67,6 +67,15 @@ export interface NoiseActivity {
   rateLimitedShare: number;
 }
 
+/** The finding in words, with its numbers and what to do about it. */
+export function noiseMessage(n: NoiseActivity): string {
+  return (
+    `actuator rate-limited on ~${(100 * n.rateLimitedShare).toFixed(0)} % of samples by sensor noise alone ` +
+    `(it moves ~${n.stepStd.toPrecision(2)} per sample, 1 sigma, against a rate limit of ${n.rateStep.toPrecision(2)}): ` +
+    'lower kc, filter the measurement in the controller, or put a weight on output variation'
+  );
+}
+
 /** Noise-driven actuator activity for a law, the sensor's noise σ and the actuator's rate limit (units/s). */
 export function noiseActivity(law: PidLaw, noiseStd: number, rateLimit: number): NoiseActivity {
   const stepStd = noiseStd * noiseStepGain(law);
