@@ -1,4 +1,6 @@
 /** JSON output helpers: one document, NaN and ±Infinity written as null. */
+import type { NoiseActivity } from '../tune/index.js';
+
 
 /** `JSON.stringify` with non-finite numbers as null (JSON has no NaN) and a final newline. */
 export function toJson(value: unknown): string {
@@ -8,4 +10,9 @@ export function toJson(value: unknown): string {
 /** A number for a JSON document: itself when finite, else null. */
 export function finiteOrNull(x: number): number | null {
   return Number.isFinite(x) ? x : null;
+}
+
+/** Noise-driven actuator activity (tune's NoiseActivity) as JSON; null without sensor noise. */
+export function noiseJson(n: NoiseActivity | null): { step_std: number; rate_step: number | null; rate_limited_share: number } | null {
+  return n === null ? null : { step_std: n.stepStd, rate_step: finiteOrNull(n.rateStep), rate_limited_share: n.rateLimitedShare };
 }

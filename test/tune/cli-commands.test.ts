@@ -52,6 +52,21 @@ describe('looprig suggest', () => {
     expect(simc.values.ti).toBeCloseTo(10, 9);
     expect(simc.worst_case.cases).toBe(3);
     expect(typeof simc.max_sensitivity).toBe('number');
+    // The heater has no sensor noise: no noise figures.
+    expect(simc.noise).toBeNull();
+  });
+  it('--json gives the noise figures of each rule on a noisy measurement (share of samples rate-limited)', async () => {
+    const noisy = TEXT.replace('actuator: { min: -5, max: 5 }', 'actuator: { min: -5, max: 5, rate_limit: 2 }\nsensor: { noise_std: 0.05, seed: 4 }');
+    const io = fakeIo({ [FILE]: noisy });
+    expect(await main(['suggest', FILE, '--json'], io)).toBe(0);
+    const simc = JSON.parse(io.stdout).suggestions.find((s: { rule: string }) => s.rule === 'simc-pi');
+    // SIMC PI kc = 10/4.1, bi = kc h/ti: step std = 0.05 sqrt(kc^2 + (kc - bi)^2) (tune/noise-activity.ts).
+    const kc = simc.values.kc;
+    const bi = (kc * 0.1) / simc.values.ti;
+    expect(simc.noise.step_std).toBeCloseTo(0.05 * Math.sqrt(kc * kc + (kc - bi) ** 2), 9);
+    expect(simc.noise.rate_step).toBeCloseTo(0.2, 12);
+    expect(simc.noise.rate_limited_share).toBeGreaterThan(0);
+    expect(simc.noise.rate_limited_share).toBeLessThan(1);
   });
   it('a bad option is a usage error (exit 2)', async () => {
     const io = fakeIo({ [FILE]: TEXT });

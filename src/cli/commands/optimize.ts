@@ -10,7 +10,7 @@ import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult
 import { UserError } from '../errors.js';
 import { num, secs } from '../format.js';
 import type { Io } from '../io.js';
-import { finiteOrNull, toJson } from '../json.js';
+import { finiteOrNull, noiseJson, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 
 export const OPTIMIZE_USAGE = `Usage: looprig optimize FILE [options]
@@ -175,6 +175,8 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
         settling_time: first ? finiteOrNull(first.settlingTime) : null,
         max_sensitivity: b.margins ? finiteOrNull(b.margins.maxSensitivity) : null,
         gain_margin: b.margins ? finiteOrNull(b.margins.gainMargin) : null,
+        saturated_fraction: b.saturatedFraction,
+        noise: noiseJson(b.noise),
         flags: b.flags,
         notes: result.notes,
         written: wrote,

@@ -8,7 +8,7 @@ import { caseFigures, suggestGains, summarise, sweepCaseCount, type SuggestResul
 import { UserError } from '../errors.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
-import { finiteOrNull, toJson } from '../json.js';
+import { finiteOrNull, noiseJson, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import { MIN_PARALLEL_CASES, sweepJobs, SweepPool } from '../parallel-sweep.js';
 
@@ -151,6 +151,7 @@ function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown 
         gain_margin: e.margins ? finiteOrNull(e.margins.gainMargin) : null,
         phase_margin_deg: e.margins ? finiteOrNull(e.margins.phaseMarginDeg) : null,
         saturated_fraction: e.saturatedFraction,
+        noise: noiseJson(e.noise),
         worst_case: s.worstCase && {
           cases: s.worstCase.cases,
           any_diverged: s.worstCase.anyDiverged,
