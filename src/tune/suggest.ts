@@ -13,7 +13,7 @@ import type { RuleGains, UltimatePoint } from './low-order.js';
 import { relayOnPlant, type PlantRelayOptions, type PlantRelayResult } from './relay-on-plant.js';
 
 import { caseFigures, planSweep, robustnessSweep, summarise, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
-import { TUNING_RULES, type RuleInputs, type TuningRule } from './rule-table.js';
+import { TUNING_RULES, type RuleInputs, type RuleParameters, type TuningRule } from './rule-table.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 
 /** Options of `suggestGains`. */
@@ -165,5 +165,20 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
       flags,
     });
   }
+  const hint = slowerLoopHint(suggestions, params);
+  if (hint !== null) notes.push(hint);
   return { inputs, ultimateSource, ultimateModel, relay, suggestions, skipped, notes, caution: RELAY_CAUTION };
+}
+
+/**
+ * When most rules drive the actuator into its limits (a fast model, e.g. a dead time of only the
+ * sensor filter and the hold, and an actuator much slower than that), say how to ask the
+ * parametrised rules for a slower loop: the formulas are right, their default closed-loop time
+ * (SIMC's tauc = theta, IMC's lambda) is just faster than this actuator can follow.
+ */
+function slowerLoopHint(suggestions: readonly Suggestion[], params: RuleParameters): string | null {
+  if (params.tauc !== null || params.lambda !== null || suggestions.length === 0) return null;
+  const hot = suggestions.filter((s) => s.flags.some((f) => f.code === 'SATURATED' || f.code === 'NOISE_AT_RATE_LIMIT')).length;
+  if (hot * 2 <= suggestions.length) return null;
+  return `${hot} of ${suggestions.length} rule gain sets keep the actuator at a limit or on its rate limit: for a slower loop, set SIMC's closed-loop time (--tauc) or the lambda / IMC time constant (--lambda) to what the actuator can follow`;
 }

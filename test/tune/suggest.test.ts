@@ -2,6 +2,7 @@
  * suggestGains: every rule on a plant file, each gain set simulated on the full plant.
  */
 import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import { expectClose } from '../helpers/expect-close.js';
 import { fopdtPlant, plantFrom } from './plants.js';
 import { suggestGains, RELAY_CAUTION, gainMargins, tuningContext, ruleGainSet, amigoPid } from '../../src/tune/index.js';
@@ -150,5 +151,24 @@ describe('AMIGO PID lands on its design target M = 1.4 on FOPDT plants (Åström
       const ms = gainMargins(ctx, ruleGainSet(amigoPid({ k, tau1: t, theta: l }), base))!.maxSensitivity;
       expectClose(ms, 1.4, { abs: 0.012 });
     }
+  });
+});
+
+describe('suggestGains on the surge tank: a model faster than its valve', () => {
+  const file = new URL('../../plants/surge-tank.yaml', import.meta.url);
+  const spec = plantFrom(readFileSync(file, 'utf8'), 'surge-tank.yaml');
+  it('says how to ask for a slower loop when most rules keep the valve at a limit', () => {
+    const r = suggestGains(spec, { robustness: false });
+    expect(r.notes.some((n) => /--tauc/.test(n) && /of 17 rule gain sets/.test(n))).toBe(true);
+  });
+  it("with SIMC's tauc set to 60 s the integrating-process rule gives about the file's own gains (kc 3, ti 250 s, chosen that way)", () => {
+    const r = suggestGains(spec, { robustness: false, tauc: 60 });
+    expect(r.notes.some((n) => /--tauc/.test(n))).toBe(false);
+    const simc = r.suggestions.find((s) => s.rule.id === 'simc-pi')!;
+    // Skogestad 2003, integrating process: kc = 1/(k' (tauc + theta)), ti = 4 (tauc + theta), k' = 4/750 (the file's comment).
+    expect(simc.gains.kc).toBeGreaterThan(2.9);
+    expect(simc.gains.kc).toBeLessThan(3.2);
+    expect(simc.gains.ti).toBeGreaterThan(240);
+    expect(simc.gains.ti).toBeLessThan(250);
   });
 });
