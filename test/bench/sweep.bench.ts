@@ -30,32 +30,7 @@ interface Contender {
   name: string;
   /** Simulations done by one call. */
   sims: number;
-  run: () => void;
-}
-
-/** Best and median simulations per second of each contender over interleaved rounds. */
-function measure(cs: Contender[], rounds: number, minMs: number): Map<string, { best: number; median: number }> {
-  for (const c of cs) for (let i = 0; i < 3; i++) c.run(); // warm-up: JIT, generated code
-  const rates = new Map<string, number[]>(cs.map((c) => [c.name, []]));
-  for (let r = 0; r < rounds; r++) {
-    for (const c of cs) {
-      let n = 0;
-      const t0 = performance.now();
-      let t = t0;
-      while (t - t0 < minMs) {
-        c.run();
-        n++;
-        t = performance.now();
-      }
-      (rates.get(c.name) as number[]).push((n * c.sims * 1000) / (t - t0));
-    }
-  }
-  const out = new Map<string, { best: number; median: number }>();
-  for (const [name, xs] of rates) {
-    const s = [...xs].sort((a, b) => a - b);
-    out.set(name, { best: s[s.length - 1], median: s[s.length >> 1] });
-  }
-  return out;
+  run: () => unknown;
 }
 
 const SPIN = 'let s = 0; for (let i = 0; i < 1e8; i++) s += Math.sqrt(i);';
@@ -85,8 +60,12 @@ async function threadScaling(): Promise<number> {
   return (2 * alone) / both;
 }
 
-/** As `measure`, for contenders that return a promise (the worker pool); all of them awaited alike. */
-async function measureAsync(cs: { name: string; sims: number; run: () => unknown }[], rounds: number, minMs: number): Promise<Map<string, { best: number; median: number }>> {
+/**
+ * Best and median simulations per second of each contender over interleaved rounds. Every call is
+ * awaited (the pool's return a promise; awaiting a plain value costs a microtask, nothing next to
+ * a sweep of tens of ms).
+ */
+async function measure(cs: Contender[], rounds: number, minMs: number): Promise<Map<string, { best: number; median: number }>> {
   for (const c of cs) for (let i = 0; i < 3; i++) await c.run();
   const rates = new Map<string, number[]>(cs.map((c) => [c.name, []]));
   for (let r = 0; r < rounds; r++) {
@@ -126,7 +105,7 @@ export async function run(): Promise<void> {
   robustnessSweep(tank, gains, { ...options, runner: 'batched' }, ctx, plan);
   const coldBatched = performance.now() - first;
 
-  const rates = measure(
+  const rates = await measure(
     [
       { name: 'hand', sims: 1, run: () => (sink += hand()) },
       {
@@ -174,7 +153,7 @@ export async function run(): Promise<void> {
     const t0 = performance.now();
     await pool.sweep(source, gains, options);
     const coldPool = performance.now() - t0;
-    const w = await measureAsync(
+    const w = await measure(
       [
         { name: 'seq', sims: n, run: () => (sink += robustnessSweep(tank, gains, { ...options, runner: 'sequential' }, ctx, plan).cases.length) },
         { name: 'batch', sims: n, run: () => (sink += robustnessSweep(tank, gains, { ...options, runner: 'batched' }, ctx, plan).cases.length) },
