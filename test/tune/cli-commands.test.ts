@@ -96,6 +96,18 @@ describe('looprig optimize', () => {
     expect(loaded.loop.controller.values.kc).toBeCloseTo(doc.values.kc, 5);
     expect(loaded.loop.controller.values.ti).toBeCloseTo(doc.values.ti, 4);
   });
+  it('--write refuses a result that breaks the file\'s requirements (exit 1, file unchanged); --ignore-requirements writes it', async () => {
+    // A settling time no PI gain set reaches on this heater (tau 10 s, dead time 2 s).
+    const strict = TEXT.replace('      - { at: 40 s, disturbance: { load: 0.5 } }', '      - { at: 40 s, disturbance: { load: 0.5 } }\n  requirements: { settling_time: 0.5 s }');
+    expect(strict).toContain('settling_time: 0.5 s');
+    const io = fakeIo({ [FILE]: strict });
+    expect(await main(['optimize', FILE, '--write', '--evaluations', '40'], io)).toBe(1);
+    expect(io.stderr).toMatch(/does not meet .*requirements.*nothing written/);
+    expect(io.files.get(FILE)).toBe(strict);
+    const loose = fakeIo({ [FILE]: strict });
+    expect(await main(['optimize', FILE, '--write', '--evaluations', '40', '--ignore-requirements'], loose)).toBe(0);
+    expect(loose.files.get(FILE)).not.toBe(strict);
+  });
   it('shows progress on a terminal (stderr), not with --json', async () => {
     const tty = fakeIo({ [FILE]: TEXT });
     tty.isTTY = true;

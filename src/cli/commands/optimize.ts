@@ -144,6 +144,14 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     if (result.best.cost === Infinity || result.best.flags.some((f) => f.code === 'DIVERGED' || f.code === 'UNSTABLE_LOOP')) {
       throw new UserError('optimize: --write: no stable gain set found; nothing written', UserError.FAIL);
     }
+    if (!result.feasible) {
+      // Writing would replace the file's gains with a set that breaks what the file asks for.
+      const what = result.constraints.length > 0 ? `Ms <= ${result.msTarget} and the file's requirements` : `Ms <= ${result.msTarget}`;
+      throw new UserError(
+        `optimize: --write: the best gain set found does not meet ${what} (run without --write to see it); nothing written. Relax --ms or pass --ignore-requirements to write it anyway.`,
+        UserError.FAIL,
+      );
+    }
     const method = `optimize (${result.cost.kind.toUpperCase()}, Ms<=${result.msTarget})`;
     const edits = controllerEdits(text, values, { digits: 6, note: gainNote(new Date().toISOString().slice(0, 10), method) });
     const next = savePlantValues(text, edits);
