@@ -9,18 +9,9 @@ import { expectClose } from '../helpers/expect-close.js';
 import * as H from '../sim/hand-plants.js';
 import { ConstantController } from '../sim/controllers.js';
 import { loopConfig, trial } from '../sim/loops.js';
+import { gainSet } from '../helpers/gain-set.js';
 
-const gains = (g: Partial<GainSet>): GainSet => ({
-  kc: 1,
-  ti: Infinity,
-  td: 0,
-  n: 10,
-  b: 1,
-  c: 0,
-  antiWindup: 'none',
-  trackingTime: NaN,
-  ...g,
-});
+const gains = gainSet;
 const pid = (g: Partial<GainSet>, h = 0.1, min = -Infinity, max = Infinity) =>
   new PidController(gains(g), { sampleTime: h, outputMin: min, outputMax: max });
 

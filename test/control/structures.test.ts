@@ -12,23 +12,13 @@ import {
   interpolateSchedule,
   namedWeights,
 } from '../../src/control/index.js';
-import type { GainSet } from '../../src/model/types.js';
 import { runTrial, type PlantDynamics } from '../../src/sim/index.js';
 import { expectClose } from '../helpers/expect-close.js';
 import * as H from '../sim/hand-plants.js';
 import { loopConfig, trial } from '../sim/loops.js';
+import { gainSet } from '../helpers/gain-set.js';
 
-const gains = (g: Partial<GainSet>): GainSet => ({
-  kc: 1,
-  ti: Infinity,
-  td: 0,
-  n: 10,
-  b: 1,
-  c: 0,
-  antiWindup: 'none',
-  trackingTime: NaN,
-  ...g,
-});
+const gains = gainSet;
 
 describe('Smith predictor', () => {
   // Smith, Chem. Eng. Progress 53 (1957); Seborg, Edgar & Mellichamp, Process Dynamics and

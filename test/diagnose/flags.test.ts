@@ -6,7 +6,7 @@
 import { describe, it, expect } from 'vitest';
 import { PidController } from '../../src/control/index.js';
 import { controllerNoise, diagnosePlant } from '../../src/diagnose/index.js';
-import type { GainSet } from '../../src/model/types.js';
+import { gainSet } from '../helpers/gain-set.js';
 import { Sensor } from '../../src/sim/index.js';
 import type { Diagnosis, FlagKind } from '../../src/diagnose/index.js';
 import { polyProduct } from '../analysis/tf-model.js';
@@ -236,7 +236,7 @@ describe('bad input: a finding or a message, never a crash', () => {
 
 describe('controllerNoise against the simulated sensor and controller', () => {
   it('the std of the P + D output on noise through sim/sensor.ts (filter on) is the computed one: the noise is added after the filter (Monte Carlo, 200k samples)', () => {
-    const g: GainSet = { kc: 2, ti: Infinity, td: 0.4, n: 10, b: 1, c: 1, antiWindup: 'none', trackingTime: NaN };
+    const g = gainSet({ kc: 2, td: 0.4, c: 1 });
     const h = 0.05;
     const sigma = 0.02;
     const sensor = new Sensor({ delay: 0, noiseStd: sigma, filterTime: 0.5, resolution: 0, seed: 3, span: null }, h);

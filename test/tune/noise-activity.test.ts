@@ -12,11 +12,11 @@ import { Rng } from '../../src/num/index.js';
 import { runTrial } from '../../src/sim/index.js';
 import { erfc, noiseActivity, noiseStepGain } from '../../src/tune/noise-activity.js';
 import { evaluateGains, tuningContext } from '../../src/tune/index.js';
+import { gainSet } from '../helpers/gain-set.js';
 
-const BASE: GainSet = { kc: 1, ti: Infinity, td: 0, n: 10, b: 1, c: 0, antiWindup: 'none', trackingTime: NaN };
 
 function law(g: Partial<GainSet>, ts: number) {
-  const c = new PidController({ ...BASE, ...g }, { sampleTime: ts, outputMin: -Infinity, outputMax: Infinity });
+  const c = new PidController(gainSet(g), { sampleTime: ts, outputMin: -Infinity, outputMax: Infinity });
   return { controller: c, law: c.pidLaw()! };
 }
 
