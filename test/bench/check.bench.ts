@@ -6,32 +6,24 @@
  *
  * Run: `npx tsx test/bench/check.bench.ts` or `npm run bench -- check`.
  */
-import { readdirSync, readFileSync } from 'node:fs';
-import { dirname, join, resolve } from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { pathToFileURL } from 'node:url';
 import { main } from '../../src/cli/index.js';
-import { compilePlant, loadPlant } from '../../src/model/index.js';
+import { compilePlant } from '../../src/model/index.js';
 import { runTrial } from '../../src/sim/index.js';
 import { fileController, loopConfigOf } from '../../src/tune/index.js';
 import { fakeIo } from '../cli/fake-io.js';
-
-const plantsDir = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'plants');
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
-}
+import { median } from './median.js';
+import { bundledPlants, PLANTS_DIR } from './bundled-plants.js';
 
 export async function run(): Promise<void> {
-  const files = readdirSync(plantsDir).filter((f) => f.endsWith('.yaml')).sort().map((f) => join(plantsDir, f));
-  const plants = files.map((f) => loadPlant(readFileSync(f, 'utf8'), f).plant!);
+  const plants = bundledPlants().map((p) => p.spec);
   const bare = (): void => {
     for (const p of plants) {
       const d = compilePlant(p);
       runTrial(d, fileController(p, d), loopConfigOf(p, d).loop, p.loop.trial);
     }
   };
-  const check = async (): Promise<number> => main(['check', plantsDir], fakeIo());
+  const check = async (): Promise<number> => main(['check', PLANTS_DIR], fakeIo());
   await check();
   bare();
   const tCheck: number[] = [];
@@ -47,7 +39,7 @@ export async function run(): Promise<void> {
   }
   const c = median(tCheck);
   const b = median(tBare);
-  console.log(`check plants/ (${files.length} files, exit ${code}): median ${c.toFixed(0)} ms; bare trial runs of the same files ${b.toFixed(0)} ms; ratio ${(c / b).toFixed(1)}x; target a few seconds: ${c < 5000 ? 'met' : 'NOT met'}`);
+  console.log(`check plants/ (${plants.length} files, exit ${code}): median ${c.toFixed(0)} ms; bare trial runs of the same files ${b.toFixed(0)} ms; ratio ${(c / b).toFixed(1)}x; target a few seconds: ${c < 5000 ? 'met' : 'NOT met'}`);
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();

@@ -10,33 +10,18 @@
  *
  * Run: `npx tsx test/bench/compare.bench.ts` or `npm run bench -- compare`.
  */
-import { readdirSync, readFileSync } from 'node:fs';
-import { dirname, join, resolve } from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { pathToFileURL } from 'node:url';
 import { buildController } from '../../src/control/index.js';
-import { loadPlant } from '../../src/model/index.js';
 import { runTrial } from '../../src/sim/index.js';
 import { compareCandidates, planSweep, tuningContext } from '../../src/tune/index.js';
-
-const plantsDir = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'plants');
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
-}
+import { median } from './median.js';
+import { bundledPlants } from './bundled-plants.js';
 
 export async function run(): Promise<void> {
-  const files = readdirSync(plantsDir).filter((f) => f.endsWith('.yaml')).sort();
   const REPEATS = 3;
   let worst = 0;
   console.log('plant                              candidates  compare (median of 3)  bare trials  ratio');
-  for (const f of files) {
-    const loaded = loadPlant(readFileSync(join(plantsDir, f), 'utf8'), f);
-    if (!loaded.plant) {
-      console.log(`${f}: does not load`);
-      continue;
-    }
-    const spec = loaded.plant;
+  for (const { file: f, spec } of bundledPlants()) {
     compareCandidates(spec); // warm-up: code generation and JIT
     const times: number[] = [];
     let result = compareCandidates(spec);

@@ -11,35 +11,20 @@
  *
  * Run: `npx tsx test/bench/diagnose.bench.ts` or `npm run bench -- diagnose`.
  */
-import { readdirSync, readFileSync } from 'node:fs';
-import { dirname, join, resolve } from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { pathToFileURL } from 'node:url';
 import { loopMargins, plantFrequencyResponse } from '../../src/analysis/index.js';
 import { diagnosePlant } from '../../src/diagnose/index.js';
-import { loadPlant } from '../../src/model/index.js';
 import type { GainSet } from '../../src/model/types.js';
-
-const plantsDir = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'plants');
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
-}
+import { median } from './median.js';
+import { bundledPlants } from './bundled-plants.js';
 
 export async function run(): Promise<void> {
-  const files = readdirSync(plantsDir).filter((f) => f.endsWith('.yaml')).sort();
   const REPEATS = 5;
   const EDITS = 200;
   console.log('plant                          diagnose   (no trial)   grid pts   per edit   naive per edit   ratio');
   let worstDiagnose = 0;
   let worstEdit = 0;
-  for (const f of files) {
-    const loaded = loadPlant(readFileSync(join(plantsDir, f), 'utf8'), f);
-    if (!loaded.plant) {
-      console.log(`${f}: does not load`);
-      continue;
-    }
-    const spec = loaded.plant;
+  for (const { spec } of bundledPlants()) {
     diagnosePlant(spec); // warm-up: code generation and JIT
     const full: number[] = [];
     const bare: number[] = [];

@@ -1,17 +1,8 @@
 /**
- * Shared by the sweep and tune benches: loading a bundled plant, and the hand-written surge-tank
- * loop (PI, actuator limits and rate limit, sensor filter; no noise, no trace) that the engine's
- * sweep throughput is compared with.
+ * Shared by the sweep and tune benches: the hand-written surge-tank loop (PI, actuator limits and
+ * rate limit, sensor filter; no noise, no trace) that the engine's sweep throughput is compared with.
  */
-import { readFileSync } from 'node:fs';
-import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
-
-export function load(path: string): PlantSpec {
-  const r = loadPlant(readFileSync(path, 'utf8'), path);
-  if (!r.plant) throw new Error(`${path} does not load`);
-  return r.plant;
-}
 
 /** Hand-written surge-tank loop with the file's numbers (one simulation per call). */
 export function handTank(spec: PlantSpec): () => number {

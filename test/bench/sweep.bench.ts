@@ -20,7 +20,8 @@ import { Worker } from 'node:worker_threads';
 import { buildController } from '../../src/control/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
 import { runTrial, runTrialBatch } from '../../src/sim/index.js';
-import { handTank, load } from './hand-tank-loop.js';
+import { load } from './bundled-plants.js';
+import { handTank } from './hand-tank-loop.js';
 import { SweepPool } from '../../src/cli/parallel-sweep.js';
 import { planSweep, robustnessSweep, tuningContext } from '../../src/tune/index.js';
 

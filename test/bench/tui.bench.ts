@@ -20,6 +20,7 @@ import { EventEmitter } from 'node:events';
 import { readdirSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
+import { median } from './median.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const plantsDir = join(root, 'plants');
@@ -67,11 +68,6 @@ class FakeStdin extends EventEmitter {
 }
 
 const sleep = (ms: number): Promise<void> => new Promise((r) => setTimeout(r, ms));
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[s.length >> 1];
-}
 
 function quantile(xs: number[], q: number): number {
   const s = [...xs].sort((a, b) => a - b);

@@ -8,22 +8,15 @@
  *
  * Run: `npx tsx test/bench/tune.bench.ts` or `npm run bench -- tune`.
  */
-import { readdirSync } from 'node:fs';
-import { dirname, join } from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { buildController } from '../../src/control/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
 import { runTrial } from '../../src/sim/index.js';
-import { handTank, load } from './hand-tank-loop.js';
+import { bundledPlants, load, PLANTS_DIR } from './bundled-plants.js';
+import { handTank } from './hand-tank-loop.js';
 import { optimizeGains, planSweep, robustnessSweep, suggestGains, tuningContext } from '../../src/tune/index.js';
-
-const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
-
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[s.length >> 1];
-}
+import { median } from './median.js';
 
 function timeIt(f: () => void, repeats: number): number {
   f(); // warm-up (JIT, generated steppers)
@@ -50,11 +43,8 @@ function handTankMs(spec: PlantSpec): number {
 }
 
 export async function run(): Promise<void> {
-  const dir = join(root, 'plants');
-  const files = readdirSync(dir).filter((f) => f.endsWith('.yaml')).sort();
   console.log('suggest on every bundled plant (target < 300 ms each)');
-  for (const f of files) {
-    const spec = load(join(dir, f));
+  for (const { file: f, spec } of bundledPlants()) {
     let sims = 0;
     const ms = timeIt(() => {
       const r = suggestGains(spec);
@@ -67,7 +57,7 @@ export async function run(): Promise<void> {
     );
   }
 
-  const tank = load(join(dir, 'surge-tank.yaml'));
+  const tank = load(join(PLANTS_DIR, 'surge-tank.yaml'));
   console.log('optimize on the surge tank (target < 2 s)');
   let evals = 0;
   let stopped = '';
