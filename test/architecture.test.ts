@@ -41,24 +41,31 @@ function layerOf(file: string): string | null {
 
 const files = walk(src);
 
+/** Every relative import that crosses from one layer folder to another. */
+function crossFolderImports(): { file: string; spec: string; from: string; to: string; target: string }[] {
+  const out: { file: string; spec: string; from: string; to: string; target: string }[] = [];
+  for (const file of files) {
+    const from = layerOf(file);
+    if (from === null) continue;
+    for (const spec of imports(readFileSync(file, 'utf8'))) {
+      if (!spec.startsWith('.')) continue;
+      const target = resolve(dirname(file), spec);
+      const to = layerOf(target);
+      if (to !== null && to !== from) out.push({ file, spec, from, to, target });
+    }
+  }
+  return out;
+}
+
 describe('architecture', () => {
   it('finds the source tree', () => {
     expect(files.length).toBeGreaterThan(3);
   });
 
   it('imports point down the layer table only', () => {
-    const bad: string[] = [];
-    for (const file of files) {
-      const from = layerOf(file);
-      if (from === null) continue;
-      for (const spec of imports(readFileSync(file, 'utf8'))) {
-        if (!spec.startsWith('.')) continue;
-        const target = resolve(dirname(file), spec);
-        const to = layerOf(target);
-        if (to === null || to === from) continue;
-        if (LAYERS.indexOf(to) > LAYERS.indexOf(from)) bad.push(`${relative(root, file)} -> ${spec}`);
-      }
-    }
+    const bad = crossFolderImports()
+      .filter((i) => LAYERS.indexOf(i.to) > LAYERS.indexOf(i.from))
+      .map((i) => `${relative(root, i.file)} -> ${i.spec}`);
     expect(bad).toEqual([]);
   });
 
@@ -76,19 +83,9 @@ describe('architecture', () => {
   });
 
   it('outside a folder, only its index.ts (or the contract types.ts) is imported', () => {
-    const bad: string[] = [];
-    for (const file of files) {
-      const from = layerOf(file);
-      if (from === null) continue;
-      for (const spec of imports(readFileSync(file, 'utf8'))) {
-        if (!spec.startsWith('.')) continue;
-        const target = resolve(dirname(file), spec);
-        const to = layerOf(target);
-        if (to === null || to === from) continue;
-        const rel = relative(join(src, to), target).replace(/\.js$/, '');
-        if (rel !== 'index' && rel !== 'types') bad.push(`${relative(root, file)} -> ${spec}`);
-      }
-    }
+    const bad = crossFolderImports()
+      .filter((i) => !['index', 'types'].includes(relative(join(src, i.to), i.target).replace(/\.js$/, '')))
+      .map((i) => `${relative(root, i.file)} -> ${i.spec}`);
     expect(bad).toEqual([]);
   });
 
