@@ -19,3 +19,5 @@ export type { ScheduleRow, ScheduleVariable } from './gain-schedule.js';
 export { buildStructure, isResolved } from './build-structure.js';
 export type { StructurePlant } from './build-structure.js';
 export { namedWeights, TWO_DOF_NAMES } from './two-dof.js';
+export { lawNoiseGains } from './noise-gain.js';
+export type { LawNoiseGains } from './noise-gain.js';

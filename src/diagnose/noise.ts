@@ -10,30 +10,15 @@
  * it after the filter, which models the transmitter's damping of the process signal, so a longer
  * `filter_time` does not quiet the controller output in the simulation either.
  */
+import { lawNoiseGains, PidController } from '../control/index.js';
 import type { GainSet } from '../model/types.js';
 
 /** Output noise from the P and D parts, and from P alone, in actuator units. */
 export function controllerNoise(g: GainSet, sampleTime: number, noiseStd: number): { total: number; proportionalOnly: number } {
-  const h = sampleTime;
-  if (!(noiseStd > 0) || !(h > 0)) return { total: 0, proportionalOnly: 0 };
-  const hasD = g.td > 0;
-  const n = g.n > 0 && Number.isFinite(g.n) ? g.n : Infinity;
-  const ad = hasD ? (Number.isFinite(n) ? g.td / (g.td + n * h) : 0) : 0;
-  const bd = hasD ? (Number.isFinite(n) ? g.kc * n * ad : g.kc * (g.td / h)) : 0;
-  // A unit impulse in the measurement through the law, until the derivative filter has decayed.
-  const slowest = Math.max(hasD && Number.isFinite(n) ? g.td / n : 0, h);
-  const steps = Math.min(200000, Math.ceil((30 * slowest) / h) + 20);
-  let sumTotal = 0;
-  let sumP = 0;
-  let prevF = 0;
-  let dState = 0;
-  for (let k = 0; k < steps; k++) {
-    const f = k === 0 ? 1 : 0;
-    dState = ad * dState + bd * (f - prevF);
-    prevF = f;
-    const p = g.kc * f;
-    sumTotal += (p + dState) * (p + dState);
-    sumP += p * p;
-  }
-  return { total: noiseStd * Math.sqrt(sumTotal), proportionalOnly: noiseStd * Math.sqrt(sumP) };
+  if (!(noiseStd > 0) || !(sampleTime > 0)) return { total: 0, proportionalOnly: 0 };
+  // The law's own coefficients (control/pid.ts), not a second copy of its discretisation.
+  const law = new PidController(g, { sampleTime, outputMin: -Infinity, outputMax: Infinity }).pidLaw();
+  if (law === null) return { total: 0, proportionalOnly: 0 };
+  const n = lawNoiseGains(law);
+  return { total: noiseStd * n.pd, proportionalOnly: noiseStd * n.p };
 }

@@ -29,7 +29,7 @@ export { tuningContext, loopConfigOf } from './tuning-context.js';
 export type { TuningContext } from './tuning-context.js';
 export { operatingPointModel } from './operating-point.js';
 export { evaluateGains, simulateGains, gainMargins, gainNoiseActivity, FLAG_SHARE } from './evaluate.js';
-export { noiseActivity, noiseMessage, noiseStepGain } from './noise-activity.js';
+export { noiseActivity, noiseMessage } from './noise-activity.js';
 export type { NoiseActivity } from './noise-activity.js';
 export type { GainEvaluation, GainFlag, EvaluateOptions } from './evaluate.js';
 export { ruleGainSet, valuesInForm, controllerWithGains } from './gain-sets.js';

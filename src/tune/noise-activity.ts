@@ -6,38 +6,11 @@
  * measurement noise straight to its output: u ≈ −C(z) n (common practice, no source). The
  * simulated sensor adds white Gaussian noise of standard deviation σ once per sample, after its
  * filter (sim/sensor.ts), so the change Δu_k = u_k − u_{k−1} it causes is Gaussian with standard
- * deviation σ · ‖(1 − z⁻¹) C(z)‖₂, the 2-norm of the impulse response of the differenced law,
- * obtained here by running the discrete PID law (sim's PidLaw) on a unit impulse.
+ * deviation σ · ‖(1 − z⁻¹) C(z)‖₂, the 2-norm of the impulse response of the differenced law
+ * (control's lawNoiseGains, from the discrete PID law itself).
  */
+import { lawNoiseGains } from '../control/index.js';
 import type { PidLaw } from '../sim/index.js';
-
-/** Most impulse-response samples summed (the derivative filter pole ad decays long before). */
-const MAX_SAMPLES = 100_000;
-
-/**
- * 2-norm of the impulse response from the measurement to the change of the controller output per
- * sample (setpoint held, no limit reached): ‖(1 − z⁻¹) C(z)‖₂ in output units per measurement unit.
- */
-export function noiseStepGain(law: PidLaw): number {
-  // Unit impulse in the measurement at k = 0: P = −kc δ_k; D_k = ad D_{k−1} − bd (δ_k − δ_{k−1});
-  // the integral, updated after the output, adds −bi from k = 1 on.
-  let sum = 0;
-  let prevV = 0;
-  let d = 0;
-  let integral = 0;
-  for (let k = 0; k < MAX_SAMPLES; k++) {
-    const impulse = k === 0 ? 1 : 0;
-    const before = k === 1 ? 1 : 0;
-    d = law.ad * d - law.bd * (impulse - before);
-    const v = -law.kc * impulse + integral + d;
-    const dv = v - prevV;
-    sum += dv * dv;
-    prevV = v;
-    integral -= law.bi * impulse;
-    if (k >= 2 && Math.abs(d) < 1e-15 * (1 + Math.abs(law.kc))) break;
-  }
-  return Math.sqrt(sum);
-}
 
 /**
  * Complementary error function, |error| < 1.2e-7 everywhere: the Chebyshev-fitted form of
@@ -78,7 +51,7 @@ export function noiseMessage(n: NoiseActivity): string {
 
 /** Noise-driven actuator activity for a law, the sensor's noise σ and the actuator's rate limit (units/s). */
 export function noiseActivity(law: PidLaw, noiseStd: number, rateLimit: number): NoiseActivity {
-  const stepStd = noiseStd * noiseStepGain(law);
+  const stepStd = noiseStd * lawNoiseGains(law).step;
   const rateStep = rateLimit * law.sampleTime;
   // P(|Δu| > R h) for Δu ~ N(0, stepStd²).
   const rateLimitedShare = !(stepStd > 0) || !Number.isFinite(rateStep) ? 0 : erfc(rateStep / (stepStd * Math.SQRT2));

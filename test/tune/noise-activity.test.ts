@@ -1,16 +1,17 @@
 /**
- * Noise-driven actuator activity (tune/noise-activity.ts) against analytic results, a Monte-Carlo
- * run of the real controller object, and the simulated surge tank.
+ * Noise-driven actuator activity (tune/noise-activity.ts, on control's lawNoiseGains) against
+ * analytic results, a Monte-Carlo run of the real controller object, and the simulated surge tank.
  */
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { buildController, PidController } from '../../src/control/index.js';
+import { buildController, lawNoiseGains, PidController } from '../../src/control/index.js';
+import type { PidLaw } from '../../src/sim/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import type { GainSet, PlantSpec } from '../../src/model/types.js';
 import { Rng } from '../../src/num/index.js';
 import { runTrial } from '../../src/sim/index.js';
-import { erfc, noiseActivity, noiseStepGain } from '../../src/tune/noise-activity.js';
+import { erfc, noiseActivity } from '../../src/tune/noise-activity.js';
 import { evaluateGains, tuningContext } from '../../src/tune/index.js';
 import { gainSet } from '../helpers/gain-set.js';
 
@@ -44,7 +45,9 @@ describe('erfc', () => {
   });
 });
 
-describe('noiseStepGain: 2-norm of the differenced controller impulse response', () => {
+const noiseStepGain = (l: PidLaw): number => lawNoiseGains(l).step;
+
+describe("lawNoiseGains' step: 2-norm of the differenced controller impulse response", () => {
   it('P only: u = -kc n, so du = -kc (n_k - n_{k-1}) and the gain is kc sqrt(2) (analytic)', () => {
     expect(noiseStepGain(law({ kc: 2.5 }, 1).law)).toBeCloseTo(2.5 * Math.SQRT2, 12);
   });
