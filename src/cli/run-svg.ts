@@ -7,7 +7,7 @@ import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { simulatePlant } from './simulate-plant.js';
 import { trialPlotSvg } from './trial-plot.js';
-import type { RunReport } from './commands/run.js';
+import type { RunReport } from './run-report.js';
 
 /** Write the plot of `report` to `out` (temp file + rename through io.writeText). */
 export function writeRunSvg(report: RunReport, out: string, overridden: boolean, io: Io): void {

@@ -5,7 +5,7 @@
  * it like any other edit (one undo step) without knowing the tune layer.
  */
 import type { ControllerStructure, StructureName } from '../model/types.js';
-import type { GainEdit } from './state.js';
+import type { GainEdit } from './gain-edit.js';
 
 /** One tuning rule's gain set, simulated on the full plant. NaN = not defined (no step, no linear model). */
 export interface SuggestRow {

@@ -16,8 +16,11 @@ import type { Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
 import { loadPlantFile, parseOverrides } from '../load-plant-file.js';
 import type { Override } from '../load-plant-file.js';
+import type { RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
 import { USAGE } from '../usage.js';
+
+export type { RunReport } from '../run-report.js';
 
 export interface RunOptions {
   file: string;
@@ -54,16 +57,6 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     duration: timeOption('run', 'duration', values.duration),
     step: timeOption('run', 'step', values.step),
   };
-}
-
-/** Everything `run` computed, before printing. */
-export interface RunReport {
-  file: string;
-  plant: PlantSpec;
-  result: TrialResult;
-  metrics: TrialMetrics;
-  requirements: RequirementResult[];
-  warnings: string[];
 }
 
 /** Requirements that `run` does not evaluate (they need the frequency response). */
