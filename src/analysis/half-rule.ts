@@ -56,6 +56,11 @@ export interface HalfRuleResult {
   firstOrder: FirstOrderApprox | null;
   secondOrder: SecondOrderApprox | null;
   integrating: boolean;
+  /**
+   * The part of both effective delays due to right-half-plane zeros (Σ T_j), s; 0 when there is
+   * no approximation. The rest of the delay beyond the transport delay and h/2 comes from lags.
+   */
+  inverseResponseDelay: number;
   /** Plain-language notes on what was approximated or why no model could be given. */
   notes: string[];
 }
@@ -63,7 +68,7 @@ export interface HalfRuleResult {
 /** Low-order approximations by the half rule (see the file comment for the exact rules). */
 export function halfRule(input: HalfRuleInput): HalfRuleResult {
   const notes: string[] = [];
-  const none = (why: string): HalfRuleResult => ({ firstOrder: null, secondOrder: null, integrating: false, notes: [...notes, why] });
+  const none = (why: string): HalfRuleResult => ({ firstOrder: null, secondOrder: null, integrating: false, inverseResponseDelay: 0, notes: [...notes, why] });
   const { poles, zeros } = cancelPairs(input.poles, input.zeros);
   const tol0 = originTolerance(poles.concat(zeros));
   let integrators = 0;
@@ -161,6 +166,7 @@ export function halfRule(input: HalfRuleInput): HalfRuleResult {
     firstOrder: { gain, timeConstant: tau1, delay: theta1 },
     secondOrder: { gain, timeConstants: [t1, t2], delay: theta2 },
     integrating: integrators === 1,
+    inverseResponseDelay: inverse,
     notes,
   };
 }

@@ -21,6 +21,7 @@ import {
   type HalfRuleResult,
   type Margins,
   type PoleZeroSummary,
+  type SecondOrderApprox,
 } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
@@ -261,7 +262,9 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   // ---------------------------------------------------------------- flags from the linear model
   flagUnstable(flags, unstablePoles, pz, loopDelay, tol0);
   flagNonMinimumPhase(flags, pz, d.stepFit, tol0);
-  flagDeadTime(flags, d.fopdt);
+  // Lags the half rule folds into the apparent delay: every stable pole (a complex pair as two) and the sensor filter.
+  const lagCount = pz.poles.length - pz.integrators + (sensor.filterTime > 0 ? 1 : 0);
+  flagDeadTime(flags, d.fopdt, d.sopdt, { trueDelay: loopDelay, inverseResponse: hrLoop.inverseResponseDelay, lags: lagCount });
   if (pz.integrators > 0) {
     flags.push({
       kind: 'integrating',
@@ -385,21 +388,67 @@ function flagNonMinimumPhase(flags: Flag[], pz: PoleZeroSummary, fit: FopdtFit |
   });
 }
 
-function flagDeadTime(flags: Flag[], fopdt: FirstOrderApprox | null): void {
+/**
+ * A delay-dominated loop (normalised delay L/(L + T) of the first-order model above the
+ * threshold), split by where its apparent delay L comes from. Skogestad's half rule (S.
+ * Skogestad, "Simple analytic rules for model reduction and PID controller tuning", J. Process
+ * Control 13 (2003) 291-309) builds L from the true delay, half the second lag, every smaller lag
+ * and the inverse-response time constants. When the true delay (transport + sensor delay + h/2)
+ * is most of L, the loop is dead-time dominant; when the lags are, it is a high-order lag, which
+ * derivative action handles (it cancels the second lag) and a dead-time compensator does not.
+ * When inverse response makes most of L, non_minimum_phase already says what limits the loop.
+ */
+function flagDeadTime(
+  flags: Flag[],
+  fopdt: FirstOrderApprox | null,
+  sopdt: SecondOrderApprox | null,
+  parts: { trueDelay: number; inverseResponse: number; lags: number },
+): void {
   if (fopdt === null || !Number.isFinite(fopdt.timeConstant) || !(fopdt.delay > 0)) return;
   const tn = fopdt.delay / (fopdt.delay + fopdt.timeConstant);
   if (!(tn > THRESHOLDS.delayDominated)) return;
+  const trueDelay = Math.min(parts.trueDelay, fopdt.delay);
+  const lagDelay = Math.max(0, fopdt.delay - trueDelay - parts.inverseResponse);
+  const severity = tn > THRESHOLDS.delayDominatedSevere ? 'severe' : 'warning';
+  if (trueDelay >= THRESHOLDS.trueDelayShare * fopdt.delay) {
+    flags.push({
+      kind: 'dead_time_dominant',
+      severity,
+      evidence: {
+        delay_s: fopdt.delay,
+        time_constant_s: fopdt.timeConstant,
+        delay_ratio: fopdt.delay / fopdt.timeConstant,
+        normalised_delay: tn,
+        true_delay_s: trueDelay,
+        lag_delay_s: lagDelay,
+        max_crossover_rad_s: 1 / fopdt.delay,
+      },
+      advice: `Dead time dominates (L/T = ${fmt(fopdt.delay / fopdt.timeConstant, 2)}, of which ${fmt(trueDelay)} s is true delay): the loop cannot react faster than about 1/L = ${fmt(1 / fopdt.delay)} rad/s and derivative action gains little. PI with modest gain is the safe choice; a dead-time compensator (Smith predictor) is worth trying when the delay is known and steady.`,
+    });
+    return;
+  }
+  if (lagDelay < parts.inverseResponse) return;
+  const pidDelay = sopdt !== null && Number.isFinite(sopdt.delay) ? sopdt.delay : NaN;
   flags.push({
-    kind: 'dead_time_dominant',
-    severity: tn > THRESHOLDS.delayDominatedSevere ? 'severe' : 'warning',
+    kind: 'high_order_lag',
+    severity: 'info',
     evidence: {
-      delay_s: fopdt.delay,
+      apparent_delay_s: fopdt.delay,
+      true_delay_s: trueDelay,
+      lag_delay_s: lagDelay,
+      inverse_response_delay_s: parts.inverseResponse,
+      lags: parts.lags,
       time_constant_s: fopdt.timeConstant,
-      delay_ratio: fopdt.delay / fopdt.timeConstant,
       normalised_delay: tn,
-      max_crossover_rad_s: 1 / fopdt.delay,
+      second_order_delay_s: num(pidDelay),
     },
-    advice: `Dead time dominates (L/T = ${fmt(fopdt.delay / fopdt.timeConstant, 2)}): the loop cannot react faster than about 1/L = ${fmt(1 / fopdt.delay)} rad/s and derivative action gains little. PI with modest gain is the safe choice; a dead-time compensator (Smith predictor) is worth trying when the delay is known and steady.`,
+    advice:
+      `The first-order model's dead time (${fmt(fopdt.delay)} s, L/T = ${fmt(fopdt.delay / fopdt.timeConstant, 2)}) is apparent: ${fmt(lagDelay)} s of it comes from a chain of ${parts.lags} lags, only ${fmt(trueDelay)} s is true delay. ` +
+      'This is not a dead-time problem: derivative action helps here, unlike on a true delay. ' +
+      (Number.isFinite(pidDelay)
+        ? `Tune PID on the second-order model (its delay is ${fmt(pidDelay)} s against ${fmt(fopdt.delay)} s for PI; SIMC: Td = the second time constant) for a faster loop; `
+        : 'Tune PID rather than PI for a faster loop; ') +
+      'a dead-time compensator (Smith predictor) would remove only the true delay and gain little.',
   });
 }
 

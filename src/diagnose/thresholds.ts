@@ -13,6 +13,13 @@ export const THRESHOLDS = {
   delayDominated: 0.5,
   /** Above this normalised delay the finding is severe (common practice, no source). */
   delayDominatedSevere: 0.8,
+  /**
+   * Share of the apparent (half-rule) delay that must be true delay (transport + sensor delay +
+   * h/2) for a delay-dominated loop to be called dead-time dominant; below it the apparent delay
+   * comes mostly from a chain of lags (Skogestad 2003's half rule folds lags into the delay), a
+   * high-order lag. Our choice, no source: the larger part decides.
+   */
+  trueDelayShare: 0.5,
   /** An unstable pole p with delay θ: p·θ above this makes PID very hard (reference sheet section 9, heuristic from S&P 2005 [mem]). */
   unstableDelayProduct: 0.5,
   /** An RHP zero z closer than this multiple of an unstable pole p (z < 4p) is severe (sheet section 9 [mem]). */

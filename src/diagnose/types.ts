@@ -14,11 +14,12 @@ import type {
 import type { ModelType } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';
 
-/** Kinds of finding. The first ten are the "is plain PID enough?" questions; the rest report problems. */
+/** Kinds of finding. The first eleven are the "is plain PID enough?" questions; the rest report problems. */
 export type FlagKind =
   | 'unstable'
   | 'non_minimum_phase'
   | 'dead_time_dominant'
+  | 'high_order_lag'
   | 'integrating'
   | 'lightly_damped'
   | 'nonlinear'

@@ -32,6 +32,9 @@ describe("Skogestad's half rule", () => {
     expectClose(r.secondOrder!.timeConstants[0], 2, { abs: 1e-12 });
     expectClose(r.secondOrder!.timeConstants[1], 1.2, { abs: 1e-12 });
     expectClose(r.secondOrder!.delay, 0.77, { abs: 1e-12 });
+    // Of θ = 1.47, the inverse-response part is the RHP zero's T = 0.3 (sheet section 3: Σ T_j).
+    expectClose(r.inverseResponseDelay, 0.3, { abs: 1e-12 });
+    expect(r.secondOrder!.delay - r.inverseResponseDelay).toBeCloseTo(0.47, 12); // lags: 0.2 + 0.12 + 0.15
   });
 
   it('E2 from its state-space realisation (poles and zeros computed): same reductions', () => {

@@ -54,7 +54,7 @@ describe('bundled plants', () => {
   it('well-behaved files raise none of the plant-structure flags (mixing loop, belt drive)', () => {
     for (const f of ['mixing-loop-reference.yaml', 'belt-drive-speed.yaml']) {
       const d = diagnosePlant(load(f));
-      const structural = d.flags.map((x) => x.kind).filter((k) => ['unstable', 'non_minimum_phase', 'dead_time_dominant', 'integrating', 'lightly_damped', 'nonlinear'].includes(k));
+      const structural = d.flags.map((x) => x.kind).filter((k) => ['unstable', 'non_minimum_phase', 'dead_time_dominant', 'high_order_lag', 'integrating', 'lightly_damped', 'nonlinear'].includes(k));
       expect(structural, f).toEqual([]);
     }
   });

@@ -16,7 +16,7 @@ import { expectClose } from '../helpers/expect-close.js';
 const kinds = (d: Diagnosis): FlagKind[] => d.flags.map((f) => f.kind);
 const flag = (d: Diagnosis, k: FlagKind) => d.flags.find((f) => f.kind === k);
 // The structural findings about the plant itself (the loop findings depend on the chosen gains).
-const PLANT_KINDS: FlagKind[] = ['unstable', 'non_minimum_phase', 'dead_time_dominant', 'integrating', 'lightly_damped', 'nonlinear'];
+const PLANT_KINDS: FlagKind[] = ['unstable', 'non_minimum_phase', 'dead_time_dominant', 'high_order_lag', 'integrating', 'lightly_damped', 'nonlinear'];
 const plantKinds = (d: Diagnosis) => kinds(d).filter((k) => PLANT_KINDS.includes(k));
 const lag = (t: number) => [t, 1];
 
@@ -37,13 +37,14 @@ describe('flags on the benchmark batch', () => {
     }
   });
 
-  it('equal lags 1/(s+1)^n: silent for n = 1, 2; dead_time_dominant for n = 8 (half rule θ = 6.5, τ = 1.5)', () => {
+  it('equal lags 1/(s+1)^n: silent for n = 1, 2; for n = 8 a high-order lag, not dead time (half rule θ = 6.5, τ = 1.5, no true delay)', () => {
     for (const n of [1, 2]) {
       const d = diagnosePlant(transfer([1], polyProduct(...Array.from({ length: n }, () => [1, 1]))));
       expect(kinds(d), `n = ${n}`).toEqual([]);
     }
     const d8 = diagnosePlant(transfer([1], polyProduct(...Array.from({ length: 8 }, () => [1, 1])), 0, { controller: '{ structure: pi, form: ideal, kc: 0.3, ti: 4 s }' }));
-    const f = flag(d8, 'dead_time_dominant');
+    expect(flag(d8, 'dead_time_dominant')).toBeUndefined();
+    const f = flag(d8, 'high_order_lag');
     expect(f).toBeDefined();
     // An 8-fold pole is a Jordan block: rounding of size eps moves the computed poles by about
     // (eps·‖A‖)^(1/8), a few hundredths here, and the half rule then sorts slightly different
@@ -51,8 +52,72 @@ describe('flags on the benchmark batch', () => {
     // bound is 8δ (δ measured on the poles actually computed).
     const delta = Math.max(...d8.poleZero!.poles.map((p) => Math.hypot(p.re + 1, p.im)));
     expect(delta).toBeLessThan(0.1);
-    expectClose(f!.evidence.delay_s as number, 6.5 + 0.005, { abs: 8 * delta });
+    expectClose(f!.evidence.apparent_delay_s as number, 6.5 + 0.005, { abs: 8 * delta });
     expectClose(f!.evidence.time_constant_s as number, 1.5, { abs: 8 * delta });
+    expect(f!.evidence.true_delay_s).toBe(0.005);
+    expect(f!.evidence.lags).toBe(8);
+  });
+
+  // Where the apparent delay comes from, by Skogestad's half rule (S. Skogestad, "Simple analytic
+  // rules for model reduction and PID controller tuning", J. Process Control 13 (2003) 291-309;
+  // rule as in the reference sheet section 3 [mem]), for k e^(−θ0 s)/(s+1)^3 with h = 0.01 s:
+  // first order τ1 = 1 + 1/2 = 1.5, θ = θ0 + 1/2 + 1 + h/2; second order τ2 = 1 + 1/2,
+  // θ2 = θ0 + 1/2 + h/2. The true delay is θ0 + h/2; the lags make 1.5 s of θ.
+  const triple = polyProduct(lag(1), lag(1), lag(1));
+  // A triple pole is computed off by about eps^(1/3) ≈ 6e-6 (a Jordan block), hence 1e-4.
+  const tripleTol = { abs: 1e-4 };
+
+  it('1/(s+1)^3, no delay at all (apparent L/T = 1.003): a high-order lag, not dead-time dominant', () => {
+    const d = diagnosePlant(transfer([1], triple, 0, { controller: '{ structure: pi, form: ideal, kc: 0.5, ti: 2 s }' }));
+    expect(flag(d, 'dead_time_dominant')).toBeUndefined();
+    const f = flag(d, 'high_order_lag');
+    expect(f).toBeDefined();
+    expect(f!.severity).toBe('info');
+    expectClose(f!.evidence.apparent_delay_s as number, 1.505, tripleTol);
+    expectClose(f!.evidence.time_constant_s as number, 1.5, tripleTol);
+    expectClose(f!.evidence.normalised_delay as number, 1.505 / 3.005, tripleTol);
+    expect(f!.evidence.true_delay_s).toBe(0.005);
+    expectClose(f!.evidence.lag_delay_s as number, 1.5, tripleTol);
+    expect(f!.evidence.lags).toBe(3);
+    expectClose(f!.evidence.second_order_delay_s as number, 0.505, tripleTol);
+    expect(f!.advice).toMatch(/derivative action helps/);
+    expect(f!.advice).toMatch(/3 lags/);
+  });
+
+  it('e^(−5s)/(s+1): dead-time dominant (severe), all of the apparent delay is true delay', () => {
+    const d = diagnosePlant(transfer([1], lag(1), 5, { controller: '{ structure: pi, form: ideal, kc: 0.1, ti: 2 s }' }));
+    expect(flag(d, 'high_order_lag')).toBeUndefined();
+    const f = flag(d, 'dead_time_dominant');
+    expect(f).toBeDefined();
+    expect(f!.severity).toBe('severe'); // τ = 5.005/6.005 = 0.83 > 0.8
+    expectClose(f!.evidence.delay_s as number, 5.005, { abs: 1e-9 });
+    expectClose(f!.evidence.true_delay_s as number, 5.005, { abs: 1e-9 });
+    expect(f!.evidence.lag_delay_s).toBe(0);
+  });
+
+  it('mixed e^(−θ0 s)/(s+1)^3: dead-time dominant when the true delay is most of L (θ0 = 2), a high-order lag when the lags are (θ0 = 0.5)', () => {
+    const d2 = diagnosePlant(transfer([1], triple, 2, { controller: '{ structure: pi, form: ideal, kc: 0.2, ti: 3 s }' }));
+    expect(flag(d2, 'high_order_lag')).toBeUndefined();
+    const f2 = flag(d2, 'dead_time_dominant');
+    expect(f2).toBeDefined();
+    expectClose(f2!.evidence.delay_s as number, 3.505, tripleTol); // 2 + 1.5 + h/2
+    expectClose(f2!.evidence.true_delay_s as number, 2.005, { abs: 1e-12 }); // 57 % of L
+    expectClose(f2!.evidence.lag_delay_s as number, 1.5, tripleTol);
+
+    const dh = diagnosePlant(transfer([1], triple, 0.5, { controller: '{ structure: pi, form: ideal, kc: 0.2, ti: 3 s }' }));
+    expect(flag(dh, 'dead_time_dominant')).toBeUndefined();
+    const fh = flag(dh, 'high_order_lag');
+    expect(fh).toBeDefined();
+    expectClose(fh!.evidence.apparent_delay_s as number, 2.005, tripleTol); // 0.5 + 1.5 + h/2; τ = 0.57
+    expectClose(fh!.evidence.true_delay_s as number, 0.505, { abs: 1e-12 }); // 25 % of L
+    expectClose(fh!.evidence.second_order_delay_s as number, 1.005, tripleTol);
+  });
+
+  it('(1 − 5s)/(s+1)^3: the apparent delay is mostly inverse response (T = 5 of 6.5 s): neither dead time nor lag chain, non_minimum_phase says it', () => {
+    const d = diagnosePlant(transfer([-5, 1], triple, 0, { controller: '{ structure: pi, form: ideal, kc: 0.1, ti: 3 s }' }));
+    expect(kinds(d)).toContain('non_minimum_phase');
+    expect(flag(d, 'dead_time_dominant')).toBeUndefined();
+    expect(flag(d, 'high_order_lag')).toBeUndefined();
   });
 
   it('spread lags 1/((1+s)(1+as)(1+a²s)(1+a³s)), a = 0.1, 0.2, 0.5: well behaved (no plant flags)', () => {

@@ -14,9 +14,10 @@ export const DIAGNOSE_USAGE = `Usage: looprig diagnose FILE [--json]
 Finds the operating point of the plant at the trial's first setpoint, linearises there, and
 reports poles, zeros, static gain, a first-order-plus-dead-time model, the stability margins with
 the file's gains, and flags where plain PID tuning will likely fall short: unstable,
-non_minimum_phase, dead_time_dominant, integrating, lightly_damped, nonlinear, saturating,
-rate_limited, slow_sampling, noise_sensitive, unreachable_setpoint (and closed_loop_unstable,
-no_response, model_problem). Each flag carries its numbers and advice.
+non_minimum_phase, dead_time_dominant, high_order_lag (apparent dead time from a chain of lags,
+not a true delay), integrating, lightly_damped, nonlinear, saturating, rate_limited,
+slow_sampling, noise_sensitive, unreachable_setpoint (and closed_loop_unstable, no_response,
+model_problem). Each flag carries its numbers and advice.
 
 Options:
   --json         one JSON document on stdout
