@@ -17,6 +17,7 @@ import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { demoPlantPath } from './plants-dir.js';
 import { USAGE } from './usage.js';
+import { packageVersion } from './version.js';
 
 /**
  * Run the command line.
@@ -53,6 +54,9 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
       case '--help':
       case '-h':
         io.out(USAGE);
+        return 0;
+      case '--version':
+        io.out(`${packageVersion(io)}\n`);
         return 0;
       default:
         // `looprig FILE` opens the terminal screen (a summary when there is no terminal).

@@ -2,11 +2,16 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 /**
- * The bundled plants folder of the installed package. This file sits at src/cli/ (tsx, tests)
- * or dist/cli/ (built); both are two levels below the package root, where plants/ lives.
+ * The root folder of the installed package (where package.json and plants/ live). This file sits
+ * at src/cli/ (tsx, tests) or dist/cli/ (built); both are two levels below it.
  */
+export function packageRoot(): string {
+  return resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
+}
+
+/** The bundled plants folder of the installed package. */
 export function bundledPlantsDir(): string {
-  return resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'plants');
+  return join(packageRoot(), 'plants');
 }
 
 /** The demo plant opened when `looprig` is run without arguments. */

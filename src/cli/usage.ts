@@ -16,6 +16,7 @@ Usage:
                                  velocity-form coefficients
   looprig schema                 print the JSON Schema of plant files (for editors)
   looprig help                   show this text
+  looprig --version              print the version
   looprig COMMAND --help         the options of one command
 
 Options for run:

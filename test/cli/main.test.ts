@@ -36,6 +36,19 @@ describe('looprig help and dispatch', () => {
     }
   });
 
+  it('--version prints the version field of the package.json beside the code, read when asked', async () => {
+    const pkgPath = join(root, 'package.json');
+    const version = (JSON.parse(readFileSync(pkgPath, 'utf8')) as { version: string }).version;
+    expect(version).toMatch(/^\d+\.\d+\.\d+/);
+    expect(await run(['--version'])).toMatchObject({ code: 0, out: `${version}\n`, err: '' });
+    // The same file served with another version: the output follows it (nothing built in).
+    expect((await run(['--version'], { [pkgPath]: '{ "name": "looprig", "version": "9.8.7-test" }' })).out).toBe('9.8.7-test\n');
+    const broken = await run(['--version'], { [pkgPath]: '{ "name": "looprig" }' });
+    expect(broken.code).toBe(2);
+    expect(broken.err).toBe(`looprig: ${pkgPath} has no version field\n`);
+    expect((await run(['help'])).out).toContain('looprig --version');
+  });
+
   it('an unknown command prints the usage on stderr and exits 2', async () => {
     const r = await run(['frobnicate']);
     expect(r.code).toBe(2);
