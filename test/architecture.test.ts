@@ -79,8 +79,9 @@ describe('the architecture check fails on each kind of violation', () => {
     }
   });
 
-  it('an upward import into the library surface (src/index.ts) from a layer folder', () => {
+  it('an upward import into the library surface (src/index.ts) from a core folder, and the surface exporting the shell', () => {
     expect(rulesAt({ ...BASE, 'sim/up.ts': "export * from '../index.js';\n" }, 'sim/up.ts')).toContain('layer');
+    expect(rulesAt({ ...BASE, 'index.ts': "export * from './cli/main.js';\n" }, 'index.ts')).toEqual(['layer', 'index-only']);
   });
 
   it('a deep import into another folder (a file other than its index.ts or types.ts)', () => {
