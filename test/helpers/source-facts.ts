@@ -2,6 +2,8 @@
  * What one source file imports and which process-level globals it touches, read from the syntax
  * tree of the TypeScript compiler (not from the text), so a comment or a string that mentions
  * `import(` or `console.` is not taken for code, and every import form is seen.
+ * Names are not resolved through scopes: a local variable called `process` or `console` counts as
+ * the global (in the core, name it otherwise).
  */
 import ts from 'typescript';
 
