@@ -6,7 +6,7 @@ import { readdirSync, statSync } from 'node:fs';
 import { join, normalize } from 'node:path';
 import { parseDocument, isMap, isScalar } from 'yaml';
 import { UserError } from './errors.js';
-import type { Io } from './io.js';
+import { EncodingError, type Io } from './io.js';
 
 /** One file to check. */
 export interface PlantFileEntry {
@@ -93,8 +93,10 @@ export function findPlantFiles(args: readonly string[], io: Io): { files: PlantF
       let text: string;
       try {
         text = io.readText(p);
-      } catch {
-        skipped.push(p);
+      } catch (error) {
+        // A plant file in the wrong encoding is checked (and refused with its position), not skipped.
+        if (error instanceof EncodingError) found.set(p, { path: p, explicit: false });
+        else skipped.push(p);
         continue;
       }
       if (looksLikePlant(text)) found.set(p, { path: p, explicit: false });

@@ -2,39 +2,56 @@
  * The CLI's only window on the outside world. Commands receive an `Io` and never touch
  * `process` or `fs` themselves, so tests drive `main()` in-process with a fake.
  */
-import { randomBytes } from 'node:crypto';
-import { readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
-import { basename, dirname, join } from 'node:path';
+import { lstatSync, readFileSync } from 'node:fs';
+import { findEncodingProblem } from '../model/index.js';
+import { writeFileKeeping, type WriteOptions, type WriteOutcome } from './write-file.js';
+
+export type { WriteOptions, WriteOutcome };
 
 export interface Io {
   /** Write to standard output (no newline added). */
   out(text: string): void;
   /** Write to standard error (no newline added). */
   err(text: string): void;
-  /** Read a UTF-8 text file; throws the platform error (with `code`, e.g. ENOENT) on failure. */
+  /**
+   * Read a UTF-8 text file, a byte-order mark kept as U+FEFF (so a save writes it back). Throws
+   * the platform error (with `code`, e.g. ENOENT) on failure, and an `EncodingError` for bytes
+   * that are not UTF-8.
+   */
   readText(path: string): string;
-  /** Write a UTF-8 text file atomically: a temporary file in the same folder, then a rename. */
-  writeText(path: string, text: string): void;
+  /**
+   * Write a UTF-8 text file keeping what the user owns (link, mode, owner; see write-file.ts):
+   * atomic unless the outcome says otherwise. Fakes may return nothing.
+   */
+  writeText(path: string, text: string, options?: WriteOptions): WriteOutcome | void;
+  /** True when anything is at `path`, readable or not (lstat: a dangling link exists too). */
+  exists(path: string): boolean;
   /** True when standard output is a terminal. */
   isTTY: boolean;
   /** Environment variables. */
   env: Readonly<Record<string, string | undefined>>;
 }
 
-/**
- * Write `text` to `path` so that readers see either the old file or the whole new one: the text
- * goes to a temporary file beside the target (same folder, so the rename stays on one file
- * system) and is renamed over it.
- */
-export function writeFileAtomic(path: string, text: string): void {
-  const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
-  try {
-    writeFileSync(tmp, text, 'utf8');
-    renameSync(tmp, path);
-  } catch (error) {
-    rmSync(tmp, { force: true });
-    throw error;
+/** A file that is not UTF-8 text; the message is `FILE:LINE:COL: why`, ready to print. */
+export class EncodingError extends Error {
+  readonly code = 'ENCODING';
+  constructor(
+    readonly file: string,
+    readonly line: number,
+    readonly column: number,
+    readonly reason: string,
+  ) {
+    super(`${file}:${line}:${column}: ${reason}`);
+    this.name = 'EncodingError';
   }
+}
+
+/** Bytes of `file` as text, or an `EncodingError` at the first byte that is not UTF-8. */
+export function decodeTextFile(file: string, bytes: Uint8Array): string {
+  const problem = findEncodingProblem(bytes);
+  if (problem !== null) throw new EncodingError(file, problem.line, problem.column, problem.message);
+  // Buffer decoding keeps a leading byte-order mark (TextDecoder would drop it).
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8');
 }
 
 /** The real `Io` over the running Node process. */
@@ -46,8 +63,18 @@ export function nodeIo(): Io {
     err: (text) => {
       process.stderr.write(text);
     },
-    readText: (path) => readFileSync(path, 'utf8'),
-    writeText: writeFileAtomic,
+    readText: (path) => decodeTextFile(path, readFileSync(path)),
+    writeText: writeFileKeeping,
+    exists: (path) => {
+      try {
+        lstatSync(path);
+        return true;
+      } catch (error) {
+        // Only "no such file" means absent; anything else (EACCES on the folder) is not a yes.
+        if ((error as { code?: string }).code === 'ENOENT' || (error as { code?: string }).code === 'ENOTDIR') return false;
+        throw error;
+      }
+    },
     isTTY: process.stdout.isTTY === true,
     env: process.env,
   };

@@ -6,7 +6,7 @@ import { parseDocument } from 'yaml';
 import { formatDiagnostic, loadPlant, parseDuration } from '../model/index.js';
 import type { PlantSpec, PidForm } from '../model/types.js';
 import { UserError } from './errors.js';
-import type { Io } from './io.js';
+import { EncodingError, type Io } from './io.js';
 
 export interface LoadedPlant {
   plant: PlantSpec;
@@ -45,6 +45,10 @@ function readOrFail(path: string, io: Io): string {
   try {
     return io.readText(path);
   } catch (error) {
+    if (error instanceof EncodingError) {
+      io.err(`${error.message}\n`);
+      throw new UserError('', UserError.USAGE);
+    }
     const code = (error as { code?: string }).code;
     const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : (error as Error).message;
     throw new UserError(`cannot read ${path}: ${why}`);

@@ -3,11 +3,11 @@
  * own gains are simulated too and drawn as the baseline.
  */
 import { loadPlant } from '../model/index.js';
-import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { simulatePlant } from './simulate-plant.js';
 import { trialPlotSvg } from './trial-plot.js';
 import type { RunReport } from './run-report.js';
+import { writeOutput } from './write-output.js';
 
 /** Write the plot of `report` to `out` (temp file + rename through io.writeText). */
 export function writeRunSvg(report: RunReport, out: string, overridden: boolean, io: Io): void {
@@ -26,9 +26,5 @@ export function writeRunSvg(report: RunReport, out: string, overridden: boolean,
     baseline,
     note: report.result.status === 'diverged' ? 'DIVERGED' : failed.length > 0 ? `FAILED: ${failed.join(', ')}` : undefined,
   });
-  try {
-    io.writeText(out, svg);
-  } catch (error) {
-    throw new UserError(`cannot write ${out}: ${(error as Error).message}`);
-  }
+  writeOutput(io, out, svg);
 }

@@ -63,7 +63,7 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
   const diagnostics: LogDiagnostic[] = [];
   const decoded = decodeLogText(source);
   if (decoded.text === null) return { table: null, diagnostics: [decoded.diagnostic!] };
-  const text = decoded.text;
+  const text = withLfBreaks(decoded.text);
   const len = text.length;
   const maxListed = options.maxListed ?? 20;
 
@@ -116,6 +116,8 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
   // ---- requested columns
   const wanted = [options.time, ...options.columns];
   const fieldIndex: Record<string, number> = {};
+  // A name asked for twice (input and output both 'level') is still one duplicate to report.
+  const duplicatesReported = new Set<number>();
   for (const w of wanted) {
     let idx = names.indexOf(w);
     if (idx < 0) {
@@ -129,7 +131,8 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
       );
       continue;
     }
-    if (names.indexOf(names[idx], idx + 1) >= 0) {
+    if (names.indexOf(names[idx], idx + 1) >= 0 && !duplicatesReported.has(idx)) {
+      duplicatesReported.add(idx);
       diagnostics.push(
         logDiagnostic('BAD_HEADER', 'error', headerLine, fieldColumn(header, delimiter, names.indexOf(names[idx], idx + 1)),
           `column name '${names[idx]}' appears twice`),
@@ -216,6 +219,7 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
       if (v === null) {
         const name = options.columns[c];
         if (MISSING.has(cell.toLowerCase())) fail(lineNo, fieldColumn(line, delimiter, colIdx[c]), 'MISSING_CELL', `cell in column '${name}' is ${cell === '' ? 'empty' : `'${cell}' (missing)`}`);
+        else if (NUMBER.test(cell)) fail(lineNo, fieldColumn(line, delimiter, colIdx[c]), 'BAD_CELL', `'${cell}' in column '${name}' is beyond the range of numbers (about ±1.8e308)`);
         else fail(lineNo, fieldColumn(line, delimiter, colIdx[c]), 'BAD_CELL', `'${cell}' in column '${name}' is not a number`);
         ok = false;
         break;
@@ -282,7 +286,7 @@ export function readCsv(source: string | Uint8Array, options: ReadCsvOptions): R
  * there is no header with a delimiter. For choosing default columns before a full read.
  */
 export function readCsvHeader(text: string): string[] | null {
-  for (const raw of text.split('\n', 200)) {
+  for (const raw of withLfBreaks(text).split('\n', 200)) {
     const line = stripCr(raw);
     if (line.trim() === '' || line.trimStart().startsWith('#')) continue;
     const d = detectDelimiter(line);
@@ -293,8 +297,9 @@ export function readCsvHeader(text: string): string[] | null {
 
 /**
  * Parse a numeric cell: decimal point, or (when `allowComma`) a decimal comma; optional
- * exponent. No hexadecimal, no thousands separators, no "Infinity": a log with those is
- * more likely mis-read than meant. Returns null when the cell is not such a number.
+ * exponent. No hexadecimal, no thousands separators, no "Infinity" (nor a value beyond the
+ * double range such as 1e999): a log with those is more likely mis-read than meant. Returns
+ * null when the cell is not such a number.
  */
 export function parseNumber(cell: string, allowComma: boolean): number | null {
   let s = cell;
@@ -303,7 +308,17 @@ export function parseNumber(cell: string, allowComma: boolean): number | null {
     s = s.replace(',', '.');
   }
   if (!NUMBER.test(s)) return null;
-  return +s;
+  const v = +s;
+  // '1e999' reads as Infinity: not a measurement.
+  return Number.isFinite(v) ? v : null;
+}
+
+/**
+ * Text whose lines end in CR alone (classic Mac OS, some loggers) with LF instead, so that the
+ * rows are found; same length, so offsets stay valid. Other text is returned as it is.
+ */
+export function withLfBreaks(text: string): string {
+  return text.indexOf('\r') >= 0 && text.indexOf('\n') < 0 ? text.replace(/\r/g, '\n') : text;
 }
 
 /** The one-based character column of field `index` in a line. */

@@ -3,6 +3,7 @@
  * fit). Positions are one-based line and column in the log file; 0 means "no position" (a
  * finding about the data as a whole).
  */
+import { visibleControls } from '../model/index.js';
 
 /** What went wrong (or is worth saying), one code per kind of finding. */
 export type LogDiagnosticCode =
@@ -66,7 +67,7 @@ export function logDiagnostic(
 export function formatLogDiagnostic(d: LogDiagnostic, fileName: string): string {
   const where = d.line > 0 ? (d.column > 0 ? `${fileName}:${d.line}:${d.column}` : `${fileName}:${d.line}`) : fileName;
   const prefix = d.severity === 'error' ? '' : `${d.severity}: `;
-  return `${where}: ${prefix}${d.message}`;
+  return `${where}: ${prefix}${visibleControls(d.message)}`;
 }
 
 /** True when any diagnostic is an error. */

@@ -99,6 +99,14 @@ export interface FormatOptions {
 }
 
 /**
+ * `s` with control characters (NUL, ESC, DEL, C1) written as `\xNN`: a message quotes the user's
+ * text (a field name, a cell) and must never carry raw bytes to a terminal. Tabs and line breaks stay.
+ */
+export function visibleControls(s: string): string {
+  return s.replace(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f]/g, (c) => `\\x${c.charCodeAt(0).toString(16).toUpperCase().padStart(2, '0')}`);
+}
+
+/**
  * `FILE:LINE:COL: message` with 1-based line and column (warnings say `warning: ` before the
  * message). With `{caret: true}` two more lines follow: the source line and `^^^` under the span.
  */
@@ -110,7 +118,7 @@ export function formatDiagnostic(
 ): string {
   const { line, col } = lineColumn(text, d.span[0]);
   const prefix = d.severity === 'warning' ? 'warning: ' : '';
-  let out = `${fileName}:${line}:${col}: ${prefix}${d.message}`;
+  let out = `${fileName}:${line}:${col}: ${prefix}${visibleControls(d.message)}`;
   if (options.caret) {
     const src = sourceLine(text, line);
     // Keep tabs in the lead so the caret lines up under tab-indented text.

@@ -8,6 +8,7 @@ export {
   DIAGNOSTIC_CODES,
   diagnostic,
   formatDiagnostic,
+  visibleControls,
   hasErrors,
   type Diagnostic,
   type DiagnosticCode,
@@ -18,6 +19,7 @@ export { loadPlant, MAX_PLANT_TEXT, type LoadResult } from './load.js';
 export { formatDuration, parseDuration, TIME_UNITS, tryParseDuration, type DurationResult } from './units.js';
 export { controllerEdits, gainNote, savePlantValues, type ControllerEditOptions, type ValueEdit } from './save.js';
 export { lineColumn, type PlantDocument } from './yaml-doc.js';
+export { findEncodingProblem, type EncodingProblem } from './utf8.js';
 
 export { parseExpression, EXPR_LIMITS, type ExprError, type ExprErrorCode, type ParseOptions } from './expr/parser.js';
 export { evaluateExpression, type ExprEnv } from './expr/interpret.js';

@@ -290,6 +290,10 @@ function rangeSpan(node: { range?: [number, number, number] | null }): Span {
 // yaml appends " at line L, column C" only when prettyErrors is on; strip any trailing context.
 function yamlMessage(message: string): string {
   const first = message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '');
+  // yaml's wording names its own API; say what is wrong with the file instead.
+  if (/^Source contains multiple documents/.test(first)) {
+    return "a plant file holds one YAML document; a second one starts here (remove the '---' line and what follows, or split the file)";
+  }
   // The usual cause in a plant file: a `cond ? a : b` expression or a "key: value" inside text.
   if (/^Nested mappings are not allowed/.test(first)) {
     return `${first} (a value containing ': ', such as a 'cond ? a : b' expression, must be in quotes)`;
@@ -350,7 +354,9 @@ function counterFor(text: string): LineCounter {
 export function lineColumn(text: string, offset: number): { line: number; col: number } {
   const o = Math.max(0, Math.min(offset, text.length));
   const p = counterFor(text).linePos(o);
-  return { line: p.line, col: p.col };
+  // A byte-order mark (kept in the text so that a save writes it back) is not a column.
+  const bom = p.line === 1 && o > 0 && text.charCodeAt(0) === 0xfeff;
+  return { line: p.line, col: bom ? p.col - 1 : p.col };
 }
 
 /** The text of 1-based line `line`, without its line break. */
@@ -359,7 +365,8 @@ export function sourceLine(text: string, line: number): string {
   const start = lc.lineStarts[line - 1] ?? text.length;
   const next = lc.lineStarts[line];
   const end = next === undefined ? text.length : next - 1;
-  return text.slice(start, end).replace(/\r$/, '');
+  const s = text.slice(start, end).replace(/\r$/, '');
+  return line === 1 && s.charCodeAt(0) === 0xfeff ? s.slice(1) : s;
 }
 
 // ---------------------------------------------------------------- editing
@@ -370,9 +377,10 @@ export interface ValueEdit {
   value: number | string;
   /**
    * A record written as the end-of-line comment of the value's line (one line of text, no '#'
-   * needed), e.g. "2026-12-02 optimize (IAE, Ms<=1.6)". An earlier record on that line (comment
-   * text starting with a YYYY-MM-DD date, at the start or after "; ") is replaced; any other
-   * comment text on the line is kept in front of it ("unit valve per m; 2026-12-02 optimize").
+   * needed), e.g. "2026-12-02 optimize (IAE, Ms<=1.6)". It is written after the mark `looprig: `
+   * (see `NOTE_MARK`), and only a record carrying that mark (or one in the exact form earlier
+   * versions wrote, see `isOwnNote`) is replaced by a later save: every other comment text on
+   * the line is the user's and is kept in front ("unit valve per m; looprig: 2026-12-02 ...").
    * The comment keeps the column it had when the value changes width.
    */
   note?: string;
@@ -419,8 +427,25 @@ export function setValueInText(text: string, edit: ValueEdit): string {
   return withNote(text, a, b, written, edit);
 }
 
-/** A record comment left by an earlier save: a date at the start of the comment or after "; ". */
-const EARLIER_NOTE = /(?:^|;\s*)\d{4}-\d{2}-\d{2}\b.*$/;
+/**
+ * The mark in front of every record we write into a comment, so that no comment of the user's
+ * is ever taken for one of ours (a comment that merely starts with a date is the user's).
+ */
+export const NOTE_MARK = 'looprig:';
+
+/** Our record at the end of a comment: the mark, at the start or after "; ". */
+const MARKED_NOTE = /(?:^|;\s*)looprig:\s.*$/;
+
+/**
+ * Records written before the mark existed, recognised only in the exact forms those versions
+ * produced (`optimize --write` and the screen), never by a date alone.
+ */
+const UNMARKED_NOTE = /(?:^|;\s*)\d{4}-(?:0[1-9]|1[0-2])-(?:0[1-9]|[12]\d|3[01]) (?:optimize \([A-Z]+, Ms<=\d+(?:\.\d+)?\)|looprig screen)$/;
+
+/** The comment text without our record (marked or old-style) at its end; the user's part kept. */
+function withoutOwnNote(comment: string): string {
+  return comment.replace(MARKED_NOTE, '').replace(UNMARKED_NOTE, '').replace(/[;\s]+$/, '');
+}
 
 /**
  * Replace bytes [a, b) of `text` by `written` and set the end-of-line comment of that line to
@@ -439,8 +464,9 @@ function withNote(text: string, a: number, b: number, written: string, edit: Val
   const hash = commentStart(rest);
   const content = (hash < 0 ? rest : rest.slice(0, hash)).replace(/[ \t]+$/, '');
   const oldComment = hash < 0 ? '' : rest.slice(hash + 1).trim();
-  const kept = oldComment.replace(EARLIER_NOTE, '').replace(/[;\s]+$/, '');
-  const comment = kept === '' ? note.trim() : `${kept}; ${note.trim()}`;
+  const kept = withoutOwnNote(oldComment);
+  const record = `${NOTE_MARK} ${note.trim()}`;
+  const comment = kept === '' ? record : `${kept}; ${record}`;
   const head = text.slice(lineStart, a) + written + content;
   // Keep the comment column when the old line had one and the new content still fits before it.
   let gap = '  ';

@@ -41,6 +41,7 @@ import { noiseNotice } from './noise-notice.js';
 import { OptimizePanel } from './panels/OptimizePanel.js';
 import { StatusLine } from './panels/StatusLine.js';
 import { SuggestPanel } from './panels/SuggestPanel.js';
+import { wrap } from './panels/wrap.js';
 import { planSave } from './save-gains.js';
 import {
   frameId,
@@ -63,9 +64,13 @@ import { bandLines, outputSeries, trendSeries } from './trend-series.js';
 
 /** File access the screen needs; tests pass a fake, the command passes the real files. */
 export interface ScreenIo {
+  /** Read the file; an error with `code` 'ENOENT' means it is gone (a save writes it anew). */
   readText(path: string): string;
-  /** Write atomically (temporary file + rename). */
-  writeText(path: string, text: string): void;
+  /**
+   * Write the file keeping its link, mode and owner (the CLI's writer). Returns sentences about
+   * anything unusual (a link followed, a non-atomic write, the file recreated); fakes may not.
+   */
+  writeText(path: string, text: string, options?: { expectExisting?: boolean }): { notes: readonly string[] } | void;
 }
 
 export interface AppProps {
@@ -133,7 +138,9 @@ export function App(props: AppProps) {
     }),
   );
   const size = useTerminalSize(props.size);
-  const layout = computeLayout(size.columns, size.rows, gainPanelLines(state.current));
+  // A long message (a save error naming a path) is wrapped, not cut: the charts give up the rows.
+  const messageRows = messageLines(state, Math.max(20, Math.floor(size.columns || 80))).length;
+  const layout = computeLayout(size.columns, size.rows - (messageRows - 1), gainPanelLines(state.current));
   const aids = useTuningAids(setup, dispatch);
 
   // ---------------------------------------------------------------- instant evaluation
@@ -255,19 +262,24 @@ export function App(props: AppProps) {
   }
 
   function save(onDiskText: boolean): void {
-    let disk: string;
+    // null: the file was deleted since loading; the loaded text gets the edit and is written anew.
+    let disk: string | null;
     try {
       disk = props.io.readText(props.filePath);
     } catch (error) {
-      dispatch({ type: 'save_failed', text: `cannot read ${props.fileName}: ${(error as Error).message}` });
-      return;
+      if ((error as { code?: string }).code !== 'ENOENT') {
+        // Unreadable is not absent: never write over a file we could not compare.
+        dispatch({ type: 'save_failed', text: `not written: cannot read ${props.fileName}: ${(error as Error).message}` });
+        return;
+      }
+      disk = null;
     }
-    if (!onDiskText && disk !== loaded.current) {
+    if (!onDiskText && disk !== null && disk !== loaded.current) {
       dispatch({ type: 'save_conflict' });
       return;
     }
     // The record beside each saved value: today's date and where the gains came from.
-    const plan = planSave(onDiskText ? disk : loaded.current, state.file, state.current, fileForm, gainNote(new Date().toISOString().slice(0, 10), 'looprig screen'));
+    const plan = planSave(onDiskText && disk !== null ? disk : loaded.current, state.file, state.current, fileForm, gainNote(new Date().toISOString().slice(0, 10), 'screen'));
     if (!plan.ok) {
       dispatch({ type: 'save_failed', text: `not written: ${plan.error}` });
       return;
@@ -278,15 +290,15 @@ export function App(props: AppProps) {
       dispatch({ type: 'save_failed', text: `not written: the edited file would not load (${check.diagnostics[0]?.message ?? 'unknown error'})` });
       return;
     }
+    let notes: readonly string[];
     try {
-      props.io.writeText(props.filePath, plan.text);
+      notes = props.io.writeText(props.filePath, plan.text, { expectExisting: true })?.notes ?? [];
     } catch (error) {
       dispatch({ type: 'save_failed', text: `cannot write ${props.fileName}: ${(error as Error).message}` });
       return;
     }
     loaded.current = plan.text;
-    dispatch({ type: 'saved' });
-    if (plan.formNote !== null) dispatch({ type: 'notify', message: { text: `saved; ${plan.formNote}`, tone: 'info' } });
+    dispatch({ type: 'saved', notes: plan.formNote === null ? notes : [...notes, plan.formNote], warn: notes.length > 0 });
   }
 
   // ---------------------------------------------------------------- keys
@@ -353,7 +365,7 @@ export function App(props: AppProps) {
   })();
 
   return (
-    <Box flexDirection="column" width={layout.width} height={layout.lines}>
+    <Box flexDirection="column" width={layout.width} height={layout.lines + messageRows - 1}>
       <StatusLine
         fileName={props.fileName}
         dirty={isDirty(state)}
@@ -612,6 +624,21 @@ function Separator(p: { rows: number; theme: Theme }) {
   );
 }
 
+/** Most lines a message may take; beyond that its last line ends in '…'. */
+const MESSAGE_MAX_LINES = 4;
+
+/** The message (or question) as word-wrapped lines of `width`; one line when there is none. */
+function messageLines(state: ScreenState, width: number): string[] {
+  const o = state.overlay;
+  const text = o.kind === 'confirm' ? `${o.text} (y/n)` : o.kind !== 'input' && state.message !== null ? state.message.text : '';
+  const lines = wrap(text, width);
+  if (lines.length === 0) return [''];
+  if (lines.length <= MESSAGE_MAX_LINES) return lines;
+  const kept = lines.slice(0, MESSAGE_MAX_LINES);
+  kept[MESSAGE_MAX_LINES - 1] = `${kept[MESSAGE_MAX_LINES - 1].slice(0, width - 1)}…`;
+  return kept;
+}
+
 function MessageLine(p: {
   state: ScreenState;
   width: number;
@@ -645,12 +672,17 @@ function MessageLine(p: {
       </Box>
     );
   }
-  if (o.kind === 'confirm') {
-    return <Line pieces={[{ text: `${o.text} (y/n)`, color: theme.warn, bold: true }]} width={width} color={theme.color} />;
-  }
-  if (state.message !== null) {
-    const color = state.message.tone === 'error' ? theme.bad : state.message.tone === 'warn' ? theme.warn : undefined;
-    return <Line pieces={[{ text: state.message.text, color }]} width={width} color={theme.color} />;
+  const lines = messageLines(state, width);
+  if (o.kind === 'confirm' || state.message !== null) {
+    const tone = o.kind === 'confirm' ? 'warn' : state.message?.tone;
+    const color = tone === 'error' ? theme.bad : tone === 'warn' ? theme.warn : undefined;
+    return (
+      <Box flexDirection="column" width={width}>
+        {lines.map((text, i) => (
+          <Line key={i} pieces={[{ text, color, bold: o.kind === 'confirm' }]} width={width} color={theme.color} />
+        ))}
+      </Box>
+    );
   }
   const first = p.notices[0];
   if (first !== undefined) return <Line pieces={noticePieces(first, theme)} width={width} color={theme.color} />;

@@ -2,7 +2,7 @@
  * tui/: the terminal screen. The CLI opens it with `runScreen`; the rest is listed for tests
  * and for anyone embedding the screen's pure parts (reducer, keymap, layout).
  */
-export { runScreen, NODE_SCREEN_IO, type ScreenOptions } from './run-screen.js';
+export { runScreen, type ScreenOptions } from './run-screen.js';
 export { App, type AppProps, type ScreenIo } from './app.js';
 export {
   KEYMAP,

@@ -3,9 +3,7 @@
  * screen, raw keys), run the app, and give the terminal back however the screen ends: quit,
  * Ctrl-C, SIGTERM, SIGHUP, SIGINT or a crash.
  */
-import { randomBytes } from 'node:crypto';
-import { readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
-import { basename, dirname, join } from 'node:path';
+import { basename } from 'node:path';
 import { render } from 'ink';
 import { formatDiagnostic, loadPlant } from '../model/index.js';
 import { App, type ScreenIo } from './app.js';
@@ -16,8 +14,8 @@ import type { RunMode } from './state.js';
 import { colorWanted } from './theme.js';
 
 export interface ScreenOptions {
-  /** File access (default: node:fs, writes via temporary file + rename). */
-  io?: ScreenIo;
+  /** File access: the CLI passes its reader and its writer (links, modes, owners kept). */
+  io: ScreenIo;
   stdin?: NodeJS.ReadStream;
   stdout?: NodeJS.WriteStream;
   stderr?: NodeJS.WriteStream;
@@ -36,28 +34,13 @@ const ENTER_ALT = '\u001b[?1049h\u001b[H';
 const LEAVE_ALT = '\u001b[?1049l';
 const SHOW_CURSOR = '\u001b[?25h';
 
-/** node:fs file access with an atomic write. */
-export const NODE_SCREEN_IO: ScreenIo = {
-  readText: (path) => readFileSync(path, 'utf8'),
-  writeText: (path, text) => {
-    const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
-    try {
-      writeFileSync(tmp, text, 'utf8');
-      renameSync(tmp, path);
-    } catch (error) {
-      rmSync(tmp, { force: true });
-      throw error;
-    }
-  },
-};
-
 /**
  * Open the screen on a plant file. Resolves with the exit status: 0 after quitting, 2 when the
  * file cannot be read or loaded (its FILE:LINE:COL messages on stderr, no stack trace), 128+n
  * after a terminating signal.
  */
-export async function runScreen(filePath: string, options: ScreenOptions = {}): Promise<number> {
-  const io = options.io ?? NODE_SCREEN_IO;
+export async function runScreen(filePath: string, options: ScreenOptions): Promise<number> {
+  const io = options.io;
   const stdin = options.stdin ?? process.stdin;
   const stdout = options.stdout ?? process.stdout;
   const stderr = options.stderr ?? process.stderr;
@@ -68,7 +51,9 @@ export async function runScreen(filePath: string, options: ScreenOptions = {}): 
   try {
     text = io.readText(filePath);
   } catch (error) {
-    stderr.write(`looprig: cannot read ${filePath}: ${(error as Error).message}\n`);
+    // Not UTF-8: the reader's message already says FILE:LINE:COL.
+    const encoding = (error as { code?: string }).code === 'ENCODING';
+    stderr.write(encoding ? `${(error as Error).message}\n` : `looprig: cannot read ${filePath}: ${(error as Error).message}\n`);
     return 2;
   }
   const loaded = loadPlant(text, filePath);

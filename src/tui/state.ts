@@ -331,7 +331,8 @@ export type Action =
   | { type: 'answer'; yes: boolean }
   /** The shell found the file changed on disk since it was loaded. */
   | { type: 'save_conflict' }
-  | { type: 'saved' }
+  /** Written; `notes` say anything unusual (a link followed, not atomic, form converted). */
+  | { type: 'saved'; notes?: readonly string[]; warn?: boolean }
   | { type: 'save_failed'; text: string }
   /** The shell took the queued effects. */
   | { type: 'effects_taken'; count: number }
@@ -390,7 +391,11 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
         },
       };
     case 'saved':
-      return { ...s, file: s.current, message: { text: `gain set written to ${s.fileName}`, tone: 'info' } };
+      return {
+        ...s,
+        file: s.current,
+        message: { text: [`gain set written to ${s.fileName}`, ...(a.notes ?? [])].join('; '), tone: a.warn === true ? 'warn' : 'info' },
+      };
     case 'save_failed':
       return { ...s, message: { text: a.text, tone: 'error' } };
     case 'effects_taken':

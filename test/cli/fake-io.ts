@@ -2,7 +2,7 @@
  * An in-memory `Io` for driving `main()` in-process: captures stdout/stderr, serves virtual files
  * first and falls back to the real file system for reads; writes go to memory only.
  */
-import { readFileSync } from 'node:fs';
+import { lstatSync, readFileSync } from 'node:fs';
 import type { Io } from '../../src/cli/index.js';
 
 export interface FakeIo extends Io {
@@ -29,6 +29,15 @@ export function fakeIo(files: Record<string, string> = {}): FakeIo {
     },
     writeText(path, text) {
       io.files.set(path, text);
+    },
+    exists(path) {
+      if (io.files.has(path)) return true;
+      try {
+        lstatSync(path);
+        return true;
+      } catch {
+        return false;
+      }
     },
     isTTY: false,
     env: {},

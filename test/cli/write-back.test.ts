@@ -26,7 +26,7 @@ function quietIo(): Io & { stdout: string; stderr: string } {
 }
 
 describe('optimize --write on a file on disk', () => {
-  it('changes only the gain lines, each with "# DATE optimize (...)", and leaves no temp file', async () => {
+  it('changes only the gain lines, each with "# looprig: DATE optimize (...)", and leaves no temp file', async () => {
     const file = join(tmp, 'surge-tank.yaml');
     copyFileSync('plants/surge-tank.yaml', file);
     const before = readFileSync(file, 'utf8');
@@ -40,7 +40,7 @@ describe('optimize --write on a file on disk', () => {
     expect(b.length).toBe(a.length);
     const changed = a.map((l, i) => (l === b[i] ? -1 : i)).filter((i) => i >= 0);
     expect(changed.map((i) => a[i].trim().split(':')[0])).toEqual(['kc', 'ti']);
-    for (const i of changed) expect(b[i]).toMatch(/# (unit valve per m of level error; )?\d{4}-\d{2}-\d{2} optimize \(IAE, Ms<=1\.6\)$/);
+    for (const i of changed) expect(b[i]).toMatch(/# (unit valve per m of level error; )?looprig: \d{4}-\d{2}-\d{2} optimize \(IAE, Ms<=1\.6\)$/);
     expect(readdirSync(tmp).filter((f) => f.endsWith('.tmp'))).toEqual([]);
   });
 

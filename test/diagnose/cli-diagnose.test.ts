@@ -25,6 +25,7 @@ function fakeIo(files: Record<string, string> = {}): Io & { stdout: string; stde
     writeText() {
       throw new Error('diagnose writes nothing');
     },
+    exists: (p: string) => p in files,
     isTTY: false,
     env: {},
   };

@@ -49,10 +49,10 @@ describe('gain write-back on every bundled plant', () => {
       const inLines = text.split('\n');
       for (const l of expected) {
         expect(outLines[l - 1]).toContain(`# `);
-        expect(outLines[l - 1].endsWith(NOTE)).toBe(true);
+        expect(outLines[l - 1].endsWith(`looprig: ${NOTE}`)).toBe(true);
         // A comment that was there (units of the gain) is kept in front of the record.
         const old = inLines[l - 1].match(/#\s*(.*)$/);
-        if (old) expect(outLines[l - 1]).toContain(`${old[1]}; ${NOTE}`);
+        if (old) expect(outLines[l - 1]).toContain(`${old[1]}; looprig: ${NOTE}`);
       }
       const again = loadPlant(out, name).plant!;
       for (const [k, v] of Object.entries(values)) {
@@ -78,8 +78,8 @@ describe('record comments', () => {
   it('keeps the comment column, lines a new comment up with the line above', () => {
     const out = savePlantValues(text, controllerEdits(text, { kc: 2.125, ti: 31.5 }, { note: '2026-01-05 suggest simc' }));
     expect(out.split('\n').slice(5, 7)).toEqual([
-      '    kc: 2.125        # %/K; 2026-01-05 suggest simc',
-      '    ti: 31.5 s       # 2026-01-05 suggest simc',
+      '    kc: 2.125        # %/K; looprig: 2026-01-05 suggest simc',
+      '    ti: 31.5 s       # looprig: 2026-01-05 suggest simc',
     ]);
   });
 
@@ -87,36 +87,36 @@ describe('record comments', () => {
     const once = savePlantValues(text, controllerEdits(text, { kc: 2.5, ti: 40 }, { note: '2026-01-05 suggest simc' }));
     const twice = savePlantValues(once, controllerEdits(once, { kc: 3 }, { note: '2026-02-01 screen' }));
     expect(twice.split('\n').slice(5, 7)).toEqual([
-      '    kc: 3            # %/K; 2026-02-01 screen',
-      '    ti: 40 s         # 2026-01-05 suggest simc',
+      '    kc: 3            # %/K; looprig: 2026-02-01 screen',
+      '    ti: 40 s         # looprig: 2026-01-05 suggest simc',
     ]);
   });
 
   it('a field that was absent is inserted with its record', () => {
     const out = savePlantValues(text, controllerEdits(text, { td: 2 }, { note: '2026-01-05 screen' }));
     // The line above (ti) has no comment to line up with: two spaces.
-    expect(out.split('\n')[7]).toBe('    td: 2  # 2026-01-05 screen');
+    expect(out.split('\n')[7]).toBe('    td: 2  # looprig: 2026-01-05 screen');
     expect(loadPlant(out).plant!.loop.controller.values.td).toBe(2);
   });
 
   it('values inside a flow mapping get one comment at the end of their line', () => {
     const flow = 'name: x\nmodel: { type: first_order, gain: 1, time_constant: 10 s }\nloop:\n  sample_time: 1 s\n  controller: { kc: 2, ti: 30 s }  # old\n  trial: { duration: 100 s }\n';
     const out = savePlantValues(flow, controllerEdits(flow, { kc: 4, ti: 20 }, { note: '2026-01-05 screen' }));
-    expect(out.split('\n')[4]).toBe('  controller: { kc: 4, ti: 20 s }  # old; 2026-01-05 screen');
+    expect(out.split('\n')[4]).toBe('  controller: { kc: 4, ti: 20 s }  # old; looprig: 2026-01-05 screen');
     expect(loadPlant(out).plant!.loop.controller.values).toMatchObject({ kc: 4, ti: 20 });
   });
 
   it('CRLF files keep their line breaks', () => {
     const crlf = text.replace(/\n/g, '\r\n');
     const out = savePlantValues(crlf, controllerEdits(crlf, { kc: 5 }, { note: '2026-01-05 screen' }));
-    expect(out.split('\r\n')[5]).toBe('    kc: 5            # %/K; 2026-01-05 screen');
+    expect(out.split('\r\n')[5]).toBe('    kc: 5            # %/K; looprig: 2026-01-05 screen');
     expect(out.replace(/\r\n/g, '').includes('\n')).toBe(false);
   });
 
   it('a "#" inside a quoted value is not taken for a comment', () => {
     const q = 'name: "a # b"\nmodel: { type: first_order, gain: 1, time_constant: 10 s }\n';
     const out = savePlantValues(q, [{ path: ['model', 'gain'], value: 2, note: '2026-01-05 x' }]);
-    expect(out.split('\n')[1]).toBe('model: { type: first_order, gain: 2, time_constant: 10 s }  # 2026-01-05 x');
+    expect(out.split('\n')[1]).toBe('model: { type: first_order, gain: 2, time_constant: 10 s }  # looprig: 2026-01-05 x');
   });
 
   it('gainNote checks the date and the method text', () => {

@@ -103,7 +103,7 @@ describe('tui app: save and quit', () => {
     expect(s.writes).toHaveLength(0);
     await s.press('y');
     await until(() => s.writes.length === 1, 'the write', s.frame);
-    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2  # \d{4}-\d{2}-\d{2} looprig screen$/m);
+    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2  # looprig: \d{4}-\d{2}-\d{2} screen$/m);
     expect(s.writes[0].text).toContain('# N: derivative low-pass at Td/N');
     await until(() => s.frame().includes('gain set written'), 'the saved message', s.frame);
     expect(s.frame()).toContain('gain set written to surge-tank.yaml');
@@ -128,7 +128,7 @@ describe('tui app: save and quit', () => {
     await until(() => s.writes.length === 1, 'the write', s.frame);
     // The other change on disk is kept; ours is added.
     expect(s.writes[0].text).toContain('name: Surge tank level (edited)');
-    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2  # \d{4}-\d{2}-\d{2} looprig screen$/m);
+    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2  # looprig: \d{4}-\d{2}-\d{2} screen$/m);
   });
 
   it('quitting with unsaved changes asks; n stays, y quits with 0', async () => {

@@ -16,9 +16,10 @@ import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
 import { UserError } from '../errors.js';
 import { findPlantFiles, parseShard, shardOf, topLevelKeys, type PlantFileEntry } from '../find-plant-files.js';
 import { num, table } from '../format.js';
-import type { Io } from '../io.js';
+import { EncodingError, type Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
 import { trialPlotSvg } from '../trial-plot.js';
+import { writeOutput } from '../write-output.js';
 
 export const CHECK_USAGE = `Usage: looprig check FILE|DIR... [options]
 
@@ -88,6 +89,7 @@ function checkFile(entry: PlantFileEntry, io: Io): FileOutcome {
   try {
     text = io.readText(file);
   } catch (error) {
+    if (error instanceof EncodingError) return invalid([error.message]);
     const code = (error as { code?: string }).code;
     return invalid([`${file}: cannot read: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : (error as Error).message}`]);
   }
@@ -166,11 +168,7 @@ export async function checkCommand(args: readonly string[], io: Io): Promise<num
         metrics: nominal.metrics,
         note: `FAILED: ${[...new Set(failed)].join(', ')}`,
       });
-      try {
-        io.writeText(path, svg);
-      } catch (error) {
-        throw new UserError(`check: cannot write ${path}: ${(error as Error).message}`);
-      }
+      writeOutput(io, path, svg, {}, 'check');
       o.svg = path;
     }
   }

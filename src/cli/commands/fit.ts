@@ -22,8 +22,9 @@ import type { BumpData, CsvTable, FitKind, IdentifyResult, LogDiagnostic } from 
 import { tryParseDuration } from '../../model/index.js';
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
-import type { Io } from '../io.js';
+import { EncodingError, type Io } from '../io.js';
 import { toJson } from '../json.js';
+import { writeOutput } from '../write-output.js';
 
 /** Help text of `fit`. */
 export const FIT_USAGE = `looprig fit LOG.csv - fit a model to a logged bump test
@@ -132,6 +133,10 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
   try {
     text = io.readText(options.file);
   } catch (error) {
+    if (error instanceof EncodingError) {
+      io.err(`${error.message}\n`);
+      return UserError.USAGE;
+    }
     throw new UserError(`cannot read ${options.file}: ${(error as Error).message}`);
   }
   if (options.out !== null && !options.force && exists(io, options.out)) {
@@ -141,11 +146,7 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
   if (report === null) return UserError.USAGE;
 
   if (options.out !== null && report.plantText !== null) {
-    try {
-      io.writeText(options.out, report.plantText);
-    } catch (error) {
-      throw new UserError(`cannot write ${options.out}: ${(error as Error).message}`);
-    }
+    writeOutput(io, options.out, report.plantText);
   }
   if (options.json) {
     io.out(toJson(jsonReport(report, options)));
@@ -214,12 +215,12 @@ function windowBound(raw: string | null, flag: string, t: CsvTable): number | nu
   throw new UserError(`fit: --${flag} ${raw}: expected seconds (e.g. 120 or 2min)${t.timeFormat === 'iso' ? ' or an ISO-8601 time' : ''}`);
 }
 
+/** Whether --out names something already there. A file we cannot read still exists. */
 function exists(io: Io, path: string): boolean {
   try {
-    io.readText(path);
-    return true;
-  } catch {
-    return false;
+    return io.exists(path);
+  } catch (error) {
+    throw new UserError(`fit: cannot tell whether ${path} exists (${(error as Error).message}); not written`);
   }
 }
 

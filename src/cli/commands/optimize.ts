@@ -12,6 +12,7 @@ import { num, secs } from '../format.js';
 import type { Io } from '../io.js';
 import { finiteOrNull, noiseJson, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
+import { writeOutput } from '../write-output.js';
 
 export const OPTIMIZE_USAGE = `Usage: looprig optimize FILE [options]
 
@@ -155,12 +156,8 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     const method = `optimize (${result.cost.kind.toUpperCase()}, Ms<=${result.msTarget})`;
     const edits = controllerEdits(text, values, { digits: 6, note: gainNote(new Date().toISOString().slice(0, 10), method) });
     const next = savePlantValues(text, edits);
-    try {
-      io.writeText(o.file, next);
-    } catch (error) {
-      throw new UserError(`cannot write ${o.file}: ${(error as Error).message}`);
-    }
-    wrote = o.file;
+    // The file was read a moment ago: if it is gone now, say so (it is written anew).
+    wrote = writeOutput(io, o.file, next, { expectExisting: true });
   }
   if (o.json) {
     const b = result.best;

@@ -19,6 +19,7 @@ import type { Override } from '../load-plant-file.js';
 import type { RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
 import { USAGE } from '../usage.js';
+import { writeOutput } from '../write-output.js';
 
 export type { RunReport } from '../run-report.js';
 
@@ -121,11 +122,7 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
   }
   const report = runPlant(options, io);
   if (options.csv !== null) {
-    try {
-      io.writeText(options.csv, traceCsv(report.result.trace));
-    } catch (error) {
-      throw new UserError(`cannot write ${options.csv}: ${(error as Error).message}`);
-    }
+    writeOutput(io, options.csv, traceCsv(report.result.trace));
   }
   if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
   io.out(options.json ? toJson(reportJson(report)) : summaryText(report));

@@ -20,7 +20,7 @@ export async function screenCommand(args: readonly string[], io: Io): Promise<nu
   delete process.env.CONTINUOUS_INTEGRATION;
   const { runScreen } = await import('../../tui/index.js');
   return runScreen(file, {
-    io: { readText: (p) => io.readText(p), writeText: (p, t) => io.writeText(p, t) },
+    io: { readText: (p) => io.readText(p), writeText: (p, t, options) => io.writeText(p, t, options) },
     env: io.env,
   });
 }
