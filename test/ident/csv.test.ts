@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { readCsv, readCsvHeader, formatLogDiagnostic, parseIsoTimestamp } from '../../src/ident/index.js';
+import { readCsv, readCsvHeader, formatLogDiagnostic, parseIsoTimestamp, parseNumber } from '../../src/ident/index.js';
 import { expectClose } from '../helpers/expect-close.js';
 
 const opts = { time: 'time', columns: ['valve', 'level'] };
@@ -104,6 +104,41 @@ describe('readCsv', () => {
     // A UTF-8 byte-order mark is fine.
     const bom = new Uint8Array([0xef, 0xbb, 0xbf, ...new TextEncoder().encode('time,valve,level\n0,1,2\n1,1,3\n')]);
     expect(readCsv(bom, opts).table!.rows).toBe(2);
+  });
+
+  it('a value beyond the double range (1e999) is refused, not read as Infinity (was: "column constant (Infinity)")', () => {
+    const r = readCsv('time,valve,level\n0,1,2\n1,1,1e999\n2,1,3\n', opts);
+    expect(r.table).toBeNull();
+    expect(r.diagnostics[0]).toMatchObject({ code: 'BAD_CELL', line: 3, column: 5 });
+    expect(r.diagnostics[0].message).toBe("'1e999' in column 'level' is beyond the range of numbers (about ±1.8e308)");
+    expect(parseNumber('-1e400', false)).toBeNull();
+    expect(parseNumber('1e308', false)).toBe(1e308);
+  });
+
+  it('lines ending in CR alone are rows (was: "no data rows")', () => {
+    const r = readCsv('time,valve,level\r0,1,2\r1,1,3\r2,1,4\r', opts);
+    expect(r.diagnostics).toEqual([]);
+    expect(r.table!.rows).toBe(3);
+    expect([...r.table!.columns.level]).toEqual([2, 3, 4]);
+    expect([...r.table!.lines]).toEqual([2, 3, 4]);
+    expect(readCsvHeader('t,u,y\r0,1,2\r')).toEqual(['t', 'u', 'y']);
+  });
+
+  it('binary data is called binary, UTF-16 without a mark still UTF-16 (was: binary reported as UTF-16)', () => {
+    const binary = new Uint8Array([0x50, 0x4b, 0x03, 0x04, 0x14, 0x00, 0x00, 0x00, 0x08, 0x00, 0x21, 0x00, 0x61, 0x62, 0x63, 0x64, 0x65, 0x66]);
+    expect(readCsv(binary, opts).diagnostics).toMatchObject([{ code: 'ENCODING', line: 1, column: 6, message: 'the file holds binary data (a NUL byte), not CSV text' }]);
+    const utf16NoMark = new Uint8Array([...'time,valve,level\n'].flatMap((c) => [c.charCodeAt(0), 0]));
+    expect(readCsv(utf16NoMark, opts).diagnostics[0].message).toMatch(/^the file looks UTF-16/);
+  });
+
+  it('a duplicated column asked for twice is reported once (was: the same line twice)', () => {
+    const r = readCsv('time,level,level\n0,1,2\n1,1,3\n', { time: 'time', columns: ['level', 'level'] });
+    expect(r.diagnostics).toEqual([{ code: 'BAD_HEADER', severity: 'error', line: 1, column: 12, message: "column name 'level' appears twice" }]);
+  });
+
+  it('control characters quoted from the log are escaped when printed', () => {
+    const r = readCsv('time,valve,level\n0,1,2\n1,1,a\u001b[31m\n', opts);
+    expect(formatLogDiagnostic(r.diagnostics[0], 'x.csv')).toBe("x.csv:3:5: 'a\\x1B[31m' in column 'level' is not a number");
   });
 
   // Speed is reported by test/bench/ident.bench.ts, never asserted here.

@@ -119,6 +119,27 @@ describe('record comments', () => {
     expect(out.split('\n')[1]).toBe('model: { type: first_order, gain: 2, time_constant: 10 s }  # looprig: 2026-01-05 x');
   });
 
+  it('a human comment that starts with a date is kept; only our marked record is replaced', () => {
+    const human = text.replace('    kc: 2            # %/K', '    kc: 3   # 2021-05-04 valve swapped, do not raise above 4');
+    const once = savePlantValues(human, controllerEdits(human, { kc: 15.67 }, { note: '2026-12-03 optimize (IAE, Ms<=1.6)' }));
+    // Was: "kc: 15.67 # 2026-12-03 optimize (IAE, Ms<=1.6)", the human note gone.
+    expect(once.split('\n')[5]).toBe('    kc: 15.67  # 2021-05-04 valve swapped, do not raise above 4; looprig: 2026-12-03 optimize (IAE, Ms<=1.6)');
+    const twice = savePlantValues(once, controllerEdits(once, { kc: 4 }, { note: '2026-12-04 screen' }));
+    expect(twice.split('\n')[5]).toBe('    kc: 4      # 2021-05-04 valve swapped, do not raise above 4; looprig: 2026-12-04 screen');
+  });
+
+  it('records written before the mark existed are replaced only in the exact forms those versions wrote', () => {
+    const old = (comment: string): string => text.replace('    kc: 2            # %/K', `    kc: 2  # ${comment}`);
+    const save = (t: string): string => savePlantValues(t, controllerEdits(t, { kc: 5 }, { note: '2026-12-04 screen' })).split('\n')[5];
+    expect(save(old('2026-12-02 optimize (IAE, Ms<=1.6)'))).toBe('    kc: 5  # looprig: 2026-12-04 screen');
+    expect(save(old('%/K; 2026-12-02 optimize (ITAE, Ms<=1.4)'))).toBe('    kc: 5  # %/K; looprig: 2026-12-04 screen');
+    expect(save(old('2026-11-30 looprig screen'))).toBe('    kc: 5  # looprig: 2026-12-04 screen');
+    // Anything else with a date is the user's.
+    expect(save(old('2026-11-30 looprig screen, checked by Ana'))).toBe('    kc: 5  # 2026-11-30 looprig screen, checked by Ana; looprig: 2026-12-04 screen');
+    expect(save(old('2026-12-02 retuned by hand'))).toBe('    kc: 5  # 2026-12-02 retuned by hand; looprig: 2026-12-04 screen');
+    expect(save(old('set 2026-12-02; 2026-12-03 see log'))).toBe('    kc: 5  # set 2026-12-02; 2026-12-03 see log; looprig: 2026-12-04 screen');
+  });
+
   it('gainNote checks the date and the method text', () => {
     expect(gainNote('2026-12-02', ' optimize ')).toBe('2026-12-02 optimize');
     expect(() => gainNote('2026-13-02', 'x')).toThrow(RangeError);
