@@ -131,6 +131,39 @@ describe('tui app: save and quit', () => {
     expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2  # looprig: \d{4}-\d{2}-\d{2} screen$/m);
   });
 
+  it('a file deleted since loading is written anew, and the screen says so (was: "cannot read")', async () => {
+    const s = await mount('surge-tank.yaml');
+    s.files.delete('surge-tank.yaml');
+    s.io.notes = ['surge-tank.yaml no longer existed (deleted since it was read); written anew'];
+    await s.press(']', 'w', 'y');
+    await until(() => s.writes.length === 1, 'the write', s.frame);
+    expect(s.writes[0].text).toMatch(/^ {4}kc: 2\.2  # looprig: \d{4}-\d{2}-\d{2} screen$/m);
+    await until(() => s.frame().includes('written anew'), 'the note', s.frame);
+    expect(s.frame().replace(/\s+/g, ' ')).toContain('gain set written to surge-tank.yaml; surge-tank.yaml no longer existed (deleted since it was read); written anew');
+  });
+
+  it('a file that exists but cannot be read is not written over', async () => {
+    const s = await mount('surge-tank.yaml');
+    s.io.readError = Object.assign(new Error('EACCES: permission denied'), { code: 'EACCES' });
+    await s.press(']', 'w', 'y');
+    await until(() => s.frame().includes('not written'), 'the refusal', s.frame);
+    expect(s.writes).toHaveLength(0);
+    expect(s.frame()).toContain('not written: cannot read surge-tank.yaml: EACCES: permission denied');
+  });
+
+  it('a long save error is word-wrapped in full, not cut at the terminal width', async () => {
+    const s = await mount('surge-tank.yaml', { columns: 60, rows: 20 });
+    const why = '/home/operator/plants/area-2/surge-tank.yaml is read-only (mode 0444); not written (make it writable first, e.g. chmod u+w, if it should change)';
+    s.io.writeError = new Error(why);
+    await s.press(']', 'w', 'y');
+    await until(() => s.frame().includes('cannot write'), 'the error', s.frame);
+    const frame = s.frame();
+    // Every word is on screen, in order, each line within 60 columns, and the frame as tall as before.
+    expect(frame.replace(/\s+/g, ' ')).toContain(`cannot write surge-tank.yaml: ${why}`);
+    for (const line of frame.split('\n')) expect(line.length).toBeLessThanOrEqual(60);
+    expect(frame.split('\n')).toHaveLength(19);
+  });
+
   it('quitting with unsaved changes asks; n stays, y quits with 0', async () => {
     const s = await mount('surge-tank.yaml');
     await s.press(']', 'q');

@@ -37,6 +37,8 @@ export interface Mounted {
   press(...keys: string[]): Promise<void>;
   files: Map<string, string>;
   writes: { path: string; text: string }[];
+  /** Set to make the next writes fail with this error, or answer with these notes. */
+  io: { writeError: Error | null; readError: Error | null; notes: string[] };
   exits: number[];
 }
 
@@ -50,15 +52,19 @@ export async function mount(
   const files = new Map([[name, text]]);
   const writes: { path: string; text: string }[] = [];
   const exits: number[] = [];
+  const behaviour: Mounted['io'] = { writeError: null, readError: null, notes: [] };
   const io: ScreenIo = {
     readText: (p) => {
+      if (behaviour.readError !== null) throw behaviour.readError;
       const t = files.get(p);
-      if (t === undefined) throw new Error(`ENOENT: ${p}`);
+      if (t === undefined) throw Object.assign(new Error(`ENOENT: no such file or directory, open '${p}'`), { code: 'ENOENT' });
       return t;
     },
     writeText: (p, t) => {
+      if (behaviour.writeError !== null) throw behaviour.writeError;
       writes.push({ path: p, text: t });
       files.set(p, t);
+      return { notes: behaviour.notes };
     },
   };
   const app = render(
@@ -92,6 +98,7 @@ export async function mount(
     },
     files,
     writes,
+    io: behaviour,
     exits,
   };
 }
