@@ -80,6 +80,8 @@ export function writeFileKeeping(path: string, data: string | Uint8Array, option
   removeStaleTemps(dirname(target), basename(target));
   try {
     writeAtomic(target, bytes, stat, notes);
+    // The rename gives the name a new file: other names of the old one still show the old bytes.
+    if (stat !== null && stat.nlink > 1) notes.push(`${target} had ${stat.nlink - 1} other hard link(s); they still hold the previous content`);
     return { target, created: stat === null, inPlace: false, notes };
   } catch (error) {
     if (!(error instanceof TempRefused) || stat === null) throw error instanceof TempRefused ? error.reason : error;

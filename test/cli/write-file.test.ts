@@ -9,6 +9,7 @@ import {
   chmodSync,
   chownSync,
   existsSync,
+  linkSync,
   lstatSync,
   mkdirSync,
   mkdtempSync,
@@ -117,6 +118,16 @@ describe('writeFileKeeping: modes and owners', () => {
     writeFileKeeping(f, 'new\n');
     const st = statSync(f);
     expect([st.uid, st.gid, st.mode & 0o7777]).toEqual([NOBODY, NOBODY, 0o640]);
+  });
+
+  it('a file with another hard link: written, and the note says the other name keeps the old content', () => {
+    const d = freshDir();
+    const f = join(d, 'p.yaml');
+    writeFileSync(f, 'old\n');
+    linkSync(f, join(d, 'copy.yaml'));
+    const out = writeFileKeeping(f, 'new\n');
+    expect(out.notes).toEqual([`${f} had 1 other hard link(s); they still hold the previous content`]);
+    expect(readFileSync(join(d, 'copy.yaml'), 'utf8')).toBe('old\n');
   });
 
   it('a folder or other non-regular file is refused', () => {
