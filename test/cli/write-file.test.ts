@@ -25,6 +25,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { writeFileKeeping } from '../../src/cli/write-file.js';
+import ts from 'typescript';
 import { Rng } from '../../src/num/index.js';
 import { fillText } from './helpers/fill-text.js';
 
@@ -210,35 +211,75 @@ describe('writeFileKeeping: folders and deleted files', () => {
 });
 
 describe('writeFileKeeping: killed mid-write', () => {
-  // 2 MiB per write: long enough (milliseconds with the flush) for kills to land inside it.
-  const SIZE = 2 * 1024 * 1024;
+  // 4 MiB per write: tens of milliseconds with the flush, a window kills can land in.
+  const SIZE = 4 * 1024 * 1024;
   const OLD = fillText('old', SIZE);
   const NEW = fillText('new', SIZE);
 
+  /**
+   * The child: the writer's own source, compiled by TypeScript to plain JavaScript once, so that
+   * each of the 20 children starts as plain node (a tsx start costs ~0.3 s, ~1 s under load).
+   */
+  function plainChild(): string {
+    const dir = join(tmp, 'plain-child');
+    mkdirSync(dir);
+    const compile = (from: string, to: string): void => {
+      const js = ts.transpileModule(readFileSync(join(root, from), 'utf8'), {
+        compilerOptions: { module: ts.ModuleKind.ES2022, target: ts.ScriptTarget.ES2022 },
+      }).outputText;
+      writeFileSync(join(dir, to), js);
+    };
+    compile('src/cli/write-file.ts', 'write-file.mjs');
+    compile('test/cli/helpers/fill-text.ts', 'fill-text.mjs');
+    const main = join(dir, 'child.mjs');
+    writeFileSync(
+      main,
+      [
+        "import { writeFileKeeping } from './write-file.mjs';",
+        "import { fillText } from './fill-text.mjs';",
+        'const [target, label, size] = process.argv.slice(2);',
+        'const text = fillText(label, Number(size));',
+        "process.stdout.write('ready\\n');",
+        'writeFileKeeping(target, text);',
+        '',
+      ].join('\n'),
+    );
+    return main;
+  }
+
   it('SIGKILL at 20 random points: the target is always the whole old or the whole new file', async () => {
+    const child0 = plainChild();
     const d = freshDir();
     const f = join(d, 'big.yaml');
+    // How long one write takes on this machine now: the kills are spread over twice that.
+    const t0 = performance.now();
+    writeFileKeeping(join(d, 'probe.yaml'), NEW);
+    const writeMs = performance.now() - t0;
+    rmSync(join(d, 'probe.yaml'));
     writeFileSync(f, OLD);
     const rng = new Rng(13);
-    const seen = { old: 0, new: 0 };
+    const seen = { old: 0, new: 0, midWrite: 0 };
     for (let round = 0; round < 20; round++) {
       const current = readFileSync(f, 'utf8');
       const next = current === OLD ? 'new' : 'old';
-      const child = spawn(process.execPath, ['--import', 'tsx/esm', CHILD, f, `--fill=${next}:${SIZE}`], { cwd: root, stdio: ['ignore', 'pipe', 'ignore'] });
+      const child = spawn(process.execPath, [child0, f, next, String(SIZE)], { stdio: ['ignore', 'pipe', 'ignore'] });
       const exited = new Promise<void>((res) => child.once('exit', () => res()));
       await Promise.race([new Promise<void>((res) => child.stdout.once('data', () => res())), exited]);
-      // Kill anywhere from at once to well after the write could have finished.
-      await new Promise((r) => setTimeout(r, rng.nextFloat() * 80));
+      // Kill anywhere from at once to after the write could have finished.
+      await new Promise((r) => setTimeout(r, rng.nextFloat() * 2 * writeMs));
       child.kill('SIGKILL');
       await exited;
       const after = readFileSync(f, 'utf8');
       const whole = after === OLD ? 'old' : after === NEW ? 'new' : null;
       expect(whole, `round ${round}: the file is neither the old nor the new content (${after.length} chars)`).not.toBeNull();
       seen[whole!]++;
+      // A temporary file left behind: this kill landed inside a write, before its rename.
+      if (temps(d).length > 0) seen.midWrite++;
     }
-    // The kills hit both before and after the rename (otherwise this test proves nothing).
+    // The kills hit before, inside and after writes (otherwise this test proves nothing).
     expect(seen.old).toBeGreaterThan(0);
     expect(seen.new).toBeGreaterThan(0);
+    expect(seen.midWrite).toBeGreaterThan(0);
     // Temporary files of killed writers are removed by the next write.
     writeFileKeeping(f, 'done\n');
     expect(temps(d)).toEqual([]);
