@@ -5,6 +5,7 @@
  * oscillation caution is shown whenever such a row is listed.
  */
 import { Box } from 'ink';
+import { headlineSources, rankedFigureText } from '../../analysis/index.js';
 import { RELAY_CAUTION } from '../../tune/index.js';
 import type { Theme } from '../theme.js';
 import type { SuggestView } from '../tuning-views.js';
@@ -52,8 +53,8 @@ export function suggestTableLines(view: SuggestView, selected: number): string[]
       fig(g.kc),
       Number.isFinite(g.ti) ? `${fig(g.ti)} s` : '-',
       g.td > 0 ? `${fig(g.td)} s` : '-',
-      r.diverged ? 'diverged' : Number.isNaN(r.overshootPct) ? '-' : `${fig(r.overshootPct)} %`,
-      r.diverged ? '' : Number.isNaN(r.settlingTime) ? '-' : Number.isFinite(r.settlingTime) ? `${fig(r.settlingTime)} s` : 'never',
+      r.diverged ? 'diverged' : rankedFigureText('overshootPct', r.overshootPct, (x) => fig(x)),
+      r.diverged ? '' : rankedFigureText('settlingTime', r.settlingTime, (x) => fig(x)),
       r.diverged ? '' : fig(r.iae),
       r.ms === Infinity ? 'unst.' : fig(r.ms),
       fig(r.gm),
@@ -61,6 +62,12 @@ export function suggestTableLines(view: SuggestView, selected: number): string[]
     out.push(`${i === selected ? '>' : ' '}${r.flags.length > 0 ? '!' : ' '}${line}`);
   });
   return out;
+}
+
+/** Which step the overshoot and settling columns come from, for the detail line ('' without a step). */
+export function figuresFrom(head: SuggestView['rows'][number]['head'] | null): string {
+  const from = head === null ? '' : headlineSources(head, ['overshootPct', 'settlingTime'], (x) => fig(x, 4));
+  return from === '' ? '' : `  (figures: ${from})`;
 }
 
 export interface SuggestPanelProps {
@@ -84,6 +91,7 @@ export function SuggestPanel(p: SuggestPanelProps) {
     detail.push([
       { text: `${sel.label}: `, bold: true },
       { text: gainsText(sel.edit) },
+      { text: sel.diverged ? '' : figuresFrom(sel.head), color: t.dim },
       { text: sel.flags.length > 0 ? `  ! ${sel.flags.join(', ')}` : '', color: t.warn },
     ]);
   }
