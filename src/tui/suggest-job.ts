@@ -18,6 +18,7 @@ const FLAG_WORDS: Record<GainFlag['code'], string> = {
   NOISE_AT_RATE_LIMIT: 'noisy valve',
   MS_ABOVE_TARGET: 'Ms high',
   REQUIREMENT_FAILED: 'fails req.',
+  REQUIREMENT_NA: 'req. n/a',
   NO_MARGINS: 'no margins',
   NO_FILE_FORM: 'no file form',
 };

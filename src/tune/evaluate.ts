@@ -14,7 +14,7 @@ import type { TuningContext } from './tuning-context.js';
 
 /** A finding about one gain set. */
 export interface GainFlag {
-  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'NOISE_AT_RATE_LIMIT' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS' | 'NO_FILE_FORM';
+  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'NOISE_AT_RATE_LIMIT' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'REQUIREMENT_NA' | 'NO_MARGINS' | 'NO_FILE_FORM';
   message: string;
 }
 
@@ -118,6 +118,8 @@ export function evaluateGains(
   if (noise !== null && noise.rateLimitedShare > satFlag) flags.push({ code: 'NOISE_AT_RATE_LIMIT', message: noiseMessage(noise) });
   for (const r of requirements) {
     if (r.status === 'fail') flags.push({ code: 'REQUIREMENT_FAILED', message: `${r.name} ${formatMeasured(r.measured, r.reason)} (limit ${r.limit})` });
+    // Not a failure of the gains, but never a silent pass: the trial cannot show it.
+    if (r.status === 'n/a') flags.push({ code: 'REQUIREMENT_NA', message: `${r.name} cannot be evaluated: ${r.reason}` });
   }
   return { gains: g, structure, result, metrics, margins, requirements, cost, saturatedFraction, noise, flags };
 }

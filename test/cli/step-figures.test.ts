@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { headlineMetrics } from '../../src/analysis/index.js';
 import { main } from '../../src/cli/index.js';
 import { loadPlant } from '../../src/model/index.js';
-import { suggestGains } from '../../src/tune/index.js';
+import { evaluateGains, suggestGains, tuningContext } from '../../src/tune/index.js';
 import { expectClose } from '../helpers/expect-close.js';
 import { fakeIo } from './fake-io.js';
 
@@ -78,6 +78,12 @@ describe('step figures on every surface', () => {
     const rows = JSON.parse(check.out).files[0].requirements;
     expect(rows[0]).toMatchObject({ name: 'overshoot_pct', status: 'not available', note: 'not available: the trial has no setpoint step' });
     expect(rows[1]).toMatchObject({ name: 'iae', status: 'pass' });
+    // A gain set evaluated for tuning carries it as a flag (the rule list and optimiser show flags).
+    const plant = loadPlant(flat, 'flat.yaml').plant!;
+    const e = evaluateGains(tuningContext(plant), plant.loop.controller.gains, 'p');
+    expect(e.flags.filter((f) => f.code.startsWith('REQUIREMENT'))).toEqual([
+      { code: 'REQUIREMENT_NA', message: 'overshoot_pct cannot be evaluated: the trial has no setpoint step' },
+    ]);
     const table = await cli(['check', 'flat.yaml'], { 'flat.yaml': flat });
     expect(table.out).toMatch(/overshoot_pct\s+nominal\s+n\/a\s+<= 10 %\s+N\/A\s+not available: the trial has no setpoint step/);
   });
