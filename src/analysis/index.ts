@@ -6,8 +6,6 @@ export {
   trialMetrics,
   headlineMetrics,
   headlineNumber,
-  checkRequirements,
-  timeRequirementNames,
   DEFAULT_SETTLING_BAND,
   SETTLED_DWELL,
   FOLLOW_MIN,
@@ -16,14 +14,14 @@ export type {
   StepFigure,
   HeadlineFigure,
   HeadlineMetrics,
-  RequirementStatus,
   StepMetrics,
   RampMetrics,
   DisturbanceMetrics,
   OverallMetrics,
   TrialMetrics,
-  RequirementResult,
 } from './step-metrics.js';
+export { checkRequirements, timeRequirementNames } from './requirements.js';
+export type { RequirementResult, RequirementStatus } from './requirements.js';
 export { NOT_REACHED, NOT_SETTLED, NO_STEP_REASON, STEP_FIGURE_UNIT, missingWord, stepFigureText, rankedFigureText, headlineSource, headlineSources, STEP_FIGURE_LABEL } from './figure-text.js';
 
 // Operating point, linearisation, poles/zeros, frequency response, margins, low-order models.
