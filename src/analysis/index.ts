@@ -2,15 +2,27 @@
  * analysis/: what a trial or a model tells us. Step metrics here; linearisation, poles/zeros,
  * frequency response and margins are appended below by their files' owners.
  */
-export { trialMetrics, checkRequirements, timeRequirementNames, DEFAULT_SETTLING_BAND } from './step-metrics.js';
+export {
+  trialMetrics,
+  headlineMetrics,
+  headlineNumber,
+  DEFAULT_SETTLING_BAND,
+  SETTLED_DWELL,
+  FOLLOW_MIN,
+} from './step-metrics.js';
 export type {
+  StepFigure,
+  HeadlineFigure,
+  HeadlineMetrics,
   StepMetrics,
   RampMetrics,
   DisturbanceMetrics,
   OverallMetrics,
   TrialMetrics,
-  RequirementResult,
 } from './step-metrics.js';
+export { checkRequirements, timeRequirementNames } from './requirements.js';
+export type { RequirementResult, RequirementStatus } from './requirements.js';
+export { NOT_REACHED, NOT_SETTLED, NO_STEP_REASON, STEP_FIGURE_UNIT, missingWord, stepFigureText, rankedFigureText, headlineSource, headlineSources, STEP_FIGURE_LABEL } from './figure-text.js';
 
 // Operating point, linearisation, poles/zeros, frequency response, margins, low-order models.
 export { findEquilibrium, steadyStateAtInput } from './equilibrium.js';

@@ -1,16 +1,40 @@
 /**
  * Time-domain metrics of one closed-loop trial, computed from its trace.
  *
- * Definitions (reference sheet section 11, "Step-response metrics"):
- * - rise time: 10 % -> 90 % of the setpoint change (Franklin, Powell & Emami-Naeini; Dorf & Bishop;
- *   Nise). Ogata uses 0 -> 100 % for underdamped second-order responses; that is a different
- *   definition, not used here.
- * - percent overshoot: 100 (y_peak - r_new)/(r_new - r_old), sign-aware, clamped at 0.
- * - settling time: last time |y - r_new| > band |r_new - r_old| (band 2 % by default; the 5 % band
- *   is also common), measured from the step instant.
+ * Definitions (reference sheet section 11, "Step-response metrics"; Franklin, Powell &
+ * Emami-Naeini, *Feedback Control of Dynamic Systems*; python-control's `step_info`): rise,
+ * overshoot and settling of a setpoint step are measured against the FINAL VALUE the output
+ * reaches in that step's segment, not against the setpoint; the offset between the two is the
+ * separate steady-state error.
+ * - final value y_f: the mean of y over the segment's tail, the last 5 % of its duration and at
+ *   least the last 3 samples (our choice: python-control takes the last sample; a mean is not
+ *   thrown by one sample of a small residual oscillation).
+ * - rise time: 10 % -> 90 % of the change y_f - y_0 from the start value y_0 (the setpoint before
+ *   the step) to the final value (FPE, Dorf & Bishop, Nise; Ogata for overdamped responses;
+ *   Ogata's 0 -> 100 % for underdamped ones is a different definition, not used here).
+ * - percent overshoot: 100 (y_peak - y_f)/(y_f - y_0), sign-aware, clamped at 0.
+ * - percent undershoot: how far the output first went the wrong way, 100 max(0, -(y - y_0)/(y_f - y_0)),
+ *   e.g. an inverse response (python-control's `Undershoot` for a response from 0).
+ * - settling time: last time |y - y_f| > band |y_f - y_0| (band 2 % by default; the 5 % band is
+ *   also common), measured from the step instant.
+ * - steady-state error: r_new - y_f.
  * - IAE = integral |e| dt, ISE = integral e^2 dt, ITAE = integral t |e| dt (e = r - y).
  *
- * Choices made here (not fixed by the sources):
+ * When the final value does not exist (our choices, not fixed by the sources):
+ * - A segment is SETTLED when y stays within the band around y_f over at least the last 20 % of
+ *   the segment's duration (the settling time is at most 80 % of it). Otherwise it is still
+ *   moving at the segment's end: its tail mean is not a final value, it gets no settling time
+ *   (NaN, "not settled") and its rise and overshoot are measured against the setpoint instead.
+ *   20 % makes a first-order response count as settled only when its true 2 % settling time
+ *   (T ln 50) lies inside the segment, within a few per cent; a tail window alone would call a
+ *   lag caught at 63 % of its way "settled".
+ * - An output that ends less than 10 % of the way from y_0 toward the setpoint (or on the wrong
+ *   side of y_0) did not follow the step: its figures are measured against the setpoint too.
+ * - Measured against the setpoint, rise time and overshoot are NaN ("not reached") when the
+ *   output never reaches 90 % of the setpoint change: a response that never got there has no
+ *   overshoot to report, rather than a silent 0.
+ *
+ * Other choices:
  * - Metrics use the TRUE plant output `trace.y`, never the measured `trace.ym`: sensor noise,
  *   delay and filtering belong to the instrument, not to the loop's performance, and the noise
  *   would make peak and settling figures depend on the seed.
@@ -18,11 +42,10 @@
  *   the sample where it takes effect: the interval before that sample uses the old setpoint at both
  *   ends (the left limit), so the jump is not smeared over one sample interval.
  * - Crossing instants (rise, settling, recovery) are interpolated linearly between the two samples
- *   that bracket the level; peak value and peak time are those of the largest sample (so the peak
+ *   that bracket the level (python-control takes the first sample past it: within one sample
+ *   interval of ours); peak value and peak time are those of the largest sample (so the peak
  *   time is exact to within half a sample interval).
  * - Each event's segment runs from its instant to the next event of any kind (or the trial end).
- * - Steady-state error = r_new - mean(y) over the last 5 % of the segment's duration, using at least
- *   the last 3 samples (fewer only if the segment has fewer).
  * - Whole-trial ITAE measures t from the trial start (the first trace sample, t = 0); per-step and per-disturbance ITAE
  *   measure t from the event instant.
  * - Disturbance recovery band: `settlingBand` times the first non-zero setpoint change of the trial;
@@ -30,7 +53,8 @@
  *   `settlingBand` times the peak deviation itself.
  * - Time in saturation: a sample flagged `sat` counts for the interval up to the next sample (the
  *   actuator output is held between samples).
- * - max_output requirement: the peak |u| of the applied actuator output `trace.u`.
+ * - A single figure for the whole trial (headlineMetrics) is the WORST over its setpoint steps,
+ *   with the step it comes from; requirements and every printed single figure use it.
  */
 import type { Requirements, TrialEvent, TrialSpec } from '../model/types.js';
 import type { Trace } from '../sim/types.js';
@@ -40,8 +64,14 @@ export const DEFAULT_SETTLING_BAND = 0.02;
 
 /** Fraction of a segment's duration averaged for the steady-state error. */
 const STEADY_FRACTION = 0.05;
-/** Minimum number of samples averaged for the steady-state error. */
+/** Minimum number of samples averaged for the final value. */
 const STEADY_MIN_SAMPLES = 3;
+/** Share of a segment, at its end, the output must stay inside the band for the segment to count as settled. */
+export const SETTLED_DWELL = 0.2;
+/** Least share of the setpoint change the final value must cover for the response to count as following the step. */
+export const FOLLOW_MIN = 0.1;
+/** Relative size below which an excursion past the final value is rounding, not overshoot. */
+const ROUNDING = 1e-9;
 
 /** Metrics of one setpoint step. Times in s from the step instant; NaN = not reached. */
 export interface StepMetrics {
@@ -54,19 +84,32 @@ export interface StepMetrics {
   to: number;
   /** to - from. */
   change: number;
-  /** 10 % -> 90 % rise time, s; NaN when 90 % is never reached in the segment. */
+  /** Final value of the output: mean over the segment's tail (see module comment). */
+  finalValue: number;
+  /** False when the output is still moving at the segment's end (see module comment). */
+  settled: boolean;
+  /**
+   * What rise, overshoot, undershoot and settling are measured against: 'final' (the final value:
+   * settled and following the step) or 'setpoint' (still moving, or not following the step).
+   */
+  basis: 'final' | 'setpoint';
+  /** The value of that basis: `finalValue` or `to`. */
+  target: number;
+  /** 10 % -> 90 % rise time of the change from `from` to `target`, s; NaN when 90 % is never reached. */
   riseTime: number;
-  /** Percent overshoot, >= 0. */
+  /** Percent overshoot beyond `target`, >= 0; NaN when 90 % of the way is never reached. */
   overshootPct: number;
+  /** Percent undershoot: the largest excursion the wrong way from `from`, >= 0. */
+  undershootPct: number;
   /** Time of the peak (largest excursion in the direction of the step), s from the step. */
   peakTime: number;
   /** Output value at the peak. */
   peakValue: number;
-  /** Settling time into the band, s from the step; NaN when still outside at the segment end. */
+  /** Settling time into the band around `finalValue`, s from the step; NaN when not settled. */
   settlingTime: number;
-  /** Absolute settling band used, output units. */
+  /** Absolute settling band around `target`, output units. */
   band: number;
-  /** r_new - mean(y) over the segment's tail (see module comment). */
+  /** r_new - finalValue (for a segment still moving: the error at its end, not a steady state). */
   steadyStateError: number;
   /** Integrals of e = r_new - y over the segment; ITAE with t from the step instant. */
   iae: number;
@@ -138,20 +181,26 @@ export interface TrialMetrics {
   steps: StepMetrics[];
   ramps: RampMetrics[];
   disturbances: DisturbanceMetrics[];
-  /** The first setpoint step, or null when the trial has none. */
-  firstStep: StepMetrics | null;
 }
 
-/** One time-domain requirement checked against a trial. */
-export interface RequirementResult {
-  /** The plant-file name of the requirement (snake_case). */
-  name: string;
-  measured: number;
-  limit: number;
-  pass: boolean;
-  /** Instant of the setpoint step that gave the measured (worst) value, or null for whole-trial figures. */
-  at: number | null;
+/** The step figures that have a single headline value per trial. */
+export type StepFigure = 'overshootPct' | 'undershootPct' | 'riseTime' | 'settlingTime' | 'steadyStateError';
+
+/** One figure of the trial as a single number: the worst over its setpoint steps, and where it comes from. */
+export interface HeadlineFigure {
+  /** The figure on that step (NaN: not reached / not settled there). */
+  value: number;
+  /** Instant of the step it comes from, s from trial start. */
+  stepAt: number;
+  /** Setpoint before and after that step. */
+  from: number;
+  to: number;
+  /** Number of setpoint steps it was chosen from. */
+  of: number;
 }
+
+/** The headline figures of a trial; null for each when the trial has no setpoint step. */
+export type HeadlineMetrics = Record<StepFigure, HeadlineFigure | null>;
 
 /**
  * Compute the metrics of a trial from its trace.
@@ -225,60 +274,53 @@ export function trialMetrics(trace: Trace, trial: TrialSpec, requirements: Requi
   for (const p of pendingDisturbances) {
     disturbances.push(disturbanceMetrics(trace, p.ev, p.segEnd, p.r0, p.from, band, firstChange));
   }
-  return { overall, steps, ramps, disturbances, firstStep: steps.length > 0 ? steps[0] : null };
+  return { overall, steps, ramps, disturbances };
+}
+
+/** Which way is worse for each step figure: larger, or larger in magnitude (steady-state error). */
+const WORSE_BY: Record<StepFigure, (v: number) => number> = {
+  overshootPct: (v) => v,
+  undershootPct: (v) => v,
+  riseTime: (v) => v,
+  settlingTime: (v) => v,
+  steadyStateError: Math.abs,
+};
+
+/**
+ * The single figure of a trial for each step figure: the WORST over its setpoint steps (largest;
+ * largest magnitude for the steady-state error), a step where it was not reached / not settled
+ * (NaN) being the worst of all (the first such step). Every surface that prints one overshoot,
+ * rise, settling or offset figure, and the requirements, take it from here.
+ */
+export function headlineMetrics(metrics: TrialMetrics): HeadlineMetrics {
+  const pick = (key: StepFigure): HeadlineFigure | null => {
+    const steps = metrics.steps;
+    if (steps.length === 0) return null;
+    const worse = WORSE_BY[key];
+    let k = 0;
+    for (let i = 1; i < steps.length && !Number.isNaN(steps[k][key]); i++) {
+      const v = steps[i][key];
+      if (Number.isNaN(v) || worse(v) > worse(steps[k][key])) k = i;
+    }
+    const s = steps[k];
+    return { value: s[key], stepAt: s.at, from: s.from, to: s.to, of: steps.length };
+  };
+  return {
+    overshootPct: pick('overshootPct'),
+    undershootPct: pick('undershootPct'),
+    riseTime: pick('riseTime'),
+    settlingTime: pick('settlingTime'),
+    steadyStateError: pick('steadyStateError'),
+  };
 }
 
 /**
- * Check the time-domain requirements against trial metrics. Overshoot, rise time, settling time
- * and steady-state error are checked on EVERY setpoint step and the worst one is reported (with
- * its instant); iae and saturated_time are whole-trial figures; max_output is the peak |u|.
- * A metric that was never reached (NaN) fails. Frequency-domain requirements are not checked here.
+ * A headline figure as one number for tables that rank and take worst cases: NaN when the trial
+ * has no setpoint step, Infinity when not reached / not settled (worse than any value).
  */
-export function checkRequirements(metrics: TrialMetrics, requirements: Requirements): RequirementResult[] {
-  const out: RequirementResult[] = [];
-  const worstOverSteps = (name: string, limit: number | undefined, pick: (s: StepMetrics) => number): void => {
-    if (limit === undefined) return;
-    let measured = NaN;
-    let at: number | null = null;
-    for (const s of metrics.steps) {
-      const v = pick(s);
-      if (Number.isNaN(v)) {
-        measured = Infinity;
-        at = s.at;
-        break;
-      }
-      if (Number.isNaN(measured) || v > measured) {
-        measured = v;
-        at = s.at;
-      }
-    }
-    if (measured === Infinity) measured = NaN;
-    out.push({ name, measured, limit, pass: Number.isFinite(measured) && measured <= limit, at });
-  };
-  worstOverSteps('overshoot_pct', requirements.overshootPct, (s) => s.overshootPct);
-  worstOverSteps('rise_time', requirements.riseTime, (s) => s.riseTime);
-  worstOverSteps('settling_time', requirements.settlingTime, (s) => s.settlingTime);
-  worstOverSteps('steady_state_error', requirements.steadyStateError, (s) => Math.abs(s.steadyStateError));
-  const whole = (name: string, limit: number | undefined, measured: number): void => {
-    if (limit === undefined) return;
-    out.push({ name, measured, limit, pass: Number.isFinite(measured) && measured <= limit, at: null });
-  };
-  whole('iae', requirements.iae, metrics.overall.iae);
-  whole('max_output', requirements.maxOutput, metrics.overall.maxAbsOutput);
-  whole('saturated_time', requirements.saturatedTime, metrics.overall.saturatedTime);
-  return out;
-}
-
-/** The plant-file names of the time-domain requirements that `requirements` sets (those `checkRequirements` checks), in its order. */
-export function timeRequirementNames(requirements: Requirements): string[] {
-  const none: TrialMetrics = {
-    overall: { duration: 0, iae: 0, ise: 0, itae: 0, uTotalVariation: 0, saturatedTime: 0, maxAbsOutput: 0, maxOutput: 0, minOutput: 0 },
-    steps: [],
-    ramps: [],
-    disturbances: [],
-    firstStep: null,
-  };
-  return checkRequirements(none, requirements).map((r) => r.name);
+export function headlineNumber(figure: HeadlineFigure | null): number {
+  if (figure === null) return NaN;
+  return Number.isNaN(figure.value) ? Infinity : figure.value;
 }
 
 // ---------------------------------------------------------------- segments
@@ -361,17 +403,26 @@ function lastExitTime(trace: Trace, i0: number, i1: number, ref: number, tol: nu
   return t[j] + frac * (t[j + 1] - t[j]) - t0;
 }
 
-function stepMetrics(trace: Trace, at: number, end: number, from: number, to: number, band: number): StepMetrics {
+function stepMetrics(trace: Trace, at: number, end: number, from: number, to: number, bandFraction: number): StepMetrics {
   const t = trace.t;
   const y = trace.y;
   const n = trace.length;
   const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
   const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
   const change = to - from;
-  const tol = band * Math.abs(change);
 
-  // Normalised response z = (y - from)/change: 0 before, 1 at the new setpoint, whatever the sign.
-  const z = (i: number): number => (y[i] - from) / change;
+  // Final value and whether the segment got there (module comment: settled, following the step).
+  const finalValue = tailMean(trace, i0, i1);
+  const response = finalValue - from;
+  const finalBand = bandFraction * Math.abs(response);
+  const settleFinal = response !== 0 ? lastExitTime(trace, i0, i1, finalValue, finalBand, at) : NaN;
+  const settled = settleFinal <= (1 - SETTLED_DWELL) * (t[i1] - at);
+  const basis: StepMetrics['basis'] = settled && response / change >= FOLLOW_MIN ? 'final' : 'setpoint';
+  const target = basis === 'final' ? finalValue : to;
+  const span = target - from;
+
+  // Normalised response z = (y - from)/span: 0 at the start, 1 at the target, whatever the sign.
+  const z = (i: number): number => (y[i] - from) / span;
   const crossing = (level: number): number => {
     if (z(i0) >= level) return t[i0];
     for (let i = i0 + 1; i <= i1; i++) {
@@ -388,14 +439,23 @@ function stepMetrics(trace: Trace, at: number, end: number, from: number, to: nu
 
   let kPeak = i0;
   let zPeak = -Infinity;
+  let zLow = Infinity;
   for (let i = i0; i <= i1; i++) {
     const zi = z(i);
     if (zi > zPeak) {
       zPeak = zi;
       kPeak = i;
     }
+    if (zi < zLow) zLow = zi;
   }
-  const overshootPct = Number.isFinite(zPeak) ? Math.max(0, 100 * (zPeak - 1)) : NaN;
+  // Never 90 % of the way: no overshoot to speak of (NaN, "not reached"), not a silent 0. A
+  // settled output whose largest value lies in the window its final value is averaged over is
+  // still creeping up to it (a monotone response): above the mean by a fraction of the band,
+  // which is no overshoot (python-control, taking the last sample as the final value, gives 0).
+  // Excursions below ROUNDING of the change are floating-point noise on a flat tail, not overshoot.
+  const creeping = basis === 'final' && kPeak >= tailStart(trace, i0, i1);
+  const overshootPct = Number.isFinite(zPeak) && !Number.isNaN(t90) ? (creeping || zPeak - 1 <= ROUNDING ? 0 : 100 * (zPeak - 1)) : NaN;
+  const undershootPct = Number.isFinite(zLow) ? Math.max(0, -100 * zLow) : NaN;
 
   const [iae, ise, itae] = segmentIntegrals(trace, i0, i1, to, at);
   return {
@@ -404,28 +464,39 @@ function stepMetrics(trace: Trace, at: number, end: number, from: number, to: nu
     from,
     to,
     change,
+    finalValue,
+    settled,
+    basis,
+    target,
     riseTime: t90 - t10,
     overshootPct,
+    undershootPct,
     peakTime: t[kPeak] - at,
     peakValue: y[kPeak],
-    settlingTime: lastExitTime(trace, i0, i1, to, tol, at),
-    band: tol,
-    steadyStateError: to - tailMean(trace, i0, i1),
+    settlingTime: basis === 'final' ? settleFinal : NaN,
+    band: basis === 'final' ? finalBand : bandFraction * Math.abs(change),
+    steadyStateError: to - finalValue,
     iae,
     ise,
     itae,
   };
 }
 
-/** Mean of y over the last STEADY_FRACTION of the segment's duration, at least STEADY_MIN_SAMPLES. */
+/** Mean of y over the last STEADY_FRACTION of the segment's duration, at least STEADY_MIN_SAMPLES: the final value. */
 function tailMean(trace: Trace, i0: number, i1: number): number {
-  const t = trace.t;
-  const tailStart = t[i1] - STEADY_FRACTION * (t[i1] - t[i0]);
-  let j = i1;
-  while (j > i0 && (t[j - 1] >= tailStart || i1 - j + 1 < STEADY_MIN_SAMPLES)) j--;
+  const j = tailStart(trace, i0, i1);
   let sum = 0;
   for (let i = j; i <= i1; i++) sum += trace.y[i];
   return sum / (i1 - j + 1);
+}
+
+/** First sample of the window `tailMean` averages. */
+function tailStart(trace: Trace, i0: number, i1: number): number {
+  const t = trace.t;
+  const from = t[i1] - STEADY_FRACTION * (t[i1] - t[i0]);
+  let j = i1;
+  while (j > i0 && (t[j - 1] >= from || i1 - j + 1 < STEADY_MIN_SAMPLES)) j--;
+  return j;
 }
 
 function rampMetrics(trace: Trace, at: number, end: number, from: number, to: number, duration: number): RampMetrics {

@@ -189,10 +189,15 @@ function timeFigures(sim: SimulatedTrial, multipleSteps: boolean): Map<string, F
   const out = new Map<string, Figure>();
   const diverged = sim.result.status === 'diverged';
   for (const r of sim.requirements as RequirementResult[]) {
+    // A requirement the trial cannot show (a step figure without a setpoint step) is not available.
+    if (r.status === 'n/a') {
+      out.set(r.name, { measured: NaN, available: false, note: `not available: ${r.reason}` });
+      continue;
+    }
     let note = '';
     if (diverged) note = `trial diverged at t = ${num(sim.result.divergedAt ?? NaN)} s`;
-    else if (!Number.isFinite(r.measured)) note = r.name === 'settling_time' ? 'not settled' : 'not reached';
-    else if (r.at !== null && multipleSteps) note = `step at ${num(r.at)} s`;
+    else if (!Number.isFinite(r.measured)) note = r.reason ?? '';
+    else if (r.at !== null && multipleSteps) note = `worst step: at ${num(r.at)} s`;
     out.set(r.name, { measured: diverged ? NaN : r.measured, available: true, note });
   }
   return out;

@@ -17,7 +17,7 @@ export function writeRunSvg(report: RunReport, out: string, overridden: boolean,
     const original = loadPlant(io.readText(report.file), report.file).plant;
     if (original) baseline = { label: 'baseline (gains in the file)', trace: simulatePlant(original).result.trace };
   }
-  const failed = report.requirements.filter((r) => !r.pass).map((r) => r.name);
+  const failed = report.requirements.filter((r) => r.status === 'fail').map((r) => r.name);
   const svg = trialPlotSvg({
     plant: report.plant,
     file: report.file,

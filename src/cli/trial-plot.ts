@@ -64,7 +64,8 @@ export function trialPlotSvg(input: TrialPlotInput): string {
   const bands: PlotBand[] = [];
   const limits: PlotLimit[] = [];
   for (const s of metrics.steps) {
-    const band = bandFraction * Math.abs(s.change);
+    // Around what the step is measured against: its final value once settled (analysis' target).
+    const band = s.band;
     // Where the requirement says the output must be inside the band: after the settling-time limit.
     const from = req.settlingTime !== undefined ? s.at + req.settlingTime : s.at;
     if (from < s.end) {
@@ -72,8 +73,8 @@ export function trialPlotSvg(input: TrialPlotInput): string {
         label: `settling band ±${num(100 * bandFraction)} %${req.settlingTime !== undefined ? ' (from settling_time limit)' : ''}`,
         t0: from,
         t1: s.end,
-        lo: s.to - band,
-        hi: s.to + band,
+        lo: s.target - band,
+        hi: s.target + band,
         color: COLORS.band,
         opacity: 0.22,
       });
@@ -81,7 +82,7 @@ export function trialPlotSvg(input: TrialPlotInput): string {
     if (req.overshootPct !== undefined) {
       limits.push({
         label: `overshoot limit ${num(req.overshootPct)} %`,
-        value: s.to + (req.overshootPct / 100) * s.change,
+        value: s.target + (req.overshootPct / 100) * (s.target - s.from),
         t0: s.at,
         t1: s.end,
         color: COLORS.limit,

@@ -60,7 +60,7 @@ import {
   type ScreenState,
 } from './state.js';
 import { makeTheme, type Theme } from './theme.js';
-import { bandLines, outputSeries, trendSeries } from './trend-series.js';
+import { bandLines, outputSeries, trendSeries, type BandStep } from './trend-series.js';
 
 /** File access the screen needs; tests pass a fake, the command passes the real files. */
 export interface ScreenIo {
@@ -314,8 +314,9 @@ export function App(props: AppProps) {
   const run = state.mode === 'live' ? live.current : null;
   const simTime = run !== null ? run.time : trial.duration;
   const nowLabel = rehearsing ? 'rehearsal' : 'now';
-  const metricInput: MetricInput = { metrics: now.metrics, checks: now.checks, margins: marginsNow };
-  const baseInput: MetricInput | null = base === null ? null : { metrics: base.metrics, checks: base.checks, margins: marginsBase };
+  const metricInput: MetricInput = { metrics: now.metrics, checks: now.checks, margins: marginsNow, diverged: now.result.status === 'diverged' };
+  const baseInput: MetricInput | null =
+    base === null ? null : { metrics: base.metrics, checks: base.checks, margins: marginsBase, diverged: base.result.status === 'diverged' };
 
   const notices: Notice[] = [...plantNotices];
   if (noiseNow !== null) notices.unshift(noiseNow);
@@ -456,7 +457,8 @@ function Panels(p: PanelsProps) {
   let trace = p.now.result.trace;
   let t0 = 0;
   let t1 = state.trialDuration;
-  let steps = p.now.metrics.steps;
+  // The bands sit around what each step is measured against (its final value once settled).
+  let steps: BandStep[] = p.now.metrics.steps.map((s) => ({ at: s.at, end: s.end, to: s.target, change: s.target - s.from, band: s.band }));
   let baselineTrace = p.base?.result.trace ?? null;
   if (p.run !== null) {
     trace = p.run.trace();
@@ -464,7 +466,7 @@ function Panels(p: PanelsProps) {
     // early response is not squeezed into the left edge.
     t0 = Math.max(0, p.run.time - p.run.window);
     t1 = Math.max(p.run.time, t0 + p.run.window / 6);
-    steps = p.run.bandSteps() as typeof steps;
+    steps = p.run.bandSteps();
     baselineTrace = null;
   }
   const legend: Piece[] = [

@@ -3,6 +3,7 @@
  * (the selected candidate drawn last, on top), a legend, and the comparison table as text
  * lines. The figures all come from tune/'s `compareCandidates`; this file only lays them out.
  */
+import { rankedFigureText } from '../analysis/index.js';
 import type { CandidateReport, CompareResult } from '../tune/index.js';
 import type { ChartSeries } from './chart.js';
 import { chartPoints } from './decimate.js';
@@ -131,8 +132,8 @@ function tableCells(result: CompareResult): string[][] {
       f(r.kc),
       Number.isFinite(r.ti) ? `${f(r.ti)} s` : '-',
       r.td > 0 ? `${f(r.td)} s` : '-',
-      Number.isNaN(r.overshootPct) ? '-' : `${f(r.overshootPct)} %`,
-      Number.isNaN(r.settlingTime) ? '-' : Number.isFinite(r.settlingTime) ? `${f(r.settlingTime)} s` : 'never',
+      rankedFigureText('overshootPct', r.overshootPct, (x) => f(x)),
+      rankedFigureText('settlingTime', r.settlingTime, (x) => f(x)),
       r.status === 'diverged' ? 'diverged' : f(r.iaeSetpoint),
       r.status === 'diverged' ? 'diverged' : f(r.iaeDisturbance),
       f(r.peakOutput),

@@ -1,16 +1,17 @@
 /**
  * The metrics panel as rows of text: each figure of the trial, the file's limit where there is
- * one, and met / not met, for the current gain set and the baseline. The figures themselves come
- * from analysis/ (trialMetrics, checkRequirements) and the notice source (margins).
+ * one, and met / not met / n/a, for the current gain set and the baseline. The figures themselves
+ * come from analysis/ (headlineMetrics: the worst step; checkRequirements) and the notice source
+ * (margins); the words for a figure not reached / not settled are analysis' (stepFigureText).
  */
-import type { RequirementResult, TrialMetrics } from '../analysis/index.js';
+import { headlineMetrics, stepFigureText, type HeadlineMetrics, type RequirementResult, type StepFigure, type TrialMetrics } from '../analysis/index.js';
 import type { Requirements } from '../model/types.js';
 import type { MarginsView } from './notices.js';
 
 export interface MetricCell {
   text: string;
-  /** true met, false not met, null no limit. */
-  pass: boolean | null;
+  /** 'ok' met, 'no' not met, 'n/a' cannot be evaluated on this trial, null no limit. */
+  status: 'ok' | 'no' | 'n/a' | null;
 }
 
 export interface MetricRow {
@@ -27,6 +28,8 @@ export interface MetricInput {
   checks: readonly RequirementResult[];
   /** 'pending' while they are being computed for a new gain set. */
   margins: MarginsView | null | 'pending';
+  /** The trial diverged: no time-domain figure of it meets a limit. */
+  diverged: boolean;
 }
 
 interface Def {
@@ -37,36 +40,31 @@ interface Def {
   req: keyof Requirements;
   /** 'max' = measured must not exceed the limit; 'min' = must reach it. */
   sense: 'max' | 'min';
-  /** The figure when no requirement asks for it. */
-  figure: (m: TrialMetrics) => number;
+  /** A step figure: its headline (worst step, analysis' headlineMetrics) and its words. */
+  step?: StepFigure;
+  /** The figure of a whole-trial row. */
+  figure?: (m: TrialMetrics) => number;
   margin?: (g: MarginsView) => number;
 }
 
 const DEFS: readonly Def[] = [
-  { name: 'overshoot_pct', label: 'overshoot', unit: '%', req: 'overshootPct', sense: 'max', figure: (m) => worst(m, (s) => s.overshootPct) },
-  { name: 'settling_time', label: 'settling', unit: 's', req: 'settlingTime', sense: 'max', figure: (m) => worst(m, (s) => s.settlingTime) },
-  { name: 'rise_time', label: 'rise time', unit: 's', req: 'riseTime', sense: 'max', figure: (m) => worst(m, (s) => s.riseTime) },
-  { name: 'steady_state_error', label: 'offset', unit: '', req: 'steadyStateError', sense: 'max', figure: (m) => worst(m, (s) => Math.abs(s.steadyStateError)) },
+  { name: 'overshoot_pct', label: 'overshoot', unit: '%', req: 'overshootPct', sense: 'max', step: 'overshootPct' },
+  { name: 'settling_time', label: 'settling', unit: 's', req: 'settlingTime', sense: 'max', step: 'settlingTime' },
+  { name: 'rise_time', label: 'rise time', unit: 's', req: 'riseTime', sense: 'max', step: 'riseTime' },
+  { name: 'steady_state_error', label: 'offset', unit: '', req: 'steadyStateError', sense: 'max', step: 'steadyStateError' },
   { name: 'iae', label: 'IAE', unit: '', req: 'iae', sense: 'max', figure: (m) => m.overall.iae },
   { name: 'max_output', label: 'peak |u|', unit: '', req: 'maxOutput', sense: 'max', figure: (m) => m.overall.maxAbsOutput },
   { name: 'saturated_time', label: 'saturated', unit: 's', req: 'saturatedTime', sense: 'max', figure: (m) => m.overall.saturatedTime },
-  { name: 'max_sensitivity', label: 'Ms', unit: '', req: 'maxSensitivity', sense: 'max', figure: () => NaN, margin: (g) => g.maxSensitivity },
-  { name: 'gain_margin', label: 'gain margin', unit: '', req: 'gainMargin', sense: 'min', figure: () => NaN, margin: (g) => g.gainMargin },
-  { name: 'phase_margin_deg', label: 'phase margin', unit: '°', req: 'phaseMarginDeg', sense: 'min', figure: () => NaN, margin: (g) => g.phaseMarginDeg },
+  { name: 'max_sensitivity', label: 'Ms', unit: '', req: 'maxSensitivity', sense: 'max', margin: (g) => g.maxSensitivity },
+  { name: 'gain_margin', label: 'gain margin', unit: '', req: 'gainMargin', sense: 'min', margin: (g) => g.gainMargin },
+  { name: 'phase_margin_deg', label: 'phase margin', unit: '°', req: 'phaseMarginDeg', sense: 'min', margin: (g) => g.phaseMarginDeg },
 ];
 
 /** Figures shown even when the file does not require them, in this order, while rows last. */
 const ALWAYS: readonly string[] = ['overshoot_pct', 'settling_time', 'rise_time', 'iae', 'saturated_time', 'steady_state_error'];
 
-function worst(m: TrialMetrics, pick: (s: TrialMetrics['steps'][number]) => number): number {
-  let w = NaN;
-  for (const s of m.steps) {
-    const v = pick(s);
-    if (Number.isNaN(v)) return NaN;
-    if (Number.isNaN(w) || v > w) w = v;
-  }
-  return w;
-}
+/** Text of a trial without a setpoint step in a step figure's cell (the reason it is n/a). */
+const NO_STEP = 'no step';
 
 /** A figure with 3 significant digits (no exponent for ordinary sizes), or "—" when not reached. */
 export function formatFigure(v: number, unit: string): string {
@@ -77,25 +75,30 @@ export function formatFigure(v: number, unit: string): string {
   return unit === '' ? s : unit === '°' ? `${s}°` : `${s} ${unit}`;
 }
 
-function cell(def: Def, inp: MetricInput, limit: number | undefined): MetricCell {
-  let measured: number;
-  let pass: boolean | null = null;
+function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number | undefined): MetricCell {
   if (def.margin !== undefined) {
-    if (inp.margins === null) return { text: 'n/a', pass: null };
-    if (inp.margins === 'pending') return { text: '…', pass: null };
-    if (inp.margins.closedLoopStable === false) return { text: 'unstable', pass: limit === undefined ? null : false };
-    measured = def.margin(inp.margins);
-    if (limit !== undefined) pass = Number.isFinite(measured) && (def.sense === 'max' ? measured <= limit : measured >= limit);
+    if (inp.margins === null) return { text: 'n/a', status: null };
+    if (inp.margins === 'pending') return { text: '…', status: null };
+    if (inp.margins.closedLoopStable === false) return { text: 'unstable', status: limit === undefined ? null : 'no' };
+    const measured = def.margin(inp.margins);
+    if (limit === undefined) return { text: formatFigure(measured, def.unit), status: null };
     // An infinite gain margin (no phase crossover) meets any lower limit.
-    if (limit !== undefined && def.sense === 'min' && measured === Infinity) pass = true;
-  } else {
-    const check = inp.checks.find((c) => c.name === def.name);
-    if (check !== undefined) {
-      measured = check.measured;
-      pass = check.pass;
-    } else measured = def.figure(inp.metrics);
+    const met = Number.isFinite(measured) ? (def.sense === 'max' ? measured <= limit : measured >= limit) : def.sense === 'min' && measured === Infinity;
+    return { text: formatFigure(measured, def.unit), status: met ? 'ok' : 'no' };
   }
-  return { text: formatFigure(measured, def.unit), pass };
+  const check = inp.checks.find((c) => c.name === def.name);
+  let status: MetricCell['status'] = null;
+  if (check !== undefined) status = check.status === 'pass' ? 'ok' : check.status === 'fail' ? 'no' : 'n/a';
+  // A diverged trial meets no limit, whatever its figures up to the divergence say.
+  if (inp.diverged && status === 'ok') status = 'no';
+  if (def.step !== undefined) {
+    const f = head[def.step];
+    // The offset is judged by its magnitude (checkRequirements), so it is shown as one.
+    const v = f === null ? NaN : def.step === 'steadyStateError' ? Math.abs(f.value) : f.value;
+    const text = f === null ? NO_STEP : stepFigureText(def.step, v, (x) => formatFigure(x, ''));
+    return { text, status };
+  }
+  return { text: formatFigure(def.figure!(inp.metrics), def.unit), status };
 }
 
 /**
@@ -104,13 +107,15 @@ function cell(def: Def, inp: MetricInput, limit: number | undefined): MetricCell
  */
 export function metricRows(req: Requirements, now: MetricInput, base: MetricInput | null, maxRows: number): MetricRow[] {
   const rows: MetricRow[] = [];
+  const headNow = headlineMetrics(now.metrics);
+  const headBase = base === null ? null : headlineMetrics(base.metrics);
   const add = (def: Def): void => {
     const limit = req[def.req] as number | undefined;
     rows.push({
       label: def.label,
       limit: limit === undefined ? '' : `${def.sense === 'max' ? '≤' : '≥'} ${formatFigure(limit, def.unit)}`,
-      now: cell(def, now, limit),
-      base: base === null ? null : cell(def, base, limit),
+      now: cell(def, now, headNow, limit),
+      base: base === null || headBase === null ? null : cell(def, base, headBase, limit),
     });
   };
   for (const def of DEFS) if (req[def.req] !== undefined) add(def);

@@ -13,6 +13,7 @@
  * uninterrupted `looprig optimize` run, and the result says so. The search ends when the budget
  * is used, when a slice converges without improving the best cost, or on cancel.
  */
+import { headlineMetrics, headlineNumber } from '../analysis/index.js';
 import type { GainSet } from '../model/types.js';
 import {
   chooseStart,
@@ -188,7 +189,7 @@ export class OptimizeJob {
     if (b !== null && this.bestScore >= INFEASIBLE_RANK) notes.unshift(`no gain set found that meets Ms <= ${this.msTarget}`);
     else if (b !== null && this.bestScore >= UNMET_RANK) notes.unshift("no gain set found that meets all of the file's requirements: the nearest found");
     const runs = b !== null && Number.isFinite(b.cost) && !b.flags.some((f) => f.code === 'DIVERGED' || f.code === 'UNSTABLE_LOOP');
-    const first = b?.metrics.firstStep ?? null;
+    const head = b === null ? null : headlineMetrics(b.metrics);
     const m = b?.margins ?? null;
     return {
       edit: b !== null && runs ? editWithGains(b.gains, this.structure, this.base.form, this.base.frame) : null,
@@ -198,8 +199,9 @@ export class OptimizeJob {
       evaluations: this.evaluations,
       slices: this.slices,
       stoppedBy: this.stoppedBy,
-      overshootPct: first === null ? NaN : first.overshootPct,
-      settlingTime: first === null ? NaN : Number.isNaN(first.settlingTime) ? Infinity : first.settlingTime,
+      overshootPct: head === null ? NaN : headlineNumber(head.overshootPct),
+      settlingTime: head === null ? NaN : headlineNumber(head.settlingTime),
+      head,
       ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
       gm: m === null ? NaN : m.gainMargin,
       flags: b === null ? [] : b.flags.map((f) => f.message),

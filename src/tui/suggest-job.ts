@@ -4,6 +4,7 @@
  * option, one id per call, the prepared context shared) until its time slice is used up. The
  * rows are what `suggestGains` measured; nothing is estimated here.
  */
+import { headlineMetrics, headlineNumber } from '../analysis/index.js';
 import type { GainFlag, Suggestion } from '../tune/index.js';
 import { suggestGains, TUNING_RULES } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
@@ -17,6 +18,7 @@ const FLAG_WORDS: Record<GainFlag['code'], string> = {
   NOISE_AT_RATE_LIMIT: 'noisy valve',
   MS_ABOVE_TARGET: 'Ms high',
   REQUIREMENT_FAILED: 'fails req.',
+  REQUIREMENT_NA: 'req. n/a',
   NO_MARGINS: 'no margins',
   NO_FILE_FORM: 'no file form',
 };
@@ -24,7 +26,7 @@ const FLAG_WORDS: Record<GainFlag['code'], string> = {
 /** One suggestion as a row of the list, with the edit it becomes in the screen's form and frame. */
 export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
   const e = s.evaluation;
-  const first = e.metrics.firstStep;
+  const head = headlineMetrics(e.metrics);
   const m = e.margins;
   const flags = [...new Set(s.flags.map((f) => FLAG_WORDS[f.code]))];
   return {
@@ -32,8 +34,9 @@ export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
     label: s.rule.label,
     structure: s.structure,
     edit: editWithGains(s.gains, s.structure, base.form, base.frame),
-    overshootPct: first === null ? NaN : first.overshootPct,
-    settlingTime: first === null ? NaN : Number.isNaN(first.settlingTime) ? Infinity : first.settlingTime,
+    overshootPct: headlineNumber(head.overshootPct),
+    settlingTime: headlineNumber(head.settlingTime),
+    head,
     iae: e.metrics.overall.iae,
     diverged: e.result.status !== 'ok',
     ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,

@@ -14,10 +14,13 @@ export interface BandStep {
   /** Step instant and end of its segment, s. */
   at: number;
   end: number;
-  /** New setpoint and the signed change. */
+  /**
+   * The value the step's figures are measured against (its final value once settled, else the
+   * new setpoint: analysis' StepMetrics.target) and the signed change from the start to it.
+   */
   to: number;
   change: number;
-  /** Absolute settling band, output units. */
+  /** Absolute settling band around `to`, output units. */
   band: number;
 }
 

@@ -4,6 +4,7 @@
  * applied carries the edit it would become, made by the shell (engine.ts), so the reducer applies
  * it like any other edit (one undo step) without knowing the tune layer.
  */
+import type { HeadlineMetrics } from '../analysis/index.js';
 import type { ControllerStructure, StructureName } from '../model/types.js';
 import type { GainEdit } from './gain-edit.js';
 
@@ -15,10 +16,12 @@ export interface SuggestRow {
   readonly structure: ControllerStructure;
   /** The gain set as the screen would edit it. */
   readonly edit: GainEdit;
-  /** Overshoot of the first setpoint step, %. */
+  /** Overshoot, worst over the setpoint steps, % (analysis' headlineNumber: Infinity not reached). */
   readonly overshootPct: number;
-  /** Settling time of the first setpoint step, s (Infinity: never settles). */
+  /** Settling time, worst over the setpoint steps, s (Infinity: not settled). */
   readonly settlingTime: number;
+  /** The headline figures those come from (which step), from analysis' headlineMetrics. */
+  readonly head: HeadlineMetrics;
   /** IAE over the whole trial. */
   readonly iae: number;
   readonly diverged: boolean;
@@ -77,8 +80,11 @@ export interface OptimizeOutcome {
   readonly evaluations: number;
   readonly slices: number;
   readonly stoppedBy: 'converged' | 'evaluations' | 'time' | 'cancelled';
+  /** Worst over the setpoint steps, as SuggestRow's. */
   readonly overshootPct: number;
   readonly settlingTime: number;
+  /** Which step they come from (null or absent: no gain set found; the panel then names none). */
+  readonly head?: HeadlineMetrics | null;
   readonly ms: number;
   readonly gm: number;
   readonly flags: readonly string[];

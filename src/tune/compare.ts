@@ -9,7 +9,7 @@
  * gains gets its structure's starting gains (structure-tuning.ts), so the comparison needs no
  * hand work.
  */
-import { trialMetrics, type TrialMetrics } from '../analysis/index.js';
+import { headlineMetrics, headlineNumber, trialMetrics, type TrialMetrics } from '../analysis/index.js';
 import { lowOrderOf } from './approximation.js';
 import { pathModel } from './path-models.js';
 import { buildController } from '../control/index.js';
@@ -49,7 +49,7 @@ export interface CompareRow {
   td: number;
   /** Further settings in words (inner loop gains, internal model, feedforward gain, table). */
   detail: string;
-  /** Worst over the trial's setpoint steps. */
+  /** Worst over the trial's setpoint steps (analysis' headlineNumber: Infinity when not reached / not settled). */
   riseTime: number;
   overshootPct: number;
   settlingTime: number;
@@ -262,15 +262,6 @@ function sumIae(list: readonly { iae: number }[]): number {
   return list.length === 0 ? NaN : s;
 }
 
-function worstOf(list: readonly number[]): number {
-  let m = NaN;
-  for (const v of list) {
-    const x = Number.isNaN(v) ? Infinity : v;
-    m = Number.isNaN(m) ? x : Math.max(m, x);
-  }
-  return m;
-}
-
 function describe(spec: ControllerSpec): string {
   const e = spec.extension;
   const f = (v: number): string => (Number.isFinite(v) ? String(Number(v.toPrecision(3))) : String(v));
@@ -368,6 +359,7 @@ function evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null): C
   report.margins = structureMargins(ctx, resolved);
   for (const n of report.margins?.notes ?? []) report.notes.push(n);
   const m = run.metrics;
+  const head = headlineMetrics(m);
   const g = resolved.gains;
   let worst: RobustnessSummary | null = null;
   if (plan !== null) {
@@ -385,9 +377,9 @@ function evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null): C
     ti: resolved.structure === 'p' || resolved.structure === 'pd' ? Infinity : g.ti,
     td: resolved.structure === 'p' || resolved.structure === 'pi' ? 0 : g.td,
     detail: describe(resolved),
-    riseTime: m.steps.length ? worstOf(m.steps.map((s) => s.riseTime)) : NaN,
-    overshootPct: m.steps.length ? Math.max(...m.steps.map((s) => s.overshootPct)) : NaN,
-    settlingTime: m.steps.length ? worstOf(m.steps.map((s) => s.settlingTime)) : NaN,
+    riseTime: headlineNumber(head.riseTime),
+    overshootPct: headlineNumber(head.overshootPct),
+    settlingTime: headlineNumber(head.settlingTime),
     iaeSetpoint: sumIae(m.steps),
     iaeDisturbance: sumIae(m.disturbances),
     peakOutput: m.overall.maxAbsOutput,

@@ -3,6 +3,7 @@
  * metrics, the margins of the linear loop, and the flags that matter for choosing it.
  */
 import { checkRequirements, loopMargins, trialMetrics } from '../analysis/index.js';
+import { NOT_REACHED } from '../analysis/index.js';
 import type { Margins, RequirementResult, TrialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import type { ControllerStructure, GainSet, PlantSpec } from '../model/types.js';
@@ -13,7 +14,7 @@ import type { TuningContext } from './tuning-context.js';
 
 /** A finding about one gain set. */
 export interface GainFlag {
-  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'NOISE_AT_RATE_LIMIT' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'NO_MARGINS' | 'NO_FILE_FORM';
+  code: 'DIVERGED' | 'UNSTABLE_LOOP' | 'SATURATED' | 'NOISE_AT_RATE_LIMIT' | 'MS_ABOVE_TARGET' | 'REQUIREMENT_FAILED' | 'REQUIREMENT_NA' | 'NO_MARGINS' | 'NO_FILE_FORM';
   message: string;
 }
 
@@ -116,12 +117,14 @@ export function evaluateGains(
   const noise = gainNoiseActivity(ctx.spec, g, structure);
   if (noise !== null && noise.rateLimitedShare > satFlag) flags.push({ code: 'NOISE_AT_RATE_LIMIT', message: noiseMessage(noise) });
   for (const r of requirements) {
-    if (!r.pass) flags.push({ code: 'REQUIREMENT_FAILED', message: `${r.name} ${formatMeasured(r.measured)} (limit ${r.limit})` });
+    if (r.status === 'fail') flags.push({ code: 'REQUIREMENT_FAILED', message: `${r.name} ${formatMeasured(r.measured, r.reason)} (limit ${r.limit})` });
+    // Not a failure of the gains, but never a silent pass: the trial cannot show it.
+    if (r.status === 'n/a') flags.push({ code: 'REQUIREMENT_NA', message: `${r.name} cannot be evaluated: ${r.reason}` });
   }
   return { gains: g, structure, result, metrics, margins, requirements, cost, saturatedFraction, noise, flags };
 }
 
-function formatMeasured(v: number): string {
-  if (!Number.isFinite(v)) return 'not reached';
+function formatMeasured(v: number, reason: string | null): string {
+  if (!Number.isFinite(v)) return reason ?? NOT_REACHED;
   return Math.abs(v) >= 100 ? v.toFixed(0) : v.toPrecision(3);
 }

@@ -117,11 +117,11 @@ const NOT_REACHED = 1e3;
 /** At most this much shortfall is counted in all (keeps the requirement tier below INFEASIBLE_RANK). */
 const MAX_SHORTFALL = 5e4;
 
-/** Sum of relative shortfalls of the failed requirements (0 = all met). */
+/** Sum of relative shortfalls of the failed requirements (0 = all met; one that cannot be evaluated, n/a, counts nothing: no gain set can change it). */
 export function requirementShortfall(results: readonly RequirementResult[]): number {
   let s = 0;
   for (const r of results) {
-    if (r.pass) continue;
+    if (r.status !== 'fail') continue;
     const over = Number.isFinite(r.measured) && r.limit > 0 ? r.measured / r.limit - 1 : NOT_REACHED;
     s += Math.min(NOT_REACHED, Math.max(over, 1e-9));
   }

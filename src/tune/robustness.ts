@@ -8,7 +8,7 @@
  * together by sim's batch runner (several loops in one generated function, results bit-identical
  * to one run at a time); `runner: 'sequential'` runs them one at a time, the reference path.
  */
-import { trialMetrics } from '../analysis/index.js';
+import { headlineMetrics, headlineNumber, trialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { ControllerStructure, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
@@ -50,9 +50,9 @@ export interface RobustnessCase {
   kind: 'nominal' | 'corner' | 'sample';
   values: Record<string, number>;
   diverged: boolean;
-  /** Largest overshoot over the trial's setpoint steps, %. (NaN without steps.) */
+  /** Largest overshoot over the trial's setpoint steps, % (analysis' headlineNumber: NaN without steps, Infinity when not reached). */
   overshootPct: number;
-  /** Longest settling time over the steps, s (Infinity when one never settles). */
+  /** Longest settling time over the steps, s (Infinity when one is not settled). */
   settlingTime: number;
   iae: number;
   /** Ms of the case's linearised loop (NaN without a linear model; Infinity when unstable). */
@@ -420,13 +420,9 @@ export function caseFigures(
   metrics: TrialMetrics,
   m: Margins | null,
 ): RobustnessCase {
-  let overshoot = NaN;
-  let settling = NaN;
-  for (const s of metrics.steps) {
-    overshoot = Number.isNaN(overshoot) ? s.overshootPct : Math.max(overshoot, s.overshootPct);
-    const st = Number.isFinite(s.settlingTime) ? s.settlingTime : Infinity;
-    settling = Number.isNaN(settling) ? st : Math.max(settling, st);
-  }
+  const head = headlineMetrics(metrics);
+  const overshoot = headlineNumber(head.overshootPct);
+  const settling = headlineNumber(head.settlingTime);
   const diverged = result.status !== 'ok';
   return {
     kind,

@@ -1,47 +1,8 @@
 import { describe, it, expect } from 'vitest';
-import { trialMetrics, checkRequirements } from '../../src/analysis/index.js';
+import { trialMetrics, checkRequirements, headlineMetrics, headlineSource, stepFigureText } from '../../src/analysis/index.js';
 import type { TrialEvent, TrialSpec } from '../../src/model/types.js';
-import type { Trace } from '../../src/sim/types.js';
 import { expectClose } from '../helpers/expect-close.js';
-
-/** A synthetic trace on a uniform grid from analytic functions of time. */
-function makeTrace(
-  duration: number,
-  h: number,
-  y: (t: number) => number,
-  r: (t: number) => number,
-  extra: { u?: (t: number) => number; sat?: (t: number) => boolean; d?: Record<string, (t: number) => number> } = {},
-): Trace {
-  const n = Math.round(duration / h) + 1;
-  const names = Object.keys(extra.d ?? {});
-  const tr: Trace = {
-    length: n,
-    t: new Float64Array(n),
-    r: new Float64Array(n),
-    y: new Float64Array(n),
-    ym: new Float64Array(n),
-    uc: new Float64Array(n),
-    u: new Float64Array(n),
-    sat: new Uint8Array(n),
-    d: names.map(() => new Float64Array(n)),
-    disturbanceNames: names,
-  };
-  for (let i = 0; i < n; i++) {
-    const t = i * h;
-    tr.t[i] = t;
-    tr.r[i] = r(t);
-    tr.y[i] = y(t);
-    // The measured output is deliberately wrong: metrics must use the true output y.
-    tr.ym[i] = y(t) + 0.5;
-    tr.u[i] = extra.u ? extra.u(t) : 0;
-    tr.uc[i] = tr.u[i];
-    tr.sat[i] = extra.sat && extra.sat(t) ? 1 : 0;
-    names.forEach((name, k) => {
-      tr.d[k][i] = extra.d![name](t);
-    });
-  }
-  return tr;
-}
+import { makeTrace } from '../helpers/make-trace.js';
 
 function trial(duration: number, events: TrialEvent[], initialSetpoint: number | null = 0): TrialSpec {
   return { duration, initialSetpoint, initialOutput: null, events };
@@ -66,12 +27,15 @@ describe('trialMetrics: standard second-order step (reference sheet section 11, 
     { zeta: 0.5, tr: 1.6376, tp: 3.6276, mp: 16.3, ts: 8.076 },
     { zeta: 0.7, tr: 2.1262, tp: 4.3991, mp: 4.6, ts: 5.979 },
   ];
+  // The figures are taken against the final value, estimated as the mean over the trace's last
+  // 5 %: 60 s leaves a residual of e^(-0.3 * 60) ~ 1.5e-8 at zeta = 0.3 (30 s left 1e-4, which
+  // moved the rise time by 2e-4).
   for (const row of table) {
     it(`zeta = ${row.zeta}: tr, tp, Mp and ts match the sheet`, () => {
       const y = secondOrderStep(row.zeta, 1);
-      const trace = makeTrace(30, h, y, () => 1);
-      const m = trialMetrics(trace, trial(30, [{ kind: 'setpoint', at: 0, value: 1 }]));
-      const s = m.firstStep!;
+      const trace = makeTrace(60, h, y, () => 1);
+      const m = trialMetrics(trace, trial(60, [{ kind: 'setpoint', at: 0, value: 1 }]));
+      const s = m.steps[0];
       expect(s).not.toBeNull();
       expectClose(s.riseTime, row.tr, { abs: 5e-5 + 1e-5 });
       expectClose(s.peakTime, row.tp, { abs: h / 2 + 5e-5 });
@@ -87,7 +51,7 @@ describe('trialMetrics: standard second-order step (reference sheet section 11, 
     const y = secondOrderStep(0.5, 1);
     const trace = makeTrace(30, h, (t) => 5 - 2 * y(t), () => 3);
     const m = trialMetrics(trace, trial(30, [{ kind: 'setpoint', at: 0, value: 3 }], 5));
-    const s = m.firstStep!;
+    const s = m.steps[0];
     expect(s.change).toBe(-2);
     expectClose(s.riseTime, 1.6376, { abs: 6e-5 });
     expectClose(s.overshootPct, 16.3, { abs: 0.0051 });
@@ -97,7 +61,7 @@ describe('trialMetrics: standard second-order step (reference sheet section 11, 
   it('scales with wn: times divide by wn, overshoot is unchanged', () => {
     const y = secondOrderStep(0.5, 4);
     const trace = makeTrace(10, h / 4, y, () => 1);
-    const s = trialMetrics(trace, trial(10, [{ kind: 'setpoint', at: 0, value: 1 }])).firstStep!;
+    const s = trialMetrics(trace, trial(10, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
     expectClose(s.riseTime, 1.6376 / 4, { abs: 6e-5 / 4 });
     expectClose(s.settlingTime, 8.076 / 4, { abs: 5.1e-4 / 4 });
   });
@@ -105,7 +69,7 @@ describe('trialMetrics: standard second-order step (reference sheet section 11, 
   it('a step later in the trial measures times from the step instant', () => {
     const y = secondOrderStep(0.7, 1);
     const trace = makeTrace(40, h, (t) => 2 + 3 * y(t - 10), (t) => (t < 10 ? 2 : 5));
-    const s = trialMetrics(trace, trial(40, [{ kind: 'setpoint', at: 10, value: 5 }], 2)).firstStep!;
+    const s = trialMetrics(trace, trial(40, [{ kind: 'setpoint', at: 10, value: 5 }], 2)).steps[0];
     expect(s.from).toBe(2);
     expect(s.to).toBe(5);
     expectClose(s.riseTime, 2.1262, { abs: 6e-5 });
@@ -118,7 +82,7 @@ describe('trialMetrics: first-order step', () => {
   it('has no overshoot and rise time tau ln 9 (10 % at tau ln(10/9), 90 % at tau ln 10) [math]', () => {
     const tau = 3;
     const trace = makeTrace(60, 1e-3, (t) => 1 - Math.exp(-t / tau), () => 1);
-    const s = trialMetrics(trace, trial(60, [{ kind: 'setpoint', at: 0, value: 1 }])).firstStep!;
+    const s = trialMetrics(trace, trial(60, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
     expect(s.overshootPct).toBe(0);
     // Linear interpolation of an exponential: error <= h^2 max|y''|/8 = 1e-6/(8*9) per crossing.
     expectClose(s.riseTime, tau * Math.log(9), { abs: 1e-6 });
@@ -128,19 +92,83 @@ describe('trialMetrics: first-order step', () => {
     expect(Math.abs(s.steadyStateError)).toBeLessThan(1e-8);
   });
 
-  it('reports a never-settling response as NaN settling time and a steady-state error', () => {
-    // Settles to 0.85 instead of 1: 15 % offset, never inside the 2 % band, never at 90 %.
+  it('measures a response with an offset against its final value; the offset is the steady-state error', () => {
+    // Settles to 0.85 instead of 1 (15 % offset, as a P-only loop does). Rise, settling and
+    // overshoot are taken against the final value 0.85 (reference sheet section 11; FPE;
+    // python-control step_info): tau ln 9 and tau ln 50 with tau = 1 [math].
     const trace = makeTrace(50, 0.01, (t) => 0.85 * (1 - Math.exp(-t)), () => 1);
-    const s = trialMetrics(trace, trial(50, [{ kind: 'setpoint', at: 0, value: 1 }])).firstStep!;
-    expect(Number.isNaN(s.settlingTime)).toBe(true);
-    expect(Number.isNaN(s.riseTime)).toBe(true); // 90 % of the change is never reached
+    const s = trialMetrics(trace, trial(50, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
+    expect(s.settled).toBe(true);
+    expect(s.basis).toBe('final');
+    expectClose(s.finalValue, 0.85, { abs: 1e-12 });
+    expectClose(s.target, 0.85, { abs: 1e-12 });
+    // Linear interpolation of an exponential on h = 0.01: error <= h^2 max|y''|/8 ~ 1e-5 per crossing.
+    expectClose(s.riseTime, Math.log(9), { abs: 2e-5 });
+    expectClose(s.settlingTime, Math.log(50), { abs: 2e-5 });
+    expect(s.overshootPct).toBe(0);
+    expectClose(s.band, 0.02 * 0.85, { abs: 1e-12 });
     expectClose(s.steadyStateError, 0.15, { abs: 1e-12 });
   });
 
+  it('a segment still moving at its end is not settled: no settling time, rise and overshoot against the setpoint', () => {
+    // A lag with T = 20 s caught after 20 s (63 % of its way): the tail is not a final value.
+    const trace = makeTrace(20, 0.01, (t) => 1 - Math.exp(-t / 20), () => 1);
+    const s = trialMetrics(trace, trial(20, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
+    expect(s.settled).toBe(false);
+    expect(s.basis).toBe('setpoint');
+    expect(s.target).toBe(1);
+    expect(Number.isNaN(s.settlingTime)).toBe(true);
+    expect(Number.isNaN(s.riseTime)).toBe(true); // 90 % of the setpoint change never reached
+    expect(Number.isNaN(s.overshootPct)).toBe(true); // nor an overshoot: not a silent 0
+  });
+
+  it('settled means inside the band over the last 20 % of the segment (first-order lag, T ln 50 against the segment)', () => {
+    // 2 % settling of a lag is T ln 50 = 3.91 T [math]. With T = D/5 it lies at 0.78 D: settled.
+    // With T = D/3.5 it would be at 1.12 D, beyond the segment: not settled.
+    const D = 100;
+    const run = (T: number) =>
+      trialMetrics(makeTrace(D, 0.01, (t) => 1 - Math.exp(-t / T), () => 1), trial(D, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
+    const fast = run(D / 5);
+    expect(fast.settled).toBe(true);
+    expect(fast.settlingTime).toBeLessThanOrEqual(0.8 * D);
+    // Against its own final value: the mean of the samples over the last 5 s, which still lies
+    // 0.76 % below 1; the band edge is crossed where e^(-t/T) = (1 - y_f) + 0.02 y_f [math].
+    let sum = 0;
+    for (let k = 9500; k <= 10000; k++) sum += 1 - Math.exp(-(k * 0.01) / (D / 5));
+    const yf = sum / 501;
+    expectClose(fast.finalValue, yf, { abs: 1e-12 });
+    expectClose(fast.settlingTime, -(D / 5) * Math.log(1 - yf + 0.02 * yf), { abs: 1e-4 });
+    expect(run(D / 3.5).settled).toBe(false);
+  });
+
+  it('an output that goes the wrong way and stays there: not reached, undershoot reported, never a silent 0 % overshoot', () => {
+    // A reverse-acting mistake: the output moves away from the setpoint and settles at -0.5.
+    const trace = makeTrace(50, 0.01, (t) => -0.5 * (1 - Math.exp(-t)), () => 1);
+    const s = trialMetrics(trace, trial(50, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
+    expect(s.settled).toBe(true);
+    expect(s.basis).toBe('setpoint');
+    expect(Number.isNaN(s.overshootPct)).toBe(true);
+    expect(Number.isNaN(s.riseTime)).toBe(true);
+    expect(Number.isNaN(s.settlingTime)).toBe(true);
+    expectClose(s.undershootPct, 50, { abs: 1e-6 });
+    expectClose(s.steadyStateError, 1.5, { abs: 1e-9 });
+  });
+
+  it('inverse response: undershoot is the wrong-way dip, overshoot and rise against the final value [math]', () => {
+    // y = 1 + 3 x^2 - 4 x with x = e^(-t/2): y(0) = 0, dips to -1/3 at x = 2/3, then rises to 1.
+    const trace = makeTrace(60, 1e-3, (t) => 1 + 3 * Math.exp(-t) - 4 * Math.exp(-t / 2), () => 1);
+    const s = trialMetrics(trace, trial(60, [{ kind: 'setpoint', at: 0, value: 1 }])).steps[0];
+    expect(s.basis).toBe('final');
+    expectClose(s.undershootPct, 100 / 3, { abs: 1e-5 });
+    expect(s.overshootPct).toBe(0);
+    // Crossing of a level after the dip: the smaller root x = (4 - sqrt(4 + 12 level))/6, t = -2 ln x.
+    const at = (level: number): number => -2 * Math.log((4 - Math.sqrt(4 + 12 * level)) / 6);
+    expectClose(s.riseTime, at(0.9) - at(0.1), { abs: 1e-5 });
+  });
   it('uses the requested settling band', () => {
     const tau = 2;
     const trace = makeTrace(60, 1e-3, (t) => 1 - Math.exp(-t / tau), () => 1);
-    const s = trialMetrics(trace, trial(60, [{ kind: 'setpoint', at: 0, value: 1 }]), { settlingBand: 0.05 }).firstStep!;
+    const s = trialMetrics(trace, trial(60, [{ kind: 'setpoint', at: 0, value: 1 }]), { settlingBand: 0.05 }).steps[0];
     expectClose(s.settlingTime, tau * Math.log(20), { abs: 1e-6 });
   });
 });
@@ -164,7 +192,7 @@ describe('trialMetrics: error integrals (reference sheet section 11 [math])', ()
   it('per step, ITAE measures t from the step instant', () => {
     const shifted = makeTrace(40 * tau + 5, h, (t) => (t < 5 ? 0 : 1 - Math.exp(-(t - 5) / tau)), (t) => (t < 5 ? 0 : 1));
     const mm = trialMetrics(shifted, trial(40 * tau + 5, [{ kind: 'setpoint', at: 5, value: 1 }]));
-    const s = mm.firstStep!;
+    const s = mm.steps[0];
     expectClose(s.iae, tau, { abs: 1e-7 });
     expectClose(s.ise, tau / 2, { abs: 1e-7 });
     expectClose(s.itae, tau * tau, { abs: 1e-7 });
@@ -188,7 +216,6 @@ describe('trialMetrics: disturbance step', () => {
   it('peak deviation and its time from the event', () => {
     const m = trialMetrics(trace, trial(150, events, 2));
     expect(m.steps).toHaveLength(0);
-    expect(m.firstStep).toBeNull();
     const d = m.disturbances[0];
     expect(d.name).toBe('load');
     expect(d.from).toBe(0);
@@ -261,7 +288,6 @@ describe('trialMetrics: ramps, actuator figures, segments', () => {
     expectClose(m.steps[1].overshootPct, 16.3, { abs: 0.0051 });
     // The residual of the first step at t = 20 (|e| < 1e-4) shifts the second start slightly only.
     expectClose(m.steps[1].settlingTime, 8.076, { abs: 2e-3 });
-    expect(m.firstStep).toBe(m.steps[0]);
   });
 
   it('a zero setpoint change is not a step', () => {
@@ -292,17 +318,17 @@ describe('checkRequirements', () => {
       saturatedTime: 2,
     });
     const by = Object.fromEntries(res.map((r) => [r.name, r]));
-    expect(by.overshoot_pct.pass).toBe(false);
+    expect(by.overshoot_pct.status).toBe('fail');
     expectClose(by.overshoot_pct.measured, 16.3, { abs: 0.0051 });
     expect(by.overshoot_pct.at).toBe(0);
-    expect(by.rise_time.pass).toBe(true);
-    expect(by.settling_time.pass).toBe(true);
-    expect(by.steady_state_error.pass).toBe(true);
-    expect(by.max_output.pass).toBe(false);
+    expect(by.rise_time.status).toBe('pass');
+    expect(by.settling_time.status).toBe('pass');
+    expect(by.steady_state_error.status).toBe('pass');
+    expect(by.max_output.status).toBe('fail');
     expectClose(by.max_output.measured, 2, { abs: 1e-12 });
-    expect(by.saturated_time.pass).toBe(true);
+    expect(by.saturated_time.status).toBe('pass');
     expectClose(by.saturated_time.measured, 1, { abs: 2e-3 });
-    expect(by.iae.pass).toBe(by.iae.measured <= 1);
+    expect(by.iae.status).toBe(by.iae.measured <= 1 ? 'pass' : 'fail');
     expect(res.map((r) => r.name)).toEqual([
       'overshoot_pct', 'rise_time', 'settling_time', 'steady_state_error', 'iae', 'max_output', 'saturated_time',
     ]);
@@ -311,14 +337,85 @@ describe('checkRequirements', () => {
   it('lists only the requirements that are set; frequency-domain ones are not checked here', () => {
     const res = checkRequirements(m, { overshootPct: 20, maxSensitivity: 1.6 });
     expect(res).toHaveLength(1);
-    expect(res[0].pass).toBe(true);
+    expect(res[0].status).toBe('pass');
   });
 
   it('a metric never reached fails the requirement', () => {
-    const bad = makeTrace(50, 0.01, (t) => 0.9 * (1 - Math.exp(-t)), () => 1);
+    // Still moving at the end (a lag of 50 s caught after 50 s): not settled.
+    const bad = makeTrace(50, 0.01, (t) => 1 - Math.exp(-t / 50), () => 1);
     const mm = trialMetrics(bad, trial(50, [{ kind: 'setpoint', at: 0, value: 1 }]));
     const [r] = checkRequirements(mm, { settlingTime: 1000 });
-    expect(r.pass).toBe(false);
+    expect(r.status).toBe('fail');
     expect(Number.isNaN(r.measured)).toBe(true);
+    expect(r.reason).toBe('not settled');
+  });
+
+  it('a step requirement on a trial without a setpoint step is n/a with the reason, never a silent pass', () => {
+    const flat = makeTrace(10, 0.1, () => 1, () => 1);
+    const mm = trialMetrics(flat, trial(10, [], 1));
+    const res = checkRequirements(mm, { overshootPct: 10, settlingTime: 5, iae: 1 });
+    expect(res.map((r) => [r.name, r.status])).toEqual([
+      ['overshoot_pct', 'n/a'],
+      ['settling_time', 'n/a'],
+      ['iae', 'pass'],
+    ]);
+    expect(res[0].reason).toBe('the trial has no setpoint step');
+  });
+});
+
+describe('headlineMetrics: one figure per trial, the worst step, with where it comes from', () => {
+  // Step 1 (0 -> 1 at 0 s): zeta = 0.5, Mp 16.30 %, ts 8.076 s. Step 2 (1 -> 3 at 20 s): zeta = 0.7
+  // scaled by 2, Mp 4.60 %, ts 5.979 s, tr 2.1262 s (> 1.6376 s of step 1). Sheet section 11.
+  const a = secondOrderStep(0.5, 1);
+  const b = secondOrderStep(0.7, 1);
+  const y = (t: number): number => (t < 20 ? a(t) : 1 + 2 * b(t - 20));
+  const events: TrialEvent[] = [
+    { kind: 'setpoint', at: 0, value: 1 },
+    { kind: 'setpoint', at: 20, value: 3 },
+  ];
+
+  it('picks the worst step for each figure, not the first', () => {
+    const m = trialMetrics(makeTrace(60, 1e-3, y, (t) => (t < 20 ? 1 : 3)), trial(60, events));
+    const h = headlineMetrics(m);
+    expectClose(h.overshootPct!.value, 16.3, { abs: 0.006 });
+    expect(h.overshootPct!.stepAt).toBe(0);
+    // The 20 s segment's final value comes from its tail, where e^(-10) ~ 5e-5 of ringing is left:
+    // it moves the band edge by a few ms.
+    expectClose(h.settlingTime!.value, 8.076, { abs: 6e-3 });
+    expect(h.settlingTime!.stepAt).toBe(0);
+    expectClose(h.riseTime!.value, 2.1262, { abs: 1e-3 });
+    expect(h.riseTime!.stepAt).toBe(20);
+    expect(h.riseTime!.from).toBe(1);
+    expect(h.riseTime!.to).toBe(3);
+    expect(h.riseTime!.of).toBe(2);
+    expect(headlineSource(h.riseTime!, String)).toBe('worst of 2 steps: step at 20 s');
+    // The requirement reports the same step.
+    const [r] = checkRequirements(m, { riseTime: 2 });
+    expect(r.at).toBe(20);
+    expect(r.status).toBe('fail');
+  });
+
+  it('a step not settled is the worst of all, and says so in the one word', () => {
+    // The second step is cut off 3 s after it happens: still moving.
+    const m = trialMetrics(makeTrace(23, 1e-3, y, (t) => (t < 20 ? 1 : 3)), trial(23, events));
+    const h = headlineMetrics(m);
+    expect(Number.isNaN(h.settlingTime!.value)).toBe(true);
+    expect(h.settlingTime!.stepAt).toBe(20);
+    expect(stepFigureText('settlingTime', h.settlingTime, String)).toBe('not settled');
+    expect(stepFigureText('riseTime', NaN, String)).toBe('not reached');
+    expect(stepFigureText('overshootPct', h.overshootPct, (x) => x.toFixed(1))).toBe('16.3 %');
+  });
+
+  it('the steady-state error is chosen by magnitude and keeps its sign; no step gives null', () => {
+    const off = (t: number): number => (t < 20 ? 0.9 * (1 - Math.exp(-t)) : 0.9 - 1.2 * (1 - Math.exp(-(t - 20))));
+    const m = trialMetrics(makeTrace(40, 1e-2, off, (t) => (t < 20 ? 1 : -0.5)), trial(40, [
+      { kind: 'setpoint', at: 0, value: 1 },
+      { kind: 'setpoint', at: 20, value: -0.5 },
+    ]));
+    // Step 1 ends at 0.9 (error 0.1), step 2 at -0.3 (error -0.2).
+    const h = headlineMetrics(m);
+    expectClose(h.steadyStateError!.value, -0.2, { abs: 1e-6 });
+    expect(h.steadyStateError!.stepAt).toBe(20);
+    expect(headlineMetrics(trialMetrics(makeTrace(5, 0.1, () => 0, () => 0), trial(5, []))).overshootPct).toBeNull();
   });
 });

@@ -279,12 +279,13 @@ describe('looprig run --csv', () => {
 });
 
 describe('looprig run: the summary', () => {
-  it('shows the plant, status, first step, events and requirements', async () => {
+  it('shows the plant, status, the step, events and requirements', async () => {
     const r = await run(['run', plant('pipe-outlet-temperature.yaml')]);
     expect(r.code).toBe(0);
     expect(r.out).toContain('Pipe outlet temperature rise');
-    expect(r.out).toContain('status: ok');
-    expect(r.out).toContain('first setpoint step 0 -> 4 at 30 s');
+    // A failed requirement is in the status line: 'ok' only when nothing is wrong.
+    expect(r.out).toContain('status: FAILS settling_time');
+    expect(r.out).toContain('setpoint step 0 -> 4 at 30 s:');
     expect(r.out).toMatch(/disturbance load\s+0 -> -10/);
     // This plant fails its settling-time requirement on purpose (see its header).
     expect(r.out).toMatch(/settling_time\s+\S+ s\s+limit 300 s\s+FAIL/);

@@ -32,8 +32,13 @@ describe('bundled plants', () => {
       const doc = JSON.parse(io.stdout);
       expect(doc.status).toBe('ok');
       expect(doc.diverged_at).toBeNull();
-      for (const [key, value] of Object.entries(doc.metrics)) {
+      const { worst_step_at: from, ...figures } = doc.metrics;
+      for (const [key, value] of Object.entries(figures)) {
         expect(Number.isFinite(value), `${key} = ${String(value)}`).toBe(true);
+      }
+      // Each step figure names the setpoint step it comes from (the worst one).
+      for (const [key, at] of Object.entries(from as Record<string, number>)) {
+        expect(doc.events.some((e: { kind: string; at: number }) => e.kind === 'setpoint' && e.at === at), `${key} from ${at}`).toBe(true);
       }
       expect(doc.events.length).toBeGreaterThanOrEqual(2); // a setpoint step and a disturbance at least
       expect(doc.events.some((e: { kind: string }) => e.kind === 'disturbance')).toBe(true);

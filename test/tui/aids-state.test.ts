@@ -39,8 +39,10 @@ function act(s: ScreenState, ...actions: Action[]): ScreenState {
   for (const a of actions) s = reduce(s, a, math);
   return s;
 }
+/** Headline figures of a trial without a setpoint step (the rows' figures are set directly). */
+const NO_HEAD = { overshootPct: null, undershootPct: null, riseTime: null, settlingTime: null, steadyStateError: null };
 function row(label: string, e: GainEdit, oscillation = false): SuggestRow {
-  return { id: label, label, structure: e.structure, edit: e, overshootPct: 5, settlingTime: 30, iae: 1, diverged: false, ms: 1.5, gm: 3, flags: [], oscillation };
+  return { id: label, label, structure: e.structure, edit: e, overshootPct: 5, settlingTime: 30, head: NO_HEAD, iae: 1, diverged: false, ms: 1.5, gm: 3, flags: [], oscillation };
 }
 function view(rows: SuggestRow[], finished = true): SuggestView {
   return { rows, done: rows.length, total: rows.length, finished, skipped: [], notes: [] };

@@ -1,6 +1,7 @@
 /**
  * optimizeGains: cost on the full simulation, Ms constraint, determinism, progress, budgets.
  */
+import { headlineMetrics } from '../../src/analysis/index.js';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -99,18 +100,18 @@ loop:
 
   it('without them the IAE optimum overshoots more than the file allows', () => {
     expect(free.constraints).toEqual([]);
-    expect(free.best.metrics.firstStep!.overshootPct).toBeGreaterThan(2);
+    expect(headlineMetrics(free.best.metrics).overshootPct!.value).toBeGreaterThan(2);
   });
   it('with them the result meets the requirement (and Ms), at a cost no lower than the free optimum', () => {
     expect(bound.constraints).toEqual(['overshoot_pct']);
     expect(bound.feasible).toBe(true);
-    expect(bound.best.requirements.every((r) => r.pass)).toBe(true);
+    expect(bound.best.requirements.every((r) => r.status === 'pass')).toBe(true);
     expect(bound.best.margins!.maxSensitivity).toBeLessThanOrEqual(1.6 + 1e-9);
     expect(bound.best.cost).toBeGreaterThanOrEqual(free.best.cost);
   });
   it('is never worse than the best rule (or the file\'s gains) meeting the same constraints', () => {
     const rules = suggestGains(spec, { robustness: false }).suggestions.filter(
-      (s) => s.structure === 'pi' && s.evaluation.margins!.maxSensitivity <= 1.6 && s.evaluation.requirements.every((r) => r.pass),
+      (s) => s.structure === 'pi' && s.evaluation.margins!.maxSensitivity <= 1.6 && s.evaluation.requirements.every((r) => r.status === 'pass'),
     );
     for (const s of rules) expect(bound.best.cost).toBeLessThanOrEqual(s.evaluation.cost);
   });
@@ -131,8 +132,8 @@ loop:
 
   it('ranks probes: meets all < misses a requirement (by shortfall) < misses Ms', () => {
     const ok = bound.best;
-    const over = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 3, limit: 2, pass: false, at: 1 }] };
-    const worse = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 5, limit: 2, pass: false, at: 1 }] };
+    const over = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 3, limit: 2, status: 'fail' as const, reason: null, at: 1 }] };
+    const worse = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 5, limit: 2, status: 'fail' as const, reason: null, at: 1 }] };
     const loose = { ...ok, margins: { ...ok.margins!, maxSensitivity: 2.5 } };
     expect(optimizerScore(ok, 1.6, true)).toBe(Math.log(ok.cost));
     expect(optimizerScore(over, 1.6, true)).toBeGreaterThanOrEqual(UNMET_RANK);

@@ -4,7 +4,8 @@
  * uncertainty box when the file sets `worst_case: true`) and print one table.
  *
  * Exit status: 0 every requirement of every file passes; 1 some requirement fails or cannot be
- * evaluated ("not available" never passes a CI job); 2 a file is invalid (not a plant file, YAML
+ * evaluated ("not available", N/A: e.g. overshoot_pct on a trial without a setpoint step; a CI job
+ * must not pass on a requirement nobody checked, so it is counted as not passing and printed with its reason); 2 a file is invalid (not a plant file, YAML
  * or schema errors, unreadable), bad arguments, or no plant file found. 2 wins over 1.
  */
 import { parseCommandArgs } from '../parse-command.js';
@@ -38,7 +39,10 @@ Options:
   --svg DIR       write a plot of each failing file's trial to DIR (created if needed)
   -h, --help      show this text
 
-Exit status: 0 all pass, 1 a requirement failed (or could not be evaluated),
+Step requirements are the worst setpoint step, measured against the value the output settles at;
+on a trial without a setpoint step they cannot be evaluated (N/A, with the reason).
+
+Exit status: 0 all pass, 1 a requirement failed (or could not be evaluated: N/A),
 2 an invalid file, bad arguments, or no plant file found.
 `;
 

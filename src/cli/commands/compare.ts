@@ -8,6 +8,7 @@ import { countOption, onePositional, parseCommandArgs } from '../parse-command.j
 import type { PlantSpec } from '../../model/types.js';
 import { compareCandidates, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
+import { rankedFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
@@ -65,8 +66,8 @@ function worstText(c: CandidateReport): string {
   if (w === null) return '-';
   if (w.anyDiverged) return `diverges (${w.cases} cases)`;
   const ms = w.worstMs === Infinity ? 'unstable' : num(w.worstMs, 3);
-  const os = Number.isNaN(w.worstOvershootPct) ? '-' : `${num(w.worstOvershootPct, 3)} %`;
-  const ts = Number.isNaN(w.worstSettlingTime) ? '-' : secs(w.worstSettlingTime, 'never');
+  const os = rankedFigureText('overshootPct', w.worstOvershootPct, (x) => num(x, 3));
+  const ts = rankedFigureText('settlingTime', w.worstSettlingTime, num);
   return `os ${os} ts ${ts} IAE ${num(w.worstIae, 3)} Ms ${ms}`;
 }
 
@@ -95,9 +96,9 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
       c.name,
       c.structure,
       gainsText(c),
-      secs(w.riseTime, Number.isNaN(w.riseTime) ? '-' : 'never'),
-      Number.isNaN(w.overshootPct) ? '-' : `${num(w.overshootPct, 3)} %`,
-      secs(w.settlingTime, Number.isNaN(w.settlingTime) ? '-' : 'never'),
+      rankedFigureText('riseTime', w.riseTime, num),
+      rankedFigureText('overshootPct', w.overshootPct, (x) => num(x, 3)),
+      rankedFigureText('settlingTime', w.settlingTime, num),
       diverged ? 'diverged' : num(w.iaeSetpoint, 4),
       diverged ? 'diverged' : num(w.iaeDisturbance, 4),
       num(w.peakOutput, 4),

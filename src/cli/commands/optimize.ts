@@ -8,6 +8,7 @@ import { controllerEdits, gainNote, savePlantValues } from '../../model/index.js
 import type { PlantSpec } from '../../model/types.js';
 import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
+import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import { num, secs } from '../format.js';
 import type { Io } from '../io.js';
 import { finiteOrNull, noiseJson, toJson } from '../json.js';
@@ -95,7 +96,8 @@ function progressLine(p: OptimizeProgress, cost: string): string {
 
 function summaryText(plant: PlantSpec, r: OptimizeResult, values: Record<string, number> | null, wrote: string | null): string {
   const b = r.best;
-  const first = b.metrics.firstStep;
+  const head = headlineMetrics(b.metrics);
+  const from = headlineSources(head, ['overshootPct', 'settlingTime'], num);
   const kind = r.cost.kind.toUpperCase();
   const lines = [
     `${plant.name}: optimised ${r.structure.toUpperCase()} (${kind}${r.cost.outputVariationWeight > 0 ? ` + ${r.cost.outputVariationWeight} x output variation` : ''}, Ms <= ${r.msTarget})`,
@@ -103,7 +105,7 @@ function summaryText(plant: PlantSpec, r: OptimizeResult, values: Record<string,
     `  start: ${r.startLabel}, ${kind} ${num(r.startCost)}`,
     `  result: ${kind} ${num(b.cost)} after ${r.evaluations} evaluations (${r.stoppedBy}, ${num(r.elapsedMs / 1000, 3)} s)`,
     `  gains (${plant.loop.controller.form}): ${values ? Object.entries(values).map(([k, v]) => `${k}=${k === 'ti' || k === 'td' ? secs(v) : num(v)}`).join(' ') : 'not expressible in this form'}`,
-    `  overshoot ${first ? `${num(first.overshootPct, 3)} %` : '-'}, settling ${first ? secs(first.settlingTime, 'never') : '-'}, Ms ${b.margins ? num(b.margins.maxSensitivity, 3) : '-'}, GM ${b.margins ? num(b.margins.gainMargin, 3, 'inf') : '-'}`,
+    `  overshoot ${stepFigureText('overshootPct', head.overshootPct, (x) => num(x, 3))}, settling ${stepFigureText('settlingTime', head.settlingTime, num)}${from ? ` (${from})` : ''}, Ms ${b.margins ? num(b.margins.maxSensitivity, 3) : '-'}, GM ${b.margins ? num(b.margins.gainMargin, 3, 'inf') : '-'}`,
   ];
   for (const f of b.flags) lines.push(`  flag: ${f.message}`);
   for (const n of r.notes) lines.push(`note: ${n}`);
@@ -161,7 +163,7 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
   }
   if (o.json) {
     const b = result.best;
-    const first = b.metrics.firstStep;
+    const head = headlineMetrics(b.metrics);
     io.out(
       toJson({
         plant: { name: plant.name, file: o.file, form: plant.loop.controller.form },
@@ -176,8 +178,10 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
         evaluations: result.evaluations,
         stopped_by: result.stoppedBy,
         elapsed_ms: result.elapsedMs,
-        overshoot_pct: first ? finiteOrNull(first.overshootPct) : null,
-        settling_time: first ? finiteOrNull(first.settlingTime) : null,
+        // Worst over the setpoint steps (null: no step, or not reached / not settled there).
+        overshoot_pct: head.overshootPct === null ? null : finiteOrNull(head.overshootPct.value),
+        settling_time: head.settlingTime === null ? null : finiteOrNull(head.settlingTime.value),
+        worst_step_at: { overshoot_pct: head.overshootPct?.stepAt ?? null, settling_time: head.settlingTime?.stepAt ?? null },
         max_sensitivity: b.margins ? finiteOrNull(b.margins.maxSensitivity) : null,
         gain_margin: b.margins ? finiteOrNull(b.margins.gainMargin) : null,
         saturated_fraction: b.saturatedFraction,

@@ -3,8 +3,8 @@
  * A diverging loop is a result (exit 0, reported clearly); a bad file or bad arguments exit 2.
  */
 import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
-import { checkRequirements, trialMetrics } from '../../analysis/index.js';
-import type { RequirementResult, TrialMetrics } from '../../analysis/index.js';
+import { checkRequirements, headlineMetrics, headlineSources, stepFigureText, trialMetrics } from '../../analysis/index.js';
+import type { HeadlineFigure, RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { fileController } from '../../tune/index.js';
 import { compilePlant } from '../../model/index.js';
 import type { PlantSpec, Requirements } from '../../model/types.js';
@@ -146,15 +146,21 @@ export function traceCsv(trace: Trace): string {
 /** The `--json` document (see the CLI contract in the design notes). */
 export function reportJson(report: RunReport): unknown {
   const { plant, result, metrics } = report;
-  const first = metrics.firstStep;
+  const head = headlineMetrics(metrics);
+  const value = (f: HeadlineFigure | null): number | null => (f === null ? null : finiteOrNull(f.value));
+  const peakStep = head.overshootPct === null ? null : metrics.steps.find((s) => s.at === head.overshootPct!.stepAt) ?? null;
   const events: { at: number; [key: string]: unknown }[] = [
     ...metrics.steps.map((s) => ({
       kind: 'setpoint',
       at: s.at,
       from: s.from,
       to: s.to,
+      final_value: finiteOrNull(s.finalValue),
+      settled: s.settled,
+      measured_against: s.basis === 'final' ? 'final_value' : 'setpoint',
       rise_time: finiteOrNull(s.riseTime),
       overshoot_pct: finiteOrNull(s.overshootPct),
+      undershoot_pct: finiteOrNull(s.undershootPct),
       peak_time: finiteOrNull(s.peakTime),
       settling_time: finiteOrNull(s.settlingTime),
       steady_state_error: finiteOrNull(s.steadyStateError),
@@ -202,12 +208,22 @@ export function reportJson(report: RunReport): unknown {
     sample_time: plant.loop.sampleTime,
     duration: plant.loop.trial.duration,
     diverged_at: result.divergedAt,
+    // Step figures: the worst over the setpoint steps (null without a step, or not reached /
+    // not settled there); `worst_step_at` gives the step each comes from.
     metrics: {
-      rise_time: first ? finiteOrNull(first.riseTime) : null,
-      overshoot_pct: first ? finiteOrNull(first.overshootPct) : null,
-      peak_time: first ? finiteOrNull(first.peakTime) : null,
-      settling_time: first ? finiteOrNull(first.settlingTime) : null,
-      steady_state_error: first ? finiteOrNull(first.steadyStateError) : null,
+      rise_time: value(head.riseTime),
+      overshoot_pct: value(head.overshootPct),
+      undershoot_pct: value(head.undershootPct),
+      peak_time: peakStep === null ? null : finiteOrNull(peakStep.peakTime),
+      settling_time: value(head.settlingTime),
+      steady_state_error: value(head.steadyStateError),
+      worst_step_at: {
+        rise_time: head.riseTime?.stepAt ?? null,
+        overshoot_pct: head.overshootPct?.stepAt ?? null,
+        undershoot_pct: head.undershootPct?.stepAt ?? null,
+        settling_time: head.settlingTime?.stepAt ?? null,
+        steady_state_error: head.steadyStateError?.stepAt ?? null,
+      },
       iae: finiteOrNull(o.iae),
       ise: finiteOrNull(o.ise),
       itae: finiteOrNull(o.itae),
@@ -220,7 +236,9 @@ export function reportJson(report: RunReport): unknown {
       name: r.name,
       measured: finiteOrNull(r.measured),
       limit: r.limit,
-      pass: r.pass,
+      status: r.status,
+      pass: r.status === 'pass',
+      reason: r.reason,
       at: r.at,
     })),
     warnings: report.warnings,
@@ -237,6 +255,27 @@ const UNITS: Readonly<Record<string, string>> = {
   saturated_time: ' s',
 };
 
+/**
+ * The status line: 'ok' only when the trial ran to its end, every setpoint step settled toward
+ * its setpoint, and no requirement failed; otherwise what is wrong (a diverged loop, a step still
+ * moving at its end or gone the wrong way, failed requirements). N/A requirements are listed
+ * with the requirements, not here.
+ */
+function runStatus(report: RunReport): string {
+  const { result, metrics } = report;
+  if (result.status === 'diverged') {
+    return `UNSTABLE - diverged at t = ${num(result.divergedAt ?? NaN)} s (metrics below cover the trace up to there)`;
+  }
+  const problems: string[] = [];
+  const moving = metrics.steps.filter((s) => !s.settled);
+  const away = metrics.steps.filter((s) => s.settled && s.basis === 'setpoint');
+  if (moving.length > 0) problems.push(`NOT SETTLED - the output is still moving at the end of the step at ${moving.map((s) => secs(s.at)).join(', ')}`);
+  if (away.length > 0) problems.push(`NOT FOLLOWING - the output settles short of or away from the setpoint after the step at ${away.map((s) => secs(s.at)).join(', ')}`);
+  const failed = report.requirements.filter((r) => r.status === 'fail').map((r) => r.name);
+  if (failed.length > 0) problems.push(`FAILS ${failed.join(', ')}`);
+  return problems.length === 0 ? 'ok' : problems.join('; ');
+}
+
 /** The human-readable summary. */
 export function summaryText(report: RunReport): string {
   const { plant, result, metrics } = report;
@@ -251,19 +290,19 @@ export function summaryText(report: RunReport): string {
   lines.push(
     `sample ${secs(loop.sampleTime)}, step ${secs(result.step)} (${loop.integrator}), ${result.steps} steps over ${secs(loop.trial.duration)}`,
   );
-  lines.push(
-    result.status === 'diverged'
-      ? `status: UNSTABLE - diverged at t = ${num(result.divergedAt ?? NaN)} s (metrics below cover the trace up to there)`
-      : 'status: ok',
-  );
+  lines.push(`status: ${runStatus(report)}`);
   lines.push('');
 
-  const s = metrics.firstStep;
-  if (s !== null) {
-    lines.push(`first setpoint step ${num(s.from)} -> ${num(s.to)} at ${secs(s.at)}:`);
+  const head = headlineMetrics(metrics);
+  const n = metrics.steps.length;
+  if (n > 0) {
+    const fig = (k: StepFigure): string => stepFigureText(k, head[k], (x) => (k === 'riseTime' || k === 'settlingTime' ? num(x) : num(x, 3)));
+    const under = head.undershootPct !== null && head.undershootPct.value > 0 ? `, undershoot ${fig('undershootPct')}` : '';
+    lines.push(n === 1 ? `setpoint step ${num(metrics.steps[0].from)} -> ${num(metrics.steps[0].to)} at ${secs(metrics.steps[0].at)}:` : `${n} setpoint steps, the worst of each figure:`);
     lines.push(
-      `  rise time ${secs(s.riseTime, 'not reached')}, overshoot ${num(s.overshootPct)} %, peak ${num(s.peakValue)} at +${secs(s.peakTime)}, ` +
-        `settling ${secs(s.settlingTime, 'not settled')}, steady-state error ${num(s.steadyStateError)}`,
+      `  rise time ${fig('riseTime')}, overshoot ${fig('overshootPct')}${under}, settling ${fig('settlingTime')}, ` +
+        `steady-state error ${fig('steadyStateError')}` +
+        (n > 1 ? ` (${headlineSources(head, ['riseTime', 'overshootPct', 'settlingTime', 'steadyStateError'], (x) => num(x))})` : ''),
     );
   } else {
     lines.push('no setpoint step in this trial');
@@ -276,16 +315,17 @@ export function summaryText(report: RunReport): string {
 
   const rows: string[][] = [];
   for (const e of metrics.steps) {
-    rows.push([secs(e.at), 'setpoint', `${num(e.from)} -> ${num(e.to)}`, `rise ${secs(e.riseTime)}`, `overshoot ${num(e.overshootPct)} %`,
-      `settling ${secs(e.settlingTime, 'not settled')}`, `IAE ${num(e.iae)}`]);
+    rows.push([secs(e.at), 'setpoint', `${num(e.from)} -> ${num(e.to)}`, `rise ${stepFigureText('riseTime', e.riseTime, num)}`,
+      `overshoot ${stepFigureText('overshootPct', e.overshootPct, (x) => num(x, 3))}`, `settling ${stepFigureText('settlingTime', e.settlingTime, num)}`,
+      `final ${num(e.finalValue)}${e.settled ? '' : ' (still moving)'}`, `IAE ${num(e.iae)}`]);
   }
   for (const r of metrics.ramps) {
     rows.push([secs(r.at), 'ramp', `${num(r.from)} -> ${num(r.to)} in ${secs(r.duration)}`, `end error ${num(r.endError)}`,
-      `max |e| ${num(r.maxAbsError)}`, '', `IAE ${num(r.iae)}`]);
+      `max |e| ${num(r.maxAbsError)}`, '', '', `IAE ${num(r.iae)}`]);
   }
   for (const d of metrics.disturbances) {
     rows.push([secs(d.at), `disturbance ${d.name}`, `${num(d.from)} -> ${num(d.to)}`, `peak ${num(d.peakDeviation)} at +${secs(d.peakTime)}`,
-      `band ${num(d.band)}`, `recovery ${secs(d.recoveryTime, 'not recovered')}`, `IAE ${num(d.iae)}`]);
+      `band ${num(d.band)}`, `recovery ${secs(d.recoveryTime, 'not recovered')}`, '', `IAE ${num(d.iae)}`]);
   }
   rows.sort((a, b) => parseFloat(a[0]) - parseFloat(b[0]));
   if (rows.length > 0) {
@@ -303,8 +343,9 @@ export function summaryText(report: RunReport): string {
     const req = report.requirements.map((r) => {
       const unit = UNITS[r.name] ?? '';
       const where = r.at !== null && report.metrics.steps.length > 1 ? ` (worst: step at ${secs(r.at)})` : '';
-      return [r.name, `${num(r.measured, 4, 'not reached')}${Number.isFinite(r.measured) ? unit : ''}`, `limit ${num(r.limit)}${unit}`,
-        r.pass ? 'pass' : 'FAIL', where.trim()];
+      const measured = Number.isFinite(r.measured) ? `${num(r.measured, 4)}${unit}` : (r.reason ?? '-');
+      const word = r.status === 'pass' ? 'pass' : r.status === 'fail' ? 'FAIL' : 'N/A';
+      return [r.name, r.status === 'n/a' ? '-' : measured, `limit ${num(r.limit)}${unit}`, word, r.status === 'n/a' ? `(${r.reason})` : where.trim()];
     });
     lines.push(
       table(req)

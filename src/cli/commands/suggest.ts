@@ -6,6 +6,7 @@ import { countOption, onePositional, parseCommandArgs, timeOption } from '../par
 import type { PlantSpec } from '../../model/types.js';
 import { caseFigures, suggestGains, summarise, sweepCaseCount, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
+import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
 import { finiteOrNull, noiseJson, toJson } from '../json.js';
@@ -82,8 +83,8 @@ function worstText(s: Suggestion): string {
   if (w.anyDiverged) return `diverges (${w.cases} cases)`;
   const ms = w.worstMs === Infinity ? 'unstable' : num(w.worstMs, 3);
   // NaN: the trial has no setpoint step; Infinity: a case never settles.
-  const os = Number.isNaN(w.worstOvershootPct) ? '-' : `${num(w.worstOvershootPct, 3)} %`;
-  const ts = Number.isNaN(w.worstSettlingTime) ? '-' : secs(w.worstSettlingTime, 'never');
+  const os = rankedFigureText('overshootPct', w.worstOvershootPct, (x) => num(x, 3));
+  const ts = rankedFigureText('settlingTime', w.worstSettlingTime, num);
   return `os ${os} ts ${ts} Ms ${ms}`;
 }
 
@@ -97,14 +98,16 @@ function summaryText(plant: PlantSpec, r: SuggestResult): string {
   if (r.relay && r.ultimateModel) lines.push(`  ultimate point (model): Ku ${num(r.ultimateModel.ku)}, Tu ${secs(r.ultimateModel.tu)}`);
   lines.push('');
   const rows: string[][] = [['rule', 'gains', 'overshoot', 'settling', 'IAE', 'Ms', 'GM', 'worst case', 'flags']];
+  let from = '';
   for (const s of r.suggestions) {
     const e = s.evaluation;
-    const first = e.metrics.firstStep;
+    const head = headlineMetrics(e.metrics);
+    from ||= headlineSources(head, ['overshootPct', 'settlingTime'], num);
     rows.push([
       s.rule.label,
       gainsText(s),
-      first ? `${num(first.overshootPct, 3)} %` : '-',
-      first ? secs(first.settlingTime, 'never') : '-',
+      stepFigureText('overshootPct', head.overshootPct, (x) => num(x, 3)),
+      stepFigureText('settlingTime', head.settlingTime, num),
       e.result.status === 'ok' ? num(e.metrics.overall.iae) : 'diverged',
       e.margins ? num(e.margins.maxSensitivity, 3) : '-',
       e.margins ? num(e.margins.gainMargin, 3, 'inf') : '-',
@@ -113,6 +116,10 @@ function summaryText(plant: PlantSpec, r: SuggestResult): string {
     ]);
   }
   lines.push(table(rows));
+  // Every rule runs the same trial: with several steps the columns are the worst step of each row.
+  const steps = r.suggestions[0]?.evaluation.metrics.steps.length ?? 0;
+  if (steps > 1) lines.push(`overshoot and settling: the worst of the trial's ${steps} setpoint steps for each rule (first row: ${from})`);
+  else if (steps === 1) lines.push(`overshoot and settling: the trial's setpoint step (${from})`);
   if (r.skipped.length > 0) {
     lines.push('', 'not applicable:');
     for (const k of r.skipped) lines.push(`  ${k.label}: ${k.reason}`);
@@ -131,7 +138,7 @@ function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown 
     relay: r.relay?.estimate ?? null,
     suggestions: r.suggestions.map((s) => {
       const e = s.evaluation;
-      const first = e.metrics.firstStep;
+      const head = headlineMetrics(e.metrics);
       return {
         rule: s.rule.id,
         label: s.rule.label,
@@ -142,9 +149,11 @@ function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown 
         ideal: { kc: s.gains.kc, ti: finiteOrNull(s.gains.ti), td: s.gains.td },
         rule_gains: { form: s.ruleGains.form, kc: s.ruleGains.kc, ti: finiteOrNull(s.ruleGains.ti), td: s.ruleGains.td },
         status: e.result.status,
-        overshoot_pct: first ? finiteOrNull(first.overshootPct) : null,
-        settling_time: first ? finiteOrNull(first.settlingTime) : null,
-        rise_time: first ? finiteOrNull(first.riseTime) : null,
+        // Worst over the setpoint steps (null: no step, or not reached / not settled there).
+        overshoot_pct: head.overshootPct === null ? null : finiteOrNull(head.overshootPct.value),
+        settling_time: head.settlingTime === null ? null : finiteOrNull(head.settlingTime.value),
+        rise_time: head.riseTime === null ? null : finiteOrNull(head.riseTime.value),
+        worst_step_at: { overshoot_pct: head.overshootPct?.stepAt ?? null, settling_time: head.settlingTime?.stepAt ?? null, rise_time: head.riseTime?.stepAt ?? null },
         iae: finiteOrNull(e.metrics.overall.iae),
         cost: finiteOrNull(e.cost),
         max_sensitivity: e.margins ? finiteOrNull(e.margins.maxSensitivity) : null,

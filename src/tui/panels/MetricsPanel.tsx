@@ -1,6 +1,7 @@
 /**
  * Trial figures against the file's requirements, for the current gain set and the baseline;
- * each limit marked met or not met ([ok] / [NO] without colour).
+ * each limit marked met or not met ([ok] / [NO] without colour), or n/a when the trial cannot
+ * show it (a step requirement without a setpoint step).
  */
 import { Box } from 'ink';
 import type { MetricCell, MetricRow } from '../metric-rows.js';
@@ -19,20 +20,24 @@ export interface MetricsProps {
 }
 
 function mark(c: MetricCell, theme: Theme): Piece {
-  if (c.pass === null) return { text: '    ' };
-  if (theme.color) return c.pass ? { text: ' ok ', color: theme.ok } : { text: ' NO ', color: theme.bad, bold: true };
-  return { text: c.pass ? '[ok]' : '[NO]' };
+  if (c.status === null) return { text: '    ' };
+  if (c.status === 'n/a') return { text: 'n/a ', color: theme.warn };
+  if (theme.color) return c.status === 'ok' ? { text: ' ok ', color: theme.ok } : { text: ' NO ', color: theme.bad, bold: true };
+  return { text: c.status === 'ok' ? '[ok]' : '[NO]' };
 }
 
 export function metricLines(p: MetricsProps): Piece[][] {
   const t = p.theme;
   const hasBase = p.rows.some((r) => r.base !== null);
+  // Value columns as wide as their longest text ('not settled'), at least 8 and 7.
+  const nowW = Math.max(8, ...p.rows.map((r) => r.now.text.length + 1));
+  const baseW = Math.max(7, ...p.rows.map((r) => (r.base?.text.length ?? 0) + 1));
   const lines: Piece[][] = [
-    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, 12)}${hasBase ? 'baseline' : ''}`, color: t.dim }],
+    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'baseline' : ''}`, color: t.dim }],
   ];
   for (const r of p.rows) {
-    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, 9), color: t.dim }, { text: fit(r.now.text, 8) }, mark(r.now, t)];
-    if (r.base !== null) pieces.push({ text: ' ' + fit(r.base.text, 7), color: t.baseline }, mark(r.base, t));
+    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, 9), color: t.dim }, { text: fit(r.now.text, nowW) }, mark(r.now, t)];
+    if (r.base !== null) pieces.push({ text: ' ' + fit(r.base.text, baseW), color: t.baseline }, mark(r.base, t));
     lines.push(pieces);
   }
   if (p.note !== null) lines.push(p.note);

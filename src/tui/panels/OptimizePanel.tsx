@@ -3,12 +3,13 @@
  * start it came from); at the end the result with its figures, offered to apply.
  */
 import { Box } from 'ink';
+import { rankedFigureText } from '../../analysis/index.js';
 import type { Theme } from '../theme.js';
 import type { OptimizeOutcome, OptimizeView } from '../tuning-views.js';
 import { gainsText } from './GainsPanel.js';
 import { Heading } from './Heading.js';
 import { Line, type Piece } from './line.js';
-import { fig } from './SuggestPanel.js';
+import { fig, figuresFrom } from './SuggestPanel.js';
 import { wrap } from './wrap.js';
 
 /** A progress bar of `width` cells for a fraction 0..1 ('#' done, '.' to go: readable without colour). */
@@ -56,10 +57,12 @@ export function optimizeLines(view: OptimizeView | null, outcome: OptimizeOutcom
   ]);
   out.push([{ text: `  start: ${outcome.startLabel ?? 'the edited gains'}${Number.isFinite(outcome.startCost) ? `, ${c} ${fig(outcome.startCost, 5)}` : ''}`, color: theme.dim }]);
   if (outcome.edit !== null) out.push([{ text: '  gains: ' }, { text: gainsText(outcome.edit), bold: true }]);
-  const os = Number.isNaN(outcome.overshootPct) ? '-' : `${fig(outcome.overshootPct)} %`;
-  const ts = Number.isNaN(outcome.settlingTime) ? '-' : Number.isFinite(outcome.settlingTime) ? `${fig(outcome.settlingTime)} s` : 'never';
+  const os = rankedFigureText('overshootPct', outcome.overshootPct, (x) => fig(x));
+  const ts = rankedFigureText('settlingTime', outcome.settlingTime, (x) => fig(x));
   const ms = outcome.ms === Infinity ? 'unstable' : fig(outcome.ms);
   out.push([{ text: `  overshoot ${os}, settling ${ts}, Ms ${ms}, GM ${fig(outcome.gm)}` }]);
+  const from = figuresFrom(outcome.head ?? null);
+  if (from !== '') out.push([{ text: `  ${from.trim()}`, color: theme.dim }]);
   const now = outcome.current;
   if (now !== null) {
     const above = now.ms > view.msTarget ? ' (Ms above the target)' : '';

@@ -5,6 +5,7 @@
  * oscillation caution is shown whenever such a row is listed.
  */
 import { Box } from 'ink';
+import { headlineSources, rankedFigureText } from '../../analysis/index.js';
 import { RELAY_CAUTION } from '../../tune/index.js';
 import type { Theme } from '../theme.js';
 import type { SuggestView } from '../tuning-views.js';
@@ -24,7 +25,9 @@ export function fig(x: number, digits = 3): string {
 }
 
 
-// Widths that fit 80 columns with the two marker columns (the longest rule label is 17).
+// Widths that fit 80 columns with the two marker columns (the longest rule label is 17). A column
+// widens to its longest cell ('not settled', 'not reached'); when the table then no longer fits,
+// GM and then td are left out.
 const COLS = [
   { head: 'rule', w: 19 },
   { head: 'kc', w: 6 },
@@ -37,30 +40,44 @@ const COLS = [
   { head: 'GM', w: 4 },
 ] as const;
 
-function cells(values: readonly string[]): string {
-  return values.map((v, i) => fit(v, COLS[i].w)).join(' ');
-}
+/** Columns left out, in this order, when the widened table is wider than the panel. */
+const DROP = ['GM', 'td'];
 
 /** The table's lines as text: header, then one line per row ('>' marks the selected one, '!' a flagged one). */
-export function suggestTableLines(view: SuggestView, selected: number): string[] {
-  const out = [`  ${cells(COLS.map((c) => c.head))}`];
-  view.rows.forEach((r, i) => {
+export function suggestTableLines(view: SuggestView, selected: number, width = 80): string[] {
+  const body = view.rows.map((r) => {
     const g = r.edit.gains;
-    const label = `${r.label}${r.oscillation ? ' ~' : ''}`;
-    const line = cells([
-      label,
+    return [
+      `${r.label}${r.oscillation ? ' ~' : ''}`,
       fig(g.kc),
       Number.isFinite(g.ti) ? `${fig(g.ti)} s` : '-',
       g.td > 0 ? `${fig(g.td)} s` : '-',
-      r.diverged ? 'diverged' : Number.isNaN(r.overshootPct) ? '-' : `${fig(r.overshootPct)} %`,
-      r.diverged ? '' : Number.isNaN(r.settlingTime) ? '-' : Number.isFinite(r.settlingTime) ? `${fig(r.settlingTime)} s` : 'never',
+      r.diverged ? 'diverged' : rankedFigureText('overshootPct', r.overshootPct, (x) => fig(x)),
+      r.diverged ? '' : rankedFigureText('settlingTime', r.settlingTime, (x) => fig(x)),
       r.diverged ? '' : fig(r.iae),
       r.ms === Infinity ? 'unst.' : fig(r.ms),
       fig(r.gm),
-    ]);
-    out.push(`${i === selected ? '>' : ' '}${r.flags.length > 0 ? '!' : ' '}${line}`);
+    ];
+  });
+  const widths = COLS.map((c, i) => Math.max(c.w, ...body.map((cells) => cells[i].length)));
+  const keep = COLS.map(() => true);
+  const total = (): number => 2 + widths.reduce((sum, w, i) => sum + (keep[i] ? w + 1 : 0), -1);
+  for (const name of DROP) {
+    if (total() <= width) break;
+    keep[COLS.findIndex((c) => c.head === name)] = false;
+  }
+  const line = (cells: readonly string[]): string => cells.map((v, i) => (keep[i] ? fit(v, widths[i]) : null)).filter((v) => v !== null).join(' ');
+  const out = [`  ${line(COLS.map((c) => c.head))}`];
+  body.forEach((cells, i) => {
+    out.push(`${i === selected ? '>' : ' '}${view.rows[i].flags.length > 0 ? '!' : ' '}${line(cells)}`);
   });
   return out;
+}
+
+/** Which step the overshoot and settling columns come from, for the detail line ('' without a step). */
+export function figuresFrom(head: SuggestView['rows'][number]['head'] | null): string {
+  const from = head === null ? '' : headlineSources(head, ['overshootPct', 'settlingTime'], (x) => fig(x, 4));
+  return from === '' ? '' : `  (figures: ${from})`;
 }
 
 export interface SuggestPanelProps {
@@ -76,7 +93,7 @@ export function SuggestPanel(p: SuggestPanelProps) {
   const v = p.view;
   const rows: Piece[][] = [];
   const progress = v === null ? 'computing…' : v.finished ? `${v.rows.length} rules` : `computing… ${v.done}/${v.total}`;
-  const lines = v === null ? [] : suggestTableLines(v, p.selected);
+  const lines = v === null ? [] : suggestTableLines(v, p.selected, p.width);
   const caution = v !== null && v.rows.some((r) => r.oscillation) ? wrap(`~ ultimate point. ${RELAY_CAUTION}`, p.width) : [];
   const sel = v?.rows[p.selected];
   const detail: Piece[][] = [];
@@ -86,6 +103,8 @@ export function SuggestPanel(p: SuggestPanelProps) {
       { text: gainsText(sel.edit) },
       { text: sel.flags.length > 0 ? `  ! ${sel.flags.join(', ')}` : '', color: t.warn },
     ]);
+    const from = sel.diverged ? '' : figuresFrom(sel.head);
+    if (from !== '') detail.push([{ text: from.trim(), color: t.dim }]);
   }
   if (v !== null && v.finished && v.skipped.length > 0) {
     detail.push([{ text: `not applicable: ${v.skipped.map((k) => `${k.label} (${k.reason})`).join('; ')}`, color: t.dim }]);
