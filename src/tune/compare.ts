@@ -14,6 +14,7 @@ import { lowOrderOf } from './approximation.js';
 import { pathModel } from './path-models.js';
 import { buildController } from '../control/index.js';
 import { diagnosePlant, type Flag } from '../diagnose/index.js';
+import { structureLaw } from '../model/index.js';
 import type { CompareCandidateSpec, ControllerSpec, PlantSpec, StructureName } from '../model/types.js';
 import { runTrial, type TrialResult } from '../sim/index.js';
 import { caseFigures, planSweep, summarise, type RobustnessCase, type RobustnessSummary, type SweepPlan } from './robustness.js';
@@ -100,8 +101,8 @@ export interface CompareResult {
 
 /** A plain-structure candidate spec built on the file's controller settings. */
 function candidateSpec(base: ControllerSpec, named: StructureName, extension?: ControllerSpec['extension']): ControllerSpec {
-  const structure: ControllerSpec['structure'] =
-    named === 'p' || named === 'pi' || named === 'pd' || named === 'pid' ? named : named === 'smith_pi' ? 'pi' : 'pid';
+  // The law of the file's controller decides PI or PID for the structures that wrap one.
+  const structure = structureLaw(named, base.gains.td > 0);
   const gains = { ...base.gains, kc: 1, ti: Infinity, td: 0 };
   if (named === 'pi_d') Object.assign(gains, { b: 1, c: 0 });
   if (named === 'i_pd') Object.assign(gains, { b: 0, c: 0 });

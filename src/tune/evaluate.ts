@@ -2,7 +2,7 @@
  * One gain set on the full simulated loop: the file's trial (nonlinear, saturating, delayed), its
  * metrics, the margins of the linear loop, and the flags that matter for choosing it.
  */
-import { checkRequirements, loopMargins, trialMetrics } from '../analysis/index.js';
+import { checkRequirements, effectiveMs, loopMargins, trialMetrics } from '../analysis/index.js';
 import type { Margins, RequirementResult, TrialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import type { ControllerStructure, GainSet, PlantSpec } from '../model/types.js';
@@ -99,7 +99,7 @@ export function evaluateGains(
     flags.push({ code: 'UNSTABLE_LOOP', message: 'the linearised closed loop is unstable' });
   } else {
     const msLimit = options.msLimit ?? ctx.spec.loop.requirements.maxSensitivity ?? 2;
-    if (margins.maxSensitivity > msLimit) {
+    if (effectiveMs(margins) > msLimit) {
       flags.push({
         code: 'MS_ABOVE_TARGET',
         message: `Ms ${margins.maxSensitivity.toFixed(2)} above ${msLimit} (little robustness)`,

@@ -8,7 +8,7 @@
  * together by sim's batch runner (several loops in one generated function, results bit-identical
  * to one run at a time); `runner: 'sequential'` runs them one at a time, the reference path.
  */
-import { trialMetrics } from '../analysis/index.js';
+import { effectiveMs, trialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { ControllerStructure, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
@@ -435,7 +435,7 @@ export function caseFigures(
     overshootPct: overshoot,
     settlingTime: diverged ? Infinity : settling,
     iae: diverged ? Infinity : metrics.overall.iae,
-    ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+    ms: m === null ? NaN : effectiveMs(m),
   };
 }
 
