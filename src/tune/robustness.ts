@@ -16,7 +16,8 @@ import { Rng } from '../num/index.js';
 import { batchChunks, createTrace, DEFAULT_BATCH_WIDTH, runTrialBatch, trialRows, withParams, type DiscreteController, type PlantDynamics, type Trace, type TrialResult } from '../sim/index.js';
 import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { EnvelopeBuilder, finishEnvelope, mergeEnvelopes, type PartialEnvelope, type TraceEnvelope } from './envelope.js';
-import { gainMargins, simulateGains } from './evaluate.js';
+import { simulateGains } from './evaluate.js';
+import { gainMargins } from './gain-margins.js';
 import { specWithValues } from './uncertain-spec.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 

@@ -19,7 +19,7 @@ import { controllerResponse, effectiveMs, rationalEvaluator } from '../analysis/
 import type { Margins } from '../analysis/index.js';
 import { applyStructure } from '../control/index.js';
 import type { ControllerSpec } from '../model/types.js';
-import { gainMargins } from './evaluate.js';
+import { gainMargins } from './gain-margins.js';
 import { pathModel } from './path-models.js';
 import { startState } from './structure-tuning.js';
 import type { TuningContext } from './tuning-context.js';
