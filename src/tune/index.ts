@@ -49,5 +49,5 @@ export { structureMargins, gridMargins } from './structure-margins.js';
 export type { StructureMargins } from './structure-margins.js';
 export { pathModel, staticGain } from './path-models.js';
 export type { OperatingState, PathInput, PathOutput } from './path-models.js';
-export { compareCandidates, chooseCandidates } from './compare.js';
-export type { CompareOptions, CompareResult, CompareRow, CandidateReport, CandidateOrigin } from './compare.js';
+export { compareCandidates, compareSteps, chooseCandidates, bindingSummary } from './compare.js';
+export type { CompareOptions, CompareResult, CompareRow, CandidateReport, CandidateOrigin, CandidateTuning } from './compare.js';

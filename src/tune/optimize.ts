@@ -11,7 +11,9 @@
  * law's rules and the file's (or the edited) gains, and restarts around its best point. The gains
  * searched run in the file's plain law, or inside a resolved structure (`frame`: Smith predictor,
  * feedforward, cascade, schedule), whose own loop then gives Ms: `compare` tunes every structure
- * this way, to the same Ms target.
+ * this way, to the same Ms target. A cascade's inner PI is searched with the outer gains (log kc,
+ * log ti of each): its Ms, at the actuator, holds both loops, and an inner loop tuned tight by
+ * its rule can use up the whole target on its own.
  *
  * Ranking (`optimizerScore`), in tiers: a probe meeting every constraint scores ln(cost); one
  * that meets Ms but fails a requirement scores UNMET_RANK + the sum of its relative shortfalls
@@ -118,6 +120,8 @@ export interface OptimizeResult {
   feasible: boolean;
   /** The best gain set found, fully evaluated (trial, metrics, margins, flags). */
   best: GainEvaluation;
+  /** The frame the best gains ran in (a cascade's searched inner gains filled in); null without a frame. */
+  bestFrame: ControllerSpec | null;
   /** The starting point when it is a rule (null for given gains or the own ones). */
   startRule: Suggestion | null;
   /** What the start was: a rule's label, the own gains' label or "given gains". */
@@ -236,6 +240,9 @@ function msFeasible(ms: number, msTarget: number): boolean {
   return Number.isNaN(ms) || ms <= msTarget;
 }
 
+/** Factor on kc per step while a start above the Ms target is backed off (common practice, no source). */
+const BACK_OFF = 0.8;
+
 /** Share of the Ms target, or of a requirement's limit, at which it counts as binding (common practice, no source). */
 const BINDING_SHARE = 0.98;
 
@@ -285,7 +292,8 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
   const now = options.now ?? (() => performance.now());
   const t0 = timeLimit === undefined ? 0 : now();
   const law = defaultLaw(ctx, options);
-  const frame = options.frame;
+  const frame0 = options.frame;
+  const innerStart = frame0?.extension?.kind === 'cascade' ? frame0.extension.inner : null;
   const useRequirements = options.requirements ?? true;
   const requirements = spec.loop.requirements;
   const constraints = useRequirements ? timeRequirementNames(requirements) : [];
@@ -295,7 +303,7 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
   // Start candidates: the law's rules one per step, then the own gains (when they run this law).
   const ruleIds = options.start !== undefined ? [] : TUNING_RULES.filter((r) => r.structure === law).map((r) => r.id);
   const own = options.own ?? { label: "the file's gains", gains: spec.loop.controller.gains };
-  const ownCandidate = options.start === undefined && frame === undefined && spec.loop.controller.structure === law;
+  const ownCandidate = options.start === undefined && frame0 === undefined && spec.loop.controller.structure === law;
   const startTotal = ruleIds.length + (ownCandidate ? 1 : 0);
   const candidates: StartCandidate[] = [];
   let startDone = 0;
@@ -313,21 +321,29 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
   let search: Generator<Float64Array, NelderMeadResult, number> | null = null;
   let pending: IteratorResult<Float64Array, NelderMeadResult> | null = null;
   let gainsAt: (x: ArrayLike<number>) => GainSet = () => startGains;
+  let frameAt: (x: ArrayLike<number>) => ControllerSpec | undefined = () => frame0;
   let evaluations = 0;
   let bestCost = Infinity;
   let bestScore = Infinity;
   let bestFeasible = false;
   let bestGains: GainSet = startGains;
+  let bestFrame: ControllerSpec | undefined = frame0;
   let final: OptimizeResult | null = null;
 
-  const evaluate = (g: GainSet): GainEvaluation => evaluateGains(ctx, g, law, { cost, msLimit: msTarget, frame });
+  const evaluate = (g: GainSet, frame: ControllerSpec | undefined): GainEvaluation => evaluateGains(ctx, g, law, { cost, msLimit: msTarget, frame });
+  /** A cascade frame with other inner gains. */
+  const withInner = (f: ControllerSpec, kc: number, ti: number): ControllerSpec => {
+    const ext = f.extension;
+    if (ext?.kind !== 'cascade' || ext.inner === null) return f;
+    return { ...f, extension: { ...ext, inner: { ...ext.inner, kc, ti } } };
+  };
 
   function startOne(): void {
     if (startDone < ruleIds.length) {
       const s = suggestGains(spec, { cost, lambda: options.lambda ?? null, tauc: options.tauc ?? null, robustness: false, context: ctx, rules: [ruleIds[startDone]] });
       for (const x of s.suggestions) candidates.push({ label: x.rule.label, gains: x.gains, evaluation: x.evaluation, rule: x });
     } else if (ownCandidate) {
-      ownEvaluation = evaluate(own.gains);
+      ownEvaluation = evaluate(own.gains, frame0);
       candidates.push({ label: own.label, gains: own.gains, evaluation: ownEvaluation, rule: null });
     }
     startDone++;
@@ -352,12 +368,17 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
     if (hasIntegral(law) && !(start.ti > 0 && Number.isFinite(start.ti))) start = { ...start, ti: 10 * spec.loop.sampleTime };
     if (hasDerivative(law) && !(start.td > 0)) start = { ...start, td: hasIntegral(law) ? start.ti / 8 : 10 * spec.loop.sampleTime };
     if (start.kc === 0 || !Number.isFinite(start.kc)) throw new RangeError('start gain kc must be finite and non-zero');
+    const backed = backOff(start);
+    start = backed.gains;
     const sign = start.kc < 0 ? -1 : 1;
     const h = spec.loop.sampleTime;
     // Coordinates: log |kc|, then log ti and log td when the law has them.
     const iTi = hasIntegral(law) ? 1 : -1;
     const iTd = hasDerivative(law) ? (iTi < 0 ? 1 : 2) : -1;
-    const dims = 1 + (iTi > 0 ? 1 : 0) + (iTd > 0 ? 1 : 0);
+    const outerDims = 1 + (iTi > 0 ? 1 : 0) + (iTd > 0 ? 1 : 0);
+    const inner = backed.frame?.extension?.kind === 'cascade' ? backed.frame.extension.inner : null;
+    const searchInner = inner !== null && inner.kc !== 0 && Number.isFinite(inner.kc) && inner.ti > 0 && Number.isFinite(inner.ti);
+    const dims = outerDims + (searchInner ? 2 : 0);
     const x0 = new Float64Array(dims);
     const lower = new Float64Array(dims);
     const upper = new Float64Array(dims);
@@ -375,6 +396,19 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
       lower[iTd] = Math.log(h / 10);
       upper[iTd] = (iTi > 0 ? x0[iTi] : x0[iTd]) + Math.log(1e2);
     }
+    if (searchInner) {
+      const k = outerDims;
+      x0[k] = Math.log(Math.abs(inner.kc));
+      lower[k] = x0[k] - Math.log(1e3);
+      upper[k] = x0[k] + Math.log(1e3);
+      x0[k + 1] = Math.log(inner.ti);
+      lower[k + 1] = Math.log(h);
+      upper[k + 1] = x0[k + 1] + Math.log(1e3);
+      const innerSign = inner.kc < 0 ? -1 : 1;
+      const f = backed.frame!;
+      frameAt = (x) => withInner(f, innerSign * Math.exp(x[k]), Math.exp(x[k + 1]));
+    } else frameAt = () => backed.frame;
+    bestFrame = backed.frame;
     const base = start;
     gainsAt = (x) => ({
       ...base,
@@ -388,18 +422,45 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
       lower,
       upper,
       maxEvaluations,
-      fTolerance: 1e-6,
-      xTolerance: 1e-4,
+      fTolerance: 1e-4,
+      xTolerance: 1e-3,
       restarts: 2,
     });
     pending = search.next();
     phase = 'search';
   }
 
+  /**
+   * A start above the Ms target has its kc lowered (by BACK_OFF a check, each check an
+   * evaluation) until it meets the target: in the Ms tier every score sits near INFEASIBLE_RANK,
+   * where the simplex's relative convergence test cannot tell Ms values apart and would stop at
+   * once. Lowering the gain is the practitioner's first move on a loop that is not robust enough.
+   */
+  function backOff(g: GainSet): { gains: GainSet; frame: ControllerSpec | undefined } {
+    // A cascade lowers both gains: its Ms at the actuator holds the inner loop too.
+    const inner = innerStart;
+    const at = (factor: number): { gains: GainSet; frame: ControllerSpec | undefined } => ({
+      gains: { ...g, kc: g.kc * factor },
+      frame: frame0 !== undefined && inner !== null ? withInner(frame0, inner.kc * factor, inner.ti) : frame0,
+    });
+    let out = at(1);
+    let ms = gainSetMs(ctx, out.gains, law, out.frame).ms;
+    let factor = 1;
+    while (!msFeasible(ms, msTarget) && evaluations < maxEvaluations - 1 && factor > 1e-3) {
+      evaluations++;
+      factor *= BACK_OFF;
+      out = at(factor);
+      ms = gainSetMs(ctx, out.gains, law, out.frame).ms;
+    }
+    if (factor < 1) notes.push(`the start (${startLabel}) had Ms above ${msTarget}: kc lowered by a factor ${Number(factor.toPrecision(3))} before the search`);
+    return out;
+  }
+
   /** Score one probe: Ms first (no simulation when it fails), then the trial. */
   function score(x: Float64Array): number {
     evaluations++;
     const g = gainsAt(x);
+    const frame = frameAt(x);
     const { ms } = gainSetMs(ctx, g, law, frame);
     let s: number;
     let c = Infinity;
@@ -415,6 +476,7 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
     if (s < bestScore) {
       bestScore = s;
       bestGains = g;
+      bestFrame = frame;
       bestFeasible = s < UNMET;
       if (bestFeasible && c < bestCost) bestCost = c;
     }
@@ -476,7 +538,7 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
       if (stoppedBy === 'time') out.push(`stopped by the ${timeLimit} ms time limit: the result depends on this machine's speed`);
       if (bestScore >= INFEASIBLE) out.push(`no gain set found that meets Ms <= ${msTarget}`);
       else if (bestScore >= UNMET) out.push("no gain set found that meets all of the file's requirements: the result is the nearest found (see its flags)");
-      const best = evaluate(bestGains);
+      const best = evaluate(bestGains, bestFrame);
       const r: OptimizeResult = {
         structure: law,
         cost,
@@ -484,6 +546,7 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
         constraints,
         feasible: bestFeasible,
         best,
+        bestFrame: bestFrame ?? null,
         startRule,
         startLabel,
         startCost,
