@@ -172,6 +172,13 @@ describe('optimizeGains on the surge tank demo (saturated_time 10 min in the fil
   const file = join(__dirname, '..', '..', 'plants', 'surge-tank.yaml');
   const spec = loadPlant(readFileSync(file, 'utf8'), file).plant!;
   const r = optimizeGains(spec);
+  it('is bit-identical run to run with the default budget (no clock decides anything)', () => {
+    const again = optimizeGains(spec);
+    expect(again.best.gains).toEqual(r.best.gains);
+    expect(again.best.cost).toBe(r.best.cost);
+    expect(again.evaluations).toBe(r.evaluations);
+    expect(again.stoppedBy).toBe(r.stoppedBy);
+  });
   it("starts from the file's gains (every rule keeps the valve at a limit too long) and ends inside every requirement", () => {
     expect(r.startLabel).toBe("the file's gains");
     expect(r.feasible).toBe(true);
