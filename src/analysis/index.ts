@@ -35,6 +35,8 @@ export { plantFrequencyResponse, rationalEvaluator, controllerResponse, loopPoin
 export type { PlantFrequencyResponse, FrequencyGridOptions, RationalEvaluator, LoopExtras } from './freq-response.js';
 export { loopMargins, loopExtras } from './margins.js';
 export type { Margins } from './margins.js';
+export { effectiveMs } from './effective-ms.js';
+export type { MsSource } from './effective-ms.js';
 export { closedLoopCheck } from './closed-loop.js';
 export type { ClosedLoopCheck } from './closed-loop.js';
 export { halfRule } from './half-rule.js';

@@ -13,7 +13,7 @@
  * oscillatory pair close to it together, and leaves out the higher branches of a dead-time loop
  * (for s + a e^(−θ s) = 0 with aθ = 0.5 the second branch decays 3.5 times faster than the first).
  */
-import { closedLoopCheck, loopExtras } from '../analysis/index.js';
+import { closedLoopCheck, effectiveMs, loopExtras } from '../analysis/index.js';
 import type { Margins, RequirementResult } from '../analysis/index.js';
 import type { GainSet, PlantSpec, Requirements } from '../model/types.js';
 import {
@@ -125,7 +125,7 @@ function frequencyFigures(ctx: TuningContext, gains: GainSet, wanted: ReadonlySe
   const unstableNote = unstable ? 'closed loop unstable' : '';
   const at = (w: number): string => (Number.isFinite(w) ? `at ${num(w, 3)} rad/s` : '');
   out.set('max_sensitivity', {
-    measured: unstable ? Infinity : m.maxSensitivity,
+    measured: effectiveMs(m),
     available: true,
     note: unstable ? unstableNote : at(m.maxSensitivityFrequency),
   });

@@ -10,7 +10,7 @@ Usage:
   looprig diagnose FILE          is plain PID enough? operating point, poles and zeros, margins, flags
   looprig suggest FILE           every published tuning rule, each simulated on the full plant
   looprig optimize FILE          gains that minimise IAE (or ITAE) subject to Ms <= 1.6; --write saves
-  looprig compare FILE           controller structures side by side on the same trial
+  looprig compare FILE           controller structures side by side, each tuned to the same Ms
   looprig fit LOG.csv            fit a model to a logged bump test; --out writes a plant file
   looprig export FILE            the gains in your controller's form and units, and discrete
                                  velocity-form coefficients

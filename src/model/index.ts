@@ -28,6 +28,7 @@ export { CONSTANTS, FUNCTION_NAMES, FUNCTIONS, MATH_HELPERS, type FunctionInfo, 
 
 export { compilePlant, linearSources, odeSlots } from './compile-plant.js';
 export { realizeLinear, realizeTransfer, type LinearModelSpec } from './realize.js';
+export { structureLaw } from './structure-law.js';
 export { FORM_TERMS, fromIdeal, seriesRealizable, toIdeal, type IdealTerms, type ParallelTerms } from './pid-forms.js';
 export { DEFAULT_ACTUATOR } from './schema/actuator.js';
 export { DEFAULT_SENSOR } from './schema/sensor.js';

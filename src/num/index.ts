@@ -6,7 +6,7 @@ export { luFactor, luSolve, solve, determinant, matMul, matVec, identity, transp
 export { eigenvalues, eigenvector, balance, hessenberg, hessenbergEigenvalues } from './eig.js';
 export type { Eigenvalues } from './eig.js';
 export { polyTrim, polyEval, polyEvalComplex, polyMul, polyAdd, polyFromRoots, polyRoots } from './poly.js';
-export { nelderMead } from './nelder-mead.js';
+export { nelderMead, nelderMeadSearch } from './nelder-mead.js';
 export type { NelderMeadOptions, NelderMeadResult } from './nelder-mead.js';
 export { Rng } from './rng.js';
 export { levenbergMarquardt, leastSquaresCovariance } from './levenberg-marquardt.js';

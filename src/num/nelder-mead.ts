@@ -45,6 +45,23 @@ export function nelderMead(
   x0: ArrayLike<number>,
   options: NelderMeadOptions = {},
 ): NelderMeadResult {
+  const search = nelderMeadSearch(x0, options);
+  let next = search.next();
+  while (!next.done) next = search.next(f(next.value));
+  return next.value;
+}
+
+/**
+ * The same search as `nelderMead`, driven from outside one evaluation at a time, so a caller can
+ * stop between evaluations and go on later (a screen that must keep answering keys): each
+ * `next(value)` hands in f at the point the previous step yielded and yields the next point
+ * (the first `next()` takes no value). The yielded array is reused: read it before the next call.
+ * Returns the result when the search ends.
+ */
+export function* nelderMeadSearch(
+  x0: ArrayLike<number>,
+  options: NelderMeadOptions = {},
+): Generator<Float64Array, NelderMeadResult, number> {
   const n = x0.length;
   if (n === 0) throw new RangeError('nelderMead: x0 is empty');
   const lower = options.lower;
@@ -66,13 +83,8 @@ export function nelderMead(
     }
   };
   let evaluations = 0;
-  const evaluate = (x: Float64Array): number => {
-    clamp(x);
-    evaluations++;
-    const v = f(x);
-    // A non-finite cost is treated as +Infinity so the simplex moves away from it.
-    return Number.isFinite(v) ? v : Infinity;
-  };
+  // A non-finite cost is treated as +Infinity so the simplex moves away from it.
+  const finite = (v: number): number => (Number.isFinite(v) ? v : Infinity);
 
   // n+1 vertices, each a Float64Array; values fv.
   const simplex: Float64Array[] = [];
@@ -84,7 +96,8 @@ export function nelderMead(
   const xc = new Float64Array(n);
   const best = Float64Array.from(x0);
   clamp(best);
-  let fBest = evaluate(Float64Array.from(best));
+  evaluations++;
+  let fBest = finite(yield Float64Array.from(best));
   let converged = false;
 
   for (let run = 0; run <= restarts && evaluations < maxEval; run++) {
@@ -98,7 +111,9 @@ export function nelderMead(
       if (upper && v[j - 1] + s > upper[j - 1]) s = -s;
       if (lower && v[j - 1] + s < lower[j - 1]) s = -s;
       v[j - 1] += s;
-      fv[j] = evaluate(v);
+      clamp(v);
+      evaluations++;
+      fv[j] = finite(yield v);
     }
     converged = false;
     while (evaluations < maxEval) {
@@ -136,10 +151,14 @@ export function nelderMead(
         for (let i = 0; i < n; i++) centroid[i] += simplex[j][i] / n;
       }
       for (let i = 0; i < n; i++) xr[i] = centroid[i] + (centroid[i] - simplex[hi][i]);
-      const fr = evaluate(xr);
+      clamp(xr);
+      evaluations++;
+      const fr = finite(yield xr);
       if (fr < fv[lo]) {
         for (let i = 0; i < n; i++) xe[i] = centroid[i] + 2 * (centroid[i] - simplex[hi][i]);
-        const fe = evaluate(xe);
+        clamp(xe);
+        evaluations++;
+        const fe = finite(yield xe);
         if (fe < fr) {
           simplex[hi].set(xe);
           fv[hi] = fe;
@@ -161,7 +180,9 @@ export function nelderMead(
           ? centroid[i] + 0.5 * (xr[i] - centroid[i])
           : centroid[i] + 0.5 * (simplex[hi][i] - centroid[i]);
       }
-      const fc = evaluate(xc);
+      clamp(xc);
+      evaluations++;
+      const fc = finite(yield xc);
       if (fc < (outside ? fr : fv[hi])) {
         simplex[hi].set(xc);
         fv[hi] = fc;
@@ -171,7 +192,9 @@ export function nelderMead(
       for (let j = 0; j <= n; j++) {
         if (j === lo) continue;
         for (let i = 0; i < n; i++) simplex[j][i] = simplex[lo][i] + 0.5 * (simplex[j][i] - simplex[lo][i]);
-        fv[j] = evaluate(simplex[j]);
+        clamp(simplex[j]);
+        evaluations++;
+        fv[j] = finite(yield simplex[j]);
       }
     }
     let lo = 0;

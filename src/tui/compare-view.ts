@@ -4,7 +4,7 @@
  * lines. The figures all come from tune/'s `compareCandidates`; this file only lays them out.
  */
 import { rankedFigureText } from '../analysis/index.js';
-import type { CandidateReport, CompareResult } from '../tune/index.js';
+import { bindingSummary, type CandidateReport, type CompareResult } from '../tune/index.js';
 import type { ChartSeries } from './chart.js';
 import { chartPoints } from './decimate.js';
 import { GLYPHS } from './theme.js';
@@ -90,7 +90,7 @@ function f(x: number, digits = 3): string {
  * Columns left out, in this order, when the table is wider than the screen: the least needed to
  * choose between candidates first. The candidate's name and the step figures stay.
  */
-const DROP_ORDER: readonly string[] = ['peak u', 'td', 'IAE dist', 'worst Ms', 'ti', 'settling', 'structure'];
+const DROP_ORDER: readonly string[] = ['peak u', 'td', 'IAE dist', 'worst Ms', 'binds', 'ti', 'settling', 'structure'];
 
 /**
  * The table as fixed-width text lines: a header, then one line per candidate (all of them).
@@ -118,12 +118,12 @@ export function compareTable(result: CompareResult, width = Infinity): string[] 
 }
 
 function tableCells(result: CompareResult): string[][] {
-  const head = ['candidate', 'structure', 'kc', 'ti', 'td', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'Ms', 'worst Ms'];
+  const head = ['candidate', 'structure', 'kc', 'ti', 'td', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'Ms', 'binds', 'worst Ms'];
   const rows: string[][] = [head];
   for (const c of result.candidates) {
     const r = c.row;
     if (c.unavailable !== null || c.controller === null) {
-      rows.push([c.name, c.structure, 'not set up', '', '', '', '', '', '', '', '', '']);
+      rows.push([c.name, c.structure, 'not set up', '', '', '', '', '', '', '', '', '', '']);
       continue;
     }
     rows.push([
@@ -138,6 +138,7 @@ function tableCells(result: CompareResult): string[][] {
       r.status === 'diverged' ? 'diverged' : f(r.iaeDisturbance),
       f(r.peakOutput),
       r.maxSensitivity === Infinity ? 'unstable' : f(r.maxSensitivity),
+      bindingSummary(c),
       r.worst === null ? '-' : r.worst.anyDiverged ? 'diverges' : f(r.worst.worstMs),
     ]);
   }

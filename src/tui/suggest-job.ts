@@ -6,6 +6,7 @@
  */
 import { headlineMetrics, headlineNumber } from '../analysis/index.js';
 import type { GainFlag, Suggestion } from '../tune/index.js';
+import { effectiveMs } from '../analysis/index.js';
 import { suggestGains, TUNING_RULES } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
 import type { GainEdit } from './state.js';
@@ -39,7 +40,7 @@ export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
     head,
     iae: e.metrics.overall.iae,
     diverged: e.result.status !== 'ok',
-    ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+    ms: m === null ? NaN : effectiveMs(m),
     gm: m === null ? NaN : m.gainMargin,
     flags,
     oscillation: s.rule.usesUltimate,

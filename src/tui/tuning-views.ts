@@ -66,7 +66,7 @@ export interface OptimizeView {
   /** 'IAE' / 'ITAE'. */
   readonly costLabel: string;
   readonly msTarget: number;
-  readonly structure: 'pi' | 'pid';
+  readonly structure: ControllerStructure;
   readonly slices: number;
 }
 

@@ -4,22 +4,32 @@
  * plant file's uncertainty ranges.
  *
  * Candidates are the file's `compare:` list; without one they are chosen here: the file's own
- * controller as written, the plain law of its structure with SIMC starting gains, and one more
- * structure per diagnosis finding that calls for it (see `chooseCandidates`). A candidate without
- * gains gets its structure's starting gains (structure-tuning.ts), so the comparison needs no
- * hand work.
+ * controller as written, the plain law of its structure, and one more structure per diagnosis
+ * finding that calls for it (see `chooseCandidates`).
+ *
+ * A fair fight: a candidate without gains starts from its structure's rule gains
+ * (structure-tuning.ts) and is then tuned by the optimiser (optimize.ts) on the full plant, to
+ * the same Ms target (the file's max_sensitivity requirement, else 1.6) and under the same
+ * requirements and actuator limits as every other. Rule gains alone would not do: each rule
+ * aims at its own robustness (a Smith predictor's PI tuned to the plain loop's speed wastes the
+ * dead time it removes), so the table would compare the rules' choices, not the structures.
+ * Candidates with gains written in the file run as written. Each row says which constraint held
+ * the tuned candidate back (Ms, a requirement, actuator saturation, the budget).
  */
-import { headlineMetrics, headlineNumber, trialMetrics, type TrialMetrics } from '../analysis/index.js';
+import { effectiveMs, headlineMetrics, headlineNumber, trialMetrics, type TrialMetrics } from '../analysis/index.js';
 import { lowOrderOf } from './approximation.js';
 import { pathModel } from './path-models.js';
 import { buildController } from '../control/index.js';
 import { diagnosePlant, type Flag } from '../diagnose/index.js';
+import { structureLaw } from '../model/index.js';
 import type { CompareCandidateSpec, ControllerSpec, PlantSpec, StructureName } from '../model/types.js';
 import { runTrial, type TrialResult } from '../sim/index.js';
 import { caseFigures, planSweep, summarise, type RobustnessCase, type RobustnessSummary, type SweepPlan } from './robustness.js';
 import { structureMargins, type StructureMargins } from './structure-margins.js';
 import { resolveController, startState, StructureUnavailable, trialSetpoints } from './structure-tuning.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
+import { frameWithGains } from './gain-sets.js';
+import { createOptimizer, DEFAULT_EVALUATIONS, DEFAULT_MS_TARGET, type BindingConstraint, type OptimizeStop } from './optimize.js';
 
 /** Options of `compareCandidates`. */
 export interface CompareOptions {
@@ -29,6 +39,24 @@ export interface CompareOptions {
   candidates?: CompareCandidateSpec[];
   /** A prepared context of the plant file (to share with other work). */
   context?: TuningContext;
+  /** Ms target of the tuned candidates (default: the file's max_sensitivity requirement, else 1.6). */
+  msTarget?: number;
+  /** Optimiser evaluations per tuned candidate (default the optimiser's budget); 0 = rule gains only. */
+  evaluations?: number;
+}
+
+/** How a candidate without gains was tuned (null in a report: gains as written). */
+export interface CandidateTuning {
+  /** The rule gains it started from, their cost and the optimiser's result. */
+  startCost: number;
+  cost: number;
+  msTarget: number;
+  evaluations: number;
+  stoppedBy: OptimizeStop;
+  /** Whether the tuned gains meet Ms and the file's requirements. */
+  feasible: boolean;
+  /** What held it back (see optimize.ts `bindingConstraints`). */
+  binding: BindingConstraint[];
 }
 
 /** Why a candidate is in the comparison. */
@@ -64,6 +92,8 @@ export interface CompareRow {
   phaseMarginDeg: number;
   /** Worst case over the uncertainty (nominal included); null when not run. */
   worst: RobustnessSummary | null;
+  /** What held a tuned candidate back, in words (empty: gains as written, or nothing binds). */
+  binding: string[];
   status: 'ok' | 'diverged' | 'unavailable';
 }
 
@@ -81,6 +111,8 @@ export interface CandidateReport {
   result: TrialResult | null;
   metrics: TrialMetrics | null;
   margins: StructureMargins | null;
+  /** How its gains were tuned (null: as written). */
+  tuning: CandidateTuning | null;
   row: CompareRow;
 }
 
@@ -95,13 +127,15 @@ export interface CompareResult {
   rows: CompareRow[];
   /** Uncertainty cases per candidate (0 = nominal only). */
   sweepCases: number;
+  /** The Ms target the tuned candidates were held to. */
+  msTarget: number;
   notes: string[];
 }
 
 /** A plain-structure candidate spec built on the file's controller settings. */
 function candidateSpec(base: ControllerSpec, named: StructureName, extension?: ControllerSpec['extension']): ControllerSpec {
-  const structure: ControllerSpec['structure'] =
-    named === 'p' || named === 'pi' || named === 'pd' || named === 'pid' ? named : named === 'smith_pi' ? 'pi' : 'pid';
+  // The law of the file's controller decides PI or PID for the structures that wrap one.
+  const structure = structureLaw(named, base.gains.td > 0);
   const gains = { ...base.gains, kc: 1, ti: Infinity, td: 0 };
   if (named === 'pi_d') Object.assign(gains, { b: 1, c: 0 });
   if (named === 'i_pd') Object.assign(gains, { b: 0, c: 0 });
@@ -142,7 +176,7 @@ export function chooseCandidates(ctx: TuningContext, flags: readonly Flag[]): { 
   const plain: StructureName = base.extension === undefined ? fileName : base.structure;
   choices.push({
     spec: { name: `${plain} SIMC`, controller: candidateSpec(base, plain), autoGains: true },
-    origin: { kind: 'baseline', flags: [], reason: `the plain ${plain} law with SIMC starting gains: the reference the structures must beat` },
+    origin: { kind: 'baseline', flags: [], reason: `the plain ${plain} law from SIMC gains, tuned like the structures: the reference they must beat` },
   });
   const has = (k: string): Flag | undefined => flags.find((f) => f.kind === k);
   const dt = has('dead_time_dominant');
@@ -302,6 +336,7 @@ function emptyRow(name: string, structure: StructureName): CompareRow {
     gainMargin: NaN,
     phaseMarginDeg: NaN,
     worst: null,
+    binding: [],
     status: 'unavailable',
   };
 }
@@ -314,11 +349,49 @@ function runOne(ctx: TuningContext, spec: ControllerSpec): { result: TrialResult
 }
 
 function msOf(m: StructureMargins | null): number {
-  if (m === null) return NaN;
-  return m.closedLoopStable === false ? Infinity : m.maxSensitivity;
+  return m === null ? NaN : effectiveMs(m);
 }
 
-function evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null): CandidateReport {
+/**
+ * What held a candidate back, for a table cell: the kinds of its binding constraints ('ms',
+ * 'requirement', 'saturation', 'budget'), 'none' for an interior optimum, 'as written' for gains
+ * from the file.
+ */
+export function bindingSummary(c: CandidateReport): string {
+  if (c.tuning === null) return 'as written';
+  const kinds = [...new Set(c.tuning.binding.map((b) => b.kind))];
+  return kinds.length === 0 ? 'none' : kinds.join(',');
+}
+
+/** Tuning of the candidates without gains: the same target and budget for each. */
+interface FairFight {
+  msTarget: number;
+  evaluations: number;
+}
+
+/** Optimiser evaluations between two pauses of a comparison run in slices. */
+const UNITS_PER_PAUSE = 5;
+
+/** The optimiser on a resolved candidate, from its rule gains: the tuned spec and how it went. Pauses (yields) every few evaluations. */
+function* tuneCandidate(ctx: TuningContext, resolved: ControllerSpec, fight: FairFight): Generator<void, { spec: ControllerSpec; tuning: CandidateTuning }> {
+  const opt = createOptimizer(ctx, { frame: resolved, start: resolved.gains, startLabel: 'rule gains', msTarget: fight.msTarget, maxEvaluations: fight.evaluations });
+  while (!opt.step(UNITS_PER_PAUSE)) yield;
+  const r = opt.result();
+  return {
+    spec: frameWithGains(r.bestFrame ?? resolved, r.best.gains),
+    tuning: {
+      startCost: r.startCost,
+      cost: r.best.cost,
+      msTarget: r.msTarget,
+      evaluations: r.evaluations,
+      stoppedBy: r.stoppedBy,
+      feasible: r.feasible,
+      binding: r.binding,
+    },
+  };
+}
+
+function* evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null, fight: FairFight): Generator<void, CandidateReport> {
   const c = choice.spec;
   const structure: StructureName = c.controller.named ?? c.controller.structure;
   const report: CandidateReport = {
@@ -332,6 +405,7 @@ function evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null): C
     result: null,
     metrics: null,
     margins: null,
+    tuning: null,
     row: emptyRow(c.name, structure),
   };
   let resolved: ControllerSpec;
@@ -340,6 +414,12 @@ function evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null): C
     resolved = r.controller;
     report.basis = r.basis;
     report.notes = r.notes;
+    if (c.autoGains && fight.evaluations > 0) {
+      const t = yield* tuneCandidate(ctx, resolved, fight);
+      resolved = t.spec;
+      report.tuning = t.tuning;
+      report.basis.push(`gains tuned from there by the optimiser to Ms <= ${t.tuning.msTarget} (${t.tuning.evaluations} evaluations, ${t.tuning.stoppedBy})`);
+    }
   } catch (e) {
     if (!(e instanceof StructureUnavailable || e instanceof RangeError)) throw e;
     report.unavailable = e.message;
@@ -388,6 +468,7 @@ function evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null): C
     gainMargin: report.margins?.gainMargin ?? NaN,
     phaseMarginDeg: report.margins?.phaseMarginDeg ?? NaN,
     worst,
+    binding: report.tuning?.binding.map((b) => b.text) ?? [],
     status: run.result.status,
   };
   return report;
@@ -402,6 +483,17 @@ function caseWithMs(c: RobustnessCase, ms: number): RobustnessCase {
  * Candidates that cannot be set up on this plant are reported with the reason, not dropped.
  */
 export function compareCandidates(spec: PlantSpec, options: CompareOptions = {}): CompareResult {
+  const run = compareSteps(spec, options);
+  let next = run.next();
+  while (!next.done) next = run.next();
+  return next.value;
+}
+
+/**
+ * `compareCandidates` as a run that pauses (yields) every few units of work, for a screen that
+ * must keep answering keys; its result is the same, figure for figure.
+ */
+export function* compareSteps(spec: PlantSpec, options: CompareOptions = {}): Generator<void, CompareResult> {
   const ctx = options.context ?? tuningContext(spec);
   const notes = [...ctx.notes];
   let flags: Flag[] = [];
@@ -431,7 +523,15 @@ export function compareCandidates(spec: PlantSpec, options: CompareOptions = {})
     plan = planSweep(spec, { corners: rb.corners ?? true, samples: rb.samples ?? 0, seed: rb.seed, nominal: false }, ctx);
     for (const n of new Set(plan.notes)) notes.push(`uncertainty cases: ${n}`);
   }
-  const candidates = choices.map((c) => evaluate(ctx, c, plan));
+  const fight: FairFight = {
+    msTarget: options.msTarget ?? spec.loop.requirements.maxSensitivity ?? DEFAULT_MS_TARGET,
+    evaluations: options.evaluations ?? DEFAULT_EVALUATIONS,
+  };
+  const candidates: CandidateReport[] = [];
+  for (const c of choices) {
+    candidates.push(yield* evaluate(ctx, c, plan, fight));
+    yield;
+  }
   return {
     plantName: spec.name,
     source,
@@ -439,6 +539,7 @@ export function compareCandidates(spec: PlantSpec, options: CompareOptions = {})
     candidates,
     rows: candidates.map((c) => c.row),
     sweepCases: plan === null ? 0 : plan.cases.length,
+    msTarget: fight.msTarget,
     notes,
   };
 }

@@ -8,7 +8,7 @@
  * together by sim's batch runner (several loops in one generated function, results bit-identical
  * to one run at a time); `runner: 'sequential'` runs them one at a time, the reference path.
  */
-import { headlineMetrics, headlineNumber, trialMetrics } from '../analysis/index.js';
+import { effectiveMs, headlineMetrics, headlineNumber, trialMetrics } from '../analysis/index.js';
 import { applyStructure, buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { ControllerStructure, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
@@ -16,7 +16,8 @@ import { Rng } from '../num/index.js';
 import { batchChunks, createTrace, DEFAULT_BATCH_WIDTH, runTrialBatch, trialRows, withParams, type DiscreteController, type PlantDynamics, type Trace, type TrialResult } from '../sim/index.js';
 import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { EnvelopeBuilder, finishEnvelope, mergeEnvelopes, type PartialEnvelope, type TraceEnvelope } from './envelope.js';
-import { gainMargins, simulateGains } from './evaluate.js';
+import { simulateGains } from './evaluate.js';
+import { gainMargins } from './gain-margins.js';
 import { specWithValues } from './uncertain-spec.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 
@@ -431,7 +432,7 @@ export function caseFigures(
     overshootPct: overshoot,
     settlingTime: diverged ? Infinity : settling,
     iae: diverged ? Infinity : metrics.overall.iae,
-    ms: m === null ? NaN : m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+    ms: m === null ? NaN : effectiveMs(m),
   };
 }
 

@@ -15,11 +15,11 @@
  * margins are read on the grid (crossings by linear interpolation between grid points) and the
  * closed-loop stability is not checked here (null: the trial shows it).
  */
-import { controllerResponse, rationalEvaluator } from '../analysis/index.js';
+import { controllerResponse, effectiveMs, rationalEvaluator } from '../analysis/index.js';
 import type { Margins } from '../analysis/index.js';
 import { applyStructure } from '../control/index.js';
 import type { ControllerSpec } from '../model/types.js';
-import { gainMargins } from './evaluate.js';
+import { gainMargins } from './gain-margins.js';
 import { pathModel } from './path-models.js';
 import { startState } from './structure-tuning.js';
 import type { TuningContext } from './tuning-context.js';
@@ -79,7 +79,7 @@ export function structureMargins(ctx: TuningContext, spec: ControllerSpec): Stru
     if (m === null) return null;
     const notes = ext?.kind === 'scheduled' ? ['schedule: margins at the gains in force at the start'] : [];
     return {
-      maxSensitivity: m.closedLoopStable === false ? Infinity : m.maxSensitivity,
+      maxSensitivity: effectiveMs(m),
       gainMargin: m.gainMargin,
       phaseMarginDeg: m.phaseMarginDeg,
       crossoverFrequency: m.crossoverFrequency,

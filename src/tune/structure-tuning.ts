@@ -13,15 +13,17 @@
  *   neglected lags) with tauc = the dead time the predictor removes: a closed loop as fast as the
  *   plain loop's SIMC target, kept that slow for robustness against dead-time error (common
  *   practice, no source).
- * - feedforward: feedback PI as above; static gain −Gd(0)/Gu(0) from the linear models of the two
+ * The feedback law tuned is the spec's `structure`, decided once by model's `structureLaw` (PI, or
+ * PID when the file's controller has derivative action, for feedforward, cascade and scheduled).
+ * - feedforward: feedback law as above; static gain −Gd(0)/Gu(0) from the linear models of the two
  *   paths; a model lead-lag uses the input path's lag as lead, the disturbance path's as lag, and
  *   their delay difference when positive (Seborg, Edgar & Mellichamp, feedforward chapter, from memory).
  * - cascade: inner PI first, SIMC on u -> inner measurement (true value: no sensor); then the
- *   outer PI by SIMC on the inner loop closed (the input delay by a first-order Padé term, the
+ *   outer law by SIMC on the inner loop closed (the input delay by a first-order Padé term, the
  *   inner law continuous), with tauc at least 3 times the inner loop's closed-loop time
  *   tauc_i + theta_i so the inner loop is the faster one (inner 3-5 times faster: common
  *   practice, no source).
- * - scheduled: at each table row without gains, SIMC PI (PID when the spec has td > 0) on the
+ * - scheduled: at each table row without gains, SIMC on the
  *   linearisation at the steady state where the scheduling variable has that value.
  */
 import { findEquilibrium } from '../analysis/index.js';
@@ -34,7 +36,6 @@ import type {
   GainSet,
   ScheduleSpec,
   SmithSpec,
-  StructureName,
 } from '../model/types.js';
 import { buildController } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
@@ -79,8 +80,6 @@ function fmt(v: number): string {
   const a = Math.abs(v);
   return a !== 0 && (a < 1e-3 || a >= 1e5) ? v.toExponential(3) : String(Number(v.toPrecision(4)));
 }
-
-const named = (spec: ControllerSpec): StructureName => spec.named ?? spec.structure;
 
 function withTerms(base: GainSet, kc: number, ti: number, td: number): GainSet {
   return { ...base, kc, ti, td };
@@ -133,24 +132,6 @@ function modelAt(ctx: TuningContext, op: OperatingState): LinearModel {
   return m;
 }
 
-/** The feedback law a structure name runs, for tuning. */
-function lawOf(name: StructureName, spec: ControllerSpec): 'p' | 'pi' | 'pd' | 'pid' {
-  switch (name) {
-    case 'p':
-    case 'pi':
-    case 'pd':
-    case 'pid':
-      return name;
-    case 'pi_d':
-    case 'i_pd':
-      return 'pid';
-    case 'scheduled':
-      return spec.gains.td > 0 ? 'pid' : 'pi';
-    default:
-      return 'pi';
-  }
-}
-
 /**
  * Fill every model-derived value of a controller spec (and, with `tuneGains`, its feedback gains)
  * for the plant of `ctx`. Throws `StructureUnavailable` when the structure cannot be set up for
@@ -159,7 +140,6 @@ function lawOf(name: StructureName, spec: ControllerSpec): 'p' | 'pi' | 'pd' | '
 export function resolveController(ctx: TuningContext, spec: ControllerSpec, options: ResolveOptions = {}): ResolvedController {
   const basis: string[] = [];
   const notes: string[] = [];
-  const name = named(spec);
   const op = startState(ctx);
   const tune = options.tuneGains ?? false;
   let gains = { ...spec.gains };
@@ -172,7 +152,7 @@ export function resolveController(ctx: TuningContext, spec: ControllerSpec, opti
   switch (extension?.kind) {
     case undefined: {
       if (tune) {
-        const r = simcGains(plainLoop(), lawOf(name, spec), gains);
+        const r = simcGains(plainLoop(), spec.structure, gains);
         gains = r.gains;
         basis.push(`gains: ${r.text}`);
       }
@@ -187,14 +167,14 @@ export function resolveController(ctx: TuningContext, spec: ControllerSpec, opti
     case 'feedforward': {
       extension = resolveFeedforward(ctx, op, extension, basis);
       if (tune) {
-        const r = simcGains(plainLoop(), 'pi', gains);
+        const r = simcGains(plainLoop(), spec.structure, gains);
         gains = r.gains;
         basis.push(`feedback gains: ${r.text}`);
       }
       break;
     }
     case 'cascade': {
-      const r = resolveCascade(ctx, op, extension, gains, tune, basis, notes);
+      const r = resolveCascade(ctx, op, extension, gains, spec.structure, tune, basis, notes);
       extension = r.ext;
       gains = r.gains;
       break;
@@ -393,6 +373,7 @@ function resolveCascade(
   op: OperatingState,
   ext: CascadeSpec,
   gains: GainSet,
+  law: ControllerSpec['structure'],
   tune: boolean,
   basis: string[],
   notes: string[],
@@ -421,8 +402,8 @@ function resolveCascade(
     const theta = lo.fopdt?.theta ?? lo.integrating?.theta ?? NaN;
     const floor = Number.isFinite(innerTime) ? 3 * innerTime : 0;
     const tauc = Math.max(Number.isFinite(theta) ? theta : 0, floor);
-    const r = simcGains(lo, 'pi', gains, tauc > 0 ? tauc : undefined);
-    basis.push(`outer PI: ${r.text} on the inner loop closed; inner closed-loop time ${fmt(innerTime)} s`);
+    const r = simcGains(lo, law, gains, tauc > 0 ? tauc : undefined);
+    basis.push(`outer ${law.toUpperCase()}: ${r.text} on the inner loop closed; inner closed-loop time ${fmt(innerTime)} s`);
     return { ext: { ...ext, inner }, gains: r.gains };
   }
   return { ext: { ...ext, inner }, gains };
@@ -467,7 +448,7 @@ function resolveSchedule(
   basis: string[],
   notes: string[],
 ): { ext: ScheduleSpec; gains: GainSet } {
-  const law = lawOf('scheduled', spec);
+  const law = spec.structure;
   const y0 = trialSetpoints(ctx)[0];
   const table = ext.table.map((row) => {
     if (row.gains !== null && !tune) return row;

@@ -31,7 +31,7 @@ describe('optimize --write on a file on disk', () => {
     copyFileSync('plants/surge-tank.yaml', file);
     const before = readFileSync(file, 'utf8');
     const io = quietIo();
-    const code = await main(['optimize', file, '--write', '--evaluations', '40', '--time', '5s'], io);
+    const code = await main(['optimize', file, '--write', '--evaluations', '40'], io);
     expect(io.stderr).toBe('');
     expect(code).toBe(0);
     const after = readFileSync(file, 'utf8');

@@ -3,7 +3,7 @@
  * and the top-level compare: list: what they load to, and FILE:LINE:COL diagnostics when wrong.
  */
 import { describe, expect, it } from 'vitest';
-import { formatDiagnostic, loadPlant, type Diagnostic, type LoadResult, type PlantSpec } from '../../src/model/index.js';
+import { formatDiagnostic, loadPlant, structureLaw, type Diagnostic, type LoadResult, type PlantSpec } from '../../src/model/index.js';
 
 const errors = (r: LoadResult): Diagnostic[] => r.diagnostics.filter((d) => d.severity === 'error');
 
@@ -76,6 +76,22 @@ describe('structures in loop.controller', () => {
       /^test\.yaml:18:\d+: loop\.controller\.feedforward\.disturbance: the model has no disturbance 'nope' \(it has extra\)/,
     );
     expect(firstError(plant('structure: feedforward\nkc: 3'))).toMatch(/missing field 'feedforward'/);
+  });
+
+  it("feedforward, cascade and scheduled run the law the file's controller writes: PID with td > 0, else PI", () => {
+    // One map (model/structure-law.ts) for the reader, tune's starting gains and compare's candidates.
+    const ffPi = ok(plant('structure: feedforward\nkc: 3\nti: 250 s\nfeedforward: { disturbance: extra }'));
+    expect(ffPi.loop.controller.structure).toBe('pi');
+    const ffPid = ok(plant('structure: feedforward\nkc: 3\nti: 250 s\ntd: 20 s\nfeedforward: { disturbance: extra }'));
+    expect(ffPid.loop.controller.structure).toBe('pid');
+    expect(ffPid.loop.controller.gains.td).toBe(20);
+    expect(ok(plant('structure: cascade\nkc: 2\nti: 100 s\ncascade: { inner_measurement: outflow }')).loop.controller.structure).toBe('pi');
+    expect(ok(plant('structure: cascade\nkc: 2\nti: 100 s\ntd: 5 s\ncascade: { inner_measurement: outflow }')).loop.controller.structure).toBe('pid');
+    const sched = ok(plant('structure: scheduled\nkc: 2\nti: 100 s\nschedule: { table: [{ at: 1, kc: 2, ti: 100 s }, { at: 2, kc: 3, ti: 90 s, td: 4 s }] }'));
+    expect(sched.loop.controller.structure).toBe('pid');
+    expect(structureLaw('smith_pi', true)).toBe('pi');
+    expect(structureLaw('i_pd', false)).toBe('pid');
+    expect(structureLaw('pd', true)).toBe('pd');
   });
 
   it('cascade: inner measurement from model.measurements, inner gains optional', () => {

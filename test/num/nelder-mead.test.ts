@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { nelderMead } from '../../src/num/index.js';
+import { nelderMead, nelderMeadSearch } from '../../src/num/index.js';
 import { expectClose } from '../helpers/expect-close.js';
 
 describe('nelderMead', () => {
@@ -19,6 +19,22 @@ describe('nelderMead', () => {
     const b = nelderMead(f, [0, 0]);
     expect(Array.from(a.x)).toEqual(Array.from(b.x));
     expect(a.evaluations).toBe(b.evaluations);
+  });
+
+  it('driven one evaluation at a time (nelderMeadSearch), stopped and resumed, it is the same search', () => {
+    const f = (x: Float64Array): number => 100 * (x[1] - x[0] * x[0]) ** 2 + (1 - x[0]) ** 2;
+    const whole = nelderMead(f, [-1.2, 1], { maxEvaluations: 400 });
+    const search = nelderMeadSearch([-1.2, 1], { maxEvaluations: 400 });
+    const seen: number[] = [];
+    let next = search.next();
+    while (!next.done) {
+      seen.push(next.value[0]);
+      // A pause between evaluations changes nothing: the generator keeps the simplex.
+      next = search.next(f(next.value));
+    }
+    expect(Array.from(next.value.x)).toEqual(Array.from(whole.x));
+    expect(next.value.evaluations).toBe(whole.evaluations);
+    expect(seen).toHaveLength(whole.evaluations);
   });
 
   it('respects box bounds: minimum of (x − 2)² on [−1, 1] is at the bound x = 1', () => {

@@ -108,7 +108,8 @@ describe('tui aids: optimiser (O)', () => {
     expect(shown(s.frame(), 'Kc')).toBe(kc);
     await s.press('u');
     expect(shown(s.frame(), 'Kc')).toBe('2');
-  });
+    // The whole budget runs on screen (300 evaluations): longer than the default 5 s on a busy machine.
+  }, 4 * LONG);
 
   it('keys are handled while it runs: Esc stops it before the budget and the best so far is offered', async () => {
     const s = await mount('surge-tank.yaml');
@@ -187,8 +188,8 @@ describe('tui aids: comparison view (c)', () => {
     intact(f);
     expect(f).toContain('CASCADE ideal');
     expect(f).toContain('candidate: cascade on jacket');
-    // The screen now runs the cascade: the comparison table gave it 13.8 % overshoot.
-    expect(f).toMatch(/│overshoot\s+≤ 25 %\s+13\.8 %/);
+    // The screen now runs the cascade with the gains the comparison tuned: its table gave 5.24 % overshoot.
+    expect(f).toMatch(/│overshoot\s+≤ 25 %\s+5\.24 %/);
     await s.press('w');
     expect(s.frame()).toContain("candidate 'cascade on jacket' is not the file's controller: not saved");
     await s.press('u');

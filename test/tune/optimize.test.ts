@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { loadPlant } from '../../src/model/index.js';
 import { fopdtPlant, lagCubedPlant, plantFrom } from './plants.js';
-import { INFEASIBLE_RANK, optimizeGains, optimizerScore, requirementShortfall, suggestGains, UNMET_RANK, type OptimizeProgress } from '../../src/tune/index.js';
+import { createOptimizer, INFEASIBLE_RANK, optimizeGains, tuningContext, optimizerScore, requirementShortfall, suggestGains, UNMET_RANK, type OptimizeProgress } from '../../src/tune/index.js';
 
 describe('optimizeGains on the FOPDT reference plant (K=1, T=1, L=0.2)', () => {
   const spec = fopdtPlant({ duration: 30 });
@@ -53,17 +53,38 @@ describe('optimizeGains options and budgets', () => {
     expect(r.stoppedBy).toBe('evaluations');
   });
   it('can be cancelled and returns the best so far', () => {
-    let calls = 0;
-    const r = optimizeGains(spec, {}, undefined, () => ++calls > 5);
+    let evaluations = 0;
+    const r = optimizeGains(spec, {}, (p) => (evaluations = p.evaluations), () => evaluations >= 5);
     expect(r.stoppedBy).toBe('cancelled');
     expect(r.evaluations).toBe(5);
     expect(Number.isFinite(r.best.cost)).toBe(true);
   });
   it('stops at the wall-clock cap (clock injected)', () => {
     let t = 0;
-    const r = optimizeGains(spec, { timeBudgetMs: 100, now: () => (t += 10) });
+    const r = optimizeGains(spec, { timeLimitMs: 100, now: () => (t += 10) });
     expect(r.stoppedBy).toBe('time');
-    expect(r.notes.join(' ')).toMatch(/time cap/);
+    expect(r.notes.join(' ')).toMatch(/time limit/);
+    expect(r.binding.map((b) => b.kind)).toContain('time');
+  });
+  it('without a time limit no clock is read: the budget alone ends the run', () => {
+    const r = optimizeGains(spec, { maxEvaluations: 20, now: () => { throw new Error('clock read'); } });
+    expect(r.evaluations).toBe(20);
+    expect(r.binding.map((b) => b.kind)).toContain('budget');
+  });
+  it('run in steps of any size, stopped and resumed, it gives the one-call result bit for bit', () => {
+    const whole = optimizeGains(spec, { maxEvaluations: 80 });
+    const ctx = tuningContext(spec);
+    for (const n of [1, 7, 1000]) {
+      const opt = createOptimizer(ctx, { maxEvaluations: 80 });
+      let calls = 0;
+      while (!opt.step(n)) calls++;
+      const r = opt.result();
+      expect(r.best.gains).toEqual(whole.best.gains);
+      expect(r.best.cost).toBe(whole.best.cost);
+      expect(r.evaluations).toBe(whole.evaluations);
+      expect(r.startLabel).toBe(whole.startLabel);
+      if (n === 1) expect(calls).toBeGreaterThan(80);
+    }
   });
   it('ITAE and an output-variation weight are costs of their own', () => {
     const itae = optimizeGains(spec, { cost: { kind: 'itae' }, maxEvaluations: 60 });
@@ -134,7 +155,7 @@ loop:
     const ok = bound.best;
     const over = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 3, limit: 2, status: 'fail' as const, reason: null, at: 1 }] };
     const worse = { ...ok, requirements: [{ name: 'overshoot_pct', measured: 5, limit: 2, status: 'fail' as const, reason: null, at: 1 }] };
-    const loose = { ...ok, margins: { ...ok.margins!, maxSensitivity: 2.5 } };
+    const loose = { ...ok, ms: 2.5 };
     expect(optimizerScore(ok, 1.6, true)).toBe(Math.log(ok.cost));
     expect(optimizerScore(over, 1.6, true)).toBeGreaterThanOrEqual(UNMET_RANK);
     expect(optimizerScore(loose, 1.6, true)).toBeGreaterThanOrEqual(INFEASIBLE_RANK);
@@ -142,7 +163,7 @@ loop:
     expect(optimizerScore(worse, 1.6, true)).toBeLessThan(optimizerScore(loose, 1.6, true));
     expect(optimizerScore(over, 1.6, false)).toBe(Math.log(ok.cost));
     // Ms values that differ in the third digit still rank apart (no precision lost to an offset).
-    const looser = { ...ok, margins: { ...ok.margins!, maxSensitivity: 2.501 } };
+    const looser = { ...ok, ms: 2.501 };
     expect(optimizerScore(looser, 1.6, true)).toBeGreaterThan(optimizerScore(loose, 1.6, true));
     expect(requirementShortfall(over.requirements)).toBeCloseTo(0.5, 12);
   });
@@ -152,6 +173,13 @@ describe('optimizeGains on the surge tank demo (saturated_time 10 min in the fil
   const file = join(__dirname, '..', '..', 'plants', 'surge-tank.yaml');
   const spec = loadPlant(readFileSync(file, 'utf8'), file).plant!;
   const r = optimizeGains(spec);
+  it('is bit-identical run to run with the default budget (no clock decides anything)', () => {
+    const again = optimizeGains(spec);
+    expect(again.best.gains).toEqual(r.best.gains);
+    expect(again.best.cost).toBe(r.best.cost);
+    expect(again.evaluations).toBe(r.evaluations);
+    expect(again.stoppedBy).toBe(r.stoppedBy);
+  });
   it("starts from the file's gains (every rule keeps the valve at a limit too long) and ends inside every requirement", () => {
     expect(r.startLabel).toBe("the file's gains");
     expect(r.feasible).toBe(true);

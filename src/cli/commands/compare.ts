@@ -1,12 +1,12 @@
 /**
  * `looprig compare FILE [--json]`: every candidate controller (the file's `compare:` list, or
  * candidates chosen from the diagnosis) on the same trial of the same plant, one table row each:
- * structure, gains, step and disturbance figures, actuator use, margins of the linearised loop
- * and the worst case over the file's uncertainty ranges.
+ * structure, gains, step and disturbance figures, actuator use, margins of the linearised loop,
+ * what held a tuned candidate back, and the worst case over the file's uncertainty ranges.
  */
 import { countOption, onePositional, parseCommandArgs } from '../parse-command.js';
 import type { PlantSpec } from '../../model/types.js';
-import { compareCandidates, type CandidateReport, type CompareResult } from '../../tune/index.js';
+import { bindingSummary, compareCandidates, DEFAULT_EVALUATIONS, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { rankedFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -23,12 +23,18 @@ actuator limit, Ms and gain/phase margins of the linearised loop, and the worst 
 file's uncertainty ranges. The candidates are the file's compare: list; without one they are
 chosen from the diagnosis (dead time -> Smith predictor, nonlinear plant -> gain schedule,
 stepped model disturbance -> feedforward, faster inner measurement -> cascade), and the table
-says which finding led to each. Candidates without gains start from tuned gains.
+says which finding led to each. Candidates without gains start from their structure's rule
+gains and are then tuned by the optimiser on the full plant to the same Ms target and under the
+file's requirements, so each structure shows what it can do; the 'binds' column says what held
+it back (Ms, a requirement, actuator saturation, the evaluation budget).
 
 Options:
-  --json         one JSON document on stdout
-  --samples N    Monte-Carlo samples over the uncertainty per candidate, besides the corners (default 0)
-  --nominal      skip the uncertainty sweep
+  --json           one JSON document on stdout
+  --ms M           Ms target of the tuned candidates (default: the file's max_sensitivity
+                   requirement, else 1.6)
+  --evaluations N  optimiser evaluations per tuned candidate (default 300; 0 = rule gains only)
+  --samples N      Monte-Carlo samples over the uncertainty per candidate, besides the corners (default 0)
+  --nominal        skip the uncertainty sweep
   -h, --help     show this text
 `;
 
@@ -37,6 +43,8 @@ interface CompareArgs {
   json: boolean;
   samples: number;
   nominal: boolean;
+  ms: number | undefined;
+  evaluations: number;
 }
 
 function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
@@ -44,12 +52,17 @@ function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
     json: { type: 'boolean' },
     samples: { type: 'string' },
     nominal: { type: 'boolean' },
+    ms: { type: 'string' },
+    evaluations: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
   if (values.help) return 'help';
   onePositional('compare', positionals);
   const samples = countOption('compare', 'samples', values.samples, 0, 0);
-  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true };
+  const evaluations = countOption('compare', 'evaluations', values.evaluations, DEFAULT_EVALUATIONS, 0);
+  const ms = values.ms === undefined ? undefined : Number(values.ms);
+  if (ms !== undefined && (!(ms > 1) || !Number.isFinite(ms))) throw new UserError('compare: --ms must be a number > 1');
+  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true, ms, evaluations };
 }
 
 function gainsText(c: CandidateReport): string {
@@ -81,14 +94,17 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
     const kinds = r.flags.map((f) => `${f.kind} (${f.severity})`);
     lines.push(`  no compare: list in the file; candidates chosen from the diagnosis: ${kinds.length ? kinds.join(', ') : 'no findings'}`);
   }
+  if (r.candidates.some((c) => c.tuning !== null)) {
+    lines.push(`  candidates without gains tuned by the optimiser to Ms <= ${r.msTarget} and the file's requirements`);
+  }
   lines.push('');
   const rows: string[][] = [
-    ['candidate', 'structure', 'gains', 'rise', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'sat', 'Ms', 'GM', 'PM', 'worst case'],
+    ['candidate', 'structure', 'gains', 'rise', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'sat', 'Ms', 'GM', 'PM', 'binds', 'worst case'],
   ];
   for (const c of r.candidates) {
     const w = c.row;
     if (c.controller === null || c.unavailable !== null) {
-      rows.push([c.name, c.structure, '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', 'not set up']);
+      rows.push([c.name, c.structure, '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', '-', 'not set up']);
       continue;
     }
     const diverged = w.status === 'diverged';
@@ -106,6 +122,7 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
       w.maxSensitivity === Infinity ? 'unstable' : num(w.maxSensitivity, 3),
       num(w.gainMargin, 3, Number.isNaN(w.gainMargin) ? '-' : 'inf'),
       Number.isFinite(w.phaseMarginDeg) ? `${num(w.phaseMarginDeg, 3)} deg` : '-',
+      bindingSummary(c),
       worstText(c),
     ]);
   }
@@ -115,6 +132,7 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
     if (c.row.detail) lines.push(`  ${c.row.detail}`);
     if (c.unavailable !== null) lines.push(`  not set up: ${c.unavailable}`);
     for (const b of c.basis) lines.push(`  from ${b}`);
+    if (c.row.binding.length > 0) lines.push(`  binds: ${c.row.binding.join('; ')}`);
     for (const n of c.notes) lines.push(`  note: ${n}`);
   }
   for (const n of r.notes) lines.push(`note: ${n}`);
@@ -128,6 +146,7 @@ export function compareJson(file: string, plant: PlantSpec, r: CompareResult): u
     source: r.source,
     flags: r.flags.map((f) => ({ kind: f.kind, severity: f.severity, evidence: f.evidence })),
     sweep_cases: r.sweepCases,
+    ms_target: r.msTarget,
     candidates: r.candidates.map((c) => {
       const w = c.row;
       const ext = c.controller?.extension ?? null;
@@ -151,6 +170,15 @@ export function compareJson(file: string, plant: PlantSpec, r: CompareResult): u
         gain_margin: finiteOrNull(w.gainMargin),
         phase_margin_deg: finiteOrNull(w.phaseMarginDeg),
         margins_loop: c.margins?.loop ?? null,
+        tuning: c.tuning && {
+          ms_target: c.tuning.msTarget,
+          start_cost: finiteOrNull(c.tuning.startCost),
+          cost: finiteOrNull(c.tuning.cost),
+          evaluations: c.tuning.evaluations,
+          stopped_by: c.tuning.stoppedBy,
+          feasible: c.tuning.feasible,
+          binding: c.tuning.binding,
+        },
         worst_case: w.worst && {
           cases: w.worst.cases,
           any_diverged: w.worst.anyDiverged,
@@ -175,7 +203,11 @@ export async function compareCommand(args: readonly string[], io: Io): Promise<n
     return 0;
   }
   const { plant } = loadPlantFile(options.file, io);
-  const result = compareCandidates(plant, { robustness: options.nominal ? false : { samples: options.samples } });
+  const result = compareCandidates(plant, {
+    robustness: options.nominal ? false : { samples: options.samples },
+    msTarget: options.ms,
+    evaluations: options.evaluations,
+  });
   io.out(options.json ? toJson(compareJson(options.file, plant, result)) : compareText(plant, result));
   return 0;
 }

@@ -6,7 +6,7 @@
 import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import { controllerEdits, gainNote, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
-import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
+import { createOptimizer, DEFAULT_EVALUATIONS, tuningContext, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import { num, secs } from '../format.js';
@@ -20,7 +20,8 @@ export const OPTIMIZE_USAGE = `Usage: looprig optimize FILE [options]
 Searches PI or PID gains that minimise a cost on the full simulation of the file's trial, subject
 to Ms <= a target, the actuator limits and the file's own requirements (overshoot_pct, rise_time,
 settling_time, steady_state_error, iae, max_output, saturated_time). Starts from the best tuning
-rule; deterministic for a given file within the evaluation budget.
+rule. The evaluation budget bounds the work: the same file gives the same gains on any machine
+(and on the screen); a wall-clock cap applies only with --time-limit.
 
 Options:
   --ms M             upper bound on the sensitivity peak Ms (default: the file's max_sensitivity
@@ -29,7 +30,8 @@ Options:
   --du-weight W      add W times the total variation of the controller output to the cost (default 0)
   --structure pi|pid controller structure (default: the file's)
   --evaluations N    evaluation budget (default 300)
-  --time T           wall-clock cap (default 2s)
+  --time-limit T     also stop after this wall time, e.g. 2s (default none; the result then
+                     depends on the machine's speed)
   --ignore-requirements  optimise under Ms and the actuator limits only
   --write            write the gains into FILE (comments kept)
   --json             one JSON document on stdout
@@ -45,7 +47,7 @@ interface OptimizeArgs {
   duWeight: number;
   structure: 'pi' | 'pid' | null;
   evaluations: number;
-  timeMs: number;
+  timeLimitMs: number | undefined;
   requirements: boolean;
 }
 
@@ -58,7 +60,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     'du-weight': { type: 'string' },
     structure: { type: 'string' },
     evaluations: { type: 'string' },
-    time: { type: 'string' },
+    'time-limit': { type: 'string' },
     'ignore-requirements': { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
   });
@@ -72,8 +74,9 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
   if (!(duWeight >= 0) || !Number.isFinite(duWeight)) throw new UserError('optimize: --du-weight must be >= 0');
   const structure = values.structure ?? null;
   if (structure !== null && structure !== 'pi' && structure !== 'pid') throw new UserError('optimize: --structure must be pi or pid');
-  const evaluations = countOption('optimize', 'evaluations', values.evaluations, 300, 1);
-  const timeMs = (timeOption('optimize', 'time', values.time) ?? 2) * 1000;
+  const evaluations = countOption('optimize', 'evaluations', values.evaluations, DEFAULT_EVALUATIONS, 1);
+  const limit = timeOption('optimize', 'time-limit', values['time-limit']);
+  const timeLimitMs = limit === null ? undefined : limit * 1000;
   return {
     file: positionals[0],
     json: values.json === true,
@@ -83,7 +86,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     duWeight,
     structure,
     evaluations,
-    timeMs,
+    timeLimitMs,
     requirements: values['ignore-requirements'] !== true,
   };
 }
@@ -94,7 +97,7 @@ function progressLine(p: OptimizeProgress, cost: string): string {
   return `\r[${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${p.evaluations}/${p.maxEvaluations}  best ${cost} ${num(p.bestCost)}   `;
 }
 
-function summaryText(plant: PlantSpec, r: OptimizeResult, values: Record<string, number> | null, wrote: string | null): string {
+function summaryText(plant: PlantSpec, r: OptimizeResult, elapsedMs: number, values: Record<string, number> | null, wrote: string | null): string {
   const b = r.best;
   const head = headlineMetrics(b.metrics);
   const from = headlineSources(head, ['overshootPct', 'settlingTime'], num);
@@ -103,10 +106,11 @@ function summaryText(plant: PlantSpec, r: OptimizeResult, values: Record<string,
     `${plant.name}: optimised ${r.structure.toUpperCase()} (${kind}${r.cost.outputVariationWeight > 0 ? ` + ${r.cost.outputVariationWeight} x output variation` : ''}, Ms <= ${r.msTarget})`,
     `  constraints: Ms <= ${r.msTarget}, actuator limits${r.constraints.length > 0 ? `, ${r.constraints.join(', ')} (the file's requirements)` : ''}${r.feasible ? '' : ' - NOT all met'}`,
     `  start: ${r.startLabel}, ${kind} ${num(r.startCost)}`,
-    `  result: ${kind} ${num(b.cost)} after ${r.evaluations} evaluations (${r.stoppedBy}, ${num(r.elapsedMs / 1000, 3)} s)`,
+    `  result: ${kind} ${num(b.cost)} after ${r.evaluations} evaluations (${r.stoppedBy}, ${num(elapsedMs / 1000, 3)} s)`,
     `  gains (${plant.loop.controller.form}): ${values ? Object.entries(values).map(([k, v]) => `${k}=${k === 'ti' || k === 'td' ? secs(v) : num(v)}`).join(' ') : 'not expressible in this form'}`,
-    `  overshoot ${stepFigureText('overshootPct', head.overshootPct, (x) => num(x, 3))}, settling ${stepFigureText('settlingTime', head.settlingTime, num)}${from ? ` (${from})` : ''}, Ms ${b.margins ? num(b.margins.maxSensitivity, 3) : '-'}, GM ${b.margins ? num(b.margins.gainMargin, 3, 'inf') : '-'}`,
+    `  overshoot ${stepFigureText('overshootPct', head.overshootPct, (x) => num(x, 3))}, settling ${stepFigureText('settlingTime', head.settlingTime, num)}${from ? ` (${from})` : ''}, Ms ${Number.isNaN(b.ms) ? '-' : b.ms === Infinity ? 'unstable' : num(b.ms, 3)}, GM ${b.margins ? num(b.margins.gainMargin, 3, 'inf') : '-'}`,
   ];
+  lines.push(`  binding: ${r.binding.length > 0 ? r.binding.map((x) => x.text).join('; ') : 'none (an interior optimum)'}`);
   for (const f of b.flags) lines.push(`  flag: ${f.message}`);
   for (const n of r.notes) lines.push(`note: ${n}`);
   if (wrote) lines.push(`wrote ${wrote}`);
@@ -127,19 +131,20 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     throw new UserError(`optimize: --write: the file's controller structure is ${fileStructure}; set it to ${structure} first (or pass --structure ${fileStructure === 'pid' ? 'pid' : 'pi'})`);
   }
   const showProgress = io.isTTY && !o.json;
-  const result = optimizeGains(
-    plant,
-    {
-      structure,
-      msTarget: o.ms ?? undefined,
-      cost: { kind: o.cost, outputVariationWeight: o.duWeight },
-      maxEvaluations: o.evaluations,
-      timeBudgetMs: o.timeMs,
-      requirements: o.requirements,
-    },
-    showProgress ? (p) => io.err(progressLine(p, o.cost.toUpperCase())) : undefined,
-  );
-  if (showProgress) io.err('\n');
+  const t0 = performance.now();
+  const optimizer = createOptimizer(tuningContext(plant), {
+    structure,
+    msTarget: o.ms ?? undefined,
+    cost: { kind: o.cost, outputVariationWeight: o.duWeight },
+    maxEvaluations: o.evaluations,
+    timeLimitMs: o.timeLimitMs,
+    requirements: o.requirements,
+  });
+  // Run to the end; a progress line per few evaluations on a terminal.
+  while (!optimizer.step(10)) if (showProgress) io.err(progressLine(optimizer.progress, o.cost.toUpperCase()));
+  if (showProgress) io.err(`${progressLine(optimizer.progress, o.cost.toUpperCase())}\n`);
+  const result = optimizer.result();
+  const elapsedMs = performance.now() - t0;
   const values = valuesInForm(plant.loop.controller.form, result.best.gains);
   let wrote: string | null = null;
   if (o.write) {
@@ -177,12 +182,13 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
         start: { rule: result.startRule?.rule.id ?? null, label: result.startLabel, cost: finiteOrNull(result.startCost) },
         evaluations: result.evaluations,
         stopped_by: result.stoppedBy,
-        elapsed_ms: result.elapsedMs,
+        elapsed_ms: elapsedMs,
         // Worst over the setpoint steps (null: no step, or not reached / not settled there).
         overshoot_pct: head.overshootPct === null ? null : finiteOrNull(head.overshootPct.value),
         settling_time: head.settlingTime === null ? null : finiteOrNull(head.settlingTime.value),
         worst_step_at: { overshoot_pct: head.overshootPct?.stepAt ?? null, settling_time: head.settlingTime?.stepAt ?? null },
-        max_sensitivity: b.margins ? finiteOrNull(b.margins.maxSensitivity) : null,
+        max_sensitivity: finiteOrNull(b.ms),
+        binding: result.binding,
         gain_margin: b.margins ? finiteOrNull(b.margins.gainMargin) : null,
         saturated_fraction: b.saturatedFraction,
         noise: noiseJson(b.noise),
@@ -192,7 +198,7 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
       }),
     );
   } else {
-    io.out(summaryText(plant, result, values, wrote));
+    io.out(summaryText(plant, result, elapsedMs, values, wrote));
   }
   return 0;
 }

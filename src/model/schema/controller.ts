@@ -16,7 +16,8 @@ import type {
 import type { YNode } from '../yaml-doc.js';
 import { choiceField, fieldNames, numberField, pairField, ruleOf, type FieldDef, type SectionDef } from './fields.js';
 import type { Fields, Reader } from './reader.js';
-import { baseStructure, readStructureSection, STRUCTURE_NAMES, STRUCTURE_SECTION_FIELDS, type StructureContext } from './structure.js';
+import { structureLaw } from '../structure-law.js';
+import { readStructureSection, STRUCTURE_NAMES, STRUCTURE_SECTION_FIELDS, type StructureContext } from './structure.js';
 
 export const STRUCTURES: readonly ControllerStructure[] = ['p', 'pi', 'pd', 'pid'];
 export const FORMS: readonly PidForm[] = ['ideal', 'parallel', 'series'];
@@ -242,9 +243,10 @@ export function readController(
   const named = choiceField<StructureName, StructureName>(r, f, s, 'structure', 'pid');
   const form = choiceField<PidForm, PidForm>(r, f, s, 'form', 'ideal');
   if (named === undefined || form === undefined) return undefined;
-  const structure = baseStructure(named);
+  // Terms are read for the widest law the structure may run; the law itself follows from them.
+  const terms = structureLaw(named, true);
   checkFamily(r, f, form);
-  const values = readTerms(r, f, form, structure, options.baseValues ?? null);
+  const values = readTerms(r, f, form, terms, options.baseValues ?? null);
   const tuning = readTuning(r, f, {
     n: DEFAULT_DERIVATIVE_FILTER,
     b: 1,
@@ -270,6 +272,8 @@ export function readController(
   if (!values || !tuning || !section.ok) return undefined;
   const gains = convert(r, f, form, values, tuning);
   if (!gains) return undefined;
+  const rows = section.ext?.kind === 'scheduled' ? section.ext.table : [];
+  const structure = structureLaw(named, gains.td > 0 || rows.some((row) => row.gains !== null && row.gains.td > 0));
   const spec: ControllerSpec = { structure, form, values, gains, outputMin, outputMax };
   if (named !== structure) spec.named = named;
   if (section.ext) spec.extension = section.ext;

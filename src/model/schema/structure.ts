@@ -10,7 +10,6 @@
  * low-order approximation. Gains in `inner` and `table` are in the ideal form (kc, ti, td).
  */
 import type {
-  ControllerStructure,
   GainSet,
   ScheduleEntry,
   StructureExtension,
@@ -146,21 +145,6 @@ export const STRUCTURE_SECTION_FIELDS: Readonly<Record<(typeof STRUCTURE_SECTION
   cascade: { kind: 'section', section: CASCADE_SCHEMA, description: `structure cascade: ${CASCADE_SCHEMA.description}` },
   schedule: { kind: 'section', section: SCHEDULE_SCHEMA, description: `structure scheduled: ${SCHEDULE_SCHEMA.description}` },
 };
-
-/** The PID law a structure name runs: its terms are read as for this plain structure. */
-export function baseStructure(name: StructureName): ControllerStructure {
-  switch (name) {
-    case 'p':
-    case 'pi':
-    case 'pd':
-    case 'pid':
-      return name;
-    case 'smith_pi':
-      return 'pi';
-    default:
-      return 'pid';
-  }
-}
 
 /** Names the structure sections may refer to. null = unknown (the model failed): not checked. */
 export interface StructureContext {

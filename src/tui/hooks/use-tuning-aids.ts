@@ -1,10 +1,11 @@
 /**
- * The tuning aids behind the screen's keys: the rule suggestions and the optimiser (run in
- * slices from timers, so keys such as Esc are handled while they work) and the comparison of the
- * file's candidates. The reducer asks through effects; this hook answers with actions.
+ * The tuning aids behind the screen's keys: the rule suggestions, the optimiser and the
+ * comparison of the file's candidates (each candidate tuned by the optimiser), all run in slices
+ * from timers, so keys such as Esc are handled while they work. The reducer asks through effects;
+ * this hook answers with actions.
  */
 import { useEffect, useRef, useState } from 'react';
-import { compareCandidates, type CompareResult } from '../../tune/index.js';
+import { compareSteps, type CompareResult } from '../../tune/index.js';
 import { candidateEntries, editedEntry } from '../candidates.js';
 import type { LoopSetup } from '../engine.js';
 import { OptimizeJob } from '../optimize-job.js';
@@ -15,8 +16,8 @@ import { SuggestJob } from '../suggest-job.js';
 /** Wall time of one slice of rules, ms: the rest is left to keys and drawing. */
 const SLICE_MS = 30;
 /**
- * Delay before a computation that runs in one piece (the comparison), ms: long enough for the
- * frame that says "computing…" to be written first (Ink draws at most every 1/60 s).
+ * Delay before the first slice, ms: long enough for the frame that says "computing…" to be
+ * written first (Ink draws at most every 1/60 s).
  */
 const FIRST_FRAME_MS = 25;
 
@@ -36,7 +37,7 @@ export function useTuningAids(setup: LoopSetup, dispatch: (a: Action) => void): 
   const optimizeRunner = useRef(new SliceRunner());
   const suggestJob = useRef<SuggestJob | null>(null);
   const optimizeJob = useRef<OptimizeJob | null>(null);
-  const compareTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  const compareRunner = useRef(new SliceRunner());
   const [compare, setCompare] = useState<CompareResult | null>(null);
   const compareRef = useRef<CompareResult | null>(null);
 
@@ -44,7 +45,7 @@ export function useTuningAids(setup: LoopSetup, dispatch: (a: Action) => void): 
     () => () => {
       suggestRunner.current.stop();
       optimizeRunner.current.stop();
-      if (compareTimer.current !== null) clearTimeout(compareTimer.current);
+      compareRunner.current.stop();
     },
     [],
   );
@@ -109,21 +110,30 @@ export function useTuningAids(setup: LoopSetup, dispatch: (a: Action) => void): 
           showCompare(cached, current);
           return true;
         }
-        if (compareTimer.current !== null) clearTimeout(compareTimer.current);
-        compareTimer.current = setTimeout(() => {
-          compareTimer.current = null;
-          let result: CompareResult;
-          try {
-            // As `looprig compare` by default: nominal figures and the worst corner of the uncertainty.
-            result = compareCandidates(setup.plant, { context: setup.context() });
-          } catch (error) {
-            dispatch({ type: 'aid_failed', text: `comparison: ${message(error as Error)}` });
-            return;
-          }
-          compareRef.current = result;
-          setCompare(result);
-          showCompare(result, current);
-        }, FIRST_FRAME_MS);
+        // As `looprig compare` by default: nominal figures and the worst corner of the uncertainty.
+        const run = compareSteps(setup.plant, { context: setup.context() });
+        let result: CompareResult | null = null;
+        compareRunner.current.start(
+          () => {
+            const t0 = performance.now();
+            for (;;) {
+              const next = run.next();
+              if (next.done) {
+                result = next.value;
+                return true;
+              }
+              if (performance.now() - t0 >= SLICE_MS) return false;
+            }
+          },
+          (finished) => {
+            if (!finished || result === null) return;
+            compareRef.current = result;
+            setCompare(result);
+            showCompare(result, current);
+          },
+          (error) => dispatch({ type: 'aid_failed', text: `comparison: ${message(error)}` }),
+          FIRST_FRAME_MS,
+        );
         return true;
       }
       default:
