@@ -5,8 +5,9 @@
  * and the worst case over the file's uncertainty ranges.
  */
 import { countOption, onePositional, parseCommandArgs } from '../parse-command.js';
+import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import type { PlantSpec } from '../../model/types.js';
-import { compareCandidates, type CandidateReport, type CompareResult } from '../../tune/index.js';
+import { compareCandidates, sweepCaseCount, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { rankedFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -36,6 +37,8 @@ interface CompareArgs {
   file: string;
   json: boolean;
   samples: number;
+  /** --no-limits: the resource budget lifted. */
+  noLimits: boolean;
   nominal: boolean;
 }
 
@@ -45,12 +48,19 @@ function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
     samples: { type: 'string' },
     nominal: { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   onePositional('compare', positionals);
-  const samples = countOption('compare', 'samples', values.samples, 0, 0);
-  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true };
+  const samples = countOption('compare', 'samples', values.samples, 0, 0, MAX_COUNTS.samples);
+  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true, noLimits: values['no-limits'] === true };
 }
+
+/**
+ * Candidates compared when the file lists none, at most: the file's controller, its plain form
+ * and one structure per diagnosis finding (tune/compare.ts chooseCandidates); for the budget.
+ */
+const COMPARE_DEFAULT_CANDIDATES = 6;
 
 function gainsText(c: CandidateReport): string {
   const r = c.row;
@@ -174,7 +184,15 @@ export async function compareCommand(args: readonly string[], io: Io): Promise<n
     io.out(COMPARE_USAGE);
     return 0;
   }
-  const { plant } = loadPlantFile(options.file, io);
+  const loaded = loadPlantFile(options.file, io);
+  const { plant } = loaded;
+  // Each candidate's trial and sweep; the candidates are the file's list or the default few.
+  const sweeps = options.nominal ? 1 : sweepCaseCount(plant, { samples: options.samples, nominal: false }) + 1;
+  enforceFileBudget(loaded, options.file, io, {
+    noLimits: options.noLimits,
+    runs: (plant.compare?.length ?? COMPARE_DEFAULT_CANDIDATES) * sweeps,
+    given: options.samples > 0 ? { runs: `looprig: compare: --samples ${options.samples}` } : {},
+  });
   const result = compareCandidates(plant, { robustness: options.nominal ? false : { samples: options.samples } });
   io.out(options.json ? toJson(compareJson(options.file, plant, result)) : compareText(plant, result));
   return 0;

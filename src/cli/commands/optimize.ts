@@ -4,6 +4,7 @@
  * `--write` puts the result into the file (comments kept, atomic write).
  */
 import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
+import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import { controllerEdits, gainNote, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { optimizeGains, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
@@ -47,6 +48,7 @@ interface OptimizeArgs {
   evaluations: number;
   timeMs: number;
   requirements: boolean;
+  noLimits: boolean;
 }
 
 function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
@@ -61,6 +63,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     time: { type: 'string' },
     'ignore-requirements': { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   onePositional('optimize', positionals);
@@ -72,7 +75,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
   if (!(duWeight >= 0) || !Number.isFinite(duWeight)) throw new UserError('optimize: --du-weight must be >= 0');
   const structure = values.structure ?? null;
   if (structure !== null && structure !== 'pi' && structure !== 'pid') throw new UserError('optimize: --structure must be pi or pid');
-  const evaluations = countOption('optimize', 'evaluations', values.evaluations, 300, 1);
+  const evaluations = countOption('optimize', 'evaluations', values.evaluations, 300, 1, MAX_COUNTS.evaluations);
   const timeMs = (timeOption('optimize', 'time', values.time) ?? 2) * 1000;
   return {
     file: positionals[0],
@@ -85,6 +88,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     evaluations,
     timeMs,
     requirements: values['ignore-requirements'] !== true,
+    noLimits: values['no-limits'] === true,
   };
 }
 
@@ -120,7 +124,13 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     io.out(OPTIMIZE_USAGE);
     return 0;
   }
-  const { plant, text } = loadPlantFile(o.file, io);
+  const loaded = loadPlantFile(o.file, io);
+  const { plant, text } = loaded;
+  enforceFileBudget(loaded, o.file, io, {
+    noLimits: o.noLimits,
+    runs: o.evaluations,
+    given: { runs: `looprig: optimize: --evaluations ${o.evaluations}` },
+  });
   const fileStructure = plant.loop.controller.structure;
   const structure = o.structure ?? (fileStructure === 'pid' || fileStructure === 'pd' ? 'pid' : 'pi');
   if (o.write && fileStructure !== structure) {

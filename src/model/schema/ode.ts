@@ -9,6 +9,7 @@ import type { YMap, YNode } from '../yaml-doc.js';
 import { fieldNames, fieldNode, numberField, type NameRule, type SectionDef } from './fields.js';
 import type { ModelRead } from './model-read.js';
 import { describe, type Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
 
 const IDENT = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
@@ -57,7 +58,7 @@ export const ODE_SCHEMA: SectionDef = {
       value: { kind: 'expression' },
       description: 'Further named measurements (e.g. the inner variable of a cascade): name -> expression.',
     },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time on the manipulated input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time on the manipulated input (>= 0), s or with a unit.' },
   },
 };
 

@@ -4,6 +4,7 @@ import type { YMap } from '../yaml-doc.js';
 import { fieldNames, fieldNode, numberField, numbersField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
 
 export const TRANSFER_SCHEMA: SectionDef = {
   description: 'Transfer function num(s)/den(s) e^(-L s), coefficients in descending powers of s. The input disturbance `load` adds to the input.',
@@ -17,7 +18,7 @@ export const TRANSFER_SCHEMA: SectionDef = {
       required: true,
       description: 'Denominator coefficients, highest power of s first (the first must not be 0; degree >= the numerator\'s).',
     },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
   },
 };
 
