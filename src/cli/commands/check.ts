@@ -14,6 +14,7 @@ import { join } from 'node:path';
 import { compilePlant, formatDiagnostic, loadPlant } from '../../model/index.js';
 import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
+import { MAX_PLANT_BYTES, readFailure } from '../read-bounded.js';
 import { StructureUnavailable } from '../../tune/index.js';
 import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
 import { UserError } from '../errors.js';
@@ -97,11 +98,10 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean): FileOutcom
   };
   let text: string;
   try {
-    text = io.readText(file);
+    text = io.readText(file, MAX_PLANT_BYTES);
   } catch (error) {
     if (error instanceof EncodingError) return invalid([error.message]);
-    const code = (error as { code?: string }).code;
-    return invalid([`${file}: cannot read: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : (error as Error).message}`]);
+    return invalid([`${file}: cannot read: ${readFailure(error)}`]);
   }
   const keys = topLevelKeys(text);
   if (keys !== null && !(keys.includes('model') && keys.includes('loop'))) {

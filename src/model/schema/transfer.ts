@@ -5,6 +5,7 @@ import { fieldNames, fieldNode, numberField, numbersField, type SectionDef } fro
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
+import { MODEL_LIMITS } from './size-limits.js';
 
 export const TRANSFER_SCHEMA: SectionDef = {
   description: 'Transfer function num(s)/den(s) e^(-L s), coefficients in descending powers of s. The input disturbance `load` adds to the input.',
@@ -38,6 +39,10 @@ export function readTransfer(r: Reader, node: YMap, owner: Span): ModelRead | un
   if (numerator.length === 0) {
     r.error('BAD_VALUE', 'model.numerator must have at least one coefficient', nn.span);
     ok = false;
+  }
+  if (denominator.length - 1 > MODEL_LIMITS.states) {
+    r.error('BAD_VALUE', `model.denominator has degree ${denominator.length - 1}; at most ${MODEL_LIMITS.states} is accepted`, dnode.span);
+    return undefined;
   }
   if (denominator.length === 0) {
     r.error('BAD_VALUE', 'model.denominator must have at least one coefficient', dnode.span);
