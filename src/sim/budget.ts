@@ -41,6 +41,8 @@ export interface RunSize {
    * false for a live run that has no end (the screen): the whole delay is held.
    */
   bounded?: boolean;
+  /** Whether the caller analyses the loop in frequency (margins) too; default true. */
+  frequencyAnalysis?: boolean;
 }
 
 /** What a run of `RunSize` costs. */
@@ -186,7 +188,8 @@ export function checkBudget(size: RunSize, limits: BudgetLimits | null = DEFAULT
     out.push({ cause: delayCause, hard: true, message: `a delay line of ${count(e.delayEntries)} entries cannot be allocated (at most ${count(HARD_LIMITS.arrayEntries)})` });
   }
   const turnsWhy = `${count(e.phaseTurns)} turns of the loop phase below the Nyquist frequency (dead time / 2 sample times) for the frequency analysis`;
-  if (e.phaseTurns > HARD_LIMITS.phaseTurns) {
+  const frequency = size.frequencyAnalysis ?? true;
+  if (frequency && e.phaseTurns > HARD_LIMITS.phaseTurns) {
     out.push({ cause: delayCause, hard: true, message: `the run's ${turnsWhy} cannot be followed (at most ${count(HARD_LIMITS.phaseTurns)})` });
   }
   if (!(e.integrationSteps <= HARD_LIMITS.integrationSteps)) {
@@ -207,7 +210,7 @@ export function checkBudget(size: RunSize, limits: BudgetLimits | null = DEFAULT
     const what = delayHeavy ? `delay lines of ${bytes(e.delayBytes)}` : `a trace of ${count(e.rows)} rows (${bytes(e.traceBytes)})`;
     out.push({ cause, hard: false, message: `the run needs ${what}, over the limit of ${bytes(limits.memoryBytes)} per run` });
   }
-  if (e.phaseTurns > limits.phaseTurns) {
+  if (frequency && e.phaseTurns > limits.phaseTurns) {
     out.push({ cause: delayCause, hard: false, message: `the run needs ${turnsWhy}, over the limit of ${count(limits.phaseTurns)}` });
   }
   return out;

@@ -26,6 +26,8 @@ export interface PlantBudgetOptions {
   bounded?: boolean;
   /** The budget, or null when lifted (the hard limits still hold). */
   limits?: BudgetLimits | null;
+  /** Whether the caller also analyses the loop in frequency (diagnose, suggest ...); default true. */
+  frequencyAnalysis?: boolean;
   /** Causes set on the command line, and how to name them there (e.g. `duration: '--duration 1e9'`). */
   given?: Partial<Record<BudgetCause, string>>;
 }
@@ -64,6 +66,7 @@ export function plantBudget(
       disturbances: dynamics.disturbanceNames.length,
       runs: options.runs ?? 1,
       bounded: options.bounded ?? true,
+      frequencyAnalysis: options.frequencyAnalysis ?? true,
     },
     options.limits === undefined ? DEFAULT_BUDGET : options.limits,
     stepGiven,

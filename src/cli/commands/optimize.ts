@@ -167,7 +167,15 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     }
     const method = `optimize (${result.cost.kind.toUpperCase()}, Ms<=${result.msTarget})`;
     const edits = controllerEdits(text, values, { digits: 6, note: gainNote(new Date().toISOString().slice(0, 10), method) });
-    const next = savePlantValues(text, edits);
+    let next: string;
+    try {
+      next = savePlantValues(text, edits);
+    } catch (error) {
+      // A value the text editor cannot replace in place (e.g. `kc: *alias`): the screen reports
+      // the same refusal; nothing is written.
+      if (!(error instanceof RangeError)) throw error;
+      throw new UserError(`optimize: --write: cannot write the gains into ${o.file}: ${error.message}; nothing written`);
+    }
     // The file was read a moment ago: if it is gone now, say so (it is written anew).
     wrote = writeOutput(io, o.file, next, { expectExisting: true });
   }

@@ -82,6 +82,8 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
   const dynamics = compilePlant(plant);
   enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
+    // run simulates only: no margins, so a long dead time costs only its (bounded) delay line.
+    frequencyAnalysis: false,
     given: {
       ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
       ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
