@@ -2,7 +2,7 @@
  * The file list of `looprig check`: named files as given, folders searched for plant files,
  * sorted, de-duplicated and split into shards for parallel CI jobs.
  */
-import { readdirSync, statSync } from 'node:fs';
+import { readdirSync, realpathSync, statSync } from 'node:fs';
 import { join, normalize } from 'node:path';
 import { parseDocument, isMap, isScalar } from 'yaml';
 import { UserError } from './errors.js';
@@ -38,7 +38,24 @@ export function topLevelKeys(text: string): string[] | null {
   return doc.contents.items.map((p) => (isScalar(p.key) ? String(p.key.value) : '?'));
 }
 
-function walk(dir: string, out: string[]): void {
+/** The real path of `p` (links resolved), or null when it cannot be resolved. */
+function realPath(p: string): string | null {
+  try {
+    return realpathSync(p);
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * Collect the YAML files under `dir`. Each real folder and file is visited once (`seen` holds
+ * real paths): a link back up the tree (`loop -> ..`) would otherwise be followed until the path
+ * is too long, listing the same plants dozens of times.
+ */
+function walk(dir: string, out: string[], seen: Set<string>): void {
+  const real = realPath(dir);
+  if (real === null || seen.has(real)) return;
+  seen.add(real);
   let names: string[];
   try {
     names = readdirSync(dir).sort();
@@ -54,8 +71,13 @@ function walk(dir: string, out: string[]): void {
       continue; // a dangling link: nothing to check
     }
     if (st.isDirectory()) {
-      if (!name.startsWith('.') && !SKIP_DIRS.has(name)) walk(p, out);
-    } else if (st.isFile() && /\.ya?ml$/i.test(name)) out.push(p);
+      if (!name.startsWith('.') && !SKIP_DIRS.has(name)) walk(p, out, seen);
+    } else if (st.isFile() && /\.ya?ml$/i.test(name)) {
+      const file = realPath(p);
+      if (file === null || seen.has(file)) continue;
+      seen.add(file);
+      out.push(p);
+    }
   }
 }
 
@@ -67,6 +89,7 @@ function walk(dir: string, out: string[]): void {
 export function findPlantFiles(args: readonly string[], io: Io): { files: PlantFileEntry[]; skipped: string[] } {
   const found = new Map<string, PlantFileEntry>();
   const skipped: string[] = [];
+  const seen = new Set<string>();
   for (const arg of args) {
     let isDir = false;
     try {
@@ -87,7 +110,7 @@ export function findPlantFiles(args: readonly string[], io: Io): { files: PlantF
       continue;
     }
     const yamls: string[] = [];
-    walk(normalize(arg), yamls);
+    walk(normalize(arg), yamls, seen);
     for (const p of yamls) {
       if (found.has(p)) continue;
       let text: string;

@@ -2,8 +2,9 @@
  * The CLI's only window on the outside world. Commands receive an `Io` and never touch
  * `process` or `fs` themselves, so tests drive `main()` in-process with a fake.
  */
-import { lstatSync, readFileSync } from 'node:fs';
+import { lstatSync } from 'node:fs';
 import { findEncodingProblem } from '../model/index.js';
+import { readBytesBounded } from './read-bounded.js';
 import { writeFileKeeping, type WriteOptions, type WriteOutcome } from './write-file.js';
 
 export type { WriteOptions, WriteOutcome };
@@ -14,11 +15,12 @@ export interface Io {
   /** Write to standard error (no newline added). */
   err(text: string): void;
   /**
-   * Read a UTF-8 text file, a byte-order mark kept as U+FEFF (so a save writes it back). Throws
-   * the platform error (with `code`, e.g. ENOENT) on failure, and an `EncodingError` for bytes
-   * that are not UTF-8.
+   * Read a UTF-8 text file of at most `maxBytes` (default read-bounded.ts MAX_READ_BYTES), a
+   * byte-order mark kept as U+FEFF (so a save writes it back). Throws an error with `code` on
+   * failure: the platform's (ENOENT ...), EISDIR, ENOTREG (FIFO, device), EFBIG (over the
+   * limit); and an `EncodingError` for bytes that are not UTF-8.
    */
-  readText(path: string): string;
+  readText(path: string, maxBytes?: number): string;
   /**
    * Write a UTF-8 text file keeping what the user owns (link, mode, owner; see write-file.ts):
    * atomic unless the outcome says otherwise. Fakes may return nothing.
@@ -63,7 +65,7 @@ export function nodeIo(): Io {
     err: (text) => {
       process.stderr.write(text);
     },
-    readText: (path) => decodeTextFile(path, readFileSync(path)),
+    readText: (path, maxBytes) => decodeTextFile(path, readBytesBounded(path, maxBytes)),
     writeText: writeFileKeeping,
     exists: (path) => {
       try {

@@ -7,6 +7,7 @@ import { formatDiagnostic, loadPlant, parseDuration } from '../model/index.js';
 import type { PlantSpec, PidForm } from '../model/types.js';
 import { UserError } from './errors.js';
 import { EncodingError, type Io } from './io.js';
+import { MAX_PLANT_BYTES, readFailure } from './read-bounded.js';
 
 export interface LoadedPlant {
   plant: PlantSpec;
@@ -43,15 +44,13 @@ export function parseOverrides(args: readonly string[]): Override[] {
 
 function readOrFail(path: string, io: Io): string {
   try {
-    return io.readText(path);
+    return io.readText(path, MAX_PLANT_BYTES);
   } catch (error) {
     if (error instanceof EncodingError) {
       io.err(`${error.message}\n`);
       throw new UserError('', UserError.USAGE);
     }
-    const code = (error as { code?: string }).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : (error as Error).message;
-    throw new UserError(`cannot read ${path}: ${why}`);
+    throw new UserError(`cannot read ${path}: ${readFailure(error)}`);
   }
 }
 

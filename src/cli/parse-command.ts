@@ -3,7 +3,7 @@
  * its errors turned into a UserError that names the command, and the usual one-FILE check.
  */
 import { parseArgs, type ParseArgsConfig } from 'node:util';
-import { parseDuration } from '../model/index.js';
+import { MAX_TIME, parseDuration } from '../model/index.js';
 import { UserError } from './errors.js';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
@@ -28,8 +28,17 @@ export function onePositional(command: string, positionals: readonly string[], n
   return positionals[0];
 }
 
-/** A positive time option (`600`, `600 s`, `10min`) in seconds, or null when absent. */
-export function timeOption(command: string, flag: string, raw: string | undefined): number | null {
+/**
+ * A positive time option (`600`, `600 s`, `10min`) in seconds, or null when absent. Times are
+ * refused outside [range.min, range.max] (default: the longest time the engine simulates,
+ * model's MAX_TIME, and no floor).
+ */
+export function timeOption(
+  command: string,
+  flag: string,
+  raw: string | undefined,
+  range: { min?: number; max?: number } = {},
+): number | null {
   if (raw === undefined) return null;
   let v: number;
   try {
@@ -38,13 +47,18 @@ export function timeOption(command: string, flag: string, raw: string | undefine
     throw new UserError(`${command}: --${flag} ${raw}: not a time (write e.g. 600, 600s, 10min)`);
   }
   if (!(v > 0) || !Number.isFinite(v)) throw new UserError(`${command}: --${flag} must be a positive time, got ${raw}`);
+  const min = range.min ?? 0;
+  const max = range.max ?? MAX_TIME;
+  if (v < min) throw new UserError(`${command}: --${flag} must be at least ${min} s, got ${raw}`);
+  if (v > max) throw new UserError(`${command}: --${flag} must be at most ${max} s, got ${raw}`);
   return v;
 }
 
-/** A whole-number option >= `min`, or `fallback` when absent. */
-export function countOption(command: string, flag: string, raw: string | undefined, fallback: number, min: number): number {
+/** A whole-number option in [min, max], or `fallback` when absent. */
+export function countOption(command: string, flag: string, raw: string | undefined, fallback: number, min: number, max: number): number {
   if (raw === undefined) return fallback;
   const n = Number(raw);
   if (!Number.isInteger(n) || n < min) throw new UserError(`${command}: --${flag} must be a whole number >= ${min}`);
+  if (n > max) throw new UserError(`${command}: --${flag} ${raw} is over the limit of ${max}`);
   return n;
 }

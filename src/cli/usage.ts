@@ -28,6 +28,8 @@ Options for run:
                       (repeatable; times may carry a unit: ms, s, min, h)
   --duration T        override the trial duration, e.g. --duration 20min
   --step DT           override the integration step, e.g. --step 0.01s
+  --no-limits         run even when the run is over the resource budget (every command
+                      takes it; README "Errors and limits")
   -h, --help          show this text
 
 Exit status: 0 the command completed (a diverging loop is a result, reported as such),

@@ -5,7 +5,17 @@
 import type { CsvTable } from './csv.js';
 import { fieldColumn, lineAt } from './csv.js';
 import { logDiagnostic } from './log-diagnostic.js';
+import { MAX_TIME, MIN_SAMPLE_TIME } from '../model/index.js';
 import type { LogDiagnostic } from './log-diagnostic.js';
+
+/** Largest |value| of the input and output columns accepted, well below where squares overflow. */
+export const MAX_LOG_VALUE = 1e100;
+
+/** Fewest samples after the input's first move. */
+const MIN_AFTER_MOVE = 3;
+
+/** Most samples resampling may make per row of the log (gaps are filled one median interval at a time). */
+export const MAX_RESAMPLE_FACTOR = 10;
 
 /** The fewest samples a fit accepts (a delay, two time constants and a level need more than a handful). */
 export const MIN_SAMPLES = 10;
@@ -97,11 +107,38 @@ export function prepareBumpData(table: CsvTable, options: PrepareOptions): Prepa
     return { data: null, diagnostics };
   }
 
+  // Values the fit's sums of squares and the written plant file can hold.
+  for (const [name, col] of [[options.input, u0], [options.output, y0]] as const) {
+    let worst = i0;
+    for (let i = i0; i <= i1; i++) if (Math.abs(col[i]) > Math.abs(col[worst])) worst = i;
+    if (Math.abs(col[worst]) > MAX_LOG_VALUE) {
+      const [line, c] = where(worst, table.fieldIndex[name]);
+      diagnostics.push(
+        logDiagnostic('BAD_CELL', 'error', line, c,
+          `${fmt(col[worst])} in column '${name}' is beyond ±${MAX_LOG_VALUE}: the fit squares and sums the values, which would overflow; rescale the column (other units)`),
+      );
+    }
+  }
+  if (diagnostics.some((d) => d.severity === 'error')) return { data: null, diagnostics };
+
   // Median interval and irregularity.
   const diffs = new Float64Array(count - 1);
   for (let i = 0; i < count - 1; i++) diffs[i] = time[i0 + i + 1] - time[i0 + i];
   const sorted = Float64Array.from(diffs).sort();
   const dt = sorted[(sorted.length - 1) >> 1];
+  // The fitted model is written as a plant file with this sample time and a trial as long as the
+  // window: both must be times the loader accepts (model's MIN_SAMPLE_TIME, MAX_TIME).
+  const span = time[i1] - time[i0];
+  if (!(dt >= MIN_SAMPLE_TIME) || !(span <= MAX_TIME)) {
+    const [line, col] = where(i0, tField);
+    diagnostics.push(
+      logDiagnostic('BAD_TIME', 'error', line, col,
+        dt >= MIN_SAMPLE_TIME
+          ? `the window spans ${fmt(span)} s; at most ${MAX_TIME} s can be fitted and simulated (choose a window with --from, --to)`
+          : `the sample interval is ${fmt(dt)} s, below ${MIN_SAMPLE_TIME} s (is the time column in seconds?)`),
+    );
+    return { data: null, diagnostics };
+  }
   let irregular = false;
   let gaps = 0;
   for (let i = 0; i < diffs.length; i++) {
@@ -127,6 +164,18 @@ export function prepareBumpData(table: CsvTable, options: PrepareOptions): Prepa
     y = y0.slice(i0, i1 + 1);
   } else {
     n = Math.floor((time[i1] - tStart) / dt + 1e-9) + 1;
+    // Resampling fills gaps with one sample per median interval: a single long pause (a 1e8 s
+    // gap in a 600-row log) would allocate gigabytes. Refuse, at the longest gap, before that.
+    if (!(n <= MAX_RESAMPLE_FACTOR * count)) {
+      let longest = 0;
+      for (let i = 1; i < diffs.length; i++) if (diffs[i] > diffs[longest]) longest = i;
+      const [line, col] = where(i0 + longest + 1, tField);
+      diagnostics.push(
+        logDiagnostic('GAP', 'error', line, col,
+          `gap of ${fmt(diffs[longest])} s (${fmt(diffs[longest] / dt)} sample intervals of ${fmt(dt)} s): resampling would turn ${count} rows into ${fmt(n)} samples, more than ${MAX_RESAMPLE_FACTOR} times as many; choose a window without the gap (--from, --to)`),
+      );
+      return { data: null, diagnostics };
+    }
     u = new Float64Array(n);
     y = new Float64Array(n);
     let j = i0;
@@ -160,6 +209,17 @@ export function prepareBumpData(table: CsvTable, options: PrepareOptions): Prepa
     diagnostics.push(
       logDiagnostic('NO_STEP', 'error', first, where(i0, table.fieldIndex[options.input])[1],
         `the input column '${options.input}' never changes (${fmt(uMax)}) from line ${first} to line ${lines[i1]}: a fit needs a step or another move of the input`),
+    );
+  }
+  // A move of the input with (almost) nothing logged after it: no response to fit.
+  let move = 1;
+  while (move < n && u[move] === u[0]) move++;
+  if (move < n && n - move < MIN_AFTER_MOVE) {
+    const row = Math.min(i1, i0 + Math.round(move * (irregular ? dt / dtUsed : 1)));
+    const [line, col] = where(row, table.fieldIndex[options.input]);
+    diagnostics.push(
+      logDiagnostic('NO_STEP', 'error', line, col,
+        `the input first moves ${n - move === 1 ? 'on the last row' : `${n - move} rows before the end`} of the window: no response after it to fit; extend the window past the move`),
     );
   }
   if (diagnostics.some((d) => d.severity === 'error')) return { data: null, diagnostics };

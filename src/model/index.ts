@@ -36,6 +36,8 @@ export { DEFAULT_DERIVATIVE_FILTER } from './schema/controller.js';
 export { LOAD_DISTURBANCE } from './schema/model-read.js';
 export { plantJsonSchema, VALIDATOR_ONLY, type JsonSchema } from './schema/json-schema.js';
 export { yamlJsonView } from './yaml-doc.js';
+export { fieldSpan } from './field-span.js';
+export { MAX_TIME, MIN_SAMPLE_TIME, MIN_STEP } from './schema/time-range.js';
 export { durationPattern, type DurationPatternOptions } from './units.js';
 export { PLANT_SCHEMA } from './schema/plant.js';
 export type { FieldDef, FieldType, SectionDef, NameRule, FieldCase } from './schema/fields.js';

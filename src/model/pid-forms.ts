@@ -45,10 +45,28 @@ function checkTimes(ti: number, td: number, form: PidForm): void {
 }
 
 /**
+ * The converted terms, or a RangeError naming the term that left the range of numbers: series
+ * `td: 1e308` gives ti + td = Infinity, parallel `kp: 1e-300, kd: 1e10` gives td = kd/kp =
+ * Infinity, series `ti: 1e-320` gives kc (1 + td/ti) = Infinity. Such terms cannot be simulated
+ * (control/pid.ts refuses them), so the loader must report them at the file's values.
+ */
+function finiteTerms(t: IdealTerms, form: PidForm): IdealTerms {
+  if (!Number.isFinite(t.kc)) throw new RangeError(`${form} form: these values give an ideal kc of ${t.kc}, out of the range of numbers`);
+  if (!(t.ti > 0)) throw new RangeError(`${form} form: these values give an ideal ti of ${t.ti}, not > 0`);
+  if (!Number.isFinite(t.td)) throw new RangeError(`${form} form: these values give an ideal td of ${t.td}, out of the range of numbers`);
+  return t;
+}
+
+/**
  * Convert values written in `form` to the ideal form. Throws RangeError for values that have no
- * ideal equivalent (parallel kp = 0 with integral or derivative action; mixed signs of kp, ki, kd).
+ * ideal equivalent (parallel kp = 0 with integral or derivative action; mixed signs of kp, ki, kd)
+ * or whose ideal terms overflow (`finiteTerms`).
  */
 export function toIdeal(form: PidForm, values: Readonly<Record<string, number>>): IdealTerms {
+  return finiteTerms(toIdealTerms(form, values), form);
+}
+
+function toIdealTerms(form: PidForm, values: Readonly<Record<string, number>>): IdealTerms {
   if (form === 'ideal') {
     const kc = need(values, 'kc', form);
     const ti = need(values, 'ti', form);

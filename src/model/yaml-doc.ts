@@ -166,7 +166,9 @@ export function parsePlantYaml(text: string): YamlParse {
   const doc = parseDocument(text, {
     keepSourceTokens: true,
     prettyErrors: false,
-    uniqueKeys: true,
+    // Duplicate keys are found below with one Set per mapping: yaml's own check compares each
+    // key with every earlier one, and a 50,000-entry mapping took minutes.
+    uniqueKeys: false,
   });
   // yaml's own `maxAliasCount` only guards `toJS()`; this loader walks the nodes itself, so the
   // conversion below enforces ALIAS_BUDGET instead.
@@ -220,6 +222,7 @@ export function parsePlantYaml(text: string): YamlParse {
     }
     if (isMap(node)) {
       const entries: YEntry[] = [];
+      const seen = new Set<string>();
       for (const pair of node.items) {
         if (!isPair(pair)) continue;
         const k = pair.key;
@@ -229,6 +232,11 @@ export function parsePlantYaml(text: string): YamlParse {
           continue;
         }
         const keySpan = rangeSpan(k);
+        if (seen.has(String(k.value))) {
+          issues.push({ code: 'YAML_SYNTAX', message: 'Map keys must be unique', span: keySpan, warning: false });
+          continue;
+        }
+        seen.add(String(k.value));
         const valueNode = pair.value;
         let value: YNode | null;
         if (valueNode === null || valueNode === undefined) {

@@ -15,7 +15,7 @@ import { Rng } from '../num/index.js';
 import { Actuator } from './actuator.js';
 import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
 import { loopStep } from './choose-step.js';
-import { delayInSteps } from './delay-line.js';
+import { delayInSteps, usableDelay } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
 import { runTrial, trialRows, type TrialOptions } from './run-trial.js';
 import { Sensor } from './sensor.js';
@@ -260,11 +260,11 @@ function prepare(
   const h = chosen.step;
   if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
   if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
-  const inSteps = delayInSteps(plant.inputDelay, h);
+  const inSteps = delayInSteps(usableDelay(plant.inputDelay, trial.duration, ts), h);
   const outFn = generateOutput(plant, plant.outputSource, helpers);
   const start = startState(plant, uStart, trial.start ?? 'steady');
   const y0 = outFn(Float64Array.from(start.x), plant.params, Float64Array.from(plant.d0), uStart, 0);
-  const outSteps = delayInSteps(loop.sensor.delay, h);
+  const outSteps = delayInSteps(usableDelay(loop.sensor.delay, trial.duration, ts), h);
   const sensor = new Sensor(loop.sensor, ts);
   const rInit = trial.initialSetpoint ?? y0;
 

@@ -18,6 +18,16 @@ export function delayInSteps(delay: number, h: number): number {
   return Math.abs(q - r) <= 1e-9 * Math.max(1, r) ? r : q;
 }
 
+/**
+ * The longest delay a run of `horizon` s can tell apart from a longer one, s: past horizon + 2
+ * sample times every read of the line falls before its first push, i.e. on the initial value
+ * (the margin covers the last sample's integration and rounding), so the line need not hold
+ * more. Simulation and the batch runner both size their lines with it (identical results).
+ */
+export function usableDelay(delay: number, horizon: number, sampleTime: number): number {
+  return Math.min(delay, horizon + 2 * sampleTime);
+}
+
 export class DelayLine {
   private readonly buf: Float64Array;
   /** Index of the newest entry. */

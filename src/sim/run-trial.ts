@@ -37,6 +37,7 @@ export function runTrial(
     start: trial.start,
     traceCapacity: rows,
     helpers: options.helpers,
+    horizon: trial.duration,
   });
   const events = [...trial.events].sort((a, b) => a.at - b.at);
   for (const ev of events) {

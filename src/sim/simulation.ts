@@ -21,7 +21,7 @@
 import type { GainSet, IntegratorName, TrialStart } from '../model/types.js';
 import { Actuator } from './actuator.js';
 import { loopStep } from './choose-step.js';
-import { DelayLine, delayInSteps as delaySteps } from './delay-line.js';
+import { DelayLine, delayInSteps as delaySteps, usableDelay } from './delay-line.js';
 import { generateOutput, generateStepper, type OutputFunction, type StepFunction } from './generate-stepper.js';
 import { Sensor } from './sensor.js';
 import { startState } from './start-state.js';
@@ -40,6 +40,12 @@ export interface SimulationInit {
   traceCapacity?: number;
   /** The `F.*` helper table the plant sources call (default: model/'s MATH_HELPERS). */
   helpers?: Readonly<Record<string, (...args: number[]) => number>>;
+  /**
+   * Simulated time the run will not go past, s (a trial's duration; default: none, a live run).
+   * Delay lines then hold only what such a run can read (delay-line.ts usableDelay), so a delay
+   * far longer than the run costs nothing.
+   */
+  horizon?: number;
 }
 
 export type ControllerMode = 'manual' | 'auto';
@@ -149,10 +155,11 @@ export class Simulation {
     const h = this.step;
     if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
     if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
-    this.inputDelaySteps = delaySteps(plant.inputDelay, h);
+    const horizon = init.horizon ?? Infinity;
+    this.inputDelaySteps = delaySteps(usableDelay(plant.inputDelay, horizon, ts), h);
     this.inputLine = plant.inputDelay > 0 ? new DelayLine(Math.floor(this.inputDelaySteps) + 2, uStart) : null;
     const y0 = this.outFn(this.x, this.p, this.d, uStart, 0);
-    this.sensorDelaySteps = delaySteps(loop.sensor.delay, h);
+    this.sensorDelaySteps = delaySteps(usableDelay(loop.sensor.delay, horizon, ts), h);
     this.sensorLine = loop.sensor.delay > 0 ? new DelayLine(Math.floor(this.sensorDelaySteps) + 2, y0) : null;
     this.sensor = new Sensor(loop.sensor, ts);
 

@@ -6,6 +6,7 @@
 import { basename } from 'node:path';
 import { render } from 'ink';
 import { formatDiagnostic, loadPlant } from '../model/index.js';
+import { DEFAULT_BUDGET, plantBudget } from '../sim/index.js';
 import { App, type ScreenIo } from './app.js';
 import { setupLoop } from './engine.js';
 import { diagnoseSource } from './diagnose-source.js';
@@ -25,6 +26,11 @@ export interface ScreenOptions {
   /** Show the safety caution first (default true: once per session). */
   caution?: boolean;
   mode?: RunMode;
+  /**
+   * The resource budget (sim/budget.ts): lifted or not, and what to tell the user who wants it
+   * lifted (the command line's option). Default: kept, no hint.
+   */
+  budget?: { lifted: boolean; hint: string };
 }
 
 /** Exit status after SIGTERM / SIGHUP (128 + signal number, shell convention). */
@@ -66,6 +72,13 @@ export async function runScreen(filePath: string, options: ScreenOptions): Promi
     setup = setupLoop(loaded.plant);
   } catch (error) {
     stderr.write(`${filePath}: cannot set the loop up: ${(error as Error).message}\n`);
+    return 2;
+  }
+  // The live run has no end, so its delay lines hold the whole delay (bounded: false).
+  const budget = options.budget ?? { lifted: false, hint: '' };
+  const over = plantBudget(loaded.plant, setup.dynamics, text, filePath, { bounded: false, limits: budget.lifted ? null : DEFAULT_BUDGET });
+  if (over.length > 0) {
+    for (const r of over) stderr.write(`${r.message}${r.hard || budget.hint === '' ? '' : `; ${budget.hint}`}\n`);
     return 2;
   }
   if (!stdin.isTTY) {

@@ -12,7 +12,8 @@ import type { RuleGains } from './low-order.js';
  * Kc = Kc'(1 + Td'/Ti'), Ti = Ti' + Td', Td = Ti' Td'/(Ti' + Td') (reference sheet sections 3, 13).
  */
 export function ruleGainSet(rule: RuleGains, base: GainSet): GainSet {
-  const ideal = rule.form === 'series' ? toIdeal('series', { kc: rule.kc, ti: rule.ti, td: rule.td }) : rule;
+  // toIdeal range-checks the terms (RangeError when a formula overflowed), in either form.
+  const ideal = toIdeal(rule.form, { kc: rule.kc, ti: rule.ti, td: rule.td });
   return { ...base, kc: ideal.kc, ti: ideal.ti, td: ideal.td };
 }
 

@@ -126,18 +126,21 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const skipped: SuggestResult['skipped'] = [];
   for (const rule of TUNING_RULES) {
     if (wanted && !wanted.has(rule.id)) continue;
-    let rg: RuleGains | string;
+    let applied: { rg: RuleGains; gains: GainSet } | string;
     try {
-      rg = rule.apply(inputs, params);
+      const rg = rule.apply(inputs, params);
+      // The formula's result in the ideal form, range-checked there: an extreme --lambda or
+      // model (lambda = 1e-320 s gives kc = Infinity) makes a rule inapplicable, not a crash.
+      applied = typeof rg === 'string' ? rg : { rg, gains: ruleGainSet(rg, spec.loop.controller.gains) };
     } catch (e) {
       if (!(e instanceof RangeError)) throw e;
-      rg = e.message;
+      applied = e.message;
     }
-    if (typeof rg === 'string') {
-      skipped.push({ id: rule.id, label: rule.label, reason: rg });
+    if (typeof applied === 'string') {
+      skipped.push({ id: rule.id, label: rule.label, reason: applied });
       continue;
     }
-    const gains = ruleGainSet(rg, spec.loop.controller.gains);
+    const { rg, gains } = applied;
     const evaluation = evaluateGains(ctx, gains, rule.structure, { cost, saturationFlag: options.saturationFlag });
     const values = valuesInForm(form, evaluation.gains);
     const flags = [...evaluation.flags];

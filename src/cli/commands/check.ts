@@ -11,7 +11,10 @@
 import { parseCommandArgs } from '../parse-command.js';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { formatDiagnostic, loadPlant } from '../../model/index.js';
+import { compilePlant, formatDiagnostic, loadPlant } from '../../model/index.js';
+import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
+import { LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
+import { MAX_PLANT_BYTES, readFailure } from '../read-bounded.js';
 import { StructureUnavailable } from '../../tune/index.js';
 import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
 import { UserError } from '../errors.js';
@@ -51,6 +54,8 @@ interface CheckArgs {
   json: boolean;
   shard: { index: number; count: number } | null;
   svg: string | null;
+  /** --no-limits: the resource budget lifted. */
+  noLimits: boolean;
 }
 
 function parseCheckArgs(args: readonly string[]): CheckArgs | 'help' {
@@ -59,6 +64,7 @@ function parseCheckArgs(args: readonly string[]): CheckArgs | 'help' {
     shard: { type: 'string' },
     svg: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   if (positionals.length === 0) throw new UserError('check: missing FILE or DIR');
@@ -67,6 +73,7 @@ function parseCheckArgs(args: readonly string[]): CheckArgs | 'help' {
     json: values.json === true,
     shard: values.shard === undefined ? null : parseShard(values.shard),
     svg: values.svg ?? null,
+    noLimits: values['no-limits'] === true,
   };
 }
 
@@ -83,7 +90,7 @@ export interface FileOutcome {
 }
 
 /** Load and check one file; diagnostics go to stderr. */
-function checkFile(entry: PlantFileEntry, io: Io): FileOutcome {
+function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean): FileOutcome {
   const file = entry.path;
   const invalid = (errors: string[]): FileOutcome => {
     for (const e of errors) io.err(`${e}\n`);
@@ -91,11 +98,10 @@ function checkFile(entry: PlantFileEntry, io: Io): FileOutcome {
   };
   let text: string;
   try {
-    text = io.readText(file);
+    text = io.readText(file, MAX_PLANT_BYTES);
   } catch (error) {
     if (error instanceof EncodingError) return invalid([error.message]);
-    const code = (error as { code?: string }).code;
-    return invalid([`${file}: cannot read: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : (error as Error).message}`]);
+    return invalid([`${file}: cannot read: ${readFailure(error)}`]);
   }
   const keys = topLevelKeys(text);
   if (keys !== null && !(keys.includes('model') && keys.includes('loop'))) {
@@ -113,6 +119,9 @@ function checkFile(entry: PlantFileEntry, io: Io): FileOutcome {
     return invalid(errors);
   }
   for (const w of warnings) io.err(`${w}\n`);
+  // The nominal trial's budget (a worst-case sweep repeats it per corner).
+  const over = plantBudget(loaded.plant, compilePlant(loaded.plant), text, file, { limits: noLimits ? null : DEFAULT_BUDGET });
+  if (over.length > 0) return invalid(over.map(refusalLine));
   let check: PlantCheck;
   try {
     check = checkPlant(loaded.plant);
@@ -149,7 +158,7 @@ export async function checkCommand(args: readonly string[], io: Io): Promise<num
     throw new UserError(`check: no plant files found in ${a.paths.join(', ')}${why}`);
   }
   const mine = shardOf(files, a.shard);
-  const outcomes = mine.map((f) => checkFile(f, io));
+  const outcomes = mine.map((f) => checkFile(f, io, a.noLimits));
 
   if (a.svg !== null) {
     const failing = outcomes.filter((o) => o.status === 'fail' && o.check !== null);

@@ -5,8 +5,9 @@
  * what held a tuned candidate back, and the worst case over the file's uncertainty ranges.
  */
 import { countOption, onePositional, parseCommandArgs } from '../parse-command.js';
+import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import type { PlantSpec } from '../../model/types.js';
-import { bindingSummary, compareCandidates, DEFAULT_EVALUATIONS, type CandidateReport, type CompareResult } from '../../tune/index.js';
+import { bindingSummary, compareCandidates, DEFAULT_EVALUATIONS, sweepCaseCount, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { rankedFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -42,6 +43,8 @@ interface CompareArgs {
   file: string;
   json: boolean;
   samples: number;
+  /** --no-limits: the resource budget lifted. */
+  noLimits: boolean;
   nominal: boolean;
   ms: number | undefined;
   evaluations: number;
@@ -55,15 +58,22 @@ function parseCompareArgs(args: readonly string[]): CompareArgs | 'help' {
     ms: { type: 'string' },
     evaluations: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   onePositional('compare', positionals);
-  const samples = countOption('compare', 'samples', values.samples, 0, 0);
-  const evaluations = countOption('compare', 'evaluations', values.evaluations, DEFAULT_EVALUATIONS, 0);
+  const samples = countOption('compare', 'samples', values.samples, 0, 0, MAX_COUNTS.samples);
+  const evaluations = countOption('compare', 'evaluations', values.evaluations, DEFAULT_EVALUATIONS, 0, MAX_COUNTS.evaluations);
   const ms = values.ms === undefined ? undefined : Number(values.ms);
   if (ms !== undefined && (!(ms > 1) || !Number.isFinite(ms))) throw new UserError('compare: --ms must be a number > 1');
-  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true, ms, evaluations };
+  return { file: positionals[0], json: values.json === true, samples, nominal: values.nominal === true, ms, evaluations, noLimits: values['no-limits'] === true };
 }
+
+/**
+ * Candidates compared when the file lists none, at most: the file's controller, its plain form
+ * and one structure per diagnosis finding (tune/compare.ts chooseCandidates); for the budget.
+ */
+const COMPARE_DEFAULT_CANDIDATES = 6;
 
 function gainsText(c: CandidateReport): string {
   const r = c.row;
@@ -202,7 +212,15 @@ export async function compareCommand(args: readonly string[], io: Io): Promise<n
     io.out(COMPARE_USAGE);
     return 0;
   }
-  const { plant } = loadPlantFile(options.file, io);
+  const loaded = loadPlantFile(options.file, io);
+  const { plant } = loaded;
+  // Each candidate's trial and sweep; the candidates are the file's list or the default few.
+  const sweeps = options.nominal ? 1 : sweepCaseCount(plant, { samples: options.samples, nominal: false }) + 1;
+  enforceFileBudget(loaded, options.file, io, {
+    noLimits: options.noLimits,
+    runs: (plant.compare?.length ?? COMPARE_DEFAULT_CANDIDATES) * sweeps,
+    given: options.samples > 0 ? { runs: `looprig: compare: --samples ${options.samples}` } : {},
+  });
   const result = compareCandidates(plant, {
     robustness: options.nominal ? false : { samples: options.samples },
     msTarget: options.ms,

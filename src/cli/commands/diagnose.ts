@@ -8,6 +8,7 @@ import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import { onePositional, parseCommandArgs } from '../parse-command.js';
+import { enforceFileBudget, LIMIT_OPTIONS } from '../budget-check.js';
 
 export const DIAGNOSE_USAGE = `Usage: looprig diagnose FILE [--json]
 
@@ -28,14 +29,16 @@ Exit status: 0 whatever the flags; 2 bad arguments or a plant file with errors.
 
 /** `looprig diagnose ...` */
 export async function diagnoseCommand(args: readonly string[], io: Io): Promise<number> {
-  const { values, positionals } = parseCommandArgs('diagnose', args, { json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } });
+  const { values, positionals } = parseCommandArgs('diagnose', args, { json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' }, ...LIMIT_OPTIONS });
   if (values.help) {
     io.out(DIAGNOSE_USAGE);
     return 0;
   }
   const file = onePositional('diagnose', positionals);
   // The loader prints its diagnostics (errors: exit 2 through UserError; warnings: stderr).
-  const { plant } = loadPlantFile(file, io);
+  const loaded = loadPlantFile(file, io);
+  const { plant } = loaded;
+  enforceFileBudget(loaded, file, io, { noLimits: values['no-limits'] === true });
   const d = diagnosePlant(plant);
   io.out(values.json ? toJson({ file, ...diagnosisJson(d) }) : formatDiagnosis(d));
   return 0;

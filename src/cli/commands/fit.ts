@@ -5,6 +5,7 @@
  * `LOG.csv:LINE:COL: message` diagnostics.
  */
 import { parseCommandArgs } from '../parse-command.js';
+import { readFailure } from '../read-bounded.js';
 import * as asciichart from 'asciichart';
 import {
   buildPlantFile,
@@ -137,7 +138,7 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
       io.err(`${error.message}\n`);
       return UserError.USAGE;
     }
-    throw new UserError(`cannot read ${options.file}: ${(error as Error).message}`);
+    throw new UserError(`cannot read ${options.file}: ${readFailure(error)}`);
   }
   if (options.out !== null && !options.force && exists(io, options.out)) {
     throw new UserError(`fit: ${options.out} exists; add --force to replace it`);
@@ -190,7 +191,16 @@ export function fitLog(text: string, options: FitOptions, io: Io): FitReport | n
     return null;
   }
   const data = prepared.data;
-  const result = identify(data, { models: options.models });
+  let result: ReturnType<typeof identify>;
+  try {
+    result = identify(data, { models: options.models });
+  } catch (error) {
+    // The data checks (bump-data.ts) refuse what is known to defeat the fit; should a window
+    // still leave no finite starting point, that is a finding about the log, not a crash.
+    if (!(error instanceof RangeError)) throw error;
+    printAll(diagnostics);
+    throw new UserError(`${file}: no model could be fitted to this window (${error.message})`);
+  }
   diagnostics.push(...result.diagnostics);
   if (!options.json) printAll(diagnostics);
   const windowFrom = data.t0;

@@ -4,6 +4,7 @@
  * `--write` puts the result into the file (comments kept, atomic write).
  */
 import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
+import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import { controllerEdits, gainNote, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { createOptimizer, DEFAULT_EVALUATIONS, tuningContext, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
@@ -49,6 +50,7 @@ interface OptimizeArgs {
   evaluations: number;
   timeLimitMs: number | undefined;
   requirements: boolean;
+  noLimits: boolean;
 }
 
 function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
@@ -63,6 +65,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     'time-limit': { type: 'string' },
     'ignore-requirements': { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   onePositional('optimize', positionals);
@@ -74,7 +77,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
   if (!(duWeight >= 0) || !Number.isFinite(duWeight)) throw new UserError('optimize: --du-weight must be >= 0');
   const structure = values.structure ?? null;
   if (structure !== null && structure !== 'pi' && structure !== 'pid') throw new UserError('optimize: --structure must be pi or pid');
-  const evaluations = countOption('optimize', 'evaluations', values.evaluations, DEFAULT_EVALUATIONS, 1);
+  const evaluations = countOption('optimize', 'evaluations', values.evaluations, DEFAULT_EVALUATIONS, 1, MAX_COUNTS.evaluations);
   const limit = timeOption('optimize', 'time-limit', values['time-limit']);
   const timeLimitMs = limit === null ? undefined : limit * 1000;
   return {
@@ -88,6 +91,7 @@ function parseOptimizeArgs(args: readonly string[]): OptimizeArgs | 'help' {
     evaluations,
     timeLimitMs,
     requirements: values['ignore-requirements'] !== true,
+    noLimits: values['no-limits'] === true,
   };
 }
 
@@ -124,7 +128,13 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     io.out(OPTIMIZE_USAGE);
     return 0;
   }
-  const { plant, text } = loadPlantFile(o.file, io);
+  const loaded = loadPlantFile(o.file, io);
+  const { plant, text } = loaded;
+  enforceFileBudget(loaded, o.file, io, {
+    noLimits: o.noLimits,
+    runs: o.evaluations,
+    given: { runs: `looprig: optimize: --evaluations ${o.evaluations}` },
+  });
   const fileStructure = plant.loop.controller.structure;
   const structure = o.structure ?? (fileStructure === 'pid' || fileStructure === 'pd' ? 'pid' : 'pi');
   if (o.write && fileStructure !== structure) {
@@ -162,7 +172,15 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     }
     const method = `optimize (${result.cost.kind.toUpperCase()}, Ms<=${result.msTarget})`;
     const edits = controllerEdits(text, values, { digits: 6, note: gainNote(new Date().toISOString().slice(0, 10), method) });
-    const next = savePlantValues(text, edits);
+    let next: string;
+    try {
+      next = savePlantValues(text, edits);
+    } catch (error) {
+      // A value the text editor cannot replace in place (e.g. `kc: *alias`): the screen reports
+      // the same refusal; nothing is written.
+      if (!(error instanceof RangeError)) throw error;
+      throw new UserError(`optimize: --write: cannot write the gains into ${o.file}: ${error.message}; nothing written`);
+    }
     // The file was read a moment ago: if it is gone now, say so (it is written anew).
     wrote = writeOutput(io, o.file, next, { expectExisting: true });
   }

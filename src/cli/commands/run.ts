@@ -6,7 +6,7 @@ import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js
 import { checkRequirements, headlineMetrics, headlineSources, stepFigureText, trialMetrics } from '../../analysis/index.js';
 import type { HeadlineFigure, RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { fileController } from '../../tune/index.js';
-import { compilePlant } from '../../model/index.js';
+import { compilePlant, MIN_STEP } from '../../model/index.js';
 import type { PlantSpec, Requirements } from '../../model/types.js';
 import { chooseStep, runTrial } from '../../sim/index.js';
 import type { LoopConfig, Trace, TrialResult } from '../../sim/types.js';
@@ -18,6 +18,7 @@ import { loadPlantFile, parseOverrides } from '../load-plant-file.js';
 import type { Override } from '../load-plant-file.js';
 import type { RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
+import { enforceBudget, LIMIT_OPTIONS } from '../budget-check.js';
 import { USAGE } from '../usage.js';
 import { writeOutput } from '../write-output.js';
 
@@ -34,6 +35,8 @@ export interface RunOptions {
   duration: number | null;
   /** Integration step override, s. */
   step: number | null;
+  /** --no-limits: the resource budget lifted. */
+  noLimits: boolean;
 }
 
 /** Parse the arguments of `run`; any mistake is a `UserError` with exit status 2. */
@@ -46,6 +49,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     duration: { type: 'string' },
     step: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   onePositional('run', positionals);
@@ -56,7 +60,8 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     svg: values.svg ?? null,
     overrides: parseOverrides(values.set ?? []),
     duration: timeOption('run', 'duration', values.duration),
-    step: timeOption('run', 'step', values.step),
+    step: timeOption('run', 'step', values.step, { min: MIN_STEP }),
+    noLimits: values['no-limits'] === true,
   };
 }
 
@@ -75,6 +80,15 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
   const plant = withRunOverrides(loaded.plant, options);
   const loop = plant.loop;
   const dynamics = compilePlant(plant);
+  enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
+    noLimits: options.noLimits,
+    // run simulates only: no margins, so a long dead time costs only its (bounded) delay line.
+    frequencyAnalysis: false,
+    given: {
+      ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
+      ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
+    },
+  });
   const controller = fileController(plant, dynamics);
   const choice = loop.step === null ? chooseStep(dynamics, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0) : null;
   const step = loop.step ?? choice!.step;

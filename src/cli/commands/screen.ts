@@ -6,6 +6,7 @@
 import type { Io } from '../io.js';
 import { demoPlantPath } from '../plants-dir.js';
 import { runCommand } from './run.js';
+import { LIFT_HINT, LIMIT_OPTION_FLAG } from '../budget-check.js';
 
 /** Open the screen; resolves with its exit status (2 for a file that does not load). */
 export async function screenCommand(args: readonly string[], io: Io): Promise<number> {
@@ -22,5 +23,6 @@ export async function screenCommand(args: readonly string[], io: Io): Promise<nu
   return runScreen(file, {
     io: { readText: (p) => io.readText(p), writeText: (p, t, options) => io.writeText(p, t, options) },
     env: io.env,
+    budget: { lifted: args.includes(LIMIT_OPTION_FLAG), hint: LIFT_HINT },
   });
 }

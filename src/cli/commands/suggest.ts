@@ -3,8 +3,10 @@
  * the full plant (its trial, limits, delays), one row per rule.
  */
 import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
+import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
+import { MIN_SAMPLE_TIME } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
-import { caseFigures, suggestGains, summarise, sweepCaseCount, type SuggestResult, type Suggestion } from '../../tune/index.js';
+import { caseFigures, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -39,6 +41,7 @@ interface SuggestArgs {
   relay: boolean;
   samples: number;
   jobs: number;
+  noLimits: boolean;
 }
 
 function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs | 'help' {
@@ -50,19 +53,21 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     samples: { type: 'string' },
     jobs: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   onePositional('suggest', positionals);
-  const samples = countOption('suggest', 'samples', values.samples, 0, 0);
-  const jobs = countOption('suggest', 'jobs', values.jobs, sweepJobs(env), 1);
+  const samples = countOption('suggest', 'samples', values.samples, 0, 0, MAX_COUNTS.samples);
+  const jobs = countOption('suggest', 'jobs', values.jobs, sweepJobs(env), 1, MAX_COUNTS.jobs);
   return {
     file: positionals[0],
     json: values.json === true,
-    tauc: timeOption('suggest', 'tauc', values.tauc),
-    lambda: timeOption('suggest', 'lambda', values.lambda),
+    tauc: timeOption('suggest', 'tauc', values.tauc, { min: MIN_SAMPLE_TIME }),
+    lambda: timeOption('suggest', 'lambda', values.lambda, { min: MIN_SAMPLE_TIME }),
     relay: values.relay === true,
     samples,
     jobs,
+    noLimits: values['no-limits'] === true,
   };
 }
 
@@ -185,11 +190,19 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
     io.out(SUGGEST_USAGE);
     return 0;
   }
-  const { plant, text } = loadPlantFile(options.file, io);
+  const loaded = loadPlantFile(options.file, io);
+  const { plant, text } = loaded;
   const sweep = { samples: options.samples };
+  // Every rule's trial, and its sweep over the uncertainty.
+  const cases = sweepCaseCount(plant, { ...sweep, nominal: false }) + 1;
+  enforceFileBudget(loaded, options.file, io, {
+    noLimits: options.noLimits,
+    runs: TUNING_RULES.length * cases,
+    given: options.samples > 0 ? { runs: `looprig: suggest: --samples ${options.samples}` } : {},
+  });
   // Large worst-case sweeps go over threads: the rules are evaluated here without them and each
   // rule's sweep is then run by the pool, combined with its nominal case as suggestGains does.
-  const parallel = options.jobs > 1 && sweepCaseCount(plant, { ...sweep, nominal: false }) + 1 >= MIN_PARALLEL_CASES;
+  const parallel = options.jobs > 1 && cases >= MIN_PARALLEL_CASES;
   const result = suggestGains(plant, {
     tauc: options.tauc,
     lambda: options.lambda,

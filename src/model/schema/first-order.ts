@@ -4,6 +4,7 @@ import type { YMap } from '../yaml-doc.js';
 import { fieldNames, numberField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
 
 export const FIRST_ORDER_SCHEMA: SectionDef = {
   description: 'First-order lag with dead time: K e^(-L s) / (T s + 1). The input disturbance `load` adds to the input.',
@@ -11,7 +12,7 @@ export const FIRST_ORDER_SCHEMA: SectionDef = {
     type: { kind: 'choice', choices: ['first_order'], required: true, description: 'Model kind.' },
     gain: { kind: 'number', required: true, description: 'Steady-state gain K, output units per input unit.' },
     time_constant: { kind: 'time', rule: { gt: 0 }, required: true, description: 'Time constant T (> 0), s or with a unit.' },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
   },
 };
 

@@ -6,6 +6,7 @@ import { choiceField, fieldNames, fieldNode, numberField, type SectionDef } from
 import type { Reader } from './reader.js';
 import { readRequirements, REQUIREMENTS_SCHEMA } from './requirements.js';
 import { readTrial, TRIAL_SCHEMA } from './trial.js';
+import { MAX_TIME, MIN_SAMPLE_TIME, MIN_STEP } from './time-range.js';
 
 export const INTEGRATORS: readonly IntegratorName[] = ['rk4', 'heun', 'euler'];
 
@@ -14,12 +15,12 @@ export const LOOP_SCHEMA: SectionDef = {
   fields: {
     sample_time: {
       kind: 'time',
-      rule: { gt: 0 },
+      rule: { ge: MIN_SAMPLE_TIME, le: MAX_TIME },
       required: true,
       hint: ' (the controller sample time, e.g. 0.1 s)',
-      description: 'Controller sample time (> 0), s or with a unit.',
+      description: `Controller sample time (${MIN_SAMPLE_TIME} s to ${MAX_TIME} s), s or with a unit.`,
     },
-    step: { kind: 'time', rule: { gt: 0 }, description: 'Integration step (> 0, at most the sample time); default: chosen from the plant.' },
+    step: { kind: 'time', rule: { ge: MIN_STEP }, description: `Integration step (>= ${MIN_STEP} s, at most the sample time); default: chosen from the plant.` },
     integrator: { kind: 'choice', choices: INTEGRATORS, default: 'rk4', description: 'Fixed-step integration method.' },
     controller: { kind: 'section', section: CONTROLLER_SCHEMA, required: true, description: CONTROLLER_SCHEMA.description },
     trial: { kind: 'section', section: TRIAL_SCHEMA, required: true, hint: ' (at least a duration)', description: TRIAL_SCHEMA.description },

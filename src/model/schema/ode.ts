@@ -9,6 +9,8 @@ import type { YMap, YNode } from '../yaml-doc.js';
 import { fieldNames, fieldNode, numberField, type NameRule, type SectionDef } from './fields.js';
 import type { ModelRead } from './model-read.js';
 import { describe, type Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
+import { MODEL_LIMITS } from './size-limits.js';
 
 const IDENT = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
@@ -57,11 +59,19 @@ export const ODE_SCHEMA: SectionDef = {
       value: { kind: 'expression' },
       description: 'Further named measurements (e.g. the inner variable of a cascade): name -> expression.',
     },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time on the manipulated input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time on the manipulated input (>= 0), s or with a unit.' },
   },
 };
 
 export const ODE_FIELDS = fieldNames(ODE_SCHEMA);
+
+/** `r.mapping`, refusing (at the mapping, before reading its entries) more than `max` entries. */
+function cappedMapping(r: Reader, node: YNode, path: string, max: number): YMap | null {
+  const m = r.mapping(node, path);
+  if (m === null || m.entries.length <= max) return m;
+  r.error('BAD_VALUE', `${path} has ${m.entries.length} entries; at most ${max} are accepted`, node.span);
+  return null;
+}
 
 export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefined {
   const S = ODE_SCHEMA;
@@ -87,10 +97,12 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
     return true;
   };
 
-  const params: Record<string, number> = {};
+  // No prototype: a parameter may be called __proto__ (a plain object would swallow it as a
+  // prototype assignment and lose the value).
+  const params: Record<string, number> = Object.create(null) as Record<string, number>;
   const pn = f.get('params');
   if (pn) {
-    const m = r.mapping(pn, 'model.params');
+    const m = cappedMapping(r, pn, 'model.params', MODEL_LIMITS.params);
     for (const e of m?.entries ?? []) {
       const v = r.number(e.value, `model.params.${e.key}`);
       if (declare(e.key, 'parameter', e.keySpan) && v !== undefined) params[e.key] = v;
@@ -102,7 +114,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   const badStates = new Set<string>();
   const sn = fieldNode(f, S, 'states');
   if (sn) {
-    const m = r.mapping(sn, 'model.states');
+    const m = cappedMapping(r, sn, 'model.states', MODEL_LIMITS.states);
     if (m && m.entries.length === 0) r.error('MISSING_FIELD', 'model.states must declare at least one state', sn.span);
     for (const e of m?.entries ?? []) {
       const ok = declare(e.key, 'state', e.keySpan);
@@ -123,7 +135,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   const disturbances: { name: string; initial: number }[] = [];
   const dn = f.get('disturbances');
   if (dn) {
-    const m = r.mapping(dn, 'model.disturbances');
+    const m = cappedMapping(r, dn, 'model.disturbances', MODEL_LIMITS.disturbances);
     for (const e of m?.entries ?? []) {
       const v = r.number(e.value, `model.disturbances.${e.key}`);
       if (declare(e.key, 'disturbance', e.keySpan) && v !== undefined) disturbances.push({ name: e.key, initial: v });
@@ -140,7 +152,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   const derivatives: Expr[] = [];
   const dv = fieldNode(f, S, 'derivatives');
   if (dv) {
-    const m = r.mapping(dv, 'model.derivatives');
+    const m = cappedMapping(r, dv, 'model.derivatives', MODEL_LIMITS.states);
     if (m) {
       const byName = new Map<string, Expr | undefined>();
       for (const e of m.entries) {
@@ -172,7 +184,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   const measurements: Record<string, Expr> = {};
   const mn = f.get('measurements');
   if (mn) {
-    const m = r.mapping(mn, 'model.measurements');
+    const m = cappedMapping(r, mn, 'model.measurements', MODEL_LIMITS.measurements);
     for (const e of m?.entries ?? []) {
       if (!MEASUREMENT_NAME.pattern.test(e.key)) {
         r.error('BAD_NAME', `measurement name '${e.key}' must be a name of letters, digits and _`, e.keySpan);
@@ -184,7 +196,7 @@ export function readOde(r: Reader, node: YMap, owner: Span): ModelRead | undefin
   }
 
   if (r.errorCount() > before || output === undefined || delay === undefined) return undefined;
-  const uncertain: Record<string, boolean> = {};
+  const uncertain: Record<string, boolean> = Object.create(null) as Record<string, boolean>;
   for (const k of Object.keys(params)) uncertain[k] = false;
   return {
     model: { type: 'ode', params, states, input, disturbances, derivatives, output, measurements, delay },

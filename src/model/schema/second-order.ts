@@ -7,6 +7,7 @@ import type { YMap } from '../yaml-doc.js';
 import { fieldNames, numberField, ruleOf, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
 
 export const SECOND_ORDER_SCHEMA: SectionDef = {
   description:
@@ -17,7 +18,7 @@ export const SECOND_ORDER_SCHEMA: SectionDef = {
     time_constant: { kind: 'times', count: 2, rule: { gt: 0 }, description: 'The two lags [T1, T2] (each > 0), s or with units.' },
     natural_frequency: { kind: 'number', rule: { gt: 0 }, description: 'Natural frequency wn (> 0), rad/s; goes with damping.' },
     damping: { kind: 'number', description: 'Damping ratio zeta (negative = unstable); goes with natural_frequency.' },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
   },
   oneOfGroups: [['time_constant'], ['natural_frequency', 'damping']],
 };

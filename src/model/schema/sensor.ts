@@ -3,6 +3,7 @@ import type { SensorSpec, Span } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
 import { fieldNames, numberField, pairField, type SectionDef } from './fields.js';
 import type { Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
 
 export const DEFAULT_SENSOR: Readonly<SensorSpec> = Object.freeze({
   delay: 0,
@@ -16,7 +17,7 @@ export const DEFAULT_SENSOR: Readonly<SensorSpec> = Object.freeze({
 export const SENSOR_SCHEMA: SectionDef = {
   description: 'The measurement the controller sees: the plant output delayed, filtered, noisy and quantised.',
   fields: {
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Measurement dead time (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Measurement dead time (>= 0), s or with a unit.' },
     noise_std: { kind: 'number', rule: { ge: 0 }, default: 0, description: 'Standard deviation of white measurement noise, output units (>= 0).' },
     filter_time: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'First-order measurement filter time constant (>= 0; 0 = none), s or with a unit.' },
     resolution: { kind: 'number', rule: { ge: 0 }, default: 0, description: 'Quantisation step of the measurement (>= 0; 0 = none).' },

@@ -4,6 +4,8 @@ import type { YMap } from '../yaml-doc.js';
 import { fieldNames, fieldNode, numberField, numbersField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
+import { MODEL_LIMITS } from './size-limits.js';
 
 export const STATE_SPACE_SCHEMA: SectionDef = {
   description: 'Linear state space, one input and one output: dx/dt = A x + B u, y = C x + D u. The input disturbance `load` adds to the input.',
@@ -13,7 +15,7 @@ export const STATE_SPACE_SCHEMA: SectionDef = {
     b: { kind: 'numbers', required: true, description: 'B, n entries (input column).' },
     c: { kind: 'numbers', required: true, description: 'C, n entries (output row).' },
     d: { kind: 'number', default: 0, description: 'D, direct feed-through.' },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time on the input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time on the input (>= 0), s or with a unit.' },
   },
 };
 
@@ -50,6 +52,10 @@ export function readStateSpace(r: Reader, node: YMap, owner: Span): ModelRead | 
   if (n === 0 && an) {
     r.error('DIMENSION_MISMATCH', 'model.a must have at least one row', an.span);
     ok = false;
+  }
+  if (n > MODEL_LIMITS.states && an) {
+    r.error('BAD_VALUE', `model.a has ${n} rows; models of at most ${MODEL_LIMITS.states} states are accepted`, an.span);
+    return undefined;
   }
   a.forEach((row, i) => {
     if (row.length !== n && an && an.kind === 'seq') {

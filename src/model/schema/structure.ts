@@ -18,6 +18,7 @@ import type {
 import type { YNode } from '../yaml-doc.js';
 import { fieldNames, ruleOf, type FieldDef, type SectionDef } from './fields.js';
 import type { Fields, Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
 
 /** Every structure name accepted, in the order messages list them. */
 export const STRUCTURE_NAMES: readonly StructureName[] = [
@@ -49,7 +50,7 @@ export const SMITH_SCHEMA: SectionDef = {
   fields: {
     gain: { kind: 'number', description: `Model gain (not 0). ${MODEL_VALUE}` },
     time_constant: { kind: 'time', rule: { ge: 0 }, description: `Model time constant (>= 0), s or with a unit. ${MODEL_VALUE}` },
-    delay: { kind: 'time', rule: { ge: 0 }, description: `Model dead time (>= 0), s or with a unit. ${MODEL_VALUE}` },
+    delay: { kind: 'time', rule: DELAY_RULE, description: `Model dead time (>= 0), s or with a unit. ${MODEL_VALUE}` },
     gain_factor: { kind: 'number', rule: { gt: 0 }, default: 1, description: 'Factor on the model gain (> 0), to rehearse a wrong model.' },
     time_constant_factor: { kind: 'number', rule: { gt: 0 }, default: 1, description: 'Factor on the model time constant (> 0).' },
     delay_factor: { kind: 'number', rule: { ge: 0 }, default: 1, description: 'Factor on the model dead time (>= 0).' },
@@ -82,7 +83,7 @@ export const FEEDFORWARD_SCHEMA: SectionDef = {
       ],
       description: "Dynamic compensation: 'model' (from the plant) or { lead, lag }.",
     },
-    delay: { kind: 'time', rule: { ge: 0 }, description: 'Delay of the feedforward path (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, description: 'Delay of the feedforward path (>= 0), s or with a unit.' },
   },
 };
 

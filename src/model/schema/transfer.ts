@@ -4,6 +4,8 @@ import type { YMap } from '../yaml-doc.js';
 import { fieldNames, fieldNode, numberField, numbersField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
+import { DELAY_RULE } from './time-range.js';
+import { MODEL_LIMITS } from './size-limits.js';
 
 export const TRANSFER_SCHEMA: SectionDef = {
   description: 'Transfer function num(s)/den(s) e^(-L s), coefficients in descending powers of s. The input disturbance `load` adds to the input.',
@@ -17,7 +19,7 @@ export const TRANSFER_SCHEMA: SectionDef = {
       required: true,
       description: 'Denominator coefficients, highest power of s first (the first must not be 0; degree >= the numerator\'s).',
     },
-    delay: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
   },
 };
 
@@ -37,6 +39,10 @@ export function readTransfer(r: Reader, node: YMap, owner: Span): ModelRead | un
   if (numerator.length === 0) {
     r.error('BAD_VALUE', 'model.numerator must have at least one coefficient', nn.span);
     ok = false;
+  }
+  if (denominator.length - 1 > MODEL_LIMITS.states) {
+    r.error('BAD_VALUE', `model.denominator has degree ${denominator.length - 1}; at most ${MODEL_LIMITS.states} is accepted`, dnode.span);
+    return undefined;
   }
   if (denominator.length === 0) {
     r.error('BAD_VALUE', 'model.denominator must have at least one coefficient', dnode.span);

@@ -4,6 +4,7 @@ import type { YNode } from '../yaml-doc.js';
 import { GAINS_EVENT_SCHEMA, readGainsOverride } from './controller.js';
 import { choiceField, fieldNames, fieldNode, numberField, type SectionDef } from './fields.js';
 import type { Reader } from './reader.js';
+import { MAX_TIME } from './time-range.js';
 
 const EVENT_KINDS = ['setpoint', 'setpoint_ramp', 'disturbance', 'mode', 'gains'] as const;
 const MODES = ['manual', 'auto'] as const;
@@ -41,7 +42,7 @@ export const EVENT_SCHEMA: SectionDef = {
 export const TRIAL_SCHEMA: SectionDef = {
   description: 'The scripted closed-loop run: its duration, initial conditions and events.',
   fields: {
-    duration: { kind: 'time', rule: { gt: 0 }, required: true, description: 'Length of the trial (> 0), s or with a unit.' },
+    duration: { kind: 'time', rule: { gt: 0, le: MAX_TIME }, required: true, description: `Length of the trial (> 0, at most ${MAX_TIME} s), s or with a unit.` },
     initial_setpoint: { kind: 'number', description: 'Setpoint before the first event (default: the plant output at t = 0).' },
     initial_output: { kind: 'number', description: 'Controller output at t = 0 (bumpless start; default: computed from the initial state).' },
     start: {

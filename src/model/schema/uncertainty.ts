@@ -3,6 +3,7 @@ import type { Span } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
 import type { FieldDef } from './fields.js';
 import type { Reader } from './reader.js';
+import { MAX_TIME } from './time-range.js';
 
 export const UNCERTAINTY_FIELD: FieldDef = {
   kind: 'names',
@@ -17,7 +18,8 @@ export function readUncertainty(
   uncertain: Readonly<Record<string, boolean>> | null,
   modelType: string | null,
 ): Record<string, [number, number]> {
-  const out: Record<string, [number, number]> = {};
+  // No prototype: the names are the file's (an ode parameter may be called __proto__).
+  const out: Record<string, [number, number]> = Object.create(null) as Record<string, [number, number]>;
   if (!node) return out;
   const m = r.mapping(node, 'uncertainty');
   if (!m) return out;
@@ -38,7 +40,7 @@ export function readUncertainty(
       continue;
     }
     const isTime = uncertain[e.key];
-    const rule = isTime ? { ge: 0 } : {};
+    const rule = isTime ? { ge: 0, le: MAX_TIME } : {};
     const v = r.pair(e.value, path, isTime, false, rule);
     if (v) out[e.key] = v;
   }
