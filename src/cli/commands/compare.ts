@@ -214,11 +214,12 @@ export async function compareCommand(args: readonly string[], io: Io): Promise<n
   }
   const loaded = loadPlantFile(options.file, io);
   const { plant } = loaded;
-  // Each candidate's trial and sweep; the candidates are the file's list or the default few.
+  // Each candidate's tuning (at most `evaluations` trials), its trial and its sweep; the
+  // candidates are the file's list or the default few.
   const sweeps = options.nominal ? 1 : sweepCaseCount(plant, { samples: options.samples, nominal: false }) + 1;
   enforceFileBudget(loaded, options.file, io, {
     noLimits: options.noLimits,
-    runs: (plant.compare?.length ?? COMPARE_DEFAULT_CANDIDATES) * sweeps,
+    runs: (plant.compare?.length ?? COMPARE_DEFAULT_CANDIDATES) * (sweeps + options.evaluations),
     given: options.samples > 0 ? { runs: `looprig: compare: --samples ${options.samples}` } : {},
   });
   const result = compareCandidates(plant, {
