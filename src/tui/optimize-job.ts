@@ -108,6 +108,11 @@ export class OptimizeJob {
     return this.searchSlice();
   }
 
+  /** The gain set the search started from (null before it is chosen). */
+  get startGains(): GainSet | null {
+    return this.start === null ? null : { ...this.start };
+  }
+
   private chooseStart(): void {
     const ms = this.msTarget;
     // The edited set on the same cost, for the result to be read against, and as a candidate start.

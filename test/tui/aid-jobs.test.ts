@@ -9,8 +9,8 @@ import { describe, it, expect } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { loadPlant } from '../../src/model/index.js';
-import type { PlantSpec } from '../../src/model/types.js';
-import { compareCandidates, evaluateGains, optimizeGains, robustnessSweep, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
+import type { GainSet, PlantSpec } from '../../src/model/types.js';
+import { compareCandidates, DEFAULT_COST, evaluateGains, optimizeGains, optimizerScore, robustnessSweep, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
 import { candidateEntries, editedEntry } from '../../src/tui/candidates.js';
 import { contextFor, evaluate, fileEdit, plantFor, runningGains, setupLoop } from '../../src/tui/engine.js';
 import { EnvelopeJob, mergeEnvelope, sweepPlan } from '../../src/tui/envelope-job.js';
@@ -93,7 +93,14 @@ describe('tui OptimizeJob: the optimiser in slices', () => {
     expect(a.edit).not.toBeNull();
     expect(a.edit!.gains).toEqual(b.edit!.gains);
     expect(a.cost).toBe(b.cost);
-    expect(a.cost).toBeLessThanOrEqual(a.startCost);
+    // Never worse than its start in the optimiser's tiered ranking (Ms, then the file's
+    // requirements, then cost): the fixture's start misses its overshoot requirement, so the
+    // result may cost a little more and meet it.
+    const job = new OptimizeJob(setup, base, o);
+    while (!job.step(10));
+    const judge = (g: GainSet): number =>
+      optimizerScore(evaluateGains(contextFor(setup, base), g, 'pid', { cost: DEFAULT_COST, msLimit: job.msTarget }), job.msTarget, true);
+    expect(judge(a.edit!.gains)).toBeLessThanOrEqual(judge(job.startGains!));
     expect(a.evaluations).toBeLessThanOrEqual(60);
     expect(a.slices).toBeGreaterThanOrEqual(3);
     expect(a.notes.some((n) => n.includes('slices'))).toBe(true);
