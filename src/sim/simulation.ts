@@ -4,7 +4,8 @@
  * this one code path.
  *
  * Per controller sample k, at t_k = k·Ts:
- *   1. events due at t_k are applied (by the caller, between `advance` calls);
+ *   1. events due at t_k are applied (by the caller, between `advanceTo` calls, at the sample
+ *      indices of the trial's event schedule: event-schedule.ts);
  *   2. the setpoint ramp, if any, is evaluated at t_k;
  *   3. measure: y(t_k) from the state, the sensor delay line, filter, noise, quantisation;
  *   4. the controller observes the disturbances and the named measurements it asked for (when

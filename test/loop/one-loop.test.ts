@@ -1,7 +1,7 @@
 /**
  * Every place that runs a plant file's trial builds its loop through loop/'s buildLoop, so the
  * same file gives the same trace, bit for bit, in `looprig run`, `looprig check`, the screen's
- * engine, the tuning context and diagnose (identity check, no outside reference needed).
+ * engine and its live run, the tuning context and diagnose (identity check, no outside reference needed).
  */
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -9,7 +9,8 @@ import { runPlant } from '../../src/cli/commands/run.js';
 import { simulatePlant } from '../../src/cli/simulate-plant.js';
 import { diagnosePlant } from '../../src/diagnose/index.js';
 import { runTrial, type Trace } from '../../src/sim/index.js';
-import { evaluate, fileEdit, setupLoop } from '../../src/tui/engine.js';
+import { evaluate, fileEdit, screenTrial, setupLoop } from '../../src/tui/engine.js';
+import { LiveRun } from '../../src/tui/live-run.js';
 import { fileLoop, tuningContext } from '../../src/tune/index.js';
 import { bundledPlants, load } from '../bench/bundled-plants.js';
 import { fakeIo } from '../cli/fake-io.js';
@@ -39,6 +40,15 @@ describe('one loop for every caller', () => {
       expect(channels(simulatePlant(spec).result.trace), 'check').toEqual(want);
       const setup = setupLoop(spec);
       expect(channels(evaluate(setup, fileEdit(setup), spec.loop.trial).result.trace), 'screen').toEqual(want);
+      // The screen's live run plays the same schedule (the file's gain switches left out, as on the
+      // screen): every row it has recorded equals the scripted trial's row.
+      const trial = screenTrial(spec.loop.trial);
+      const scripted = channels(evaluate(setup, fileEdit(setup), trial).result.trace);
+      const live = new LiveRun(setup, fileEdit(setup), trial.duration + 2 * spec.loop.sampleTime);
+      live.advance(trial.duration, Infinity);
+      const rows = live.trace().length;
+      expect(rows, 'live rows').toBe(scripted[0].length - 1);
+      expect(channels(live.trace()), 'live run').toEqual(scripted.map((c) => c.slice(0, rows)));
       const ctx = tuningContext(spec);
       expect(channels(runTrial(ctx.dynamics, loop.controller(), ctx.loop, spec.loop.trial).trace), 'tuning context').toEqual(want);
 
