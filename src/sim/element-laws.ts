@@ -66,3 +66,65 @@ export function sensorLaw(shape: SensorShape, first: string, deviate: string): s
   if (shape.quantised) a.push('ym = res * Math.round(ym / res);');
   return a.join('\n');
 }
+
+/** The variable each quantity of the PID law is held in: locals in the batch, fields in PidController. */
+export interface PidNames {
+  kc: string;
+  b: string;
+  c: string;
+  bi: string;
+  ad: string;
+  bd: string;
+  ar: string;
+  omin: string;
+  omax: string;
+  /** Integral term. */
+  I: string;
+  /** Filtered derivative term. */
+  D: string;
+  rPrev: string;
+  yPrev: string;
+  /** Error of the last update (for the integral update after it). */
+  e: string;
+  /** Unlimited output of the last update. */
+  v: string;
+}
+
+/**
+ * Bumpless start of the discrete PID law of control/pid.ts (which explains the discretisation):
+ * the integral set so that the output at setpoint `r0` and measurement `y` is `u0`.
+ */
+export function pidInitLaw(n: PidNames, r0: string, y: string, u0: string): string {
+  return `${n.I} = ${u0} - ${n.kc} * (${n.b} * ${r0} - ${y}); ${n.D} = 0; ${n.rPrev} = ${r0}; ${n.yPrev} = ${y}; ${n.e} = ${r0} - ${y}; ${n.v} = ${u0};`;
+}
+
+/**
+ * One update of the PID law at setpoint `r`, measurement `y`: declares `pp` (proportional term),
+ * `dn` (derivative term, which `adjust` may change: a bumpless gain change), `vv` (unlimited
+ * output) and `uc` (output within [omin, omax]); stores D, e, v, rPrev, yPrev. The integral is
+ * updated afterwards by `pidTrackLaw`.
+ */
+export function pidUpdateLaw(n: PidNames, r: string, y: string, adjust = ''): string {
+  return [
+    `const pp = ${n.kc} * (${n.b} * ${r} - ${y});`,
+    `let dn = ${n.ad} * ${n.D} + ${n.bd} * (${n.c} * ${r} - ${y} - (${n.c} * ${n.rPrev} - ${n.yPrev}));`,
+    adjust,
+    `${n.D} = dn;`,
+    `const vv = pp + ${n.I} + dn;`,
+    `${n.e} = ${r} - ${y}; ${n.v} = vv; ${n.rPrev} = ${r}; ${n.yPrev} = ${y};`,
+    `const uc = vv < ${n.omin} ? ${n.omin} : vv > ${n.omax} ? ${n.omax} : vv;`,
+  ].join('\n');
+}
+
+/**
+ * The integral update after the output `ua` the actuator delivered is known, with anti-windup:
+ * none; clamp (conditional integration: hold while limited and the error pushes further in);
+ * back-calculation (tracking gain `ar` = h / tracking time).
+ */
+export function pidTrackLaw(n: PidNames, antiWindup: 'none' | 'clamp' | 'back_calculation', ua: string): string {
+  const inc = `const inc = ${n.bi} * ${n.e};`;
+  if (antiWindup === 'none') return `${inc} ${n.I} += inc;`;
+  if (antiWindup === 'clamp') return `${inc} if (!((${n.v} > ${ua} && inc > 0) || (${n.v} < ${ua} && inc < 0))) ${n.I} += inc;`;
+  if (antiWindup === 'back_calculation') return `${inc} ${n.I} += inc + ${n.ar} * (${ua} - ${n.v});`;
+  throw new RangeError(`unknown anti-windup ${String(antiWindup)}`);
+}
