@@ -39,7 +39,7 @@
  * update() allocates nothing: all state is numeric fields.
  */
 import type { AntiWindup, GainSet } from '../model/types.js';
-import type { DiscreteController, PidLaw } from '../sim/index.js';
+import { compileElementLaw, pidInitLaw, pidTrackLaw, pidUpdateLaw, type DiscreteController, type PidLaw, type PidNames } from '../sim/index.js';
 
 /** Options of a PID controller besides its gains. */
 export interface PidOptions {
@@ -60,6 +60,38 @@ function awCode(a: AntiWindup): number {
   if (a === 'back_calculation') return AW_BACK;
   throw new RangeError(`unknown anti-windup ${String(a)}`);
 }
+
+/**
+ * The law itself is sim's element-laws.ts text (also generated inline by the batch runner, so the
+ * two stay bit-identical), compiled here over this class's fields. The bumpless gain change
+ * (integral state adjustment, see above) is this class's own addition to the update.
+ */
+const FIELDS: PidNames = {
+  kc: 's.kc',
+  b: 's.b',
+  c: 's.c',
+  bi: 's.bi',
+  ad: 's.ad',
+  bd: 's.bd',
+  ar: 's.ar',
+  omin: 's.outputMin',
+  omax: 's.outputMax',
+  I: 's.i',
+  D: 's.d',
+  rPrev: 's.rPrev',
+  yPrev: 's.yPrev',
+  e: 's.e',
+  v: 's.v',
+};
+const RETUNE =
+  'if (s.retune) { const pOld = s.kcOld * (s.bOld * r - y); ' +
+  'const dOld = s.adOld * s.d + s.bdOld * (s.cOld * r - y - (s.cOld * s.rPrev - s.yPrev)); ' +
+  'const vOld = pOld + s.i + dOld; dn = s.bd !== 0 ? dOld : 0; s.i = vOld - pp - dn; s.retune = false; }';
+const INIT = compileElementLaw<(s: PidController, r: number, y: number, u0: number) => void>(['s', 'r', 'y', 'u0'], pidInitLaw(FIELDS, 'r', 'y', 'u0'));
+const UPDATE = compileElementLaw<(s: PidController, r: number, y: number) => number>(['s', 'r', 'y'], `${pidUpdateLaw(FIELDS, 'r', 'y', RETUNE)}\nreturn uc;`);
+const TRACK = (['none', 'clamp', 'back_calculation'] as const).map((aw) =>
+  compileElementLaw<(s: PidController, ua: number) => void>(['s', 'ua'], pidTrackLaw(FIELDS, aw, 'ua')),
+);
 
 /** Check a gain set; throws RangeError. */
 export function checkGains(g: GainSet): void {
@@ -93,6 +125,8 @@ export class PidController implements DiscreteController {
   private bd = 0;
   private ar = 0;
   private aw = AW_NONE;
+  /** The integral update of the anti-windup in force (sim's element-laws.ts `pidTrackLaw`). */
+  private trackLaw: (s: PidController, ua: number) => void = TRACK[AW_NONE];
   private gainsNow: GainSet;
 
   // Coefficients in force before a pending gain change.
@@ -184,6 +218,7 @@ export class PidController implements DiscreteController {
       this.bd = 0;
     }
     this.aw = awCode(g.antiWindup);
+    this.trackLaw = TRACK[this.aw];
     this.ar = g.ti === Infinity ? 0 : h / defaultTrackingTime(g);
   }
 
@@ -192,12 +227,7 @@ export class PidController implements DiscreteController {
   }
 
   initialize(r: number, y: number, u0: number): void {
-    this.i = u0 - this.kc * (this.b * r - y);
-    this.d = 0;
-    this.rPrev = r;
-    this.yPrev = y;
-    this.e = r - y;
-    this.v = u0;
+    INIT(this, r, y, u0);
     this.pending = false;
     this.retune = false;
   }
@@ -205,25 +235,9 @@ export class PidController implements DiscreteController {
   update(r: number, y: number): number {
     // The previous sample's integral update is still owed if track() was not called.
     if (this.pending) this.integrate(this.limit(this.v));
-    const p = this.kc * (this.b * r - y);
-    let dNew = this.ad * this.d + this.bd * (this.c * r - y - (this.c * this.rPrev - this.yPrev));
-    if (this.retune) {
-      // Integral state adjustment: the output the old gains would give now, reproduced.
-      const pOld = this.kcOld * (this.bOld * r - y);
-      const dOld = this.adOld * this.d + this.bdOld * (this.cOld * r - y - (this.cOld * this.rPrev - this.yPrev));
-      const vOld = pOld + this.i + dOld;
-      dNew = this.bd !== 0 ? dOld : 0;
-      this.i = vOld - p - dNew;
-      this.retune = false;
-    }
-    this.d = dNew;
-    const v = p + this.i + dNew;
-    this.e = r - y;
-    this.v = v;
-    this.rPrev = r;
-    this.yPrev = y;
+    const uc = UPDATE(this, r, y);
     this.pending = true;
-    return this.limit(v);
+    return uc;
   }
 
   track(uApplied: number): void {
@@ -233,20 +247,7 @@ export class PidController implements DiscreteController {
 
   private integrate(ua: number): void {
     this.pending = false;
-    const inc = this.bi * this.e;
-    switch (this.aw) {
-      case AW_NONE:
-        this.i += inc;
-        break;
-      case AW_CLAMP:
-        // Conditional integration: hold while limited and the error pushes further in.
-        if ((this.v > ua && inc > 0) || (this.v < ua && inc < 0)) break;
-        this.i += inc;
-        break;
-      default:
-        this.i += inc + this.ar * (ua - this.v);
-        break;
-    }
+    this.trackLaw(this, ua);
   }
 
   setGains(g: GainSet): void {

@@ -23,11 +23,12 @@ import {
   type PoleZeroSummary,
   type SecondOrderApprox,
 } from '../analysis/index.js';
-import { applyStructure, buildController } from '../control/index.js';
+import { applyStructure } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { GainSet, PlantSpec, TrialSpec } from '../model/types.js';
-import { chooseStep, runTrial } from '../sim/index.js';
-import type { LinearModel, LoopConfig, PlantDynamics } from '../sim/types.js';
+import { buildLoop } from '../loop/index.js';
+import { runTrial } from '../sim/index.js';
+import type { LinearModel, PlantDynamics } from '../sim/types.js';
 import { controllerNoise } from './noise.js';
 import { THRESHOLDS } from './thresholds.js';
 import type { Diagnosis, Flag, OperatingPoint, TrialFindings } from './types.js';
@@ -556,13 +557,10 @@ function finishTrial(d: Diagnosis, spec: PlantSpec, dyn: PlantDynamics, gains: G
     d.notes.push('the trial was not simulated because of the model problem above');
     return;
   }
-  const loop = spec.loop;
   let findings: TrialFindings;
   try {
-    const controller = buildController(loop.controller, loop.sampleTime, { disturbanceNames: dyn.disturbanceNames });
-    const step = loop.step ?? chooseStep(dyn, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0).step;
-    const config: LoopConfig = { actuator: spec.actuator, sensor: spec.sensor, sampleTime: loop.sampleTime, step, integrator: loop.integrator };
-    const res = runTrial(dyn, controller, config, loop.trial);
+    const built = buildLoop(spec, { dynamics: dyn });
+    const res = runTrial(dyn, built.controller(), built.config, built.trial);
     const tr = res.trace;
     const { min, max } = spec.actuator;
     const tolU = 1e-9 * (Number.isFinite(max - min) ? max - min : 1);

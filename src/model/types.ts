@@ -254,14 +254,19 @@ export interface TrialSpec {
   duration: number;
   /** Setpoint before the first event (default: the plant output at t = 0). */
   initialSetpoint: number | null;
-  /** Controller output at t = 0 (bumpless start); null = computed from the initial state. */
+  /**
+   * Controller output at t = 0 (bumpless start); null = the input that holds the initial setpoint
+   * at steady state (`start: 'steady'`, loop/'s settledStart), else 0 within the actuator limits.
+   */
   initialOutput: number | null;
   /** Sorted by `at`. */
   events: TrialEvent[];
   /**
-   * How a linear model kind starts (default 'steady'): settled at the initial output and the
-   * initial load (its deviation variables at that operating point), or at rest (zero state), so
-   * that the initial output acts as a step at t = 0. Ode plants start from their initial states.
+   * How the loop starts, for every model kind (default 'steady'): settled at the equilibrium of
+   * the initial setpoint (with `initialOutput`: a linear kind settled at that input, an ode plant
+   * at its written initial states), the controller taking over
+   * bumplessly there (loop/settled-start.ts); or at rest: the initial states as written (the
+   * zero state of a linear kind), so that the initial output acts as a step at t = 0.
    */
   start?: TrialStart;
 }

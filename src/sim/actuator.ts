@@ -6,8 +6,12 @@
  * the plant sees ramp-then-hold rather than a jump. The plant input handed to the integrator is
  * the exact mean of that path over each integration step (see `fillSteps`), so the ramp is
  * resolved at integration-step resolution. Without a rate limit the output is a zero-order hold.
+ * The laws themselves are element-laws.ts (`actuatorCommandLaw`, `actuatorPathIntegral`), shared
+ * with the batch generator.
  */
 import type { ActuatorSpec } from '../model/types.js';
+import { actuatorCommandLaw, actuatorPathIntegral } from './element-laws.js';
+import { compileElementLaw } from './generate-stepper.js';
 
 export class Actuator {
   readonly min: number;
@@ -23,6 +27,11 @@ export class Actuator {
   private rampTime = 0;
   private rampSign = 0;
 
+  /** The command law (element-laws.ts), compiled once per shape. */
+  private readonly commandLaw: (s: Actuator, uc: number, ts: number) => void;
+  /** ∫₀^s position dτ along the sample's path (element-laws.ts). */
+  private readonly pathLaw: (s: number, tr: number, st: number, sg: number, rl: number, en: number) => number;
+
   constructor(spec: ActuatorSpec, initial: number) {
     if (!(spec.min <= spec.max)) throw new RangeError('actuator min must not exceed max');
     if (!(spec.rateLimit > 0)) throw new RangeError('actuator rate limit must be positive (Infinity for none)');
@@ -30,6 +39,14 @@ export class Actuator {
     this.max = spec.max;
     this.rateLimit = spec.rateLimit;
     this.start = this.end = this.clamp(initial);
+    this.commandLaw = compileElementLaw(
+      ['s', 'uc', 'ts'],
+      'const amin = s.min, amax = s.max, rate = s.rateLimit;\n' +
+        'let start = s.start, end = s.end, sat = false, rampTime = 0, rampSign = 0;\n' +
+        `${actuatorCommandLaw(this.rateLimit !== Infinity)}\n` +
+        's.start = start; s.end = end; s.saturated = sat; s.rampTime = rampTime; s.rampSign = rampSign;',
+    );
+    this.pathLaw = compileElementLaw(['s', 'tr', 'st', 'sg', 'rl', 'en'], `return ${actuatorPathIntegral('s', 'tr', 'st', 'sg', 'rl', 'en')};`);
   }
 
   /** Position limits only. */
@@ -42,40 +59,9 @@ export class Actuator {
     return this.rampTime > 0;
   }
 
-  /** Take the command for a sample of length `ts`; sets `end` and `saturated`. */
+  /** Take the command for a sample of length `ts`; sets `end` and `saturated` (element-laws.ts). */
   command(uc: number, ts: number): void {
-    this.start = this.end;
-    const target = this.clamp(uc);
-    // At a limit counts as saturated even when the controller already clamped its own request
-    // to the same limits (it usually does), otherwise position saturation would never show.
-    let sat = uc <= this.min || uc >= this.max;
-    this.rampTime = 0;
-    this.rampSign = 0;
-    if (this.rateLimit === Infinity || target === this.start) {
-      this.end = target;
-    } else {
-      const diff = target - this.start;
-      const tReach = Math.abs(diff) / this.rateLimit;
-      this.rampSign = diff > 0 ? 1 : -1;
-      if (tReach >= ts) {
-        this.rampTime = ts;
-        this.end = this.start + this.rampSign * this.rateLimit * ts;
-        sat = true;
-      } else {
-        this.rampTime = tReach;
-        this.end = target;
-      }
-    }
-    // A NaN command is passed through so that the loop diverges visibly instead of hiding it.
-    if (uc !== uc) this.end = uc;
-    this.saturated = sat;
-  }
-
-  /** ∫₀^s position dτ along the current sample's path. */
-  private integral(s: number): number {
-    const tr = this.rampTime;
-    if (s <= tr) return this.start * s + 0.5 * this.rampSign * this.rateLimit * s * s;
-    return this.start * tr + 0.5 * this.rampSign * this.rateLimit * tr * tr + this.end * (s - tr);
+    this.commandLaw(this, uc, ts);
   }
 
   /** out[off + i] = mean position over integration step i of the sample (n steps of h). */
@@ -85,8 +71,9 @@ export class Actuator {
       return;
     }
     let prev = 0;
+    const path = this.pathLaw;
     for (let i = 0; i < n; i++) {
-      const next = this.integral((i + 1) * h);
+      const next = path((i + 1) * h, this.rampTime, this.start, this.rampSign, this.rateLimit, this.end);
       out[off + i] = (next - prev) / h;
       prev = next;
     }

@@ -10,16 +10,15 @@
  * made of setpoint steps, setpoint ramps and disturbance changes (no mode or gain events).
  */
 import { MATH_HELPERS } from '../model/index.js';
-import type { TrialEvent } from '../model/types.js';
 import { Rng } from '../num/index.js';
-import { Actuator } from './actuator.js';
 import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
 import { loopStep } from './choose-step.js';
 import { delayInSteps, usableDelay } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
-import { runTrial, trialRows, type TrialOptions } from './run-trial.js';
+import { eventSchedule, SAMPLE_EPS as TIME_EPS, type EventSchedule } from './event-schedule.js';
+import { runTrial, type TrialOptions } from './run-trial.js';
 import { Sensor } from './sensor.js';
-import { startState } from './start-state.js';
+import { loopStart } from './start-state.js';
 import { createTrace } from './trace.js';
 import type { DiscreteController, LoopConfig, PidLaw, PlantDynamics, Trace, TrialResult, TrialSpec } from './types.js';
 
@@ -61,7 +60,6 @@ export interface BatchResult {
 /** Default `width`. */
 export const DEFAULT_BATCH_WIDTH = 4;
 
-const TIME_EPS = 1e-9;
 
 /**
  * `items` in consecutive chunks of at most `width` whose sizes differ by at most one, rather than
@@ -82,42 +80,23 @@ export function batchChunks<T>(items: readonly T[], width: number): T[][] {
   return out;
 }
 
-/** Sample index at which each applied event takes effect, mirroring runTrial's event loop. */
-interface Schedule {
-  rows: number;
-  lastRow: number;
-  applied: { k: number; ev: TrialEvent }[];
-}
-
-function schedule(trial: TrialSpec, ts: number): Schedule | string {
-  const lastRow = trialRows(trial.duration, ts) - 1;
-  const events = [...trial.events].sort((a, b) => a.at - b.at);
-  const applied: { k: number; ev: TrialEvent }[] = [];
-  let kNow = 0;
-  for (const ev of events) {
-    const k = Math.max(0, Math.ceil(ev.at / ts - 1e-9));
-    if (k > lastRow) break;
-    // Simulation.advance(k ts) runs samples while sampleIndex < ceil(k ts / ts - eps).
-    const target = Math.ceil((k * ts) / ts - TIME_EPS);
-    if (target > kNow) kNow = target;
-    if (ev.kind === 'mode' || ev.kind === 'gains') return `the trial has a ${ev.kind} event`;
-    applied.push({ k: kNow, ev });
-  }
-  const final = Math.max(kNow, Math.ceil((lastRow * ts) / ts - TIME_EPS));
-  if (final !== lastRow) return 'the trial ends off its own sample grid';
-  return { rows: lastRow + 1, lastRow, applied };
+/** The trial's schedule (event-schedule.ts, as runTrial steps through it), or why it cannot be generated. */
+function schedule(trial: TrialSpec, ts: number): EventSchedule | string {
+  const sched = eventSchedule(trial, ts);
+  for (const { event } of sched.events) if (event.kind === 'mode' || event.kind === 'gains') return `the trial has a ${event.kind} event`;
+  return sched;
 }
 
 /** Why this member cannot be generated (null = it can). */
-function unsupported(m: BatchMember, sched: Schedule | string): string | null {
+function unsupported(m: BatchMember, sched: EventSchedule | string): string | null {
   if (typeof sched === 'string') return sched;
   const c = m.controller;
   if (typeof c.pidLaw !== 'function') return 'the controller is not the plain PID law';
   if (c.observe !== undefined || (c.measurementNames !== undefined && c.measurementNames.length > 0)) {
     return 'the controller observes the plant';
   }
-  for (const a of sched.applied) {
-    if (a.ev.kind === 'disturbance' && m.plant.disturbanceNames.indexOf(a.ev.name) < 0) return `unknown disturbance ${a.ev.name}`;
+  for (const { event } of sched.events) {
+    if (event.kind === 'disturbance' && m.plant.disturbanceNames.indexOf(event.name) < 0) return `unknown disturbance ${event.name}`;
   }
   return null;
 }
@@ -147,7 +126,7 @@ interface Rows {
   d: Float64Array[];
 }
 
-function scheduleRows(sched: Schedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): Rows {
+function scheduleRows(sched: EventSchedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): Rows {
   const rows = sched.rows;
   const out: Rows = { t: new Float64Array(rows), r: new Float64Array(rows), d: names.map(() => new Float64Array(rows)) };
   let r = rInit;
@@ -158,10 +137,10 @@ function scheduleRows(sched: Schedule, ts: number, rInit: number, d0: Float64Arr
   let rampEnd = 0;
   const d = Float64Array.from(d0);
   let next = 0;
-  const applied = sched.applied;
+  const applied = sched.events;
   for (let k = 0; k <= sched.lastRow; k++) {
     while (next < applied.length && applied[next].k === k) {
-      const ev = applied[next++].ev;
+      const ev = applied[next++].event;
       if (ev.kind === 'setpoint') {
         rampActive = false;
         r = ev.value;
@@ -202,7 +181,7 @@ function scheduleRows(sched: Schedule, ts: number, rInit: number, d0: Float64Arr
  */
 class RowCache {
   private readonly map = new Map<string, Rows>();
-  get(sched: Schedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): Rows {
+  get(sched: EventSchedule, ts: number, rInit: number, d0: Float64Array, names: readonly string[]): Rows {
     const key = [ts, Object.is(rInit, -0) ? '-0' : rInit, ...Array.from(d0, (v) => (Object.is(v, -0) ? '-0' : v)), ...names].join('\u0000');
     let rows = this.map.get(key);
     if (rows === undefined) {
@@ -241,7 +220,7 @@ function prepare(
   index: number,
   m: BatchMember,
   trial: TrialSpec,
-  sched: Schedule,
+  sched: EventSchedule,
   helpers: Readonly<Record<string, (...args: number[]) => number>>,
   rowCache: RowCache,
   storage: Trace | undefined,
@@ -252,8 +231,8 @@ function prepare(
   if (!(ts > 0) || !Number.isFinite(ts)) throw new RangeError('sampleTime must be positive and finite');
   if (!(loop.integrator in { rk4: 1, heun: 1, euler: 1 })) throw new RangeError(`unknown integrator ${loop.integrator}`);
   if (plant.x0.length !== plant.nx) throw new TypeError('x0 length must equal nx');
-  const u0 = trial.initialOutput ?? Math.min(Math.max(0, loop.actuator.min), loop.actuator.max);
-  const uStart = new Actuator(loop.actuator, u0).end;
+  const start = loopStart(plant, loop, trial.initialOutput, trial.start);
+  const uStart = start.uStart;
   const chosen = loopStep(plant, ts, loop.step, loop.integrator, uStart);
   const law = (m.controller.pidLaw as () => PidLaw | null).call(m.controller);
   if (law === null) return 'the controller is not the plain PID law';
@@ -262,7 +241,6 @@ function prepare(
   if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
   const inSteps = delayInSteps(usableDelay(plant.inputDelay, trial.duration, ts), h);
   const outFn = generateOutput(plant, plant.outputSource, helpers);
-  const start = startState(plant, uStart, trial.start ?? 'steady');
   const y0 = outFn(Float64Array.from(start.x), plant.params, Float64Array.from(plant.d0), uStart, 0);
   const outSteps = delayInSteps(usableDelay(loop.sensor.delay, trial.duration, ts), h);
   const sensor = new Sensor(loop.sensor, ts);
@@ -364,7 +342,7 @@ function prepare(
 /** Run one generated batch of prepared members; writes their results. */
 function runChunk(
   chunk: Prepared[],
-  sched: Schedule,
+  sched: EventSchedule,
   noise: NoiseCache,
   helpers: Readonly<Record<string, (...args: number[]) => number>>,
   out: TrialResult[],
@@ -429,14 +407,14 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
   const results: TrialResult[] = new Array<TrialResult>(members.length);
   const batched = members.map(() => false);
   const notes: string[] = [];
-  const scheds = new Map<number, Schedule | string>();
+  const scheds = new Map<number, EventSchedule | string>();
   const groups = new Map<string, Prepared[]>();
   const single: number[] = [];
   const rowCache = new RowCache();
   const noise = noiseCache;
   members.forEach((m, i) => {
     const ts = m.loop.sampleTime;
-    let sched = scheds.get(ts);
+    let sched: EventSchedule | string | undefined = scheds.get(ts);
     if (sched === undefined) {
       sched = ts > 0 && Number.isFinite(ts) ? schedule(trial, ts) : 'bad sample time';
       scheds.set(ts, sched);
@@ -444,7 +422,7 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
     let why = unsupported(m, sched);
     let p: Prepared | string | null = null;
     if (why === null) {
-      p = prepare(i, m, trial, sched as Schedule, helpers, rowCache, options.traces?.[i]);
+      p = prepare(i, m, trial, sched as EventSchedule, helpers, rowCache, options.traces?.[i]);
       if (typeof p === 'string') why = p;
     }
     if (why !== null || p === null || typeof p === 'string') {
@@ -458,7 +436,7 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
     else list.push(p);
   });
   for (const list of groups.values()) {
-    const sched = scheds.get(list[0].member.loop.sampleTime) as Schedule;
+    const sched = scheds.get(list[0].member.loop.sampleTime) as EventSchedule;
     for (const chunk of batchChunks(list, width)) runChunk(chunk, sched, noise, helpers, results);
     for (const p of list) batched[p.index] = true;
   }

@@ -14,11 +14,11 @@
  * - plant: the sources exactly as `generateStepper` prepares them (`prepareSources`) and its
  *   integrator stages (`integratorStages`); the sampled output from the raw output source as
  *   `generateOutput` evaluates it;
- * - sensor (sensor.ts): delay line read, first-order-hold filter, additive noise, quantisation;
- * - controller: the plain PID law of control/pid.ts (`PidLaw` coefficients): initialise at the
- *   first sample, update, anti-windup in the track step;
- * - actuator (actuator.ts): position limits, rate-limit ramp within the sample, the per-step mean
- *   input of the ramp (`fillSteps`), input delay line;
+ * - sensor: delay line read, then element-laws.ts `sensorLaw` (the text `Sensor` runs);
+ * - controller: the plain PID law (`PidLaw` coefficients) from element-laws.ts `pidInitLaw`,
+ *   `pidUpdateLaw`, `pidTrackLaw`, the text control/pid.ts runs;
+ * - actuator: element-laws.ts `actuatorCommandLaw` and `actuatorPathIntegral` (the text
+ *   `Actuator` runs: limits, rate-limit ramp, the per-step mean input), input delay line;
  * - trace: y, ym, uc, u, sat written per sample; t, r and the disturbances are written by the
  *   caller beforehand (the setpoint and disturbance schedules do not depend on the loop).
  * Noise is the one thing shared: copies whose sensors have the same seed draw the same deviate
@@ -28,8 +28,12 @@
  * before `new Function` sees them (as for the one-loop stepper).
  */
 import { MATH_HELPERS, type AntiWindup, type IntegratorName } from '../model/index.js';
+import { actuatorCommandLaw, actuatorPathIntegral, pidInitLaw, pidTrackLaw, pidUpdateLaw, sensorLaw, type PidNames } from './element-laws.js';
 import { checkSource, integratorStages, INTEGRATOR_STAGES, prepareSources } from './generate-stepper.js';
 import type { PlantDynamics } from './types.js';
+
+/** The PID law's quantities as the generated body names them (the setpoint weight c is cw: c is the copy index). */
+const PID_LOCALS: PidNames = { kc: 'kc', b: 'b', c: 'cw', bi: 'bi', ad: 'ad', bd: 'bd', ar: 'ar', omin: 'omin', omax: 'omax', I: 'I', D: 'D', rPrev: 'rPrev', yPrev: 'yPrev', e: 'e', v: 'v' };
 
 /**
  * Per-copy constants, in this order, at offset c * batchWidths(nx, np).p + i of the `P` argument;
@@ -265,46 +269,16 @@ export function batchSource(
   // Measure: sensor delay, filter, noise, quantisation (sensor.ts).
   a.push('let ym = y;');
   if (shape.sensorDelay) a.push(readLine('B[2 * c + 1]', `Z[zo + ${S('sh')}]`, 'outDelay', 'ym'));
-  if (shape.filtered) {
-    a.push(
-      'if (k === 0) { z = ym; wPrev = ym; } else { z = fa * z + (1 - fa) * wPrev + (ym - wPrev) * fslope; wPrev = ym; }',
-      'ym = z;',
-    );
-  }
-  if (shape.noisy) a.push('ym += noise * G[ng + k];');
-  if (shape.quantised) a.push('ym = res * Math.round(ym / res);');
+  a.push(sensorLaw(shape, 'k === 0', 'G[ng + k]'));
   // Controller (control/pid.ts): initialise at the first sample (bumpless start), then update.
   a.push(
-    'if (k === 0) { const $r0 = rInit === rInit ? rInit : r; I = end - kc * (b * $r0 - ym); D = 0; rPrev = $r0; yPrev = ym; e = $r0 - ym; v = end; }',
-    'const pp = kc * (b * r - ym);',
-    'const dn = ad * D + bd * (cw * r - ym - (cw * rPrev - yPrev));',
-    'D = dn;',
-    'const vv = pp + I + dn;',
-    'e = r - ym; v = vv; rPrev = r; yPrev = ym;',
-    'const uc = vv < omin ? omin : vv > omax ? omax : vv;',
+    `if (k === 0) { const $r0 = rInit === rInit ? rInit : r; ${pidInitLaw(PID_LOCALS, '$r0', 'ym', 'end')} }`,
+    pidUpdateLaw(PID_LOCALS, 'r', 'ym'),
   );
   // Actuator (actuator.ts): position limits, rate-limit ramp within the sample.
-  a.push(
-    'start = end;',
-    'const tg = uc < amin ? amin : uc > amax ? amax : uc;',
-    'let sat = uc <= amin || uc >= amax;',
-    'rampTime = 0; rampSign = 0;',
-  );
-  if (shape.rateLimited) {
-    a.push(
-      'if (tg === start) end = tg; else { const $df = tg - start; const $tr = Math.abs($df) / rate; rampSign = $df > 0 ? 1 : -1; ' +
-        'if ($tr >= ts) { rampTime = ts; end = start + rampSign * rate * ts; sat = true; } else { rampTime = $tr; end = tg; } }',
-    );
-  } else {
-    a.push('end = tg;');
-  }
-  a.push('if (uc !== uc) end = uc;');
+  a.push('let sat = false;', actuatorCommandLaw(shape.rateLimited));
   // Anti-windup with what the actuator delivered (the controller's track step).
-  a.push('const inc = bi * e;');
-  if (shape.antiWindup === 'none') a.push('I += inc;');
-  else if (shape.antiWindup === 'clamp') a.push('if (!((v > end && inc > 0) || (v < end && inc < 0))) I += inc;');
-  else if (shape.antiWindup === 'back_calculation') a.push('I += inc + ar * (end - v);');
-  else throw new RangeError(`unknown anti-windup ${String(shape.antiWindup)}`);
+  a.push(pidTrackLaw(PID_LOCALS, shape.antiWindup, 'end'));
   a.push('T[to + 1][k] = y; T[to + 2][k] = ym; T[to + 3][k] = uc; T[to + 4][k] = end; T[to + 5][k] = sat ? 1 : 0;');
   a.push(
     BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'uPlant' && f !== 'prev')
@@ -349,8 +323,7 @@ export function batchSource(
     input.push(
       `const $tr = Z[zo + ${S('rampTime')}];`,
       `if ($tr !== 0) { const $st = Z[zo + ${S('start')}], $sg = Z[zo + ${S('rampSign')}], $rl = P[o + ${F('rate')}], $en = u; ` +
-        'const $s = ($i + 1) * h; const $nx = $s <= $tr ? $st * $s + 0.5 * $sg * $rl * $s * $s ' +
-        ': $st * $tr + 0.5 * $sg * $rl * $tr * $tr + $en * ($s - $tr); ' +
+        `const $s = ($i + 1) * h; const $nx = ${actuatorPathIntegral('$s', '$tr', '$st', '$sg', '$rl', '$en')}; ` +
         `u = ($nx - Z[zo + ${S('prev')}]) / h; Z[zo + ${S('prev')}] = $nx; }`,
     );
   }

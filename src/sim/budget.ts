@@ -13,7 +13,7 @@
  */
 import { roundStep } from './choose-step.js';
 import { usableDelay } from './delay-line.js';
-import { trialRows } from './run-trial.js';
+import { trialRows } from './event-schedule.js';
 
 /** A quantity of the run that drives its cost; callers map it to the field or option it came from. */
 export type BudgetCause = 'duration' | 'sample_time' | 'step' | 'input_delay' | 'sensor_delay' | 'runs';

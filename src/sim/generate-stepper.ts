@@ -360,3 +360,21 @@ export function generateOutput(
     return new Function('F', src)(helpers) as OutputFunction;
   });
 }
+
+const lawCache = new Map<string, unknown>();
+
+/**
+ * Compile an element law (source built by element-laws.ts from our own text and variable names,
+ * never user text) into a function of `params`, cached by its text. The one-loop engine's
+ * actuator and sensor run these, the batch generator inlines the same text.
+ */
+export function compileElementLaw<F>(params: readonly string[], body: string): F {
+  const key = [...params, body].join('\u0000');
+  let f = lawCache.get(key);
+  if (f === undefined) {
+    // eslint-disable-next-line @typescript-eslint/no-implied-eval -- our own element-law text
+    f = new Function(...params, `"use strict";\n${body}`);
+    lawCache.set(key, f);
+  }
+  return f as F;
+}

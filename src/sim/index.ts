@@ -11,6 +11,7 @@ export type {
   TrialResult,
   TrialSpec,
   PidLaw,
+  StartPoint,
 } from './types.js';
 export {
   generateStepper,
@@ -34,8 +35,14 @@ export { createTrace, TraceRing } from './trace.js';
 export type { TraceChannel } from './trace.js';
 export { Simulation, createSimulation } from './simulation.js';
 export type { SimulationInit, ControllerMode } from './simulation.js';
-export { runTrial, trialRows } from './run-trial.js';
+export { runTrial } from './run-trial.js';
+export { eventSchedule, trialRows, sampleIndexAt, SAMPLE_EPS } from './event-schedule.js';
+export type { EventSchedule, ScheduledEvent } from './event-schedule.js';
 export type { TrialOptions } from './run-trial.js';
+export { loopStart } from './start-state.js';
+export { pidInitLaw, pidUpdateLaw, pidTrackLaw } from './element-laws.js';
+export type { PidNames } from './element-laws.js';
+export { compileElementLaw } from './generate-stepper.js';
 export { decimateMinMax } from './decimate.js';
 export { withParams } from './with-params.js';
 export { runTrialBatch, batchChunks, DEFAULT_BATCH_WIDTH } from './batch-runner.js';

@@ -5,6 +5,8 @@
  */
 import type { SensorSpec } from '../model/types.js';
 import { Rng } from '../num/index.js';
+import { sensorLaw } from './element-laws.js';
+import { compileElementLaw } from './generate-stepper.js';
 
 export class Sensor {
   private readonly a: number;
@@ -16,6 +18,8 @@ export class Sensor {
   private z = 0;
   private wPrev = 0;
   private started = false;
+  /** The chain's law for this shape (element-laws.ts), compiled once per shape. */
+  private readonly law: (s: Sensor, w: number, g: number) => number;
 
   /** @param sampleTime controller sample time, s (the filter is discretised at this period). */
   constructor(spec: SensorSpec, sampleTime: number) {
@@ -32,6 +36,14 @@ export class Sensor {
     this.noiseStd = spec.noiseStd;
     this.resolution = spec.resolution;
     this.rng = new Rng(spec.seed);
+    const shape = { filtered: this.filtered, noisy: this.noiseStd > 0, quantised: this.resolution > 0 };
+    this.law = compileElementLaw(
+      ['s', 'w', 'g'],
+      'const fa = s.a, fslope = s.slope, noise = s.noiseStd, res = s.resolution;\n' +
+        'let ym = w, z = s.z, wPrev = s.wPrev;\n' +
+        `${sensorLaw(shape, '!s.started', 'g')}\n` +
+        's.z = z; s.wPrev = wPrev; s.started = true; return ym;',
+    );
   }
 
   /** Filter pole a = exp(−Ts/T) (0 without a filter), for generators repeating `measure`. */
@@ -44,23 +56,9 @@ export class Sensor {
     return this.slope;
   }
 
-  /** One sample of the measurement chain for the (delayed) plant output w. */
+  /** One sample of the measurement chain for the (delayed) plant output w (element-laws.ts). */
   measure(w: number): number {
-    let v = w;
-    if (this.filtered) {
-      if (!this.started) {
-        // The filter starts settled at the first measurement (the plant is assumed at rest).
-        this.z = w;
-        this.wPrev = w;
-        this.started = true;
-      } else {
-        this.z = this.a * this.z + (1 - this.a) * this.wPrev + (w - this.wPrev) * this.slope;
-        this.wPrev = w;
-      }
-      v = this.z;
-    }
-    if (this.noiseStd > 0) v += this.noiseStd * this.rng.nextGaussian();
-    if (this.resolution > 0) v = this.resolution * Math.round(v / this.resolution);
-    return v;
+    // One deviate per sample when noisy: the batch runner replays the same sequence per seed.
+    return this.law(this, w, this.noiseStd > 0 ? this.rng.nextGaussian() : 0);
   }
 }

@@ -4,7 +4,8 @@
  * this one code path.
  *
  * Per controller sample k, at t_k = k·Ts:
- *   1. events due at t_k are applied (by the caller, between `advance` calls);
+ *   1. events due at t_k are applied (by the caller, between `advanceTo` calls, at the sample
+ *      indices of the trial's event schedule: event-schedule.ts);
  *   2. the setpoint ramp, if any, is evaluated at t_k;
  *   3. measure: y(t_k) from the state, the sensor delay line, filter, noise, quantisation;
  *   4. the controller observes the disturbances and the named measurements it asked for (when
@@ -18,13 +19,14 @@
  *
  * Nothing in steps 2–8 allocates.
  */
-import type { GainSet, IntegratorName, TrialStart } from '../model/types.js';
+import type { GainSet, IntegratorName, TrialEvent, TrialStart } from '../model/types.js';
 import { Actuator } from './actuator.js';
 import { loopStep } from './choose-step.js';
 import { DelayLine, delayInSteps as delaySteps, usableDelay } from './delay-line.js';
+import { SAMPLE_EPS as TIME_EPS } from './event-schedule.js';
 import { generateOutput, generateStepper, type OutputFunction, type StepFunction } from './generate-stepper.js';
 import { Sensor } from './sensor.js';
-import { startState } from './start-state.js';
+import { loopStart } from './start-state.js';
 import { TraceRing } from './trace.js';
 import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus } from './types.js';
 
@@ -32,9 +34,9 @@ import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus } from '.
 export interface SimulationInit {
   /** Setpoint at t = 0; null/absent = the plant output at t = 0. */
   initialSetpoint?: number | null;
-  /** Controller output at t = 0; null/absent = clamp(0, actuator min, actuator max). */
+  /** Controller output at t = 0; null/absent = clamp(0, actuator min, actuator max). Ignored when the loop has its `start`. */
   initialOutput?: number | null;
-  /** A linear model starts settled at the initial output ('steady', default) or at rest (start-state.ts). */
+  /** A linear model starts settled at the initial output ('steady', default) or at rest (start-state.ts). Ignored when the loop has its `start`. */
   start?: TrialStart;
   /** Rows kept in the ring-buffer trace (default 4096). */
   traceCapacity?: number;
@@ -50,8 +52,6 @@ export interface SimulationInit {
 
 export type ControllerMode = 'manual' | 'auto';
 
-/** Tolerance on sample-instant comparisons, as a fraction of the sample time. */
-const TIME_EPS = 1e-9;
 
 /** A running closed loop. Create with `createSimulation`. */
 export class Simulation {
@@ -122,8 +122,8 @@ export class Simulation {
     this.integrator = loop.integrator;
     this.helpers = init.helpers;
 
-    const u0 = init.initialOutput ?? Math.min(Math.max(0, loop.actuator.min), loop.actuator.max);
-    this.actuator = new Actuator(loop.actuator, u0);
+    const start = loopStart(plant, loop, init.initialOutput, init.start);
+    this.actuator = new Actuator(loop.actuator, start.uStart);
     const uStart = this.actuator.end;
 
     const chosen = loopStep(plant, ts, loop.step, loop.integrator, uStart);
@@ -131,7 +131,6 @@ export class Simulation {
     this.substeps = chosen.substeps;
     for (const w of chosen.warnings) this.warnings.push(w);
 
-    const start = startState(plant, uStart, init.start ?? 'steady');
     this.x = start.x;
     if (start.warning !== null) this.warnings.push(start.warning);
     this.p = plant.params;
@@ -206,6 +205,38 @@ export class Simulation {
     const target = Math.ceil(toTime / this.sampleTime - TIME_EPS);
     while (this.k < target && this.status === 'ok') this.sample(true);
     return this.status;
+  }
+
+  /**
+   * Run whole samples until the next sample index is `k` (or the run diverged): the sample-index
+   * form of `advance`, used with an event schedule (event-schedule.ts). @returns the status afterwards.
+   */
+  advanceTo(k: number): RunStatus {
+    while (this.k < k && this.status === 'ok') this.sample(true);
+    return this.status;
+  }
+
+  /** Apply a trial event at the next sample (as scheduled by event-schedule.ts). */
+  apply(ev: TrialEvent): void {
+    switch (ev.kind) {
+      case 'setpoint':
+        this.setSetpoint(ev.value);
+        break;
+      case 'setpoint_ramp':
+        this.rampSetpoint(ev.to, ev.duration);
+        break;
+      case 'disturbance':
+        this.setDisturbance(ev.name, ev.value);
+        break;
+      case 'mode':
+        this.setMode(ev.mode, ev.output);
+        break;
+      case 'gains':
+        this.setGains(ev.gains);
+        break;
+      default:
+        throw new TypeError(`unknown event kind ${(ev as { kind: string }).kind}`);
+    }
   }
 
   /**

@@ -9,7 +9,8 @@
  */
 import { solve } from '../num/index.js';
 import type { TrialStart } from '../model/types.js';
-import type { PlantDynamics } from './types.js';
+import { Actuator } from './actuator.js';
+import type { LoopConfig, PlantDynamics } from './types.js';
 
 /** The start state and, when it is not the steady state asked for, why. */
 export function startState(plant: PlantDynamics, uStart: number, start: TrialStart = 'steady'): { x: Float64Array; warning: string | null } {
@@ -27,4 +28,27 @@ export function startState(plant: PlantDynamics, uStart: number, start: TrialSta
   }
   for (let i = 0; i < lin.nx; i++) x[i] += xs[i];
   return { x, warning: null };
+}
+
+/**
+ * The start of a loop as the engine runs it: the actuator position at t = 0 (the loop's own
+ * `start` when its builder gave one, else the trial's initial output, else 0, inside the
+ * actuator's limits) and the plant state there. One function for `Simulation` and the batch
+ * runner so that both start alike.
+ */
+export function loopStart(
+  plant: PlantDynamics,
+  loop: LoopConfig,
+  initialOutput: number | null | undefined,
+  start: TrialStart | undefined,
+): { x: Float64Array; uStart: number; warning: string | null } {
+  const given = loop.start;
+  const u0 = given !== undefined ? given.u : (initialOutput ?? Math.min(Math.max(0, loop.actuator.min), loop.actuator.max));
+  const uStart = new Actuator(loop.actuator, u0).end;
+  if (given !== undefined) {
+    if (given.x.length !== plant.nx) throw new TypeError('start state length must equal nx');
+    return { x: Float64Array.from(given.x), uStart, warning: null };
+  }
+  const s = startState(plant, uStart, start ?? 'steady');
+  return { x: s.x, uStart, warning: s.warning };
 }

@@ -75,6 +75,21 @@ export interface LoopConfig {
   /** Integration step; must divide the sample time (it is rounded so that it does). */
   step: number;
   integrator: IntegratorName;
+  /**
+   * Where the loop starts, worked out by its builder (loop/'s buildLoop: the operating point the
+   * trial asks for, an ode plant's equilibrium included). When given, it replaces the trial's
+   * `initialOutput` and `start`: the plant state is `x` and the actuator (and so the controller's
+   * bumpless first output) is at `u`. Absent: the engine's own start (start-state.ts).
+   */
+  start?: StartPoint;
+}
+
+/** A loop's starting point: plant state and actuator position at t = 0. */
+export interface StartPoint {
+  /** Plant state, length nx. */
+  x: Float64Array;
+  /** Actuator position (plant input) at t = 0, in the input's units. */
+  u: number;
 }
 
 /** Struct-of-arrays trace recorded once per controller sample. Row i is time t[i]. */

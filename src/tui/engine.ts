@@ -8,12 +8,13 @@
  * is the PID law inside that structure.
  */
 import { checkRequirements, trialMetrics, type RequirementResult, type TrialMetrics } from '../analysis/index.js';
-import { applyStructure, buildController } from '../control/index.js';
-import { compilePlant, MATH_HELPERS, fromIdeal } from '../model/index.js';
+import { applyStructure } from '../control/index.js';
+import type { BuiltLoop } from '../loop/index.js';
+import { MATH_HELPERS, fromIdeal } from '../model/index.js';
 import type { ControllerSpec, ControllerStructure, GainSet, PidForm, PlantSpec, StructureName, TrialSpec } from '../model/types.js';
 import { runTrial } from '../sim/index.js';
 import type { DiscreteController, LoopConfig, PlantDynamics, TrialResult } from '../sim/types.js';
-import { loopConfigOf, resolveController, structureMargins, tuningContext, type TuningContext } from '../tune/index.js';
+import { fileLoop, structureMargins, tuningContext, type TuningContext } from '../tune/index.js';
 import type { MarginsView } from './notices.js';
 import { formParams, type ControllerFrame, type GainEdit } from './state.js';
 
@@ -26,6 +27,8 @@ export interface LoopSetup {
   readonly controller: ControllerSpec;
   /** How the structure's model-derived values were obtained (empty for a plain law). */
   readonly basis: readonly string[];
+  /** The loop as loop/'s buildLoop made it (start point, notes); every run here uses it. */
+  readonly loop: BuiltLoop;
   /** The tune layer's preparation of the file (linear model, frequency response), made on first use. */
   context(): TuningContext;
 }
@@ -45,22 +48,13 @@ export interface Evaluation {
  * (e.g. a Smith predictor on an integrating plant), as `looprig run` refuses it.
  */
 export function setupLoop(plant: PlantSpec): LoopSetup {
-  const dynamics = compilePlant(plant);
-  const loop = plant.loop;
-  // The integration step as `looprig run` and the tune layer choose it (from the trial's initial output).
-  const config: LoopConfig = loopConfigOf(plant, dynamics).loop;
-  let ctx: TuningContext | null = null;
+  // The loop as `looprig run` builds it (loop/'s buildLoop through tune's fileLoop).
+  const file = fileLoop(plant);
+  const { dynamics, config } = file.loop;
+  let ctx: TuningContext | null = file.context;
   const context = (): TuningContext => (ctx ??= tuningContext(plant, dynamics));
-  const file = loop.controller;
-  let controller = file;
-  let basis: string[] = [];
-  if (file.extension !== undefined) {
-    const r = resolveController(context(), file);
-    // The resolved spec is in the ideal form; the screen keeps editing in the file's form.
-    controller = r.controller;
-    basis = [...r.basis, ...r.notes];
-  }
-  return { plant, dynamics, config, controller, basis, context };
+  // A resolved structure is in the ideal form; the screen keeps editing in the file's form.
+  return { plant, dynamics, config, controller: file.loop.controllerSpec, basis: file.basis, loop: file.loop, context };
 }
 
 /** The structure name a controller spec runs (pi_d, smith_pi ... or the plain law). */
@@ -132,7 +126,7 @@ export function specFor(setup: LoopSetup, edit: GainEdit): ControllerSpec {
 
 /** A controller of the edit's structure (the file's, or a compare candidate's) with these gains. */
 export function controllerFor(setup: LoopSetup, edit: GainEdit): DiscreteController {
-  return buildController(specFor(setup, edit), setup.config.sampleTime, setup.dynamics);
+  return setup.loop.controller(specFor(setup, edit));
 }
 
 /**

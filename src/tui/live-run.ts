@@ -7,7 +7,7 @@
 import { DEFAULT_SETTLING_BAND } from '../analysis/index.js';
 import { MATH_HELPERS } from '../model/index.js';
 import type { TrialEvent } from '../model/types.js';
-import { createSimulation, createTrace, type Simulation } from '../sim/index.js';
+import { createSimulation, createTrace, eventSchedule, sampleIndexAt, type ScheduledEvent, type Simulation } from '../sim/index.js';
 import type { Trace } from '../sim/types.js';
 import { controllerFor, runningGains, type LoopSetup } from './engine.js';
 import { frameId, type GainEdit } from './state.js';
@@ -56,7 +56,9 @@ export class LiveRun {
   readonly window: number;
   readonly sizes: StepSizes;
   private sim!: Simulation;
-  private pending: TrialEvent[] = [];
+  /** The file's trial events on the sample grid (sim's event schedule), and the next one due. */
+  private events: ScheduledEvent[] = [];
+  private next = 0;
   private readonly view: Trace;
   /** Setpoint changes so far (scripted and injected), for the requirement band. */
   private steps: { at: number; from: number; to: number }[] = [];
@@ -90,7 +92,8 @@ export class LiveRun {
       traceCapacity: rows,
       helpers: MATH_HELPERS,
     });
-    this.pending = [...trial.events].filter((e) => e.kind !== 'gains').sort((a, b) => a.at - b.at);
+    this.events = eventSchedule(trial, s.config.sampleTime, trial.events.filter((e) => e.kind !== 'gains')).events;
+    this.next = 0;
     this.setpointNow = this.sim.setpoint;
     this.steps = [];
     this.disturbance.set(s.dynamics.d0);
@@ -118,43 +121,46 @@ export class LiveRun {
    */
   advance(seconds: number, budgetMs: number): number {
     const start = performance.now();
-    const t0 = this.sim.time;
-    const target = t0 + seconds;
-    const chunk = CHUNK_SAMPLES * this.setup.config.sampleTime;
-    while (this.sim.time < target && this.sim.status === 'ok') {
-      let to = Math.min(target, this.sim.time + chunk);
-      const next = this.pending[0];
-      if (next !== undefined && next.at <= to) to = next.at;
-      const before = this.sim.time;
-      this.sim.advance(to);
-      while (this.pending.length > 0 && this.pending[0].at <= this.sim.time + 1e-9) this.apply(this.pending.shift()!);
-      // Only a chunk that moved time counts against the budget (an event due now moves none).
-      if (this.sim.time > before && performance.now() - start > budgetMs) break;
+    const sim = this.sim;
+    const t0 = sim.time;
+    const target = sampleIndexAt(t0 + seconds, this.setup.config.sampleTime);
+    const events = this.events;
+    // Events due at the current sample (those at t = 0 on the first call) act before it runs.
+    this.applyDue();
+    while (sim.sampleIndex < target && sim.status === 'ok') {
+      let to = Math.min(target, sim.sampleIndex + CHUNK_SAMPLES);
+      if (this.next < events.length && events[this.next].k < to) to = events[this.next].k;
+      sim.advanceTo(to);
+      this.applyDue();
+      if (performance.now() - start > budgetMs) break;
     }
-    return this.sim.time - t0;
+    return sim.time - t0;
+  }
+
+  /** Apply the scheduled events whose sample has come. */
+  private applyDue(): void {
+    const events = this.events;
+    while (this.next < events.length && events[this.next].k <= this.sim.sampleIndex) this.apply(events[this.next++].event);
   }
 
   private apply(ev: TrialEvent): void {
     switch (ev.kind) {
       case 'setpoint':
         this.setSetpoint(ev.value);
-        break;
+        return;
       case 'setpoint_ramp':
-        this.sim.rampSetpoint(ev.to, ev.duration);
         this.setpointNow = ev.to;
         break;
       case 'disturbance': {
         const i = this.setup.dynamics.disturbanceNames.indexOf(ev.name);
         if (i >= 0) this.disturbance[i] = ev.value;
-        this.sim.setDisturbance(ev.name, ev.value);
         break;
       }
-      case 'mode':
-        this.sim.setMode(ev.mode, ev.output);
-        break;
       case 'gains':
-        break;
+        // The gain set being edited runs throughout (the file's switches are left out).
+        return;
     }
+    this.sim.apply(ev);
   }
 
   private setSetpoint(r: number): void {

@@ -25,7 +25,7 @@ export { relayOnPlant } from './relay-on-plant.js';
 export type { PlantRelayOptions, PlantRelayResult } from './relay-on-plant.js';
 export { DEFAULT_COST, trialCost } from './cost.js';
 export type { CostKind, CostSpec } from './cost.js';
-export { tuningContext, loopConfigOf } from './tuning-context.js';
+export { tuningContext } from './tuning-context.js';
 export type { TuningContext } from './tuning-context.js';
 export { operatingPointModel } from './operating-point.js';
 export { evaluateGains, simulateGains, gainSetMs, gainNoiseActivity, FLAG_SHARE } from './evaluate.js';
@@ -43,7 +43,8 @@ export type { SweepPlan, SweepPart, RobustnessOptions, RobustnessCase, Robustnes
 export { EnvelopeBuilder, mergeEnvelopes, finishEnvelope } from './envelope.js';
 export type { TraceEnvelope, PartialEnvelope } from './envelope.js';
 export { specWithValues, modelWithValues } from './uncertain-spec.js';
-export { resolveController, fileController, StructureUnavailable, startState, trialSetpoints } from './structure-tuning.js';
+export { resolveController, fileController, fileLoop, StructureUnavailable, startState, trialSetpoints } from './structure-tuning.js';
+export type { FileLoop } from './structure-tuning.js';
 export type { ResolvedController, ResolveOptions } from './structure-tuning.js';
 export { structureMargins, gridMargins } from './structure-margins.js';
 export type { StructureMargins } from './structure-margins.js';

@@ -36,7 +36,9 @@ export function relayOnPlant(spec: PlantSpec, options: PlantRelayOptions = {}, c
   // plant moves with its static gain, not with its initial response.
   let direction: 1 | -1 = 1;
   if (ctx.linear !== null && poleZeroSummary(ctx.linear).lowFrequencyGain < 0) direction = -1;
-  const r = runRelayExperiment(ctx.dynamics, ctx.loop, {
+  // The experiment has its own operating point (the steady state at u0), not the file trial's start.
+  const { start: _trialStart, ...loop } = ctx.loop;
+  const r = runRelayExperiment(ctx.dynamics, loop, {
     amplitude,
     hysteresis: options.hysteresis ?? 0,
     direction,

@@ -37,7 +37,7 @@ import type {
   ScheduleSpec,
   SmithSpec,
 } from '../model/types.js';
-import { buildController } from '../control/index.js';
+import { buildLoop, type BuiltLoop } from '../loop/index.js';
 import { compilePlant } from '../model/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { DiscreteController, LinearModel, PlantDynamics } from '../sim/index.js';
@@ -69,10 +69,9 @@ export interface ResolveOptions {
   tuneGains?: boolean;
 }
 
-/** The operating point of the file's trial start: initial state, initial output (else 0), d0. */
+/** The operating point of the file's trial start (the loop's start: settled, or as the file asks), d0. */
 export function startState(ctx: TuningContext): OperatingState {
-  const dyn = ctx.dynamics;
-  return { x: Float64Array.from(dyn.x0), u: ctx.spec.loop.trial.initialOutput ?? 0, d: Float64Array.from(dyn.d0) };
+  return { x: Float64Array.from(ctx.start.x), u: ctx.start.u, d: Float64Array.from(ctx.dynamics.d0) };
 }
 
 function fmt(v: number): string {
@@ -430,8 +429,7 @@ function scheduleState(ctx: TuningContext, ext: ScheduleSpec, v: number, yTarget
 /** The trial's setpoints in order of first appearance (initial one first). */
 export function trialSetpoints(ctx: TuningContext): number[] {
   const t = ctx.spec.loop.trial;
-  const y0 = ctx.dynamics.output(0, ctx.dynamics.x0, t.initialOutput ?? 0, ctx.dynamics.d0, ctx.dynamics.params);
-  const out = [t.initialSetpoint ?? y0];
+  const out = [t.initialSetpoint ?? ctx.start.y];
   for (const e of t.events) {
     if (e.kind === 'setpoint') out.push(e.value);
     else if (e.kind === 'setpoint_ramp') out.push(e.to);
@@ -473,13 +471,29 @@ function resolveSchedule(
   return { ext: { ...ext, table }, gains: tune ? { ...gains, kc: w[0], ti: w[1], td: w[2] } : gains };
 }
 
+/** A plant file's loop with its controller ready to run, and how the structure's values were obtained. */
+export interface FileLoop {
+  loop: BuiltLoop;
+  /** How each model-derived value of a structure was obtained, then the notes (empty for a plain law). */
+  basis: string[];
+  /** The tuning context made to resolve a structure (null for a plain law). */
+  context: TuningContext | null;
+}
+
 /**
- * The controller of a plant file's `loop.controller`, ready for the engine: a plain law as it is,
- * a structure with its model-derived values filled in (gains as written). Throws
+ * The plant file's loop (loop/'s buildLoop) running the file's `loop.controller`: a plain law as
+ * it is, a structure with its model-derived values filled in (gains as written). Throws
  * `StructureUnavailable` when the structure cannot be set up for this plant.
  */
-export function fileController(spec: PlantSpec, dynamics: PlantDynamics = compilePlant(spec)): DiscreteController {
+export function fileLoop(spec: PlantSpec, dynamics: PlantDynamics = compilePlant(spec)): FileLoop {
   const c = spec.loop.controller;
-  const resolved = c.extension === undefined ? c : resolveController(tuningContext(spec, dynamics), c).controller;
-  return buildController(resolved, spec.loop.sampleTime, dynamics);
+  if (c.extension === undefined) return { loop: buildLoop(spec, { dynamics }), basis: [], context: null };
+  const context = tuningContext(spec, dynamics);
+  const r = resolveController(context, c);
+  return { loop: buildLoop(spec, { dynamics, controller: r.controller }), basis: [...r.basis, ...r.notes], context };
+}
+
+/** The controller of the file's loop (`fileLoop`), a fresh instance. */
+export function fileController(spec: PlantSpec, dynamics: PlantDynamics = compilePlant(spec)): DiscreteController {
+  return fileLoop(spec, dynamics).loop.controller();
 }

@@ -10,7 +10,7 @@ import { pathToFileURL } from 'node:url';
 import { main } from '../../src/cli/index.js';
 import { compilePlant } from '../../src/model/index.js';
 import { runTrial } from '../../src/sim/index.js';
-import { fileController, loopConfigOf } from '../../src/tune/index.js';
+import { fileLoop } from '../../src/tune/index.js';
 import { fakeIo } from '../cli/fake-io.js';
 import { median } from './median.js';
 import { bundledPlants, PLANTS_DIR } from './bundled-plants.js';
@@ -19,8 +19,8 @@ export async function run(): Promise<void> {
   const plants = bundledPlants().map((p) => p.spec);
   const bare = (): void => {
     for (const p of plants) {
-      const d = compilePlant(p);
-      runTrial(d, fileController(p, d), loopConfigOf(p, d).loop, p.loop.trial);
+      const { loop } = fileLoop(p, compilePlant(p));
+      runTrial(loop.dynamics, loop.controller(), loop.config, loop.trial);
     }
   };
   const check = async (): Promise<number> => main(['check', PLANTS_DIR], fakeIo());

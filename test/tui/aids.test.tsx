@@ -99,10 +99,10 @@ describe('tui aids: optimiser (O)', () => {
     intact(f);
     const kc = /gains: Kc (\S+)/.exec(f)?.[1];
     expect(kc).toBeDefined();
-    // Never worse than its start (the optimiser keeps its best vertex; the start is one).
-    const result = Number(/result: IAE (\S+)/.exec(f)![1]);
-    const start = Number(/start: [^,]+, IAE (\S+)/.exec(f)![1]);
-    expect(result).toBeLessThanOrEqual(start);
+    // Both costs are shown (the ranking of result against start is checked in aid-jobs.test.ts:
+    // a start that misses a requirement may cost less than a result that meets it).
+    expect(Number(/result: IAE (\S+)/.exec(f)![1])).toBeGreaterThan(0);
+    expect(Number(/start: [^,]+, IAE (\S+)/.exec(f)![1])).toBeGreaterThan(0);
     await s.press(KEY.enter);
     await until(() => s.frame().includes('optimised gain set applied'), 'the applied message', s.frame);
     expect(shown(s.frame(), 'Kc')).toBe(kc);

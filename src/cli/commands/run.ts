@@ -3,13 +3,11 @@
  * A diverging loop is a result (exit 0, reported clearly); a bad file or bad arguments exit 2.
  */
 import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
-import { checkRequirements, headlineMetrics, headlineSources, stepFigureText, trialMetrics } from '../../analysis/index.js';
+import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { HeadlineFigure, RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
-import { fileController } from '../../tune/index.js';
 import { compilePlant, MIN_STEP } from '../../model/index.js';
 import type { PlantSpec, Requirements } from '../../model/types.js';
-import { chooseStep, runTrial } from '../../sim/index.js';
-import type { LoopConfig, Trace, TrialResult } from '../../sim/types.js';
+import type { Trace, TrialResult } from '../../sim/types.js';
 import { UserError } from '../errors.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
@@ -19,6 +17,7 @@ import type { Override } from '../load-plant-file.js';
 import type { RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
 import { enforceBudget, LIMIT_OPTIONS } from '../budget-check.js';
+import { simulatePlant } from '../simulate-plant.js';
 import { USAGE } from '../usage.js';
 import { writeOutput } from '../write-output.js';
 
@@ -78,7 +77,6 @@ const FREQUENCY_REQUIREMENTS: readonly [keyof Requirements, string][] = [
 export function runPlant(options: RunOptions, io: Io): RunReport {
   const loaded = loadPlantFile(options.file, io, options.overrides);
   const plant = withRunOverrides(loaded.plant, options);
-  const loop = plant.loop;
   const dynamics = compilePlant(plant);
   enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
@@ -89,22 +87,11 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
       ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
     },
   });
-  const controller = fileController(plant, dynamics);
-  const choice = loop.step === null ? chooseStep(dynamics, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0) : null;
-  const step = loop.step ?? choice!.step;
-  const config: LoopConfig = {
-    actuator: plant.actuator,
-    sensor: plant.sensor,
-    sampleTime: loop.sampleTime,
-    step,
-    integrator: loop.integrator,
-  };
-  const result = runTrial(dynamics, controller, config, loop.trial);
-  const metrics = trialMetrics(result.trace, loop.trial, loop.requirements);
-  const requirements = checkRequirements(metrics, loop.requirements);
-  const warnings = [...loaded.warnings, ...(choice?.warnings ?? []), ...result.warnings];
+  const sim = simulatePlant(plant, dynamics);
+  const { result, metrics, requirements } = sim;
+  const warnings = [...loaded.warnings, ...sim.warnings];
   for (const [key, name] of FREQUENCY_REQUIREMENTS) {
-    if (loop.requirements[key] !== undefined) warnings.push(`requirement ${name} is not checked by run (frequency domain)`);
+    if (plant.loop.requirements[key] !== undefined) warnings.push(`requirement ${name} is not checked by run (frequency domain)`);
   }
   return { file: options.file, plant, result, metrics, requirements, warnings };
 }

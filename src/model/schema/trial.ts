@@ -44,13 +44,17 @@ export const TRIAL_SCHEMA: SectionDef = {
   fields: {
     duration: { kind: 'time', rule: { gt: 0, le: MAX_TIME }, required: true, description: `Length of the trial (> 0, at most ${MAX_TIME} s), s or with a unit.` },
     initial_setpoint: { kind: 'number', description: 'Setpoint before the first event (default: the plant output at t = 0).' },
-    initial_output: { kind: 'number', description: 'Controller output at t = 0 (bumpless start; default: computed from the initial state).' },
+    initial_output: {
+      kind: 'number',
+      description:
+        'Controller output at t = 0 (bumpless start). Given: the actuator starts there; a linear model settles at it (start: steady), an ode plant starts from the initial states it writes. Absent: the input that holds the initial setpoint at steady state (start: steady), else 0 within the actuator limits.',
+    },
     start: {
       kind: 'choice',
       choices: TRIAL_STARTS,
       default: 'steady',
       description:
-        'How a linear model starts: steady = settled at initial_output (and the initial load); rest = zero state, so initial_output is a step at t = 0. Ode plants start from their initial states.',
+        'How the loop starts, for every model kind. steady = settled: the equilibrium whose output is the initial setpoint (else the output at the initial states), with the disturbances at their initial values and the controller taking over bumplessly at the input that holds it; with initial_output, a linear model settles at that input and an ode plant starts from its initial states. When none exists within the actuator limits (unreachable setpoint, integrating model) the trial starts at rest with a warning. rest = the initial states as written (the zero state of a linear model) and the actuator at initial_output, else 0, so that initial_output is a step at t = 0.',
     },
     events: { kind: 'list', items: { kind: 'section', section: EVENT_SCHEMA }, description: 'Events in any order (sorted by time; same-time events keep their order).' },
   },

@@ -1,0 +1,130 @@
+/**
+ * The per-sample laws of the loop elements around the plant, written ONCE as JavaScript source
+ * over named variables. The one-loop engine's `Actuator` and `Sensor` run functions compiled from
+ * this text (generate-stepper.ts `compileElementLaw`), and the batch generator (batch-stepper.ts)
+ * writes the same text inline for every copy, so both execute the same operations in the same
+ * order and a batched run stays bit-identical to `runTrial`. A new element (stiction, backlash,
+ * a valve characteristic) is added here once.
+ *
+ * Pure text, no user input: every name below is ours; numbers arrive as variables.
+ */
+
+/**
+ * Actuator command for one sample of length `ts`: position limits, then the rate-limit ramp WITHIN
+ * the sample (actuator.ts explains the model). Reads `uc` (command), `amin`, `amax`, `rate`, `ts`,
+ * `end` (the position reached by the last sample); writes `start`, `end`, `sat` (at a limit, of
+ * position or rate), `rampTime` (time into the sample at which the ramp arrives, 0 = no ramp) and
+ * `rampSign`. Declares `tg` (the limited target).
+ */
+export function actuatorCommandLaw(rateLimited: boolean): string {
+  return [
+    'start = end;',
+    'const tg = uc < amin ? amin : uc > amax ? amax : uc;',
+    // At a limit counts as saturated even when the controller already clamped its own request to
+    // the same limits (it usually does), otherwise position saturation would never show.
+    'sat = uc <= amin || uc >= amax;',
+    'rampTime = 0; rampSign = 0;',
+    rateLimited
+      ? 'if (tg === start) end = tg; else { const $df = tg - start; const $tr = Math.abs($df) / rate; rampSign = $df > 0 ? 1 : -1; ' +
+        'if ($tr >= ts) { rampTime = ts; end = start + rampSign * rate * ts; sat = true; } else { rampTime = $tr; end = tg; } }'
+      : 'end = tg;',
+    // A NaN command is passed through so that the loop diverges visibly instead of hiding it.
+    'if (uc !== uc) end = uc;',
+  ].join('\n');
+}
+
+/**
+ * ∫₀^s position dτ along the sample's ramp-then-hold path, as an expression: `s` time into the
+ * sample, `tr` ramp time, `st` start position, `sg` ramp sign, `rl` rate limit, `en` end position.
+ * The mean plant input over an integration step is the difference of two of these over h.
+ */
+export function actuatorPathIntegral(s: string, tr: string, st: string, sg: string, rl: string, en: string): string {
+  return `(${s} <= ${tr} ? ${st} * ${s} + 0.5 * ${sg} * ${rl} * ${s} * ${s} : ${st} * ${tr} + 0.5 * ${sg} * ${rl} * ${tr} * ${tr} + ${en} * (${s} - ${tr}))`;
+}
+
+/** Which parts of the measurement chain are present. */
+export interface SensorShape {
+  filtered: boolean;
+  noisy: boolean;
+  quantised: boolean;
+}
+
+/**
+ * The measurement chain on `ym` (the delayed plant output on entry, the measurement on exit):
+ * first-order-hold filter (sensor.ts gives the discretisation; state `z`, `wPrev`, pole `fa`,
+ * slope `fslope`, settled at the first sample where `first` is true), additive noise
+ * `noise * deviate` (one standard Gaussian deviate per sample), quantisation to `res`.
+ * @param first source of a boolean: this is the first measurement
+ * @param deviate source of this sample's standard Gaussian deviate
+ */
+export function sensorLaw(shape: SensorShape, first: string, deviate: string): string {
+  const a: string[] = [];
+  if (shape.filtered) {
+    a.push(`if (${first}) { z = ym; wPrev = ym; } else { z = fa * z + (1 - fa) * wPrev + (ym - wPrev) * fslope; wPrev = ym; }`, 'ym = z;');
+  }
+  if (shape.noisy) a.push(`ym += noise * ${deviate};`);
+  if (shape.quantised) a.push('ym = res * Math.round(ym / res);');
+  return a.join('\n');
+}
+
+/** The variable each quantity of the PID law is held in: locals in the batch, fields in PidController. */
+export interface PidNames {
+  kc: string;
+  b: string;
+  c: string;
+  bi: string;
+  ad: string;
+  bd: string;
+  ar: string;
+  omin: string;
+  omax: string;
+  /** Integral term. */
+  I: string;
+  /** Filtered derivative term. */
+  D: string;
+  rPrev: string;
+  yPrev: string;
+  /** Error of the last update (for the integral update after it). */
+  e: string;
+  /** Unlimited output of the last update. */
+  v: string;
+}
+
+/**
+ * Bumpless start of the discrete PID law of control/pid.ts (which explains the discretisation):
+ * the integral set so that the output at setpoint `r0` and measurement `y` is `u0`.
+ */
+export function pidInitLaw(n: PidNames, r0: string, y: string, u0: string): string {
+  return `${n.I} = ${u0} - ${n.kc} * (${n.b} * ${r0} - ${y}); ${n.D} = 0; ${n.rPrev} = ${r0}; ${n.yPrev} = ${y}; ${n.e} = ${r0} - ${y}; ${n.v} = ${u0};`;
+}
+
+/**
+ * One update of the PID law at setpoint `r`, measurement `y`: declares `pp` (proportional term),
+ * `dn` (derivative term, which `adjust` may change: a bumpless gain change), `vv` (unlimited
+ * output) and `uc` (output within [omin, omax]); stores D, e, v, rPrev, yPrev. The integral is
+ * updated afterwards by `pidTrackLaw`.
+ */
+export function pidUpdateLaw(n: PidNames, r: string, y: string, adjust = ''): string {
+  return [
+    `const pp = ${n.kc} * (${n.b} * ${r} - ${y});`,
+    `let dn = ${n.ad} * ${n.D} + ${n.bd} * (${n.c} * ${r} - ${y} - (${n.c} * ${n.rPrev} - ${n.yPrev}));`,
+    adjust,
+    `${n.D} = dn;`,
+    `const vv = pp + ${n.I} + dn;`,
+    `${n.e} = ${r} - ${y}; ${n.v} = vv; ${n.rPrev} = ${r}; ${n.yPrev} = ${y};`,
+    `const uc = vv < ${n.omin} ? ${n.omin} : vv > ${n.omax} ? ${n.omax} : vv;`,
+  ].join('\n');
+}
+
+/**
+ * The integral update after the output `ua` the actuator delivered is known, with anti-windup:
+ * none; clamp (conditional integration: hold while limited and the error pushes further in);
+ * back-calculation (tracking gain `ar` = h / tracking time).
+ */
+export function pidTrackLaw(n: PidNames, antiWindup: 'none' | 'clamp' | 'back_calculation', ua: string): string {
+  const inc = `const inc = ${n.bi} * ${n.e};`;
+  if (antiWindup === 'none') return `${inc} ${n.I} += inc;`;
+  if (antiWindup === 'clamp') return `${inc} if (!((${n.v} > ${ua} && inc > 0) || (${n.v} < ${ua} && inc < 0))) ${n.I} += inc;`;
+  if (antiWindup === 'back_calculation') return `${inc} ${n.I} += inc + ${n.ar} * (${ua} - ${n.v});`;
+  throw new RangeError(`unknown anti-windup ${String(antiWindup)}`);
+}
