@@ -301,7 +301,7 @@ function bounds(kind: FitKind, dt: number, duration: number): [Float64Array, Flo
   }
 }
 
-function isAtBound(v: number, lo: number, hi: number): boolean {
+export function isAtBound(v: number, lo: number, hi: number): boolean {
   const tol = 1e-9 * Math.max(1, Math.abs(v));
   return (Number.isFinite(lo) && v - lo <= tol) || (Number.isFinite(hi) && hi - v <= tol);
 }
