@@ -283,7 +283,7 @@ function feedthroughCovariance(
 }
 
 /** Box for each family: times within the record's reach, damping within [0.05, 30]. */
-function bounds(kind: FitKind, dt: number, duration: number): [Float64Array, Float64Array] {
+export function bounds(kind: FitKind, dt: number, duration: number): [Float64Array, Float64Array] {
   const inf = Infinity;
   const tMin = 0.02 * dt;
   const tMax = 20 * duration;
@@ -386,7 +386,7 @@ function rangeOf(a: Float64Array): number {
 }
 
 /** Parameters for reports, with 95 % intervals (± 1.96 σ) and, for derived values, the delta method. */
-function describeParameters(
+export function describeParameters(
   kind: FitKind,
   v: number[],
   cov: Float64Array | null,

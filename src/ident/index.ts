@@ -36,3 +36,5 @@ export { validateModel } from './validate.js';
 export type { Validation } from './validate.js';
 export { fitPlantParameters } from './grey-box.js';
 export type { GreyBoxFit, GreyBoxParameter } from './grey-box.js';
+export { fitClosedLoop, MAX_CONDITION } from './closed-loop-fit.js';
+export type { ClosedLoopFit, ClosedLoopOptions, Excitation } from './closed-loop-fit.js';
