@@ -38,3 +38,4 @@ export { fitPlantParameters } from './grey-box.js';
 export type { GreyBoxFit, GreyBoxParameter } from './grey-box.js';
 export { fitClosedLoop, MAX_CONDITION } from './closed-loop-fit.js';
 export type { ClosedLoopFit, ClosedLoopOptions, Excitation } from './closed-loop-fit.js';
+export { plantSettlingTime } from './plant-settling.js';

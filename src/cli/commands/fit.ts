@@ -5,6 +5,8 @@
  * `LOG.csv:LINE:COL: message` diagnostics.
  */
 import { parseCommandArgs } from '../parse-command.js';
+import { fitClosedLoopCommand } from './fit-closed-loop.js';
+import { fitPlantCommand } from './fit-plant.js';
 import * as asciichart from 'asciichart';
 import {
   buildPlantFile,
@@ -43,6 +45,23 @@ Options:
   --skip-bad-rows     drop rows with missing or non-numeric cells instead of failing
   --out FILE          write the chosen model as a plant file (with a starting PI and a trial)
   --force             let --out replace an existing file
+  --actuator-min U    the actuator's real limits (input units) for the --out file; without
+  --actuator-max U    them the file has no actuator limits (the log's span is not the range)
+
+Closed loop (the log comes from the loop in automatic):
+  --setpoint COL      setpoint column: fit by the direct prediction-error method, report how
+                      much the setpoint and the controller output moved, refuse what the data
+                      cannot support
+  --controller FILE   a plant file whose controller was in force: check that it explains the
+                      logged controller output
+
+Against a plant file:
+  --plant FILE        simulate FILE with the logged input and validate it: NRMSE, R², the
+                      largest error, residual whiteness and input-correlation tests
+  --params A,B        with --plant (an ode model): estimate these params from the log, with
+                      intervals and correlations (bounds from the file's uncertainty ranges)
+  --write             with --params: put the estimates into FILE with a dated note
+  --svg OUT           with --plant or --setpoint: plot data against the model
   --show              draw the data against the chosen model's response
   --json              print one JSON document on stdout
   -h, --help          show this text
@@ -65,6 +84,14 @@ export interface FitOptions {
   force: boolean;
   show: boolean;
   json: boolean;
+  actuatorMin: number | null;
+  actuatorMax: number | null;
+  setpoint: string | null;
+  controller: string | null;
+  plant: string | null;
+  params: string[] | null;
+  write: boolean;
+  svg: string | null;
 }
 
 /** Parse the arguments of `fit`; a mistake is a `UserError` with exit status 2. */
@@ -81,6 +108,14 @@ export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
     force: { type: 'boolean' },
     show: { type: 'boolean' },
     json: { type: 'boolean' },
+    'actuator-min': { type: 'string' },
+    'actuator-max': { type: 'string' },
+    setpoint: { type: 'string' },
+    controller: { type: 'string' },
+    plant: { type: 'string' },
+    params: { type: 'string' },
+    write: { type: 'boolean' },
+    svg: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
   if (values.help) return 'help';
@@ -108,7 +143,32 @@ export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
     force: values.force === true,
     show: values.show === true,
     json: values.json === true,
+    actuatorMin: limitValue(values['actuator-min'], 'actuator-min'),
+    actuatorMax: limitValue(values['actuator-max'], 'actuator-max'),
+    setpoint: values.setpoint ?? null,
+    controller: values.controller ?? null,
+    plant: values.plant ?? null,
+    params: values.params === undefined ? null : values.params.split(',').map((x) => x.trim()).filter((x) => x !== ''),
+    write: values.write === true,
+    svg: values.svg ?? null,
   };
+}
+
+/** Options that belong to one mode only, used in another: one line saying which goes with which. */
+function checkModeOptions(o: FitOptions): void {
+  if (o.plant !== null && o.setpoint !== null) throw new UserError('fit: --plant and --setpoint are separate uses: validate or fit a plant file, or fit a closed-loop log');
+  if (o.params !== null && o.plant === null) throw new UserError('fit: --params needs --plant FILE (the ode plant file whose params to estimate)');
+  if (o.write && o.params === null) throw new UserError('fit: --write needs --plant FILE --params NAME,... (it writes the estimates into the plant file)');
+  if (o.controller !== null && o.setpoint === null) throw new UserError('fit: --controller needs --setpoint COL (it applies to a closed-loop log)');
+  if (o.svg !== null && o.plant === null && o.setpoint === null) throw new UserError('fit: --svg needs --plant FILE or --setpoint COL (use --show for a bump-test fit)');
+  if ((o.plant !== null || o.setpoint !== null) && (o.out !== null || o.show)) throw new UserError('fit: --out and --show belong to a bump-test fit; leave them out with --plant or --setpoint');
+}
+
+function limitValue(raw: string | undefined, flag: string): number | null {
+  if (raw === undefined) return null;
+  const v = Number(raw);
+  if (raw.trim() === '' || !Number.isFinite(v)) throw new UserError(`fit: --${flag} ${raw}: expected a number in the input's units`);
+  return v;
 }
 
 /** Everything `fit` computed. */
@@ -129,6 +189,9 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
     io.out(FIT_USAGE);
     return 0;
   }
+  checkModeOptions(options);
+  if (options.plant !== null) return fitPlantCommand(options, io);
+  if (options.setpoint !== null) return fitClosedLoopCommand(options, io);
   let text: string;
   try {
     text = io.readText(options.file);
@@ -161,9 +224,43 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
 /** Read, window, fit. Prints diagnostics to stderr; returns null after errors. */
 export function fitLog(text: string, options: FitOptions, io: Io): FitReport | null {
   const file = options.file;
-  const printAll = (ds: readonly LogDiagnostic[]): void => {
-    for (const d of ds) io.err(`${formatLogDiagnostic(d, file)}\n`);
-  };
+  const log = readLog(text, options, io);
+  if (log === null) return null;
+  const { data, diagnostics } = log;
+  const result = identify(data, { models: options.models });
+  diagnostics.push(...result.diagnostics);
+  if (!options.json) printLogDiagnostics(diagnostics, file, io);
+  const windowFrom = data.t0;
+  const windowTo = data.t0 + (data.n - 1) * data.dt;
+  const plantText = options.out !== null
+    ? buildPlantFile(result, data, {
+      fileName: baseName(file), from: windowFrom, to: windowTo,
+      actuator: { min: options.actuatorMin, max: options.actuatorMax },
+    })
+    : null;
+  return { file, data, result, diagnostics, from: windowFrom, to: windowTo, plantText };
+}
+
+/** Print log diagnostics as `FILE:LINE:COL: message` lines on stderr. */
+export function printLogDiagnostics(ds: readonly LogDiagnostic[], file: string, io: Io): void {
+  for (const d of ds) io.err(`${formatLogDiagnostic(d, file)}\n`);
+}
+
+/** A read and windowed log: the input/output record and the extra columns on the same grid. */
+export interface ReadLog {
+  data: BumpData;
+  /** Extra columns (e.g. the setpoint) resampled like the input (held values), by name. */
+  extra: Record<string, Float64Array>;
+  diagnostics: LogDiagnostic[];
+}
+
+/**
+ * Read the columns of `options` (and `extraColumns`) from the log text and cut the window.
+ * Prints the reader's errors to stderr and returns null after errors.
+ */
+export function readLog(text: string, options: FitOptions, io: Io, extraColumns: readonly string[] = []): ReadLog | null {
+  const file = options.file;
+  const printAll = (ds: readonly LogDiagnostic[]): void => printLogDiagnostics(ds, file, io);
   const header = readCsvHeader(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
   const pick = (given: string | null, position: number, flag: string): string => {
     if (given !== null) return given;
@@ -175,7 +272,7 @@ export function fitLog(text: string, options: FitOptions, io: Io): FitReport | n
   const time = header === null ? options.time ?? '' : pick(options.time, 0, 'time');
   const input = header === null ? options.input ?? '' : pick(options.input, 1, 'input');
   const output = header === null ? options.output ?? '' : pick(options.output, 2, 'output');
-  const read = readCsv(text, { time, columns: [input, output], skipBadRows: options.skipBadRows });
+  const read = readCsv(text, { time, columns: [input, output, ...extraColumns], skipBadRows: options.skipBadRows });
   if (read.table === null || hasLogErrors(read.diagnostics)) {
     printAll(read.diagnostics);
     return null;
@@ -189,16 +286,13 @@ export function fitLog(text: string, options: FitOptions, io: Io): FitReport | n
     printAll(diagnostics);
     return null;
   }
-  const data = prepared.data;
-  const result = identify(data, { models: options.models });
-  diagnostics.push(...result.diagnostics);
-  if (!options.json) printAll(diagnostics);
-  const windowFrom = data.t0;
-  const windowTo = data.t0 + (data.n - 1) * data.dt;
-  const plantText = options.out !== null
-    ? buildPlantFile(result, data, { fileName: baseName(file), from: windowFrom, to: windowTo })
-    : null;
-  return { file, data, result, diagnostics, from: windowFrom, to: windowTo, plantText };
+  const extra: Record<string, Float64Array> = {};
+  for (const name of extraColumns) {
+    // The same window and grid as the input (held between rows, as a setpoint is).
+    const column = prepareBumpData(tableData, { input: name, output, from, to }).data;
+    if (column !== null) extra[name] = column.u;
+  }
+  return { data: prepared.data, extra, diagnostics };
 }
 
 /** --from/--to: seconds with an optional unit, or an ISO time for a timestamp column. */
@@ -224,7 +318,8 @@ function exists(io: Io, path: string): boolean {
   }
 }
 
-function baseName(path: string): string {
+/** The file name without its folder. */
+export function baseName(path: string): string {
   const i = Math.max(path.lastIndexOf('/'), path.lastIndexOf('\\'));
   return i >= 0 ? path.slice(i + 1) : path;
 }
