@@ -39,3 +39,6 @@ export type { GreyBoxFit, GreyBoxParameter } from './grey-box.js';
 export { fitClosedLoop, MAX_CONDITION } from './closed-loop-fit.js';
 export type { ClosedLoopFit, ClosedLoopOptions, Excitation } from './closed-loop-fit.js';
 export { plantSettlingTime } from './plant-settling.js';
+export { prbsSequence, PRBS_TAPS, PRBS_MIN_BITS, PRBS_MAX_BITS } from './prbs.js';
+export { planBumpTest } from './test-plan.js';
+export type { PlanFigures, PlanMove, PrbsPlan, TestPlan } from './test-plan.js';
