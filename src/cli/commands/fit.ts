@@ -286,13 +286,21 @@ export function readLog(text: string, options: FitOptions, io: Io, extraColumns:
     printAll(diagnostics);
     return null;
   }
+  const data = prepared.data;
   const extra: Record<string, Float64Array> = {};
   for (const name of extraColumns) {
-    // The same window and grid as the input (held between rows, as a setpoint is).
-    const column = prepareBumpData(tableData, { input: name, output, from, to }).data;
-    if (column !== null) extra[name] = column.u;
+    // On the record's grid, each value held from its row on (as a setpoint is).
+    const raw = tableData.columns[name];
+    const out = new Float64Array(data.n);
+    let row = 0;
+    for (let k = 0; k < data.n; k++) {
+      const t = data.t0 + k * data.dt + 1e-9 * data.dt;
+      while (row + 1 < tableData.rows && tableData.time[row + 1] <= t) row++;
+      out[k] = raw[row];
+    }
+    extra[name] = out;
   }
-  return { data: prepared.data, extra, diagnostics };
+  return { data, extra, diagnostics };
 }
 
 /** --from/--to: seconds with an optional unit, or an ISO time for a timestamp column. */
