@@ -16,6 +16,7 @@ import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import { parseCommandArgs } from '../parse-command.js';
+import { writeOutput } from '../write-output.js';
 
 /** Help text of `bump-plan`. */
 export const BUMP_PLAN_USAGE = `looprig bump-plan [FILE] - plan a bump test before logging one
@@ -122,19 +123,15 @@ export async function bumpPlanCommand(args: readonly string[], io: Io): Promise<
   const trialText = trialYaml(plan, usePrbs);
   const out = values.out ?? null;
   if (out !== null) {
-    let taken = true;
+    let taken: boolean;
     try {
-      io.readText(out);
-    } catch {
-      taken = false;
+      taken = io.exists(out);
+    } catch (error) {
+      throw new UserError(`bump-plan: cannot tell whether ${out} exists (${(error as Error).message}); not written`);
     }
     if (taken) throw new UserError(`bump-plan: ${out} exists; choose another --out`);
     const text = file !== null ? withTrial(io.readText(file), plan, usePrbs) : newPlantFile(figures, plan, usePrbs);
-    try {
-      io.writeText(out, text);
-    } catch (error) {
-      throw new UserError(`cannot write ${out}: ${(error as Error).message}`);
-    }
+    writeOutput(io, out, text, {}, 'bump-plan');
   }
   if (values.json === true) {
     io.out(toJson({ figures, plan, trial: trialText, out }));

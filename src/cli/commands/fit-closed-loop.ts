@@ -13,8 +13,8 @@ import { num, table } from '../format.js';
 import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
-import type { FitOptions } from './fit.js';
-import { printLogDiagnostics, readLog } from './fit.js';
+import type { FitOptions } from './fit-log.js';
+import { printLogDiagnostics, readLog, readLogText } from './fit-log.js';
 import { writeSvg } from './fit-plant.js';
 
 /** NRMSE above which the controller in the file does not explain the logged output (our choice). */
@@ -23,12 +23,7 @@ const CONTROLLER_MISMATCH = 0.05;
 /** `fit LOG --setpoint COL ...` */
 export async function fitClosedLoopCommand(options: FitOptions, io: Io): Promise<number> {
   const controllerSpec = options.controller !== null ? loadPlantFile(options.controller, io).plant.loop.controller : null;
-  let text: string;
-  try {
-    text = io.readText(options.file);
-  } catch (error) {
-    throw new UserError(`cannot read ${options.file}: ${(error as Error).message}`);
-  }
+  const text = readLogText(options.file, io);
   const sp = options.setpoint!;
   const log = readLog(text, options, io, [sp]);
   if (log === null) return UserError.USAGE;

@@ -19,8 +19,9 @@ import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import { svgPlot } from '../svg-plot.js';
-import type { FitOptions } from './fit.js';
-import { baseName, printLogDiagnostics, readLog } from './fit.js';
+import { writeOutput } from '../write-output.js';
+import type { FitOptions } from './fit-log.js';
+import { baseName, printLogDiagnostics, readLog, readLogText } from './fit-log.js';
 
 /** `fit LOG --plant FILE ...` */
 export async function fitPlantCommand(options: FitOptions, io: Io): Promise<number> {
@@ -29,12 +30,7 @@ export async function fitPlantCommand(options: FitOptions, io: Io): Promise<numb
   const spec = loaded.plant;
   const names = options.params;
   if (names !== null) checkParams(spec, loaded.text, plantPath, names);
-  let text: string;
-  try {
-    text = io.readText(options.file);
-  } catch (error) {
-    throw new UserError(`cannot read ${options.file}: ${(error as Error).message}`);
-  }
+  const text = readLogText(options.file, io);
   const log = readLog(text, options, io);
   if (log === null) return UserError.USAGE;
   const data = log.data;
@@ -95,12 +91,7 @@ function writeEstimates(text: string, path: string, fit: GreyBoxFit, logFile: st
     .join(', ');
   const note = gainNote(date, `fit ${baseName(logFile)} (grey box, 95 %: ${what})`);
   const edits = fit.parameters.map((p) => ({ path: ['model', 'params', p.name], value: +p.value.toPrecision(6), note }));
-  const next = savePlantValues(text, edits);
-  try {
-    io.writeText(path, next);
-  } catch (error) {
-    throw new UserError(`cannot write ${path}: ${(error as Error).message}`);
-  }
+  writeOutput(io, path, savePlantValues(text, edits), { expectExisting: true }, 'fit');
 }
 
 function header(data: BumpData, options: FitOptions): string {
@@ -203,9 +194,5 @@ export function writeSvg(options: FitOptions, data: BumpData, model: Float64Arra
       { yLabel: data.inputName, series: [{ label: `${data.inputName} (log)`, t, v: data.u, color: '#d62728', step: true }] },
     ],
   });
-  try {
-    io.writeText(options.svg!, svg);
-  } catch (error) {
-    throw new UserError(`cannot write ${options.svg}: ${(error as Error).message}`);
-  }
+  writeOutput(io, options.svg!, svg, {}, 'fit');
 }

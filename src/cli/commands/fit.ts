@@ -5,28 +5,18 @@
  * `LOG.csv:LINE:COL: message` diagnostics.
  */
 import { parseCommandArgs } from '../parse-command.js';
-import { fitClosedLoopCommand } from './fit-closed-loop.js';
-import { fitPlantCommand } from './fit-plant.js';
 import * as asciichart from 'asciichart';
-import {
-  buildPlantFile,
-  FIT_KINDS,
-  formatLogDiagnostic,
-  hasLogErrors,
-  identify,
-  parseFitKind,
-  parseIsoTimestamp,
-  prepareBumpData,
-  readCsv,
-  readCsvHeader,
-} from '../../ident/index.js';
-import type { BumpData, CsvTable, FitKind, IdentifyResult, LogDiagnostic } from '../../ident/index.js';
-import { tryParseDuration } from '../../model/index.js';
+import { buildPlantFile, FIT_KINDS, identify, parseFitKind } from '../../ident/index.js';
+import type { BumpData, FitKind, IdentifyResult, LogDiagnostic } from '../../ident/index.js';
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
-import { EncodingError, type Io } from '../io.js';
+import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { writeOutput } from '../write-output.js';
+import { fitClosedLoopCommand } from './fit-closed-loop.js';
+import { baseName, printLogDiagnostics, readLog, readLogText } from './fit-log.js';
+import type { FitOptions } from './fit-log.js';
+import { fitPlantCommand } from './fit-plant.js';
 
 /** Help text of `fit`. */
 export const FIT_USAGE = `looprig fit LOG.csv - fit a model to a logged bump test
@@ -70,29 +60,7 @@ Exit status: 0 fitted; 2 bad arguments or a log that cannot be fitted
 (printed as LOG.csv:LINE:COL: message).
 `;
 
-/** Parsed arguments of `fit`. */
-export interface FitOptions {
-  file: string;
-  time: string | null;
-  input: string | null;
-  output: string | null;
-  from: string | null;
-  to: string | null;
-  models: FitKind[] | 'auto';
-  skipBadRows: boolean;
-  out: string | null;
-  force: boolean;
-  show: boolean;
-  json: boolean;
-  actuatorMin: number | null;
-  actuatorMax: number | null;
-  setpoint: string | null;
-  controller: string | null;
-  plant: string | null;
-  params: string[] | null;
-  write: boolean;
-  svg: string | null;
-}
+export type { FitOptions } from './fit-log.js';
 
 /** Parse the arguments of `fit`; a mistake is a `UserError` with exit status 2. */
 export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
@@ -192,16 +160,7 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
   checkModeOptions(options);
   if (options.plant !== null) return fitPlantCommand(options, io);
   if (options.setpoint !== null) return fitClosedLoopCommand(options, io);
-  let text: string;
-  try {
-    text = io.readText(options.file);
-  } catch (error) {
-    if (error instanceof EncodingError) {
-      io.err(`${error.message}\n`);
-      return UserError.USAGE;
-    }
-    throw new UserError(`cannot read ${options.file}: ${(error as Error).message}`);
-  }
+  const text = readLogText(options.file, io);
   if (options.out !== null && !options.force && exists(io, options.out)) {
     throw new UserError(`fit: ${options.out} exists; add --force to replace it`);
   }
@@ -241,81 +200,6 @@ export function fitLog(text: string, options: FitOptions, io: Io): FitReport | n
   return { file, data, result, diagnostics, from: windowFrom, to: windowTo, plantText };
 }
 
-/** Print log diagnostics as `FILE:LINE:COL: message` lines on stderr. */
-export function printLogDiagnostics(ds: readonly LogDiagnostic[], file: string, io: Io): void {
-  for (const d of ds) io.err(`${formatLogDiagnostic(d, file)}\n`);
-}
-
-/** A read and windowed log: the input/output record and the extra columns on the same grid. */
-export interface ReadLog {
-  data: BumpData;
-  /** Extra columns (e.g. the setpoint) resampled like the input (held values), by name. */
-  extra: Record<string, Float64Array>;
-  diagnostics: LogDiagnostic[];
-}
-
-/**
- * Read the columns of `options` (and `extraColumns`) from the log text and cut the window.
- * Prints the reader's errors to stderr and returns null after errors.
- */
-export function readLog(text: string, options: FitOptions, io: Io, extraColumns: readonly string[] = []): ReadLog | null {
-  const file = options.file;
-  const printAll = (ds: readonly LogDiagnostic[]): void => printLogDiagnostics(ds, file, io);
-  const header = readCsvHeader(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
-  const pick = (given: string | null, position: number, flag: string): string => {
-    if (given !== null) return given;
-    if (header !== null && header.length >= 3) return header[position];
-    throw new UserError(`fit: give --${flag} COL (${header === null ? 'the file has no header row' : `the header has ${header.length} column${header.length === 1 ? '' : 's'}`})`);
-  };
-  // Encoding and empty-file errors come from the reader itself, with positions: only pick
-  // defaults when there is a header to pick from.
-  const time = header === null ? options.time ?? '' : pick(options.time, 0, 'time');
-  const input = header === null ? options.input ?? '' : pick(options.input, 1, 'input');
-  const output = header === null ? options.output ?? '' : pick(options.output, 2, 'output');
-  const read = readCsv(text, { time, columns: [input, output, ...extraColumns], skipBadRows: options.skipBadRows });
-  if (read.table === null || hasLogErrors(read.diagnostics)) {
-    printAll(read.diagnostics);
-    return null;
-  }
-  const tableData = read.table;
-  const from = windowBound(options.from, 'from', tableData);
-  const to = windowBound(options.to, 'to', tableData);
-  const prepared = prepareBumpData(tableData, { input, output, from, to });
-  const diagnostics = [...read.diagnostics, ...prepared.diagnostics];
-  if (prepared.data === null) {
-    printAll(diagnostics);
-    return null;
-  }
-  const data = prepared.data;
-  const extra: Record<string, Float64Array> = {};
-  for (const name of extraColumns) {
-    // On the record's grid, each value held from its row on (as a setpoint is).
-    const raw = tableData.columns[name];
-    const out = new Float64Array(data.n);
-    let row = 0;
-    for (let k = 0; k < data.n; k++) {
-      const t = data.t0 + k * data.dt + 1e-9 * data.dt;
-      while (row + 1 < tableData.rows && tableData.time[row + 1] <= t) row++;
-      out[k] = raw[row];
-    }
-    extra[name] = out;
-  }
-  return { data, extra, diagnostics };
-}
-
-/** --from/--to: seconds with an optional unit, or an ISO time for a timestamp column. */
-function windowBound(raw: string | null, flag: string, t: CsvTable): number | null {
-  if (raw === null) return null;
-  if (t.timeFormat === 'iso') {
-    const stamp = parseIsoTimestamp(raw);
-    if (stamp !== null) return (stamp.epochMs - t.epochMs!) / 1000;
-  }
-  const plain = Number(raw);
-  if (raw.trim() !== '' && Number.isFinite(plain)) return plain;
-  const d = tryParseDuration(raw);
-  if (d.ok && Number.isFinite(d.value)) return d.value;
-  throw new UserError(`fit: --${flag} ${raw}: expected seconds (e.g. 120 or 2min)${t.timeFormat === 'iso' ? ' or an ISO-8601 time' : ''}`);
-}
 
 /** Whether --out names something already there. A file we cannot read still exists. */
 function exists(io: Io, path: string): boolean {
@@ -326,11 +210,6 @@ function exists(io: Io, path: string): boolean {
   }
 }
 
-/** The file name without its folder. */
-export function baseName(path: string): string {
-  const i = Math.max(path.lastIndexOf('/'), path.lastIndexOf('\\'));
-  return i >= 0 ? path.slice(i + 1) : path;
-}
 
 const LABELS: Record<string, string> = {
   gain: 'gain',
