@@ -118,7 +118,10 @@ export function planBumpTest(f: PlanFigures): TestPlan {
     hold = pulse;
   }
   if (Number.isFinite(span) && span > 0) size = Math.max(size, 0.01 * span);
-  if (!(size > 0)) size = Number.isFinite(span) && span > 0 ? 0.05 * span : 1;
+  if (!(size > 0)) {
+    size = Number.isFinite(span) && span > 0 ? 0.05 * span : 1;
+    warnings.push(`no noise figure (σ = 0): the step size ${g(size)} is a guess (5 % of the actuator range, or 1); give the noise σ for a step sized to it`);
+  }
   size = niceUp(size);
   if (size > room) {
     warnings.push(`the actuator leaves room for a move of ${g(room)} only, and the response needs ${g(size)} to reach ${snr} noise deviations: expect a noisier fit, or test at another operating point`);
