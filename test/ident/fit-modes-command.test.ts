@@ -31,7 +31,7 @@ describe('fit --plant: grey box and validation', () => {
     const written = io.files.get('tank.yaml')!;
     const plant = loadPlant(written, 'tank.yaml').plant!;
     expect(plant.model.type === 'ode' && plant.model.params.area).toBeCloseTo(1.5, 2);
-    expect(written).toMatch(/# \d{4}-\d{2}-\d{2} fit tank\.csv \(grey box, 95 %: area 1\.(49|50)/);
+    expect(written).toMatch(/# looprig: \d{4}-\d{2}-\d{2} fit tank\.csv \(grey box, 95 %: area 1\.(49|50)/);
     // Every other line is kept byte for byte (comments included).
     const before = tankFile.split('\n');
     const after = written.split('\n');
