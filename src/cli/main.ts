@@ -2,6 +2,7 @@
  * Command dispatch: parse, map to one core call per command, print, return an exit code.
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
  */
+import { bumpPlanCommand } from './commands/bump-plan.js';
 import { checkCommand } from './commands/check.js';
 import { compareCommand } from './commands/compare.js';
 import { diagnoseCommand } from './commands/diagnose.js';
@@ -36,6 +37,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await fitCommand(rest, io);
       case 'run':
         return await runCommand(rest, io);
+      case 'bump-plan':
+        return await bumpPlanCommand(rest, io);
       case 'export':
         return await exportCommand(rest, io);
       case 'check':

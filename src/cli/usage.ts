@@ -11,7 +11,11 @@ Usage:
   looprig suggest FILE           every published tuning rule, each simulated on the full plant
   looprig optimize FILE          gains that minimise IAE (or ITAE) subject to Ms <= 1.6; --write saves
   looprig compare FILE           controller structures side by side, each tuned to the same Ms
-  looprig fit LOG.csv            fit a model to a logged bump test; --out writes a plant file
+  looprig fit LOG.csv            fit a model to a logged bump test; --out writes a plant file;
+                                 --setpoint COL for a log of the loop in automatic; --plant FILE
+                                 validates a plant file (--params A,B estimates its params)
+  looprig bump-plan [FILE]       plan a bump test (step size, interval, timing, PRBS) and write it
+                                 as a trial to rehearse
   looprig export FILE            the gains in your controller's form and units, and discrete
                                  velocity-form coefficients
   looprig schema                 print the JSON Schema of plant files (for editors)

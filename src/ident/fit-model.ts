@@ -11,7 +11,7 @@
  * The delay of the inverse-response family is located only to within a sample interval (see
  * `feedthroughCovariance`); its interval reflects that.
  */
-import { leastSquaresCovariance, levenbergMarquardt, nelderMead } from '../num/index.js';
+import { jacobianConditioning, leastSquaresCovariance, levenbergMarquardt, nelderMead } from '../num/index.js';
 import type { BumpData } from './bump-data.js';
 import { emptyLti, FIT_KIND_INFO, kindSystem } from './fit-kinds.js';
 import type { FitKind } from './fit-kinds.js';
@@ -33,6 +33,8 @@ export interface FittedParameter {
   atBound: boolean;
   /** True for values computed from the fitted ones (e.g. two lags from ωn and ζ). */
   derived: boolean;
+  /** Why the parameter has no interval when the information matrix is singular in it (absent otherwise). */
+  undetermined?: string;
 }
 
 /** A fitted model family. */
@@ -64,6 +66,8 @@ export interface ModelFit {
   evaluations: number;
   /** Which starting point led to the result. */
   start: string;
+  /** Why some parameters have no interval (singular information matrix), one sentence each. */
+  undetermined: string[];
 }
 
 /** Context shared by the fits of one record. */
@@ -73,6 +77,8 @@ export interface FitContext {
   reading: StepReading | null;
   /** The first-order fit, used to start the richer families (optional). */
   firstOrder?: ModelFit | null;
+  /** Integrating family only: hold the lag at 0 (the pure integrator with dead time, one parameter fewer). */
+  withoutLag?: boolean;
 }
 
 /** Records longer than this are fitted first on a decimated copy. */
@@ -96,6 +102,8 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   const coarse = data.n > COARSE_ABOVE ? decimate(full, Math.ceil(data.n / COARSE_TARGET)) : full;
   const duration = data.n * data.dt;
   const [lower, upper] = bounds(kind, data.dt, duration);
+  const lagHeld = kind === 'integrating' && ctx.withoutLag === true;
+  if (lagHeld) upper[1] = 0;
   const sim = new ResponseSimulator();
   // Families with a direct feed-through find their basin with the continuous (interpolated) form.
   const hasFeedthrough = kind === 'inverse_response';
@@ -218,6 +226,22 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   } else {
     cov = leastSquaresCovariance(final.jacobian, full.n, np, final.sse, fixed);
   }
+  // A singular covariance never drops every interval silently: name the parameter(s) responsible,
+  // hold them, and keep the others' intervals.
+  const undetermined = new Map<number, string>();
+  let held = fixed;
+  while (cov === null) {
+    const c = jacobianConditioning(final.jacobian, full.n, np, held);
+    if (c.singular === null) break;
+    const who = info.params[c.singular];
+    const partners = c.partners.map((j) => info.params[j]);
+    undetermined.set(c.singular, partners.length > 0
+      ? `the data cannot tell ${who} apart from ${partners.join(', ')} (singular information matrix): no interval for ${who}`
+      : `the data do not determine ${who} (singular information matrix): no interval for it`);
+    held = held.slice();
+    held[c.singular] = true;
+    cov = leastSquaresCovariance(final.jacobian, full.n, np, final.sse, held);
+  }
 
   const response = new Float64Array(full.n);
   residuals(full)(final.x, response);
@@ -231,13 +255,19 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   const rmse = Math.sqrt(sse / full.n);
   // A noise-free record can fit to rounding: floor the SSE so the criterion stays finite.
   const sseFloor = full.n * (1e-12 * Math.max(yRange, 1e-300)) ** 2;
-  const bic = full.n * Math.log(Math.max(sse, sseFloor) / full.n) + np * Math.log(full.n);
+  const nFree = lagHeld ? np - 1 : np;
+  const bic = full.n * Math.log(Math.max(sse, sseFloor) / full.n) + nFree * Math.log(full.n);
+  const parameters = describeParameters(kind, values, cov, held, data);
+  for (const [j, why] of undetermined) {
+    const p = parameters.find((q) => q.name === info.params[j]);
+    if (p !== undefined) Object.assign(p, { atBound: fixed[j], stdError: null, ci95: null, undetermined: why });
+  }
   return {
     kind,
     values,
     u0: analysis.u0,
-    parameters: describeParameters(kind, values, cov, fixed, data),
-    nParams: np,
+    parameters,
+    nParams: nFree,
     n: full.n,
     sse,
     rmse,
@@ -249,7 +279,8 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
     converged: final.converged,
     iterations,
     evaluations,
-    start: best!.label,
+    start: lagHeld ? `${best!.label}, lag held at 0` : best!.label,
+    undetermined: [...undetermined.values()],
   };
 }
 
@@ -283,7 +314,7 @@ function feedthroughCovariance(
 }
 
 /** Box for each family: times within the record's reach, damping within [0.05, 30]. */
-function bounds(kind: FitKind, dt: number, duration: number): [Float64Array, Float64Array] {
+export function bounds(kind: FitKind, dt: number, duration: number): [Float64Array, Float64Array] {
   const inf = Infinity;
   const tMin = 0.02 * dt;
   const tMax = 20 * duration;
@@ -301,7 +332,7 @@ function bounds(kind: FitKind, dt: number, duration: number): [Float64Array, Flo
   }
 }
 
-function isAtBound(v: number, lo: number, hi: number): boolean {
+export function isAtBound(v: number, lo: number, hi: number): boolean {
   const tol = 1e-9 * Math.max(1, Math.abs(v));
   return (Number.isFinite(lo) && v - lo <= tol) || (Number.isFinite(hi) && hi - v <= tol);
 }
@@ -386,7 +417,7 @@ function rangeOf(a: Float64Array): number {
 }
 
 /** Parameters for reports, with 95 % intervals (± 1.96 σ) and, for derived values, the delta method. */
-function describeParameters(
+export function describeParameters(
   kind: FitKind,
   v: number[],
   cov: Float64Array | null,

@@ -13,6 +13,7 @@ import type { BumpData } from './bump-data.js';
 import { FIT_KIND_INFO, FIT_KINDS } from './fit-kinds.js';
 import type { FitKind } from './fit-kinds.js';
 import { fitModel } from './fit-model.js';
+import { fitIntegrating } from './integrating-fit.js';
 import type { ModelFit } from './fit-model.js';
 import { logDiagnostic } from './log-diagnostic.js';
 import type { LogDiagnostic } from './log-diagnostic.js';
@@ -71,7 +72,8 @@ export function identify(data: BumpData, options: IdentifyOptions = {}): Identif
   }
   for (const k of kinds) {
     if (fits.has(k)) continue;
-    fits.set(k, fitModel(k, { data, analysis, reading, firstOrder }));
+    const ctx = { data, analysis, reading, firstOrder };
+    fits.set(k, k === 'integrating' ? fitIntegrating(ctx) : fitModel(k, ctx));
   }
   const models: IdentifiedModel[] = kinds.map((k) => judge(fits.get(k)!, data, analysis));
 
@@ -168,6 +170,7 @@ function judge(fit: ModelFit, data: BumpData, a: StepAnalysis): IdentifiedModel 
       );
     }
   }
+  for (const why of fit.undetermined) warnings.push(logDiagnostic('NO_INTERVAL', 'warning', 0, 0, why));
   if (!fit.converged) {
     warnings.push(logDiagnostic('NOT_CONVERGED', 'warning', 0, 0, 'the least-squares search stopped before converging'));
   }

@@ -33,6 +33,7 @@ export type LogDiagnosticCode =
   | 'RECORD_TOO_SHORT'
   | 'POORLY_DETERMINED'
   | 'AT_BOUND'
+  | 'NO_INTERVAL'
   | 'NOT_CONVERGED'
   | 'TIME_ZONE';
 

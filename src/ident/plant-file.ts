@@ -1,8 +1,8 @@
 /**
  * Write a fitted model as a plant file (YAML with comments, through the yaml Document API),
  * ready to tune against: the model in deviation variables around the pre-step operating point,
- * the actuator range seen in the log, the sensor noise from the pre-step segment, a loop with
- * a conservative starting PI and a setpoint-step trial.
+ * the actuator limits the user gave (never the span the log visited), the sensor noise from the
+ * pre-step segment, a loop with a conservative starting PI and a setpoint-step trial.
  */
 import { Document, Scalar, YAMLMap, YAMLSeq } from 'yaml';
 import type { BumpData } from './bump-data.js';
@@ -18,6 +18,12 @@ export interface PlantFileSource {
   to: number;
   /** Name for the plant (default: "Fitted from FILE"). */
   name?: string;
+  /**
+   * The actuator's real limits in the log's input units, from the user. Absent: the file gets no
+   * actuator limits. The span the log happened to visit is never used: a bump test moves the
+   * input a little, and limits that tight saturate every trial.
+   */
+  actuator?: { min: number | null; max: number | null };
 }
 
 /** Significant digits written for fitted numbers (the fit is not better than this). */
@@ -132,11 +138,15 @@ export function buildPlantFile(result: IdentifyResult, data: BumpData, source: P
     if (node !== undefined && text.trim() !== '' && text.trim() !== ';') node.comment = ` ${text.trim().replace(/^;\s*/, '')}`;
   }
 
-  // Actuator: the range seen in the log, as deviations.
-  const actuator = new YAMLMap();
-  actuator.set('min', r(a.uMin - fit.u0));
-  actuator.set('max', r(a.uMax - fit.u0));
-  actuator.commentBefore = ` range seen in the log (${data.inputName} ${r(a.uMin)} .. ${r(a.uMax)}), as deviations from ${r(fit.u0)}; widen to the real limits`;
+  // Actuator: the limits the user gave, as deviations; none given, none written.
+  const limits = source.actuator;
+  let actuator: YAMLMap | null = null;
+  if (limits !== undefined && (limits.min !== null || limits.max !== null)) {
+    actuator = new YAMLMap();
+    if (limits.min !== null) actuator.set('min', r(limits.min - fit.u0));
+    if (limits.max !== null) actuator.set('max', r(limits.max - fit.u0));
+    actuator.commentBefore = ` the actuator's limits as given (${data.inputName} ${limits.min ?? '-'} .. ${limits.max ?? '-'}), as deviations from ${r(fit.u0)}`;
+  }
 
   const sensor = new YAMLMap();
   sensor.set('noise_std', r(a.noiseStd));
@@ -190,7 +200,7 @@ export function buildPlantFile(result: IdentifyResult, data: BumpData, source: P
   const root = new YAMLMap();
   root.set('name', source.name ?? `Fitted from ${source.fileName}`);
   root.set('model', model);
-  root.set('actuator', actuator);
+  if (actuator !== null) root.set('actuator', actuator);
   root.set('sensor', sensor);
   root.set('loop', loop);
   const doc = new Document();
@@ -204,6 +214,7 @@ export function buildPlantFile(result: IdentifyResult, data: BumpData, source: P
     ` fit: NRMSE ${(100 * fit.nrmse).toPrecision(3)} % of the output range, R² ${fit.r2.toFixed(4)}, RMSE ${r(fit.rmse)}`,
     ` variables are deviations from the operating point before the step:`,
     `   ${data.inputName} = ${r(fit.u0)}, ${data.outputName} = ${r(y0)}`,
+    ...(actuator === null ? [` no actuator limits: the log's span (${data.inputName} ${r(a.uMin)} .. ${r(a.uMax)}) is not the actuator's range; add actuator: { min, max } (deviations) or fit with --actuator-min/--actuator-max`] : []),
     ...m.warnings.map((w) => ` warning: ${w.message}`),
   ].join('\n');
   return String(doc);

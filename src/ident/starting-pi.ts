@@ -10,7 +10,13 @@
  * constant whole, the lag of an integrating model whole, and half of the controller sample
  * time (the zero-order hold). For an oscillating second-order fit the lag sum 2ζ/ωn stands in
  * for T (our approximation, no source).
+ *
+ * Floor: the dead time counted is at least one sample interval h. A fit cannot place a delay
+ * shorter than about a sample (it often ends on its bound 0), and τc = θ → 0 would then ask for
+ * a gain limited only by h/2 (a log sampled fast gave Kc ≈ 38 that way); one sample plus the
+ * hold's h/2 keeps the start conservative, as the rule intends (our choice of floor).
  */
+import { FIT_KIND_INFO } from './fit-kinds.js';
 import type { FitKind } from './fit-kinds.js';
 
 /** A PI in the ideal form with the model numbers it came from. */
@@ -65,7 +71,8 @@ export function startingPi(kind: FitKind, v: readonly number[], h: number): Star
       theta = v[3] + v[2];
       break;
   }
-  const effectiveDelay = theta + h / 2;
+  const fitted = v[FIT_KIND_INFO[kind].delayIndex];
+  const effectiveDelay = theta - fitted + Math.max(fitted, h) + h / 2;
   const tauC = effectiveDelay;
   if (integrating) {
     const kc = 1 / (K * (tauC + effectiveDelay));

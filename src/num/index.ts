@@ -12,3 +12,6 @@ export { Rng } from './rng.js';
 export { levenbergMarquardt, leastSquaresCovariance } from './levenberg-marquardt.js';
 export type { LevenbergMarquardtOptions, LevenbergMarquardtResult } from './levenberg-marquardt.js';
 export { zohDiscretise } from './zoh.js';
+export { jacobianConditioning } from './jacobian-conditioning.js';
+export type { JacobianConditioning } from './jacobian-conditioning.js';
+export { chiSquareCdf, chiSquareQuantile, gammaP, logGamma } from './chi-square.js';

@@ -102,6 +102,11 @@ export function levenbergMarquardt(
       xPert[j] = x[j] + h;
       project(xPert);
       const hActual = xPert[j] - x[j];
+      if (hActual === 0) {
+        // A parameter pinned by lower = upper (held on purpose): it has no direction to move in.
+        for (let i = 0; i < m; i++) J[i * n + j] = 0;
+        continue;
+      }
       sumSq(xPert, rPert);
       fillColumn(J, rPert, r, m, n, j, hActual);
     }

@@ -5,27 +5,18 @@
  * `LOG.csv:LINE:COL: message` diagnostics.
  */
 import { parseCommandArgs } from '../parse-command.js';
-import { readFailure } from '../read-bounded.js';
 import * as asciichart from 'asciichart';
-import {
-  buildPlantFile,
-  FIT_KINDS,
-  formatLogDiagnostic,
-  hasLogErrors,
-  identify,
-  parseFitKind,
-  parseIsoTimestamp,
-  prepareBumpData,
-  readCsv,
-  readCsvHeader,
-} from '../../ident/index.js';
-import type { BumpData, CsvTable, FitKind, IdentifyResult, LogDiagnostic } from '../../ident/index.js';
-import { tryParseDuration } from '../../model/index.js';
+import { buildPlantFile, FIT_KINDS, identify, parseFitKind } from '../../ident/index.js';
+import type { BumpData, FitKind, IdentifyResult, LogDiagnostic } from '../../ident/index.js';
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
-import { EncodingError, type Io } from '../io.js';
+import type { Io } from '../io.js';
 import { toJson } from '../json.js';
 import { writeOutput } from '../write-output.js';
+import { fitClosedLoopCommand } from './fit-closed-loop.js';
+import { baseName, printLogDiagnostics, readLog, readLogText } from './fit-log.js';
+import type { FitOptions } from './fit-log.js';
+import { fitPlantCommand } from './fit-plant.js';
 
 /** Help text of `fit`. */
 export const FIT_USAGE = `looprig fit LOG.csv - fit a model to a logged bump test
@@ -44,6 +35,23 @@ Options:
   --skip-bad-rows     drop rows with missing or non-numeric cells instead of failing
   --out FILE          write the chosen model as a plant file (with a starting PI and a trial)
   --force             let --out replace an existing file
+  --actuator-min U    the actuator's real limits (input units) for the --out file; without
+  --actuator-max U    them the file has no actuator limits (the log's span is not the range)
+
+Closed loop (the log comes from the loop in automatic):
+  --setpoint COL      setpoint column: fit by the direct prediction-error method, report how
+                      much the setpoint and the controller output moved, refuse what the data
+                      cannot support
+  --controller FILE   a plant file whose controller was in force: check that it explains the
+                      logged controller output
+
+Against a plant file:
+  --plant FILE        simulate FILE with the logged input and validate it: NRMSE, R², the
+                      largest error, residual whiteness and input-correlation tests
+  --params A,B        with --plant (an ode model): estimate these params from the log, with
+                      intervals and correlations (bounds from the file's uncertainty ranges)
+  --write             with --params: put the estimates into FILE with a dated note
+  --svg OUT           with --plant or --setpoint: plot data against the model
   --show              draw the data against the chosen model's response
   --json              print one JSON document on stdout
   -h, --help          show this text
@@ -52,21 +60,7 @@ Exit status: 0 fitted; 2 bad arguments or a log that cannot be fitted
 (printed as LOG.csv:LINE:COL: message).
 `;
 
-/** Parsed arguments of `fit`. */
-export interface FitOptions {
-  file: string;
-  time: string | null;
-  input: string | null;
-  output: string | null;
-  from: string | null;
-  to: string | null;
-  models: FitKind[] | 'auto';
-  skipBadRows: boolean;
-  out: string | null;
-  force: boolean;
-  show: boolean;
-  json: boolean;
-}
+export type { FitOptions } from './fit-log.js';
 
 /** Parse the arguments of `fit`; a mistake is a `UserError` with exit status 2. */
 export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
@@ -82,6 +76,14 @@ export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
     force: { type: 'boolean' },
     show: { type: 'boolean' },
     json: { type: 'boolean' },
+    'actuator-min': { type: 'string' },
+    'actuator-max': { type: 'string' },
+    setpoint: { type: 'string' },
+    controller: { type: 'string' },
+    plant: { type: 'string' },
+    params: { type: 'string' },
+    write: { type: 'boolean' },
+    svg: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
   if (values.help) return 'help';
@@ -109,7 +111,32 @@ export function parseFitArgs(args: readonly string[]): FitOptions | 'help' {
     force: values.force === true,
     show: values.show === true,
     json: values.json === true,
+    actuatorMin: limitValue(values['actuator-min'], 'actuator-min'),
+    actuatorMax: limitValue(values['actuator-max'], 'actuator-max'),
+    setpoint: values.setpoint ?? null,
+    controller: values.controller ?? null,
+    plant: values.plant ?? null,
+    params: values.params === undefined ? null : values.params.split(',').map((x) => x.trim()).filter((x) => x !== ''),
+    write: values.write === true,
+    svg: values.svg ?? null,
   };
+}
+
+/** Options that belong to one mode only, used in another: one line saying which goes with which. */
+function checkModeOptions(o: FitOptions): void {
+  if (o.plant !== null && o.setpoint !== null) throw new UserError('fit: --plant and --setpoint are separate uses: validate or fit a plant file, or fit a closed-loop log');
+  if (o.params !== null && o.plant === null) throw new UserError('fit: --params needs --plant FILE (the ode plant file whose params to estimate)');
+  if (o.write && o.params === null) throw new UserError('fit: --write needs --plant FILE --params NAME,... (it writes the estimates into the plant file)');
+  if (o.controller !== null && o.setpoint === null) throw new UserError('fit: --controller needs --setpoint COL (it applies to a closed-loop log)');
+  if (o.svg !== null && o.plant === null && o.setpoint === null) throw new UserError('fit: --svg needs --plant FILE or --setpoint COL (use --show for a bump-test fit)');
+  if ((o.plant !== null || o.setpoint !== null) && (o.out !== null || o.show)) throw new UserError('fit: --out and --show belong to a bump-test fit; leave them out with --plant or --setpoint');
+}
+
+function limitValue(raw: string | undefined, flag: string): number | null {
+  if (raw === undefined) return null;
+  const v = Number(raw);
+  if (raw.trim() === '' || !Number.isFinite(v)) throw new UserError(`fit: --${flag} ${raw}: expected a number in the input's units`);
+  return v;
 }
 
 /** Everything `fit` computed. */
@@ -130,16 +157,10 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
     io.out(FIT_USAGE);
     return 0;
   }
-  let text: string;
-  try {
-    text = io.readText(options.file);
-  } catch (error) {
-    if (error instanceof EncodingError) {
-      io.err(`${error.message}\n`);
-      return UserError.USAGE;
-    }
-    throw new UserError(`cannot read ${options.file}: ${readFailure(error)}`);
-  }
+  checkModeOptions(options);
+  if (options.plant !== null) return fitPlantCommand(options, io);
+  if (options.setpoint !== null) return fitClosedLoopCommand(options, io);
+  const text = readLogText(options.file, io);
   if (options.out !== null && !options.force && exists(io, options.out)) {
     throw new UserError(`fit: ${options.out} exists; add --force to replace it`);
   }
@@ -162,35 +183,9 @@ export async function fitCommand(args: readonly string[], io: Io): Promise<numbe
 /** Read, window, fit. Prints diagnostics to stderr; returns null after errors. */
 export function fitLog(text: string, options: FitOptions, io: Io): FitReport | null {
   const file = options.file;
-  const printAll = (ds: readonly LogDiagnostic[]): void => {
-    for (const d of ds) io.err(`${formatLogDiagnostic(d, file)}\n`);
-  };
-  const header = readCsvHeader(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
-  const pick = (given: string | null, position: number, flag: string): string => {
-    if (given !== null) return given;
-    if (header !== null && header.length >= 3) return header[position];
-    throw new UserError(`fit: give --${flag} COL (${header === null ? 'the file has no header row' : `the header has ${header.length} column${header.length === 1 ? '' : 's'}`})`);
-  };
-  // Encoding and empty-file errors come from the reader itself, with positions: only pick
-  // defaults when there is a header to pick from.
-  const time = header === null ? options.time ?? '' : pick(options.time, 0, 'time');
-  const input = header === null ? options.input ?? '' : pick(options.input, 1, 'input');
-  const output = header === null ? options.output ?? '' : pick(options.output, 2, 'output');
-  const read = readCsv(text, { time, columns: [input, output], skipBadRows: options.skipBadRows });
-  if (read.table === null || hasLogErrors(read.diagnostics)) {
-    printAll(read.diagnostics);
-    return null;
-  }
-  const tableData = read.table;
-  const from = windowBound(options.from, 'from', tableData);
-  const to = windowBound(options.to, 'to', tableData);
-  const prepared = prepareBumpData(tableData, { input, output, from, to });
-  const diagnostics = [...read.diagnostics, ...prepared.diagnostics];
-  if (prepared.data === null) {
-    printAll(diagnostics);
-    return null;
-  }
-  const data = prepared.data;
+  const log = readLog(text, options, io);
+  if (log === null) return null;
+  const { data, diagnostics } = log;
   let result: ReturnType<typeof identify>;
   try {
     result = identify(data, { models: options.models });
@@ -198,32 +193,22 @@ export function fitLog(text: string, options: FitOptions, io: Io): FitReport | n
     // The data checks (bump-data.ts) refuse what is known to defeat the fit; should a window
     // still leave no finite starting point, that is a finding about the log, not a crash.
     if (!(error instanceof RangeError)) throw error;
-    printAll(diagnostics);
+    printLogDiagnostics(diagnostics, file, io);
     throw new UserError(`${file}: no model could be fitted to this window (${error.message})`);
   }
   diagnostics.push(...result.diagnostics);
-  if (!options.json) printAll(diagnostics);
+  if (!options.json) printLogDiagnostics(diagnostics, file, io);
   const windowFrom = data.t0;
   const windowTo = data.t0 + (data.n - 1) * data.dt;
   const plantText = options.out !== null
-    ? buildPlantFile(result, data, { fileName: baseName(file), from: windowFrom, to: windowTo })
+    ? buildPlantFile(result, data, {
+      fileName: baseName(file), from: windowFrom, to: windowTo,
+      actuator: { min: options.actuatorMin, max: options.actuatorMax },
+    })
     : null;
   return { file, data, result, diagnostics, from: windowFrom, to: windowTo, plantText };
 }
 
-/** --from/--to: seconds with an optional unit, or an ISO time for a timestamp column. */
-function windowBound(raw: string | null, flag: string, t: CsvTable): number | null {
-  if (raw === null) return null;
-  if (t.timeFormat === 'iso') {
-    const stamp = parseIsoTimestamp(raw);
-    if (stamp !== null) return (stamp.epochMs - t.epochMs!) / 1000;
-  }
-  const plain = Number(raw);
-  if (raw.trim() !== '' && Number.isFinite(plain)) return plain;
-  const d = tryParseDuration(raw);
-  if (d.ok && Number.isFinite(d.value)) return d.value;
-  throw new UserError(`fit: --${flag} ${raw}: expected seconds (e.g. 120 or 2min)${t.timeFormat === 'iso' ? ' or an ISO-8601 time' : ''}`);
-}
 
 /** Whether --out names something already there. A file we cannot read still exists. */
 function exists(io: Io, path: string): boolean {
@@ -234,10 +219,6 @@ function exists(io: Io, path: string): boolean {
   }
 }
 
-function baseName(path: string): string {
-  const i = Math.max(path.lastIndexOf('/'), path.lastIndexOf('\\'));
-  return i >= 0 ? path.slice(i + 1) : path;
-}
 
 const LABELS: Record<string, string> = {
   gain: 'gain',
