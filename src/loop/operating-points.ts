@@ -1,0 +1,169 @@
+/**
+ * Operating points of a trial: the steady state of the plant at every setpoint level the trial
+ * visits (with the disturbances then in force), and the linear model of the plant there.
+ * Frequency-domain figures (GM, PM, Ms, Mt, bandwidth, damping) belong to an operating point; a
+ * nonlinear plant has different margins at 6 bar and at 7 bar, and a check that reads them at
+ * one place while the screen reads them at another disagrees for no reason a user can see.
+ *
+ * Definitions (ours, stated so every surface uses the same):
+ * - A level is the setpoint in force over a stretch of the trial of non-zero length: the initial
+ *   setpoint (or the output at the start when the file sets none), then each step's value and
+ *   each ramp's end value. A ramp's intermediate values are not levels.
+ * - The disturbances of a level are those in force when the level starts; a disturbance event
+ *   while a level holds starts a new operating point at the same level with the new loads.
+ * - Identical (level, loads) pairs are one point, listed at the instant first visited.
+ * - The steady state is analysis' findEquilibrium with the actuator limits; a linear model kind
+ *   is the same at every level, so it has one point that stands for all.
+ */
+import { findEquilibrium, linearise } from '../analysis/index.js';
+import type { PlantSpec, TrialSpec } from '../model/types.js';
+import type { LinearModel, PlantDynamics } from '../sim/index.js';
+
+/** Most operating points evaluated for one trial; a longer list keeps the first ones and says so. */
+export const MAX_OPERATING_POINTS = 16;
+
+/** A setpoint level of the trial with the loads in force. */
+export interface TrialLevel {
+  /** Setpoint, output units. */
+  level: number;
+  /** When the trial first holds this level with these loads, s. */
+  at: number;
+  /** Disturbance values in force (PlantDynamics.disturbanceNames order). */
+  disturbances: Float64Array;
+}
+
+/** One operating point and the plant's linear model there. */
+export interface OperatingPoint extends TrialLevel {
+  /** True for a linear model kind: one point stands for every level. */
+  allLevels: boolean;
+  /** Steady state, or null when none was found. */
+  state: Float64Array | null;
+  /** Steady actuator input, or null when none was found. */
+  input: number | null;
+  /** The plant linearised here (exact for linear kinds); null when it could not be made. */
+  linear: LinearModel | null;
+  /** Why there is no steady state or no linear model here, else null. */
+  problem: string | null;
+}
+
+/** The operating points of a trial and what was left out. */
+export interface OperatingPoints {
+  points: OperatingPoint[];
+  notes: string[];
+}
+
+/**
+ * The setpoint levels a trial visits, in order of first visit (see the file comment).
+ * @param yStart plant output at t = 0, used when the trial sets no initial setpoint
+ */
+export function trialLevels(trial: TrialSpec, disturbanceNames: readonly string[], d0: Float64Array, yStart: number): TrialLevel[] {
+  const out: TrialLevel[] = [];
+  const d = Float64Array.from(d0);
+  let level = trial.initialSetpoint ?? yStart;
+  let since = 0;
+  const close = (until: number): void => {
+    // Only a stretch of non-zero length is a level the loop is asked to hold.
+    if (!(until > since) || !Number.isFinite(level)) return;
+    if (out.some((p) => p.level === level && sameLoads(p.disturbances, d))) return;
+    out.push({ level, at: since, disturbances: Float64Array.from(d) });
+  };
+  const events = [...trial.events].sort((a, b) => a.at - b.at);
+  for (const ev of events) {
+    if (ev.at >= trial.duration) break;
+    if (ev.kind === 'setpoint') {
+      close(ev.at);
+      level = ev.value;
+      since = ev.at;
+    } else if (ev.kind === 'setpoint_ramp') {
+      close(ev.at);
+      level = ev.to;
+      since = ev.at + ev.duration;
+    } else if (ev.kind === 'disturbance') {
+      const i = disturbanceNames.indexOf(ev.name);
+      if (i < 0 || d[i] === ev.value) continue;
+      close(ev.at);
+      d[i] = ev.value;
+      since = Math.max(since, ev.at);
+    }
+  }
+  close(trial.duration);
+  // A trial that holds nothing for a non-zero time (duration 0) still has its starting level.
+  if (out.length === 0) out.push({ level, at: 0, disturbances: Float64Array.from(d) });
+  return out;
+}
+
+function sameLoads(a: Float64Array, b: Float64Array): boolean {
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/** Output of the plant at its initial state with input u0 (the level a trial without a setpoint starts at). */
+export function startOutput(dyn: PlantDynamics, u0: number): number {
+  return dyn.output(0, dyn.x0, u0, dyn.d0, dyn.params);
+}
+
+/**
+ * The operating points of a plant file's trial. For a linear model kind one point, exact at every
+ * level; for an ode plant one point per level (at most MAX_OPERATING_POINTS).
+ */
+export function operatingPoints(spec: PlantSpec, dyn: PlantDynamics, trial: TrialSpec = spec.loop.trial): OperatingPoints {
+  const notes: string[] = [];
+  const u0 = trial.initialOutput ?? 0;
+  let levels = trialLevels(trial, dyn.disturbanceNames, dyn.d0, startOutput(dyn, u0));
+  if (dyn.linear !== null) {
+    const first = levels[0];
+    return {
+      points: [{ ...first, allLevels: true, state: null, input: null, linear: dyn.linear, problem: null }],
+      notes,
+    };
+  }
+  if (levels.length > MAX_OPERATING_POINTS) {
+    notes.push(`the trial visits ${levels.length} operating points; the first ${MAX_OPERATING_POINTS} are evaluated`);
+    levels = levels.slice(0, MAX_OPERATING_POINTS);
+  }
+  const span = spec.actuator.max - spec.actuator.min;
+  const inputScale = Number.isFinite(span) && span > 0 ? span : undefined;
+  const points: OperatingPoint[] = [];
+  let guessX: Float64Array = dyn.x0;
+  let guessU: number | undefined = trial.initialOutput ?? undefined;
+  for (const lv of levels) {
+    const eq = findEquilibrium(dyn, lv.level, {
+      uMin: spec.actuator.min,
+      uMax: spec.actuator.max,
+      d: lv.disturbances,
+      x0: guessX,
+      u0: guessU,
+    });
+    if (!eq.ok) {
+      points.push({ ...lv, allLevels: false, state: null, input: null, linear: null, problem: eq.message });
+      continue;
+    }
+    // The previous level's steady state is a good first guess for the next one.
+    guessX = eq.x;
+    guessU = eq.u;
+    const lin = linearise(dyn, eq.x, eq.u, { ...(inputScale !== undefined ? { inputScale } : {}), d: lv.disturbances });
+    points.push({
+      ...lv,
+      allLevels: false,
+      state: eq.x,
+      input: eq.u,
+      linear: lin.ok ? lin.model : null,
+      problem: lin.ok ? null : `the plant could not be linearised there: ${lin.message}`,
+    });
+  }
+  return { points, notes };
+}
+
+/** A short name of an operating point for reports: "7 bar" style, with the loads when not the defaults. */
+export function describePoint(p: TrialLevel & { allLevels?: boolean }, disturbanceNames: readonly string[], d0: Float64Array, unit = ''): string {
+  if (p.allLevels === true) return 'every level (linear model)';
+  const parts = [`level ${fmt(p.level)}${unit ? ` ${unit}` : ''}`];
+  for (let i = 0; i < disturbanceNames.length; i++) {
+    if (p.disturbances[i] !== d0[i]) parts.push(`${disturbanceNames[i]} ${fmt(p.disturbances[i])}`);
+  }
+  return parts.join(', ');
+}
+
+function fmt(v: number): string {
+  return Number.isInteger(v) ? String(v) : String(Number(v.toPrecision(4)));
+}

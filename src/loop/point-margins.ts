@@ -1,0 +1,151 @@
+/**
+ * Frequency-domain figures of the plain PID loop at every operating point of a trial, and the
+ * worst of each figure over the points (the smallest gain and phase margins, bandwidth and
+ * damping; the largest Ms and Mt). This is the one place the screen, `run`, `check`, `diagnose`
+ * and the tuning commands get GM, PM, Ms, Mt, bandwidth and damping from.
+ *
+ * Damping ratio of the dominant closed-loop poles (our definition, no source): the poles of the
+ * closed loop whose decay rate |Re p| is at most twice that of the slowest pole count as dominant,
+ * and the smallest ζ = −Re p/|p| among them is reported (a real pole has ζ = 1). A ratio of 2 keeps
+ * a slow real pole and an oscillatory pair close to it together, and leaves out the higher
+ * branches of a dead-time loop (for s + a e^(−θ s) = 0 with aθ = 0.5 the second branch decays 3.5
+ * times faster than the first).
+ */
+import { closedLoopCheck, loopExtras, loopMargins, plantFrequencyResponse } from '../analysis/index.js';
+import type { Margins, PlantFrequencyResponse } from '../analysis/index.js';
+import type { GainSet, PlantSpec } from '../model/types.js';
+import type { LinearModel } from '../sim/index.js';
+import type { OperatingPoint } from './operating-points.js';
+
+/** Dominance ratio of the damping definition (see the file comment). */
+export const DOMINANCE_RATIO = 2;
+
+/** A point of a trial prepared for per-gain-set margins (its frequency response made once). */
+export interface PreparedPoint {
+  point: OperatingPoint;
+  /** Plant frequency response up to the Nyquist frequency; null without a linear model. */
+  response: PlantFrequencyResponse | null;
+}
+
+/** Figures of one gain set at one operating point. */
+export interface PointFigures {
+  point: OperatingPoint;
+  /** Null when the point has no linear model (see `point.problem`). */
+  margins: Margins | null;
+  /** Dominant damping ratio (NaN when not computed), and the pole it comes from. */
+  damping: number;
+  dampingPole: { re: number; im: number } | null;
+}
+
+/** Frequency response of a point's linear model for margins at the loop's sample time. */
+export function pointResponse(linear: LinearModel, spec: PlantSpec): PlantFrequencyResponse {
+  const h = spec.loop.sampleTime;
+  return plantFrequencyResponse(linear, { wMax: Math.PI / h, extraDelay: spec.sensor.delay + h / 2 });
+}
+
+/** Prepare points for margins (one frequency response each; a linear kind shares one). */
+export function preparePoints(points: readonly OperatingPoint[], spec: PlantSpec): PreparedPoint[] {
+  return points.map((point) => ({ point, response: point.linear === null ? null : pointResponse(point.linear, spec) }));
+}
+
+/**
+ * Smallest damping ratio among the dominant poles (see the file comment); an unstable or
+ * marginal pole gives ζ <= 0. NaN for no poles.
+ */
+export function dominantDamping(poles: readonly { re: number; im: number }[]): { zeta: number; pole: { re: number; im: number } | null } {
+  if (poles.length === 0) return { zeta: NaN, pole: null };
+  let slowest = Infinity;
+  for (const p of poles) slowest = Math.min(slowest, -p.re);
+  let zeta = Infinity;
+  let pole: { re: number; im: number } | null = null;
+  for (const p of poles) {
+    if (slowest > 0 && -p.re > DOMINANCE_RATIO * slowest) continue;
+    const mag = Math.hypot(p.re, p.im);
+    const z = mag === 0 ? 0 : -p.re / mag;
+    if (z < zeta) {
+      zeta = z;
+      pole = p;
+    }
+  }
+  return { zeta, pole };
+}
+
+/**
+ * Margins of the plain PID loop with `gains` at every prepared point. `withDamping` adds the
+ * closed-loop pole computation (costlier; only when a requirement or a report needs it).
+ */
+export function pointFigures(prepared: readonly PreparedPoint[], gains: GainSet, spec: PlantSpec, withDamping = false): PointFigures[] {
+  const h = spec.loop.sampleTime;
+  return prepared.map(({ point, response }) => {
+    if (response === null || point.linear === null) return { point, margins: null, damping: NaN, dampingPole: null };
+    const margins = loopMargins(response, gains, h, spec.sensor);
+    let damping = NaN;
+    let dampingPole: { re: number; im: number } | null = null;
+    if (withDamping) {
+      const rel = [margins.crossoverFrequency, margins.bandwidth, margins.maxSensitivityFrequency].filter((w) => Number.isFinite(w));
+      const cl = closedLoopCheck(point.linear, gains, loopExtras(h, spec.sensor), rel.length > 0 ? Math.max(...rel) : 0);
+      if (cl.wellPosed) {
+        const d = dominantDamping(cl.poles);
+        damping = d.zeta;
+        dampingPole = d.pole;
+      }
+    }
+    return { point, margins, damping, dampingPole };
+  });
+}
+
+/** Frequency-domain figures a requirement or a report can ask for. */
+export type FrequencyFigure = 'gainMargin' | 'phaseMarginDeg' | 'maxSensitivity' | 'maxComplementarySensitivity' | 'bandwidth' | 'dampingRatio';
+
+/** Which way is worse for each figure. */
+const WORSE: Readonly<Record<FrequencyFigure, 'lower' | 'higher'>> = {
+  gainMargin: 'lower',
+  phaseMarginDeg: 'lower',
+  maxSensitivity: 'higher',
+  maxComplementarySensitivity: 'higher',
+  bandwidth: 'lower',
+  dampingRatio: 'lower',
+};
+
+/**
+ * The value of a figure at one point. An unstable closed loop has Ms = Mt = ∞ and no margins,
+ * bandwidth or damping to speak of (NaN, which counts as the worst).
+ */
+export function figureAt(f: PointFigures, figure: FrequencyFigure): number {
+  const m = f.margins;
+  if (m === null) return NaN;
+  const unstable = m.closedLoopStable === false;
+  switch (figure) {
+    case 'maxSensitivity':
+      return unstable ? Infinity : m.maxSensitivity;
+    case 'maxComplementarySensitivity':
+      return unstable ? Infinity : m.maxComplementarySensitivity;
+    case 'dampingRatio':
+      return f.damping;
+    default:
+      return unstable ? NaN : m[figure];
+  }
+}
+
+/**
+ * The point where a figure is worst, with its value; a point where the figure could not be
+ * computed (NaN) is the worst of all. -1 when there are no points.
+ */
+export function worstPoint(figures: readonly PointFigures[], figure: FrequencyFigure): { index: number; value: number } {
+  let index = -1;
+  let value = NaN;
+  for (let i = 0; i < figures.length; i++) {
+    const v = figureAt(figures[i], figure);
+    if (index < 0) {
+      index = i;
+      value = v;
+      continue;
+    }
+    if (Number.isNaN(value)) continue;
+    if (Number.isNaN(v) || (WORSE[figure] === 'lower' ? v < value : v > value)) {
+      index = i;
+      value = v;
+    }
+  }
+  return { index, value };
+}
