@@ -7,7 +7,7 @@ import { expectClose } from '../helpers/expect-close.js';
 
 function load(path: string): PlantSpec {
   const r = loadPlant(readFileSync(path, 'utf8'), path);
-  if (r.plant === null) throw new Error(r.diagnostics.map((d) => d.message).join('\n'));
+  if (r.plant === undefined) throw new Error(r.diagnostics.map((d) => d.message).join('\n'));
   return r.plant;
 }
 
