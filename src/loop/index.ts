@@ -1,8 +1,15 @@
 /**
  * loop/: a plant file becomes a running loop (plant, engine configuration, start point,
- * controller, trial). This list is the folder's public surface.
+ * controller, trial), with its operating points, the frequency-domain figures of the loop at
+ * each, and the requirement rows every surface prints. This list is the folder's public surface.
  */
 export { buildLoop } from './build-loop.js';
 export type { BuildLoopOptions, BuiltLoop } from './build-loop.js';
 export { settledStart } from './settled-start.js';
 export type { LoopStart } from './settled-start.js';
+export { operatingPoints, trialLevels, startOutput, describePoint, MAX_OPERATING_POINTS } from './operating-points.js';
+export type { OperatingPoint, OperatingPoints, TrialLevel } from './operating-points.js';
+export { pointResponse, preparePoints, pointFigures, dominantDamping, figureAt, worstPoint, worstMargins, DOMINANCE_RATIO } from './point-margins.js';
+export type { PreparedPoint, PointFigures, FrequencyFigure } from './point-margins.js';
+export { CHECKED_REQUIREMENTS, timeFigures, frequencyFigures, requirementRow, askedRequirements } from './requirement-rows.js';
+export type { LimitKind, RequirementInfo, Figure, RequirementStatus, RequirementRow, StructureFigures, FrequencySource } from './requirement-rows.js';

@@ -149,3 +149,61 @@ export function worstPoint(figures: readonly PointFigures[], figure: FrequencyFi
   }
   return { index, value };
 }
+
+/**
+ * One set of margins for a gain set over every operating point: each figure is its worst over the
+ * points (the smallest GM, PM, delay margin and bandwidth; the largest Ms and Mt), with the
+ * frequency where that point has it, and the loop counts as stable only when it is stable at every
+ * point. With one point this is that point's margins unchanged. Null when no point has a linear
+ * model. `worstAt` names the point of each worst figure (indices into `figures`).
+ */
+export function worstMargins(figures: readonly PointFigures[]): (Margins & { worstAt: Record<'gm' | 'pm' | 'ms' | 'mt' | 'bw', number> }) | null {
+  const usable = figures.filter((f) => f.margins !== null);
+  if (usable.length === 0) return null;
+  if (figures.length === 1) return { ...figures[0].margins!, worstAt: { gm: 0, pm: 0, ms: 0, mt: 0, bw: 0 } };
+  const pick = (better: (a: Margins, b: Margins) => boolean): number => {
+    let k = -1;
+    for (let i = 0; i < figures.length; i++) {
+      const m = figures[i].margins;
+      if (m === null) continue;
+      if (k < 0 || better(m, figures[k].margins!)) k = i;
+    }
+    return k;
+  };
+  const lt = (a: number, b: number): boolean => (Number.isNaN(a) ? !Number.isNaN(b) : !Number.isNaN(b) && a < b);
+  const gm = pick((a, b) => lt(a.gainMargin, b.gainMargin));
+  const pm = pick((a, b) => lt(a.phaseMarginDeg, b.phaseMarginDeg));
+  const ms = pick((a, b) => a.maxSensitivity > b.maxSensitivity);
+  const mt = pick((a, b) => a.maxComplementarySensitivity > b.maxComplementarySensitivity);
+  const bw = pick((a, b) => lt(a.bandwidth, b.bandwidth));
+  const dm = pick((a, b) => lt(a.delayMargin, b.delayMargin));
+  const at = (i: number): Margins => figures[i].margins!;
+  let stable: boolean | null = true;
+  let rhp = 0;
+  const notes: string[] = [];
+  for (const f of usable) {
+    const s = f.margins!.closedLoopStable;
+    if (s === false) stable = false;
+    else if (s === null && stable === true) stable = null;
+    rhp = Math.max(rhp, f.margins!.openLoopUnstablePoles);
+    for (const n of f.margins!.notes) if (!notes.includes(n)) notes.push(n);
+  }
+  if (usable.length < figures.length) notes.push('some operating points have no linear model: margins there are not included');
+  return {
+    gainMargin: at(gm).gainMargin,
+    phaseCrossoverFrequency: at(gm).phaseCrossoverFrequency,
+    lowerGainMargin: Math.max(...usable.map((f) => f.margins!.lowerGainMargin)),
+    phaseMarginDeg: at(pm).phaseMarginDeg,
+    crossoverFrequency: at(pm).crossoverFrequency,
+    delayMargin: at(dm).delayMargin,
+    maxSensitivity: at(ms).maxSensitivity,
+    maxSensitivityFrequency: at(ms).maxSensitivityFrequency,
+    maxComplementarySensitivity: at(mt).maxComplementarySensitivity,
+    maxComplementarySensitivityFrequency: at(mt).maxComplementarySensitivityFrequency,
+    bandwidth: at(bw).bandwidth,
+    closedLoopStable: stable,
+    openLoopUnstablePoles: rhp,
+    notes,
+    worstAt: { gm, pm, ms, mt, bw },
+  };
+}

@@ -53,8 +53,8 @@ export interface Figure {
   note: string;
 }
 
-/** Verdict of one requirement. 'n/a': the figure could not be evaluated (the note says why). */
-export type RequirementStatus = 'pass' | 'fail' | 'n/a';
+/** Verdict of one requirement. 'not available': the figure could not be evaluated (the note says why); it fails a check. */
+export type RequirementStatus = 'pass' | 'fail' | 'not available';
 
 /** One row of a requirement report. */
 export interface RequirementRow {
@@ -93,10 +93,15 @@ export function timeFigures(result: TrialResult, checks: readonly RequirementRes
   const out = new Map<string, Figure>();
   const diverged = result.status === 'diverged';
   for (const r of checks) {
+    // A requirement the trial cannot show (a step figure without a setpoint step) is not available.
+    if (r.status === 'n/a') {
+      out.set(r.name, { measured: NaN, available: false, note: `not available: ${r.reason}` });
+      continue;
+    }
     let note = '';
     if (diverged) note = `trial diverged at t = ${fmt(result.divergedAt ?? NaN, 4)} s`;
-    else if (!Number.isFinite(r.measured)) note = r.name === 'settling_time' ? 'not settled' : 'not reached';
-    else if (r.at !== null && multipleSteps) note = `worst: step at ${fmt(r.at, 6)} s`;
+    else if (!Number.isFinite(r.measured)) note = r.reason ?? '';
+    else if (r.at !== null && multipleSteps) note = `worst step: at ${fmt(r.at, 6)} s`;
     out.set(r.name, { measured: diverged ? NaN : r.measured, available: true, note });
   }
   return out;
@@ -107,16 +112,16 @@ export function frequencyFigures(source: FrequencySource, wanted: ReadonlySet<st
   const out = new Map<string, Figure>();
   for (const name of wanted) {
     if (source.kind === 'none') {
-      out.set(name, { measured: NaN, available: false, note: source.why });
+      out.set(name, { measured: NaN, available: false, note: `not available: ${source.why}` });
       continue;
     }
     if (source.kind === 'structure') {
       const m = source.figures;
-      if (m === null) out.set(name, { measured: NaN, available: false, note: source.why });
+      if (m === null) out.set(name, { measured: NaN, available: false, note: `not available: ${source.why}` });
       else if (name === 'max_sensitivity') out.set(name, { measured: m.maxSensitivity, available: true, note: `${m.name}, loop broken at the actuator` });
       else if (name === 'gain_margin') out.set(name, { measured: m.gainMargin, available: true, note: `${m.name}, loop broken at the actuator` });
       else if (name === 'phase_margin_deg') out.set(name, { measured: m.phaseMarginDeg, available: true, note: `${m.name}, loop broken at the actuator` });
-      else out.set(name, { measured: NaN, available: false, note: `not computed for structure ${m.name} (not the plain PID loop)` });
+      else out.set(name, { measured: NaN, available: false, note: `not available for structure ${m.name} (not the plain PID loop)` });
       continue;
     }
     const figure = FIGURE_OF[name];
@@ -124,7 +129,7 @@ export function frequencyFigures(source: FrequencySource, wanted: ReadonlySet<st
     const usable = pts.filter((p) => p.margins !== null);
     if (figure === undefined || usable.length === 0) {
       const why = pts.find((p) => p.point.problem !== null)?.point.problem ?? 'no linear model of the loop at its operating points';
-      out.set(name, { measured: NaN, available: false, note: why });
+      out.set(name, { measured: NaN, available: false, note: `not available: ${why}` });
       continue;
     }
     const { index, value } = worstPoint(pts, figure);
@@ -158,7 +163,7 @@ function passes(measured: number, limit: number, kind: LimitKind): boolean {
 
 /** The row of one requirement from its figure. */
 export function requirementRow(info: RequirementInfo, scope: RequirementRow['scope'], limit: number, f: Figure): RequirementRow {
-  const status: RequirementStatus = !f.available ? 'n/a' : passes(f.measured, limit, info.kind) ? 'pass' : 'fail';
+  const status: RequirementStatus = !f.available ? 'not available' : passes(f.measured, limit, info.kind) ? 'pass' : 'fail';
   return { requirement: info.name, scope, measured: f.measured, limit, kind: info.kind, unit: info.unit, status, note: f.note };
 }
 
