@@ -26,7 +26,7 @@ import {
 import { applyStructure } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
 import type { GainSet, PlantSpec, TrialSpec } from '../model/types.js';
-import { buildLoop } from '../loop/index.js';
+import { buildLoop, describePoint, operatingPoints, pointFigures, preparePoints, worstMargins, type PreparedPoint } from '../loop/index.js';
 import { runTrial } from '../sim/index.js';
 import type { LinearModel, PlantDynamics } from '../sim/types.js';
 import { controllerNoise } from './noise.js';
@@ -77,7 +77,8 @@ function emptyDiagnosis(spec: PlantSpec, op: OperatingPoint): Diagnosis {
     fopdtSource: null,
     sopdt: null,
     stepFit: null,
-    plantResponse: null,
+    points: [],
+    pointMargins: [],
     margins: null,
     trial: null,
     flags: [],
@@ -243,16 +244,21 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
 
   // ---------------------------------------------------------------- frequency response and margins
   try {
-    const corners: number[] = [];
-    if (Number.isFinite(gains.ti) && gains.ti > 0) corners.push(1 / gains.ti);
-    if (gains.td > 0) corners.push(1 / gains.td, gains.n / gains.td);
-    if (sensor.filterTime > 0) corners.push(1 / sensor.filterTime);
-    d.plantResponse = plantFrequencyResponse(model, {
-      wMax: h > 0 ? Math.PI / h : undefined,
-      extraDelay: sensor.delay + 0.5 * h,
-      extraFrequencies: corners,
-    });
-    d.margins = loopMargins(d.plantResponse, gains, h, sensor);
+    // Margins at every operating point of the trial (loop/'s operating points, as check and the
+    // screen read them); the reported set is the worst of each figure over the points.
+    const trialForPoints: TrialSpec =
+      options.operatingPoint !== undefined ? { ...spec.loop.trial, initialSetpoint: options.operatingPoint, events: [] } : spec.loop.trial;
+    const ops = operatingPoints(spec, dyn, trialForPoints);
+    for (const n of ops.notes) notes.push(n);
+    d.points = preparePoints(ops.points, spec);
+    const figures = pointFigures(d.points, gains, spec);
+    d.pointMargins = figures.map((f) => ({
+      description: describePoint(f.point, dyn.disturbanceNames, dyn.d0),
+      at: f.point.at,
+      margins: f.margins,
+      problem: f.point.problem,
+    }));
+    d.margins = worstMargins(figures);
     if (spec.loop.controller.extension !== undefined) {
       notes.push('margins are those of the PID part alone; the richer controller structure is not included');
     }

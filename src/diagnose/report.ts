@@ -61,6 +61,19 @@ export function diagnosisJson(d: Diagnosis): Record<string, unknown> {
           notes: m.notes,
         }
       : null,
+    // The margins above are the worst of each figure over these points.
+    operating_points: d.pointMargins.map((p) => ({
+      point: p.description,
+      from: num(p.at),
+      gain_margin: p.margins ? num(p.margins.gainMargin) : null,
+      phase_margin_deg: p.margins ? num(p.margins.phaseMarginDeg) : null,
+      crossover_frequency: p.margins ? num(p.margins.crossoverFrequency) : null,
+      max_sensitivity: p.margins ? num(p.margins.maxSensitivity) : null,
+      max_complementary_sensitivity: p.margins ? num(p.margins.maxComplementarySensitivity) : null,
+      bandwidth: p.margins ? num(p.margins.bandwidth) : null,
+      closed_loop_stable: p.margins ? p.margins.closedLoopStable : null,
+      problem: p.problem,
+    })),
     trial: d.trial
       ? {
           status: d.trial.status,
@@ -123,6 +136,18 @@ export function formatDiagnosis(d: Diagnosis): string {
         `; closed loop ${m.closedLoopStable === null ? 'not checked' : m.closedLoopStable ? 'stable' : 'UNSTABLE'}`,
     );
     for (const n of m.notes) lines.push(`  note: ${n}`);
+  }
+  if (d.pointMargins.length > 1) {
+    lines.push(`operating points (the margins above are the worst of each over these):`);
+    for (const p of d.pointMargins) {
+      const q = p.margins;
+      lines.push(
+        q === null
+          ? `  ${p.description} (from ${fmt(p.at)} s): ${p.problem ?? 'no linear model'}`
+          : `  ${p.description} (from ${fmt(p.at)} s): GM ${fmt(q.gainMargin, 3)}, PM ${fmt(q.phaseMarginDeg, 3)} deg, Ms ${fmt(q.maxSensitivity, 3)}` +
+              `${q.closedLoopStable === false ? ', UNSTABLE' : ''}`,
+      );
+    }
   }
   if (d.trial) {
     lines.push(

@@ -2,6 +2,7 @@
  * What `diagnosePlant` returns: the operating point, the linear description there, the low-order
  * model for the tuning rules, the loop margins with the file's gains, and the flags.
  */
+import type { PreparedPoint } from '../loop/index.js';
 import type {
   FirstOrderApprox,
   FopdtFit,
@@ -91,9 +92,11 @@ export interface Diagnosis {
   sopdt: SecondOrderApprox | null;
   /** The fit to a simulated step (ode plants). */
   stepFit: FopdtFit | null;
-  /** Plant frequency response, reusable for `loopMargins` on each gain edit. */
-  plantResponse: PlantFrequencyResponse | null;
-  /** Margins with the file's gains. */
+  /** The trial's operating points (loop/'s operatingPoints), prepared for per-gain-set margins. */
+  points: PreparedPoint[];
+  /** Margins with the file's gains at each operating point (null where it has no linear model). */
+  pointMargins: { description: string; at: number; margins: Margins | null; problem: string | null }[];
+  /** Margins with the file's gains: each figure the worst over the operating points. */
   margins: Margins | null;
   trial: TrialFindings | null;
   flags: Flag[];

@@ -1,11 +1,11 @@
 /**
  * The notices panel's source when the diagnose core is there: its flags about the plant (made
- * once, when the screen first asks), and the loop margins of each edited gain set from the
- * plant's frequency response that the diagnosis computed (reused, so an edit only re-evaluates
- * the controller factors).
+ * once, when the screen first asks), and the loop margins of each edited gain set at the trial's
+ * operating points the diagnosis prepared (loop/'s worst over the points, as check and the tuning
+ * commands report them; an edit only re-evaluates the controller factors).
  */
-import { loopMargins } from '../analysis/index.js';
 import { diagnosePlant, type Diagnosis, type Flag } from '../diagnose/index.js';
+import { pointFigures, worstMargins } from '../loop/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { MarginsView, Notice, NoticeSource } from './notices.js';
 
@@ -41,8 +41,9 @@ export function diagnoseSource(plant: PlantSpec): NoticeSource {
     },
     margins: (gains): MarginsView | null => {
       const d = get();
-      if (d === null || d.plantResponse === null) return null;
-      const m = loopMargins(d.plantResponse, gains, plant.loop.sampleTime, plant.sensor);
+      if (d === null) return null;
+      const m = worstMargins(pointFigures(d.points, gains, plant));
+      if (m === null) return null;
       return { gainMargin: m.gainMargin, phaseMarginDeg: m.phaseMarginDeg, maxSensitivity: m.maxSensitivity, closedLoopStable: m.closedLoopStable };
     },
   };

@@ -29,7 +29,7 @@ export { tuningContext } from './tuning-context.js';
 export type { TuningContext } from './tuning-context.js';
 export { operatingPointModel } from './operating-point.js';
 export { evaluateGains, simulateGains, gainSetMs, gainNoiseActivity, FLAG_SHARE } from './evaluate.js';
-export { gainMargins } from './gain-margins.js';
+export { gainMargins, gainPointFigures } from './gain-margins.js';
 export { noiseActivity, noiseMessage } from './noise-activity.js';
 export type { NoiseActivity } from './noise-activity.js';
 export type { GainEvaluation, GainFlag, EvaluateOptions } from './evaluate.js';

@@ -1,12 +1,13 @@
 /**
  * Everything about a plant file that does not change from one gain set to the next, prepared once:
- * the compiled plant, the loop configuration and start (loop/'s buildLoop), the linear model at the operating point and its
- * frequency response (for margins and Ms).
+ * the compiled plant, the loop configuration and start (loop/'s buildLoop), the operating points of
+ * its trial with their linear models and frequency responses (loop/'s operatingPoints: margins and
+ * Ms are judged at every one), and the one linear model the tuning rules start from.
  */
-import { plantFrequencyResponse, type PlantFrequencyResponse } from '../analysis/index.js';
+import type { PlantFrequencyResponse } from '../analysis/index.js';
 import { compilePlant } from '../model/index.js';
 import type { PlantSpec, TrialSpec } from '../model/types.js';
-import { buildLoop, type LoopStart } from '../loop/index.js';
+import { buildLoop, operatingPoints, pointResponse, preparePoints, type LoopStart, type PreparedPoint } from '../loop/index.js';
 import type { LinearModel, LoopConfig, PlantDynamics } from '../sim/index.js';
 import { operatingPointModel } from './operating-point.js';
 
@@ -18,7 +19,16 @@ export interface TuningContext {
   loop: LoopConfig;
   /** Where the file's trial starts (loop/'s settled start): the operating point of the linear model. */
   start: LoopStart;
-  /** Linear model at the trial's operating point (exact for linear kinds); null when none could be made. */
+  /**
+   * The trial's operating points (every setpoint level it holds, with the loads then in force),
+   * each with its linear model and frequency response: margins and Ms are those of the worst point.
+   */
+  points: PreparedPoint[];
+  /**
+   * The linear model the rules start from: the first operating point that has one (the first
+   * level the trial holds, as diagnose reports it), else the loop's start; exact for linear kinds;
+   * null when none could be made.
+   */
   linear: LinearModel | null;
   /** Frequency response of `linear` up to the Nyquist frequency; null with `linear`. */
   response: PlantFrequencyResponse | null;
@@ -28,14 +38,8 @@ export interface TuningContext {
   notes: string[];
 }
 
-/** Frequency response for margin checks at this loop's sample time. */
-export function responseOf(linear: LinearModel, spec: PlantSpec): PlantFrequencyResponse {
-  const h = spec.loop.sampleTime;
-  return plantFrequencyResponse(linear, {
-    wMax: Math.PI / h,
-    extraDelay: spec.sensor.delay + h / 2,
-  });
-}
+/** Frequency response for margin checks at this loop's sample time (loop/'s pointResponse). */
+export const responseOf: (linear: LinearModel, spec: PlantSpec) => PlantFrequencyResponse = pointResponse;
 
 /**
  * Prepare a plant file for tuning. `dynamics` may be passed when the caller compiled it already
@@ -45,13 +49,23 @@ export function tuningContext(spec: PlantSpec, dynamics: PlantDynamics = compile
   const built = buildLoop(spec, { dynamics });
   const loop = built.config;
   const notes = [...built.notes];
-  const op = operatingPointModel(spec, dynamics, built.start);
-  for (const n of op.notes) notes.push(n);
-  const linear = op.model;
   const t = spec.loop.trial;
   const events = t.events.filter((e) => e.kind !== 'gains');
   if (events.length < t.events.length) notes.push("the trial's scripted gain changes are left out when judging a gain set");
   const trial = { ...t, events };
-  return { spec, dynamics, loop, start: built.start, linear, response: linear ? responseOf(linear, spec) : null, trial, notes };
+  const ops = operatingPoints(spec, dynamics, trial);
+  for (const n of ops.notes) notes.push(n);
+  const points = preparePoints(ops.points, spec);
+  const first = points.find((p) => p.response !== null);
+  if (first !== undefined) {
+    return { spec, dynamics, loop, start: built.start, points, linear: first.point.linear, response: first.response, trial, notes };
+  }
+  // No operating point has a linear model (no steady state at any level): the start's, noted.
+  const why = ops.points.find((p) => p.problem !== null)?.problem;
+  if (why) notes.push(`no operating point of the trial has a linear model (${why}): the linear model at the start is used`);
+  const op = operatingPointModel(spec, dynamics, built.start);
+  for (const n of op.notes) notes.push(n);
+  const linear = op.model;
+  return { spec, dynamics, loop, start: built.start, points, linear, response: linear ? responseOf(linear, spec) : null, trial, notes };
 }
 

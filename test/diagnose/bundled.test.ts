@@ -1,6 +1,7 @@
 /**
  * Every bundled plant diagnoses without a crash, and the physics of each file shows in its flags.
  */
+import { pointFigures, worstMargins } from '../../src/loop/index.js';
 import { describe, it, expect } from 'vitest';
 import { readFileSync, readdirSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
@@ -43,8 +44,8 @@ describe('bundled plants', () => {
       expect(json.linear.poles.length).toBe(d.linear!.nx);
       expect(Object.keys(json.margins)).toEqual(expect.arrayContaining(['gain_margin', 'phase_margin_deg', 'crossover_frequency', 'max_sensitivity']));
       expect(formatDiagnosis(d)).toContain(spec.name);
-      // The reused plant response gives the same margins as the diagnosis for the file's gains.
-      const again = loopMargins(d.plantResponse!, spec.loop.controller.gains, spec.loop.sampleTime, spec.sensor);
+      // The prepared operating points give the same margins as the diagnosis for the file's gains.
+      const again = worstMargins(pointFigures(d.points, spec.loop.controller.gains, spec))!;
       if (spec.loop.controller.structure === 'pid' || spec.loop.controller.structure === 'pi') {
         expect(again.maxSensitivity).toBeCloseTo(d.margins!.maxSensitivity, 12);
       }
