@@ -95,8 +95,8 @@ describe('tui OptimizeJob: the optimiser in slices', () => {
 
   it('never worse than its start, within its budget; the edited set on the same cost to read it against', () => {
     const a = run({ maxEvaluations: 60 });
-    // No start meets the file's overshoot limit: the result does, at a somewhat higher IAE.
-    expect(a.notes.some((n) => n.startsWith('no start meets all'))).toBe(true);
+    // Whether or not a start meets the file's overshoot limit (margins are now judged at every
+    // operating point, which changes the ranking of the starts), the result does.
     expect(a.flags.filter((f) => f.includes('overshoot_pct'))).toEqual([]);
     expect(a.evaluations).toBeLessThanOrEqual(60);
     expect(a.current!.cost).toBe(evaluateGains(contextFor(setup, base), base.gains, base.structure).cost);
