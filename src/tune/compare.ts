@@ -111,7 +111,9 @@ export interface CandidateReport {
   result: TrialResult | null;
   metrics: TrialMetrics | null;
   margins: StructureMargins | null;
-  /** How its gains were tuned (null: as written). */
+  /** Where its gains come from: the file as written, its rule alone (no optimiser budget), or the optimiser. */
+  gainsFrom: 'written' | 'rule' | 'tuned';
+  /** How its gains were tuned (null unless `gainsFrom` is 'tuned'). */
   tuning: CandidateTuning | null;
   row: CompareRow;
 }
@@ -355,10 +357,10 @@ function msOf(m: StructureMargins | null): number {
 /**
  * What held a candidate back, for a table cell: the kinds of its binding constraints ('ms',
  * 'requirement', 'saturation', 'budget'), 'none' for an interior optimum, 'as written' for gains
- * from the file.
+ * from the file, 'rule gains' for a candidate left at its rule's gains (no optimiser budget).
  */
 export function bindingSummary(c: CandidateReport): string {
-  if (c.tuning === null) return 'as written';
+  if (c.tuning === null) return c.gainsFrom === 'rule' ? 'rule gains' : 'as written';
   const kinds = [...new Set(c.tuning.binding.map((b) => b.kind))];
   return kinds.length === 0 ? 'none' : kinds.join(',');
 }
@@ -405,6 +407,7 @@ function* evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null, f
     result: null,
     metrics: null,
     margins: null,
+    gainsFrom: c.autoGains ? 'rule' : 'written',
     tuning: null,
     row: emptyRow(c.name, structure),
   };
@@ -418,6 +421,7 @@ function* evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null, f
       const t = yield* tuneCandidate(ctx, resolved, fight);
       resolved = t.spec;
       report.tuning = t.tuning;
+      report.gainsFrom = 'tuned';
       report.basis.push(`gains tuned from there by the optimiser to Ms <= ${t.tuning.msTarget} (${t.tuning.evaluations} evaluations, ${t.tuning.stoppedBy})`);
     }
   } catch (e) {

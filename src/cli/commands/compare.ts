@@ -104,8 +104,10 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
     const kinds = r.flags.map((f) => `${f.kind} (${f.severity})`);
     lines.push(`  no compare: list in the file; candidates chosen from the diagnosis: ${kinds.length ? kinds.join(', ') : 'no findings'}`);
   }
-  if (r.candidates.some((c) => c.tuning !== null)) {
+  if (r.candidates.some((c) => c.gainsFrom === 'tuned')) {
     lines.push(`  candidates without gains tuned by the optimiser to Ms <= ${r.msTarget} and the file's requirements`);
+  } else if (r.candidates.some((c) => c.gainsFrom === 'rule')) {
+    lines.push('  candidates without gains run their rule gains, not tuned further (no optimiser budget)');
   }
   lines.push('');
   const rows: string[][] = [
@@ -168,6 +170,7 @@ export function compareJson(file: string, plant: PlantSpec, r: CompareResult): u
         unavailable: c.unavailable,
         gains: c.controller ? { kc: w.kc, ti: finiteOrNull(w.ti), td: w.td, b: c.controller.gains.b, c: c.controller.gains.c } : null,
         structure_settings: ext,
+        gains_from: c.gainsFrom,
         detail: w.detail,
         rise_time: finiteOrNull(w.riseTime),
         overshoot_pct: finiteOrNull(w.overshootPct),
