@@ -35,7 +35,7 @@ export interface FrequencyGridOptions {
   wMin?: number;
   /** Highest frequency, rad/s (default 100× the fastest one); the Nyquist frequency π/h is a good choice. */
   wMax?: number;
-  /** Delay outside the plant that the loop adds (sensor delay + h/2), s: sets the grid spacing at high frequency. */
+  /** Delay outside the plant that the loop adds (the sensor delay), s: one more characteristic frequency 1/delay for the grid. */
   extraDelay?: number;
   /** Further characteristic frequencies to cover (controller corners), rad/s. */
   extraFrequencies?: number[];

@@ -8,7 +8,7 @@ export { FORM_TERMS, fromIdeal, seriesRealizable, toIdeal, idealToSeries, conver
 export type { IdealTerms, ParallelTerms } from './forms.js';
 export { velocityForm, runVelocityForm, DISCRETISATION_METHODS } from './velocity-form.js';
 export type { VelocityForm, DiscretisationMethod } from './velocity-form.js';
-export { SmithPredictor, checkSmithModel, delaySamples } from './smith-predictor.js';
+export { SmithPredictor, checkSmithModel, delaySamples, smithCoefficients } from './smith-predictor.js';
 export type { SmithModel } from './smith-predictor.js';
 export { FeedforwardController, checkFeedforward } from './feedforward.js';
 export type { FeedforwardLaw } from './feedforward.js';
