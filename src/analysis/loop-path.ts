@@ -31,7 +31,7 @@ import type { SensorSpec } from '../model/types.js';
 import { delayInSteps, sensorFilterCoefficients, type LinearModel } from '../sim/index.js';
 import { solveComplexInPlace, zohDiscretise } from '../num/index.js';
 import { sampleOnGrid, type PlantFrequencyResponse, type RationalEvaluator, type SampledGrid } from './freq-response.js';
-import { poleZeroSummary } from './poles-zeros.js';
+import { originTolerance, poleZeroSummary } from './poles-zeros.js';
 
 /**
  * The loop without its controller, on a frequency grid: the rational part of G (for h > 0 the
@@ -46,6 +46,13 @@ export interface LoopPath extends SampledGrid {
   evaluate: RationalEvaluator;
   /** Open-loop plant poles in the right half plane (−1 when they could not be computed). */
   unstablePoles: number;
+  /**
+   * Frequency (rad/s) above which the Nyquist count starts: above the poles and zeros that sit
+   * within rounding of the origin (they count as integrators, the detour round z = 1 takes them in).
+   */
+  nyquistFrom: number;
+  /** The plant has undamped (damping < 1e-3) modes away from 0: the count cannot pass them. */
+  undampedModes: boolean;
 }
 
 /** Sensor fields the loop depends on. */
@@ -72,13 +79,34 @@ export function loopPath(plant: PlantFrequencyResponse, sampleTime: number, sens
   return path;
 }
 
-function countUnstable(model: LinearModel): number {
+/** What the Nyquist count needs to know about the plant's own poles. */
+interface OpenLoopFacts {
+  unstablePoles: number;
+  nyquistFrom: number;
+  undampedModes: boolean;
+}
+
+function openLoopFacts(model: LinearModel, h: number): OpenLoopFacts {
   try {
+    const pz = poleZeroSummary(model);
+    // At the origin: within rounding of it, or (sampled) mapped within 1e-6 of z = 1.
+    const tol0 = Math.max(originTolerance(pz.poles.concat(pz.zeros)), h > 0 ? 1e-6 / h : 0);
     let unstable = 0;
-    for (const q of poleZeroSummary(model).poles) if (q.re > 1e-9 * Math.max(1, Math.hypot(q.re, q.im))) unstable++;
-    return unstable;
+    let nearOrigin = 0;
+    let undamped = false;
+    for (const q of pz.poles.concat(pz.zeros)) {
+      const m = Math.hypot(q.re, q.im);
+      if (m <= tol0) nearOrigin = Math.max(nearOrigin, m);
+    }
+    for (const q of pz.poles) {
+      const m = Math.hypot(q.re, q.im);
+      if (q.re > 1e-9 * Math.max(1, m)) unstable++;
+      // Damping below 1e-3: a resonance too narrow for the grid to unwrap reliably (its bisection stops near 1e-4 ω).
+      else if (m > tol0 && Math.abs(q.re) <= 1e-3 * m) undamped = true;
+    }
+    return { unstablePoles: unstable, nyquistFrom: 10 * nearOrigin, undampedModes: undamped };
   } catch {
-    return -1;
+    return { unstablePoles: -1, nyquistFrom: 0, undampedModes: false };
   }
 }
 
@@ -116,7 +144,7 @@ function continuousPath(plant: PlantFrequencyResponse, sensorDelay: number, tf: 
     phase,
     delay: plant.delay + sensorDelay,
     evaluate,
-    unstablePoles: countUnstable(plant.model),
+    ...openLoopFacts(plant.model, 0),
   };
 }
 
@@ -239,5 +267,5 @@ function sampledPath(plant: PlantFrequencyResponse, h: number, sensorDelay: numb
   grid.im[last] = 0;
   grid.re[last] = Math.sign(grid.re[last]) * grid.mag[last];
   grid.phase[last] = Math.PI * Math.round(grid.phase[last] / Math.PI);
-  return { sampleTime: h, ...grid, delay: d * h, evaluate, unstablePoles: countUnstable(model) };
+  return { sampleTime: h, ...grid, delay: d * h, evaluate, ...openLoopFacts(model, h) };
 }

@@ -214,13 +214,16 @@ export function loopMargins(
   let gm = Infinity;
   let w180 = NaN;
   let lowerGm = 0;
-  const count = h > 0 && n > 1 && Number.isFinite(phase[0]) ? new NyquistCount(phase[0], re[0], im[0]) : null;
+  let i0 = 0;
+  while (i0 + 2 < n && w[i0] <= path.nyquistFrom) i0++;
+  const count = h > 0 && n > 1 && Number.isFinite(phase[i0]) ? new NyquistCount(phase[i0], re[i0], im[i0]) : null;
   let countBroken = count === null;
   for (let i = 0; i + 1 < n; i++) {
     const p0 = phase[i];
     const p1 = phase[i + 1];
+    const counted = i >= i0 ? count : null;
     if (!Number.isFinite(p0) || !Number.isFinite(p1)) {
-      countBroken = true;
+      if (i >= i0) countBroken = true;
       continue;
     }
     const up = p1 > p0;
@@ -230,7 +233,7 @@ export function loopMargins(
       const target = j * Math.PI;
       if (target === p0) continue;
       if (j % 2 === 0) {
-        count?.crossing(j, 0);
+        counted?.crossing(j, 0);
         continue;
       }
       let x: number;
@@ -242,7 +245,7 @@ export function loopMargins(
         x = findRoot(i, () => point[1] - target, p0 - target, p1 - target);
         m = point[0];
       }
-      count?.crossing(j, m);
+      counted?.crossing(j, m);
       // On the negative real axis |S| = 1/|1 − |L||: a point of the |S| curve known exactly.
       crossingS.push(1 / Math.abs(1 - m), x);
       if (m < 1) {
@@ -254,6 +257,7 @@ export function loopMargins(
         lowerGm = 1 / m;
       }
     }
+    counted?.point(p1, re[i + 1], im[i + 1]);
   }
   // Peaks of |S| and |T|. Samples: the grid, plus points between grid points wherever the loop
   // gain is above 0.1 and the phase turns by more than 0.3 rad (a delay makes L spin quickly
@@ -364,10 +368,10 @@ export function loopMargins(
   let closedLoopStable: boolean | null = null;
   if (h > 0) {
     let unstable: number | null = null;
-    if (count !== null && !countBroken && path.unstablePoles >= 0 && gains.kc !== 0) {
+    if (count !== null && !countBroken && path.unstablePoles >= 0 && !path.undampedModes && gains.kc !== 0) {
       count.end(Math.round(phase[n - 1] / Math.PI), mag[n - 1]);
-      // Poles of L at z = 1 (integrators, net of zeros there): the slope of |L| at the bottom of the grid.
-      const q = Math.max(0, Math.round(-Math.log(mag[1] / mag[0]) / Math.log(w[1] / w[0])));
+      // Poles of L at z = 1 (integrators, net of zeros there): the slope of |L| where the count starts.
+      const q = Math.max(0, Math.round(-Math.log(mag[i0 + 1] / mag[i0]) / Math.log(w[i0 + 1] / w[i0])));
       if (Number.isFinite(q)) unstable = count.unstablePoles(q, path.unstablePoles);
       if (count.marginal) unstable = Math.max(unstable ?? 1, 1);
     }

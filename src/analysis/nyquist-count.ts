@@ -12,7 +12,7 @@
  * Im L, so between two consecutive crossings of the real axis by L, 1 + L stays in one half plane,
  * where the change of its argument is the difference of the endpoints' arguments taken in that
  * half plane. The caller reports every crossing of the real axis (arg L = kπ) in order, with
- * 1 + Re L at it; that is what the phase-crossover search finds anyway.
+ * |L| at it (what the phase-crossover search finds anyway), and every grid point between them.
  */
 
 /** Argument of a point of 1 + L taken in half plane σ (points on the real axis included). */
@@ -51,6 +51,15 @@ export class NyquistCount {
     this.re1 = re1;
     this.im = im;
     this.axis = onAxis;
+  }
+
+  /**
+   * A grid point of L (unwrapped phase, rad). Report every one between the crossings: the half
+   * plane of each stretch is read from the phases at its two ends, which is only right when the
+   * stretch is short (L can leave the axis and come back to it between two crossings).
+   */
+  point(phase: number, re: number, im: number): void {
+    this.step(phase, 1 + re, im, false);
   }
 
   /** L crosses the real axis at unwrapped phase kπ with magnitude m. */

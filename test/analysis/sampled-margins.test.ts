@@ -1,6 +1,9 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, it, expect } from 'vitest';
+import fc from 'fast-check';
+import { pidCoefficients } from '../../src/control/index.js';
+import { eigenvalues, zohDiscretise } from '../../src/num/index.js';
 import { plantFrequencyResponse } from '../../src/analysis/freq-response.js';
 import { loopMargins } from '../../src/analysis/margins.js';
 import type { GainSet } from '../../src/model/types.js';
@@ -67,4 +70,64 @@ describe('margins of the sampled loop against python-control (sampled-margins.py
       expectClose(m.maxSensitivity, c.ms, { rel: 0.005 });
     });
   }
+});
+
+describe('the Nyquist count of the sampled loop against its closed-loop eigenvalues', () => {
+  /**
+   * Property: closedLoopStable equals "every eigenvalue of the discrete closed loop lies inside the
+   * unit circle", the loop written out as difference equations (plant x+ = Φx + Γu, y = Cx, with
+   * Φ, Γ from zohDiscretise; the law of control/pid.ts: u = −kc y + I + D, D = ad D⁻ − bd (y − y⁻),
+   * I+ = I − bi y) — the argument principle against its definition.
+   */
+  it('agrees on random PID loops around second-order plants, stable and unstable, damping |ζ| >= 0.01 (integrating plants: the fixture above)', () => {
+    fc.assert(
+      fc.property(
+        fc.double({ min: -0.5, max: 2, noNaN: true }),
+        fc.double({ min: 0.1, max: 2, noNaN: true }),
+        fc.double({ min: 0.05, max: 1, noNaN: true }),
+        fc.double({ min: 0.1, max: 20, noNaN: true }),
+        fc.double({ min: 0.3, max: 10, noNaN: true }),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        (zeta, w0, h, kc, ti, td) => {
+          // Damping |ζ| >= 0.01, stable and unstable plants (below 1e-3 the count declines to decide).
+          fc.pre(Math.abs(zeta) >= 0.01);
+          const a1 = 2 * zeta * w0;
+          const a0 = w0 * w0;
+          const model = tfModel([1], [1, a1, a0]);
+          const g: GainSet = { kc, ti, td, n: 10, b: 1, c: 0, antiWindup: 'none', trackingTime: NaN };
+          const n = model.nx;
+          const phi = new Float64Array(n * n);
+          const gam = new Float64Array(n);
+          zohDiscretise(model.a, model.b, n, h, phi, gam);
+          const { bi, ad, bd } = pidCoefficients(g, h);
+          const N = n + 3;
+          const m = new Float64Array(N * N);
+          // u = Σ ku_j s_j over s = [x, I, D⁻, y⁻]
+          const ku = new Float64Array(N);
+          for (let j = 0; j < n; j++) ku[j] = -(kc + bd) * model.c[j];
+          ku[n] = 1;
+          ku[n + 1] = ad;
+          ku[n + 2] = bd;
+          for (let i = 0; i < n; i++) {
+            for (let j = 0; j < n; j++) m[i * N + j] = phi[i * n + j];
+            for (let j = 0; j < N; j++) m[i * N + j] += gam[i] * ku[j];
+          }
+          m[n * N + n] = 1;
+          for (let j = 0; j < n; j++) m[n * N + j] = -bi * model.c[j];
+          for (let j = 0; j < n; j++) m[(n + 1) * N + j] = -bd * model.c[j];
+          m[(n + 1) * N + n + 1] = ad;
+          m[(n + 1) * N + n + 2] = bd;
+          for (let j = 0; j < n; j++) m[(n + 2) * N + j] = model.c[j];
+          const e = eigenvalues(m, N);
+          let radius = 0;
+          for (let i = 0; i < N; i++) radius = Math.max(radius, Math.hypot(e.re[i], e.im[i]));
+          // No verdict for a closed loop within 1e-3 of the unit circle (marginal either way).
+          if (Math.abs(radius - 1) < 1e-3) return;
+          const mg = loopMargins(plantFrequencyResponse(model, { wMax: Math.PI / h }), g, h, { delay: 0, filterTime: 0 });
+          expect(mg.closedLoopStable, `spectral radius ${radius}`).toBe(radius < 1);
+        },
+      ),
+      { numRuns: 150, seed: 7 },
+    );
+  });
 });
