@@ -5,7 +5,9 @@
  * of τ/k each. A section is within 0.1° of the true phase up to ωτ/k = 1, so k is chosen from the
  * highest frequency at which the loop gain is still above 0.2.
  * Limitation (stated): sampling enters only as the delay h/2; the verdict is that of the
- * continuous approximation, not of the sampled-data loop.
+ * continuous approximation, not of the sampled-data loop. The margins' stability verdict of a
+ * sampled loop is the Nyquist count of nyquist-count.ts; this check serves the continuous loop
+ * (h = 0) and the dominant closed-loop damping that `looprig check` reports.
  */
 import type { GainSet } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';

@@ -1,18 +1,14 @@
 /**
- * Frequency response of a linear plant on an adaptive logarithmic grid, and of the loop
- * L(jω) = C(jω) · ZOH(jω) · P(jω) · H_sensor(jω).
+ * Frequency response of a linear plant on an adaptive logarithmic grid, and the continuous
+ * controller response (the h → 0 limit of the law). The loop as the engine runs it (sampled plant,
+ * discrete law, sensor as simulated) is built from these in loop-path.ts and pid-law-response.ts.
  *
- * Loop model (stated once, used everywhere in analysis/):
  * - P(jω) = (C (jωI − A)⁻¹ B + D) e^(−jω L_plant), evaluated by a complex linear solve.
  * - C(jω): the ideal PID of the gain set with derivative filter,
  *   kc (1 + 1/(jω ti) + jω td/(1 + jω td/n)); setpoint weights do not enter the loop.
- *   The controller's own discretisation is not modelled (continuous law).
- * - Sampling: sampler + zero-order hold as (1 − e^(−jωh))/(jωh) = e^(−jωh/2) sin(ωh/2)/(ωh/2),
- *   the first-harmonic (no aliasing) description; the grid stops at the Nyquist frequency π/h.
- * - Sensor: transport delay e^(−jω L_sensor) and first-order filter 1/(1 + jω T_f).
  * Phases are kept unwrapped: the rational part of P is unwrapped along the grid (the grid is
- * refined until neighbouring points differ by less than 0.15 rad), the delay, hold, filter and
- * controller phases are added analytically, so crossings of −180° are found on every branch.
+ * refined until neighbouring points differ by less than 0.15 rad); the delay's phase is added
+ * analytically by the users, so crossings of −180° are found on every branch.
  */
 import type { GainSet } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';
@@ -23,17 +19,8 @@ import { originTolerance, poleZeroSummary } from './poles-zeros.js';
 export type RationalEvaluator = (w: number, out: Float64Array) => void;
 
 /** A plant's frequency response, computed once and reused for every gain edit. */
-export interface PlantFrequencyResponse {
+export interface PlantFrequencyResponse extends SampledGrid {
   model: LinearModel;
-  /** Angular frequency, rad/s, ascending. */
-  w: Float64Array;
-  /** Rational part P₀(jω) (delay excluded), real and imaginary parts. */
-  re: Float64Array;
-  im: Float64Array;
-  /** |P₀(jω)|. */
-  mag: Float64Array;
-  /** Unwrapped phase of P₀(jω), rad. */
-  phase: Float64Array;
   /** Plant input delay, s (its phase −ωL is added analytically). */
   delay: number;
   /** Upper end of the grid, rad/s (the Nyquist frequency when a sample time was given). */
@@ -48,7 +35,7 @@ export interface FrequencyGridOptions {
   wMin?: number;
   /** Highest frequency, rad/s (default 100× the fastest one); the Nyquist frequency π/h is a good choice. */
   wMax?: number;
-  /** Delay outside the plant that the loop adds (sensor delay + h/2), s: sets the grid spacing at high frequency. */
+  /** Delay outside the plant that the loop adds (the sensor delay), s: one more characteristic frequency 1/delay for the grid. */
   extraDelay?: number;
   /** Further characteristic frequencies to cover (controller corners), rad/s. */
   extraFrequencies?: number[];
@@ -142,9 +129,35 @@ export function plantFrequencyResponse(model: LinearModel, options: FrequencyGri
 
   const decades = Math.log10(wMax / wMin);
   const nBase = Math.max(2, Math.ceil(decades * ppd) + 1);
-  let ws: number[] = [];
+  const ws: number[] = [];
   for (let i = 0; i < nBase; i++) ws.push(wMin * Math.pow(wMax / wMin, i / (nBase - 1)));
 
+  const grid = sampleOnGrid(ws, evaluate, maxPoints);
+  return { model, ...grid, delay: model.delay, wMax, evaluate };
+}
+
+/** A response sampled on a grid (for a plant: its rational part P₀, the delay excluded). */
+export interface SampledGrid {
+  /** Angular frequency, rad/s, ascending. */
+  w: Float64Array;
+  /** Real and imaginary parts. */
+  re: Float64Array;
+  im: Float64Array;
+  /** Magnitude. */
+  mag: Float64Array;
+  /** Unwrapped phase, rad. */
+  phase: Float64Array;
+}
+
+/**
+ * Evaluate `evaluate` on the grid `start` (ascending, rad/s), refined by bisection (geometric
+ * mean) wherever neighbouring points differ by more than 0.15 rad in phase or 0.3 in log
+ * magnitude (at most 10 levels, `maxPoints` points), so that the phase can be unwrapped along
+ * the grid. The low-frequency phase is put in (−2π + 0.3, 0.3] so that a positive-gain stable
+ * response starts near 0.
+ */
+export function sampleOnGrid(start: number[], evaluate: RationalEvaluator, maxPoints: number): SampledGrid {
+  let ws = start;
   const tmp = new Float64Array(2);
   const values = new Map<number, [number, number]>();
   const valueAt = (w: number): [number, number] => {
@@ -156,7 +169,6 @@ export function plantFrequencyResponse(model: LinearModel, options: FrequencyGri
     }
     return v;
   };
-  // Refine where the rational part turns or changes magnitude fast.
   for (let level = 0; level < 10 && ws.length < maxPoints; level++) {
     const next: number[] = [ws[0]];
     let inserted = 0;
@@ -188,12 +200,11 @@ export function plantFrequencyResponse(model: LinearModel, options: FrequencyGri
     const p = Math.atan2(v[1], v[0]);
     phase[i] = i === 0 ? p : phase[i - 1] + wrapAngle(p - phase[i - 1]);
   }
-  // Branch: put the low-frequency phase in (−2π + 0.3, 0.3] so a positive-gain stable plant starts near 0.
   if (n > 0) {
     const shift = -2 * Math.PI * Math.floor((phase[0] - 0.3 + 2 * Math.PI) / (2 * Math.PI));
     if (shift !== 0) for (let i = 0; i < n; i++) phase[i] += shift;
   }
-  return { model, w, re, im, mag, phase, delay: model.delay, wMax, evaluate };
+  return { w, re, im, mag, phase };
 }
 
 /**
@@ -225,34 +236,4 @@ export interface LoopExtras {
   sensorDelay: number;
   /** Sensor filter time constant, s (0 = none). */
   sensorFilter: number;
-}
-
-/**
- * Magnitude and unwrapped phase of the loop at ω, given the rational plant value (pr, pi) and its
- * unwrapped phase. Written to out[0] = |L|, out[1] = arg L (rad), out[2], out[3] = Re L, Im L.
- */
-export function loopPoint(
-  g: GainSet,
-  extras: LoopExtras,
-  plantDelay: number,
-  w: number,
-  pr: number,
-  pi: number,
-  plantPhase: number,
-  out: Float64Array,
-  work: Float64Array,
-): void {
-  const cPhase = controllerResponse(g, w, work);
-  const cMag = Math.hypot(work[0], work[1]);
-  const h = extras.sampleTime;
-  const x = 0.5 * w * h;
-  const hold = x > 0 ? Math.sin(x) / x : 1;
-  const tf = extras.sensorFilter;
-  const filt = tf > 0 ? 1 / Math.sqrt(1 + w * tf * (w * tf)) : 1;
-  const mag = cMag * Math.hypot(pr, pi) * hold * filt;
-  const phase = plantPhase + cPhase - w * (plantDelay + extras.sensorDelay + 0.5 * h) - (tf > 0 ? Math.atan(w * tf) : 0);
-  out[0] = mag;
-  out[1] = phase;
-  out[2] = mag * Math.cos(phase);
-  out[3] = mag * Math.sin(phase);
 }

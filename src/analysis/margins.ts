@@ -1,26 +1,32 @@
 /**
- * Stability margins and sensitivity peaks of the loop L = C · ZOH · P · H_sensor (loop model in
- * freq-response.ts), from a precomputed plant frequency response: per gain edit only the
- * controller, hold and sensor factors are evaluated on the grid, and the plant is evaluated
- * again only at the few points where a crossing or a peak is refined.
+ * Stability margins and sensitivity peaks of the loop as the engine runs it, L = C · G: C the
+ * controller's own law (pid-law-response.ts: the discrete law of control/pid.ts at z = e^(jωh)),
+ * G the rest of the sampled loop (loop-path.ts: exact zero-order-hold discretisation of the linear
+ * plant with whole and fractional delays, the sensor filter as simulated). G is computed once per
+ * plant, sample time and sensor; per gain edit only C is evaluated on the grid, and G again only
+ * at the few points where a crossing or a peak is refined. With h = 0 the same code gives the
+ * continuous loop (the limit h → 0).
  *
  * Definitions used:
  * - gain crossover ωc: |L(jωc)| = 1; phase margin PM = 180° + arg L(jωc) wrapped to (−180°, 180°],
  *   the smallest over all gain crossovers;
  * - phase crossover ω180: L(jω) crosses the negative real axis; gain margin GM = 1/|L(jω180)|,
  *   the smallest over crossings with |L| < 1 (a crossing with |L| > 1, as in a conditionally
- *   stable loop, is reported as the lower gain margin, the largest such 1/|L|);
+ *   stable loop, is reported as the lower gain margin, the largest such 1/|L|); for h > 0 the
+ *   grid ends at the Nyquist frequency π/h, where L is real, and a crossing there counts;
  * - Ms = max |1/(1 + L)|, Mt = max |L/(1 + L)|;
  * - bandwidth ω_B: the lowest frequency where |S(jω)| first crosses 1/√2 from below
  *   (Skogestad & Postlethwaite, Multivariable Feedback Control, 2nd ed., 2005, section 2.4.5 [from memory]);
  * - delay margin PM/ωc, s.
- * Margins only mean something for a stable closed loop: `closedLoopStable` comes from the
- * eigenvalue check of closed-loop.ts.
+ * Closed-loop stability, `closedLoopStable`: for h > 0 the Nyquist criterion on the unit circle
+ * (nyquist-count.ts) on the same L; for h = 0 the eigenvalue check of closed-loop.ts.
  */
 import type { GainSet, SensorSpec } from '../model/types.js';
 import { closedLoopCheck } from './closed-loop.js';
-import { loopPoint, wrapAngle, type LoopExtras, type PlantFrequencyResponse } from './freq-response.js';
-import { poleZeroSummary } from './poles-zeros.js';
+import { wrapAngle, type LoopExtras, type PlantFrequencyResponse } from './freq-response.js';
+import { loopPath, type LoopPath } from './loop-path.js';
+import { NyquistCount } from './nyquist-count.js';
+import { pidLawResponse } from './pid-law-response.js';
 
 /** Margins of one loop. Frequencies in rad/s, NaN where there is no such crossing. */
 export interface Margins {
@@ -44,7 +50,7 @@ export interface Margins {
   maxComplementarySensitivityFrequency: number;
   /** ω_B where |S| first reaches 1/√2. */
   bandwidth: number;
-  /** Closed-loop stability from the Padé eigenvalue check; null when the check could not run. */
+  /** Closed-loop stability of the sampled loop (Nyquist count; Padé eigenvalue check for h = 0); null when it could not be decided. */
   closedLoopStable: boolean | null;
   /** Number of open-loop poles in the right half plane (plant poles; the controller adds none). */
   openLoopUnstablePoles: number;
@@ -57,33 +63,28 @@ interface Workspace {
   phase: Float64Array;
   re: Float64Array;
   im: Float64Array;
+  /** Controller phase on the grid, unwrapped. */
+  cPhase: Float64Array;
   point: Float64Array;
   work: Float64Array;
-  plant: Float64Array;
-  unstablePoles: number;
+  rational: Float64Array;
 }
 
-const workspaces = new WeakMap<PlantFrequencyResponse, Workspace>();
+const workspaces = new WeakMap<LoopPath, Workspace>();
 
-function workspaceFor(p: PlantFrequencyResponse): Workspace {
+function workspaceFor(p: LoopPath): Workspace {
   let ws = workspaces.get(p);
   if (ws === undefined) {
     const n = p.w.length;
-    let unstable = 0;
-    try {
-      for (const q of poleZeroSummary(p.model).poles) if (q.re > 1e-9 * Math.max(1, Math.hypot(q.re, q.im))) unstable++;
-    } catch {
-      unstable = -1;
-    }
     ws = {
       mag: new Float64Array(n),
       phase: new Float64Array(n),
       re: new Float64Array(n),
       im: new Float64Array(n),
+      cPhase: new Float64Array(n),
       point: new Float64Array(4),
       work: new Float64Array(2),
-      plant: new Float64Array(2),
-      unstablePoles: unstable,
+      rational: new Float64Array(2),
     };
     workspaces.set(p, ws);
   }
@@ -106,29 +107,50 @@ export function loopMargins(
   sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
 ): Margins {
   const extras = loopExtras(sampleTime, sensor);
-  const ws = workspaceFor(plant);
+  const h = extras.sampleTime;
+  const path = loopPath(plant, h, sensor);
+  const ws = workspaceFor(path);
   const notes: string[] = [];
-  const nyquist = extras.sampleTime > 0 ? Math.PI / extras.sampleTime : Infinity;
-  const w = plant.w;
-  // Grid points used: up to the Nyquist frequency.
-  let n = w.length;
-  while (n > 2 && w[n - 1] > nyquist) n--;
-  const { mag, phase, re, im, point, work } = ws;
+  const nyquist = h > 0 ? Math.PI / h : Infinity;
+  const w = path.w;
+  const n = w.length;
+  const { mag, phase, re, im, cPhase, point, work, rational } = ws;
+  const law = pidLawResponse(gains, h);
+  const pathDelay = path.delay;
+  /** L from the rational part (pr, pi) of G with unwrapped phase pPhase and C's unwrapped phase. */
+  const combine = (x: number, pr: number, pi: number, pPhase: number, cPh: number): void => {
+    const m = Math.hypot(work[0], work[1]) * Math.hypot(pr, pi);
+    const ph = cPh + pPhase - x * pathDelay;
+    point[0] = m;
+    point[1] = ph;
+    point[2] = m * Math.cos(ph);
+    point[3] = m * Math.sin(ph);
+  };
   for (let i = 0; i < n; i++) {
-    loopPoint(gains, extras, plant.delay, w[i], plant.re[i], plant.im[i], plant.phase[i], point, work);
+    const raw = law(w[i], work);
+    cPhase[i] = i === 0 ? raw : cPhase[i - 1] + wrapAngle(raw - cPhase[i - 1]);
+    combine(w[i], path.re[i], path.im[i], path.phase[i], cPhase[i]);
     mag[i] = point[0];
     phase[i] = point[1];
     re[i] = point[2];
     im[i] = point[3];
   }
+  if (h > 0 && n > 0) {
+    // At the Nyquist frequency z = −1 and L is real: make it exactly so, a crossing there counts.
+    const k = Math.round(phase[n - 1] / Math.PI);
+    phase[n - 1] = k * Math.PI;
+    re[n - 1] = (k % 2 === 0 ? 1 : -1) * mag[n - 1];
+    im[n - 1] = 0;
+  }
 
-  /** Loop at an arbitrary ω, with the plant phase unwrapped against grid point `ref`. */
+  /** Loop at an arbitrary ω, with the phases unwrapped against grid point `ref`. */
   const at = (x: number, ref: number): void => {
-    plant.evaluate(x, ws.plant);
-    const pr = ws.plant[0];
-    const pi = ws.plant[1];
-    const ph = plant.phase[ref] + wrapAngle(Math.atan2(pi, pr) - plant.phase[ref]);
-    loopPoint(gains, extras, plant.delay, x, pr, pi, ph, point, work);
+    path.evaluate(x, rational);
+    const pr = rational[0];
+    const pi = rational[1];
+    const ph = path.phase[ref] + wrapAngle(Math.atan2(pi, pr) - path.phase[ref]);
+    const cRaw = law(x, work);
+    combine(x, pr, pi, ph, cPhase[ref] + wrapAngle(cRaw - cPhase[ref]));
   };
 
   /** Illinois regula falsi on ln ω for f = 0 bracketed by grid points i, i+1. */
@@ -187,20 +209,33 @@ export function loopMargins(
       wc = x;
     }
   }
-  // Phase crossovers (arg L = −π − 2πk for any integer k) and gain margins.
+  // Real-axis crossings of L (arg L = jπ), in order along the grid: the odd ones are phase
+  // crossovers (gain margins); all of them feed the Nyquist count of the sampled loop.
   let gm = Infinity;
   let w180 = NaN;
   let lowerGm = 0;
+  let i0 = 0;
+  while (i0 + 2 < n && w[i0] <= path.nyquistFrom) i0++;
+  const count = h > 0 && n > 1 && Number.isFinite(phase[i0]) ? new NyquistCount(phase[i0], re[i0], im[i0]) : null;
+  let countBroken = count === null;
   for (let i = 0; i + 1 < n; i++) {
     const p0 = phase[i];
     const p1 = phase[i + 1];
-    if (!Number.isFinite(p0) || !Number.isFinite(p1)) continue;
-    // Branch indices k with −π − 2πk strictly between p0 and p1 (either direction).
-    const kLo = Math.ceil((-Math.PI - Math.max(p0, p1)) / (2 * Math.PI));
-    const kHi = Math.floor((-Math.PI - Math.min(p0, p1)) / (2 * Math.PI));
-    for (let k = kLo; k <= kHi; k++) {
-      const target = -Math.PI - 2 * Math.PI * k;
+    const counted = i >= i0 ? count : null;
+    if (!Number.isFinite(p0) || !Number.isFinite(p1)) {
+      if (i >= i0) countBroken = true;
+      continue;
+    }
+    const up = p1 > p0;
+    const jFirst = up ? Math.floor(p0 / Math.PI) + 1 : Math.ceil(p0 / Math.PI) - 1;
+    const jLast = up ? Math.floor(p1 / Math.PI) : Math.ceil(p1 / Math.PI);
+    for (let j = jFirst; up ? j <= jLast : j >= jLast; j += up ? 1 : -1) {
+      const target = j * Math.PI;
       if (target === p0) continue;
+      if (j % 2 === 0) {
+        counted?.crossing(j, 0);
+        continue;
+      }
       let x: number;
       let m: number;
       if (target === p1) {
@@ -210,6 +245,7 @@ export function loopMargins(
         x = findRoot(i, () => point[1] - target, p0 - target, p1 - target);
         m = point[0];
       }
+      counted?.crossing(j, m);
       // On the negative real axis |S| = 1/|1 − |L||: a point of the |S| curve known exactly.
       crossingS.push(1 / Math.abs(1 - m), x);
       if (m < 1) {
@@ -221,6 +257,7 @@ export function loopMargins(
         lowerGm = 1 / m;
       }
     }
+    counted?.point(p1, re[i + 1], im[i + 1]);
   }
   // Peaks of |S| and |T|. Samples: the grid, plus points between grid points wherever the loop
   // gain is above 0.1 and the phase turns by more than 0.3 rad (a delay makes L spin quickly
@@ -328,30 +365,43 @@ export function loopMargins(
     }
   }
 
-  // Highest frequency at which the loop gain still matters, for the Padé order.
-  let wRelevant = 0;
-  for (let i = n - 1; i >= 0; i--) {
-    if (mag[i] > 0.2) {
-      wRelevant = w[i];
-      break;
+  let closedLoopStable: boolean | null = null;
+  if (h > 0) {
+    let unstable: number | null = null;
+    if (count !== null && !countBroken && path.unstablePoles >= 0 && !path.undampedModes && gains.kc !== 0) {
+      count.end(Math.round(phase[n - 1] / Math.PI), mag[n - 1]);
+      // Poles of L at z = 1 (integrators, net of zeros there): the slope of |L| where the count starts.
+      const q = Math.max(0, Math.round(-Math.log(mag[i0 + 1] / mag[i0]) / Math.log(w[i0 + 1] / w[i0])));
+      if (Number.isFinite(q)) unstable = count.unstablePoles(q, path.unstablePoles);
+      if (count.marginal) unstable = Math.max(unstable ?? 1, 1);
+    }
+    if (unstable === null) notes.push('the closed-loop stability of the sampled loop could not be decided');
+    else closedLoopStable = unstable === 0;
+  } else {
+    // Highest frequency at which the loop gain still matters, for the Padé order.
+    let wRelevant = 0;
+    for (let i = n - 1; i >= 0; i--) {
+      if (mag[i] > 0.2) {
+        wRelevant = w[i];
+        break;
+      }
+    }
+    try {
+      const cl = closedLoopCheck(plant.model, gains, extras, wRelevant);
+      closedLoopStable = cl.stable;
+      if (!cl.wellPosed) notes.push('the loop is not well posed (1 + L(∞) = 0)');
+    } catch {
+      notes.push('closed-loop eigenvalue check failed');
     }
   }
-  let closedLoopStable: boolean | null = null;
-  try {
-    const cl = closedLoopCheck(plant.model, gains, extras, wRelevant);
-    closedLoopStable = cl.stable;
-    if (!cl.wellPosed) notes.push('the loop is not well posed (1 + L(∞) = 0)');
-  } catch {
-    notes.push('closed-loop eigenvalue check failed');
-  }
   if (closedLoopStable === false) notes.push('the closed loop is unstable with these gains: the margins describe an unstable loop');
-  if (ws.unstablePoles > 0) {
+  if (path.unstablePoles > 0) {
     notes.push(
-      `the plant has ${ws.unstablePoles} unstable pole(s): gain and phase margins alone do not prove stability; rely on the closed-loop check`,
+      `the plant has ${path.unstablePoles} unstable pole(s): gain and phase margins alone do not prove stability; rely on the closed-loop check`,
     );
   }
   if (Number.isFinite(nyquist) && n > 0 && mag[n - 1] > 0.5) {
-    notes.push(`loop gain is still ${mag[n - 1].toFixed(2)} at the Nyquist frequency ${nyquist.toPrecision(3)} rad/s: sampling limits these figures`);
+    notes.push(`loop gain is still ${mag[n - 1].toFixed(2)} at the Nyquist frequency ${nyquist.toPrecision(3)} rad/s: the sampling limits this loop`);
   }
   if (n > 0 && !Number.isFinite(nyquist) && mag[n - 1] >= 1) notes.push('loop gain is above 1 at the top of the frequency grid');
 
@@ -368,7 +418,7 @@ export function loopMargins(
     maxComplementarySensitivityFrequency: mtW,
     bandwidth,
     closedLoopStable,
-    openLoopUnstablePoles: Math.max(ws.unstablePoles, 0),
+    openLoopUnstablePoles: Math.max(path.unstablePoles, 0),
     notes,
   };
 }

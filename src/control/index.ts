@@ -1,14 +1,14 @@
 /**
  * control/: controller laws implementing sim's DiscreteController. This list is the public surface.
  */
-export { PidController, checkGains, defaultTrackingTime } from './pid.js';
-export type { PidOptions } from './pid.js';
+export { PidController, checkGains, defaultTrackingTime, pidCoefficients } from './pid.js';
+export type { PidOptions, PidCoefficients } from './pid.js';
 export { buildController, applyStructure } from './build.js';
 export { FORM_TERMS, fromIdeal, seriesRealizable, toIdeal, idealToSeries, convertForm } from './forms.js';
 export type { IdealTerms, ParallelTerms } from './forms.js';
 export { velocityForm, runVelocityForm, DISCRETISATION_METHODS } from './velocity-form.js';
 export type { VelocityForm, DiscretisationMethod } from './velocity-form.js';
-export { SmithPredictor, checkSmithModel, delaySamples } from './smith-predictor.js';
+export { SmithPredictor, checkSmithModel, delaySamples, smithCoefficients } from './smith-predictor.js';
 export type { SmithModel } from './smith-predictor.js';
 export { FeedforwardController, checkFeedforward } from './feedforward.js';
 export type { FeedforwardLaw } from './feedforward.js';

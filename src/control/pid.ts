@@ -110,6 +110,29 @@ export function defaultTrackingTime(g: GainSet): number {
   return g.td > 0 && g.ti !== Infinity ? Math.sqrt(g.ti * g.td) : g.ti / 2;
 }
 
+/** The law's difference-equation coefficients at sample time h (see the file comment). */
+export interface PidCoefficients {
+  /** Integral increment per unit error, kc·h/ti (0 without integral action). */
+  bi: number;
+  /** Derivative filter pole td/(td + n·h), 0 <= ad < 1 (0 without filter or derivative). */
+  ad: number;
+  /** Derivative gain on the difference of c·r − y, kc·n·ad (kc·td/h without filter). */
+  bd: number;
+}
+
+/**
+ * The coefficients the law runs with: the one definition of the discretisation, used by the
+ * controller itself and by anything that must describe the loop as it runs (the sampled-loop
+ * margins in analysis/).
+ */
+export function pidCoefficients(g: GainSet, h: number): PidCoefficients {
+  const bi = g.ti === Infinity ? 0 : (g.kc * h) / g.ti;
+  if (!(g.td > 0)) return { bi, ad: 0, bd: 0 };
+  if (g.n === Infinity) return { bi, ad: 0, bd: (g.kc * g.td) / h };
+  const ad = g.td / (g.td + g.n * h);
+  return { bi, ad, bd: g.kc * g.n * ad };
+}
+
 /** Discrete PID law in ideal form; see the file comment for the discretisation. */
 export class PidController implements DiscreteController {
   readonly sampleTime: number;
@@ -201,22 +224,13 @@ export class PidController implements DiscreteController {
 
   private load(g: GainSet): void {
     const h = this.sampleTime;
+    const q = pidCoefficients(g, h);
     this.kc = g.kc;
     this.b = g.b;
     this.c = g.c;
-    this.bi = g.ti === Infinity ? 0 : (g.kc * h) / g.ti;
-    if (g.td > 0) {
-      if (g.n === Infinity) {
-        this.ad = 0;
-        this.bd = (g.kc * g.td) / h;
-      } else {
-        this.ad = g.td / (g.td + g.n * h);
-        this.bd = g.kc * g.n * this.ad;
-      }
-    } else {
-      this.ad = 0;
-      this.bd = 0;
-    }
+    this.bi = q.bi;
+    this.ad = q.ad;
+    this.bd = q.bd;
     this.aw = awCode(g.antiWindup);
     this.trackLaw = TRACK[this.aw];
     this.ar = g.ti === Infinity ? 0 : h / defaultTrackingTime(g);

@@ -49,6 +49,19 @@ export function delaySamples(delay: number, h: number): number {
   return Math.abs(q - r) <= 1e-9 * Math.max(1, r) ? r : q;
 }
 
+/**
+ * The internal model as the predictor runs it at sample time h (s): ŷ_{k+1} = a ŷ_k + bm u_k and
+ * the dead time as `whole` samples plus a `fraction` read by interpolation — so, seen from u,
+ * M(z) = bm/(z − a) and the delay (1 − fraction) z^(−whole) + fraction z^(−whole−1). One
+ * definition for the law and for the margins of the loop it closes (tune/structure-margins.ts).
+ */
+export function smithCoefficients(m: SmithModel, h: number): { a: number; bm: number; whole: number; fraction: number } {
+  const a = m.timeConstant > 0 ? Math.exp(-h / m.timeConstant) : 0;
+  const d = delaySamples(m.delay, h);
+  const whole = Math.floor(d);
+  return { a, bm: (1 - a) * m.gain, whole, fraction: d - whole };
+}
+
 /** A PID law with a Smith predictor around it. */
 export class SmithPredictor implements DiscreteController {
   readonly pid: PidController;
@@ -71,12 +84,11 @@ export class SmithPredictor implements DiscreteController {
     checkSmithModel(model);
     this.pid = new PidController(gains, options);
     this.model = { ...model };
-    const h = options.sampleTime;
-    this.a = model.timeConstant > 0 ? Math.exp(-h / model.timeConstant) : 0;
-    this.bm = (1 - this.a) * model.gain;
-    const d = delaySamples(model.delay, h);
-    this.dInt = Math.floor(d);
-    this.dFrac = d - this.dInt;
+    const q = smithCoefficients(model, options.sampleTime);
+    this.a = q.a;
+    this.bm = q.bm;
+    this.dInt = q.whole;
+    this.dFrac = q.fraction;
     this.hist = new Float64Array(this.dInt + 2);
   }
 

@@ -292,7 +292,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
     }
   }
   if (spec.model.type === 'ode' && Number.isFinite(range)) flagNonlinear(flags, dyn, uMin, range, eqOptions);
-  flagSampling(flags, h, d.margins, d.fopdt);
+  flagSampling(flags, h, d.margins, d.fopdt, gains);
   flagNoise(flags, gains, h, sensor.noiseStd, range);
   flagSetpoints(flags, spec, dyn, target, eqOptions);
 
@@ -502,19 +502,34 @@ function flagNonlinear(flags: Flag[], dyn: PlantDynamics, uMin: number, range: n
   });
 }
 
-function flagSampling(flags: Flag[], h: number, margins: Margins | null, fopdt: FirstOrderApprox | null): void {
+function flagSampling(flags: Flag[], h: number, margins: Margins | null, fopdt: FirstOrderApprox | null, g: GainSet): void {
   if (!(h > 0)) return;
   const wch = margins !== null && Number.isFinite(margins.crossoverFrequency) ? margins.crossoverFrequency * h : NaN;
   const response = fopdt !== null && Number.isFinite(fopdt.timeConstant) ? fopdt.timeConstant + fopdt.delay : NaN;
   const share = h / response;
+  const filterTime = g.td > 0 ? g.td / g.n : NaN;
   const byCrossover = wch > THRESHOLDS.crossoverSampling;
   const byResponse = share > THRESHOLDS.responseSampling;
-  if (!byCrossover && !byResponse) return;
+  const byDerivative = h > THRESHOLDS.derivativeFilterSampling * filterTime;
+  if (!byCrossover && !byResponse && !byDerivative) return;
+  const why: string[] = [];
+  if (byCrossover) why.push(`\u03c9c\u00b7h = ${fmt(wch, 2)} > ${THRESHOLDS.crossoverSampling}`);
+  if (byResponse) why.push(`only ${fmt(1 / share, 2)} samples per response time`);
+  if (byDerivative) why.push(`the derivative filter time td/N = ${fmt(filterTime, 2)} s is shorter than h`);
   flags.push({
     kind: 'slow_sampling',
     severity: 'warning',
-    evidence: { sample_time_s: h, crossover_times_h: num(wch), response_time_s: num(response), samples_per_response: num(1 / share) },
-    advice: `The controller samples slowly for this loop (${byCrossover ? `\u03c9c\u00b7h = ${fmt(wch, 2)} > ${THRESHOLDS.crossoverSampling}` : `only ${fmt(1 / share, 2)} samples per response time`}): the hold alone adds h/2 = ${fmt(h / 2)} s of delay. Sample faster, or tune for a slower loop.`,
+    evidence: {
+      sample_time_s: h,
+      crossover_times_h: num(wch),
+      response_time_s: num(response),
+      samples_per_response: num(1 / share),
+      derivative_filter_time_s: num(filterTime),
+    },
+    advice:
+      `The controller samples slowly for this loop (${why.join('; ')}): the hold and the discrete law cost margin, and the margins shown are those of the sampled loop, lower than a continuous design promises. ` +
+      (byDerivative ? 'The derivative acts through a filter faster than the sampling can follow; lower N or sample faster. ' : '') +
+      'Sample faster, or tune for a slower loop.',
   });
 }
 

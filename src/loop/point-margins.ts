@@ -40,7 +40,8 @@ export interface PointFigures {
 /** Frequency response of a point's linear model for margins at the loop's sample time. */
 export function pointResponse(linear: LinearModel, spec: PlantSpec): PlantFrequencyResponse {
   const h = spec.loop.sampleTime;
-  return plantFrequencyResponse(linear, { wMax: Math.PI / h, extraDelay: spec.sensor.delay + h / 2 });
+  // The grid the sampled-loop margins start from (analysis' loopMargins samples the loop exactly at h).
+  return plantFrequencyResponse(linear, { wMax: Math.PI / h, extraDelay: spec.sensor.delay });
 }
 
 /** Prepare points for margins (one frequency response each; a linear kind shares one). */

@@ -24,13 +24,13 @@ export {
 export type { StepFunction, OutputFunction, StepperOptions } from './generate-stepper.js';
 export { loopStep, chooseStep, roundStep, fastestMode, numericalJacobian, spectralRadiusEstimate, stabilityWarning, MAX_SUBSTEPS } from './choose-step.js';
 export type { StepChoice } from './choose-step.js';
-export { DelayLine, usableDelay } from './delay-line.js';
+export { DelayLine, usableDelay, delayInSteps } from './delay-line.js';
 export { checkBudget, estimateBudget, DEFAULT_BUDGET, HARD_LIMITS, SECONDS_PER_STATE_STEP } from './budget.js';
 export { plantBudget } from './plant-budget.js';
 export type { BudgetRefusal, PlantBudgetOptions } from './plant-budget.js';
 export type { BudgetCause, BudgetEstimate, BudgetExcess, BudgetLimits, RunSize } from './budget.js';
 export { Actuator } from './actuator.js';
-export { Sensor } from './sensor.js';
+export { Sensor, sensorFilterCoefficients } from './sensor.js';
 export { createTrace, TraceRing } from './trace.js';
 export type { TraceChannel } from './trace.js';
 export { Simulation, createSimulation } from './simulation.js';

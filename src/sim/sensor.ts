@@ -8,6 +8,22 @@ import { Rng } from '../num/index.js';
 import { sensorLaw } from './element-laws.js';
 import { compileElementLaw } from './generate-stepper.js';
 
+/**
+ * The measurement filter's coefficients at sample time Ts: the one definition of how the filter
+ * is discretised, used by `Sensor` and by the sampled-loop analysis. Exact discretisation of
+ * z' = (w − z)/T for an input w that is linear between samples (first-order-hold equivalent;
+ * Åström & Wittenmark, Computer-Controlled Systems, 1997, sec. 7.5, from memory; derived here):
+ * with a = exp(−Ts/T),
+ *   z_k = a z_{k−1} + (1 − a) w_{k−1} + (w_k − w_{k−1}) (1 − (T/Ts)(1 − a)),
+ * i.e. Z(z)/W(z) = (slope + (1 − a − slope) z⁻¹)/(1 − a z⁻¹). No filter (T = 0): pole 0, slope 1.
+ * @param filterTime T, s; @param sampleTime Ts, s
+ */
+export function sensorFilterCoefficients(filterTime: number, sampleTime: number): { pole: number; slope: number } {
+  if (!(filterTime > 0)) return { pole: 0, slope: 1 };
+  const a = Math.exp(-sampleTime / filterTime);
+  return { pole: a, slope: 1 - (filterTime / sampleTime) * (1 - a) };
+}
+
 export class Sensor {
   private readonly a: number;
   private readonly slope: number;
@@ -27,12 +43,9 @@ export class Sensor {
     if (!(spec.noiseStd >= 0)) throw new RangeError('sensor noise must be >= 0');
     if (!(spec.resolution >= 0)) throw new RangeError('sensor resolution must be >= 0');
     this.filtered = spec.filterTime > 0;
-    // Exact discretisation of z' = (w − z)/T for an input w that is linear between samples
-    // (first-order-hold equivalent; Åström & Wittenmark, Computer-Controlled Systems, 1997,
-    // sec. 7.5, from memory; derived here): with a = exp(−Ts/T),
-    //   z_k = a z_{k−1} + (1 − a) w_{k−1} + (w_k − w_{k−1}) (1 − (T/Ts)(1 − a)).
-    this.a = this.filtered ? Math.exp(-sampleTime / spec.filterTime) : 0;
-    this.slope = this.filtered ? 1 - (spec.filterTime / sampleTime) * (1 - this.a) : 1;
+    const f = sensorFilterCoefficients(spec.filterTime, sampleTime);
+    this.a = f.pole;
+    this.slope = f.slope;
     this.noiseStd = spec.noiseStd;
     this.resolution = spec.resolution;
     this.rng = new Rng(spec.seed);

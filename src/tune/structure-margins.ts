@@ -6,18 +6,22 @@
  *   the feedback loop is the PID loop (setpoint weights and feedforward are outside it), so the
  *   analysis/ margins of that gain set are used as they are (with their closed-loop check).
  * - Smith predictor: the PID with the predictor is, seen from y to u, the controller
- *   C' = C/(1 + C M (1 − e^(−jωL_m))), M = k_m/(τ_m jω + 1) the internal model (with its
- *   mis-specification factors); L = C' · P · hold · sensor.
- * - Cascade: with both loops closed at the actuator, L = hold · C_i (G_m + C_o G_y · sensor),
- *   G_m the inner path (true measurement), G_y the controlled output's path.
- * The loop model otherwise follows analysis/freq-response.ts: continuous laws, the sample-hold as
- * e^(−jωh/2) sin(ωh/2)/(ωh/2), the grid up to the Nyquist frequency. For these two structures the
- * margins are read on the grid (crossings by linear interpolation between grid points) and the
- * closed-loop stability is not checked here (null: the trial shows it).
+ *   C' = C/(1 + C M (1 − z^(−D))), M(z) = bm/(z − a) the internal model and z^(−D) its dead time
+ *   as the predictor runs them (control's `smithCoefficients`, with the mis-specification
+ *   factors); L = C' · G.
+ * - Cascade: with both loops closed at the actuator, L = C_i (G_m + C_o G),
+ *   G_m the inner path (true measurement, sampled as the engine reads it), G the controlled
+ *   output's path through the sensor.
+ * All of it is the sampled loop of analysis/ (loop-path.ts: G, exact ZOH plant, delays and the
+ * simulated sensor filter; pid-law-response.ts: C of control/pid.ts's discrete law) at
+ * z = e^(jωh) up to the Nyquist frequency. For these two structures the margins are read on the
+ * grid (crossings by linear interpolation between grid points) and the closed-loop stability is
+ * not checked here (null: the trial shows it).
  */
-import { controllerResponse, effectiveMs, rationalEvaluator } from '../analysis/index.js';
-import type { Margins } from '../analysis/index.js';
-import { applyStructure } from '../control/index.js';
+import { effectiveMs, loopPath, pidLawResponse, sampledEvaluator } from '../analysis/index.js';
+import type { LawResponse, Margins } from '../analysis/index.js';
+import { applyStructure, smithCoefficients } from '../control/index.js';
+import { delayInSteps } from '../sim/index.js';
 import type { ControllerSpec } from '../model/types.js';
 import { gainMargins } from './gain-margins.js';
 import { pathModel } from './path-models.js';
@@ -93,86 +97,76 @@ export function structureMargins(ctx: TuningContext, spec: ControllerSpec): Stru
   if (resp === null) return null;
   const spec0 = ctx.spec;
   const h = spec0.loop.sampleTime;
-  const nyq = Math.PI / h;
-  const w = resp.w;
-  let n = w.length;
-  while (n > 2 && w[n - 1] > nyq) n--;
+  // The loop as the engine runs it: sampled plant path and sensor, the laws' own discretisations.
+  const path = loopPath(resp, h, spec0.sensor);
+  const w = path.w;
+  const n = w.length;
   const lre = new Float64Array(n);
   const lim = new Float64Array(n);
   const cw = new Float64Array(2);
-  const sensorDelay = spec0.sensor.delay;
-  const tf = spec0.sensor.filterTime;
   const notes: string[] = [];
+  const outer = pidLawResponse(g, h);
+  let inner: LawResponse | null = null;
   let gmEval: ((w: number, out: Float64Array) => void) | null = null;
   let gmDelay = 0;
-  let cInner: ControllerSpec['gains'] | null = null;
+  let smith: ReturnType<typeof smithCoefficients> | null = null;
   if (ext.kind === 'cascade') {
     if (ext.inner === null) throw new RangeError('structureMargins: resolve the cascade first');
     const gm = pathModel(ctx.dynamics, startState(ctx), { kind: 'input' }, { kind: 'measurement', name: ext.innerMeasurement });
     if (typeof gm === 'string') return null;
-    gmEval = rationalEvaluator(gm);
-    gmDelay = gm.delay;
-    cInner = ext.inner;
+    // The inner measurement is read as it is at t_k (no sensor): its own sampled path.
+    const q = delayInSteps(gm.delay, h);
+    gmEval = sampledEvaluator(gm, h, q - Math.floor(q), 0);
+    gmDelay = Math.floor(q) * h;
+    inner = pidLawResponse(ext.inner, h);
+  } else {
+    if (ext.gain === null || ext.timeConstant === null || ext.delay === null) throw new RangeError('structureMargins: resolve the Smith predictor first');
+    smith = smithCoefficients(
+      { gain: ext.gain * ext.gainFactor, timeConstant: ext.timeConstant * ext.timeConstantFactor, delay: ext.delay * ext.delayFactor },
+      h,
+    );
   }
   const tmp = new Float64Array(2);
   for (let i = 0; i < n; i++) {
     const wi = w[i];
-    // Hold: e^(−jωh/2) sinc(ωh/2); sensor: e^(−jωLs)/(1 + jω Tf).
-    const x = 0.5 * wi * h;
-    const hold = x > 0 ? Math.sin(x) / x : 1;
-    const holdPh = -x;
-    const sensMag = tf > 0 ? 1 / Math.sqrt(1 + wi * tf * (wi * tf)) : 1;
-    const sensPh = -wi * sensorDelay - (tf > 0 ? Math.atan(wi * tf) : 0);
-    // Plant path to y, with its delay.
-    const pMag = Math.hypot(resp.re[i], resp.im[i]);
-    const pPh = Math.atan2(resp.im[i], resp.re[i]) - wi * resp.delay;
-    if (ext.kind === 'smith_pi') {
-      if (ext.gain === null || ext.timeConstant === null || ext.delay === null) throw new RangeError('structureMargins: resolve the Smith predictor first');
-      controllerResponse(g, wi, cw);
-      const km = ext.gain * ext.gainFactor;
-      const tm = ext.timeConstant * ext.timeConstantFactor;
-      const lm = ext.delay * ext.delayFactor;
-      // M = km/(1 + jω tm); (1 − e^(−jω lm))
-      const md = 1 + wi * tm * (wi * tm);
-      const mr = km / md;
-      const mi = (-km * wi * tm) / md;
-      const er = 1 - Math.cos(wi * lm);
-      const ei = Math.sin(wi * lm);
-      // q = C M (1 − e): complex products
+    const th = wi * h;
+    // Plant path to the measurement, with its whole-sample delay.
+    const pPh = path.phase[i] - wi * path.delay;
+    const gyr = path.mag[i] * Math.cos(pPh);
+    const gyi = path.mag[i] * Math.sin(pPh);
+    outer(wi, cw);
+    if (smith !== null) {
+      // M(z) = bm/(z − a); delay (1 − f) z^−m + f z^−(m+1); C' = C/(1 + C M (1 − delay)).
+      const zr = Math.cos(th);
+      const zi = Math.sin(th);
+      const md = (zr - smith.a) * (zr - smith.a) + zi * zi;
+      const mr = (smith.bm * (zr - smith.a)) / md;
+      const mi = (-smith.bm * zi) / md;
+      const m0 = smith.whole * th;
+      const er = 1 - (1 - smith.fraction) * Math.cos(m0) - smith.fraction * Math.cos(m0 + th);
+      const ei = (1 - smith.fraction) * Math.sin(m0) + smith.fraction * Math.sin(m0 + th);
       const qr1 = mr * er - mi * ei;
       const qi1 = mr * ei + mi * er;
       const qr = cw[0] * qr1 - cw[1] * qi1;
       const qi = cw[0] * qi1 + cw[1] * qr1;
-      // C' = C/(1 + q)
       const dr = 1 + qr;
       const di = qi;
       const dd = dr * dr + di * di;
       const cr = (cw[0] * dr + cw[1] * di) / dd;
       const ci = (cw[1] * dr - cw[0] * di) / dd;
-      const mag = Math.hypot(cr, ci) * pMag * hold * sensMag;
-      const ph = Math.atan2(ci, cr) + pPh + holdPh + sensPh;
-      lre[i] = mag * Math.cos(ph);
-      lim[i] = mag * Math.sin(ph);
+      lre[i] = cr * gyr - ci * gyi;
+      lim[i] = cr * gyi + ci * gyr;
     } else {
-      // Cascade at the actuator: hold · Ci (Gm + Co Gy sensor).
+      // Cascade broken at the actuator: Ci (Gm + Co Gy).
       gmEval!(wi, tmp);
-      const gmr0 = tmp[0];
-      const gmi0 = tmp[1];
       const dph = -wi * gmDelay;
-      const gmr = gmr0 * Math.cos(dph) - gmi0 * Math.sin(dph);
-      const gmi = gmr0 * Math.sin(dph) + gmi0 * Math.cos(dph);
-      controllerResponse(g, wi, cw);
-      const gyMag = pMag * sensMag;
-      const gyPh = pPh + sensPh;
-      const gyr = gyMag * Math.cos(gyPh);
-      const gyi = gyMag * Math.sin(gyPh);
+      const gmr = tmp[0] * Math.cos(dph) - tmp[1] * Math.sin(dph);
+      const gmi = tmp[0] * Math.sin(dph) + tmp[1] * Math.cos(dph);
       const sr = gmr + (cw[0] * gyr - cw[1] * gyi);
       const si = gmi + (cw[0] * gyi + cw[1] * gyr);
-      controllerResponse(cInner!, wi, cw);
-      const lr0 = cw[0] * sr - cw[1] * si;
-      const li0 = cw[0] * si + cw[1] * sr;
-      lre[i] = hold * (lr0 * Math.cos(holdPh) - li0 * Math.sin(holdPh));
-      lim[i] = hold * (lr0 * Math.sin(holdPh) + li0 * Math.cos(holdPh));
+      inner!(wi, cw);
+      lre[i] = cw[0] * sr - cw[1] * si;
+      lim[i] = cw[0] * si + cw[1] * sr;
     }
   }
   const figs = gridMargins(w, lre, lim, n);

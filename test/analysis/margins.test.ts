@@ -90,14 +90,48 @@ describe('gain and phase margins against outside references', () => {
     expectClose(delayed.gainMargin, 2.262, { abs: 5e-4 });
   });
 
-  it('a sample time adds the hold delay h/2: phase crossover of exp(−s)/(s+1) with h = 0.4 equals that of exp(−1.2 s)/(s+1)', () => {
-    const h = 0.4;
-    const a = loopMargins(plantFrequencyResponse(tfModel([1], [1, 1], 1), { wMax: Math.PI / h }), gains(1), h, noSensor);
-    const b = loopMargins(plantFrequencyResponse(tfModel([1], [1, 1], 1 + h / 2)), gains(1), 0, noSensor);
-    expectClose(a.phaseCrossoverFrequency, b.phaseCrossoverFrequency, { rel: 1e-8 });
-    // magnitude carries the hold's sin(x)/x droop, x = ωh/2
-    const x = (a.phaseCrossoverFrequency * h) / 2;
-    expectClose(a.gainMargin, b.gainMargin / (Math.sin(x) / x), { rel: 1e-8 });
+  it('sampled integrator under P control: L = kc h/(z − 1), GM = 2/(kc h) at the Nyquist frequency, stable iff kc h < 2 (math: ZOH of 1/s is h/(z − 1), pole 1 − kc h)', () => {
+    const h = 0.25;
+    const p = plantFrequencyResponse(tfModel([1], [1, 0]), { wMax: Math.PI / h });
+    const m = loopMargins(p, gains(2), h, noSensor);
+    expectClose(m.gainMargin, 2 / (2 * h), { rel: 1e-12 });
+    expectClose(m.phaseCrossoverFrequency, Math.PI / h, { rel: 1e-12 });
+    expect(m.closedLoopStable).toBe(true);
+    expect(loopMargins(p, gains(7.9), h, noSensor).closedLoopStable).toBe(true);
+    expect(loopMargins(p, gains(8.1), h, noSensor).closedLoopStable).toBe(false);
+  });
+
+  it('as h → 0 the sampled margins converge to the continuous ones, the error shrinking with h (property, random PID loops with delay and sensor filter)', () => {
+    fc.assert(
+      fc.property(
+        fc.double({ min: 0.5, max: 5, noNaN: true }),
+        fc.double({ min: 0.1, max: 2, noNaN: true }),
+        fc.double({ min: 0, max: 0.8, noNaN: true }),
+        fc.double({ min: 0, max: 0.5, noNaN: true }),
+        (t1, delay, tdShare, filter) => {
+          const model = tfModel([1], polyProduct([t1, 1], [0.3 * t1, 1]), delay);
+          const g = gains(0.5 * (t1 / delay) ** 0.5, t1, tdShare * 0.3 * t1, 10);
+          const sensor = { delay: 0.1 * delay, filterTime: filter * delay };
+          const cont = loopMargins(plantFrequencyResponse(model), g, 0, sensor);
+          if (cont.closedLoopStable !== true) return;
+          const err = (h: number): number => {
+            const m = loopMargins(plantFrequencyResponse(model, { wMax: Math.PI / h }), g, h, sensor);
+            expect(m.closedLoopStable).toBe(true);
+            return Math.max(
+              Math.abs(m.gainMargin / cont.gainMargin - 1),
+              Math.abs(m.phaseMarginDeg - cont.phaseMarginDeg) / 180,
+              Math.abs(m.maxSensitivity / cont.maxSensitivity - 1),
+            );
+          };
+          const scale = Math.min(delay, t1);
+          const coarse = err(0.05 * scale);
+          const fine = err(0.0005 * scale);
+          expect(fine).toBeLessThan(0.01);
+          expect(fine).toBeLessThan(coarse);
+        },
+      ),
+      { numRuns: 25, seed: 12 },
+    );
   });
 
   it('closed-loop eigenvalue check: 1/(s+1)^3 is stable for kc = 7.9 and unstable for 8.1 (Ku = 8); with a delay too', () => {

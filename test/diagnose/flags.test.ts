@@ -194,6 +194,20 @@ describe('loop flags', () => {
     expectClose(f.evidence.sample_time_s as number, 0.5);
   });
 
+  it('the case from the issue: h = 0.5 s with td/N = 0.08 s — margins of the sampled loop (GM 1.42, Ms 3.44, python-control via sampled-margins.py) and slow_sampling fires', () => {
+    const d = diagnosePlant(
+      transfer([1], [1, 2, 1], 1, { sampleTime: '0.5 s', controller: '{ structure: pid, form: ideal, kc: 1.36, ti: 3 s, td: 0.8 s, derivative_filter: 10 }' }),
+      { simulate: false },
+    );
+    // Reference values: test/fixtures/reference/sampled-margins.json, case "the case from the issue".
+    expectClose(d.margins!.gainMargin, 1.4228757993, { rel: 1e-6 });
+    expectClose(d.margins!.maxSensitivity, 3.4449437233, { rel: 1e-6 });
+    const f = flag(d, 'slow_sampling')!;
+    expect(f).toBeDefined();
+    expectClose(f.evidence.derivative_filter_time_s as number, 0.08);
+    expect(f.advice).toMatch(/td\/N = 0\.080? s is shorter than h/);
+  });
+
   it('noise_sensitive: derivative action with N = 20 on a noisy measurement; silent without the derivative', () => {
     const sensor = '{ noise_std: 0.05, seed: 1 }';
     const noisy = diagnosePlant(transfer([1], [1, 2, 1], 0, { sensor, actuator: '{ min: -10, max: 10 }', controller: '{ structure: pid, form: ideal, kc: 4, ti: 2 s, td: 0.5 s, derivative_filter: 20 }' }));
