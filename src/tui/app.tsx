@@ -7,11 +7,11 @@ import { Box, Text, useApp, useInput, useStdout } from 'ink';
 import TextInput from 'ink-text-input';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { gainNote, loadPlant } from '../model/index.js';
+import { defaultSwitchTime } from '../tune/index.js';
 import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
 import {
-  defaultSwitchTime,
   evaluate,
   fileEdit,
   fileGainSwitches,
