@@ -129,7 +129,8 @@ export function rehearseSwitch(
   at: number = defaultSwitchTime(screenTrial(plant.loop.trial)),
   dynamics: PlantDynamics = compilePlant(plant),
 ): Rehearsal {
-  const start: PlantSpec = { ...plant, loop: { ...plant.loop, controller: { ...plant.loop.controller, gains: from } } };
+  // 'pid' imposes nothing more: `from` is already the running gain set of its structure.
+  const start: PlantSpec = { ...plant, loop: { ...plant.loop, controller: { ...plant.loop.controller, structure: 'pid', gains: from } } };
   const trial = rehearsalTrial(plant.loop.trial, to, at);
   // The file's loop (loop/'s buildLoop: step, settled start) with the old gains as its controller.
   const { loop } = fileLoop(start, dynamics);
