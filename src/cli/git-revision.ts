@@ -4,7 +4,7 @@
  * shallow clone without it, no such file at it, content that is not UTF-8 text — is a UserError
  * (exit 2) with one line saying what to do.
  */
-import { basename, dirname, isAbsolute, relative, resolve } from 'node:path';
+import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { UserError } from './errors.js';
 import type { Io } from './io.js';
 
@@ -38,15 +38,16 @@ function gitReason(err: string): string {
 
 /**
  * Find the repository of `file` (relative to `cwd`). The file itself may be missing from the
- * work tree (deleted, or only at a revision); its folder is where git is asked, or `cwd` when
- * that folder is gone too.
+ * work tree (deleted, or only at a revision); its folder is where git is asked, or the nearest
+ * parent that still exists.
  */
 export function repoFileOf(io: Io, file: string, cwd: string): RepoFile {
   const abs = resolve(cwd, file);
   let dir = dirname(abs);
   let probe = gitText(io, ['rev-parse', '--show-toplevel'], dir);
-  if (!probe.ok && /cannot change to|No such file|not a directory/i.test(probe.err)) {
-    dir = cwd;
+  // A folder that is gone from the work tree (renamed, or only at a revision): ask its nearest parent.
+  while (!probe.ok && /cannot change to/i.test(probe.err) && dirname(dir) !== dir) {
+    dir = dirname(dir);
     probe = gitText(io, ['rev-parse', '--show-toplevel'], dir);
   }
   if (!probe.ok) {
@@ -56,10 +57,11 @@ export function repoFileOf(io: Io, file: string, cwd: string): RepoFile {
     throw new UserError(`diff: git: ${gitReason(probe.err)}`);
   }
   const root = probe.out.trim();
-  // Git prints the real path of the top folder; the file's folder may reach it through a link.
+  // Git prints the real path of the top folder, which the file's folder may reach through a
+  // link: the path inside the repository comes from git's prefix of the folder asked.
   const real = gitText(io, ['rev-parse', '--show-prefix'], dir);
   const prefix = real.ok ? real.out.trim() : '';
-  const fromDir = dir === dirname(abs) ? `${prefix}${basename(abs)}` : relative(root, abs);
+  const fromDir = `${prefix}${relative(dir, abs)}`;
   const path = fromDir.split('\\').join('/');
   if (path.startsWith('../') || isAbsolute(path)) throw new UserError(`diff: ${file} is outside the repository at ${root}`);
   return { root, path };

@@ -3,7 +3,7 @@
  * `process` or `fs` themselves, so tests drive `main()` in-process with a fake.
  */
 import { spawnSync } from 'node:child_process';
-import { lstatSync } from 'node:fs';
+import { existsSync, lstatSync } from 'node:fs';
 import { findEncodingProblem } from '../model/index.js';
 import { readBytesBounded } from './read-bounded.js';
 import { writeFileKeeping, type WriteOptions, type WriteOutcome } from './write-file.js';
@@ -49,6 +49,8 @@ export interface GitResult {
 
 /** Run the `git` command (the real `Io.git`). */
 export function runGit(args: readonly string[], cwd: string): GitResult {
+  // Answer as `git -C` does for a missing folder (spawning there would fail as if git were missing).
+  if (!existsSync(cwd)) return { status: 128, stdout: new Uint8Array(0), stderr: `fatal: cannot change to '${cwd}': No such file or directory\n` };
   // LC_ALL=C: git's messages are matched in English; GIT_PAGER off: never wait on a pager.
   const r = spawnSync('git', [...args], {
     cwd,
