@@ -26,15 +26,15 @@ export function diffSvg(r: DiffReport): string {
   top.push({ label: 'setpoint (after)', t: after.t, v: after.r, length: after.length, color: COLORS.setpoint, dash: '2 2', width: 1.1, step: true });
   bottom.push({ label: 'controller output after', t: after.t, v: after.u, length: after.length, color: COLORS.output, width: 1.5, step: true });
   const panels: PlotPanel[] = [
-    { yLabel: 'process value (model output units)', series: top, weight: 1.5 },
-    { yLabel: 'controller output (actuator units)', series: bottom, weight: 1 },
+    { yLabel: 'process value', series: top, weight: 1.5 },
+    { yLabel: 'controller output', series: bottom, weight: 1 },
   ];
   const markers = [];
   const h = r.rehearsal;
   if (h !== null) {
     const t = h.run.result.trace;
     panels.push({
-      yLabel: 'rehearsal: process value',
+      yLabel: 'rehearsal: output',
       series: [
         { label: 'rehearsal: old gains, then new', t: t.t, v: t.y, length: t.length, color: REHEARSAL, width: 1.6 },
         { label: 'setpoint', t: t.t, v: t.r, length: t.length, color: COLORS.setpoint, dash: '2 2', width: 1.1, step: true },
@@ -42,11 +42,11 @@ export function diffSvg(r: DiffReport): string {
       weight: 1.2,
     });
     panels.push({
-      yLabel: 'rehearsal: controller output',
+      yLabel: 'rehearsal: controller',
       series: [{ label: 'rehearsal controller output', t: t.t, v: t.u, length: t.length, color: REHEARSAL, dash: '4 2', width: 1.3, step: true }],
       weight: 0.8,
     });
-    if (h.run.bump !== null) markers.push({ t: h.run.bump.at, label: 'switch to new gains' });
+    if (h.run.bump !== null) markers.push({ t: h.run.bump.at, label: 'rehearsal: switch to new gains' });
   }
   return svgPlot({
     title: `${plant.name}: before -> after`,

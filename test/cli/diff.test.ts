@@ -187,7 +187,7 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
       expect(r.out).toContain(`HEAD:plants/tank.yaml -> ${f}`);
       const svg = r.io.files.get(join(tmp, 'd.svg'))!;
       expect(svg).toMatch(/^<svg|^<\?xml/);
-      for (const label of ['process value before', 'process value after', 'controller output before', 'controller output after', 'switch to new gains']) {
+      for (const label of ['process value before', 'process value after', 'controller output before', 'controller output after', 'rehearsal: switch to new gains']) {
         expect(svg).toContain(label);
       }
     } finally {

@@ -135,14 +135,18 @@ function loadVersion(io: Io, side: 'old' | 'new', v: RevisionText): PlantSpec | 
   const bad = (why: string): never => {
     throw new UserError(`diff: the ${side} version (${v.label}) is not a valid plant file${why}`);
   };
-  const keys = topLevelKeys(v.text);
-  if (keys !== null && !(keys.includes('model') && keys.includes('loop'))) {
-    io.err(`${v.label}:1:1: not a plant file: a plant file is a YAML mapping with top-level 'model' and 'loop'\n`);
-    bad('');
-  }
   const loaded = loadPlant(v.text, v.label);
-  for (const d of loaded.diagnostics) io.err(`${formatDiagnostic(d, v.text, v.label)}\n`);
   const errors = loaded.diagnostics.filter((d) => d.severity === 'error').length;
+  if (errors > 0 || loaded.plant === undefined) {
+    // Another YAML file (a CI config, say) gets one line instead of a list of missing fields;
+    // parsed only on failure, a YAML parse being a large share of a diff's time.
+    const keys = topLevelKeys(v.text);
+    if (keys !== null && !(keys.includes('model') && keys.includes('loop'))) {
+      io.err(`${v.label}:1:1: not a plant file: a plant file is a YAML mapping with top-level 'model' and 'loop'\n`);
+      bad('');
+    }
+  }
+  for (const d of loaded.diagnostics) io.err(`${formatDiagnostic(d, v.text, v.label)}\n`);
   if (errors > 0 || loaded.plant === undefined) bad(errors > 0 ? ` (${errors} error${errors === 1 ? '' : 's'} above)` : '');
   return loaded.plant!;
 }
