@@ -51,6 +51,13 @@ export function defaultSwitchTime(trial: TrialSpec): number {
   return best.from + (best.to - best.from) / 2;
 }
 
+/** End of the switch window of a switch at `at`: the trial's next event after it, or its end, s. */
+export function switchWindowEnd(trial: TrialSpec, at: number): number {
+  let end = trial.duration;
+  for (const e of trial.events) if (e.kind !== 'gains' && e.at > at && e.at < end) end = e.at;
+  return end;
+}
+
 /** What the switch itself did to the loop, read in the switch window (see the file comment). */
 export interface SwitchBump {
   /** Switch instant as scheduled, s, and the sample it took effect at, s. */
@@ -136,14 +143,12 @@ export function rehearseSwitch(
   const { loop } = fileLoop(start, dynamics);
   const result = runTrial(loop.dynamics, loop.controller(), loop.config, trial);
   const metrics = trialMetrics(result.trace, trial, plant.loop.requirements);
-  let windowEnd = trial.duration;
-  for (const e of trial.events) if (e.kind !== 'gains' && e.at > at && e.at < windowEnd) windowEnd = e.at;
   const diverged = result.status === 'diverged' && (result.divergedAt ?? 0) <= at;
   return {
     trial,
     result,
     metrics,
     requirements: checkRequirements(metrics, plant.loop.requirements),
-    bump: diverged ? null : switchBump(result.trace, plant.loop.sampleTime, at, windowEnd),
+    bump: diverged ? null : switchBump(result.trace, plant.loop.sampleTime, at, switchWindowEnd(trial, at)),
   };
 }
