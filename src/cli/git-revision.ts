@@ -6,7 +6,7 @@
  */
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { UserError } from './errors.js';
-import type { Io } from './io.js';
+import { decodeTextFile, EncodingError, type Io } from './io.js';
 
 /** The repository a plant file lives in, and the file's path inside it. */
 export interface RepoFile {
@@ -22,8 +22,6 @@ export interface RevisionText {
   label: string;
   text: string | null;
 }
-
-const decoder = new TextDecoder('utf-8', { fatal: true });
 
 function gitText(io: Io, args: readonly string[], cwd: string): { ok: boolean; out: string; err: string } {
   const r = io.git(args, cwd);
@@ -109,13 +107,13 @@ export function readAtRevision(io: Io, repo: RepoFile, rev: string, path: string
   }
   const bytes = r.stdout;
   if (bytes.includes(0)) throw new UserError(`diff: ${label}: binary content (a NUL byte), not a plant file`);
-  let text: string;
   try {
-    text = decoder.decode(bytes);
-  } catch {
-    throw new UserError(`diff: ${label}: not UTF-8 text (save the plant file as UTF-8)`);
+    // The same UTF-8 rule as a plant file read from disk (a byte-order mark kept for the loader).
+    return { label, text: decodeTextFile(label, bytes) };
+  } catch (error) {
+    if (error instanceof EncodingError) throw new UserError(`diff: ${error.message}`);
+    throw error;
   }
-  return { label, text: text.startsWith('\uFEFF') ? text.slice(1) : text };
 }
 
 /**

@@ -304,7 +304,7 @@ describe('bad input: one clear line, exit 2', { timeout: 60_000 }, () => {
     const latin = await cli(['diff', join(dir, 'latin.yaml'), '--from', 'HEAD~1', '--to', 'HEAD']);
     expect(latin.code).toBe(2);
     oneLine(latin.err);
-    expect(latin.err).toContain('HEAD:latin.yaml: not UTF-8 text');
+    expect(latin.err).toContain('diff: HEAD:latin.yaml:1:7: invalid UTF-8 (byte 0xE9)');
   });
 
   it('a shallow clone lacking the revision says which fetch depth is needed', async () => {

@@ -20,7 +20,7 @@ import { diffSvg } from '../diff-svg.js';
 import { UserError } from '../errors.js';
 import { topLevelKeys } from '../find-plant-files.js';
 import { readAtRevision, renamedFrom, repoFileOf, verifyRevision, type RevisionText } from '../git-revision.js';
-import type { Io } from '../io.js';
+import { EncodingError, type Io } from '../io.js';
 import { toJson } from '../json.js';
 import { parseCommandArgs } from '../parse-command.js';
 
@@ -92,6 +92,7 @@ function readDisk(io: Io, path: string): RevisionText {
   try {
     return { label: path, text: io.readText(path) };
   } catch (error) {
+    if (error instanceof EncodingError) throw new UserError(`diff: ${error.message}`);
     const code = (error as { code?: string }).code;
     if (code === 'ENOENT') return { label: path, text: null };
     throw new UserError(`diff: cannot read ${path}: ${code === 'EISDIR' ? 'is a folder' : (error as Error).message}`);
