@@ -6,7 +6,7 @@
  */
 import type { PlantSpec } from '../model/types.js';
 import { CHECKED_REQUIREMENTS, checkPlant, type PlantCheck } from './check-plant.js';
-import { headlineMetrics, type HeadlineMetric } from './run-report.js';
+import { runMetrics, type RunMetric } from './run-report.js';
 
 /** One frequency-domain figure of the nominal loop. */
 export interface LoopFigure {
@@ -22,7 +22,7 @@ export interface LoopFigure {
 export interface RevisionEvaluation {
   check: PlantCheck;
   /** The trial's headline metrics, as `run --json` reports them. */
-  metrics: HeadlineMetric[];
+  metrics: RunMetric[];
   /** Gain and phase margins, Ms, bandwidth, dominant damping, as `check` measures them. */
   margins: LoopFigure[];
 }
@@ -36,5 +36,5 @@ export function evaluateRevision(plant: PlantSpec): RevisionEvaluation {
     const f = check.figures.get(c.name);
     margins.push({ name: c.name, value: f?.measured ?? NaN, unit: c.unit, available: f?.available ?? false, note: f?.note ?? '' });
   }
-  return { check, metrics: headlineMetrics(check.nominal.metrics), margins };
+  return { check, metrics: runMetrics(check.nominal.metrics), margins };
 }

@@ -235,9 +235,9 @@ describe('renames, added files, two files', { timeout: 60_000 }, () => {
     const a = join(tmp, 'two-a.yaml');
     const b = join(tmp, 'two-b.yaml');
     writeFileSync(a, plantText());
-    writeFileSync(b, plantText({ ti: '40 s' }));
+    writeFileSync(b, plantText({ ti: '60 s' }));
     const { code, doc } = await diffJson([a, b]);
-    expect(doc.changes).toEqual([{ section: 'controller', path: 'loop.controller.ti', before: '20 s', after: '40 s' }]);
+    expect(doc.changes).toEqual([{ section: 'controller', path: 'loop.controller.ti', before: '20 s', after: '60 s' }]);
     // The slower integral no longer settles within 2 % before the second step.
     const st = doc.requirements.find((r: any) => r.name === 'settling_time');
     expect([st.before.status, st.after.status, st.after.measured, st.change]).toEqual(['pass', 'fail', null, 'newly fails']);
