@@ -320,6 +320,17 @@ describe('bad input: one clear line, exit 2', { timeout: 60_000 }, () => {
     expect(sha.err).toContain("'git fetch --deepen=3'");
   });
 
+  it('a version over the resource budget is refused before any run, at its LABEL:LINE:COL', async () => {
+    const a = join(tmp, 'budget-a.yaml');
+    const b = join(tmp, 'budget-b.yaml');
+    writeFileSync(a, plantText());
+    writeFileSync(b, plantText().replace('duration: 200 s', 'duration: 5e7 s'));
+    const r = await cli(['diff', a, b]);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(new RegExp(`^${b.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}:\\d+:\\d+: loop\\.trial\\.duration: .*over the limit.*--no-limits`, 'm'));
+    expect(r.out).toBe('');
+  });
+
   it('arguments: --from with two files, --json with --markdown, no file', async () => {
     expect((await cli(['diff', 'a.yaml', 'b.yaml', '--from', 'HEAD'])).code).toBe(2);
     expect((await cli(['diff', 'a.yaml', '--json', '--markdown'])).code).toBe(2);

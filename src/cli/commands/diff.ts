@@ -17,6 +17,7 @@ import { StructureUnavailable } from '../../tune/index.js';
 import { diffJson, diffMarkdown, diffText } from '../diff-print.js';
 import { diffReport, diffSide, type DiffSide } from '../diff-report.js';
 import { diffSvg } from '../diff-svg.js';
+import { enforceFileBudget, LIMIT_OPTIONS } from '../budget-check.js';
 import { UserError } from '../errors.js';
 import { topLevelKeys } from '../find-plant-files.js';
 import { readAtRevision, renamedFrom, repoFileOf, verifyRevision, type RevisionText } from '../git-revision.js';
@@ -43,6 +44,7 @@ Options:
   --json                one JSON document on stdout
   --markdown            a compact Markdown report (for a pull-request comment)
   --svg OUT             write both trials, both controller outputs and the rehearsal to OUT
+  --no-limits           run even when a version is over the resource budget
   -h, --help            show this text
 
 Exit status: 0 no requirement newly fails, 1 a requirement newly fails (or could newly not be
@@ -56,6 +58,8 @@ interface DiffArgs {
   json: boolean;
   markdown: boolean;
   svg: string | null;
+  /** --no-limits: the resource budget lifted. */
+  noLimits: boolean;
 }
 
 function parseDiffArgs(args: readonly string[]): DiffArgs | 'help' {
@@ -66,6 +70,7 @@ function parseDiffArgs(args: readonly string[]): DiffArgs | 'help' {
     markdown: { type: 'boolean' },
     svg: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
+    ...LIMIT_OPTIONS,
   });
   if (values.help) return 'help';
   if (positionals.length === 0) throw new UserError('diff: missing FILE (or OLD.yaml NEW.yaml)');
@@ -84,6 +89,7 @@ function parseDiffArgs(args: readonly string[]): DiffArgs | 'help' {
     json: values.json === true,
     markdown: values.markdown === true,
     svg: values.svg ?? null,
+    noLimits: values['no-limits'] === true,
   };
 }
 
@@ -180,6 +186,10 @@ export async function diffCommand(args: readonly string[], io: Io): Promise<numb
   }
   const oldPlant = loadVersion(io, 'old', read.before);
   const newPlant = loadVersion(io, 'new', read.after);
+  // Each version's runs within the resource budget (refused before any run, as run and check do).
+  for (const [plant, v] of [[oldPlant, read.before], [newPlant, read.after]] as const) {
+    if (plant !== null) enforceFileBudget({ plant, text: v.text! }, v.label, io, { noLimits: a.noLimits });
+  }
   const report = diffReport(evaluateSide('old', read.before, oldPlant), evaluateSide('new', read.after, newPlant));
   report.notes.unshift(...read.notes);
   if (a.svg !== null) {
