@@ -11,6 +11,7 @@
 import { effectiveMs } from '../analysis/index.js';
 import {
   askedRequirements,
+  CHECKED_REQUIREMENTS,
   describePoint,
   frequencyFigures as figuresFrom,
   requirementRow,
@@ -33,6 +34,7 @@ import { num } from './format.js';
 import { simulatePlant, type SimulatedTrial } from './simulate-plant.js';
 
 export { CHECKED_REQUIREMENTS, dominantDamping, DOMINANCE_RATIO, type LimitKind } from '../loop/index.js';
+export type { Figure } from '../loop/index.js';
 
 /** One row of the check table. */
 export type CheckRow = RequirementRow;
@@ -44,7 +46,18 @@ export interface PlantCheck {
   pass: boolean;
   /** The nominal simulated trial (for plots). */
   nominal: SimulatedTrial;
+  /**
+   * The nominal case's figures by requirement name: those the file asks for, and with
+   * `allFigures` every frequency-domain one (for reports that show figures without limits).
+   */
+  figures: ReadonlyMap<string, Figure>;
   notes: string[];
+}
+
+/** Options of `checkPlant`. */
+export interface CheckOptions {
+  /** Also measure every frequency-domain figure, asked for or not (default false). */
+  allFigures?: boolean;
 }
 
 /** Where one case's frequency-domain figures come from, with the controller's starting gains. */
@@ -73,10 +86,12 @@ export function frequencySource(ctx: TuningContext, gains: GainSet, withDamping:
 }
 
 /** Check one loaded plant file. */
-export function checkPlant(plant: PlantSpec): PlantCheck {
+export function checkPlant(plant: PlantSpec, options: CheckOptions = {}): PlantCheck {
   const req = plant.loop.requirements;
   const asked = askedRequirements(req);
-  const wantedFreq = new Set(asked.filter((c) => c.domain === 'frequency').map((c) => c.name));
+  const wantedFreq = new Set(
+    (options.allFigures === true ? CHECKED_REQUIREMENTS : asked).filter((c) => c.domain === 'frequency').map((c) => c.name),
+  );
   const notes: string[] = [];
   const dims = Object.keys(plant.uncertainty).length;
   const worst = req.worstCase === true;
@@ -160,6 +175,6 @@ export function checkPlant(plant: PlantSpec): PlantCheck {
       }),
     );
   }
-  return { rows, pass: rows.every((r) => r.status === 'pass'), nominal: nominal!, notes };
+  return { rows, pass: rows.every((r) => r.status === 'pass'), nominal: nominal!, figures: perCase[0].figures, notes };
 }
 

@@ -2,7 +2,8 @@
  * The CLI's only window on the outside world. Commands receive an `Io` and never touch
  * `process` or `fs` themselves, so tests drive `main()` in-process with a fake.
  */
-import { lstatSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { existsSync, lstatSync } from 'node:fs';
 import { findEncodingProblem } from '../model/index.js';
 import { readBytesBounded } from './read-bounded.js';
 import { writeFileKeeping, type WriteOptions, type WriteOutcome } from './write-file.js';
@@ -32,6 +33,36 @@ export interface Io {
   isTTY: boolean;
   /** Environment variables. */
   env: Readonly<Record<string, string | undefined>>;
+  /**
+   * Run `git` with `args` in folder `cwd` and wait for it. `status` is null (and `stderr` says
+   * why) when git could not be started. stdout stays bytes: a file at a revision may not be text.
+   */
+  git(args: readonly string[], cwd: string): GitResult;
+}
+
+/** What one `git` run returned. */
+export interface GitResult {
+  status: number | null;
+  stdout: Uint8Array;
+  stderr: string;
+}
+
+/** Run the `git` command (the real `Io.git`). */
+export function runGit(args: readonly string[], cwd: string): GitResult {
+  // Answer as `git -C` does for a missing folder (spawning there would fail as if git were missing).
+  if (!existsSync(cwd)) return { status: 128, stdout: new Uint8Array(0), stderr: `fatal: cannot change to '${cwd}': No such file or directory\n` };
+  // LC_ALL=C: git's messages are matched in English; GIT_PAGER off: never wait on a pager.
+  const r = spawnSync('git', [...args], {
+    cwd,
+    env: { ...process.env, LC_ALL: 'C', GIT_PAGER: 'cat', GIT_TERMINAL_PROMPT: '0' },
+    maxBuffer: 64 * 1024 * 1024,
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  if (r.error !== undefined) {
+    const code = (r.error as { code?: string }).code;
+    return { status: null, stdout: new Uint8Array(0), stderr: code === 'ENOENT' ? 'the git command is not installed' : r.error.message };
+  }
+  return { status: r.status, stdout: r.stdout, stderr: r.stderr.toString('utf8') };
 }
 
 /** A file that is not UTF-8 text; the message is `FILE:LINE:COL: why`, ready to print. */
@@ -79,5 +110,6 @@ export function nodeIo(): Io {
     },
     isTTY: process.stdout.isTTY === true,
     env: process.env,
+    git: runGit,
   };
 }

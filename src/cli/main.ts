@@ -6,6 +6,7 @@ import { bumpPlanCommand } from './commands/bump-plan.js';
 import { checkCommand } from './commands/check.js';
 import { compareCommand } from './commands/compare.js';
 import { diagnoseCommand } from './commands/diagnose.js';
+import { diffCommand } from './commands/diff.js';
 import { exportCommand } from './commands/export.js';
 import { fitCommand } from './commands/fit.js';
 import { optimizeCommand } from './commands/optimize.js';
@@ -53,6 +54,8 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return await optimizeCommand(rest, io);
       case 'compare':
         return await compareCommand(rest, io);
+      case 'diff':
+        return await diffCommand(rest, io);
       case 'help':
       case '--help':
       case '-h':

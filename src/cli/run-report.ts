@@ -2,7 +2,9 @@
  * Everything `looprig run` computed for one file, before printing: shared by the command
  * (commands/run.ts) and the plot writer (run-svg.ts) without either importing the other.
  */
-import type { RequirementResult, TrialMetrics } from '../analysis/index.js';
+import { headlineMetrics } from '../analysis/index.js';
+import type { HeadlineFigure, RequirementResult, TrialMetrics } from '../analysis/index.js';
+import { finiteOrNull } from './json.js';
 import type { PlantSpec } from '../model/types.js';
 import type { TrialResult } from '../sim/types.js';
 
@@ -14,4 +16,61 @@ export interface RunReport {
   metrics: TrialMetrics;
   requirements: RequirementResult[];
   warnings: string[];
+}
+
+/** One figure of `run --json`'s `metrics`: its name, value (NaN: not reached / not settled / no step), unit. */
+export interface RunMetric {
+  name: string;
+  value: number;
+  unit: string;
+  /** For a step figure, the setpoint step it comes from (the worst), s; else null. */
+  stepAt: number | null;
+}
+
+/**
+ * The trial's figures as `run --json` reports them under `metrics`, in order: the step figures
+ * (analysis' headline: the worst over the setpoint steps; peak_time of the overshoot's step), then
+ * the whole trial's. One list, so every surface that prints them (run, diff) agrees.
+ */
+export function runMetrics(metrics: TrialMetrics): RunMetric[] {
+  const head = headlineMetrics(metrics);
+  const peakStep = head.overshootPct === null ? null : (metrics.steps.find((s) => s.at === head.overshootPct!.stepAt) ?? null);
+  const step = (name: string, f: HeadlineFigure | null, unit: string): RunMetric => ({ name, value: f === null ? NaN : f.value, unit, stepAt: f?.stepAt ?? null });
+  const whole = (name: string, value: number, unit: string): RunMetric => ({ name, value, unit, stepAt: null });
+  const o = metrics.overall;
+  return [
+    step('rise_time', head.riseTime, 's'),
+    step('overshoot_pct', head.overshootPct, '%'),
+    step('undershoot_pct', head.undershootPct, '%'),
+    { name: 'peak_time', value: peakStep === null ? NaN : peakStep.peakTime, unit: 's', stepAt: peakStep?.at ?? null },
+    step('settling_time', head.settlingTime, 's'),
+    step('steady_state_error', head.steadyStateError, ''),
+    whole('iae', o.iae, ''),
+    whole('ise', o.ise, ''),
+    whole('itae', o.itae, ''),
+    whole('u_total_variation', o.uTotalVariation, ''),
+    whole('saturated_time', o.saturatedTime, 's'),
+    whole('max_abs_output', o.maxAbsOutput, ''),
+  ];
+}
+
+/** Step figures whose source step `run --json` names under `metrics.worst_step_at`. */
+const WORST_STEP_NAMES = ['rise_time', 'overshoot_pct', 'undershoot_pct', 'settling_time', 'steady_state_error'];
+
+/**
+ * `run --json`'s `metrics` object: each figure (null: not reached / not settled / no step), and
+ * after the step figures `worst_step_at`, the setpoint step each comes from.
+ */
+export function runMetricsJson(metrics: TrialMetrics): Record<string, unknown> {
+  const list = runMetrics(metrics);
+  const out: Record<string, unknown> = {};
+  for (const m of list) {
+    out[m.name] = finiteOrNull(m.value);
+    if (m.name === 'steady_state_error') {
+      const at: Record<string, number | null> = {};
+      for (const n of WORST_STEP_NAMES) at[n] = list.find((x) => x.name === n)!.stepAt;
+      out.worst_step_at = at;
+    }
+  }
+  return out;
 }

@@ -20,7 +20,8 @@ export interface TrialPlotInput {
   note?: string;
 }
 
-const COLORS = {
+/** The colours of trial plots (shared by every plot of a trial). */
+export const COLORS = {
   setpoint: '#222222',
   pv: '#1f5fbf',
   measured: '#9fc0ea',

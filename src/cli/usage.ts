@@ -11,6 +11,10 @@ Usage:
   looprig suggest FILE           every published tuning rule, each simulated on the full plant
   looprig optimize FILE          gains that minimise IAE (or ITAE) subject to Ms <= 1.6; --write saves
   looprig compare FILE           controller structures side by side, each tuned to the same Ms
+  looprig diff FILE [--from REV] [--to REV]
+                                 what a change to a plant file does to its loop between two git
+                                 revisions (or: looprig diff OLD.yaml NEW.yaml); --markdown for a
+                                 pull-request comment (exit 1 when a requirement newly fails)
   looprig fit LOG.csv            fit a model to a logged bump test; --out writes a plant file;
                                  --setpoint COL for a log of the loop in automatic; --plant FILE
                                  validates a plant file (--params A,B estimates its params)
@@ -37,7 +41,7 @@ Options for run:
   -h, --help          show this text
 
 Exit status: 0 the command completed (a diverging loop is a result, reported as such),
-1 a requirement failed (check), 2 bad arguments or a plant file with errors (printed as
+1 a requirement failed (check) or newly fails (diff), 2 bad arguments or a plant file with errors (printed as
 FILE:LINE:COL: message).
 
 Simulated gains are a starting point: verify them on the equipment with interlocks in place and a

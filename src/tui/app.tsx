@@ -7,11 +7,11 @@ import { Box, Text, useApp, useInput, useStdout } from 'ink';
 import TextInput from 'ink-text-input';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { gainNote, loadPlant } from '../model/index.js';
+import { defaultSwitchTime, switchBump, switchWindowEnd } from '../tune/index.js';
 import type { PidForm, Requirements } from '../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
 import {
-  defaultSwitchTime,
   evaluate,
   fileEdit,
   fileGainSwitches,
@@ -323,6 +323,17 @@ export function App(props: AppProps) {
   if (now.result.status === 'diverged') notices.unshift({ tone: 'bad', text: `the trial diverged at ${fmt(now.result.divergedAt)} s` });
   if (run?.diverged) notices.unshift({ tone: 'bad', text: `the live run diverged at ${fmt(run.divergedAt)} s (z restarts)` });
   for (const w of now.result.warnings) notices.push({ tone: 'warn', text: w });
+  if (rehearsing && run === null) {
+    // The bump the switch itself causes, read as `looprig diff` reads it (tune's switchBump).
+    const bump = switchBump(now.result.trace, setup.config.sampleTime, state.switchAt, switchWindowEnd(trial, state.switchAt));
+    if (bump !== null) {
+      notices.unshift({
+        tone: 'info',
+        title: 'switch',
+        text: `at ${fmt(bump.sampleAt)} s: controller jumps ${fmt(bump.uJump)}, output moves at most ${fmt(bump.yPeak)} until ${fmt(bump.windowEnd)} s`,
+      });
+    }
+  }
 
   const body = (() => {
     const o = state.overlay;

@@ -14,7 +14,14 @@ import { MATH_HELPERS, fromIdeal } from '../model/index.js';
 import type { ControllerSpec, ControllerStructure, GainSet, PidForm, PlantSpec, StructureName, TrialSpec } from '../model/types.js';
 import { runTrial } from '../sim/index.js';
 import type { DiscreteController, LoopConfig, PlantDynamics, TrialResult } from '../sim/types.js';
-import { fileLoop, structureMargins, tuningContext, type TuningContext } from '../tune/index.js';
+import {
+  fileLoop,
+  rehearsalTrial as coreRehearsalTrial,
+  screenTrial,
+  structureMargins,
+  tuningContext,
+  type TuningContext,
+} from '../tune/index.js';
 import type { MarginsView } from './notices.js';
 import { formParams, type ControllerFrame, type GainEdit } from './state.js';
 
@@ -164,21 +171,9 @@ export function runningGains(edit: GainEdit): GainSet {
   return applyStructure(edit.structure, edit.gains);
 }
 
-/** The file's trial with a switch to `next` gains at `at` (rehearsing a retune). */
+/** The file's trial with a switch to `next` gains at `at` (rehearsing a retune; tune's rehearsal trial). */
 export function rehearsalTrial(trial: TrialSpec, next: GainEdit, at: number): TrialSpec {
-  const events = [...screenTrial(trial).events, { kind: 'gains' as const, at, gains: runningGains(next), label: 'new' }];
-  // Stable sort: the switch goes after any event scheduled for the same instant.
-  events.sort((a, b) => a.at - b.at);
-  return { ...trial, events };
-}
-
-/**
- * The file's trial as the screen runs it: without the file's own 'gains' events, so that the
- * gain set being edited runs throughout (a rehearsal adds its own switch, see `rehearsalTrial`).
- */
-export function screenTrial(trial: TrialSpec): TrialSpec {
-  if (!trial.events.some((e) => e.kind === 'gains')) return trial;
-  return { ...trial, events: trial.events.filter((e) => e.kind !== 'gains') };
+  return coreRehearsalTrial(trial, runningGains(next), at);
 }
 
 /** Labels and instants of the file's own gain switches (the screen tells the user it skips them). */
@@ -196,20 +191,4 @@ export function evaluate(setup: LoopSetup, edit: GainEdit, trial: TrialSpec = sc
   const metrics = trialMetrics(result.trace, trial, req);
   const checks = checkRequirements(metrics, req);
   return { result, metrics, checks, elapsedMs: performance.now() - t0 };
-}
-
-/**
- * A switch instant in steady state: halfway through the longest quiet stretch of the trial (the
- * longest gap between events, or between the last event and the end).
- */
-export function defaultSwitchTime(trial: TrialSpec): number {
-  const times = [...new Set([0, ...trial.events.map((e) => e.at), trial.duration])].filter((t) => t >= 0 && t <= trial.duration);
-  times.sort((a, b) => a - b);
-  if (times.length < 2) return trial.duration / 2;
-  let best = { from: times[0], to: times[1] };
-  for (let i = 2; i < times.length; i++) {
-    // Ties go to the later stretch: the loop has had longer to settle there.
-    if (times[i] - times[i - 1] >= best.to - best.from) best = { from: times[i - 1], to: times[i] };
-  }
-  return best.from + (best.to - best.from) / 2;
 }

@@ -46,6 +46,8 @@ export { specWithValues, modelWithValues } from './uncertain-spec.js';
 export { resolveController, fileController, fileLoop, StructureUnavailable, startState, trialSetpoints } from './structure-tuning.js';
 export type { FileLoop } from './structure-tuning.js';
 export type { ResolvedController, ResolveOptions } from './structure-tuning.js';
+export { screenTrial, rehearsalTrial, defaultSwitchTime, switchBump, switchWindowEnd, rehearseSwitch } from './rehearsal.js';
+export type { SwitchBump, Rehearsal } from './rehearsal.js';
 export { structureMargins, gridMargins } from './structure-margins.js';
 export type { StructureMargins } from './structure-margins.js';
 export { pathModel, staticGain } from './path-models.js';

@@ -1,54 +1,21 @@
 /**
- * Spawn tests of the compiled bin. The bin and everything it imports are compiled with tsc into
- * a folder laid out like the installed package (package.json, dist/, plants/, node_modules/), so
- * the test checks the real build output - shebang, ESM resolution with .js extensions, the
- * plants folder found from import.meta.url - without touching the repository's own dist/ (other
- * work may be building it at the same time). Only the bin's import closure is compiled, so
- * unrelated folders that are mid-work cannot break it. The folder is a cache under
- * node_modules/.cache and the build is incremental (measured on a loaded 2-core machine: 18 s
- * for the first build, 10 s for a rebuild with nothing changed; ~6 s of CPU unloaded).
+ * Spawn tests of the compiled bin, built by test/helpers/build-bin.ts into a folder laid out like
+ * the installed package: the test checks the real build output - shebang, ESM resolution with .js
+ * extensions, the plants folder found from import.meta.url.
  */
 import { describe, it, expect, beforeAll } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { copyFileSync, existsSync, mkdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
-import { dirname, join, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { main } from '../../src/cli/index.js';
+import { buildBin, REPO_ROOT as root } from '../helpers/build-bin.js';
 import { fakeIo } from './fake-io.js';
 
-const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 let pkg = '';
 let bin = '';
 
 beforeAll(() => {
-  pkg = join(root, 'node_modules', '.cache', 'looprig-bin-test');
-  mkdirSync(pkg, { recursive: true });
-  copyFileSync(join(root, 'package.json'), join(pkg, 'package.json'));
-  for (const name of ['node_modules', 'plants']) {
-    rmSync(join(pkg, name), { force: true, recursive: false });
-    symlinkSync(join(root, name), join(pkg, name), 'dir');
-  }
-  const tsconfig = {
-    extends: join(root, 'tsconfig.json'),
-    compilerOptions: {
-      noEmit: false,
-      declaration: false,
-      incremental: true,
-      tsBuildInfoFile: join(pkg, 'tsconfig.tsbuildinfo'),
-      typeRoots: [join(root, 'node_modules', '@types')],
-      rootDir: join(root, 'src'),
-      outDir: join(pkg, 'dist'),
-    },
-    include: [],
-    // The sweep worker is started by URL, not imported, so it is named here.
-    files: [join(root, 'src', 'cli', 'bin.ts'), join(root, 'src', 'cli', 'sweep-worker.ts')],
-  };
-  writeFileSync(join(pkg, 'tsconfig.json'), JSON.stringify(tsconfig));
-  const tsc = spawnSync(process.execPath, [join(root, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', join(pkg, 'tsconfig.json')], {
-    encoding: 'utf8',
-  });
-  bin = join(pkg, 'dist', 'cli', 'bin.js');
-  if (tsc.status !== 0 || !existsSync(bin)) throw new Error(`tsc failed (${tsc.status}):\n${tsc.stdout}${tsc.stderr}`);
+  ({ pkg, bin } = buildBin('looprig-bin-test'));
 }, 120_000);
 
 /**

@@ -4,6 +4,7 @@
  */
 import { lstatSync, readFileSync } from 'node:fs';
 import type { Io } from '../../src/cli/index.js';
+import { runGit } from '../../src/cli/io.js';
 
 export interface FakeIo extends Io {
   stdout: string;
@@ -41,6 +42,8 @@ export function fakeIo(files: Record<string, string> = {}): FakeIo {
     },
     isTTY: false,
     env: {},
+    // The real git: tests build their repositories in temporary folders.
+    git: runGit,
   };
   return io;
 }

@@ -28,6 +28,9 @@ function fakeIo(files: Record<string, string> = {}): Io & { stdout: string; stde
     exists: (p: string) => p in files,
     isTTY: false,
     env: {},
+    git() {
+      throw new Error('diagnose runs no git');
+    },
   };
   return io;
 }

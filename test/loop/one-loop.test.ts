@@ -9,9 +9,9 @@ import { runPlant } from '../../src/cli/commands/run.js';
 import { simulatePlant } from '../../src/cli/simulate-plant.js';
 import { diagnosePlant } from '../../src/diagnose/index.js';
 import { runTrial, type Trace } from '../../src/sim/index.js';
-import { evaluate, fileEdit, screenTrial, setupLoop } from '../../src/tui/engine.js';
+import { evaluate, fileEdit, setupLoop } from '../../src/tui/engine.js';
 import { LiveRun } from '../../src/tui/live-run.js';
-import { fileLoop, tuningContext } from '../../src/tune/index.js';
+import { fileLoop, screenTrial, tuningContext } from '../../src/tune/index.js';
 import { bundledPlants, load } from '../bench/bundled-plants.js';
 import { fakeIo } from '../cli/fake-io.js';
 

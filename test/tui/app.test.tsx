@@ -93,6 +93,12 @@ describe('tui app: editing', () => {
     expect(s.frame()).toContain('rehearse @ 450 s');
     expect(s.frame()).toContain('Rehearsal trend');
   });
+
+  it('a rehearsal lists the bump of its switch among the notices (tune\'s switchBump, as diff reads it)', async () => {
+    const s = await mount('surge-tank.yaml', { columns: 140, rows: 40 });
+    await s.press(']', 'g');
+    expect(s.frame()).toMatch(/at 450 s: controller jumps/);
+  });
 });
 
 describe('tui app: save and quit', () => {

@@ -9,14 +9,12 @@ import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
 import { buildController } from '../../src/control/index.js';
 import { runTrial } from '../../src/sim/index.js';
-import { resolveController, structureMargins, StructureUnavailable, tuningContext } from '../../src/tune/index.js';
+import { defaultSwitchTime, resolveController, screenTrial, structureMargins, StructureUnavailable, tuningContext } from '../../src/tune/index.js';
 import {
-  defaultSwitchTime,
   editFromSpec,
   evaluate,
   fileEdit,
   rehearsalTrial,
-  screenTrial,
   setupLoop,
   structureMarginsView,
 } from '../../src/tui/engine.js';

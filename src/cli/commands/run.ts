@@ -4,7 +4,7 @@
  */
 import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
-import type { HeadlineFigure, RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
+import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { compilePlant, MIN_STEP } from '../../model/index.js';
 import type { PlantSpec, Requirements } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
@@ -14,7 +14,7 @@ import type { Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
 import { loadPlantFile, parseOverrides } from '../load-plant-file.js';
 import type { Override } from '../load-plant-file.js';
-import type { RunReport } from '../run-report.js';
+import { runMetricsJson, type RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
 import { enforceBudget, LIMIT_OPTIONS } from '../budget-check.js';
 import { simulatePlant } from '../simulate-plant.js';
@@ -147,9 +147,6 @@ export function traceCsv(trace: Trace): string {
 /** The `--json` document (see the CLI contract in the design notes). */
 export function reportJson(report: RunReport): unknown {
   const { plant, result, metrics } = report;
-  const head = headlineMetrics(metrics);
-  const value = (f: HeadlineFigure | null): number | null => (f === null ? null : finiteOrNull(f.value));
-  const peakStep = head.overshootPct === null ? null : metrics.steps.find((s) => s.at === head.overshootPct!.stepAt) ?? null;
   const events: { at: number; [key: string]: unknown }[] = [
     ...metrics.steps.map((s) => ({
       kind: 'setpoint',
@@ -195,7 +192,6 @@ export function reportJson(report: RunReport): unknown {
       itae: finiteOrNull(d.itae),
     })),
   ].sort((a, b) => a.at - b.at);
-  const o = metrics.overall;
   return {
     plant: { name: plant.name, file: report.file, model_type: plant.model.type },
     controller: {
@@ -211,27 +207,7 @@ export function reportJson(report: RunReport): unknown {
     diverged_at: result.divergedAt,
     // Step figures: the worst over the setpoint steps (null without a step, or not reached /
     // not settled there); `worst_step_at` gives the step each comes from.
-    metrics: {
-      rise_time: value(head.riseTime),
-      overshoot_pct: value(head.overshootPct),
-      undershoot_pct: value(head.undershootPct),
-      peak_time: peakStep === null ? null : finiteOrNull(peakStep.peakTime),
-      settling_time: value(head.settlingTime),
-      steady_state_error: value(head.steadyStateError),
-      worst_step_at: {
-        rise_time: head.riseTime?.stepAt ?? null,
-        overshoot_pct: head.overshootPct?.stepAt ?? null,
-        undershoot_pct: head.undershootPct?.stepAt ?? null,
-        settling_time: head.settlingTime?.stepAt ?? null,
-        steady_state_error: head.steadyStateError?.stepAt ?? null,
-      },
-      iae: finiteOrNull(o.iae),
-      ise: finiteOrNull(o.ise),
-      itae: finiteOrNull(o.itae),
-      u_total_variation: finiteOrNull(o.uTotalVariation),
-      saturated_time: finiteOrNull(o.saturatedTime),
-      max_abs_output: finiteOrNull(o.maxAbsOutput),
-    },
+    metrics: runMetricsJson(metrics),
     events,
     requirements: report.requirements.map((r) => ({
       name: r.name,

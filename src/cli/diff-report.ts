@@ -1,0 +1,159 @@
+/**
+ * What a change to a plant file does to its loop: the file's changed fields, every figure of the
+ * loop before and after with its signed change, the requirement verdicts with those that newly
+ * fail or newly pass, and the switch rehearsal from the old gains to the new. Figures come from
+ * diff-evaluation.ts only (the code path of `run` and `check`); this file compares and labels.
+ */
+import { applyStructure } from '../control/index.js';
+import type { GainSet, PlantSpec } from '../model/types.js';
+import { rehearseSwitch, type Rehearsal } from '../tune/index.js';
+import type { CheckRow } from './check-plant.js';
+import { evaluateRevision, type RevisionEvaluation } from './diff-evaluation.js';
+import { plantChanges, type FieldChange } from './plant-changes.js';
+
+/** One side of the comparison. `plant` null: the file does not exist there (added file). */
+export interface DiffSide {
+  /** `REV:PATH`, or the path of the file read from disk. */
+  label: string;
+  text: string | null;
+  plant: PlantSpec | null;
+  evaluation: RevisionEvaluation | null;
+}
+
+/** One figure before and after. NaN: not reached, not available, or no such side. */
+export interface FigureDelta {
+  name: string;
+  unit: string;
+  before: number;
+  after: number;
+  /** after − before (NaN when either is not a finite number). */
+  change: number;
+  note: string;
+}
+
+/** How a requirement's verdict moved. A failing verdict is 'fail' or 'not available' (as in check). */
+export type VerdictChange = 'newly fails' | 'newly passes' | 'still fails' | 'still passes' | 'new, passes' | 'removed';
+
+/** One requirement row (nominal or worst case) before and after. */
+export interface VerdictDelta {
+  requirement: string;
+  scope: CheckRow['scope'];
+  kind: CheckRow['kind'];
+  unit: string;
+  before: CheckRow | null;
+  after: CheckRow | null;
+  change: VerdictChange;
+}
+
+/** The switch rehearsal on the new file's plant and trial, from the old running gains to the new. */
+export interface DiffRehearsal {
+  from: GainSet;
+  to: GainSet;
+  run: Rehearsal;
+}
+
+export interface DiffReport {
+  before: DiffSide;
+  after: DiffSide;
+  changes: FieldChange[];
+  metrics: FigureDelta[];
+  margins: FigureDelta[];
+  verdicts: VerdictDelta[];
+  rehearsal: DiffRehearsal | null;
+  /** Why there is no rehearsal, or what it assumed. */
+  rehearsalNote: string;
+  notes: string[];
+  /** Requirement rows that newly fail (the exit status is 1 when there is any). */
+  newlyFailing: number;
+}
+
+const failing = (r: CheckRow): boolean => r.status !== 'pass';
+
+function verdictChange(before: CheckRow | null, after: CheckRow | null): VerdictChange {
+  if (after === null) return 'removed';
+  // A requirement the change adds (or a file it adds) that fails is a new failure of the change.
+  if (before === null) return failing(after) ? 'newly fails' : 'new, passes';
+  if (failing(after)) return failing(before) ? 'still fails' : 'newly fails';
+  return failing(before) ? 'newly passes' : 'still passes';
+}
+
+function delta(name: string, unit: string, before: number, after: number, note: string): FigureDelta {
+  const change = Number.isFinite(before) && Number.isFinite(after) ? after - before : NaN;
+  return { name, unit, before, after, change, note };
+}
+
+function sameGains(a: GainSet, b: GainSet): boolean {
+  return (Object.keys(a) as (keyof GainSet)[]).every((k) => Object.is(a[k], b[k]));
+}
+
+/** The structure a controller runs, for telling whether a rehearsal can switch between two. */
+function structureOf(p: PlantSpec): string {
+  const c = p.loop.controller;
+  return c.named ?? (c.extension !== undefined ? c.extension.kind : 'plain');
+}
+
+/** Evaluate one side (null when the file is absent there). */
+export function diffSide(label: string, text: string | null, plant: PlantSpec | null): DiffSide {
+  return { label, text, plant, evaluation: plant === null ? null : evaluateRevision(plant) };
+}
+
+/** Compare two evaluated sides. `after` must exist. */
+export function diffReport(before: DiffSide, after: DiffSide): DiffReport {
+  const a = before.evaluation;
+  const b = after.evaluation!;
+  const notes: string[] = [];
+  const metrics = b.metrics.map((m, i) => delta(m.name, m.unit, a?.metrics[i].value ?? NaN, m.value, ''));
+  const margins = b.margins.map((m, i) => {
+    const o = a?.margins[i];
+    const note = [o !== undefined && !o.available ? `before: ${o.note}` : '', !m.available ? `after: ${m.note}` : ''].filter((s) => s).join('; ');
+    return delta(m.name, m.unit, o?.available ? o.value : NaN, m.available ? m.value : NaN, note);
+  });
+
+  const key = (r: CheckRow): string => `${r.requirement}/${r.scope}`;
+  const beforeRows = new Map((a?.check.rows ?? []).map((r) => [key(r), r]));
+  const afterRows = new Map(b.check.rows.map((r) => [key(r), r]));
+  const verdicts: VerdictDelta[] = [];
+  for (const r of b.check.rows) {
+    const o = beforeRows.get(key(r)) ?? null;
+    verdicts.push({ requirement: r.requirement, scope: r.scope, kind: r.kind, unit: r.unit, before: o, after: r, change: verdictChange(o, r) });
+  }
+  for (const o of a?.check.rows ?? []) {
+    if (!afterRows.has(key(o))) verdicts.push({ requirement: o.requirement, scope: o.scope, kind: o.kind, unit: o.unit, before: o, after: null, change: 'removed' });
+  }
+
+  if (before.plant !== null && after.plant !== null) {
+    const t0 = JSON.stringify(before.plant.loop.trial);
+    if (t0 !== JSON.stringify(after.plant.loop.trial)) notes.push('the trial changed: each side runs its own revision\'s trial');
+  }
+  for (const n of a?.check.notes ?? []) notes.push(`before: ${n}`);
+  for (const n of b.check.notes) notes.push(`after: ${n}`);
+
+  let rehearsal: DiffRehearsal | null = null;
+  let rehearsalNote = '';
+  if (before.plant === null) rehearsalNote = 'no switch rehearsal: the file is new (no old gains)';
+  else if (structureOf(before.plant) !== structureOf(after.plant!)) {
+    rehearsalNote = `no switch rehearsal: the structure changes (${structureOf(before.plant)} -> ${structureOf(after.plant!)}); a rehearsal switches gains inside one structure`;
+  } else {
+    const cb = before.plant.loop.controller;
+    const ca = after.plant!.loop.controller;
+    const from = applyStructure(cb.structure, cb.gains);
+    const to = applyStructure(ca.structure, ca.gains);
+    if (sameGains(from, to)) rehearsalNote = 'no switch rehearsal: the controller gains did not change';
+    else {
+      rehearsal = { from, to, run: rehearseSwitch(after.plant!, from, to) };
+      rehearsalNote = 'on the new file\'s plant and trial: the old gains run until the switch, then the new gains';
+    }
+  }
+  return {
+    before,
+    after,
+    changes: plantChanges(before.text, after.text),
+    metrics,
+    margins,
+    verdicts,
+    rehearsal,
+    rehearsalNote,
+    notes,
+    newlyFailing: verdicts.filter((v) => v.change === 'newly fails').length,
+  };
+}
