@@ -205,10 +205,12 @@ export function App(props: AppProps) {
       last = t;
       if (run.diverged) return;
       const done = run.advance(speed * wall, LIVE_BUDGET_MS);
-      // Smoothed achieved speed, shown when the machine cannot keep up.
-      const inst = wall > 0 ? done / wall : NaN;
+      // Smoothed achieved speed, shown when the machine cannot keep up. A tick that kept up ran
+      // at the asked speed (it may have run no sample at all: the fraction waits for the next).
+      const inst = !run.behind ? speed : wall > 0 ? done / wall : NaN;
       achieved.current = Number.isNaN(achieved.current) ? inst : 0.8 * achieved.current + 0.2 * inst;
-      setFrame((f) => f + 1);
+      // No sample ran, nothing on the screen changed: no frame.
+      if (done > 0) setFrame((f) => f + 1);
     }, period);
     return () => clearInterval(timer);
   }, [state.mode, state.paused, speed]);

@@ -7,7 +7,7 @@
 import { DEFAULT_SETTLING_BAND } from '../analysis/index.js';
 import { MATH_HELPERS } from '../model/index.js';
 import type { TrialEvent } from '../model/types.js';
-import { createSimulation, createTrace, eventSchedule, sampleIndexAt, type ScheduledEvent, type Simulation } from '../sim/index.js';
+import { createSimulation, createTrace, eventSchedule, SAMPLE_EPS, type ScheduledEvent, type Simulation } from '../sim/index.js';
 import type { Trace } from '../sim/types.js';
 import { controllerFor, runningGains, type LoopSetup } from './engine.js';
 import { frameId, type GainEdit } from './state.js';
@@ -65,6 +65,15 @@ export class LiveRun {
   private setpointNow = 0;
   private readonly disturbance: Float64Array;
   private gains: GainEdit;
+  /**
+   * Simulated seconds asked for since the start, s. The timer asks for speed × wall time, often a
+   * fraction of a sample (×1 at a 50 ms tick on a 1 s sample is 1/20 of a sample): the fraction is
+   * kept here and runs once whole, so every speed is kept exactly instead of rounding each tick up
+   * to a sample.
+   */
+  private clock = 0;
+  /** True when the last `advance` ran out of its wall-time budget before reaching the clock. */
+  private cut = false;
 
   /**
    * @param window seconds of history kept and shown (the trend scrolls over it)
@@ -94,6 +103,8 @@ export class LiveRun {
     });
     this.events = eventSchedule(trial, s.config.sampleTime, trial.events.filter((e) => e.kind !== 'gains')).events;
     this.next = 0;
+    this.clock = 0;
+    this.cut = false;
     this.setpointNow = this.sim.setpoint;
     this.steps = [];
     this.disturbance.set(s.dynamics.d0);
@@ -116,25 +127,41 @@ export class LiveRun {
   }
 
   /**
-   * Advance by `seconds` of simulated time, or less if `budgetMs` of wall time runs out first
-   * (so key presses are never starved). @returns the simulated seconds actually advanced.
+   * Advance the asked-for clock by `seconds` of simulated time and run every sample that ends by
+   * it, or fewer if `budgetMs` of wall time runs out first (so key presses are never starved). A
+   * fraction of a sample carries over to the next call. When the budget runs out the debt is
+   * dropped (the clock restarts from where the run got to): a machine that cannot keep up runs as
+   * fast as it can, it does not race to catch up later. @returns the simulated seconds advanced.
    */
   advance(seconds: number, budgetMs: number): number {
     const start = performance.now();
     const sim = this.sim;
     const t0 = sim.time;
-    const target = sampleIndexAt(t0 + seconds, this.setup.config.sampleTime);
+    const ts = this.setup.config.sampleTime;
+    this.clock = Math.max(this.clock, t0) + seconds;
+    // Samples that end by the clock: sample k spans [k·ts, (k+1)·ts].
+    const target = Math.max(0, Math.floor(this.clock / ts + SAMPLE_EPS));
     const events = this.events;
     // Events due at the current sample (those at t = 0 on the first call) act before it runs.
     this.applyDue();
+    this.cut = false;
     while (sim.sampleIndex < target && sim.status === 'ok') {
       let to = Math.min(target, sim.sampleIndex + CHUNK_SAMPLES);
       if (this.next < events.length && events[this.next].k < to) to = events[this.next].k;
       sim.advanceTo(to);
       this.applyDue();
-      if (performance.now() - start > budgetMs) break;
+      if (sim.sampleIndex < target && performance.now() - start > budgetMs) {
+        this.cut = true;
+        this.clock = sim.time;
+        break;
+      }
     }
     return sim.time - t0;
+  }
+
+  /** True when the last `advance` stopped on its wall-time budget (the run is behind the asked speed). */
+  get behind(): boolean {
+    return this.cut;
   }
 
   /** Apply the scheduled events whose sample has come. */

@@ -110,6 +110,32 @@ describe('tui live run', () => {
     expect(run.advance(1, 1000)).toBeGreaterThanOrEqual(1 - 1e-9);
   });
 
+  it('keeps the asked speed at every setting: simulated seconds per 50 ms tick at ×1, ×2, ×5, ×20, ×1000', () => {
+    // The screen's timer asks for speed × 0.05 s per tick; on the surge tank (1 s sample) ×1 is
+    // 1/20 of a sample a tick. Rounding each tick up to a whole sample ran ×1, ×2 and ×5 at ×20.
+    // Counting simulated seconds, not timing: the budget is unlimited, so only the clock decides.
+    const tick = 0.05;
+    const ts = surge.config.sampleTime;
+    for (const speed of [1, 2, 5, 20, 1000]) {
+      const run = new LiveRun(surge, file, 600);
+      const ticks = 2000;
+      let simulated = 0;
+      let most = 0;
+      for (let i = 0; i < ticks; i++) {
+        const done = run.advance(speed * tick, Infinity);
+        simulated += done;
+        most = Math.max(most, done);
+      }
+      const asked = speed * tick * ticks;
+      expect(Math.abs(simulated / asked - 1), `×${speed}`).toBeLessThan(0.05);
+      // Never more than one sample behind the asked clock, never ahead of it.
+      expect(simulated).toBeLessThanOrEqual(asked + 1e-9);
+      expect(asked - simulated).toBeLessThan(ts + 1e-9);
+      // No tick runs more than the samples its share of the clock completes.
+      expect(most).toBeLessThanOrEqual(Math.ceil(speed * tick / ts) * ts + 1e-9);
+    }
+  });
+
   it('injected steps use the file sizes and show in the trace and the band', () => {
     const sizes = stepSizes(surge);
     // surge-tank fixture: setpoint 1.0 -> 1.4 at 60 s; disturbance extra_inflow 0 -> 0.15 at 300 s.
