@@ -4,7 +4,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync, lstatSync } from 'node:fs';
-import { findEncodingProblem } from '../model/index.js';
+import { findEncodingProblem } from '../num/index.js';
 import { readBytesBounded } from './read-bounded.js';
 import { writeFileKeeping, type WriteOptions, type WriteOutcome } from './write-file.js';
 

@@ -3,11 +3,17 @@
  * (`FILE:LINE:COL: message`) and a `UserError` with exit status 2 when the file has errors.
  */
 import { parseDocument } from 'yaml';
-import { formatDiagnostic, loadPlant, parseDuration } from '../model/index.js';
+import { formatDiagnostic, loadPlant, MAX_PLANT_TEXT, parseDuration } from '../model/index.js';
 import type { PlantSpec, PidForm } from '../model/types.js';
 import { UserError } from './errors.js';
 import { EncodingError, type Io } from './io.js';
-import { MAX_PLANT_BYTES, readFailure } from './read-bounded.js';
+import { readFailure } from './read-bounded.js';
+
+/**
+ * Largest plant file read, bytes: the loader's character limit at up to 4 UTF-8 bytes each. Here,
+ * not in read-bounded.ts, which the start-up path loads: the limit comes from model/.
+ */
+export const MAX_PLANT_BYTES = 4 * MAX_PLANT_TEXT;
 
 export interface LoadedPlant {
   plant: PlantSpec;

@@ -1,20 +1,11 @@
 /**
  * Command dispatch: parse, map to one core call per command, print, return an exit code.
  * Never exits the process and never throws a `UserError` out: those become messages and codes.
+ *
+ * Each command's module is imported when that command runs, not before: importing them all
+ * loaded the whole tree (every folder's index, yaml, Ink and React) for `--help`. Nothing on the
+ * way to `--help` or `--version` imports a core folder (test/cli/startup.test.ts checks it).
  */
-import { bumpPlanCommand } from './commands/bump-plan.js';
-import { checkCommand } from './commands/check.js';
-import { compareCommand } from './commands/compare.js';
-import { diagnoseCommand } from './commands/diagnose.js';
-import { diffCommand } from './commands/diff.js';
-import { exportCommand } from './commands/export.js';
-import { fitCommand } from './commands/fit.js';
-import { optimizeCommand } from './commands/optimize.js';
-import { runCommand } from './commands/run.js';
-import { schemaCommand } from './commands/schema.js';
-import { screenCommand } from './commands/screen.js';
-import { suggestCommand } from './commands/suggest.js';
-import { StructureUnavailable } from '../tune/index.js';
 import { UserError } from './errors.js';
 import type { Io } from './io.js';
 import { demoPlantPath } from './plants-dir.js';
@@ -31,31 +22,31 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
     const [command, ...rest] = argv;
     if (command === undefined) {
       // The terminal screen on the demo plant (a summary when there is no terminal).
-      return await screenCommand([demoPlantPath()], io);
+      return await (await import('./commands/screen.js')).screenCommand([demoPlantPath()], io);
     }
     switch (command) {
       case 'fit':
-        return await fitCommand(rest, io);
+        return await (await import('./commands/fit.js')).fitCommand(rest, io);
       case 'run':
-        return await runCommand(rest, io);
+        return await (await import('./commands/run.js')).runCommand(rest, io);
       case 'bump-plan':
-        return await bumpPlanCommand(rest, io);
+        return await (await import('./commands/bump-plan.js')).bumpPlanCommand(rest, io);
       case 'export':
-        return await exportCommand(rest, io);
+        return await (await import('./commands/export.js')).exportCommand(rest, io);
       case 'check':
-        return await checkCommand(rest, io);
+        return await (await import('./commands/check.js')).checkCommand(rest, io);
       case 'schema':
-        return await schemaCommand(rest, io);
+        return await (await import('./commands/schema.js')).schemaCommand(rest, io);
       case 'suggest':
-        return await suggestCommand(rest, io);
+        return await (await import('./commands/suggest.js')).suggestCommand(rest, io);
       case 'diagnose':
-        return await diagnoseCommand(rest, io);
+        return await (await import('./commands/diagnose.js')).diagnoseCommand(rest, io);
       case 'optimize':
-        return await optimizeCommand(rest, io);
+        return await (await import('./commands/optimize.js')).optimizeCommand(rest, io);
       case 'compare':
-        return await compareCommand(rest, io);
+        return await (await import('./commands/compare.js')).compareCommand(rest, io);
       case 'diff':
-        return await diffCommand(rest, io);
+        return await (await import('./commands/diff.js')).diffCommand(rest, io);
       case 'help':
       case '--help':
       case '-h':
@@ -66,7 +57,7 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
         return 0;
       default:
         // `looprig FILE` opens the terminal screen (a summary when there is no terminal).
-        if (/\.ya?ml$/i.test(command)) return await screenCommand([command, ...rest], io);
+        if (/\.ya?ml$/i.test(command)) return await (await import('./commands/screen.js')).screenCommand([command, ...rest], io);
         io.err(`looprig: unknown command '${command}'\n\n${USAGE}`);
         return UserError.USAGE;
     }
@@ -77,6 +68,9 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
     }
     // A controller structure the plant cannot support (e.g. a Smith predictor on an integrating
     // plant) is a finding about the file, reported like any other bad input.
+    // Only a command that ran can have thrown it, so tune/ is loaded by then: importing it here
+    // costs nothing and keeps it off the start-up path.
+    const { StructureUnavailable } = await import('../tune/index.js');
     if (error instanceof StructureUnavailable) {
       io.err(`looprig: ${error.message}\n`);
       return UserError.USAGE;

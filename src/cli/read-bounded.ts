@@ -5,16 +5,12 @@
  * reading, chunk by chunk.
  */
 import { closeSync, constants, fstatSync, openSync, readSync, statSync } from 'node:fs';
-import { MAX_PLANT_TEXT } from '../model/index.js';
 
 /**
  * Largest file read by default (logs, plant files), bytes: 64 MiB, several times the largest
  * log the ident benchmark parses (90k rows, a few MiB).
  */
 export const MAX_READ_BYTES = 64 * 1024 * 1024;
-
-/** Largest plant file read, bytes: the loader's character limit at up to 4 UTF-8 bytes each. */
-export const MAX_PLANT_BYTES = 4 * MAX_PLANT_TEXT;
 
 const CHUNK = 1 << 16;
 

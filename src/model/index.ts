@@ -19,7 +19,8 @@ export { loadPlant, MAX_PLANT_TEXT, type LoadResult } from './load.js';
 export { formatDuration, parseDuration, TIME_UNITS, tryParseDuration, type DurationResult } from './units.js';
 export { controllerEdits, gainNote, savePlantValues, type ControllerEditOptions, type ValueEdit } from './save.js';
 export { lineColumn, type PlantDocument } from './yaml-doc.js';
-export { findEncodingProblem, type EncodingProblem } from './utf8.js';
+// UTF-8 checking lives in num/ (no control words) so the CLI's Io can use it without loading the plant reader.
+export { findEncodingProblem, type EncodingProblem } from '../num/index.js';
 
 export { parseExpression, EXPR_LIMITS, type ExprError, type ExprErrorCode, type ParseOptions } from './expr/parser.js';
 export { evaluateExpression, type ExprEnv } from './expr/interpret.js';

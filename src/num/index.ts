@@ -14,4 +14,6 @@ export type { LevenbergMarquardtOptions, LevenbergMarquardtResult } from './leve
 export { zohDiscretise } from './zoh.js';
 export { jacobianConditioning } from './jacobian-conditioning.js';
 export type { JacobianConditioning } from './jacobian-conditioning.js';
+export { findEncodingProblem } from './utf8.js';
+export type { EncodingProblem } from './utf8.js';
 export { chiSquareCdf, chiSquareQuantile, gammaP, logGamma } from './chi-square.js';
