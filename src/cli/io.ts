@@ -24,9 +24,10 @@ export interface Io {
   readText(path: string, maxBytes?: number): string;
   /**
    * Write a UTF-8 text file keeping what the user owns (link, mode, owner; see write-file.ts):
-   * atomic unless the outcome says otherwise. Fakes may return nothing.
+   * atomic unless the outcome says otherwise. Fakes may return nothing. `text` may be a sequence
+   * of chunks (a long trace as CSV), written as they come and never joined.
    */
-  writeText(path: string, text: string, options?: WriteOptions): WriteOutcome | void;
+  writeText(path: string, text: string | Iterable<string>, options?: WriteOptions): WriteOutcome | void;
   /** True when anything is at `path`, readable or not (lstat: a dangling link exists too). */
   exists(path: string): boolean;
   /** True when standard output is a terminal. */

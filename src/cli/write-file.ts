@@ -58,6 +58,9 @@ const MAX_LINKS = 40;
 
 /**
  * Write `data` (text is written as UTF-8, byte for byte: a leading U+FEFF stays a BOM) to `path`.
+ * `data` may be a sequence of text chunks (a long CSV): each is written as it comes and dropped,
+ * so the whole text is never held. The sequence is read once (the in-place fallback only runs
+ * when the temporary file could not even be created, before any chunk was taken).
  * - A symbolic link is followed and its final target written; the link stays a link.
  * - An existing file keeps its mode, and its owner and group when we run as root.
  * - A file without any write bit (0444) is refused with a clear message, never replaced.
@@ -66,7 +69,7 @@ const MAX_LINKS = 40;
  * - Temporary files left by a writer that was killed are removed on the next write.
  * Throws an Error with a readable message (or the platform error, with `code`) on failure.
  */
-export function writeFileKeeping(path: string, data: string | Uint8Array, options: WriteOptions = {}): WriteOutcome {
+export function writeFileKeeping(path: string, data: string | Uint8Array | Iterable<string>, options: WriteOptions = {}): WriteOutcome {
   const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
   const { target, link, stat } = resolveTarget(path);
   const notes: string[] = [];
@@ -154,7 +157,7 @@ function refuseUnwritable(target: string, stat: Stats): void {
   }
 }
 
-function writeAtomic(target: string, bytes: Uint8Array, stat: Stats | null, notes: string[]): void {
+function writeAtomic(target: string, bytes: Uint8Array | Iterable<string>, stat: Stats | null, notes: string[]): void {
   const tmp = join(dirname(target), tempName(basename(target), process.pid));
   let fd: number;
   try {
@@ -200,20 +203,29 @@ function keepOwner(fd: number, stat: Stats, notes: string[]): void {
   if (stat.uid !== uid) notes.push(`the file belonged to uid ${stat.uid}; the new file belongs to you (only root can keep another owner)`);
 }
 
-function writeInPlace(target: string, bytes: Uint8Array): void {
+function writeInPlace(target: string, bytes: Uint8Array | Iterable<string>): void {
   const fd = openSync(target, 'r+');
   try {
-    writeAll(fd, bytes);
-    ftruncateSync(fd, bytes.length);
+    ftruncateSync(fd, writeAll(fd, bytes));
     fsyncSync(fd);
   } finally {
     closeSync(fd);
   }
 }
 
-function writeAll(fd: number, bytes: Uint8Array): void {
+/** Write the bytes, or each text chunk in turn, from the start of the file. @returns bytes written. */
+function writeAll(fd: number, data: Uint8Array | Iterable<string>): number {
+  if (data instanceof Uint8Array) return writeAt(fd, data, 0);
+  let at = 0;
+  for (const chunk of data) at = writeAt(fd, Buffer.from(chunk, 'utf8'), at);
+  return at;
+}
+
+/** Write all of `bytes` at file offset `at`. @returns the offset after them. */
+function writeAt(fd: number, bytes: Uint8Array, at: number): number {
   let done = 0;
-  while (done < bytes.length) done += writeSync(fd, bytes, done, bytes.length - done, done);
+  while (done < bytes.length) done += writeSync(fd, bytes, done, bytes.length - done, at + done);
+  return at + done;
 }
 
 /** Longest file name part taken into a temporary name (names are limited to 255 bytes). */

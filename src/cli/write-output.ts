@@ -8,10 +8,10 @@ import { UserError } from './errors.js';
 import type { Io, WriteOptions } from './io.js';
 
 /**
- * Write `text` to `path`. `who` prefixes the failure message (a command name, or '' for none).
+ * Write `text` (or its chunks, in order) to `path`. `who` prefixes the failure message (a command name, or '' for none).
  * Returns the file whose bytes changed (the target of a link, or `path`).
  */
-export function writeOutput(io: Io, path: string, text: string, options: WriteOptions = {}, who = ''): string {
+export function writeOutput(io: Io, path: string, text: string | Iterable<string>, options: WriteOptions = {}, who = ''): string {
   let outcome;
   try {
     outcome = io.writeText(path, text, options);

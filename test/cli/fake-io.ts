@@ -29,7 +29,7 @@ export function fakeIo(files: Record<string, string> = {}): FakeIo {
       return v !== undefined ? v : readFileSync(path, 'utf8');
     },
     writeText(path, text) {
-      io.files.set(path, text);
+      io.files.set(path, typeof text === 'string' ? text : [...text].join(''));
     },
     exists(path) {
       if (io.files.has(path)) return true;

@@ -7,6 +7,8 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseDocument } from 'yaml';
 import { main } from '../../src/cli/index.js';
+import { traceCsvChunks } from '../../src/cli/commands/run.js';
+import { createTrace } from '../../src/sim/index.js';
 import { fakeIo } from './fake-io.js';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
@@ -253,6 +255,28 @@ describe('looprig run --set, --duration, --step', () => {
 });
 
 describe('looprig run --csv', () => {
+  it('streams the rows in chunks: every sample, the same text whatever the chunk size', () => {
+    const rows = 10;
+    const trace = createTrace(rows, ['load']);
+    for (let i = 0; i < rows; i++) {
+      trace.t[i] = i * 0.5;
+      trace.r[i] = 1;
+      trace.y[i] = i / 3;
+      trace.ym[i] = i / 7;
+      trace.u[i] = -i;
+      trace.d[0][i] = 0.1 * i;
+    }
+    trace.length = rows;
+    const whole = [...traceCsvChunks(trace, rows)];
+    expect(whole).toHaveLength(2); // header, then all rows
+    const lines = whole.join('').trimEnd().split('\n');
+    expect(lines).toHaveLength(1 + rows);
+    expect(lines[4]).toBe([1.5, 1, 1, 3 / 7, -3, 0.30000000000000004].map(String).join(','));
+    const small = [...traceCsvChunks(trace, 3)];
+    expect(small).toHaveLength(1 + Math.ceil(rows / 3));
+    expect(small.join('')).toBe(whole.join(''));
+  });
+
   it('writes the trace with a header row through the atomic writer', async () => {
     const r = await run(['run', plant('drum-level.yaml'), '--csv', 'out/trace.csv']);
     expect(r.code).toBe(0);

@@ -303,3 +303,26 @@ describe('writeFileKeeping: killed mid-write', () => {
     expect(temps(d)).toEqual([live]);
   });
 });
+
+describe('writeFileKeeping: text in chunks', () => {
+  it('writes the chunks in order, byte for byte what the joined text gives, taking each chunk once as it comes', () => {
+    const d = freshDir();
+    const file = join(d, 'trace.csv');
+    writeFileSync(file, 'an older and much longer content than the new one\n'.repeat(100));
+    const chunks = ['t,y\n', ...Array.from({ length: 50 }, (_, k) => `${k * 0.5},${Math.sin(k)}\n`), 'é€\n'];
+    const taken: number[] = [];
+    function* gen() {
+      for (let k = 0; k < chunks.length; k++) {
+        // Every earlier chunk is already in the (temporary) file when this one is asked for.
+        const tmpFile = temps(d)[0];
+        taken.push(tmpFile === undefined ? -1 : statSync(join(d, tmpFile)).size);
+        yield chunks[k];
+      }
+    }
+    writeFileKeeping(file, gen());
+    expect(readFileSync(file, 'utf8')).toBe(chunks.join(''));
+    expect(taken).toHaveLength(chunks.length);
+    for (let k = 0; k < chunks.length; k++) expect(taken[k]).toBe(Buffer.byteLength(chunks.slice(0, k).join(''), 'utf8'));
+    expect(temps(d)).toEqual([]);
+  });
+});

@@ -123,7 +123,7 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
   }
   const report = runPlant(options, io);
   if (options.csv !== null) {
-    writeOutput(io, options.csv, traceCsv(report.result.trace));
+    writeOutput(io, options.csv, traceCsvChunks(report.result.trace));
   }
   if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
   io.out(options.json ? toJson(reportJson(report)) : summaryText(report));
@@ -132,16 +132,25 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
 
 // ---------------------------------------------------------------- output
 
-/** The trace as CSV: t, setpoint, output, measured, u, then one column per disturbance. */
-export function traceCsv(trace: Trace): string {
-  const header = ['t', 'setpoint', 'output', 'measured', 'u', ...trace.disturbanceNames];
-  const lines = [header.join(',')];
-  for (let i = 0; i < trace.length; i++) {
-    const row = [trace.t[i], trace.r[i], trace.y[i], trace.ym[i], trace.u[i]];
-    for (const d of trace.d) row.push(d[i]);
-    lines.push(row.map(String).join(','));
+/** Rows per CSV chunk: ~0.5 MB of text at a time, however long the trace. */
+const CSV_CHUNK_ROWS = 4096;
+
+/**
+ * The trace as CSV: t, setpoint, output, measured, u, then one column per disturbance; every
+ * sample, as chunks of text (the header first) so a long trace goes to disk a piece at a time.
+ */
+export function* traceCsvChunks(trace: Trace, rowsPerChunk: number = CSV_CHUNK_ROWS): Generator<string> {
+  yield `${['t', 'setpoint', 'output', 'measured', 'u', ...trace.disturbanceNames].join(',')}\n`;
+  for (let start = 0; start < trace.length; start += rowsPerChunk) {
+    const end = Math.min(trace.length, start + rowsPerChunk);
+    let text = '';
+    for (let i = start; i < end; i++) {
+      text += `${trace.t[i]},${trace.r[i]},${trace.y[i]},${trace.ym[i]},${trace.u[i]}`;
+      for (const d of trace.d) text += `,${d[i]}`;
+      text += '\n';
+    }
+    yield text;
   }
-  return `${lines.join('\n')}\n`;
 }
 
 /** The `--json` document (see the CLI contract in the design notes). */
