@@ -18,17 +18,29 @@ export interface PlantFileEntry {
 /** Folders never searched: version control, dependencies, build output caches. */
 const SKIP_DIRS = new Set(['node_modules', '.git', '.hg', '.svn']);
 
-/** Does this YAML text look like a plant file: a mapping with top-level `model` and `loop`? */
+/**
+ * Does this YAML text look like a plant file: a mapping with top-level `model` and `loop`?
+ * Decided without parsing when it can be: both keys written at the start of a line (block style,
+ * as every plant file is) say yes at once, so a plant file is parsed once, by the loader. Only
+ * the rest (other YAML, flow-style roots) is parsed to be sure.
+ */
 export function looksLikePlant(text: string): boolean {
+  if (hasPlantKeysAtTop(text)) return true;
   const doc = parseDocument(text, { prettyErrors: false });
-  if (doc.errors.length > 0) {
-    // A plant file with a syntax error is still a plant file (to be reported): judge by the keys.
-    return /^model\s*:/m.test(text) && /^loop\s*:/m.test(text);
-  }
+  if (doc.errors.length > 0) return false;
   const root = doc.contents;
   if (!isMap(root)) return false;
   const keys = new Set(root.items.map((p) => (isScalar(p.key) ? String(p.key.value) : '')));
   return keys.has('model') && keys.has('loop');
+}
+
+/**
+ * `model:` and `loop:` both at the start of a line: in YAML a key at column 0 is a key of the
+ * root mapping (a file that only seems so, e.g. a multi-line plain scalar, is then reported by
+ * the loader as an invalid plant file rather than skipped).
+ */
+export function hasPlantKeysAtTop(text: string): boolean {
+  return /^model[ \t]*:/m.test(text) && /^loop[ \t]*:/m.test(text);
 }
 
 /** Top-level keys of a YAML mapping (for messages), or null when it is not a mapping. */
@@ -82,13 +94,13 @@ function walk(dir: string, out: string[], seen: Set<string>): void {
 }
 
 /**
- * Expand the command-line arguments into the sorted list of files to check. Files named
- * explicitly are kept as they are; folders contribute their *.yaml / *.yml files that look like
- * plant files. Throws UserError (exit 2) for a missing path or when nothing is found.
+ * The sorted list of YAML files the arguments name, read from nothing but the folders: files
+ * named explicitly as they are, folders their *.yaml / *.yml files (plant files or not; each
+ * reader decides with `looksLikePlant` on the text it reads anyway). Throws UserError (exit 2)
+ * for a missing path.
  */
-export function findPlantFiles(args: readonly string[], io: Io): { files: PlantFileEntry[]; skipped: string[] } {
+export function listYamlFiles(args: readonly string[], io: Io): PlantFileEntry[] {
   const found = new Map<string, PlantFileEntry>();
-  const skipped: string[] = [];
   const seen = new Set<string>();
   for (const arg of args) {
     let isDir = false;
@@ -96,13 +108,8 @@ export function findPlantFiles(args: readonly string[], io: Io): { files: PlantF
       isDir = statSync(arg).isDirectory();
     } catch (error) {
       const code = (error as { code?: string }).code;
-      // A file the Io serves without being on disk (tests) is still a file.
       if (code !== 'ENOENT') throw new UserError(`check: cannot read ${arg}: ${(error as Error).message}`);
-      try {
-        io.readText(arg);
-      } catch {
-        throw new UserError(`check: cannot read ${arg}: no such file or folder`);
-      }
+      if (!io.exists(arg)) throw new UserError(`check: cannot read ${arg}: no such file or folder`);
     }
     if (!isDir) {
       const p = normalize(arg);
@@ -111,24 +118,39 @@ export function findPlantFiles(args: readonly string[], io: Io): { files: PlantF
     }
     const yamls: string[] = [];
     walk(normalize(arg), yamls, seen);
-    for (const p of yamls) {
-      if (found.has(p)) continue;
-      let text: string;
-      try {
-        text = io.readText(p);
-      } catch (error) {
-        // A plant file in the wrong encoding is checked (and refused with its position), not skipped.
-        if (error instanceof EncodingError) found.set(p, { path: p, explicit: false });
-        else skipped.push(p);
-        continue;
-      }
-      if (looksLikePlant(text)) found.set(p, { path: p, explicit: false });
-      else skipped.push(p);
-    }
+    for (const p of yamls) if (!found.has(p)) found.set(p, { path: p, explicit: false });
   }
-  // Plain code-unit order: the same on every machine and locale, so shards agree across jobs.
-  const files = [...found.values()].sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
+  return [...found.values()].sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
+}
+
+/**
+ * Expand the command-line arguments into the sorted list of plant files: the YAML files listed,
+ * those found in folders kept when they look like plant files (the rest are `skipped`).
+ */
+export function findPlantFiles(args: readonly string[], io: Io): { files: PlantFileEntry[]; skipped: string[] } {
+  const files: PlantFileEntry[] = [];
+  const skipped: string[] = [];
+  for (const entry of listYamlFiles(args, io)) {
+    if (entry.explicit) files.push(entry);
+    else if (plantFileText(entry.path, io) === null) skipped.push(entry.path);
+    else files.push(entry);
+  }
   return { files, skipped };
+}
+
+/**
+ * A file found in a folder: its text when it is a plant file to check, null when it is skipped
+ * (unreadable, or YAML without top-level model and loop). A file that is not UTF-8 is kept, as
+ * '' (its check reads it again and reports the first bad byte).
+ */
+export function plantFileText(path: string, io: Io): string | null {
+  let text: string;
+  try {
+    text = io.readText(path);
+  } catch (error) {
+    return error instanceof EncodingError ? '' : null;
+  }
+  return looksLikePlant(text) ? text : null;
 }
 
 /** Parse `--shard I/N` (1 <= I <= N). */

@@ -259,18 +259,22 @@ describe('check: finding files, shards, bad input', () => {
     expect((await cli(['check', 'plants', '--fast'])).code).toBe(2);
   });
 
-  it('--shard I/N: shards are disjoint, cover the sorted list, and are the same on every call', async () => {
-    const full = JSON.parse((await cli(['check', 'plants', `${FIX}/tree`, '--json'])).out).files.map((f: { file: string }) => f.file);
+  it('--shard I/N: shards are disjoint, cover every plant file, and are the same on every call', async () => {
+    const whole = JSON.parse((await cli(['check', 'plants', `${FIX}/tree`, '--json'])).out);
+    const full = whole.files.map((f: { file: string }) => f.file);
     expect(full).toEqual([...full].sort());
+    // The shards split the sorted list of YAML files (plant files and skipped ones) before any
+    // is read, so a shard reads only its own files.
+    const yamls = [...full, ...whole.skipped].sort();
     const parts: string[][] = [];
     for (let i = 1; i <= 3; i++) {
       const doc = JSON.parse((await cli(['check', `${FIX}/tree`, 'plants', '--json', '--shard', `${i}/3`])).out);
-      expect(doc.shard).toEqual({ index: i, count: 3, of_files: full.length });
+      expect(doc.shard).toEqual({ index: i, count: 3, of_files: yamls.length });
       parts.push(doc.files.map((f: { file: string }) => f.file));
+      // Index modulo N over the sorted list of YAML files.
+      expect([...parts[i - 1], ...doc.skipped].sort()).toEqual(yamls.filter((_: string, k: number) => k % 3 === i - 1));
     }
     expect(parts.flat().sort()).toEqual(full);
-    // Index modulo N over the sorted list.
-    expect(parts[1]).toEqual(full.filter((_: string, k: number) => k % 3 === 1));
     const again = JSON.parse((await cli(['check', 'plants', `${FIX}/tree`, '--json', '--shard', '2/3'])).out);
     expect(again.files.map((f: { file: string }) => f.file)).toEqual(parts[1]);
   });

@@ -18,8 +18,9 @@ import { readFailure } from '../read-bounded.js';
 import { MAX_PLANT_BYTES } from '../load-plant-file.js';
 import { StructureUnavailable } from '../../tune/index.js';
 import { checkPlant, type CheckRow, type PlantCheck } from '../check-plant.js';
+import type { PlantSpec } from '../../model/types.js';
 import { UserError } from '../errors.js';
-import { findPlantFiles, parseShard, shardOf, topLevelKeys, type PlantFileEntry } from '../find-plant-files.js';
+import { hasPlantKeysAtTop, listYamlFiles, parseShard, plantFileText, shardOf, topLevelKeys, type PlantFileEntry } from '../find-plant-files.js';
 import { num, table } from '../format.js';
 import { EncodingError, type Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
@@ -38,8 +39,9 @@ found that way are skipped (named explicitly, they are an error).
 
 Options:
   --json          one JSON document on stdout
-  --shard I/N     check only shard I of N (1 <= I <= N): the files at positions I, I+N, I+2N ...
-                  of the sorted list, so N CI jobs together check every file exactly once
+  --shard I/N     check only shard I of N (1 <= I <= N): the YAML files at positions I, I+N,
+                  I+2N ... of the sorted list of YAML files named or found, so N CI jobs together
+                  check every plant file exactly once, each reading only its own files
   --svg DIR       write a plot of each failing file's trial to DIR (created if needed)
   -h, --help      show this text
 
@@ -83,28 +85,37 @@ export interface FileOutcome {
   file: string;
   status: 'pass' | 'fail' | 'invalid';
   plant: string | null;
-  check: PlantCheck | null;
+  /** The verdicts; the nominal trial itself is dropped once its plot (if any) is written. */
+  check: Omit<PlantCheck, 'nominal'> | null;
   /** Why the file is invalid (already printed to stderr as FILE:LINE:COL lines). */
   errors: string[];
   warnings: string[];
   svg: string | null;
 }
 
-/** Load and check one file; diagnostics go to stderr. */
-function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean): FileOutcome {
+/**
+ * Load and check one file (its `text` when already read); diagnostics go to stderr. The file is
+ * parsed once, by the loader. The nominal trial is kept only to plot a failing file into `svgDir`,
+ * right here: nothing of a file's trial outlives its check, so memory stays flat in the number of
+ * files.
+ */
+function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: string | null, text?: string): FileOutcome {
   const file = entry.path;
   const invalid = (errors: string[]): FileOutcome => {
     for (const e of errors) io.err(`${e}\n`);
     return { file, status: 'invalid', plant: null, check: null, errors, warnings: [], svg: null };
   };
-  let text: string;
-  try {
-    text = io.readText(file, MAX_PLANT_BYTES);
-  } catch (error) {
-    if (error instanceof EncodingError) return invalid([error.message]);
-    return invalid([`${file}: cannot read: ${readFailure(error)}`]);
+  if (text === undefined) {
+    try {
+      text = io.readText(file, MAX_PLANT_BYTES);
+    } catch (error) {
+      if (error instanceof EncodingError) return invalid([error.message]);
+      return invalid([`${file}: cannot read: ${readFailure(error)}`]);
+    }
   }
-  const keys = topLevelKeys(text);
+  // Both keys at the start of a line: a plant file, no parse to decide. Otherwise the keys are
+  // read (a parse) for the message.
+  const keys = hasPlantKeysAtTop(text) ? ['model', 'loop'] : topLevelKeys(text);
   if (keys !== null && !(keys.includes('model') && keys.includes('loop'))) {
     return invalid([
       `${file}:1:1: not a plant file: a plant file is a YAML mapping with top-level 'model' and 'loop' ` +
@@ -131,7 +142,30 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean): FileOutcom
     if (error instanceof StructureUnavailable) return invalid([`${file}: ${error.message}`]);
     throw error;
   }
-  return { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, check, errors: [], warnings, svg: null };
+  const { nominal, ...verdicts } = check;
+  const outcome: FileOutcome = { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, check: verdicts, errors: [], warnings, svg: null };
+  if (svgDir !== null && outcome.status === 'fail') outcome.svg = writePlot(loaded.plant, file, check.rows, nominal, svgDir, io);
+  return outcome;
+}
+
+/** Write the plot of a failing file's nominal trial into `dir` (created if needed). @returns its path. */
+function writePlot(plant: PlantSpec, file: string, rows: readonly CheckRow[], nominal: PlantCheck['nominal'], dir: string, io: Io): string {
+  try {
+    mkdirSync(dir, { recursive: true });
+  } catch (error) {
+    throw new UserError(`check: cannot create ${dir}: ${(error as Error).message}`);
+  }
+  const failed = rows.filter((r) => r.status !== 'pass').map((r) => r.requirement);
+  const path = join(dir, plotName(file));
+  const svg = trialPlotSvg({
+    plant,
+    file,
+    trace: nominal.result.trace,
+    metrics: nominal.metrics,
+    note: `FAILED: ${[...new Set(failed)].join(', ')}`,
+  });
+  writeOutput(io, path, svg, {}, 'check');
+  return path;
 }
 
 /** A file name for a plot of `file`: its path with separators turned into "__". */
@@ -153,44 +187,31 @@ export async function checkCommand(args: readonly string[], io: Io): Promise<num
     io.out(CHECK_USAGE);
     return 0;
   }
-  const { files, skipped } = findPlantFiles(a.paths, io);
-  if (files.length === 0) {
+  // The shard is taken from the list of YAML files before any is read: a shard reads only its own.
+  const listed = listYamlFiles(a.paths, io);
+  const mine = shardOf(listed, a.shard);
+  const outcomes: FileOutcome[] = [];
+  const skipped: string[] = [];
+  for (const entry of mine) {
+    let text: string | undefined;
+    if (!entry.explicit) {
+      const found = plantFileText(entry.path, io);
+      if (found === null) {
+        skipped.push(entry.path);
+        continue;
+      }
+      if (found !== '') text = found;
+    }
+    outcomes.push(checkFile(entry, io, a.noLimits, a.svg, text));
+  }
+  if (outcomes.length === 0 && (a.shard === null || listed.length === 0)) {
     const why = skipped.length > 0 ? ` (${skipped.length} YAML file${skipped.length === 1 ? '' : 's'} without top-level model and loop skipped)` : '';
     throw new UserError(`check: no plant files found in ${a.paths.join(', ')}${why}`);
   }
-  const mine = shardOf(files, a.shard);
-  const outcomes = mine.map((f) => checkFile(f, io, a.noLimits));
-
-  if (a.svg !== null) {
-    const failing = outcomes.filter((o) => o.status === 'fail' && o.check !== null);
-    if (failing.length > 0) {
-      try {
-        mkdirSync(a.svg, { recursive: true });
-      } catch (error) {
-        throw new UserError(`check: cannot create ${a.svg}: ${(error as Error).message}`);
-      }
-    }
-    for (const o of failing) {
-      const loaded = loadPlant(io.readText(o.file), o.file).plant!;
-      const failed = o.check!.rows.filter((r) => r.status !== 'pass').map((r) => r.requirement);
-      const path = join(a.svg, plotName(o.file));
-      const nominal = o.check!.nominal;
-      const svg = trialPlotSvg({
-        plant: loaded,
-        file: o.file,
-        trace: nominal.result.trace,
-        metrics: nominal.metrics,
-        note: `FAILED: ${[...new Set(failed)].join(', ')}`,
-      });
-      writeOutput(io, path, svg, {}, 'check');
-      o.svg = path;
-    }
-  }
-
   const invalid = outcomes.filter((o) => o.status === 'invalid').length;
   const failed = outcomes.filter((o) => o.status === 'fail').length;
   const code = invalid > 0 ? UserError.USAGE : failed > 0 ? UserError.FAIL : 0;
-  io.out(a.json ? toJson(checkJson(outcomes, files.length, skipped, a.shard, code)) : checkText(outcomes, files.length, a.shard));
+  io.out(a.json ? toJson(checkJson(outcomes, listed.length, skipped, a.shard, code)) : checkText(outcomes, listed.length, a.shard));
   return code;
 }
 
