@@ -42,6 +42,8 @@ export type { Margins } from './margins.js';
 export { effectiveMs } from './effective-ms.js';
 export type { MsSource } from './effective-ms.js';
 export { closedLoopCheck } from './closed-loop.js';
+export { sampledClosedLoopPoles } from './sampled-poles.js';
+export type { SampledPole, SampledPoles } from './sampled-poles.js';
 export type { ClosedLoopCheck } from './closed-loop.js';
 export { halfRule } from './half-rule.js';
 export type { HalfRuleInput, HalfRuleResult, FirstOrderApprox, SecondOrderApprox } from './half-rule.js';
