@@ -15,6 +15,9 @@ import { relayOnPlant, type PlantRelayOptions, type PlantRelayResult } from './r
 import { caseFigures, planSweep, robustnessSweep, summarise, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
 import { TUNING_RULES, type RuleInputs, type RuleParameters, type TuningRule } from './rule-table.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
+import { poleDelayNote, poleRules } from './pole-rules.js';
+import type { PoleTarget } from './rules/pole-placement.js';
+import { sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
 
 /** Options of `suggestGains`. */
 export interface SuggestOptions {
@@ -39,6 +42,19 @@ export interface SuggestOptions {
   saturationFlag?: number;
   /** A prepared context (saves compiling again). */
   context?: TuningContext;
+  /** Closed-loop pole target: adds the pole-placement rows (PI, PID where the model allows). */
+  poles?: PoleTarget | null;
+}
+
+/** What a design row (pole placement) aimed at and what the loop does. */
+export interface DesignOutcome {
+  /** The pole target asked for. */
+  target: PoleTarget;
+  /**
+   * Closed-loop poles of the sampled loop as it runs (hold, filter, discrete law) on the linear
+   * model the design started from; null when there is none.
+   */
+  achieved: SampledPoles | null;
 }
 
 /** One rule's suggestion, simulated. */
@@ -55,6 +71,8 @@ export interface Suggestion {
   evaluation: GainEvaluation;
   worstCase: RobustnessSummary | null;
   flags: GainFlag[];
+  /** Design rows only (pole placement): the target and the achieved poles; null for the rules. */
+  design: DesignOutcome | null;
 }
 
 /** Result of `suggestGains`. */
@@ -124,8 +142,14 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const plan = sweep ? planSweep(spec, { ...sweep, nominal: false }, ctx) : null;
   const suggestions: Suggestion[] = [];
   const skipped: SuggestResult['skipped'] = [];
-  for (const rule of TUNING_RULES) {
-    if (wanted && !wanted.has(rule.id)) continue;
+  // Design rows are asked for by their own option, so a rule filter does not drop them.
+  const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime) : [];
+  const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules];
+  if (options.poles) {
+    const note = poleDelayNote(inputs, options.poles);
+    if (note !== null) notes.push(note);
+  }
+  for (const rule of rules) {
     let applied: { rg: RuleGains; gains: GainSet } | string;
     try {
       const rg = rule.apply(inputs, params);
@@ -166,11 +190,18 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
       evaluation,
       worstCase,
       flags,
+      design: designRules.includes(rule) && options.poles ? { target: options.poles, achieved: achievedPoles(ctx, evaluation.gains) } : null,
     });
   }
   const hint = slowerLoopHint(suggestions, params);
   if (hint !== null) notes.push(hint);
   return { inputs, ultimateSource, ultimateModel, relay, suggestions, skipped, notes, caution: RELAY_CAUTION };
+}
+
+/** Closed-loop poles of the sampled loop with these gains on the context's linear model. */
+function achievedPoles(ctx: TuningContext, gains: GainSet): SampledPoles | null {
+  if (ctx.linear === null) return null;
+  return sampledClosedLoopPoles(ctx.linear, gains, ctx.spec.loop.sampleTime, ctx.spec.sensor);
 }
 
 /**

@@ -6,6 +6,7 @@ import { countOption, onePositional, parseCommandArgs, timeOption } from '../par
 import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import { MIN_SAMPLE_TIME } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
+import type { PoleTarget } from '../../tune/index.js';
 import { caseFigures, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
@@ -26,6 +27,10 @@ Options:
   --json         one JSON document on stdout
   --tauc T       SIMC closed-loop time constant (default: the effective delay), e.g. --tauc 20s
   --lambda T     lambda / IMC closed-loop time constant (default: each rule's own)
+  --poles wn=W,zeta=Z[,alpha=A]
+                 add PI and PID rows placing the closed-loop poles s² + 2·Z·W·s + W² (W in rad/s;
+                 PID also a real pole at −A·W, default A = 1), with the achieved poles of the
+                 sampled loop
   --relay        take the ultimate point from a relay test in the simulation instead of the model
   --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
   --jobs N       threads for the worst-case sweeps when they have ${MIN_PARALLEL_CASES} or more cases (default:
@@ -39,6 +44,7 @@ interface SuggestArgs {
   tauc: number | null;
   lambda: number | null;
   relay: boolean;
+  poles: PoleTarget | null;
   samples: number;
   jobs: number;
   noLimits: boolean;
@@ -50,6 +56,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     tauc: { type: 'string' },
     lambda: { type: 'string' },
     relay: { type: 'boolean' },
+    poles: { type: 'string' },
     samples: { type: 'string' },
     jobs: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
@@ -65,10 +72,44 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     tauc: timeOption('suggest', 'tauc', values.tauc, { min: MIN_SAMPLE_TIME }),
     lambda: timeOption('suggest', 'lambda', values.lambda, { min: MIN_SAMPLE_TIME }),
     relay: values.relay === true,
+    poles: values.poles === undefined ? null : parsePoles(values.poles),
     samples,
     jobs,
     noLimits: values['no-limits'] === true,
   };
+}
+
+/** `wn=W,zeta=Z[,alpha=A]` → a pole target; a UserError (exit 2) for anything else. */
+export function parsePoles(raw: string): PoleTarget {
+  const usage = `suggest: --poles ${raw}: write wn=W,zeta=Z[,alpha=A] with W in rad/s, e.g. --poles wn=0.2,zeta=0.7`;
+  const got: Record<string, number> = {};
+  for (const part of raw.split(',')) {
+    const m = /^\s*(wn|zeta|alpha)\s*=\s*([^\s]+)\s*$/.exec(part);
+    if (m === null || m[1] in got) throw new UserError(usage);
+    const v = Number(m[2]);
+    if (!Number.isFinite(v) || !(v > 0)) throw new UserError(`suggest: --poles: ${m[1]} must be a positive number, got ${m[2]}`);
+    got[m[1]] = v;
+  }
+  if (got.wn === undefined || got.zeta === undefined) throw new UserError(usage);
+  return { wn: got.wn, zeta: got.zeta, alpha: got.alpha ?? 1 };
+}
+
+/** A continuous-time pole as `-0.21±0.214j` (the pair once). */
+function poleText(re: number, im: number): string {
+  return Math.abs(im) < 1e-12 ? num(re, 3) : `${num(re, 3)}±${num(Math.abs(im), 3)}j`;
+}
+
+/** The slowest poles of the sampled loop (each pair once), for the design rows. */
+export function achievedText(s: Suggestion, count = 4): string {
+  const a = s.design?.achieved;
+  if (!a) return 'no linear model';
+  const shown: string[] = [];
+  for (const p of a.poles) {
+    if (p.im < 0 || !Number.isFinite(p.re)) continue;
+    shown.push(poleText(p.re, p.im));
+    if (shown.length === count) break;
+  }
+  return `${shown.join(', ')}${a.stable ? '' : ' (unstable)'}`;
 }
 
 /** The gains as the file writes them, e.g. `kc=1.2 ti=30 s`. */
@@ -125,6 +166,15 @@ function summaryText(plant: PlantSpec, r: SuggestResult): string {
   const steps = r.suggestions[0]?.evaluation.metrics.steps.length ?? 0;
   if (steps > 1) lines.push(`overshoot and settling: the worst of the trial's ${steps} setpoint steps for each rule (first row: ${from})`);
   else if (steps === 1) lines.push(`overshoot and settling: the trial's setpoint step (${from})`);
+  const designs = r.suggestions.filter((s) => s.design !== null);
+  if (designs.length > 0) {
+    lines.push('', 'pole placement: target and the slowest closed-loop poles of the sampled loop as it runs (rad/s, s = ln(z)/h):');
+    for (const s of designs) {
+      const t = s.design!.target;
+      const want = s.structure === 'pid' ? `${poleText(-t.zeta * t.wn, t.wn * Math.sqrt(Math.max(0, 1 - t.zeta * t.zeta)))}, ${num(-t.alpha * t.wn, 3)}` : poleText(-t.zeta * t.wn, t.wn * Math.sqrt(Math.max(0, 1 - t.zeta * t.zeta)));
+      lines.push(`  ${s.rule.label}: target ${want}; achieved ${achievedText(s)}`);
+    }
+  }
   if (r.skipped.length > 0) {
     lines.push('', 'not applicable:');
     for (const k of r.skipped) lines.push(`  ${k.label}: ${k.reason}`);
@@ -175,6 +225,14 @@ function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown 
           max_sensitivity: finiteOrNull(s.worstCase.worstMs),
         },
         flags: s.flags,
+        design: s.design && {
+          target: s.design.target,
+          achieved_poles: s.design.achieved && {
+            stable: s.design.achieved.stable,
+            // Every pole of the sampled loop: z, and s = ln(z)/h (null for z = 0).
+            poles: s.design.achieved.poles.map((p) => ({ z: [p.zRe, p.zIm], s: Number.isFinite(p.re) ? [p.re, p.im] : null })),
+          },
+        },
       };
     }),
     skipped: r.skipped,
@@ -197,7 +255,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
   const cases = sweepCaseCount(plant, { ...sweep, nominal: false }) + 1;
   enforceFileBudget(loaded, options.file, io, {
     noLimits: options.noLimits,
-    runs: TUNING_RULES.length * cases,
+    runs: (TUNING_RULES.length + (options.poles ? 2 : 0)) * cases,
     given: options.samples > 0 ? { runs: `looprig: suggest: --samples ${options.samples}` } : {},
   });
   // Large worst-case sweeps go over threads: the rules are evaluated here without them and each
@@ -207,6 +265,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
     tauc: options.tauc,
     lambda: options.lambda,
     ultimate: options.relay ? 'relay' : 'model',
+    poles: options.poles,
     robustness: parallel ? false : sweep,
   });
   if (parallel) {
