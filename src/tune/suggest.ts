@@ -17,6 +17,7 @@ import { TUNING_RULES, type RuleInputs, type RuleParameters, type TuningRule } f
 import { tuningContext, type TuningContext } from './tuning-context.js';
 import { poleDelayNote, poleRules } from './pole-rules.js';
 import type { PoleTarget } from './rules/pole-placement.js';
+import { shapingRules, type ShapingLoop, type ShapingTarget } from './loop-shaping.js';
 import { sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
 
 /** Options of `suggestGains`. */
@@ -44,10 +45,19 @@ export interface SuggestOptions {
   context?: TuningContext;
   /** Closed-loop pole target: adds the pole-placement rows (PI, PID where the model allows). */
   poles?: PoleTarget | null;
+  /** Crossover and phase-margin target: adds the loop-shaping rows (PI, PID). */
+  shaping?: ShapingTarget | null;
 }
 
-/** What a design row (pole placement) aimed at and what the loop does. */
-export interface DesignOutcome {
+/**
+ * What a design row aimed at and what the loop does. Loop shaping: the target only (what the loop
+ * achieves is the evaluation's margins, the project's one margins path).
+ */
+export type DesignOutcome = PoleOutcome | { kind: 'shaping'; target: ShapingTarget };
+
+/** A pole-placement row's target and achieved poles. */
+export interface PoleOutcome {
+  kind: 'poles';
   /** The pole target asked for. */
   target: PoleTarget;
   /**
@@ -107,8 +117,7 @@ export function ruleInputsOf(ctx: TuningContext): { inputs: RuleInputs; notes: s
   const loop = loopElementsOf(ctx.spec);
   const hr = lowOrderOf(ctx.linear, loop);
   for (const n of hr.notes) notes.push(n);
-  const k = hr.fopdt?.k ?? hr.integrating?.kv ?? hr.sopdt?.k ?? 1;
-  const ultimate = ultimateFromModel(ctx.response, loop, k < 0 ? -1 : 1);
+  const ultimate = ultimateFromModel(ctx.response, loop, plantSign(hr));
   return { inputs: { fopdt: hr.fopdt, sopdt: hr.sopdt, integrating: hr.integrating, ultimate }, notes };
 }
 
@@ -144,7 +153,8 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const skipped: SuggestResult['skipped'] = [];
   // Design rows are asked for by their own option, so a rule filter does not drop them.
   const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime) : [];
-  const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules];
+  const shapeRules = options.shaping ? shapingRules(shapingLoop(ctx), options.shaping, plantSign(inputs)) : [];
+  const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules, ...shapeRules];
   if (options.poles) {
     const note = poleDelayNote(inputs, options.poles);
     if (note !== null) notes.push(note);
@@ -190,12 +200,29 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
       evaluation,
       worstCase,
       flags,
-      design: designRules.includes(rule) && options.poles ? { target: options.poles, achieved: achievedPoles(ctx, evaluation.gains) } : null,
+      design:
+        designRules.includes(rule) && options.poles
+          ? { kind: 'poles', target: options.poles, achieved: achievedPoles(ctx, evaluation.gains) }
+          : shapeRules.includes(rule) && options.shaping
+            ? { kind: 'shaping', target: options.shaping }
+            : null,
     });
   }
   const hint = slowerLoopHint(suggestions, params);
   if (hint !== null) notes.push(hint);
   return { inputs, ultimateSource, ultimateModel, relay, suggestions, skipped, notes, caution: RELAY_CAUTION };
+}
+
+/** The loop as the margins see it, for the loop-shaping design (null without a linear model). */
+function shapingLoop(ctx: TuningContext): ShapingLoop | null {
+  if (ctx.response === null) return null;
+  return { response: ctx.response, sampleTime: ctx.spec.loop.sampleTime, sensor: ctx.spec.sensor, base: ctx.spec.loop.controller.gains };
+}
+
+/** The plant's sign from its low-order description (reverse-acting plants need kc < 0). */
+function plantSign(i: Pick<RuleInputs, 'fopdt' | 'integrating' | 'sopdt'>): 1 | -1 {
+  const k = i.fopdt?.k ?? i.integrating?.kv ?? i.sopdt?.k ?? 1;
+  return k < 0 ? -1 : 1;
 }
 
 /** Closed-loop poles of the sampled loop with these gains on the context's linear model. */

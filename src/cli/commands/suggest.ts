@@ -6,7 +6,7 @@ import { countOption, onePositional, parseCommandArgs, timeOption } from '../par
 import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import { MIN_SAMPLE_TIME } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
-import type { PoleTarget } from '../../tune/index.js';
+import type { PoleTarget, ShapingTarget } from '../../tune/index.js';
 import { caseFigures, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
@@ -31,6 +31,11 @@ Options:
                  add PI and PID rows placing the closed-loop poles s² + 2·Z·W·s + W² (W in rad/s;
                  PID also a real pole at −A·W, default A = 1), with the achieved poles of the
                  sampled loop
+  --crossover W --phase-margin DEG
+                 add PI and PID rows putting the loop's gain crossover at W rad/s with that phase
+                 margin (PID with Ti = R·Td), with the achieved margins of the loop
+  --ti-td-ratio R
+                 Ti/Td of the loop-shaping PID (default 4)
   --relay        take the ultimate point from a relay test in the simulation instead of the model
   --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
   --jobs N       threads for the worst-case sweeps when they have ${MIN_PARALLEL_CASES} or more cases (default:
@@ -45,6 +50,7 @@ interface SuggestArgs {
   lambda: number | null;
   relay: boolean;
   poles: PoleTarget | null;
+  shaping: ShapingTarget | null;
   samples: number;
   jobs: number;
   noLimits: boolean;
@@ -57,6 +63,9 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     lambda: { type: 'string' },
     relay: { type: 'boolean' },
     poles: { type: 'string' },
+    crossover: { type: 'string' },
+    'phase-margin': { type: 'string' },
+    'ti-td-ratio': { type: 'string' },
     samples: { type: 'string' },
     jobs: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
@@ -73,6 +82,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     lambda: timeOption('suggest', 'lambda', values.lambda, { min: MIN_SAMPLE_TIME }),
     relay: values.relay === true,
     poles: values.poles === undefined ? null : parsePoles(values.poles),
+    shaping: parseShaping(values.crossover, values['phase-margin'], values['ti-td-ratio']),
     samples,
     jobs,
     noLimits: values['no-limits'] === true,
@@ -94,6 +104,22 @@ export function parsePoles(raw: string): PoleTarget {
   return { wn: got.wn, zeta: got.zeta, alpha: got.alpha ?? 1 };
 }
 
+function positive(flag: string, raw: string, max = Infinity): number {
+  const v = Number(raw);
+  if (!Number.isFinite(v) || !(v > 0) || !(v < max)) throw new UserError(`suggest: --${flag} must be a number > 0${max < Infinity ? ` and < ${max}` : ''}, got ${raw}`);
+  return v;
+}
+
+/** --crossover and --phase-margin (both or neither) and --ti-td-ratio → a loop-shaping target. */
+export function parseShaping(crossover: string | undefined, pm: string | undefined, ratio: string | undefined): ShapingTarget | null {
+  if (crossover === undefined && pm === undefined) {
+    if (ratio !== undefined) throw new UserError('suggest: --ti-td-ratio goes with --crossover and --phase-margin');
+    return null;
+  }
+  if (crossover === undefined || pm === undefined) throw new UserError('suggest: --crossover W (rad/s) and --phase-margin DEG go together, e.g. --crossover 0.1 --phase-margin 60');
+  return { crossover: positive('crossover', crossover), phaseMarginDeg: positive('phase-margin', pm, 180), tiTdRatio: ratio === undefined ? 4 : positive('ti-td-ratio', ratio) };
+}
+
 /** A continuous-time pole as `-0.21±0.214j` (the pair once). */
 function poleText(re: number, im: number): string {
   return Math.abs(im) < 1e-12 ? num(re, 3) : `${num(re, 3)}±${num(Math.abs(im), 3)}j`;
@@ -101,7 +127,7 @@ function poleText(re: number, im: number): string {
 
 /** The slowest poles of the sampled loop (each pair once), for the design rows. */
 export function achievedText(s: Suggestion, count = 4): string {
-  const a = s.design?.achieved;
+  const a = s.design?.kind === 'poles' ? s.design.achieved : null;
   if (!a) return 'no linear model';
   const shown: string[] = [];
   for (const p of a.poles) {
@@ -132,6 +158,30 @@ function worstText(s: Suggestion): string {
   const os = rankedFigureText('overshootPct', w.worstOvershootPct, (x) => num(x, 3));
   const ts = rankedFigureText('settlingTime', w.worstSettlingTime, num);
   return `os ${os} ts ${ts} Ms ${ms}`;
+}
+
+/** The design rows' targets beside what the loop achieves, one section per kind of design. */
+function designLines(r: SuggestResult): string[] {
+  const shaping: string[] = [];
+  const poles: string[] = [];
+  for (const s of r.suggestions) {
+    const d = s.design;
+    if (d === null) continue;
+    if (d.kind === 'shaping') {
+      const t = d.target;
+      const m = s.evaluation.margins;
+      const got = m ? `crossover ${num(m.crossoverFrequency, 4)} rad/s, phase margin ${num(m.phaseMarginDeg, 3)}°, GM ${num(m.gainMargin, 3, 'inf')}, Ms ${num(m.maxSensitivity, 3)}` : 'no margins (no linear model)';
+      shaping.push(`  ${s.rule.label}: target crossover ${num(t.crossover, 4)} rad/s, phase margin ${num(t.phaseMarginDeg, 3)}°${s.structure === 'pid' ? `, Ti/Td ${num(t.tiTdRatio, 3)}` : ''}; achieved ${got}`);
+    } else {
+      const t = d.target;
+      const pair = poleText(-t.zeta * t.wn, t.wn * Math.sqrt(Math.max(0, 1 - t.zeta * t.zeta)));
+      poles.push(`  ${s.rule.label}: target ${s.structure === 'pid' ? `${pair}, ${num(-t.alpha * t.wn, 3)}` : pair}; achieved ${achievedText(s)}`);
+    }
+  }
+  const out: string[] = [];
+  if (shaping.length > 0) out.push('', "loop shaping: target and the loop's achieved margins:", ...shaping);
+  if (poles.length > 0) out.push('', 'pole placement: target and the slowest closed-loop poles of the sampled loop as it runs (rad/s, s = ln(z)/h):', ...poles);
+  return out;
 }
 
 function summaryText(plant: PlantSpec, r: SuggestResult): string {
@@ -166,15 +216,7 @@ function summaryText(plant: PlantSpec, r: SuggestResult): string {
   const steps = r.suggestions[0]?.evaluation.metrics.steps.length ?? 0;
   if (steps > 1) lines.push(`overshoot and settling: the worst of the trial's ${steps} setpoint steps for each rule (first row: ${from})`);
   else if (steps === 1) lines.push(`overshoot and settling: the trial's setpoint step (${from})`);
-  const designs = r.suggestions.filter((s) => s.design !== null);
-  if (designs.length > 0) {
-    lines.push('', 'pole placement: target and the slowest closed-loop poles of the sampled loop as it runs (rad/s, s = ln(z)/h):');
-    for (const s of designs) {
-      const t = s.design!.target;
-      const want = s.structure === 'pid' ? `${poleText(-t.zeta * t.wn, t.wn * Math.sqrt(Math.max(0, 1 - t.zeta * t.zeta)))}, ${num(-t.alpha * t.wn, 3)}` : poleText(-t.zeta * t.wn, t.wn * Math.sqrt(Math.max(0, 1 - t.zeta * t.zeta)));
-      lines.push(`  ${s.rule.label}: target ${want}; achieved ${achievedText(s)}`);
-    }
-  }
+  lines.push(...designLines(r));
   if (r.skipped.length > 0) {
     lines.push('', 'not applicable:');
     for (const k of r.skipped) lines.push(`  ${k.label}: ${k.reason}`);
@@ -182,6 +224,22 @@ function summaryText(plant: PlantSpec, r: SuggestResult): string {
   for (const n of r.notes) lines.push(`note: ${n}`);
   lines.push('', r.caution);
   return `${lines.join('\n')}\n`;
+}
+
+function designJson(s: Suggestion): unknown {
+  const d = s.design;
+  if (d === null) return null;
+  // Loop shaping: what the loop achieves is the row's margins (crossover, phase margin above).
+  if (d.kind === 'shaping') return { kind: d.kind, target: { crossover: d.target.crossover, phase_margin_deg: d.target.phaseMarginDeg, ti_td_ratio: d.target.tiTdRatio } };
+  return {
+    kind: d.kind,
+    target: d.target,
+    achieved_poles: d.achieved && {
+      stable: d.achieved.stable,
+      // Every pole of the sampled loop: z, and s = ln(z)/h (null for z = 0).
+      poles: d.achieved.poles.map((p) => ({ z: [p.zRe, p.zIm], s: Number.isFinite(p.re) ? [p.re, p.im] : null })),
+    },
+  };
 }
 
 function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown {
@@ -225,14 +283,7 @@ function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown 
           max_sensitivity: finiteOrNull(s.worstCase.worstMs),
         },
         flags: s.flags,
-        design: s.design && {
-          target: s.design.target,
-          achieved_poles: s.design.achieved && {
-            stable: s.design.achieved.stable,
-            // Every pole of the sampled loop: z, and s = ln(z)/h (null for z = 0).
-            poles: s.design.achieved.poles.map((p) => ({ z: [p.zRe, p.zIm], s: Number.isFinite(p.re) ? [p.re, p.im] : null })),
-          },
-        },
+        design: designJson(s),
       };
     }),
     skipped: r.skipped,
@@ -255,7 +306,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
   const cases = sweepCaseCount(plant, { ...sweep, nominal: false }) + 1;
   enforceFileBudget(loaded, options.file, io, {
     noLimits: options.noLimits,
-    runs: (TUNING_RULES.length + (options.poles ? 2 : 0)) * cases,
+    runs: (TUNING_RULES.length + (options.poles ? 2 : 0) + (options.shaping ? 2 : 0)) * cases,
     given: options.samples > 0 ? { runs: `looprig: suggest: --samples ${options.samples}` } : {},
   });
   // Large worst-case sweeps go over threads: the rules are evaluated here without them and each
@@ -266,6 +317,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
     lambda: options.lambda,
     ultimate: options.relay ? 'relay' : 'model',
     poles: options.poles,
+    shaping: options.shaping,
     robustness: parallel ? false : sweep,
   });
   if (parallel) {
