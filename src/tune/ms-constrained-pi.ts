@@ -12,6 +12,7 @@
  */
 import { loopMargins, type PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, SensorSpec } from '../model/types.js';
+import type { TuningRule } from './rule-table.js';
 
 /** The loop the constraint is evaluated on. */
 export interface MsLoop {
@@ -112,4 +113,20 @@ export function msConstrainedPi(loop: MsLoop, target: number, sign: 1 | -1): MsP
   const ki = Math.max(fc, fd);
   if (!(ki > 0)) return { reason: `no PI with integral action keeps Ms <= ${target} on this loop` };
   return { kc: sign * kc, ti: kc / ki, ki: sign * ki, ms: piMs(loop, sign * kc, sign * ki) };
+}
+
+/** The Ms-constrained PI row of `suggest`, as a rule of the common shape. */
+export function msPiRule(loop: MsLoop | null, target: number, sign: 1 | -1): TuningRule {
+  return {
+    id: 'ms-constrained-pi',
+    label: 'Ms-constrained PI',
+    structure: 'pi',
+    source: 'Åström, Panagopoulos & Hägglund, Automatica 34(5) (1998)',
+    usesUltimate: false,
+    apply: () => {
+      if (loop === null) return 'needs a linear model of the loop';
+      const r = msConstrainedPi(loop, target, sign);
+      return 'reason' in r ? r.reason : { form: 'ideal', kc: r.kc, ti: r.ti, td: 0 };
+    },
+  };
 }

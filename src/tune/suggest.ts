@@ -18,6 +18,7 @@ import { tuningContext, type TuningContext } from './tuning-context.js';
 import { poleDelayNote, poleRules } from './pole-rules.js';
 import type { PoleTarget } from './rules/pole-placement.js';
 import { shapingRules, type ShapingLoop, type ShapingTarget } from './loop-shaping.js';
+import { msPiRule } from './ms-constrained-pi.js';
 import { sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
 
 /** Options of `suggestGains`. */
@@ -47,13 +48,15 @@ export interface SuggestOptions {
   poles?: PoleTarget | null;
   /** Crossover and phase-margin target: adds the loop-shaping rows (PI, PID). */
   shaping?: ShapingTarget | null;
+  /** Ms limit: adds the Ms-constrained PI row (largest integral gain with Ms <= this). */
+  maxMs?: number | null;
 }
 
 /**
  * What a design row aimed at and what the loop does. Loop shaping: the target only (what the loop
  * achieves is the evaluation's margins, the project's one margins path).
  */
-export type DesignOutcome = PoleOutcome | { kind: 'shaping'; target: ShapingTarget };
+export type DesignOutcome = PoleOutcome | { kind: 'shaping'; target: ShapingTarget } | { kind: 'ms'; maxMs: number };
 
 /** A pole-placement row's target and achieved poles. */
 export interface PoleOutcome {
@@ -153,8 +156,9 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const skipped: SuggestResult['skipped'] = [];
   // Design rows are asked for by their own option, so a rule filter does not drop them.
   const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime) : [];
-  const shapeRules = options.shaping ? shapingRules(shapingLoop(ctx), options.shaping, plantSign(inputs)) : [];
-  const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules, ...shapeRules];
+  const shapeRules = options.shaping ? shapingRules(designLoop(ctx), options.shaping, plantSign(inputs)) : [];
+  const msRules = options.maxMs ? [msPiRule(designLoop(ctx), options.maxMs, plantSign(inputs))] : [];
+  const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules, ...shapeRules, ...msRules];
   if (options.poles) {
     const note = poleDelayNote(inputs, options.poles);
     if (note !== null) notes.push(note);
@@ -205,7 +209,9 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
           ? { kind: 'poles', target: options.poles, achieved: achievedPoles(ctx, evaluation.gains) }
           : shapeRules.includes(rule) && options.shaping
             ? { kind: 'shaping', target: options.shaping }
-            : null,
+            : msRules.includes(rule) && options.maxMs
+              ? { kind: 'ms', maxMs: options.maxMs }
+              : null,
     });
   }
   const hint = slowerLoopHint(suggestions, params);
@@ -213,8 +219,8 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   return { inputs, ultimateSource, ultimateModel, relay, suggestions, skipped, notes, caution: RELAY_CAUTION };
 }
 
-/** The loop as the margins see it, for the loop-shaping design (null without a linear model). */
-function shapingLoop(ctx: TuningContext): ShapingLoop | null {
+/** The loop as the margins see it, for the designs on it (null without a linear model). */
+function designLoop(ctx: TuningContext): ShapingLoop | null {
   if (ctx.response === null) return null;
   return { response: ctx.response, sampleTime: ctx.spec.loop.sampleTime, sensor: ctx.spec.sensor, base: ctx.spec.loop.controller.gains };
 }

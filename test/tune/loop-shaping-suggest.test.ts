@@ -1,5 +1,5 @@
 /**
- * `looprig suggest FILE --crossover W --phase-margin DEG`: the loop-shaping rows go through the
+ * `looprig suggest FILE --crossover W --phase-margin DEG` (and `--max-ms M`): the loop-shaping rows go through the
  * suggest machinery (simulated on the full plant) and report the loop's achieved margins from the
  * one margins path; the margins' agreement with python-control is in loop-shaping.test.ts.
  */
@@ -58,5 +58,17 @@ describe('looprig suggest --crossover --phase-margin', () => {
       expect(await main(['suggest', FILE, ...args], io)).toBe(2);
       expect(io.stderr).toMatch(/suggest: --/);
     }
+  });
+
+  it('--max-ms adds the Ms-constrained PI row, at the limit on the row Ms; --max-ms 1 exits 2', async () => {
+    const io = fakeIo({ [FILE]: TEXT });
+    expect(await main(['suggest', FILE, '--json', '--max-ms', '1.4'], io)).toBe(0);
+    const row = JSON.parse(io.stdout).suggestions.find((s: { rule: string }) => s.rule === 'ms-constrained-pi');
+    expect(row.label).toBe('Ms-constrained PI');
+    expect(Math.abs(row.max_sensitivity / 1.4 - 1)).toBeLessThan(0.01);
+    expect(row.design).toEqual({ kind: 'ms', max_ms: 1.4 });
+    const bad = fakeIo({ [FILE]: TEXT });
+    expect(await main(['suggest', FILE, '--max-ms', '1'], bad)).toBe(2);
+    expect(bad.stderr).toMatch(/--max-ms must be a number > 1/);
   });
 });

@@ -36,6 +36,7 @@ Options:
                  margin (PID with Ti = R·Td), with the achieved margins of the loop
   --ti-td-ratio R
                  Ti/Td of the loop-shaping PID (default 4)
+  --max-ms M     add the Ms-constrained PI row: the largest integral gain with Ms <= M (M > 1)
   --relay        take the ultimate point from a relay test in the simulation instead of the model
   --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
   --jobs N       threads for the worst-case sweeps when they have ${MIN_PARALLEL_CASES} or more cases (default:
@@ -51,6 +52,7 @@ interface SuggestArgs {
   relay: boolean;
   poles: PoleTarget | null;
   shaping: ShapingTarget | null;
+  maxMs: number | null;
   samples: number;
   jobs: number;
   noLimits: boolean;
@@ -66,6 +68,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     crossover: { type: 'string' },
     'phase-margin': { type: 'string' },
     'ti-td-ratio': { type: 'string' },
+    'max-ms': { type: 'string' },
     samples: { type: 'string' },
     jobs: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
@@ -83,6 +86,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     relay: values.relay === true,
     poles: values.poles === undefined ? null : parsePoles(values.poles),
     shaping: parseShaping(values.crossover, values['phase-margin'], values['ti-td-ratio']),
+    maxMs: values['max-ms'] === undefined ? null : parseMaxMs(values['max-ms']),
     samples,
     jobs,
     noLimits: values['no-limits'] === true,
@@ -107,6 +111,13 @@ export function parsePoles(raw: string): PoleTarget {
 function positive(flag: string, raw: string, max = Infinity): number {
   const v = Number(raw);
   if (!Number.isFinite(v) || !(v > 0) || !(v < max)) throw new UserError(`suggest: --${flag} must be a number > 0${max < Infinity ? ` and < ${max}` : ''}, got ${raw}`);
+  return v;
+}
+
+/** --max-ms M: a sensitivity peak limit, a number > 1. */
+function parseMaxMs(raw: string): number {
+  const v = Number(raw);
+  if (!Number.isFinite(v) || !(v > 1)) throw new UserError(`suggest: --max-ms must be a number > 1 (e.g. 1.4), got ${raw}`);
   return v;
 }
 
@@ -167,7 +178,10 @@ function designLines(r: SuggestResult): string[] {
   for (const s of r.suggestions) {
     const d = s.design;
     if (d === null) continue;
-    if (d.kind === 'shaping') {
+    if (d.kind === 'ms') {
+      const ms = s.evaluation.margins?.maxSensitivity;
+      shaping.push(`  ${s.rule.label}: limit Ms ${num(d.maxMs, 3)}; achieved Ms ${ms === undefined ? '-' : num(ms, 4)}, integral gain kc/ti ${num(s.gains.kc / s.gains.ti, 4)} /s`);
+    } else if (d.kind === 'shaping') {
       const t = d.target;
       const m = s.evaluation.margins;
       const got = m ? `crossover ${num(m.crossoverFrequency, 4)} rad/s, phase margin ${num(m.phaseMarginDeg, 3)}°, GM ${num(m.gainMargin, 3, 'inf')}, Ms ${num(m.maxSensitivity, 3)}` : 'no margins (no linear model)';
@@ -179,7 +193,7 @@ function designLines(r: SuggestResult): string[] {
     }
   }
   const out: string[] = [];
-  if (shaping.length > 0) out.push('', "loop shaping: target and the loop's achieved margins:", ...shaping);
+  if (shaping.length > 0) out.push('', "loop shaping and Ms limit: target and the loop's achieved margins:", ...shaping);
   if (poles.length > 0) out.push('', 'pole placement: target and the slowest closed-loop poles of the sampled loop as it runs (rad/s, s = ln(z)/h):', ...poles);
   return out;
 }
@@ -230,6 +244,7 @@ function designJson(s: Suggestion): unknown {
   const d = s.design;
   if (d === null) return null;
   // Loop shaping: what the loop achieves is the row's margins (crossover, phase margin above).
+  if (d.kind === 'ms') return { kind: d.kind, max_ms: d.maxMs };
   if (d.kind === 'shaping') return { kind: d.kind, target: { crossover: d.target.crossover, phase_margin_deg: d.target.phaseMarginDeg, ti_td_ratio: d.target.tiTdRatio } };
   return {
     kind: d.kind,
@@ -306,7 +321,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
   const cases = sweepCaseCount(plant, { ...sweep, nominal: false }) + 1;
   enforceFileBudget(loaded, options.file, io, {
     noLimits: options.noLimits,
-    runs: (TUNING_RULES.length + (options.poles ? 2 : 0) + (options.shaping ? 2 : 0)) * cases,
+    runs: (TUNING_RULES.length + (options.poles ? 2 : 0) + (options.shaping ? 2 : 0) + (options.maxMs ? 1 : 0)) * cases,
     given: options.samples > 0 ? { runs: `looprig: suggest: --samples ${options.samples}` } : {},
   });
   // Large worst-case sweeps go over threads: the rules are evaluated here without them and each
@@ -318,6 +333,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
     ultimate: options.relay ? 'relay' : 'model',
     poles: options.poles,
     shaping: options.shaping,
+    maxMs: options.maxMs,
     robustness: parallel ? false : sweep,
   });
   if (parallel) {
