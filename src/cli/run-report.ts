@@ -7,6 +7,7 @@ import type { HeadlineFigure, RequirementResult, TrialMetrics } from '../analysi
 import { finiteOrNull } from './json.js';
 import type { PlantSpec } from '../model/types.js';
 import type { TrialResult } from '../sim/types.js';
+import type { TweakGuide } from '../tune/index.js';
 
 /** Everything `run` computed, before printing. */
 export interface RunReport {
@@ -16,6 +17,8 @@ export interface RunReport {
   metrics: TrialMetrics;
   requirements: RequirementResult[];
   warnings: string[];
+  /** The tweak guide (run --tweak), else null. */
+  tweak: TweakGuide | null;
 }
 
 /** One figure of `run --json`'s `metrics`: its name, value (NaN: not reached / not settled / no step), unit. */

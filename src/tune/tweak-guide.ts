@@ -21,6 +21,17 @@ import type { TuningContext } from './tuning-context.js';
 export const TWEAK_FIGURES = ['riseTime', 'overshootPct', 'settlingTime', 'iae', 'peakOutput', 'travel', 'ms'] as const;
 export type TweakFigure = (typeof TWEAK_FIGURES)[number];
 
+/** How a contradiction names each figure. */
+export const TWEAK_FIGURE_WORDS: Record<TweakFigure, string> = {
+  riseTime: 'rise time',
+  overshootPct: 'overshoot',
+  settlingTime: 'settling time',
+  iae: 'IAE',
+  peakOutput: 'peak controller output',
+  travel: 'controller travel',
+  ms: 'Ms',
+};
+
 /** The parameters varied (those the structure uses). */
 export type TweakParameter = 'kc' | 'ti' | 'td' | 'b' | 'n';
 
@@ -110,7 +121,7 @@ export function tweakGuide(ctx: TuningContext, g: GainSet, structure: Controller
       // A change below 1 % of the figure is no direction at all.
       if (Math.abs(d) <= 0.01 * Math.abs(base[f])) continue;
       if (Math.sign(d) !== dir) {
-        contradictions.push(`${f} ${d > 0 ? 'rises' : 'falls'} where the usual chart has it ${dir > 0 ? 'rise' : 'fall'}${saturated ? ' (the actuator is at a limit for part of the trial, which the chart does not know)' : ''}`);
+        contradictions.push(`${TWEAK_FIGURE_WORDS[f]} ${d > 0 ? 'rises' : 'falls'} where the usual chart has it ${dir > 0 ? 'rise' : 'fall'}${saturated ? ' (the actuator is at a limit for part of the trial, which the chart does not know)' : ''}`);
       }
     }
     return { parameter: p, value: g[p], plus, minus, chart, contradictions };

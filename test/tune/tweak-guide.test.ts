@@ -9,7 +9,7 @@
 import { describe, expect, it } from 'vitest';
 import { headlineMetrics, headlineNumber } from '../../src/analysis/index.js';
 import { loadPlant } from '../../src/model/index.js';
-import { simulateGains, tuningContext, tweakGuide } from '../../src/tune/index.js';
+import { simulateGains, tuningContext, tweakGuide, TWEAK_FIGURE_WORDS } from '../../src/tune/index.js';
 import { readFileSync } from 'node:fs';
 
 const HEATER = `name: Heater
@@ -61,9 +61,30 @@ describe('tweak guide', () => {
         const key = f as keyof typeof guide.base;
         const d = row.plus[key] - guide.base[key];
         if (!Number.isFinite(d) || dir === 0 || Math.abs(d) <= 0.01 * Math.abs(guide.base[key])) continue;
-        if (Math.sign(d) !== dir) expect(row.contradictions.some((c) => c.startsWith(f))).toBe(true);
-        else expect(row.contradictions.some((c) => c.startsWith(f))).toBe(false);
+        if (Math.sign(d) !== dir) expect(row.contradictions.some((c) => c.startsWith(TWEAK_FIGURE_WORDS[key]))).toBe(true);
+        else expect(row.contradictions.some((c) => c.startsWith(TWEAK_FIGURE_WORDS[key]))).toBe(false);
       }
     }
+  });
+});
+
+describe('looprig run --tweak', () => {
+  it('--json carries the guide (signed changes per parameter); the text has the table', async () => {
+    const { main } = await import('../../src/cli/index.js');
+    const { fakeIo } = await import('../cli/fake-io.js');
+    const io = fakeIo({ 'heater.yaml': HEATER });
+    expect(await main(['run', 'heater.yaml', '--json', '--tweak'], io)).toBe(0);
+    const g = JSON.parse(io.stdout).tweak_guide;
+    expect(g.parameters.map((p: { parameter: string }) => p.parameter)).toEqual(['kc', 'ti', 'td', 'n', 'b']);
+    const kc = g.parameters[0];
+    expect(kc.plus.change.overshoot_pct).toBeCloseTo(kc.plus.figures.overshoot_pct - g.base.overshoot_pct, 12);
+    expect(kc.plus.change.max_sensitivity).toBeGreaterThan(0);
+    const text = fakeIo({ 'heater.yaml': HEATER });
+    expect(await main(['run', 'heater.yaml', '--tweak'], text)).toBe(0);
+    expect(text.stdout).toMatch(/tweak guide \(each parameter ±10 %/);
+    expect(text.stdout).toMatch(/kc \+10 %\s+↓/);
+    const plain = fakeIo({ 'heater.yaml': HEATER });
+    expect(await main(['run', 'heater.yaml', '--json'], plain)).toBe(0);
+    expect(JSON.parse(plain.stdout).tweak_guide).toBeUndefined();
   });
 });

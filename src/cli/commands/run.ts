@@ -6,7 +6,7 @@ import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { compilePlant, MIN_STEP } from '../../model/index.js';
-import type { PlantSpec, Requirements } from '../../model/types.js';
+import type { ControllerStructure, PlantSpec, Requirements } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
 import { UserError } from '../errors.js';
 import { num, secs, table } from '../format.js';
@@ -20,6 +20,7 @@ import { enforceBudget, LIMIT_OPTIONS } from '../budget-check.js';
 import { simulatePlant } from '../simulate-plant.js';
 import { USAGE } from '../usage.js';
 import { writeOutput } from '../write-output.js';
+import { tuningContext, tweakGuide, TWEAK_FIGURES, TWEAK_STEP, type TweakFigure, type TweakGuide } from '../../tune/index.js';
 
 export type { RunReport } from '../run-report.js';
 
@@ -36,6 +37,8 @@ export interface RunOptions {
   step: number | null;
   /** --no-limits: the resource budget lifted. */
   noLimits: boolean;
+  /** --tweak: add the tweak guide (±10 % on each parameter, simulated). */
+  tweak?: boolean;
 }
 
 /** Parse the arguments of `run`; any mistake is a `UserError` with exit status 2. */
@@ -47,6 +50,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     set: { type: 'string', multiple: true },
     duration: { type: 'string' },
     step: { type: 'string' },
+    tweak: { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
     ...LIMIT_OPTIONS,
   });
@@ -61,6 +65,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     duration: timeOption('run', 'duration', values.duration),
     step: timeOption('run', 'step', values.step, { min: MIN_STEP }),
     noLimits: values['no-limits'] === true,
+    tweak: values.tweak === true,
   };
 }
 
@@ -80,8 +85,10 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
   const dynamics = compilePlant(plant);
   enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
-    // run simulates only: no margins, so a long dead time costs only its (bounded) delay line.
-    frequencyAnalysis: false,
+    // run simulates only: no margins, so a long dead time costs only its (bounded) delay line;
+    // the tweak guide adds its runs (at most 11) and Ms.
+    frequencyAnalysis: options.tweak === true,
+    runs: options.tweak ? 11 : 1,
     given: {
       ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
       ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
@@ -93,8 +100,23 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
   for (const [key, name] of FREQUENCY_REQUIREMENTS) {
     if (plant.loop.requirements[key] !== undefined) warnings.push(`requirement ${name} is not checked by run (frequency domain)`);
   }
-  return { file: options.file, plant, result, metrics, requirements, warnings };
+  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: options.tweak === true ? runTweak(plant, dynamics, warnings) : null };
 }
+
+/** The tweak guide of the file's gains (plain PID laws only; otherwise a warning says why not). */
+function runTweak(plant: PlantSpec, dynamics: ReturnType<typeof compilePlant>, warnings: string[]): TweakGuide | null {
+  const structure = plant.loop.controller.structure;
+  if (plant.loop.controller.extension !== undefined || !PLAIN.has(structure)) {
+    warnings.push(`tweak guide: only for the plain PID law, not the ${structure} structure`);
+    return null;
+  }
+  const ctx = tuningContext(plant, dynamics);
+  const guide = tweakGuide(ctx, plant.loop.controller.gains, structure as ControllerStructure);
+  for (const n of guide.notes) warnings.push(`tweak guide: ${n}`);
+  return guide;
+}
+
+const PLAIN = new Set(['p', 'pi', 'pd', 'pid']);
 
 /** Apply --duration and --step to a loaded plant (a copy; the loaded spec is not changed). */
 function withRunOverrides(plant: PlantSpec, options: RunOptions): PlantSpec {
@@ -126,7 +148,7 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
     writeOutput(io, options.csv, traceCsvChunks(report.result.trace));
   }
   if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
-  io.out(options.json ? toJson(reportJson(report)) : summaryText(report));
+  io.out(options.json ? toJson(reportJson(report)) : summaryText(report) + (report.tweak ? tweakText(report.tweak) : ''));
   return 0;
 }
 
@@ -228,6 +250,64 @@ export function reportJson(report: RunReport): unknown {
       at: r.at,
     })),
     warnings: report.warnings,
+    ...(report.tweak ? { tweak_guide: tweakJson(report.tweak) } : {}),
+  };
+}
+
+const FIGURE_HEAD: Record<TweakFigure, string> = {
+  riseTime: 'rise',
+  overshootPct: 'overshoot',
+  settlingTime: 'settling',
+  iae: 'IAE',
+  peakOutput: 'peak u',
+  travel: 'travel',
+  ms: 'Ms',
+};
+
+/** The tweak guide as a compact table: per parameter and direction, an arrow and the signed change. */
+export function tweakText(g: TweakGuide): string {
+  const cell = (v: number, b: number): string => {
+    const d = v - b;
+    if (!Number.isFinite(d)) return Number.isFinite(b) || Number.isFinite(v) ? (Number.isFinite(v) ? 'now reached' : 'lost') : '-';
+    if (Math.abs(d) <= 1e-3 * Math.max(Math.abs(b), 1e-12)) return '=';
+    return `${d > 0 ? '↑' : '↓'} ${d > 0 ? '+' : ''}${num(d, 3)}`;
+  };
+  const rows: string[][] = [['change', ...TWEAK_FIGURES.map((f) => FIGURE_HEAD[f])]];
+  rows.push(['as is', ...TWEAK_FIGURES.map((f) => (Number.isFinite(g.base[f]) ? num(g.base[f], 4) : '-'))]);
+  for (const r of g.rows) {
+    rows.push([`${r.parameter} +${100 * TWEAK_STEP} %`, ...TWEAK_FIGURES.map((f) => cell(r.plus[f], g.base[f]))]);
+    rows.push([`${r.parameter} -${100 * TWEAK_STEP} %`, ...TWEAK_FIGURES.map((f) => cell(r.minus[f], g.base[f]))]);
+  }
+  const lines = ['', `tweak guide (each parameter ±${100 * TWEAK_STEP} %, the full trial simulated):`, table(rows)];
+  for (const r of g.rows) for (const c of r.contradictions) lines.push(`  ${r.parameter} +${100 * TWEAK_STEP} %: ${c}`);
+  return `${lines.join('\n')}\n`;
+}
+
+const FIGURE_JSON: Record<TweakFigure, string> = {
+  riseTime: 'rise_time',
+  overshootPct: 'overshoot_pct',
+  settlingTime: 'settling_time',
+  iae: 'iae',
+  peakOutput: 'max_abs_output',
+  travel: 'u_total_variation',
+  ms: 'max_sensitivity',
+};
+
+/** The tweak guide in --json: per parameter, the signed change of each figure at +10 % and −10 %. */
+function tweakJson(g: TweakGuide): unknown {
+  const fig = (r: Record<TweakFigure, number>) => Object.fromEntries(TWEAK_FIGURES.map((f) => [FIGURE_JSON[f], finiteOrNull(r[f])]));
+  const change = (r: Record<TweakFigure, number>) => Object.fromEntries(TWEAK_FIGURES.map((f) => [FIGURE_JSON[f], finiteOrNull(r[f] - g.base[f])]));
+  return {
+    step_pct: 100 * TWEAK_STEP,
+    base: fig(g.base),
+    parameters: g.rows.map((r) => ({
+      parameter: r.parameter,
+      value: finiteOrNull(r.value),
+      plus: { figures: fig(r.plus), change: change(r.plus) },
+      minus: { figures: fig(r.minus), change: change(r.minus) },
+      usual_chart_plus: Object.fromEntries(Object.entries(r.chart).map(([f, d]) => [FIGURE_JSON[f as TweakFigure], d])),
+      contradictions: r.contradictions,
+    })),
   };
 }
 
