@@ -14,8 +14,8 @@
  */
 import type { GainSet, SensorSpec } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';
-import { Sensor } from '../sim/index.js';
-import { PidController } from '../control/index.js';
+import { sensorFilterCoefficients } from '../sim/index.js';
+import { pidCoefficients } from '../control/index.js';
 import { eigenvalues, zohDiscretise } from '../num/index.js';
 
 /** One closed-loop pole of the sampled loop. */
@@ -37,8 +37,6 @@ export interface SampledPoles {
   /** Order of the recursion (plant states + delay registers + filter + controller states). */
   order: number;
 }
-
-const NO_NOISE: SensorSpec = { delay: 0, filterTime: 0, noiseStd: 0, resolution: 0, seed: 1, span: null };
 
 /** Poles closer to z = 0 than this are the delay registers' and the dead-beat parts: s = −∞. */
 const ZERO_POLE = 1e-12;
@@ -78,14 +76,9 @@ export function sampledClosedLoopPoles(
     for (let j = 0; j < n; j++) s += phiA[i * n + j] * gb[j];
     g1[i] = s;
   }
-  // The measurement filter's own coefficients, as the engine computes them.
-  const filter = new Sensor({ ...NO_NOISE, delay: 0, filterTime: sensor.filterTime }, h);
-  const a = filter.filterPole;
-  const slope = filter.filterSlope;
-  // The law's coefficients as the engine runs them (control/pid.ts, the one definition).
-  const law = new PidController(g, { sampleTime: h }).pidLaw();
-  if (law === null) throw new RangeError('the PID law has no coefficients');
-  const { ad, bd, bi: ki } = law;
+  // The measurement filter's and the law's coefficients, as the engine computes them.
+  const { pole: a, slope } = sensorFilterCoefficients(sensor.filterTime, h);
+  const { ad, bd, bi: ki } = pidCoefficients(g, h);
 
   // State X(k) = [x(k) (n), u(k−1) … u(k−d−1) (d+1), w(k−1), ym(k−1), I(k), D(k−1)].
   const nu = d + 1;

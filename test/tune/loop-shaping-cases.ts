@@ -32,7 +32,7 @@ export const SHAPING_CASES: ShapingCase[] = [
 export function shapingLoopOf(c: ShapingCase): ShapingLoop {
   const model = tf([c.k], product(...c.lags.map((t) => [t, 1])), c.delay);
   const base: GainSet = { kc: 1, ti: Infinity, td: 0, n: c.n, b: 1, c: 0, antiWindup: 'clamp', trackingTime: NaN };
-  return { response: plantFrequencyResponse(model, { wMax: Math.PI / c.h, extraDelay: c.h / 2 }), sampleTime: c.h, sensor: { delay: 0, filterTime: c.filterTime }, base };
+  return { response: plantFrequencyResponse(model, { wMax: Math.PI / c.h, extraDelay: 0 }), sampleTime: c.h, sensor: { delay: 0, filterTime: c.filterTime }, base };
 }
 
 export function designed(c: ShapingCase): { kc: number; ti: number; td: number } {

@@ -21,7 +21,7 @@ const BASE: GainSet = { kc: 1, ti: Infinity, td: 0, n: 10, b: 1, c: 0, antiWindu
 
 function fopdtLoop(k: number, T: number, L: number): MsLoop {
   const h = L / 100;
-  return { response: plantFrequencyResponse(tf([k], [T, 1], L), { wMax: Math.PI / h, extraDelay: h / 2 }), sampleTime: h, sensor: { delay: 0, filterTime: 0 }, base: BASE };
+  return { response: plantFrequencyResponse(tf([k], [T, 1], L), { wMax: Math.PI / h, extraDelay: 0 }), sampleTime: h, sensor: { delay: 0, filterTime: 0 }, base: BASE };
 }
 
 describe('Ms-constrained PI', () => {
