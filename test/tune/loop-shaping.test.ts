@@ -29,8 +29,9 @@ describe('loop shaping: python-control margin() of the sampled loop is the targe
       expect(g.kc).toBeCloseTo(r.gains.kc, 6);
       expect(g.ti).toBeCloseTo(r.gains.ti, 6);
       expect(g.td).toBeCloseTo(r.gains.td, 6);
-      expect(Math.abs(r.pm - c.target.phaseMarginDeg)).toBeLessThan(1);
-      expect(Math.abs(r.wc / c.target.crossover - 1)).toBeLessThan(0.02);
+      // The issue asks for 1° and 2 %; the design is made on the same sampled loop, so it is far closer.
+      expect(Math.abs(r.pm - c.target.phaseMarginDeg)).toBeLessThan(1e-3);
+      expect(Math.abs(r.wc / c.target.crossover - 1)).toBeLessThan(1e-5);
       if (c.structure === 'pid') expect(g.ti / g.td).toBeCloseTo(c.target.tiTdRatio, 9);
       // And the project's own margins path reports the target (it is the loop the design used).
       const loop = shapingLoopOf(c);
