@@ -26,8 +26,8 @@ export interface MsLoop {
 /** Result: ideal-form PI and the Ms it has, or why there is none. */
 export type MsPi = { kc: number; ti: number; ki: number; ms: number } | { reason: string };
 
-const KC_GRID = 16;
-const BISECT = 24;
+const KC_GRID = 10;
+const BISECT = 18;
 
 /** Ms of PI (kc, ki) on the loop; Infinity when the closed loop is not stable. */
 export function piMs(loop: MsLoop, kc: number, ki: number): number {
@@ -94,7 +94,7 @@ export function msConstrainedPi(loop: MsLoop, target: number, sign: 1 | -1): MsP
   let d = a + r * (b - a);
   let fc = f(c);
   let fd = f(d);
-  for (let i = 0; i < 24; i++) {
+  for (let i = 0; i < 16; i++) {
     if (fc >= fd) {
       b = d;
       d = c;

@@ -1,0 +1,64 @@
+/**
+ * Design-rows benchmark: `suggest` with the pole-placement, loop-shaping and Ms-constrained PI
+ * rows on every bundled plant (target < 300 ms each), against `suggest` without them in the same
+ * run; and the tweak guide on the surge tank (target < 150 ms) against the bare simulations it
+ * holds (one runTrial of the file's controller times the number of variants).
+ *
+ * Run: `npx tsx test/bench/design.bench.ts` or `npm run bench -- design`.
+ */
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { buildController } from '../../src/control/index.js';
+import { runTrial } from '../../src/sim/index.js';
+import { suggestGains, tuningContext, tweakGuide } from '../../src/tune/index.js';
+import type { SuggestOptions } from '../../src/tune/index.js';
+import { bundledPlants, load, PLANTS_DIR } from './bundled-plants.js';
+import { median } from './median.js';
+
+function timeIt(f: () => void, repeats: number): number {
+  f();
+  const times: number[] = [];
+  for (let i = 0; i < repeats; i++) {
+    const t0 = performance.now();
+    f();
+    times.push(performance.now() - t0);
+  }
+  return median(times);
+}
+
+export async function run(): Promise<void> {
+  console.log('suggest with the design rows on every bundled plant (target < 300 ms each)');
+  for (const { file, spec } of bundledPlants()) {
+    const ctx = tuningContext(spec);
+    // Targets scaled to each plant: the pair at 1/(5 tau1), the crossover where the SIMC row puts it.
+    const tau = ctx.linear ? Math.max(spec.loop.sampleTime * 20, 1) : 1;
+    const design: SuggestOptions = {
+      context: ctx,
+      robustness: false,
+      poles: { wn: 0.2 / tau, zeta: 0.7, alpha: 1 },
+      shaping: { crossover: 0.1 / tau, phaseMarginDeg: 55, tiTdRatio: 4 },
+      maxMs: 1.4,
+    };
+    const withRows = timeIt(() => suggestGains(spec, design), 3);
+    const without = timeIt(() => suggestGains(spec, { context: ctx, robustness: false }), 3);
+    console.log(
+      `  ${file.padEnd(36)} ${withRows.toFixed(0).padStart(5)} ms  ${withRows < 300 ? 'ok  ' : 'SLOW'}  without the design rows ${without.toFixed(0)} ms (ratio ${(withRows / without).toFixed(2)})`,
+    );
+  }
+  const tank = load(join(PLANTS_DIR, 'surge-tank.yaml'));
+  const ctx = tuningContext(tank);
+  const g = tank.loop.controller.gains;
+  let variants = 0;
+  const guideMs = timeIt(() => {
+    variants = 1 + 2 * tweakGuide(ctx, g, 'pi').rows.length;
+  }, 5);
+  const bare = timeIt(() => {
+    runTrial(ctx.dynamics, buildController(tank.loop.controller, tank.loop.sampleTime), ctx.loop, ctx.trial);
+  }, 5);
+  console.log(
+    `tweak guide on the surge tank: ${guideMs.toFixed(0)} ms ${guideMs < 150 ? 'ok' : 'SLOW'} (target < 150 ms) for ${variants} simulations; ` +
+      `${variants} bare runTrial ${(variants * bare).toFixed(0)} ms (ratio ${(guideMs / (variants * bare)).toFixed(2)})`,
+  );
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();
