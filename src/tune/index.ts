@@ -39,7 +39,7 @@ export { ruleGainSet, valuesInForm, controllerWithGains, frameWithGains } from '
 export { suggestGains, ruleInputsOf, loopElementsOf } from './suggest.js';
 export type { SuggestOptions, SuggestResult, Suggestion, DesignOutcome, PoleOutcome } from './suggest.js';
 export { poleRules, MAX_POLE_TIMES_SAMPLE } from './pole-rules.js';
-export { poleplacementPi, poleplacementPid, poleplacementIntegratingPi } from './rules/pole-placement.js';
+export { poleplacementPi, poleplacementPid, poleplacementIntegratingPi, dominantPolePi } from './rules/pole-placement.js';
 export type { PoleTarget, Placement } from './rules/pole-placement.js';
 export { shapePi, shapePid, shapingRules } from './loop-shaping.js';
 export type { ShapingTarget, ShapingLoop, Shaped } from './loop-shaping.js';

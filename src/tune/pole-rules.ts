@@ -5,7 +5,7 @@
  */
 import type { RuleInputs, TuningRule } from './rule-table.js';
 import type { RuleGains } from './low-order.js';
-import { poleplacementIntegratingPi, poleplacementPi, poleplacementPid, type Placement, type PoleTarget } from './rules/pole-placement.js';
+import { dominantPolePi, poleplacementIntegratingPi, poleplacementPi, poleplacementPid, type Placement, type PoleTarget } from './rules/pole-placement.js';
 
 const SOURCE = 'Åström & Hägglund, Advanced PID Control (2006), sec. 6.2';
 
@@ -28,6 +28,7 @@ export function targetText(t: PoleTarget, withAlpha: boolean): string {
 
 function placed(p: Placement, t: PoleTarget, withAlpha: boolean): RuleGains | string {
   if (!('reason' in p)) return p;
+  if (Number.isNaN(p.minWn)) return `target ${targetText(t, withAlpha)} cannot be placed: ${p.reason}`;
   // Just above the limit: the gains are then small and positive.
   const ok = p.minWn * 1.05;
   return `target ${targetText(t, withAlpha)} cannot be placed: ${p.reason}; wn >= ${fmt(ok)} rad/s (zeta ${fmt(t.zeta)}${withAlpha ? `, alpha ${fmt(t.alpha)}` : ''}) can`;
@@ -53,6 +54,8 @@ export function poleRules(target: PoleTarget, h: number): TuningRule[] {
         if (fast !== null) return fast;
         if (i.integrating !== null) return poleplacementIntegratingPi(i.integrating.kv, target);
         if (i.fopdt === null) return 'needs a first-order or integrating model';
+        // With a delay and a complex pair: the dominant-pole design keeps the delay.
+        if (i.fopdt.theta > 0 && target.zeta < 1) return placed(dominantPolePi(i.fopdt.k, i.fopdt.tau1, i.fopdt.theta, target), target, false);
         return placed(poleplacementPi(i.fopdt.k, i.fopdt.tau1, target), target, false);
       },
     },
@@ -78,8 +81,9 @@ export function poleRules(target: PoleTarget, h: number): TuningRule[] {
  * and the achieved poles of the sampled loop show where the poles went.
  */
 export function poleDelayNote(i: RuleInputs, t: PoleTarget): string | null {
+  // The first-order PI keeps its delay (dominant-pole design) when the pair is complex.
   const used: [string, number | undefined][] = [
-    ['PI', i.integrating?.theta ?? i.fopdt?.theta],
+    ['PI', i.integrating?.theta ?? (t.zeta < 1 ? undefined : i.fopdt?.theta)],
     ['PID', i.sopdt?.theta],
   ];
   const parts = used

@@ -15,7 +15,9 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { poleplacementIntegratingPi, poleplacementPi, poleplacementPid, type PoleTarget } from '../../src/tune/rules/pole-placement.js';
+import { dominantPolePi, poleplacementIntegratingPi, poleplacementPi, poleplacementPid, type PoleTarget } from '../../src/tune/rules/pole-placement.js';
+import { sampledClosedLoopPoles } from '../../src/analysis/index.js';
+import { tf } from './tf.js';
 import { expectClose } from '../helpers/expect-close.js';
 
 interface ContinuousCase extends PoleTarget {
@@ -81,5 +83,35 @@ describe('pole placement: gains and python-control closed-loop poles', () => {
     const ok2 = poleplacementPid(1, 8, 3, { wn: d.minWn * 1.01, zeta: 0.5, alpha: 0.5 });
     expect('reason' in ok2).toBe(false);
     if (!('reason' in ok2)) expect(ok2.td).toBeGreaterThan(0);
+  });
+
+  // Dominant-pole PI on a FOPDT (Persson & Åström 1992, from memory): the designed pair must be a
+  // pair of closed-loop roots of the delayed loop. Checked on the sampled loop (whose poles are
+  // python-control-checked in test/analysis/sampled-poles.test.ts) at h = theta/100, where the hold
+  // adds only h/2 of delay: the nearest pole to the target within 1.5 % (dominance of the pair is
+  // not promised: the other roots are what the sampled loop reports).
+  for (const [k, tau1, theta, wn, zeta] of [
+    [1, 10, 2, 0.25, 0.7],
+    [-2, 5, 1, 0.4, 0.5],
+  ]) {
+    it(`dominant-pole PI on ${k} e^(-${theta} s)/(${tau1} s + 1), wn ${wn}, zeta ${zeta}: the pair is a pair of roots of the sampled loop`, () => {
+      const g = dominantPolePi(k, tau1, theta, { wn, zeta, alpha: 1 });
+      if ('reason' in g) throw new Error(g.reason);
+      expect(Math.sign(g.kc)).toBe(Math.sign(k));
+      const h = theta / 100;
+      const r = sampledClosedLoopPoles(tf([k], [tau1, 1], theta), { kc: g.kc, ti: g.ti, td: 0, n: 10, b: 1, c: 1, antiWindup: 'none', trackingTime: NaN }, h, { delay: 0, filterTime: 0 });
+      const re = -zeta * wn;
+      const im = wn * Math.sqrt(1 - zeta * zeta);
+      const d = Math.min(...r.poles.filter((p) => Number.isFinite(p.re)).map((p) => Math.hypot(p.re - re, p.im - im)));
+      expect(d / wn).toBeLessThan(0.015);
+      expect(r.stable).toBe(true);
+    });
+  }
+
+  it('dominant-pole PI refuses a pair the delayed loop cannot have with positive gains and names one that works', () => {
+    const r = dominantPolePi(1, 10, 2, { wn: 3, zeta: 0.7, alpha: 1 });
+    expect('reason' in r && r.reason).toMatch(/wn = [\d.]+ rad\/s \(zeta 0.7\) can/);
+    const wn = Number(/wn = ([\d.]+)/.exec('reason' in r ? r.reason : '')![1]);
+    expect('reason' in dominantPolePi(1, 10, 2, { wn, zeta: 0.7, alpha: 1 })).toBe(false);
   });
 });

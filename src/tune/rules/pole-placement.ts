@@ -13,6 +13,12 @@
  *   kc = ((1 + 2 alpha zeta) wn² − a2)/b,  ti = ((1 + 2 alpha zeta) wn² − a2)/(alpha wn³),
  *   td = ((alpha + 2 zeta) wn − a1)/((1 + 2 alpha zeta) wn² − a2);
  *   placeable when (1 + 2 alpha zeta) wn² > a2 (kc, ti) and (alpha + 2 zeta) wn >= a1 (td >= 0).
+ * Dominant-pole PI on k e^(−theta s)/(tau1 s + 1) (Persson & Åström, "Dominant pole design — a
+ * unified view of PID controller tuning", IFAC 1992; from memory): the pair s0, conj(s0),
+ * s0 = −zeta wn + j wn √(1 − zeta²), is made a pair of roots of 1 + C P = 0 with the delay kept:
+ * C(s0) = kc + ki/s0 = −1/P(s0) = R is two real equations, linear in kc and ki = kc/ti:
+ *   with 1/s0 = a + j b (a = −zeta/wn, b = −√(1 − zeta²)/wn):  ki = Im R / b,  kc = Re R − a ki.
+ * The other roots of the delayed loop are not placed: they are what the sampled loop shows.
  */
 import { requireGain, requirePositive, type RuleGains } from '../low-order.js';
 
@@ -26,8 +32,52 @@ export interface PoleTarget {
   alpha: number;
 }
 
-/** Gains, or why the target cannot be placed and the slowest target that can (rad/s). */
+/**
+ * Gains, or why the target cannot be placed and the slowest target that can (rad/s; NaN when the
+ * reason names the target that works itself).
+ */
 export type Placement = RuleGains | { reason: string; minWn: number };
+
+/** Dominant-pole PI on the FOPDT k e^(−theta s)/(tau1 s + 1) (file comment); zeta < 1. */
+export function dominantPolePi(k: number, tau1: number, theta: number, t: PoleTarget): Placement {
+  requireGain('k', k);
+  requirePositive('tau1', tau1);
+  requirePositive('theta', theta, true);
+  checkTarget(t);
+  if (!(t.zeta < 1)) return { reason: 'the dominant-pole design places a complex pair: zeta must be below 1', minWn: NaN };
+  const solve = (wn: number): RuleGains | null => {
+    const sr = -t.zeta * wn;
+    const si = wn * Math.sqrt(1 - t.zeta * t.zeta);
+    // R = −(tau1 s0 + 1) e^(theta s0)/k
+    const er = Math.exp(theta * sr);
+    const ec = er * Math.cos(theta * si);
+    const es = er * Math.sin(theta * si);
+    const ar = tau1 * sr + 1;
+    const ai = tau1 * si;
+    const rr = -(ar * ec - ai * es) / k;
+    const ri = -(ar * es + ai * ec) / k;
+    const a = -t.zeta / wn;
+    const b = -Math.sqrt(1 - t.zeta * t.zeta) / wn;
+    const ki = ri / b;
+    const kc = rr - a * ki;
+    if (!(kc * k > 0) || !(ki * k > 0)) return null;
+    return { form: 'ideal', kc, ti: kc / ki, td: 0 };
+  };
+  const g = solve(t.wn);
+  if (g !== null) return g;
+  // The nearest wn (on a log scale, a factor 100 either way) that gives kc and ti of the plant's sign.
+  let best = NaN;
+  for (let i = 1; i <= 400 && Number.isNaN(best); i++) {
+    for (const f of [Math.pow(100, i / 400), Math.pow(100, -i / 400)]) {
+      if (solve(t.wn * f) !== null) {
+        best = t.wn * f;
+        break;
+      }
+    }
+  }
+  const hint = Number.isNaN(best) ? 'no wn within a factor 100 can at this zeta' : `wn = ${Number(best.toPrecision(3))} rad/s (zeta ${t.zeta}) can`;
+  return { reason: `with the delay kept, kc or ti would be negative or zero; ${hint}`, minWn: NaN };
+}
 
 function checkTarget(t: PoleTarget): void {
   requirePositive('wn', t.wn);
