@@ -1,5 +1,5 @@
 /**
- * `looprig suggest FILE --crossover W --phase-margin DEG` (and `--max-ms M`): the loop-shaping rows go through the
+ * `looprig suggest FILE --crossover W --phase-margin DEG` (and `--ms M`): the loop-shaping rows go through the
  * suggest machinery (simulated on the full plant) and report the loop's achieved margins from the
  * one margins path; the margins' agreement with python-control is in loop-shaping.test.ts.
  */
@@ -60,15 +60,15 @@ describe('looprig suggest --crossover --phase-margin', () => {
     }
   });
 
-  it('--max-ms adds the Ms-constrained PI row, at the limit on the row Ms; --max-ms 1 exits 2', async () => {
+  it('--ms adds the Ms-constrained PI row, at the limit on the row Ms; --ms 1 exits 2', async () => {
     const io = fakeIo({ [FILE]: TEXT });
-    expect(await main(['suggest', FILE, '--json', '--max-ms', '1.4'], io)).toBe(0);
+    expect(await main(['suggest', FILE, '--json', '--ms', '1.4'], io)).toBe(0);
     const row = JSON.parse(io.stdout).suggestions.find((s: { rule: string }) => s.rule === 'ms-constrained-pi');
     expect(row.label).toBe('Ms-constrained PI');
     expect(Math.abs(row.max_sensitivity / 1.4 - 1)).toBeLessThan(0.01);
     expect(row.design).toEqual({ kind: 'ms', max_ms: 1.4 });
     const bad = fakeIo({ [FILE]: TEXT });
-    expect(await main(['suggest', FILE, '--max-ms', '1'], bad)).toBe(2);
-    expect(bad.stderr).toMatch(/--max-ms must be a number > 1/);
+    expect(await main(['suggest', FILE, '--ms', '1'], bad)).toBe(2);
+    expect(bad.stderr).toMatch(/--ms must be a number > 1/);
   });
 });

@@ -36,7 +36,7 @@ Options:
                  margin (PID with Ti = R·Td), with the achieved margins of the loop
   --ti-td-ratio R
                  Ti/Td of the loop-shaping PID (default 4)
-  --max-ms M     add the Ms-constrained PI row: the largest integral gain with Ms <= M (M > 1)
+  --ms M         add the Ms-constrained PI row: the largest integral gain with Ms <= M (M > 1)
   --relay        take the ultimate point from a relay test in the simulation instead of the model
   --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
   --jobs N       threads for the worst-case sweeps when they have ${MIN_PARALLEL_CASES} or more cases (default:
@@ -68,7 +68,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     crossover: { type: 'string' },
     'phase-margin': { type: 'string' },
     'ti-td-ratio': { type: 'string' },
-    'max-ms': { type: 'string' },
+    ms: { type: 'string' },
     samples: { type: 'string' },
     jobs: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
@@ -86,7 +86,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     relay: values.relay === true,
     poles: values.poles === undefined ? null : parsePoles(values.poles),
     shaping: parseShaping(values.crossover, values['phase-margin'], values['ti-td-ratio']),
-    maxMs: values['max-ms'] === undefined ? null : parseMaxMs(values['max-ms']),
+    maxMs: values.ms === undefined ? null : parseMaxMs(values.ms),
     samples,
     jobs,
     noLimits: values['no-limits'] === true,
@@ -114,10 +114,10 @@ function positive(flag: string, raw: string, max = Infinity): number {
   return v;
 }
 
-/** --max-ms M: a sensitivity peak limit, a number > 1. */
+/** --ms M: a sensitivity peak limit, a number > 1. */
 function parseMaxMs(raw: string): number {
   const v = Number(raw);
-  if (!Number.isFinite(v) || !(v > 1)) throw new UserError(`suggest: --max-ms must be a number > 1 (e.g. 1.4), got ${raw}`);
+  if (!Number.isFinite(v) || !(v > 1)) throw new UserError(`suggest: --ms must be a number > 1 (e.g. 1.4), got ${raw}`);
   return v;
 }
 
