@@ -12,6 +12,7 @@
 import { MATH_HELPERS } from '../model/index.js';
 import { Rng } from '../num/index.js';
 import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
+import { lagCoefficients, valveOf } from './actuator.js';
 import { loopStep } from './choose-step.js';
 import { delayInSteps, usableDelay } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
@@ -265,6 +266,8 @@ function prepare(
   const numbers = new Float64Array(widths.p);
   const a = loop.actuator;
   const s = loop.sensor;
+  const valve = valveOf(a);
+  const lagC = lagCoefficients(a.lag ?? 0, h);
   const values: Record<(typeof BATCH_FIELDS)[number], number> = {
     kc: law.kc,
     b: law.b,
@@ -286,6 +289,14 @@ function prepare(
     inDelay: inSteps,
     outDelay: outSteps,
     ng: 0,
+    rlo: s.range ? s.range[0] : -Infinity,
+    rhi: s.range ? s.range[1] : Infinity,
+    fs: valve.fs,
+    fd: valve.fd,
+    la: lagC.la,
+    lm: lagC.lm,
+    aspan: valve.aspan,
+    rgl: valve.rgl,
   };
   BATCH_FIELDS.forEach((f, i) => {
     numbers[i] = values[f];
@@ -297,7 +308,7 @@ function prepare(
   }
   numbers.set(lifted.values, nf + 2 * np);
   const state = new Float64Array(widths.z);
-  for (const f of ['start', 'end', 'uPlant'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
+  for (const f of ['start', 'end', 'uPlant', 'xs', 'xv'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
   state.set(start.x, BATCH_STATE.length);
   const shape = {
     inputDelay: plant.inputDelay > 0,
@@ -306,6 +317,8 @@ function prepare(
     noisy: s.noiseStd > 0,
     quantised: s.resolution > 0,
     rateLimited: a.rateLimit !== Infinity,
+    ranged: s.range !== undefined,
+    valve: valve.shape,
     antiWindup: law.antiWindup,
   };
   const key = [

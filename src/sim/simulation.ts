@@ -191,9 +191,9 @@ export class Simulation {
     return this.x;
   }
 
-  /** Actuator position reached at the end of the last sample. */
+  /** Actuator (stem) position at the end of the last sample: after stiction/backlash when present. */
   get actuatorOutput(): number {
-    return this.actuator.end;
+    return this.actuator.stem;
   }
 
   /**
@@ -360,7 +360,7 @@ export class Simulation {
     const act = this.actuator;
     act.command(uc, ts);
     if (auto) this.controller.track(act.end);
-    this.trace.write(t, r, y, ym, uc, act.end, act.saturated, this.d);
+    this.trace.write(t, r, y, ym, uc, act.stem, act.saturated, this.d);
     if (!integrate) return;
 
     const n = this.substeps;
@@ -369,8 +369,8 @@ export class Simulation {
     const inLine = this.inputLine;
     const outSeq = this.sensorLine !== null;
     if (inLine === null && !act.ramping) {
-      this.stepper(false, outSeq)(x, this.p, this.d, act.end, this.us, 0, this.ys, 0, t, h, n);
-      this.uPlant = act.end;
+      this.stepper(false, outSeq)(x, this.p, this.d, act.stem, this.us, 0, this.ys, 0, t, h, n);
+      this.uPlant = act.stem;
     } else {
       const us = this.us;
       act.fillSteps(us, 0, n, h);
