@@ -8,6 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildLoop } from '../../src/loop/index.js';
+import { readFileSync } from 'node:fs';
 import { loadPlant } from '../../src/model/index.js';
 import { runTrial, type TrialResult } from '../../src/sim/index.js';
 
@@ -74,5 +75,21 @@ describe('stiction findings (Choudhury, Thornhill & Shah 2005)', () => {
   it('backlash alone (dead band, no slip jump) + PI on a self-regulating plant: no sustained cycle', () => {
     const t = tail(run(SELF, PI, '  backlash: 3'));
     expect(t.pp).toBeLessThan(0.05);
+  });
+});
+
+describe('the bundled sticky flow valve (plants/sticky-flow-valve.yaml)', () => {
+  const text = readFileSync(new URL('../../plants/sticky-flow-valve.yaml', import.meta.url), 'utf8').replace('noise_std: 0.05, ', '');
+  const once = (t: string): TrialResult => {
+    const p = loadPlant(t, 'sticky-flow-valve.yaml').plant;
+    if (!p) throw new Error('the bundled plant does not load');
+    const loop = buildLoop(p);
+    return runTrial(loop.dynamics, loop.controller(), loop.config, loop.trial);
+  };
+  it("its file gains cycle on its valve, and settle on a clean one", () => {
+    const sticky = tail(once(text));
+    expect(sticky.pp).toBeGreaterThan(0.2);
+    expect(sticky.crossings).toBeGreaterThanOrEqual(3);
+    expect(tail(once(text.replace('stiction: { static: 1.5, dynamic: 0.7 }', 'backlash: 0'))).pp).toBeLessThan(1e-6);
   });
 });
