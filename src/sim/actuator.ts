@@ -64,8 +64,8 @@ export class Actuator {
   private readonly commandLaw: (s: Actuator, uc: number, ts: number) => void;
   /** Stiction on the command (element-laws.ts), null without a band. */
   private readonly stickLaw: ((s: Actuator) => void) | null;
-  /** Lag and characteristic of one integration step (element-laws.ts), null when neither. */
-  private readonly stepLaw: ((s: Actuator, u: number, la: number, lm: number) => number) | null;
+  /** Lag and characteristic over the steps of a sample (element-laws.ts), null when neither. */
+  private readonly stepLaw: ((s: Actuator, out: Float64Array, off: number, n: number, la: number, lm: number) => void) | null;
   private readonly fs: number;
   private readonly fd: number;
   private readonly aspan: number;
@@ -97,7 +97,11 @@ export class Actuator {
     this.stepLaw =
       stepText === ''
         ? null
-        : compileElementLaw(['s', 'u', 'la', 'lm'], `const amin = s.min, aspan = s.aspan, rgl = s.rgl; let xv = s.xv;\n${stepText}\ns.xv = xv; return u;`);
+        : compileElementLaw(
+            ['s', 'out', 'off', 'n', 'la', 'lm'],
+            `const amin = s.min, aspan = s.aspan, rgl = s.rgl; let xv = s.xv;\n` +
+              `for (let i = 0; i < n; i++) { let u = out[off + i];\n${stepText}\nout[off + i] = u; }\ns.xv = xv;`,
+          );
     this.commandLaw = compileElementLaw(
       ['s', 'uc', 'ts'],
       'const amin = s.min, amax = s.max, rate = s.rateLimit;\n' +
@@ -147,6 +151,6 @@ export class Actuator {
       this.la = c.la;
       this.lm = c.lm;
     }
-    for (let i = 0; i < n; i++) out[off + i] = law(this, out[off + i], this.la, this.lm);
+    law(this, out, off, n, this.la, this.lm);
   }
 }
