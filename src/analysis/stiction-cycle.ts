@@ -14,7 +14,7 @@
  * as a continuous factor).
  */
 import type { ActuatorSpec, GainSet } from '../model/types.js';
-import { Actuator } from '../sim/index.js';
+import { Actuator, valveInput } from '../sim/index.js';
 import { wrapAngle, type PlantFrequencyResponse } from './freq-response.js';
 import { loopPath, type LoopSensor } from './loop-path.js';
 import { pidLawResponse } from './pid-law-response.js';
@@ -208,21 +208,12 @@ export function predictLimitCycle(make: ElementFactory, band: number, loop: Cycl
 
 /**
  * Local slope d(plant input)/d(travel) of the actuator's valve characteristic at `travel` (1 for a
- * linear one), by a central difference on the engine's own law (sim's Actuator, lag left out).
+ * linear one), by a central difference on the engine's own law (sim's valveInput).
  */
 export function characteristicSlope(spec: ActuatorSpec, travel: number): number {
-  const ch = spec.characteristic ?? 'linear';
-  if (ch === 'linear' || !Number.isFinite(spec.max - spec.min)) return 1;
-  const bare: ActuatorSpec = { min: spec.min, max: spec.max, rateLimit: Infinity, characteristic: ch, rangeability: spec.rangeability };
+  if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return 1;
   const d = 1e-6 * (spec.max - spec.min);
   const lo = Math.max(spec.min, travel - d);
   const hi = Math.min(spec.max, travel + d);
-  const out = new Float64Array(1);
-  const at = (u: number): number => {
-    const a = new Actuator(bare, u);
-    a.command(u, 1);
-    a.fillSteps(out, 0, 1, 1);
-    return out[0];
-  };
-  return (at(hi) - at(lo)) / (hi - lo);
+  return (valveInput(spec, hi) - valveInput(spec, lo)) / (hi - lo);
 }

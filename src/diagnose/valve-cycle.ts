@@ -6,6 +6,7 @@
 import { characteristicSlope, predictLimitCycle, stictionElement, valveBand } from '../analysis/index.js';
 import type { PreparedPoint } from '../loop/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
+import { valveTravel } from '../sim/index.js';
 import type { Flag } from './types.js';
 
 function fmt(v: number, digits = 3): string {
@@ -18,7 +19,8 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
   if (band === null) return null;
   const at = points.find((p) => p.response !== null);
   if (at === undefined || at.response === null) return null;
-  const travel = at.point.input ?? 0.5 * (spec.actuator.min + spec.actuator.max);
+  // The point's steady input is the plant's; the characteristic's slope is taken at the travel giving it.
+  const travel = at.point.input !== null ? valveTravel(spec.actuator, at.point.input) : 0.5 * (spec.actuator.min + spec.actuator.max);
   const cycle = predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, {
     plant: at.response,
     gains,

@@ -42,6 +42,37 @@ export function valveOf(spec: ActuatorSpec): { shape: ValveShape; fs: number; fd
   };
 }
 
+/**
+ * The plant input a valve at rest at `travel` delivers: its characteristic (lag settled, no band),
+ * from the engine's own law. Identity for a linear characteristic.
+ */
+export function valveInput(spec: ActuatorSpec, travel: number): number {
+  if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return travel;
+  const a = new Actuator({ min: spec.min, max: spec.max, rateLimit: Infinity, characteristic: spec.characteristic, rangeability: spec.rangeability }, travel);
+  a.command(travel, 1);
+  const out = new Float64Array(1);
+  a.fillSteps(out, 0, 1, 1);
+  return out[0];
+}
+
+/**
+ * The travel at which the valve delivers plant input `input` (the inverse of `valveInput`, by
+ * bisection on the monotone characteristic); the nearest end of travel when out of its reach.
+ */
+export function valveTravel(spec: ActuatorSpec, input: number): number {
+  if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return input;
+  let lo = spec.min;
+  let hi = spec.max;
+  if (!(input > valveInput(spec, lo))) return lo;
+  if (!(input < valveInput(spec, hi))) return hi;
+  for (let i = 0; i < 80 && hi - lo > 1e-15 * (spec.max - spec.min); i++) {
+    const mid = 0.5 * (lo + hi);
+    if (valveInput(spec, mid) < input) lo = mid;
+    else hi = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
 export class Actuator {
   readonly min: number;
   readonly max: number;

@@ -136,3 +136,23 @@ describe('transmitter range', () => {
     expect(flat).toBeGreaterThan(tr.length / 2);
   });
 });
+
+describe('a loop with an equal-percentage valve starts settled', () => {
+  it('the start travel delivers the plant input that holds the setpoint; nothing moves before the first event', async () => {
+    const { loadPlant } = await import('../../src/model/index.js');
+    const { buildLoop } = await import('../../src/loop/index.js');
+    const text = `name: eq
+model: { type: first_order, gain: 2, time_constant: 5 s }
+actuator: { min: 0, max: 100, characteristic: equal_percentage, rangeability: 30, lag: 1 s }
+loop:
+  sample_time: 0.5 s
+  controller: { kc: 0.5, ti: 5 s }
+  trial: { duration: 20 s, initial_setpoint: 60, events: [{ at: 15 s, setpoint: 70 }] }
+`;
+    const loop = buildLoop(loadPlant(text, 'eq.yaml').plant!);
+    // Plant input 30 holds 60; travel f with 100·30^(f−1) = 30: f = 1 + ln 0.3/ln 30.
+    expect(loop.start.u).toBeCloseTo(100 * (1 + Math.log(0.3) / Math.log(30)), 9);
+    const res = runTrial(loop.dynamics, loop.controller(), loop.config, loop.trial);
+    for (let k = 0; k < 29; k++) expect(Math.abs(res.trace.y[k] - 60), `row ${k}`).toBeLessThan(1e-9);
+  });
+});
