@@ -18,8 +18,8 @@ describe('outputSeries', () => {
     const command = s.filter((x) => x.tag === 'sp');
     const stem = s.filter((x) => x.tag === 'output');
     expect(command).toHaveLength(2);
-    expect(Math.max(...command[1].values)).toBe(16);
-    expect(Math.max(...stem[1].values)).toBe(15);
+    expect(Math.max(...Array.from(command[1].values))).toBe(16);
+    expect(Math.max(...Array.from(stem[1].values))).toBe(15);
   });
   it('draws only the actuator output on a clean valve', () => {
     expect(outputSeries(trace(), null, 0, 3, 4, { min: 0, max: 100 }).some((x) => x.tag === 'sp')).toBe(false);
