@@ -3,10 +3,9 @@
  * sustains with the file's gains, predicted by the describing-function method (analysis'
  * stiction-cycle.ts) at the first operating point of the trial, with advice on what helps.
  */
-import { characteristicSlope, predictLimitCycle, stictionElement, valveBand } from '../analysis/index.js';
+import { predictLimitCycle, stictionElement, valveBand } from '../analysis/index.js';
 import type { PreparedPoint } from '../loop/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
-import { valveTravel } from '../sim/index.js';
 import type { Flag } from './types.js';
 
 function fmt(v: number, digits = 3): string {
@@ -19,15 +18,14 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
   if (band === null) return null;
   const at = points.find((p) => p.response !== null);
   if (at === undefined || at.response === null) return null;
-  // The point's steady input is the plant's; the characteristic's slope is taken at the travel giving it.
-  const travel = at.point.input !== null ? valveTravel(spec.actuator, at.point.input) : 0.5 * (spec.actuator.min + spec.actuator.max);
   const cycle = predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, {
     plant: at.response,
     gains,
     sampleTime: spec.loop.sampleTime,
     sensor: spec.sensor,
-    lag: spec.actuator.lag ?? 0,
-    slope: characteristicSlope(spec.actuator, travel),
+    // The point's linear model already has the valve's lag and local slope (loop/valve-model.ts).
+    lag: 0,
+    slope: 1,
   });
   if (cycle === null) return null;
   const isBacklash = band.static === band.dynamic;
