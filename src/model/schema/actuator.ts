@@ -110,3 +110,18 @@ function readValve(r: Reader, f: Fields, out: ActuatorSpec): void {
   const lag = numberField(r, f, s, 'lag', undefined);
   if (lag !== undefined) out.lag = lag;
 }
+
+/**
+ * The valve's bands as names the `uncertainty:` section may give ranges for (dotted, so no ode
+ * parameter can take them): `stiction.static`, `stiction.dynamic` with stiction, `backlash.width`
+ * with backlash. Value: whether it is a time (never).
+ */
+export function valveUncertain(actuator: ActuatorSpec): Record<string, boolean> {
+  const out: Record<string, boolean> = {};
+  if (actuator.stiction !== undefined) {
+    out['stiction.static'] = false;
+    out['stiction.dynamic'] = false;
+  }
+  if (actuator.backlash !== undefined) out['backlash.width'] = false;
+  return out;
+}
