@@ -5,6 +5,7 @@
  * Never throws for a bad plant: what could not be analysed becomes a flag or a note.
  */
 import {
+  characteristicSlope,
   describeMode,
   findEquilibrium,
   fitFopdt,
@@ -25,11 +26,12 @@ import {
 } from '../analysis/index.js';
 import { applyStructure } from '../control/index.js';
 import { compilePlant } from '../model/index.js';
-import type { GainSet, PlantSpec, TrialSpec } from '../model/types.js';
+import type { ActuatorSpec, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
 import { buildLoop, describePoint, operatingPoints, pointFigures, preparePoints, worstMargins, type PreparedPoint } from '../loop/index.js';
 import { runTrial } from '../sim/index.js';
 import type { LinearModel, PlantDynamics } from '../sim/types.js';
 import { controllerNoise } from './noise.js';
+import { flagValveCycle } from './valve-cycle.js';
 import { THRESHOLDS } from './thresholds.js';
 import type { Diagnosis, Flag, OperatingPoint, TrialFindings } from './types.js';
 
@@ -291,10 +293,14 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
       });
     }
   }
-  if (spec.model.type === 'ode' && Number.isFinite(range)) flagNonlinear(flags, dyn, uMin, range, eqOptions);
+  // A valve characteristic other than linear makes any model nonlinear between controller and plant.
+  const curved = (spec.actuator.characteristic ?? 'linear') !== 'linear';
+  if ((spec.model.type === 'ode' || curved) && Number.isFinite(range)) flagNonlinear(flags, dyn, uMin, range, eqOptions, spec.actuator);
   flagSampling(flags, h, d.margins, d.fopdt, gains);
   flagNoise(flags, gains, h, sensor.noiseStd, range);
   flagSetpoints(flags, spec, dyn, target, eqOptions);
+  const valveCycle = flagValveCycle(spec, d.points, gains);
+  if (valveCycle !== null) flags.push(valveCycle);
 
   if (d.margins !== null && d.margins.closedLoopStable === false) {
     flags.push({
@@ -459,8 +465,12 @@ function flagDeadTime(
   });
 }
 
-/** Gain and slowest time constant of the linearisation at steady states with u at 10, 50 and 90 % of its range. */
-function flagNonlinear(flags: Flag[], dyn: PlantDynamics, uMin: number, range: number, eqOptions: { uMin: number; uMax: number }): void {
+/**
+ * Gain and slowest time constant of the linearisation at steady states with u at 10, 50 and 90 % of
+ * its range; the gain includes the valve characteristic's local slope there (the plant sees the
+ * flow, the controller moves the travel).
+ */
+function flagNonlinear(flags: Flag[], dyn: PlantDynamics, uMin: number, range: number, eqOptions: { uMin: number; uMax: number }, actuator: ActuatorSpec): void {
   const inputs: number[] = [];
   const gainsAt: number[] = [];
   const taus: number[] = [];
@@ -475,7 +485,7 @@ function flagNonlinear(flags: Flag[], dyn: PlantDynamics, uMin: number, range: n
     let slowest = Infinity;
     for (const p of pz.poles) slowest = Math.min(slowest, Math.abs(p.re) > 0 ? Math.abs(p.re) : Infinity);
     inputs.push(uu);
-    gainsAt.push(Math.abs(pz.staticGain));
+    gainsAt.push(Math.abs(pz.staticGain) * characteristicSlope(actuator, uu));
     taus.push(Number.isFinite(slowest) ? 1 / slowest : NaN);
   }
   if (gainsAt.length < 2) return;

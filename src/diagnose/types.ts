@@ -31,7 +31,8 @@ export type FlagKind =
   | 'unreachable_setpoint'
   | 'closed_loop_unstable'
   | 'no_response'
-  | 'model_problem';
+  | 'model_problem'
+  | 'valve_stiction_cycle';
 
 /** info: worth knowing; warning: plain PID tuning will likely fall short here; severe: it will not work as is. */
 export type FlagSeverity = 'info' | 'warning' | 'severe';

@@ -15,9 +15,10 @@
  * - The steady state is analysis' findEquilibrium with the actuator limits; a linear model kind
  *   is the same at every level, so it has one point that stands for all.
  */
-import { findEquilibrium, linearise } from '../analysis/index.js';
+import { characteristicSlope, findEquilibrium, linearise } from '../analysis/index.js';
 import type { PlantSpec, TrialSpec } from '../model/types.js';
-import type { LinearModel, PlantDynamics } from '../sim/index.js';
+import { valveInput, valveTravel, type LinearModel, type PlantDynamics } from '../sim/index.js';
+import { throughValve, valveShapesLoop } from './valve-model.js';
 
 /** Most operating points evaluated for one trial; a longer list keeps the first ones and says so. */
 export const MAX_OPERATING_POINTS = 16;
@@ -110,7 +111,9 @@ export function operatingPoints(spec: PlantSpec, dyn: PlantDynamics, trial: Tria
   const notes: string[] = [];
   const u0 = trial.initialOutput ?? 0;
   let levels = trialLevels(trial, dyn.disturbanceNames, dyn.d0, startOutput(dyn, u0));
-  if (dyn.linear !== null) {
+  const valve = spec.actuator;
+  const shaped = valveShapesLoop(valve);
+  if (dyn.linear !== null && !shaped) {
     const first = levels[0];
     return {
       points: [{ ...first, allLevels: true, state: null, input: null, linear: dyn.linear, problem: null }],
@@ -127,9 +130,10 @@ export function operatingPoints(spec: PlantSpec, dyn: PlantDynamics, trial: Tria
   let guessX: Float64Array = dyn.x0;
   let guessU: number | undefined = trial.initialOutput ?? undefined;
   for (const lv of levels) {
+    // In plant input: the characteristic maps the travel limits to input limits (settled-start.ts).
     const eq = findEquilibrium(dyn, lv.level, {
-      uMin: spec.actuator.min,
-      uMax: spec.actuator.max,
+      uMin: valveInput(valve, valve.min),
+      uMax: valveInput(valve, valve.max),
       d: lv.disturbances,
       x0: guessX,
       u0: guessU,
@@ -141,13 +145,18 @@ export function operatingPoints(spec: PlantSpec, dyn: PlantDynamics, trial: Tria
     // The previous level's steady state is a good first guess for the next one.
     guessX = eq.x;
     guessU = eq.u;
-    const lin = linearise(dyn, eq.x, eq.u, { ...(inputScale !== undefined ? { inputScale } : {}), d: lv.disturbances });
+    const lin =
+      dyn.linear !== null
+        ? ({ ok: true, model: dyn.linear } as const)
+        : linearise(dyn, eq.x, eq.u, { ...(inputScale !== undefined ? { inputScale } : {}), d: lv.disturbances });
+    // The controller moves the travel: the valve's lag and local slope sit before the plant.
+    const slope = characteristicSlope(valve, valveTravel(valve, eq.u));
     points.push({
       ...lv,
       allLevels: false,
       state: eq.x,
       input: eq.u,
-      linear: lin.ok ? lin.model : null,
+      linear: lin.ok ? throughValve(lin.model, valve.lag ?? 0, slope) : null,
       problem: lin.ok ? null : `the plant could not be linearised there: ${lin.message}`,
     });
   }

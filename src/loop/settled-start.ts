@@ -20,7 +20,7 @@
  */
 import { findEquilibrium } from '../analysis/index.js';
 import type { PlantSpec } from '../model/types.js';
-import { loopStart, type LoopConfig, type PlantDynamics, type StartPoint } from '../sim/index.js';
+import { loopStart, valveInput, valveTravel, type LoopConfig, type PlantDynamics, type StartPoint } from '../sim/index.js';
 
 /** A loop's start and how it was found. */
 export interface LoopStart extends StartPoint {
@@ -67,12 +67,22 @@ export function settledStart(spec: PlantSpec, dyn: PlantDynamics, config: Pick<L
       return { x: rest.x, u, y: yOf(rest.x, u), how: rest.warning === null ? 'settled' : 'rest', warning: rest.warning };
     }
     // An ode file that writes both its states and the output has said where it starts.
-    return { x: rest.x, u, y: yOf(rest.x, u), how: dyn.nx === 0 || isSteady(dyn, rest.x, u) ? 'settled' : 'rest', warning: null };
+    return { x: rest.x, u, y: yOf(rest.x, u), how: dyn.nx === 0 || isSteady(dyn, rest.x, valveInput(config.actuator, u)) ? 'settled' : 'rest', warning: null };
   }
 
   const target = trial.initialSetpoint ?? yOf(dyn.x0, rest.uStart);
   if (!(uMin <= uMax)) return atRest('the actuator and controller output limits do not overlap: the trial starts at rest');
-  const eq = findEquilibrium(dyn, target, { uMin, uMax, d: dyn.d0, x0: dyn.x0, u0: Number.isFinite(uMax - uMin) ? undefined : rest.uStart });
+  // The equilibrium is the plant's, in plant input; the valve's characteristic maps travel to it
+  // (monotone), so the travel limits map to input limits and the steady input back to a travel.
+  const act = config.actuator;
+  const eq0 = findEquilibrium(dyn, target, {
+    uMin: valveInput(act, uMin),
+    uMax: valveInput(act, uMax),
+    d: dyn.d0,
+    x0: dyn.x0,
+    u0: Number.isFinite(uMax - uMin) ? undefined : rest.uStart,
+  });
+  const eq = eq0.ok ? { ...eq0, u: valveTravel(act, eq0.u) } : eq0;
   if (!eq.ok) {
     const why =
       eq.reason === 'unreachable'

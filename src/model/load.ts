@@ -4,7 +4,7 @@
  * as many as can be found in one pass.
  */
 import { diagnostic, hasErrors, type Diagnostic } from './diagnostics.js';
-import { readActuator } from './schema/actuator.js';
+import { readActuator, valveUncertain } from './schema/actuator.js';
 import { fieldNames, fieldNode, textField } from './schema/fields.js';
 import { PLANT_SCHEMA } from './schema/plant.js';
 import { readCompare } from './schema/compare.js';
@@ -81,7 +81,7 @@ function loadUnsafe(text: string, fileName: string): LoadResult {
   const uncertainty = readUncertainty(
     r,
     top.get('uncertainty'),
-    modelRead ? modelRead.uncertain : null,
+    modelRead ? { ...modelRead.uncertain, ...valveUncertain(actuator) } : null,
     modelRead ? modelRead.model.type : null,
   );
   const ln = fieldNode(top, PLANT_SCHEMA, 'loop');

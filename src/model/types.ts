@@ -106,6 +106,16 @@ export interface ActuatorSpec {
   max: number;
   /** Maximum |du/dt| in units per second, Infinity when absent. */
   rateLimit: number;
+  /** Stiction bands in input units (static >= dynamic >= 0); absent = none. */
+  stiction?: { static: number; dynamic: number };
+  /** Backlash (dead-band) width in input units; absent or 0 = none. */
+  backlash?: number;
+  /** Valve characteristic on the fraction of travel; absent = linear. */
+  characteristic?: 'linear' | 'equal_percentage' | 'quick_opening';
+  /** Rangeability R of the equal-percentage characteristic (> 1). */
+  rangeability?: number;
+  /** Positioner and actuator first-order lag, s; absent or 0 = none. */
+  lag?: number;
 }
 
 export interface SensorSpec {
@@ -121,6 +131,8 @@ export interface SensorSpec {
   seed: number;
   /** Measurement span for proportional-band conversions [lo, hi] (null = unknown). */
   span: [number, number] | null;
+  /** Transmitter range [lo, hi]: readings clip there (absent = none). */
+  range?: [number, number];
 }
 
 export type ControllerStructure = 'p' | 'pi' | 'pd' | 'pid';

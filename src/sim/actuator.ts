@@ -1,5 +1,10 @@
 /**
- * The actuator between controller and plant: position limits and a rate limit.
+ * The actuator between controller and plant: position limits and a rate limit, then the valve as
+ * it is: stiction or backlash on the stem (once per controller sample, the stem held between
+ * samples), a first-order positioner lag and the characteristic (per integration step). Order:
+ * controller output → limits → rate limit → stiction/backlash → lag → characteristic → plant.
+ * With stiction the stem is held over the sample (it moves in slips, not along the rate ramp);
+ * the rate limit still bounds the command the stem follows.
  *
  * The rate limit is applied as a ramp WITHIN the sample: after a new command at t_k the position
  * moves towards the (position-limited) command at the rate limit and stops when it arrives, so
@@ -10,8 +15,63 @@
  * with the batch generator.
  */
 import type { ActuatorSpec } from '../model/types.js';
-import { actuatorCommandLaw, actuatorPathIntegral } from './element-laws.js';
+import { actuatorCommandLaw, actuatorPathIntegral, stictionLaw, valveStepLaw, type ValveShape } from './element-laws.js';
 import { compileElementLaw } from './generate-stepper.js';
+
+/**
+ * Lag coefficients for integration step h, s: la = e^(−h/T) and lm = (T/h)(1 − la), the exact
+ * step-end and step-mean weights of a first-order lag with a held input (T = 0: none, 0 and 0).
+ */
+export function lagCoefficients(lag: number, h: number): { la: number; lm: number } {
+  if (!(lag > 0)) return { la: 0, lm: 0 };
+  const la = Math.exp(-h / lag);
+  return { la, lm: (lag / h) * (1 - la) };
+}
+
+/** The shape of the valve after the limits, and its band: backlash w is stiction w/2, w/2. */
+export function valveOf(spec: ActuatorSpec): { shape: ValveShape; fs: number; fd: number; aspan: number; rgl: number } {
+  const band = spec.backlash !== undefined && spec.backlash > 0 ? { static: spec.backlash / 2, dynamic: spec.backlash / 2 } : spec.stiction;
+  const sticky = band !== undefined && band.static > 0;
+  const characteristic = spec.characteristic ?? 'linear';
+  return {
+    shape: { sticky, lagged: (spec.lag ?? 0) > 0, characteristic },
+    fs: sticky ? band.static : 0,
+    fd: sticky ? band.dynamic : 0,
+    aspan: spec.max - spec.min,
+    rgl: Math.log(spec.rangeability ?? 50),
+  };
+}
+
+/**
+ * The plant input a valve at rest at `travel` delivers: its characteristic (lag settled, no band),
+ * from the engine's own law. Identity for a linear characteristic.
+ */
+export function valveInput(spec: ActuatorSpec, travel: number): number {
+  if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return travel;
+  const a = new Actuator({ min: spec.min, max: spec.max, rateLimit: Infinity, characteristic: spec.characteristic, rangeability: spec.rangeability }, travel);
+  a.command(travel, 1);
+  const out = new Float64Array(1);
+  a.fillSteps(out, 0, 1, 1);
+  return out[0];
+}
+
+/**
+ * The travel at which the valve delivers plant input `input` (the inverse of `valveInput`, by
+ * bisection on the monotone characteristic); the nearest end of travel when out of its reach.
+ */
+export function valveTravel(spec: ActuatorSpec, input: number): number {
+  if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return input;
+  let lo = spec.min;
+  let hi = spec.max;
+  if (!(input > valveInput(spec, lo))) return lo;
+  if (!(input < valveInput(spec, hi))) return hi;
+  for (let i = 0; i < 80 && hi - lo > 1e-15 * (spec.max - spec.min); i++) {
+    const mid = 0.5 * (lo + hi);
+    if (valveInput(spec, mid) < input) lo = mid;
+    else hi = mid;
+  }
+  return 0.5 * (lo + hi);
+}
 
 export class Actuator {
   readonly min: number;
@@ -21,6 +81,10 @@ export class Actuator {
   start = 0;
   /** Position reached by the end of the current sample (what the controller is told). */
   end = 0;
+  /** Stem position after stiction/backlash (= `end` without them), held over the sample. */
+  stem = 0;
+  /** Lag output at the end of the last integration step (the valve position). */
+  private xv = 0;
   /** True when the last command hit a position or rate limit. */
   saturated = false;
   /** Time into the sample at which the ramp arrives (0 = no ramp), s. */
@@ -29,6 +93,18 @@ export class Actuator {
 
   /** The command law (element-laws.ts), compiled once per shape. */
   private readonly commandLaw: (s: Actuator, uc: number, ts: number) => void;
+  /** Stiction on the command (element-laws.ts), null without a band. */
+  private readonly stickLaw: ((s: Actuator) => void) | null;
+  /** Lag and characteristic over the steps of a sample (element-laws.ts), null when neither. */
+  private readonly stepLaw: ((s: Actuator, out: Float64Array, off: number, n: number, la: number, lm: number) => void) | null;
+  private readonly fs: number;
+  private readonly fd: number;
+  private readonly aspan: number;
+  private readonly rgl: number;
+  private readonly lag: number;
+  private lagStep = NaN;
+  private la = 0;
+  private lm = 0;
   /** ∫₀^s position dτ along the sample's path (element-laws.ts). */
   private readonly pathLaw: (s: number, tr: number, st: number, sg: number, rl: number, en: number) => number;
 
@@ -38,7 +114,25 @@ export class Actuator {
     this.min = spec.min;
     this.max = spec.max;
     this.rateLimit = spec.rateLimit;
-    this.start = this.end = this.clamp(initial);
+    this.start = this.end = this.stem = this.xv = this.clamp(initial);
+    const valve = valveOf(spec);
+    this.fs = valve.fs;
+    this.fd = valve.fd;
+    this.aspan = valve.aspan;
+    this.rgl = valve.rgl;
+    this.lag = spec.lag ?? 0;
+    this.stickLaw = valve.shape.sticky
+      ? compileElementLaw(['s'], `const end = s.end, fs = s.fs, fd = s.fd; let xs = s.stem;\n${stictionLaw()}\ns.stem = xs; s.rampTime = 0;`)
+      : null;
+    const stepText = valveStepLaw(valve.shape);
+    this.stepLaw =
+      stepText === ''
+        ? null
+        : compileElementLaw(
+            ['s', 'out', 'off', 'n', 'la', 'lm'],
+            `const amin = s.min, aspan = s.aspan, rgl = s.rgl; let xv = s.xv;\n` +
+              `for (let i = 0; i < n; i++) { let u = out[off + i];\n${stepText}\nout[off + i] = u; }\ns.xv = xv;`,
+          );
     this.commandLaw = compileElementLaw(
       ['s', 'uc', 'ts'],
       'const amin = s.min, amax = s.max, rate = s.rateLimit;\n' +
@@ -54,28 +148,40 @@ export class Actuator {
     return v < this.min ? this.min : v > this.max ? this.max : v;
   }
 
-  /** True when the current sample moves along a rate-limited ramp. */
+  /** True when the plant input varies within the current sample (a rate ramp or the valve after the stem). */
   get ramping(): boolean {
-    return this.rampTime > 0;
+    return this.rampTime > 0 || this.stepLaw !== null;
   }
 
-  /** Take the command for a sample of length `ts`; sets `end` and `saturated` (element-laws.ts). */
+  /** Take the command for a sample of length `ts`; sets `end`, `stem` and `saturated` (element-laws.ts). */
   command(uc: number, ts: number): void {
     this.commandLaw(this, uc, ts);
+    if (this.stickLaw !== null) this.stickLaw(this);
+    else this.stem = this.end;
   }
 
-  /** out[off + i] = mean position over integration step i of the sample (n steps of h). */
+  /** out[off + i] = mean plant input over integration step i of the sample (n steps of h). */
   fillSteps(out: Float64Array, off: number, n: number, h: number): void {
     if (this.rampTime === 0) {
-      for (let i = 0; i < n; i++) out[off + i] = this.end;
-      return;
+      for (let i = 0; i < n; i++) out[off + i] = this.stem;
+    } else {
+      let prev = 0;
+      const path = this.pathLaw;
+      for (let i = 0; i < n; i++) {
+        const next = path((i + 1) * h, this.rampTime, this.start, this.rampSign, this.rateLimit, this.end);
+        out[off + i] = (next - prev) / h;
+        prev = next;
+      }
     }
-    let prev = 0;
-    const path = this.pathLaw;
-    for (let i = 0; i < n; i++) {
-      const next = path((i + 1) * h, this.rampTime, this.start, this.rampSign, this.rateLimit, this.end);
-      out[off + i] = (next - prev) / h;
-      prev = next;
+    const law = this.stepLaw;
+    if (law === null) return;
+    if (h !== this.lagStep) {
+      // Once per step length, not per sample: the inner loop allocates nothing.
+      const c = lagCoefficients(this.lag, h);
+      this.lagStep = h;
+      this.la = c.la;
+      this.lm = c.lm;
     }
+    law(this, out, off, n, this.la, this.lm);
   }
 }

@@ -12,6 +12,7 @@
 import { MATH_HELPERS } from '../model/index.js';
 import { Rng } from '../num/index.js';
 import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
+import { lagCoefficients, valveInput, valveOf } from './actuator.js';
 import { loopStep } from './choose-step.js';
 import { delayInSteps, usableDelay } from './delay-line.js';
 import { generateOutput } from './generate-stepper.js';
@@ -233,7 +234,9 @@ function prepare(
   if (plant.x0.length !== plant.nx) throw new TypeError('x0 length must equal nx');
   const start = loopStart(plant, loop, trial.initialOutput, trial.start);
   const uStart = start.uStart;
-  const chosen = loopStep(plant, ts, loop.step, loop.integrator, uStart);
+  // What the plant receives at the start: the valve's characteristic at that travel (simulation.ts).
+  const uIn = valveInput(loop.actuator, uStart);
+  const chosen = loopStep(plant, ts, loop.step, loop.integrator, uIn);
   const law = (m.controller.pidLaw as () => PidLaw | null).call(m.controller);
   if (law === null) return 'the controller is not the plain PID law';
   const h = chosen.step;
@@ -241,12 +244,12 @@ function prepare(
   if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
   const inSteps = delayInSteps(usableDelay(plant.inputDelay, trial.duration, ts), h);
   const outFn = generateOutput(plant, plant.outputSource, helpers);
-  const y0 = outFn(Float64Array.from(start.x), plant.params, Float64Array.from(plant.d0), uStart, 0);
+  const y0 = outFn(Float64Array.from(start.x), plant.params, Float64Array.from(plant.d0), uIn, 0);
   const outSteps = delayInSteps(usableDelay(loop.sensor.delay, trial.duration, ts), h);
   const sensor = new Sensor(loop.sensor, ts);
   const rInit = trial.initialSetpoint ?? y0;
 
-  const inLine = plant.inputDelay > 0 ? new Float64Array(Math.floor(inSteps) + 2).fill(uStart) : new Float64Array(0);
+  const inLine = plant.inputDelay > 0 ? new Float64Array(Math.floor(inSteps) + 2).fill(uIn) : new Float64Array(0);
   const sensorLine = loop.sensor.delay > 0 ? new Float64Array(Math.floor(outSteps) + 2).fill(y0) : new Float64Array(0);
   const trace = storage ?? createTrace(sched.rows, plant.disturbanceNames);
   if (trace.t.length < sched.rows || trace.d.length !== plant.disturbanceNames.length) {
@@ -265,6 +268,8 @@ function prepare(
   const numbers = new Float64Array(widths.p);
   const a = loop.actuator;
   const s = loop.sensor;
+  const valve = valveOf(a);
+  const lagC = lagCoefficients(a.lag ?? 0, h);
   const values: Record<(typeof BATCH_FIELDS)[number], number> = {
     kc: law.kc,
     b: law.b,
@@ -286,6 +291,14 @@ function prepare(
     inDelay: inSteps,
     outDelay: outSteps,
     ng: 0,
+    rlo: s.range ? s.range[0] : -Infinity,
+    rhi: s.range ? s.range[1] : Infinity,
+    fs: valve.fs,
+    fd: valve.fd,
+    la: lagC.la,
+    lm: lagC.lm,
+    aspan: valve.aspan,
+    rgl: valve.rgl,
   };
   BATCH_FIELDS.forEach((f, i) => {
     numbers[i] = values[f];
@@ -297,7 +310,8 @@ function prepare(
   }
   numbers.set(lifted.values, nf + 2 * np);
   const state = new Float64Array(widths.z);
-  for (const f of ['start', 'end', 'uPlant'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
+  for (const f of ['start', 'end', 'xs', 'xv'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
+  state[BATCH_STATE.indexOf('uPlant')] = uIn;
   state.set(start.x, BATCH_STATE.length);
   const shape = {
     inputDelay: plant.inputDelay > 0,
@@ -306,6 +320,8 @@ function prepare(
     noisy: s.noiseStd > 0,
     quantised: s.resolution > 0,
     rateLimited: a.rateLimit !== Infinity,
+    ranged: s.range !== undefined,
+    valve: valve.shape,
     antiWindup: law.antiWindup,
   };
   const key = [

@@ -28,7 +28,7 @@
  * before `new Function` sees them (as for the one-loop stepper).
  */
 import { MATH_HELPERS, type AntiWindup, type IntegratorName } from '../model/index.js';
-import { actuatorCommandLaw, actuatorPathIntegral, pidInitLaw, pidTrackLaw, pidUpdateLaw, sensorLaw, type PidNames } from './element-laws.js';
+import { actuatorCommandLaw, actuatorPathIntegral, pidInitLaw, pidTrackLaw, pidUpdateLaw, sensorLaw, stictionLaw, valveStepLaw, type PidNames, type ValveShape } from './element-laws.js';
 import { checkSource, integratorStages, INTEGRATOR_STAGES, prepareSources } from './generate-stepper.js';
 import type { PlantDynamics } from './types.js';
 
@@ -61,6 +61,17 @@ export const BATCH_FIELDS = [
   'outDelay',
   /** Offset in `G` of the copy's noise deviates (row k at ng + k). */
   'ng',
+  /** Transmitter range. */
+  'rlo',
+  'rhi',
+  /** Stiction bands (backlash w: w/2, w/2). */
+  'fs',
+  'fd',
+  /** Valve lag weights for the step h (actuator.ts lagCoefficients), travel, ln rangeability. */
+  'la',
+  'lm',
+  'aspan',
+  'rgl',
 ] as const;
 
 /**
@@ -86,6 +97,10 @@ export const BATCH_STATE = [
   'sh',
   /** Integral of the ramp path up to the last integration step of the sample (Actuator.fillSteps). */
   'prev',
+  /** Stem position after stiction (= end without it). */
+  'xs',
+  /** Valve lag output. */
+  'xv',
 ] as const;
 
 /** Trace channels per copy in the `T` argument: r (read), y, ym, uc, u, sat, then d_0 … (read). */
@@ -175,6 +190,10 @@ export interface BatchShape {
   quantised: boolean;
   /** Finite actuator rate limit. */
   rateLimited: boolean;
+  /** Transmitter range clip. */
+  ranged: boolean;
+  /** The valve after the limits (stiction, lag, characteristic). */
+  valve: ValveShape;
   antiWindup: AntiWindup;
 }
 
@@ -277,11 +296,13 @@ export function batchSource(
   );
   // Actuator (actuator.ts): position limits, rate-limit ramp within the sample.
   a.push('let sat = false;', actuatorCommandLaw(shape.rateLimited));
+  // Stiction/backlash on the limited command (actuator.ts): the stem held over the sample.
+  a.push(shape.valve.sticky ? `${stictionLaw()} rampTime = 0;` : 'xs = end;');
   // Anti-windup with what the actuator delivered (the controller's track step).
   a.push(pidTrackLaw(PID_LOCALS, shape.antiWindup, 'end'));
-  a.push('T[to + 1][k] = y; T[to + 2][k] = ym; T[to + 3][k] = uc; T[to + 4][k] = end; T[to + 5][k] = sat ? 1 : 0;');
+  a.push('T[to + 1][k] = y; T[to + 2][k] = ym; T[to + 3][k] = uc; T[to + 4][k] = xs; T[to + 5][k] = sat ? 1 : 0;');
   a.push(
-    BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'uPlant' && f !== 'prev')
+    BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'uPlant' && f !== 'prev' && f !== 'xv')
       .map((f) => `Z[zo + ${S(f)}] = ${f};`)
       .join(' '),
     `Z[zo + ${S('prev')}] = 0;`,
@@ -293,7 +314,7 @@ export function batchSource(
     const text = a.join('\n');
     const used = (name: string): boolean => new RegExp(`(^|[^\\w$.])${name.replace('$', '\\$')}([^\\w$]|$)`).test(text);
     const fields = BATCH_FIELDS.map((f, i) => [f === 'c' ? 'cw' : f, i] as const).filter(([f]) => used(f));
-    const state = BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'prev').filter(used);
+    const state = BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'prev' && f !== 'xv').filter(used);
     const decl: string[] = [];
     if (fields.length > 0) decl.push(`const ${fields.map(([f, i]) => `${f} = P[o + ${i}]`).join(', ')};`);
     if (state.length > 0) decl.push(`let ${state.map((f) => `${f} = Z[zo + ${S(f)}]`).join(', ')};`);
@@ -317,14 +338,23 @@ export function batchSource(
     if (xs.length > 0) pre.push(`let ${xs.join(', ')};`);
   }
   const input: string[] = [`for (let c = 0; c < ${K}; c++) {`, `const o = c * ${widths.p}, zo = c * ${widths.z};`];
-  input.push(`let u = Z[zo + ${S('end')}];`);
+  input.push(`let u = Z[zo + ${S('xs')}];`);
   if (shape.rateLimited) {
     // Actuator.fillSteps: the mean of the ramp-then-hold path over step $i.
     input.push(
       `const $tr = Z[zo + ${S('rampTime')}];`,
-      `if ($tr !== 0) { const $st = Z[zo + ${S('start')}], $sg = Z[zo + ${S('rampSign')}], $rl = P[o + ${F('rate')}], $en = u; ` +
+      `if ($tr !== 0) { const $st = Z[zo + ${S('start')}], $sg = Z[zo + ${S('rampSign')}], $rl = P[o + ${F('rate')}], $en = Z[zo + ${S('end')}]; ` +
         `const $s = ($i + 1) * h; const $nx = ${actuatorPathIntegral('$s', '$tr', '$st', '$sg', '$rl', '$en')}; ` +
         `u = ($nx - Z[zo + ${S('prev')}]) / h; Z[zo + ${S('prev')}] = $nx; }`,
+    );
+  }
+  const valveStep = valveStepLaw(shape.valve);
+  if (valveStep !== '') {
+    // Actuator.fillSteps: lag and characteristic of the step.
+    input.push(
+      `{ const amin = P[o + ${F('amin')}], aspan = P[o + ${F('aspan')}], rgl = P[o + ${F('rgl')}], la = P[o + ${F('la')}], lm = P[o + ${F('lm')}]; let xv = Z[zo + ${S('xv')}];`,
+      valveStep,
+      `Z[zo + ${S('xv')}] = xv; }`,
     );
   }
   if (shape.inputDelay) {
@@ -404,7 +434,7 @@ const helperIds = new WeakMap<object, number>();
 let nextHelperId = 1;
 
 function shapeKey(s: BatchShape): string {
-  return [s.width, s.inputDelay ? 'I' : 'i', s.sensorDelay ? 'S' : 's', s.filtered ? 'F' : 'f', s.noisy ? 'N' : 'n', s.quantised ? 'Q' : 'q', s.rateLimited ? 'R' : 'r', s.antiWindup].join('');
+  return [s.width, s.inputDelay ? 'I' : 'i', s.sensorDelay ? 'S' : 's', s.filtered ? 'F' : 'f', s.noisy ? 'N' : 'n', s.quantised ? 'Q' : 'q', s.rateLimited ? 'R' : 'r', s.ranged ? 'G' : 'g', s.valve.sticky ? 'K' : 'k', s.valve.lagged ? 'L' : 'l', s.valve.characteristic, s.antiWindup].join('');
 }
 
 /** The compiled batch function for this plant structure and loop shape (cached by source text). */

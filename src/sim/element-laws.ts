@@ -42,18 +42,60 @@ export function actuatorPathIntegral(s: string, tr: string, st: string, sg: stri
   return `(${s} <= ${tr} ? ${st} * ${s} + 0.5 * ${sg} * ${rl} * ${s} * ${s} : ${st} * ${tr} + 0.5 * ${sg} * ${rl} * ${tr} * ${tr} + ${en} * (${s} - ${tr}))`;
 }
 
+/** Valve characteristic: installed flow fraction as a function of the fraction of travel. */
+export type ValveCharacteristic = 'linear' | 'equal_percentage' | 'quick_opening';
+
+/** Which valve elements sit between the limited command and the plant input. */
+export interface ValveShape {
+  /** Stiction or backlash band present (state `xs`, the stem position). */
+  sticky: boolean;
+  /** First-order positioner/actuator lag present (state `xv`). */
+  lagged: boolean;
+  characteristic: ValveCharacteristic;
+}
+
+/**
+ * Stiction, the two-parameter data-driven model of He, Wang, Pottmann & Qin (Ind. Eng. Chem. Res.
+ * 46 (2007) 4549–4560, from memory), on the limited command `end` once per controller sample:
+ * residual u_r = end − xs; when |u_r| > `fs` (static band) the stem slips to end − sign(u_r)·`fd`
+ * (dynamic band), else it stays. Backlash of width w is fs = fd = w/2. Reads `end`, `fs`, `fd`;
+ * updates `xs` (the stem, held until the next sample). A NaN command passes (divergence shows).
+ */
+export function stictionLaw(): string {
+  return 'if (end !== end) xs = end; else { const $ur = end - xs; if ($ur > fs) xs = end - fd; else if ($ur < -fs) xs = end + fd; }';
+}
+
+/**
+ * One integration step of the valve after the stem: `u` (the stem or actuator path, held over the
+ * step) through the first-order lag (state `xv`; `la` = e^(−h/T), `lm` = (T/h)(1 − la), so `u`
+ * becomes the exact mean of the lag output over the step), then the characteristic on the fraction
+ * of travel (u − amin)/aspan: linear f; equal percentage R^(f−1) = e^(rgl·(f−1)), rgl = ln R;
+ * quick opening √f (Seborg, Edgar & Mellichamp, Process Dynamics and Control, 2nd ed. 2004,
+ * sec. 9.2, from memory). Reads/writes `u`; reads `amin`, `aspan`, `rgl`, `la`, `lm`.
+ */
+export function valveStepLaw(shape: ValveShape): string {
+  const a: string[] = [];
+  if (shape.lagged) a.push('{ const $vi = u; u = $vi + (xv - $vi) * lm; xv = $vi + (xv - $vi) * la; }');
+  if (shape.characteristic === 'equal_percentage') a.push('u = amin + aspan * Math.exp(rgl * ((u - amin) / aspan - 1));');
+  else if (shape.characteristic === 'quick_opening') a.push('{ const $fq = (u - amin) / aspan; u = amin + aspan * Math.sqrt($fq < 0 ? 0 : $fq); }');
+  return a.join('\n');
+}
+
 /** Which parts of the measurement chain are present. */
 export interface SensorShape {
   filtered: boolean;
   noisy: boolean;
   quantised: boolean;
+  /** Transmitter range present (`rlo`, `rhi`). */
+  ranged: boolean;
 }
 
 /**
  * The measurement chain on `ym` (the delayed plant output on entry, the measurement on exit):
  * first-order-hold filter (sensor.ts gives the discretisation; state `z`, `wPrev`, pole `fa`,
  * slope `fslope`, settled at the first sample where `first` is true), additive noise
- * `noise * deviate` (one standard Gaussian deviate per sample), quantisation to `res`.
+ * `noise * deviate` (one standard Gaussian deviate per sample), clip to the transmitter range
+ * [`rlo`, `rhi`], quantisation to `res`.
  * @param first source of a boolean: this is the first measurement
  * @param deviate source of this sample's standard Gaussian deviate
  */
@@ -63,6 +105,8 @@ export function sensorLaw(shape: SensorShape, first: string, deviate: string): s
     a.push(`if (${first}) { z = ym; wPrev = ym; } else { z = fa * z + (1 - fa) * wPrev + (ym - wPrev) * fslope; wPrev = ym; }`, 'ym = z;');
   }
   if (shape.noisy) a.push(`ym += noise * ${deviate};`);
+  // The transmitter's span: the reading clips at its ends (NaN passes so divergence shows).
+  if (shape.ranged) a.push('if (ym < rlo) ym = rlo; else if (ym > rhi) ym = rhi;');
   if (shape.quantised) a.push('ym = res * Math.round(ym / res);');
   return a.join('\n');
 }

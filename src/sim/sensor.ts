@@ -1,7 +1,8 @@
 /**
  * The measurement chain after the (separately delayed) plant output: first-order filter,
- * additive Gaussian noise, quantisation — in that order (the filter models transmitter damping
- * of the process signal; noise is added on the signal path; quantisation is the converter last).
+ * additive Gaussian noise, the transmitter range, quantisation — in that order (the filter models
+ * transmitter damping of the process signal; noise is added on the signal path; the reading clips
+ * at the transmitter's span; quantisation is the converter last).
  */
 import type { SensorSpec } from '../model/types.js';
 import { Rng } from '../num/index.js';
@@ -30,6 +31,8 @@ export class Sensor {
   private readonly filtered: boolean;
   private readonly noiseStd: number;
   private readonly resolution: number;
+  private readonly rangeLo: number;
+  private readonly rangeHi: number;
   private readonly rng: Rng;
   private z = 0;
   private wPrev = 0;
@@ -49,10 +52,12 @@ export class Sensor {
     this.noiseStd = spec.noiseStd;
     this.resolution = spec.resolution;
     this.rng = new Rng(spec.seed);
-    const shape = { filtered: this.filtered, noisy: this.noiseStd > 0, quantised: this.resolution > 0 };
+    this.rangeLo = spec.range ? spec.range[0] : -Infinity;
+    this.rangeHi = spec.range ? spec.range[1] : Infinity;
+    const shape = { filtered: this.filtered, noisy: this.noiseStd > 0, quantised: this.resolution > 0, ranged: spec.range !== undefined };
     this.law = compileElementLaw(
       ['s', 'w', 'g'],
-      'const fa = s.a, fslope = s.slope, noise = s.noiseStd, res = s.resolution;\n' +
+      'const fa = s.a, fslope = s.slope, noise = s.noiseStd, res = s.resolution, rlo = s.rangeLo, rhi = s.rangeHi;\n' +
         'let ym = w, z = s.z, wPrev = s.wPrev;\n' +
         `${sensorLaw(shape, '!s.started', 'g')}\n` +
         's.z = z; s.wPrev = wPrev; s.started = true; return ym;',

@@ -20,7 +20,7 @@
  * Nothing in steps 2–8 allocates.
  */
 import type { GainSet, IntegratorName, TrialEvent, TrialStart } from '../model/types.js';
-import { Actuator } from './actuator.js';
+import { Actuator, valveInput } from './actuator.js';
 import { loopStep } from './choose-step.js';
 import { DelayLine, delayInSteps as delaySteps, usableDelay } from './delay-line.js';
 import { SAMPLE_EPS as TIME_EPS } from './event-schedule.js';
@@ -125,8 +125,10 @@ export class Simulation {
     const start = loopStart(plant, loop, init.initialOutput, init.start);
     this.actuator = new Actuator(loop.actuator, start.uStart);
     const uStart = this.actuator.end;
+    // What the plant receives at the start: the valve's characteristic at that travel.
+    const uIn = valveInput(loop.actuator, uStart);
 
-    const chosen = loopStep(plant, ts, loop.step, loop.integrator, uStart);
+    const chosen = loopStep(plant, ts, loop.step, loop.integrator, uIn);
     this.step = chosen.step;
     this.substeps = chosen.substeps;
     for (const w of chosen.warnings) this.warnings.push(w);
@@ -137,7 +139,7 @@ export class Simulation {
     this.d = Float64Array.from(plant.d0);
     this.us = new Float64Array(this.substeps);
     this.ys = new Float64Array(this.substeps);
-    this.uPlant = uStart;
+    this.uPlant = uIn;
     this.outFn = generateOutput(plant, plant.outputSource, init.helpers);
     const names = controller.measurementNames ?? [];
     this.measureFns = names.map((name) => {
@@ -156,8 +158,8 @@ export class Simulation {
     if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
     const horizon = init.horizon ?? Infinity;
     this.inputDelaySteps = delaySteps(usableDelay(plant.inputDelay, horizon, ts), h);
-    this.inputLine = plant.inputDelay > 0 ? new DelayLine(Math.floor(this.inputDelaySteps) + 2, uStart) : null;
-    const y0 = this.outFn(this.x, this.p, this.d, uStart, 0);
+    this.inputLine = plant.inputDelay > 0 ? new DelayLine(Math.floor(this.inputDelaySteps) + 2, uIn) : null;
+    const y0 = this.outFn(this.x, this.p, this.d, uIn, 0);
     this.sensorDelaySteps = delaySteps(usableDelay(loop.sensor.delay, horizon, ts), h);
     this.sensorLine = loop.sensor.delay > 0 ? new DelayLine(Math.floor(this.sensorDelaySteps) + 2, y0) : null;
     this.sensor = new Sensor(loop.sensor, ts);
@@ -191,9 +193,9 @@ export class Simulation {
     return this.x;
   }
 
-  /** Actuator position reached at the end of the last sample. */
+  /** Actuator (stem) position at the end of the last sample: after stiction/backlash when present. */
   get actuatorOutput(): number {
-    return this.actuator.end;
+    return this.actuator.stem;
   }
 
   /**
@@ -360,7 +362,7 @@ export class Simulation {
     const act = this.actuator;
     act.command(uc, ts);
     if (auto) this.controller.track(act.end);
-    this.trace.write(t, r, y, ym, uc, act.end, act.saturated, this.d);
+    this.trace.write(t, r, y, ym, uc, act.stem, act.saturated, this.d);
     if (!integrate) return;
 
     const n = this.substeps;
@@ -369,8 +371,8 @@ export class Simulation {
     const inLine = this.inputLine;
     const outSeq = this.sensorLine !== null;
     if (inLine === null && !act.ramping) {
-      this.stepper(false, outSeq)(x, this.p, this.d, act.end, this.us, 0, this.ys, 0, t, h, n);
-      this.uPlant = act.end;
+      this.stepper(false, outSeq)(x, this.p, this.d, act.stem, this.us, 0, this.ys, 0, t, h, n);
+      this.uPlant = act.stem;
     } else {
       const us = this.us;
       act.fillSteps(us, 0, n, h);

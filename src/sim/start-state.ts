@@ -9,7 +9,7 @@
  */
 import { solve } from '../num/index.js';
 import type { TrialStart } from '../model/types.js';
-import { Actuator } from './actuator.js';
+import { Actuator, valveInput } from './actuator.js';
 import type { LoopConfig, PlantDynamics } from './types.js';
 
 /** The start state and, when it is not the steady state asked for, why. */
@@ -49,6 +49,7 @@ export function loopStart(
     if (given.x.length !== plant.nx) throw new TypeError('start state length must equal nx');
     return { x: Float64Array.from(given.x), uStart, warning: null };
   }
-  const s = startState(plant, uStart, start ?? 'steady');
+  // The plant settles at what the valve delivers at that travel (its characteristic).
+  const s = startState(plant, valveInput(loop.actuator, uStart), start ?? 'steady');
   return { x: s.x, uStart, warning: s.warning };
 }

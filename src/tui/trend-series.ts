@@ -122,14 +122,18 @@ export function trendSeries(inp: TrendInput): ChartSeries[] {
   return out;
 }
 
-/** Chart series for the output panel: limits, baseline output, output. */
+/**
+ * Chart series for the output panel: limits, baseline output, output. With a sticky valve
+ * (stiction or backlash) the output drawn is the stem, and the controller's command is drawn
+ * beside it as the stem's setpoint (dashed), so the stick-slip shows.
+ */
 export function outputSeries(
   trace: Trace,
   baseline: Trace | null,
   t0: number,
   t1: number,
   points: number,
-  limits: { min: number; max: number },
+  limits: { min: number; max: number; stiction?: { static: number }; backlash?: number },
 ): ChartSeries[] {
   const out: ChartSeries[] = [];
   for (const lim of [limits.min, limits.max]) {
@@ -139,6 +143,11 @@ export function outputSeries(
     const b = chartPoints(baseline.t, baseline.u, baseline.length, t0, t1, points);
     out.push({ values: b.lo, tag: 'baseline', symbols: GLYPHS.baseline });
     out.push({ values: b.hi, tag: 'baseline', symbols: GLYPHS.baseline });
+  }
+  if ((limits.stiction?.static ?? 0) > 0 || (limits.backlash ?? 0) > 0) {
+    const c = chartPoints(trace.t, trace.uc, trace.length, t0, t1, points);
+    out.push({ values: c.lo, tag: 'sp', symbols: GLYPHS.sp });
+    out.push({ values: c.hi, tag: 'sp', symbols: GLYPHS.sp });
   }
   const u = chartPoints(trace.t, trace.u, trace.length, t0, t1, points);
   out.push({ values: u.lo, tag: 'output', symbols: GLYPHS.output });

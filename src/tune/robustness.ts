@@ -18,7 +18,7 @@ import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { EnvelopeBuilder, finishEnvelope, mergeEnvelopes, type PartialEnvelope, type TraceEnvelope } from './envelope.js';
 import { simulateGains } from './evaluate.js';
 import { gainMargins } from './gain-margins.js';
-import { specWithValues } from './uncertain-spec.js';
+import { modelValues, specWithValues } from './uncertain-spec.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 
 /** With more uncertain quantities than this the corners (2^n) are skipped; only the sample runs. */
@@ -112,7 +112,7 @@ export function sweepCases(
 function caseContext(base: TuningContext, values: Record<string, number>): TuningContext {
   if (Object.keys(values).length === 0) return base;
   const spec = specWithValues(base.spec, values);
-  const dyn: PlantDynamics = base.spec.model.type === 'ode' ? withParams(base.dynamics, values) : compilePlant(spec);
+  const dyn: PlantDynamics = base.spec.model.type === 'ode' ? withParams(base.dynamics, modelValues(values)) : compilePlant(spec);
   return tuningContext(spec, dyn);
 }
 

@@ -133,6 +133,29 @@ describe('runTrialBatch equals runTrial bit for bit', () => {
     expect(res[3].trace.sat.some((s) => s === 1)).toBe(true);
   });
 
+  it('valve stiction, backlash, lag, characteristics and the transmitter range, with and without a rate limit', () => {
+    const valves = [
+      { stiction: { static: 0.08, dynamic: 0.03 }, lag: 0.6, characteristic: 'equal_percentage' as const, rangeability: 30 },
+      { backlash: 0.1, characteristic: 'quick_opening' as const },
+      { stiction: { static: 0.05, dynamic: 0.05 }, rateLimit: 0.4 },
+      { lag: 1.3, rateLimit: 0.3, characteristic: 'equal_percentage' as const },
+    ];
+    const cases: Case[] = valves.map((v, i) => ({
+      plant: H.firstOrder(2, 4, 0, [0, 0.25, 0, 0.4][i]),
+      gains: { kc: 0.6, ti: 4 },
+      loop: loopConfig(0.2, 0.05, {
+        sensor: i % 2 === 0 ? { range: [-0.2, 0.9] as [number, number] } : {},
+        actuator: { min: -1, max: 1, rateLimit: Infinity, ...v },
+      }),
+      limits: [-1, 1],
+    }));
+    const res = expectSameAsRunTrial(cases, trial(40, STEPS));
+    // The stem sticks: the actuator column holds while the controller output moves.
+    expect(res[0].trace.u.some((v, i) => i > 0 && v === res[0].trace.u[i - 1] && res[0].trace.uc[i] !== res[0].trace.uc[i - 1])).toBe(true);
+    // The range clips the reading.
+    expect(Math.max(...res[0].trace.ym)).toBeLessThanOrEqual(0.9);
+  });
+
   it('nonlinear tank (compiled sources with inverse parameters), heun and euler, several substeps', () => {
     for (const integrator of ['rk4', 'heun', 'euler'] as const) {
       const cases: Case[] = [0.3, 0.5, 0.7].map((h0, i) => ({
@@ -262,7 +285,7 @@ describe('literals lifted out of the sources', () => {
     expect(a.deriv).toEqual(b.deriv);
     expect(a.values).toEqual([0.2, 0.4]);
     expect(b.values).toEqual([-1 / 4.2, 1.7 / 4.2].map(Math.abs));
-    const shape = { width: 2, inputDelay: false, sensorDelay: false, filtered: false, noisy: false, quantised: false, rateLimited: false, antiWindup: 'none' as const };
+    const shape = { width: 2, inputDelay: false, sensorDelay: false, filtered: false, noisy: false, quantised: false, rateLimited: false, ranged: false, valve: { sticky: false, lagged: false, characteristic: 'linear' as const }, antiWindup: 'none' as const };
     expect(generateBatch(linear(2, 5), 'rk4', shape)).toBe(generateBatch(linear(1.7, 4.2), 'rk4', shape));
   });
 
@@ -323,6 +346,8 @@ describe('runTrialBatch outside the generated subset', () => {
       noisy: true,
       quantised: true,
       rateLimited: true,
+      ranged: true,
+      valve: { sticky: true, lagged: true, characteristic: 'equal_percentage' },
       antiWindup: 'clamp',
     });
     const called = new Set([...src.matchAll(/([A-Za-z_$][\w$]*(?:\.[A-Za-z_$][\w$]*)*)\s*\(/g)].map((m) => m[1]));

@@ -17,7 +17,8 @@ reports poles, zeros, static gain, a first-order-plus-dead-time model, the stabi
 the file's gains, and flags where plain PID tuning will likely fall short: unstable,
 non_minimum_phase, dead_time_dominant, high_order_lag (apparent dead time from a chain of lags,
 not a true delay), integrating, lightly_damped, nonlinear, saturating, rate_limited,
-slow_sampling, noise_sensitive, unreachable_setpoint (and closed_loop_unstable, no_response,
+slow_sampling, noise_sensitive, unreachable_setpoint, valve_stiction_cycle (the limit cycle a
+sticky valve sustains, predicted by describing function) (and closed_loop_unstable, no_response,
 model_problem). Each flag carries its numbers and advice.
 
 Options:

@@ -33,6 +33,12 @@ export const SENSOR_SCHEMA: SectionDef = {
       strict: true,
       description: 'Measurement range [low, high] of the transmitter, for proportional-band conversions.',
     },
+    range: {
+      kind: 'pair',
+      of: 'number',
+      strict: true,
+      description: "The transmitter's span [low, high]: readings clip there, as a real transmitter's do (a loop driven past it sees a flat line).",
+    },
   },
 };
 
@@ -56,5 +62,7 @@ export function readSensor(r: Reader, node: YNode | undefined, owner: Span): Sen
   if (resolution !== undefined) out.resolution = resolution;
   if (seed !== undefined) out.seed = seed;
   if (span !== undefined) out.span = span;
+  const range = pairField(r, f, s, 'range', undefined);
+  if (range !== undefined) out.range = range;
   return out;
 }

@@ -9,7 +9,7 @@ export const UNCERTAINTY_FIELD: FieldDef = {
   kind: 'names',
   value: { kind: 'pair', of: 'number_or_time', strict: false },
   description:
-    'Ranges for robustness sweeps and worst-case checks: name -> [low, high]. Names are ode parameters, or gain, time_constant, delay, natural_frequency, damping, d of the linear kinds; times may carry units (>= 0).',
+    'Ranges for robustness sweeps and worst-case checks: name -> [low, high]. Names are ode parameters, or gain, time_constant, delay, natural_frequency, damping, d of the linear kinds, and the valve bands stiction.static, stiction.dynamic, backlash.width when the actuator has them; times may carry units (>= 0).',
 };
 
 export function readUncertainty(

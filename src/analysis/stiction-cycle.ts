@@ -1,0 +1,219 @@
+/**
+ * The limit cycle a sticky valve (or backlash) causes, predicted by the describing-function method
+ * (Gelb & Vander Velde, Multiple-Input Describing Functions and Nonlinear System Design, 1968,
+ * ch. 2, from memory): a sinusoid A sin ωt at the element's input sustains itself when
+ * 1 + N(A) L(jω) = 0, with N(A) the ratio of the element output's first harmonic to the input, and
+ * L the rest of the loop seen from the element's output back to its input (plant, sensor, PID law).
+ *
+ * N(A) is computed from its definition on the element the engine runs (sim's Actuator, the one
+ * written law), in the continuous limit: two periods of A sin θ on a fine grid, the first harmonic
+ * of the second period by the rectangle rule (exact for a periodic function up to the grid's
+ * resolution). L is analysis' own loop path (the exact sampled loop, loop-path.ts) times the PID
+ * law's response (pid-law-response.ts), times the valve lag 1/(1 + jωT) and the characteristic's
+ * local slope (our approximation: the lag acts on the held stem before the plant, here it is taken
+ * as a continuous factor).
+ */
+import type { ActuatorSpec, GainSet } from '../model/types.js';
+import { Actuator, valveInput } from '../sim/index.js';
+import { wrapAngle, type PlantFrequencyResponse } from './freq-response.js';
+import { loopPath, type LoopSensor } from './loop-path.js';
+import { pidLawResponse } from './pid-law-response.js';
+
+/** A memory element stepped on its input: returns its output (state kept inside). */
+export type ElementStep = (u: number) => number;
+
+/** A fresh element for the input A sin θ (a hysteretic element may start where the cycle puts it). */
+export type ElementFactory = (A: number) => ElementStep;
+
+/** Points per period of the describing-function quadrature. */
+const DF_POINTS = 8192;
+
+/**
+ * Describing function N(A) = (b1 + j a1)/A of an element on the input A sin θ, from its
+ * definition: b1, a1 the sine and cosine coefficients of the output's first harmonic over the
+ * second of two periods (the first lets a hysteretic element reach its periodic state).
+ * @param make a fresh element for amplitude A
+ */
+export function describingFunction(make: ElementFactory, A: number, points = DF_POINTS): { re: number; im: number } {
+  const el = make(A);
+  let b1 = 0;
+  let a1 = 0;
+  for (let i = 0; i < 2 * points; i++) {
+    const th = (2 * Math.PI * i) / points;
+    const s = Math.sin(th);
+    const y = el(A * s);
+    if (i >= points) {
+      b1 += y * s;
+      a1 += y * Math.cos(th);
+    }
+  }
+  b1 *= 2 / points;
+  a1 *= 2 / points;
+  return { re: b1 / A, im: a1 / A };
+}
+
+/** The stiction/backlash band of an actuator, as the engine runs it (null when it has none). */
+export function valveBand(spec: ActuatorSpec): { static: number; dynamic: number } | null {
+  if (spec.backlash !== undefined && spec.backlash > 0) return { static: spec.backlash / 2, dynamic: spec.backlash / 2 };
+  return spec.stiction !== undefined && spec.stiction.static > 0 ? spec.stiction : null;
+}
+
+/**
+ * The engine's stiction element (sim's Actuator without limits). For amplitude A the stem starts
+ * where a slip at the input's lowest point leaves it, −(A − dynamic): started at 0, an input that
+ * never leaves the static band round 0 would never show the cycle that amplitudes above
+ * (static + dynamic)/2 sustain once the stem has moved.
+ */
+export function stictionElement(band: { static: number; dynamic: number }): ElementFactory {
+  const spec: ActuatorSpec = { min: -Infinity, max: Infinity, rateLimit: Infinity, stiction: band };
+  return (A: number) => {
+    const a = new Actuator(spec, -(A - band.dynamic));
+    return (u: number) => {
+      a.command(u, 1);
+      return a.stem;
+    };
+  };
+}
+
+/** A predicted limit cycle. */
+export interface LimitCycle {
+  /** Amplitude of the controller output's cycle (the element's input), input units. */
+  amplitude: number;
+  /** Period, s. */
+  period: number;
+  /** Frequency, rad/s. */
+  frequency: number;
+  /** Amplitude of the measurement's cycle (first harmonic), output units. */
+  outputAmplitude: number;
+}
+
+/** What the prediction needs besides the element: the plant at the operating point and the loop. */
+export interface CycleLoop {
+  plant: PlantFrequencyResponse;
+  gains: GainSet;
+  sampleTime: number;
+  sensor: LoopSensor;
+  /** Valve lag, s (0 = none). */
+  lag: number;
+  /** Local slope of the valve characteristic at the operating point (1 = linear). */
+  slope: number;
+}
+
+/**
+ * The limit cycle of the loop with the element, or null when 1 + N(A) L(jω) = 0 has no solution.
+ * `band`: the smallest amplitude that moves the element ((static + dynamic)/2 for stiction).
+ * Along a grid of amplitudes (from there to 1000 times it), the frequency where L's phase equals
+ * that of −1/N(A) is found on a frequency grid, and the magnitudes compared; a sign change of
+ * their log ratio is refined by bisection. Of several solutions the
+ * largest amplitude is reported (our choice: the outermost intersection is the one a cycle grows
+ * into from small disturbances for these elements).
+ */
+export function predictLimitCycle(make: ElementFactory, band: number, loop: CycleLoop): LimitCycle | null {
+  const path = loopPath(loop.plant, loop.sampleTime, loop.sensor);
+  const law = pidLawResponse(loop.gains, loop.sampleTime);
+  const wMax = path.w[path.w.length - 1];
+  const wMin = path.w[0];
+  const tmp = new Float64Array(2);
+  const cw = new Float64Array(2);
+  /** L(jω) into [re, im]. */
+  const L = (w: number): [number, number] => {
+    path.evaluate(w, tmp);
+    law(w, cw);
+    const ph = -w * path.delay;
+    let re = tmp[0] * Math.cos(ph) - tmp[1] * Math.sin(ph);
+    let im = tmp[0] * Math.sin(ph) + tmp[1] * Math.cos(ph);
+    [re, im] = [re * cw[0] - im * cw[1], re * cw[1] + im * cw[0]];
+    if (loop.lag > 0) {
+      const d = 1 + (w * loop.lag) ** 2;
+      [re, im] = [(re + im * w * loop.lag) / d, (im - re * w * loop.lag) / d];
+    }
+    return [re * loop.slope, im * loop.slope];
+  };
+  const lnBand = Math.log(band);
+  // −1/N(A) moves fast just above the smallest moving amplitude: the amplitude grid is dense there.
+  const nA = 200;
+  const lnAs: number[] = [];
+  for (let j = 0; j < nA; j++) lnAs.push(lnBand + Math.log1p(1e-3 * Math.pow(1e6, j / (nA - 1))));
+  const nW = 600;
+  const wLo = Math.max(wMin, wMax * 1e-6);
+  const lnW: number[] = [];
+  const lnMag: number[] = [];
+  const phase: number[] = [];
+  for (let i = 0; i < nW; i++) {
+    const w = wLo * Math.pow(wMax / wLo, i / (nW - 1));
+    const [lr, li] = L(w);
+    const p = Math.atan2(li, lr);
+    lnW.push(Math.log(w));
+    lnMag.push(Math.log(Math.hypot(lr, li)));
+    phase.push(i === 0 ? p : phase[i - 1] + wrapAngle(p - phase[i - 1]));
+  }
+  /**
+   * For amplitude e^lnA: the lowest frequency where L's phase meets −1/N(A)'s, and the mismatch
+   * g = ln|L| − ln|1/N| there (0 on a limit cycle); null when N = 0 or the phases never meet.
+   */
+  const mismatch = (lnA: number): { g: number; lnW: number } | null => {
+    const n = describingFunction(make, Math.exp(lnA));
+    const nn = n.re * n.re + n.im * n.im;
+    if (!(nn > 1e-18)) return null;
+    const target = Math.atan2(n.im / nn, -n.re / nn);
+    for (let i = 0; i + 1 < nW; i++) {
+      for (const k of [-2, -1, 0, 1]) {
+        const t = target + 2 * Math.PI * k;
+        const a = phase[i] - t;
+        const b = phase[i + 1] - t;
+        if (a === 0 || a * b < 0) {
+          const f = a === 0 ? 0 : a / (a - b);
+          return { g: lnMag[i] + f * (lnMag[i + 1] - lnMag[i]) + 0.5 * Math.log(nn), lnW: lnW[i] + f * (lnW[i + 1] - lnW[i]) };
+        }
+      }
+    }
+    return null;
+  };
+  const found: LimitCycle[] = [];
+  let prev: { lnA: number; m: { g: number; lnW: number } | null } | null = null;
+  for (const lnA of lnAs) {
+    const m = mismatch(lnA);
+    if (prev !== null && prev.m !== null && m !== null && prev.m.g * m.g <= 0) {
+      // Bisection on ln A between the grid points where the mismatch changes sign.
+      let lo = prev.lnA;
+      let hi = lnA;
+      let gLo = prev.m.g;
+      let best = m;
+      for (let it = 0; it < 30; it++) {
+        const mid = 0.5 * (lo + hi);
+        const mm = mismatch(mid);
+        if (mm === null) break;
+        best = mm;
+        if (gLo * mm.g <= 0) hi = mid;
+        else {
+          lo = mid;
+          gLo = mm.g;
+        }
+      }
+      const a = Math.exp(0.5 * (lo + hi));
+      const w = Math.exp(best.lnW);
+      const nv = describingFunction(make, a);
+      const [lr, li] = L(w);
+      law(w, cw);
+      // The measurement's first harmonic: the stem's (A |N|) through L/C.
+      const outputAmplitude = (a * Math.hypot(nv.re, nv.im) * Math.hypot(lr, li)) / Math.hypot(cw[0], cw[1]);
+      found.push({ amplitude: a, frequency: w, period: (2 * Math.PI) / w, outputAmplitude });
+    }
+    prev = { lnA, m };
+  }
+  if (found.length === 0) return null;
+  return found.reduce((best, c) => (c.amplitude > best.amplitude ? c : best));
+}
+
+
+/**
+ * Local slope d(plant input)/d(travel) of the actuator's valve characteristic at `travel` (1 for a
+ * linear one), by a central difference on the engine's own law (sim's valveInput).
+ */
+export function characteristicSlope(spec: ActuatorSpec, travel: number): number {
+  if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return 1;
+  const d = 1e-6 * (spec.max - spec.min);
+  const lo = Math.max(spec.min, travel - d);
+  const hi = Math.min(spec.max, travel + d);
+  return (valveInput(spec, hi) - valveInput(spec, lo)) / (hi - lo);
+}

@@ -1,0 +1,34 @@
+/**
+ * The valve_stiction_cycle flag: present with its prediction when the valve has a band and the
+ * gains cycle on it, absent on a clean valve; an equal-percentage valve shows in the nonlinear flag.
+ */
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { diagnosePlant } from '../../src/diagnose/index.js';
+import { loadPlant } from '../../src/model/index.js';
+
+const sticky = readFileSync(new URL('../../plants/sticky-flow-valve.yaml', import.meta.url), 'utf8');
+const diagnose = (text: string) => diagnosePlant(loadPlant(text, 'x.yaml').plant!);
+
+describe('valve_stiction_cycle', () => {
+  it('the bundled sticky flow valve: flagged, the predicted measurement cycle within 30 % of the simulated one', () => {
+    const f = diagnose(sticky).flags.find((x) => x.kind === 'valve_stiction_cycle');
+    expect(f).toBeDefined();
+    expect(f!.severity).toBe('warning');
+    // Simulated without noise (test/sim/stiction-cycles.test.ts's case): about 0.34 peak to peak, period ~65 s.
+    expect(Math.abs((f!.evidence.predicted_output_amplitude as number) / 0.17 - 1)).toBeLessThan(0.3);
+    expect(Math.abs((f!.evidence.predicted_period_s as number) / 65 - 1)).toBeLessThan(0.2);
+    expect(f!.advice).toMatch(/more integral action/);
+    expect(f!.advice).toMatch(/fix is the valve/);
+  });
+  it('not flagged on the same loop with a clean valve', () => {
+    const d = diagnose(sticky.replace('stiction: { static: 1.5, dynamic: 0.7 }', 'backlash: 0'));
+    expect(d.flags.map((x) => x.kind)).not.toContain('valve_stiction_cycle');
+  });
+  it('an equal-percentage valve on a linear plant shows in the nonlinear flag (gain ratio R^0.8 between 10 and 90 % travel)', () => {
+    const text = sticky.replace('stiction: { static: 1.5, dynamic: 0.7 }', 'characteristic: equal_percentage\n  rangeability: 20');
+    const f = diagnose(text).flags.find((x) => x.kind === 'nonlinear');
+    expect(f).toBeDefined();
+    expect(f!.evidence.gain_ratio as number).toBeCloseTo(20 ** 0.8, 3);
+  });
+});
