@@ -367,7 +367,7 @@ export function App(props: AppProps) {
         base={base}
         run={run}
         req={req}
-        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - 1)}
+        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - (layout.marginsInMetrics ? 2 : 1))}
         nowLabel={nowLabel}
         notices={notices}
         margins={marginsNow}
@@ -540,7 +540,7 @@ function Panels(p: PanelsProps) {
             width={layout.metricsWidth}
             height={layout.bottomRows}
             theme={theme}
-            note={null}
+            note={layout.marginsInMetrics ? marginsLine(p.margins, theme) : null}
           />
         )}
         {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
@@ -569,7 +569,7 @@ function Panels(p: PanelsProps) {
   return (
     <Box flexDirection="column" width={w}>
       {trendGrid !== null && (
-        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} />
+        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} axis={layout.trendAxis} />
       )}
       {outputGrid !== null && (
         <ChartPanel

@@ -194,8 +194,14 @@ describe('tui app: save and quit', () => {
 describe('tui app: screen sizes and colour', () => {
   const lines = (f: string): string[] => f.split('\n');
 
-  it('80x24: 23 lines, none wider than 80, trend, gains, metrics, status and hint', async () => {
-    const s = await mount('surge-tank.yaml');
+  it('80x24: 23 lines, none wider than 80, trend, valve, gains, verdicts, margins, status and hint', async () => {
+    const source: NoticeSource = {
+      available: true,
+      plantNotices: () => [],
+      margins: () => ({ gainMargin: 4.25, phaseMarginDeg: 61.5, maxSensitivity: 1.42 }),
+    };
+    const s = await mount('surge-tank.yaml', { notices: source });
+    await until(() => s.frame().includes('GM 4.25  PM 61.5°  Ms 1.42'), 'the margins line', s.frame);
     const f = s.frame();
     expect(lines(f)).toHaveLength(23);
     for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
@@ -204,7 +210,23 @@ describe('tui app: screen sizes and colour', () => {
     expect(f).toContain('Trial vs requirements');
     expect(f).toContain('surge-tank.yaml');
     expect(lines(f)[22]).toContain('? keys');
-    expect(f).not.toContain('Controller output');
+    // The valve against its limits, and every requirement verdict of the file still shown.
+    expect(f).toContain('Controller output');
+    expect(f).toMatch(/^\s+1┤.*=/m);
+    expect(f).toMatch(/^\s+0┤.*=/m);
+    for (const label of ['overshoot', 'settling', 'Ms']) expect(f).toMatch(new RegExp(`│${label} +≤`));
+    // One time axis, shared by both charts.
+    expect(lines(f).filter((l) => /^\s+0 s\s/.test(l))).toHaveLength(1);
+  });
+
+  it('60x20: the valve and the margins line still fit', async () => {
+    const source: NoticeSource = { available: true, plantNotices: () => [], margins: () => ({ gainMargin: Infinity, phaseMarginDeg: 45, maxSensitivity: 1.7 }) };
+    const s = await mount('surge-tank.yaml', { notices: source, columns: 60, rows: 20 });
+    await until(() => s.frame().includes('GM ∞  PM 45°  Ms 1.7'), 'the margins line', s.frame);
+    const f = s.frame();
+    expect(lines(f)).toHaveLength(19);
+    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(60);
+    expect(f).toContain('Controller output');
   });
 
   it('120x40 adds the output chart and the notices column', async () => {
