@@ -190,7 +190,8 @@ export function App(props: AppProps) {
   useEffect(() => {
     if (live.current?.setGains(state.current) === true) {
       achieved.current = NaN;
-      dispatch({ type: 'notify', message: { text: 'live run restarted: the edited set runs another controller structure', tone: 'info' } });
+      // In instant mode the (paused) live run restarts unseen: nothing to tell.
+      if (latest.current.mode === 'live') dispatch({ type: 'notify', message: { text: 'live run restarted: the edited set runs another controller structure', tone: 'info' } });
     }
   }, [state.current.gains, state.current.structure, frameId(state.current)]);
   useEffect(() => {

@@ -415,6 +415,8 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
 function press(s: ScreenState, token: string, math: EditMath): ScreenState {
   const o = s.overlay;
   if (o.kind === 'help') {
+    // Ctrl-C quits from here as from the main screen (asking first when there is unsaved work).
+    if (token === 'ctrl-c') return command({ ...s, overlay: { kind: 'none' }, message: null }, 'quit', math);
     // ↓ / PgDn turns the page (the overlay wraps it); any other key closes.
     return token === 'down' || token === 'pgdn' ? { ...s, overlay: { kind: 'help', page: o.page + 1 } } : { ...s, overlay: { kind: 'none' } };
   }
