@@ -306,7 +306,11 @@ export function App(props: AppProps) {
 
   // ---------------------------------------------------------------- keys
   useInput((input, key) => {
-    for (const token of keyTokens(input, key)) dispatch({ type: 'press', token });
+    // While a value is typed the text field takes the keys (a read that carries Enter submits
+    // there); only Esc is ours. Judged on the state the read met: the field may have closed the
+    // prompt before these tokens are reduced, and '200 s' must not then step the setpoint.
+    const typing = latest.current.overlay.kind === 'input';
+    for (const token of keyTokens(input, key)) if (!typing || token === 'esc') dispatch({ type: 'press', token });
   });
 
   useEffect(() => {

@@ -65,6 +65,25 @@ describe('tui app: editing', () => {
     expect(s.frame()).not.toContain('Ti = ');
   });
 
+  it('80x24: Backspaces and a value with its unit and Enter in one read apply it and close the prompt', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(KEY.down, KEY.enter);
+    expect(s.frame()).toContain('Ti = 30');
+    // tmux send-keys BSpace BSpace BSpace, then '200 s' Enter: each group reaches the screen as one read.
+    await s.press(KEY.backspace.repeat(3));
+    await s.press('200 s\r');
+    await until(() => shown(s.frame(), 'Ti') === '200', 'the new value', s.frame);
+    await tick(100);
+    const f = s.frame();
+    expect(f).not.toContain('Ti = ');
+    // The characters of that read were the value's, not commands ('s' steps the setpoint of a live run).
+    expect(f).not.toContain('steps are injected');
+    for (const l of f.split('\n')) expect(l.length).toBeLessThanOrEqual(80);
+    // The screen takes keys again: the next Enter opens a new prompt.
+    await s.press(KEY.enter);
+    expect(s.frame()).toContain('Ti = 200');
+  });
+
   it('f converts the values to the next form (sheet section 13: Ki = Kc/Ti, Kd = Kc Td)', async () => {
     const s = await mount('surge-tank.yaml');
     await s.press('f');
