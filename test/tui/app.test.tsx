@@ -6,7 +6,7 @@ import { describe, it, expect, afterEach } from 'vitest';
 import { cleanup } from 'ink-testing-library';
 import { KEYMAP, keyLabel } from '../../src/tui/keymap.js';
 import type { NoticeSource } from '../../src/tui/notices.js';
-import { KEY, figure, mount, shown, tick, until } from './mount-app.js';
+import { KEY, figure, mount, repoPlants, shown, tick, until } from './mount-app.js';
 
 afterEach(() => cleanup());
 
@@ -82,6 +82,17 @@ describe('tui app: editing', () => {
     // The screen takes keys again: the next Enter opens a new prompt.
     await s.press(KEY.enter);
     expect(s.frame()).toContain('Ti = 200');
+  });
+
+  it('80x24: a negative Kc (output driven away from the setpoint) never reads as 0 % overshoot met', async () => {
+    const s = await mount('surge-tank.yaml', { dir: repoPlants });
+    await s.press(KEY.enter);
+    await s.press('-3\r');
+    await until(() => shown(s.frame(), 'Kc') === '-3', 'the negative gain', s.frame);
+    const f = s.frame();
+    expect(f).toMatch(/│overshoot\s+≤ 10 %\s+not reached \[NO\]/);
+    expect(f).not.toMatch(/│overshoot.*\b0 %/);
+    for (const l of f.split('\n')) expect(l.length).toBeLessThanOrEqual(80);
   });
 
   it('f converts the values to the next form (sheet section 13: Ki = Kc/Ti, Kd = Kc Td)', async () => {
