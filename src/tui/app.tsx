@@ -190,7 +190,8 @@ export function App(props: AppProps) {
   useEffect(() => {
     if (live.current?.setGains(state.current) === true) {
       achieved.current = NaN;
-      dispatch({ type: 'notify', message: { text: 'live run restarted: the edited set runs another controller structure', tone: 'info' } });
+      // In instant mode the (paused) live run restarts unseen: nothing to tell.
+      if (latest.current.mode === 'live') dispatch({ type: 'notify', message: { text: 'live run restarted: the edited set runs another controller structure', tone: 'info' } });
     }
   }, [state.current.gains, state.current.structure, frameId(state.current)]);
   useEffect(() => {
@@ -305,7 +306,11 @@ export function App(props: AppProps) {
 
   // ---------------------------------------------------------------- keys
   useInput((input, key) => {
-    for (const token of keyTokens(input, key)) dispatch({ type: 'press', token });
+    // While a value is typed the text field takes the keys (a read that carries Enter submits
+    // there); only Esc is ours. Judged on the state the read met: the field may have closed the
+    // prompt before these tokens are reduced, and '200 s' must not then step the setpoint.
+    const typing = latest.current.overlay.kind === 'input';
+    for (const token of keyTokens(input, key)) if (!typing || token === 'esc') dispatch({ type: 'press', token });
   });
 
   useEffect(() => {
@@ -367,7 +372,7 @@ export function App(props: AppProps) {
         base={base}
         run={run}
         req={req}
-        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - 1)}
+        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - (layout.marginsInMetrics ? 2 : 1))}
         nowLabel={nowLabel}
         notices={notices}
         margins={marginsNow}
@@ -540,7 +545,7 @@ function Panels(p: PanelsProps) {
             width={layout.metricsWidth}
             height={layout.bottomRows}
             theme={theme}
-            note={null}
+            note={layout.marginsInMetrics ? marginsLine(p.margins, theme) : null}
           />
         )}
         {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
@@ -569,7 +574,7 @@ function Panels(p: PanelsProps) {
   return (
     <Box flexDirection="column" width={w}>
       {trendGrid !== null && (
-        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} />
+        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} axis={layout.trendAxis} />
       )}
       {outputGrid !== null && (
         <ChartPanel

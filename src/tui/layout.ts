@@ -18,6 +18,10 @@ export interface Layout {
   trendRows: number;
   /** Plot rows of the controller-output chart (0 = not shown). */
   outputRows: number;
+  /** The trend draws its own time axis; false when the output chart right below shares its axis. */
+  trendAxis: boolean;
+  /** The margins (GM, PM, Ms) take the last line of the metrics column (no notices column). */
+  marginsInMetrics: boolean;
   /** Body lines of the gain / metrics row (below its heading). */
   bottomRows: number;
   gainsWidth: number;
@@ -28,7 +32,11 @@ export interface Layout {
 
 /** Smallest terminal with a trend chart. */
 export const MIN_TREND = { columns: 60, rows: 14 } as const;
-/** From this size on: output chart, notices column. */
+/** Plot rows of the output chart below the large size: enough to see the valve against its limits. */
+export const SMALL_OUTPUT_ROWS = 3;
+/** Body lines of the bottom row below the large size: metrics header, five verdicts, the margins line. */
+const SMALL_BOTTOM_ROWS = 7;
+/** From this size on: notices column, taller output chart. */
 export const LARGE = { columns: 100, rows: 32 } as const;
 
 /**
@@ -44,18 +52,27 @@ export function computeLayout(columns: number, rows: number, gainLines: number):
   const fixed = 3;
   if (width < MIN_TREND.columns || lines + 1 < MIN_TREND.rows) {
     const bottomRows = Math.max(1, lines - fixed - 1);
-    return { tier: 'tiny', width, lines, trendRows: 0, outputRows: 0, bottomRows, gainsWidth: width, metricsWidth: 0, noticesWidth: 0 };
+    return { tier: 'tiny', width, lines, trendRows: 0, outputRows: 0, trendAxis: false, marginsInMetrics: false, bottomRows, gainsWidth: width, metricsWidth: 0, noticesWidth: 0 };
   }
   const wanted = Math.max(gainLines, 6);
   const large = width >= LARGE.columns && lines + 1 >= LARGE.rows;
   // Each chart costs a heading and a time axis besides its plot rows; the bottom row a heading.
   if (!large) {
+    const gainsWidth = Math.min(38, Math.floor(width * 0.45));
+    const cols = { gainsWidth, metricsWidth: width - gainsWidth - 1, noticesWidth: 0 };
+    // Over SSH the valve is what one watches while retuning: the output chart comes before trend
+    // rows, sharing the trend's time axis (one heading more, one axis less).
+    const withOutput = lines - fixed - 1 - 3 - SMALL_OUTPUT_ROWS;
+    if (withOutput >= 3 + 4) {
+      const bottomRows = Math.min(Math.max(wanted, SMALL_BOTTOM_ROWS), withOutput - 3);
+      const trendRows = withOutput - bottomRows;
+      return { tier: 'small', width, lines, trendRows, outputRows: SMALL_OUTPUT_ROWS, trendAxis: false, marginsInMetrics: true, bottomRows, ...cols };
+    }
     const avail = lines - fixed - 1 - 2;
     // The trend keeps at least 3 rows; the gain panel scrolls when it gets fewer than it needs.
     const bottomRows = Math.min(wanted, avail - 3);
     const trendRows = avail - bottomRows;
-    const gainsWidth = Math.min(38, Math.floor(width * 0.45));
-    return { tier: 'small', width, lines, trendRows, outputRows: 0, bottomRows, gainsWidth, metricsWidth: width - gainsWidth - 1, noticesWidth: 0 };
+    return { tier: 'small', width, lines, trendRows, outputRows: 0, trendAxis: true, marginsInMetrics: true, bottomRows, ...cols };
   }
   const bottomRows = wanted;
   const free = lines - fixed - 1 - bottomRows;
@@ -65,5 +82,5 @@ export function computeLayout(columns: number, rows: number, gainLines: number):
   const gainsWidth = 38;
   const noticesWidth = Math.max(24, Math.floor((width - gainsWidth) * 0.4));
   const metricsWidth = width - gainsWidth - noticesWidth - 2;
-  return { tier: 'large', width, lines, trendRows, outputRows, bottomRows, gainsWidth, metricsWidth, noticesWidth };
+  return { tier: 'large', width, lines, trendRows, outputRows, trendAxis: true, marginsInMetrics: false, bottomRows, gainsWidth, metricsWidth, noticesWidth };
 }

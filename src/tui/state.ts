@@ -11,6 +11,7 @@ import type { AntiWindup, ControllerStructure, PidForm, StructureName } from '..
 import { commandFor, listCommandFor, NUDGE, SPEEDS, type KeyCommand } from './keymap.js';
 import type { ControllerFrame, GainEdit } from './gain-edit.js';
 import type { CandidateEntry, OptimizeOutcome, OptimizeView, SuggestView } from './tuning-views.js';
+import { typedText } from './typed-text.js';
 
 export type { ControllerFrame, GainEdit } from './gain-edit.js';
 
@@ -373,8 +374,13 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
       return s.overlay.kind === 'suggest' || s.overlay.kind === 'optimize' || s.overlay.kind === 'compare'
         ? { ...s, overlay: { kind: 'none' }, message: { text: a.text, tone: 'error' } }
         : { ...s, message: { text: a.text, tone: 'error' } };
-    case 'input_change':
-      return s.overlay.kind === 'input' ? { ...s, overlay: { ...s.overlay, text: a.text, error: null } } : s;
+    case 'input_change': {
+      if (s.overlay.kind !== 'input') return s;
+      // Keys that arrived in one read come as one string: Backspace and Enter act as keys here.
+      const typed = typedText(a.text);
+      const next: ScreenState = { ...s, overlay: { ...s.overlay, text: typed.text, error: null } };
+      return typed.enter ? submitInput(next, math) : next;
+    }
     case 'input_cancel':
       return s.overlay.kind === 'input' ? { ...s, overlay: { kind: 'none' } } : s;
     case 'input_submit':
@@ -415,6 +421,8 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
 function press(s: ScreenState, token: string, math: EditMath): ScreenState {
   const o = s.overlay;
   if (o.kind === 'help') {
+    // Ctrl-C quits from here as from the main screen (asking first when there is unsaved work).
+    if (token === 'ctrl-c') return command({ ...s, overlay: { kind: 'none' }, message: null }, 'quit', math);
     // ↓ / PgDn turns the page (the overlay wraps it); any other key closes.
     return token === 'down' || token === 'pgdn' ? { ...s, overlay: { kind: 'help', page: o.page + 1 } } : { ...s, overlay: { kind: 'none' } };
   }

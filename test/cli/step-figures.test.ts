@@ -67,6 +67,30 @@ describe('step figures on every surface', () => {
     expect(text.out).not.toContain('not settled');
   });
 
+  it('a settling loop at 275 % overshoot without an overshoot requirement is not status ok', async () => {
+    // P on (20 s + 1)/(s + 1)^2: the lead zero throws the output far past its final value
+    // Kc K/(1 + Kc K) = 0.167 before it settles there.
+    const lead = `name: Lead plant
+model: { type: transfer, numerator: [20, 1], denominator: [1, 2, 1] }
+loop:
+  sample_time: 0.005 s
+  controller: { structure: p, form: ideal, kc: 0.2 }
+  trial: { duration: 40 s, initial_setpoint: 0, events: [{ at: 1 s, setpoint: 1 }] }
+`;
+    const doc = JSON.parse((await cli(['run', 'lead.yaml', '--json'], { 'lead.yaml': lead })).out);
+    expect(doc.events[0].settled).toBe(true);
+    expect(doc.metrics.overshoot_pct).toBeGreaterThan(100);
+    const text = await cli(['run', 'lead.yaml'], { 'lead.yaml': lead });
+    expect(text.code).toBe(0);
+    expect(text.out).not.toContain('status: ok');
+    expect(text.out).toMatch(/status: OVERSHOOT 27\d\.\d % - past its target by more than the size of the step \(step at 1 s\)/);
+    // With an overshoot requirement, its failure says it once.
+    const required = lead.replace('  trial:', '  requirements: { overshoot_pct: 20 }\n  trial:');
+    const withReq = await cli(['run', 'lead.yaml'], { 'lead.yaml': required });
+    expect(withReq.out).toContain('status: FAILS overshoot_pct');
+    expect(withReq.out).not.toContain('OVERSHOOT');
+  });
+
   it('a step requirement on a trial without a setpoint step: N/A with the reason in run and check; check exits 1', async () => {
     const flat = P_ONLY.replace('events: [{ at: 1 s, setpoint: 1 }]', 'events: []').replace('{ rise_time: 2 s, settling_time: 5 s }', '{ overshoot_pct: 10, iae: 1 }');
     const run = await cli(['run', 'flat.yaml'], { 'flat.yaml': flat });

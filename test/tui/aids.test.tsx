@@ -174,6 +174,20 @@ describe('tui aids: comparison view (c)', () => {
     expect(f).toMatch(/^> single PI \(file\)/m);
   });
 
+  it('instant mode: switching to a candidate of another structure says nothing about a live run', async () => {
+    const s = await mount('jacketed-reactor-temperature.yaml', reactor);
+    // Live, then back to instant: the live run object stays, paused, behind the instant trial.
+    await s.press('l');
+    await s.press('l');
+    expect(s.frame()).toContain('instant');
+    await s.press('c');
+    await until(() => s.frame().includes('compare: output'), 'the comparison', s.frame, LONG);
+    await s.press(KEY.down);
+    expect(s.frame()).toContain("editing candidate 'single I-P (b 0)' (i_pd)");
+    await s.press(KEY.esc);
+    for (const f of s.frames()) expect(f).not.toContain('live run restarted');
+  });
+
   it('↓ switches the edited candidate (one undo step each); a structure other than the file\'s is not saved', async () => {
     const s = await mount('jacketed-reactor-temperature.yaml', reactor);
     await s.press('c');
@@ -247,6 +261,35 @@ describe('tui aids: help pages and colour', () => {
     expect(s.frame()).toContain('In a list or view');
     await s.press('x');
     expect(s.frame()).toContain('Trial trend');
+  });
+
+  it('80x24: the last help page offers ↓ back to page 1, not a next page', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press('?');
+    expect(s.frame()).toContain('page 1/2: ↓ next page');
+    await s.press(KEY.down);
+    intact(s.frame());
+    expect(s.frame()).toContain('page 2/2: ↓ page 1, any other key closes this help');
+    expect(s.frame()).not.toContain('next page');
+    await s.press(KEY.down);
+    expect(s.frame()).toContain('page 1/2');
+  });
+
+  it('80x24: Ctrl-C inside the help quits (asking first when the gains are unsaved)', async () => {
+    const clean = await mount('surge-tank.yaml');
+    await clean.press('?');
+    await clean.press(KEY.ctrlC);
+    await until(() => clean.exits.length > 0, 'the exit', clean.frame);
+    expect(clean.exits).toEqual([0]);
+    cleanup();
+    const dirty = await mount('surge-tank.yaml');
+    await dirty.press(']', '?');
+    await dirty.press(KEY.ctrlC);
+    intact(dirty.frame());
+    expect(dirty.frame()).toContain('Quit without saving? (y/n)');
+    await dirty.press('y');
+    await until(() => dirty.exits.length > 0, 'the exit', dirty.frame);
+    expect(dirty.exits).toEqual([0]);
   });
 
   it('without colour the overlays carry no escape codes', async () => {

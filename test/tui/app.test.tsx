@@ -6,7 +6,7 @@ import { describe, it, expect, afterEach } from 'vitest';
 import { cleanup } from 'ink-testing-library';
 import { KEYMAP, keyLabel } from '../../src/tui/keymap.js';
 import type { NoticeSource } from '../../src/tui/notices.js';
-import { KEY, figure, mount, shown, tick, until } from './mount-app.js';
+import { KEY, figure, mount, repoPlants, shown, tick, until } from './mount-app.js';
 
 afterEach(() => cleanup());
 
@@ -63,6 +63,36 @@ describe('tui app: editing', () => {
     await s.press(KEY.enter, KEY.esc);
     expect(shown(s.frame(), 'Ti')).toBe('90');
     expect(s.frame()).not.toContain('Ti = ');
+  });
+
+  it('80x24: Backspaces and a value with its unit and Enter in one read apply it and close the prompt', async () => {
+    const s = await mount('surge-tank.yaml');
+    await s.press(KEY.down, KEY.enter);
+    expect(s.frame()).toContain('Ti = 30');
+    // tmux send-keys BSpace BSpace BSpace, then '200 s' Enter: each group reaches the screen as one read.
+    await s.press(KEY.backspace.repeat(3));
+    await s.press('200 s\r');
+    await until(() => shown(s.frame(), 'Ti') === '200', 'the new value', s.frame);
+    await tick(100);
+    const f = s.frame();
+    expect(f).not.toContain('Ti = ');
+    // The characters of that read were the value's, not commands ('s' steps the setpoint of a live run).
+    expect(f).not.toContain('steps are injected');
+    for (const l of f.split('\n')) expect(l.length).toBeLessThanOrEqual(80);
+    // The screen takes keys again: the next Enter opens a new prompt.
+    await s.press(KEY.enter);
+    expect(s.frame()).toContain('Ti = 200');
+  });
+
+  it('80x24: a negative Kc (output driven away from the setpoint) never reads as 0 % overshoot met', async () => {
+    const s = await mount('surge-tank.yaml', { dir: repoPlants });
+    await s.press(KEY.enter);
+    await s.press('-3\r');
+    await until(() => shown(s.frame(), 'Kc') === '-3', 'the negative gain', s.frame);
+    const f = s.frame();
+    expect(f).toMatch(/│overshoot\s+≤ 10 %\s+not reached \[NO\]/);
+    expect(f).not.toMatch(/│overshoot.*\b0 %/);
+    for (const l of f.split('\n')) expect(l.length).toBeLessThanOrEqual(80);
   });
 
   it('f converts the values to the next form (sheet section 13: Ki = Kc/Ti, Kd = Kc Td)', async () => {
@@ -194,8 +224,14 @@ describe('tui app: save and quit', () => {
 describe('tui app: screen sizes and colour', () => {
   const lines = (f: string): string[] => f.split('\n');
 
-  it('80x24: 23 lines, none wider than 80, trend, gains, metrics, status and hint', async () => {
-    const s = await mount('surge-tank.yaml');
+  it('80x24: 23 lines, none wider than 80, trend, valve, gains, verdicts, margins, status and hint', async () => {
+    const source: NoticeSource = {
+      available: true,
+      plantNotices: () => [],
+      margins: () => ({ gainMargin: 4.25, phaseMarginDeg: 61.5, maxSensitivity: 1.42 }),
+    };
+    const s = await mount('surge-tank.yaml', { notices: source });
+    await until(() => s.frame().includes('GM 4.25  PM 61.5°  Ms 1.42'), 'the margins line', s.frame);
     const f = s.frame();
     expect(lines(f)).toHaveLength(23);
     for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
@@ -204,7 +240,23 @@ describe('tui app: screen sizes and colour', () => {
     expect(f).toContain('Trial vs requirements');
     expect(f).toContain('surge-tank.yaml');
     expect(lines(f)[22]).toContain('? keys');
-    expect(f).not.toContain('Controller output');
+    // The valve against its limits, and every requirement verdict of the file still shown.
+    expect(f).toContain('Controller output');
+    expect(f).toMatch(/^\s+1┤.*=/m);
+    expect(f).toMatch(/^\s+0┤.*=/m);
+    for (const label of ['overshoot', 'settling', 'Ms']) expect(f).toMatch(new RegExp(`│${label} +≤`));
+    // One time axis, shared by both charts.
+    expect(lines(f).filter((l) => /^\s+0 s\s/.test(l))).toHaveLength(1);
+  });
+
+  it('60x20: the valve and the margins line still fit', async () => {
+    const source: NoticeSource = { available: true, plantNotices: () => [], margins: () => ({ gainMargin: Infinity, phaseMarginDeg: 45, maxSensitivity: 1.7 }) };
+    const s = await mount('surge-tank.yaml', { notices: source, columns: 60, rows: 20 });
+    await until(() => s.frame().includes('GM ∞  PM 45°  Ms 1.7'), 'the margins line', s.frame);
+    const f = s.frame();
+    expect(lines(f)).toHaveLength(19);
+    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(60);
+    expect(f).toContain('Controller output');
   });
 
   it('120x40 adds the output chart and the notices column', async () => {

@@ -133,6 +133,10 @@ describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
     await waitFor((t) => t.includes('press any key to continue'), 'the safety caution');
     type('x');
     let text = await waitFor((t) => kcShown(t) !== null && overshootShown(t) !== null, 'the gain and metrics panels');
+    // At 80x24, from the start: the valve against its limits and the margins of the edited gains.
+    text = await waitFor((t) => /│GM \S+ {2}PM \S+ {2}Ms \S+/.test(t), 'the margins line');
+    expect(text).toContain('Controller output');
+    for (const line of text.split('\n')) expect(line.length).toBeLessThanOrEqual(80);
     const kc0 = kcShown(text);
     const os0 = overshootShown(text);
 
@@ -150,7 +154,7 @@ describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
     text = await waitFor((t) => t.includes('Controller output') && t.includes('Notices'), 'the large layout');
     for (const line of text.split('\n')) expect(line.length).toBeLessThanOrEqual(120);
     tmux('resize-window', '-t', 'screen', '-x', '80', '-y', '24');
-    text = await waitFor((t) => !t.includes('Controller output') && t.includes('Trial trend'), 'the small layout');
+    text = await waitFor((t) => !t.includes('Notices') && t.includes('Trial trend') && t.includes('Controller output'), 'the small layout');
     await sleep(300);
     text = pane();
     const lines = text.split('\n');

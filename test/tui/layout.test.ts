@@ -8,15 +8,20 @@ import { computeLayout, type Layout } from '../../src/tui/layout.js';
 function drawnLines(l: Layout): number {
   if (l.tier === 'tiny') return 1 + 1 + l.bottomRows + 1 + 1;
   const chart = (rows: number): number => (rows > 0 ? rows + 2 : 0);
-  return 1 + chart(l.trendRows) + chart(l.outputRows) + 1 + l.bottomRows + 1 + 1;
+  const shared = l.trendAxis ? 0 : 1;
+  return 1 + chart(l.trendRows) - shared + chart(l.outputRows) + 1 + l.bottomRows + 1 + 1;
 }
 
 describe('tui layout', () => {
-  it('80x24: trend, gains and metrics, no output chart or notices column, 23 lines', () => {
+  it('80x24: trend, output chart sharing its time axis, gains and metrics with the margins line, no notices column, 23 lines', () => {
     const l = computeLayout(80, 24, 7);
     expect(l.tier).toBe('small');
-    expect(l.trendRows).toBe(10);
-    expect(l.outputRows).toBe(0);
+    expect(l.trendRows).toBe(6);
+    expect(l.outputRows).toBe(3);
+    expect(l.trendAxis).toBe(false);
+    expect(l.marginsInMetrics).toBe(true);
+    // Metrics header, five verdicts, the margins line.
+    expect(l.bottomRows).toBe(7);
     expect(l.noticesWidth).toBe(0);
     expect(l.gainsWidth + 1 + l.metricsWidth).toBe(80);
     expect(drawnLines(l)).toBe(23);

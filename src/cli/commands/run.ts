@@ -321,9 +321,12 @@ const UNITS: Readonly<Record<string, string>> = {
   saturated_time: ' s',
 };
 
+/** Overshoot (%) above which `status` never says ok: the output passed its target by more than the step. */
+const OVERSHOOT_NOT_OK = 100;
+
 /**
  * The status line: 'ok' only when the trial ran to its end, every setpoint step settled toward
- * its setpoint, and no requirement failed; otherwise what is wrong (a diverged loop, a step still
+ * its setpoint, no step overshot by more than 100 %, and no requirement failed; otherwise what is wrong (a diverged loop, a step still
  * moving at its end or gone the wrong way, failed requirements). N/A requirements are listed
  * with the requirements, not here.
  */
@@ -338,6 +341,12 @@ function runStatus(report: RunReport): string {
   if (moving.length > 0) problems.push(`NOT SETTLED - the output is still moving at the end of the step at ${moving.map((s) => secs(s.at)).join(', ')}`);
   if (away.length > 0) problems.push(`NOT FOLLOWING - the output settles short of or away from the setpoint after the step at ${away.map((s) => secs(s.at)).join(', ')}`);
   const failed = report.requirements.filter((r) => r.status === 'fail').map((r) => r.name);
+  // Past the setpoint by more than the step itself is no acceptable response, required or not
+  // (common practice, no source); a failed overshoot requirement already says so.
+  const overshoot = headlineMetrics(metrics).overshootPct;
+  if (overshoot !== null && overshoot.value > OVERSHOOT_NOT_OK && !failed.includes('overshoot_pct')) {
+    problems.push(`OVERSHOOT ${num(overshoot.value)} % - past its target by more than the size of the step (step at ${secs(overshoot.stepAt)})`);
+  }
   if (failed.length > 0) problems.push(`FAILS ${failed.join(', ')}`);
   return problems.length === 0 ? 'ok' : problems.join('; ');
 }

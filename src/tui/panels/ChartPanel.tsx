@@ -17,6 +17,8 @@ export interface ChartPanelProps {
   theme: Theme;
   /** Instants marked on the time axis. */
   marks?: readonly { at: number; ch: string }[];
+  /** Draw the time axis (default); false when the chart below shares it. */
+  axis?: boolean;
   /** Tag -> colour of the series. */
   colors: Readonly<Record<string, string | undefined>>;
 }
@@ -33,11 +35,11 @@ export function ChartPanel(p: ChartPanelProps) {
           pieces={row.map((s) => ({ text: s.text, color: s.tag === 'axis' ? p.theme.dim : p.colors[s.tag] }))}
         />
       ))}
-      <Line
+      {p.axis !== false && (<Line
         width={p.width}
         color={p.theme.color}
         pieces={[{ text: timeAxis(p.t0, p.t1, p.grid.gutter, p.grid.columns, p.width, p.marks), color: p.theme.dim }]}
-      />
+      />)}
     </Box>
   );
 }

@@ -45,7 +45,7 @@ export function HelpOverlay(p: { width: number; height: number; theme: Theme; pa
     rows.push(twoCols ? [...padTo(l, colW), { text: ' ' }, ...r] : l);
   }
   const footer: Piece[] = [
-    { text: pages > 1 ? `page ${page + 1}/${pages}: ↓ next page, any other key closes this help` : 'any key closes this help', color: p.theme.dim },
+    { text: pages > 1 ? `page ${page + 1}/${pages}: ↓ ${page + 1 < pages ? 'next page' : 'page 1'}, any other key closes this help` : 'any key closes this help', color: p.theme.dim },
   ];
   rows.push(footer);
   return (
