@@ -44,9 +44,34 @@ export function pointResponse(linear: LinearModel, spec: PlantSpec): PlantFreque
   return plantFrequencyResponse(linear, { wMax: Math.PI / h, extraDelay: spec.sensor.delay });
 }
 
-/** Prepare points for margins (one frequency response each; a linear kind shares one). */
+/** True when two linear models are the same to the bit (same matrices, feed-through and delay). */
+function sameModel(a: LinearModel, b: LinearModel): boolean {
+  if (a === b) return true;
+  if (a.nx !== b.nx || a.d !== b.d || a.delay !== b.delay) return false;
+  const eq = (x: Float64Array, y: Float64Array): boolean => {
+    for (let i = 0; i < x.length; i++) if (x[i] !== y[i]) return false;
+    return true;
+  };
+  return eq(a.a, b.a) && eq(a.b, b.b) && eq(a.c, b.c);
+}
+
+/**
+ * Prepare points for margins: one frequency response per distinct linear model. Points whose
+ * models are identical (a load change that leaves the linearisation as it was, a linear kind)
+ * share the response object, and `pointFigures` computes their margins once.
+ */
 export function preparePoints(points: readonly OperatingPoint[], spec: PlantSpec): PreparedPoint[] {
-  return points.map((point) => ({ point, response: point.linear === null ? null : pointResponse(point.linear, spec) }));
+  const made: { linear: LinearModel; response: PlantFrequencyResponse }[] = [];
+  return points.map((point) => {
+    const linear = point.linear;
+    if (linear === null) return { point, response: null };
+    let hit = made.find((m) => sameModel(m.linear, linear));
+    if (hit === undefined) {
+      hit = { linear, response: pointResponse(linear, spec) };
+      made.push(hit);
+    }
+    return { point, response: hit.response };
+  });
 }
 
 /**
@@ -77,8 +102,12 @@ export function dominantDamping(poles: readonly { re: number; im: number }[]): {
  */
 export function pointFigures(prepared: readonly PreparedPoint[], gains: GainSet, spec: PlantSpec, withDamping = false): PointFigures[] {
   const h = spec.loop.sampleTime;
+  // Points that share a response (the same linear model) share their figures.
+  const done = new Map<PlantFrequencyResponse, Omit<PointFigures, 'point'>>();
   return prepared.map(({ point, response }) => {
     if (response === null || point.linear === null) return { point, margins: null, damping: NaN, dampingPole: null };
+    const again = done.get(response);
+    if (again !== undefined) return { point, ...again };
     const margins = loopMargins(response, gains, h, spec.sensor);
     let damping = NaN;
     let dampingPole: { re: number; im: number } | null = null;
@@ -91,6 +120,7 @@ export function pointFigures(prepared: readonly PreparedPoint[], gains: GainSet,
         dampingPole = d.pole;
       }
     }
+    done.set(response, { margins, damping, dampingPole });
     return { point, margins, damping, dampingPole };
   });
 }
