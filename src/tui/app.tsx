@@ -34,7 +34,7 @@ import { CompareOverlay } from './panels/CompareOverlay.js';
 import { GainsPanel, gainPanelLines } from './panels/GainsPanel.js';
 import { Heading } from './panels/Heading.js';
 import { HelpOverlay } from './panels/HelpOverlay.js';
-import { Line, fit, type Piece } from './panels/line.js';
+import { ellipsizePieces, Line, fit, type Piece } from './panels/line.js';
 import { MetricsPanel } from './panels/MetricsPanel.js';
 import { NoticesPanel, noticePieces } from './panels/NoticesPanel.js';
 import { noiseNotice } from './noise-notice.js';
@@ -705,6 +705,6 @@ function MessageLine(p: {
     );
   }
   const first = p.notices[0];
-  if (first !== undefined) return <Line pieces={noticePieces(first, theme)} width={width} color={theme.color} />;
+  if (first !== undefined) return <Line pieces={ellipsizePieces(noticePieces(first, theme), width)} width={width} color={theme.color} />;
   return <Line pieces={[]} width={width} color={theme.color} />;
 }

@@ -27,6 +27,34 @@ export function fitPieces(pieces: readonly Piece[], width: number): Piece[] {
   return out;
 }
 
+/**
+ * Pieces shortened to `width` columns at a word boundary, ending in '…' when anything was left
+ * out (a one-line notice must not end in half a word). Pieces that fit come back unchanged.
+ */
+export function ellipsizePieces(pieces: readonly Piece[], width: number): Piece[] {
+  let total = 0;
+  for (const p of pieces) total += p.text.length;
+  if (total <= width) return [...pieces];
+  if (width < 2) return fitPieces(pieces, width);
+  const room = width - 1;
+  const out: Piece[] = [];
+  let used = 0;
+  for (const p of pieces) {
+    if (used + p.text.length <= room) {
+      out.push(p);
+      used += p.text.length;
+      continue;
+    }
+    let cut = p.text.slice(0, room - used);
+    const space = cut.lastIndexOf(' ');
+    // Back to the last word boundary when there is one in this piece; else cut the word.
+    if (space > 0) cut = cut.slice(0, space);
+    out.push({ ...p, text: `${cut.trimEnd()}…` });
+    return out;
+  }
+  return out;
+}
+
 /** Pad or cut plain text to `width`. */
 export function fit(text: string, width: number): string {
   return text.length >= width ? text.slice(0, width) : text + ' '.repeat(width - text.length);
