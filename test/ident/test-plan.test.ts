@@ -69,6 +69,7 @@ describe('looprig bump-plan', () => {
     const doc = JSON.parse(io2.stdout);
     // The surge tank's linearisation at 1 m: gain 4 m per unit valve, 750 s (the file's header comment).
     expect(doc.figures.gain).toBeCloseTo(4, 1);
-    expect(doc.figures.timeConstant).toBeGreaterThan(700);
+    expect(doc.figures.time_constant).toBeGreaterThan(700);
+    expect(doc.plan.sample_interval).toBeGreaterThan(0);
   });
 });

@@ -134,7 +134,7 @@ export async function bumpPlanCommand(args: readonly string[], io: Io): Promise<
     writeOutput(io, out, text, {}, 'bump-plan');
   }
   if (values.json === true) {
-    io.out(toJson({ figures, plan, trial: trialText, out }));
+    io.out(toJson({ figures: snakeKeys(figures), plan: snakeKeys(plan), trial: trialText, out }));
     return 0;
   }
   io.out(summary(figures, plan, file, fromFile?.notes ?? []));
@@ -244,4 +244,13 @@ function newPlantFile(f: PlanFigures, p: TestPlan, prbs: boolean): string {
     trialYaml(p, prbs).trimEnd(),
     '',
   ].filter((l) => l !== '').join('\n') + '\n';
+}
+
+/** The plan's records with snake_case keys, as every --json document writes them (timeConstant -> time_constant). */
+function snakeKeys(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(snakeKeys);
+  if (value === null || typeof value !== 'object') return value;
+  const out: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(value)) out[k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`)] = snakeKeys(v);
+  return out;
 }
