@@ -16,3 +16,15 @@ export function finiteOrNull(x: number): number | null {
 export function noiseJson(n: NoiseActivity | null): { step_std: number; rate_step: number | null; rate_limited_share: number } | null {
   return n === null ? null : { step_std: n.stepStd, rate_step: finiteOrNull(n.rateStep), rate_limited_share: n.rateLimitedShare };
 }
+
+/**
+ * A core record with its keys in snake_case, as every --json document writes them
+ * (timeConstant -> time_constant), nested records and arrays included.
+ */
+export function snakeKeys(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(snakeKeys);
+  if (value === null || typeof value !== 'object' || ArrayBuffer.isView(value)) return value;
+  const out: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(value)) out[k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`)] = snakeKeys(v);
+  return out;
+}

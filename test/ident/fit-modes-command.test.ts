@@ -46,7 +46,7 @@ describe('fit --plant: grey box and validation', () => {
     const doc = JSON.parse(io.stdout);
     expect(doc.fit.r2).toBeGreaterThan(0.999);
     expect(doc.tests.whiteness.passed).toBe(true);
-    expect(doc.tests.inputIndependence.passed).toBe(true);
+    expect(doc.tests.input_independence.passed).toBe(true);
     // The file's wrong values fail the tests.
     const bad = fakeIo({ 'tank.csv': tankLog, 'tank.yaml': tankFile });
     expect(await main(['fit', 'tank.csv', '--plant', 'tank.yaml', '--json'], bad)).toBe(0);
@@ -93,8 +93,8 @@ describe('fit --setpoint: closed loop', () => {
     expect(Math.abs(p('gain') / 2 - 1)).toBeLessThan(0.1);
     expect(Math.abs(p('time_constant') / 20 - 1)).toBeLessThan(0.1);
     expect(Math.abs(p('delay') / 4 - 1)).toBeLessThan(0.1);
-    expect(doc.excitation.setpointMoves).toBe(2);
-    expect(doc.excitation.setpointRange).toBeCloseTo(1.5, 12);
+    expect(doc.excitation.setpoint_moves).toBe(2);
+    expect(doc.excitation.setpoint_range).toBeCloseTo(1.5, 12);
     expect(doc.controller.explains).toBe(true);
   });
 

@@ -13,7 +13,7 @@ import { lowOrderOf, tuningContext } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { num } from '../format.js';
 import type { Io } from '../io.js';
-import { toJson } from '../json.js';
+import { snakeKeys, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import { parseCommandArgs } from '../parse-command.js';
 import { writeOutput } from '../write-output.js';
@@ -246,11 +246,3 @@ function newPlantFile(f: PlanFigures, p: TestPlan, prbs: boolean): string {
   ].filter((l) => l !== '').join('\n') + '\n';
 }
 
-/** The plan's records with snake_case keys, as every --json document writes them (timeConstant -> time_constant). */
-function snakeKeys(value: unknown): unknown {
-  if (Array.isArray(value)) return value.map(snakeKeys);
-  if (value === null || typeof value !== 'object') return value;
-  const out: Record<string, unknown> = {};
-  for (const [k, v] of Object.entries(value)) out[k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`)] = snakeKeys(v);
-  return out;
-}

@@ -11,7 +11,7 @@ import type { BumpData, ClosedLoopFit, FitStatistics } from '../../ident/index.j
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
 import type { Io } from '../io.js';
-import { toJson } from '../json.js';
+import { snakeKeys, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import type { FitOptions } from './fit-log.js';
 import { printLogDiagnostics, readLog, readLogText } from './fit-log.js';
@@ -83,7 +83,7 @@ function summary(fit: ClosedLoopFit, data: BumpData, options: FitOptions, check:
 }
 
 function json(fit: ClosedLoopFit, data: BumpData, options: FitOptions, check: FitStatistics | null): unknown {
-  return {
+  return snakeKeys({
     file: options.file,
     samples: data.n,
     dt: data.dt,
@@ -96,5 +96,5 @@ function json(fit: ClosedLoopFit, data: BumpData, options: FitOptions, check: Fi
     whiteness: fit.tests?.whiteness ?? null,
     notes: fit.notes,
     controller: check === null ? null : { file: options.controller, nrmse: check.nrmse, explains: check.nrmse <= CONTROLLER_MISMATCH },
-  };
+  });
 }

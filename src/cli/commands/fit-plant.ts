@@ -16,7 +16,7 @@ import type { PlantSpec } from '../../model/types.js';
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
 import type { Io } from '../io.js';
-import { toJson } from '../json.js';
+import { snakeKeys, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 import { svgPlot } from '../svg-plot.js';
 import { writeOutput } from '../write-output.js';
@@ -149,18 +149,18 @@ function validationSummary(v: Validation, data: BumpData, options: FitOptions): 
 }
 
 function statsJson(s: FitStatistics, maxErrorTime: number): unknown {
-  return { nrmse: s.nrmse, r2: s.r2, rmse: s.rmse, maxError: s.maxError, maxErrorTime };
+  return { nrmse: s.nrmse, r2: s.r2, rmse: s.rmse, max_error: s.maxError, max_error_time: maxErrorTime };
 }
 
 function testsJson(t: ResidualTests): unknown {
-  return { whiteness: t.whiteness, inputIndependence: t.inputIndependence, autocorrelation: t.autocorrelation, crossCorrelation: t.crossCorrelation, band: t.band };
+  return snakeKeys({ whiteness: t.whiteness, inputIndependence: t.inputIndependence, autocorrelation: t.autocorrelation, crossCorrelation: t.crossCorrelation, band: t.band });
 }
 
 function greyBoxJson(fit: GreyBoxFit, data: BumpData, options: FitOptions): unknown {
   return {
     file: options.file,
     plant: options.plant,
-    parameters: fit.parameters,
+    parameters: snakeKeys(fit.parameters),
     correlation: fit.correlation,
     condition: Number.isFinite(fit.condition) ? fit.condition : null,
     fit: statsJson(fit.statistics, data.t0 + fit.statistics.maxErrorIndex * data.dt),
