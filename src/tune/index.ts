@@ -43,7 +43,7 @@ export { poleplacementPi, poleplacementPid, poleplacementIntegratingPi, dominant
 export type { PoleTarget, Placement } from './rules/pole-placement.js';
 export { shapePi, shapePid, shapingRules } from './loop-shaping.js';
 export type { ShapingTarget, ShapingLoop, Shaped } from './loop-shaping.js';
-export { msConstrainedPi, msPiRule, piMs } from './ms-constrained-pi.js';
+export { msConstrainedPi, msPiRule, piMs, responseMsLoop } from './ms-constrained-pi.js';
 export type { MsLoop, MsPi } from './ms-constrained-pi.js';
 export { optimizeGains, createOptimizer, optimizerScore, chooseStart, requirementShortfall, bindingConstraints, INFEASIBLE_RANK, UNMET_RANK, DEFAULT_EVALUATIONS, DEFAULT_MS_TARGET } from './optimize.js';
 export type { OptimizeOptions, OptimizeProgress, OptimizeResult, OptimizeStop, StartCandidate, Optimizer, BindingConstraint } from './optimize.js';

@@ -2,25 +2,35 @@
  * The PI with the largest integral gain ki = kc/Ti subject to Ms <= target (Åström, Panagopoulos
  * & Hägglund, "Design of PI controllers based on non-convex optimization", Automatica 34(5),
  * 1998: maximise ki, the load-disturbance figure IE = 1/ki, under the sensitivity constraint).
- * Ms is the project's one Ms: loopMargins on the loop's frequency response (hold, sensor and
- * delays as every margin in looprig is computed), with the closed loop required stable.
+ * Ms is the project's one Ms: `suggest` passes tune's gainMargins read through effectiveMs (the
+ * worst over the trial's operating points, the closed loop required stable), the figure every row
+ * is then judged by.
  *
  * Method (ours; the paper solves the same problem by stationarity conditions on the Ms circle):
  * for a fixed kc the admissible ki form an interval [0, kiMax(kc)] — found by doubling then
  * bisection; kiMax(kc) is maximised over kc on a grid from 0 to the largest kc that keeps
  * Ms <= target at vanishing ki, then refined by golden-section search around the best grid point.
  */
-import { loopMargins, type PlantFrequencyResponse } from '../analysis/index.js';
+import { effectiveMs, loopMargins, type PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, SensorSpec } from '../model/types.js';
 import type { TuningRule } from './rule-table.js';
 
 /** The loop the constraint is evaluated on. */
 export interface MsLoop {
-  response: PlantFrequencyResponse;
-  sampleTime: number;
-  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>;
+  /** Ms of a gain set on the loop, Infinity when the closed loop is not stable (effectiveMs). */
+  ms(g: GainSet): number;
   /** The file's gain set (weights, anti-windup kept; td is set to 0). */
   base: GainSet;
+}
+
+/** The loop of one frequency response (one operating point): for a plant without a plant file. */
+export function responseMsLoop(
+  response: PlantFrequencyResponse,
+  sampleTime: number,
+  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
+  base: GainSet,
+): MsLoop {
+  return { base, ms: (g) => effectiveMs(loopMargins(response, g, sampleTime, sensor)) };
 }
 
 /** Result: ideal-form PI and the Ms it has, or why there is none. */
@@ -31,10 +41,7 @@ const BISECT = 18;
 
 /** Ms of PI (kc, ki) on the loop; Infinity when the closed loop is not stable. */
 export function piMs(loop: MsLoop, kc: number, ki: number): number {
-  const g: GainSet = { ...loop.base, kc, ti: ki === 0 ? Infinity : kc / ki, td: 0 };
-  const m = loopMargins(loop.response, g, loop.sampleTime, loop.sensor);
-  if (m.closedLoopStable === false || !Number.isFinite(m.maxSensitivity)) return Infinity;
-  return m.maxSensitivity;
+  return loop.ms({ ...loop.base, kc, ti: ki === 0 ? Infinity : kc / ki, td: 0 });
 }
 
 /** The largest ki (same sign as kc) with Ms <= target at this kc; 0 when none. */

@@ -19,7 +19,8 @@ import { poleDelayNote, poleRules } from './pole-rules.js';
 import type { PoleTarget } from './rules/pole-placement.js';
 import { shapingRules, type ShapingLoop, type ShapingTarget } from './loop-shaping.js';
 import { msPiRule } from './ms-constrained-pi.js';
-import { sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
+import { effectiveMs, sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
+import { gainMargins } from './gain-margins.js';
 
 /** Options of `suggestGains`. */
 export interface SuggestOptions {
@@ -157,7 +158,9 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   // Design rows are asked for by their own option, so a rule filter does not drop them.
   const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime) : [];
   const shapeRules = options.shaping ? shapingRules(designLoop(ctx), options.shaping, plantSign(inputs)) : [];
-  const msRules = options.maxMs ? [msPiRule(designLoop(ctx), options.maxMs, plantSign(inputs))] : [];
+  // The Ms PI is held to the Ms every row is judged by: the worst over the operating points.
+  const msLoop = ctx.points.some((p) => p.response !== null) ? { base: ctx.spec.loop.controller.gains, ms: (g: GainSet) => effectiveMs(gainMargins(ctx, g)) } : null;
+  const msRules = options.maxMs ? [msPiRule(msLoop, options.maxMs, plantSign(inputs))] : [];
   const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules, ...shapeRules, ...msRules];
   if (options.poles) {
     const note = poleDelayNote(inputs, options.poles);

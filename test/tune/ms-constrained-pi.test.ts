@@ -13,7 +13,7 @@
 import { describe, expect, it } from 'vitest';
 import { plantFrequencyResponse } from '../../src/analysis/index.js';
 import type { GainSet } from '../../src/model/types.js';
-import { msConstrainedPi, piMs, type MsLoop } from '../../src/tune/ms-constrained-pi.js';
+import { msConstrainedPi, piMs, responseMsLoop, type MsLoop } from '../../src/tune/ms-constrained-pi.js';
 import { amigoPi } from '../../src/tune/rules/amigo.js';
 import { tf } from './tf.js';
 
@@ -21,7 +21,7 @@ const BASE: GainSet = { kc: 1, ti: Infinity, td: 0, n: 10, b: 1, c: 0, antiWindu
 
 function fopdtLoop(k: number, T: number, L: number): MsLoop {
   const h = L / 100;
-  return { response: plantFrequencyResponse(tf([k], [T, 1], L), { wMax: Math.PI / h, extraDelay: 0 }), sampleTime: h, sensor: { delay: 0, filterTime: 0 }, base: BASE };
+  return responseMsLoop(plantFrequencyResponse(tf([k], [T, 1], L), { wMax: Math.PI / h, extraDelay: 0 }), h, { delay: 0, filterTime: 0 }, BASE);
 }
 
 describe('Ms-constrained PI', () => {
