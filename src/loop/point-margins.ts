@@ -11,7 +11,7 @@
  * branches of a dead-time loop (for s + a e^(−θ s) = 0 with aθ = 0.5 the second branch decays 3.5
  * times faster than the first).
  */
-import { closedLoopCheck, loopExtras, loopMargins, plantFrequencyResponse } from '../analysis/index.js';
+import { closedLoopCheck, effectiveMs, loopExtras, loopMargins, plantFrequencyResponse } from '../analysis/index.js';
 import type { Margins, PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import type { LinearModel } from '../sim/index.js';
@@ -148,7 +148,7 @@ export function figureAt(f: PointFigures, figure: FrequencyFigure): number {
   const unstable = m.closedLoopStable === false;
   switch (figure) {
     case 'maxSensitivity':
-      return unstable ? Infinity : m.maxSensitivity;
+      return effectiveMs(m);
     case 'maxComplementarySensitivity':
       return unstable ? Infinity : m.maxComplementarySensitivity;
     case 'dampingRatio':
@@ -192,22 +192,24 @@ export function worstMargins(figures: readonly PointFigures[]): (Margins & { wor
   const usable = figures.filter((f) => f.margins !== null);
   if (usable.length === 0) return null;
   if (figures.length === 1) return { ...figures[0].margins!, worstAt: { gm: 0, pm: 0, ms: 0, mt: 0, bw: 0 } };
-  const pick = (better: (a: Margins, b: Margins) => boolean): number => {
-    let k = -1;
-    for (let i = 0; i < figures.length; i++) {
-      const m = figures[i].margins;
-      if (m === null) continue;
-      if (k < 0 || better(m, figures[k].margins!)) k = i;
-    }
-    return k;
-  };
-  const lt = (a: number, b: number): boolean => (Number.isNaN(a) ? !Number.isNaN(b) : !Number.isNaN(b) && a < b);
-  const gm = pick((a, b) => lt(a.gainMargin, b.gainMargin));
-  const pm = pick((a, b) => lt(a.phaseMarginDeg, b.phaseMarginDeg));
-  const ms = pick((a, b) => a.maxSensitivity > b.maxSensitivity);
-  const mt = pick((a, b) => a.maxComplementarySensitivity > b.maxComplementarySensitivity);
-  const bw = pick((a, b) => lt(a.bandwidth, b.bandwidth));
-  const dm = pick((a, b) => lt(a.delayMargin, b.delayMargin));
+  // The worst point of each figure by the rule every requirement row uses (worstPoint: an unstable
+  // point has Ms = ∞ and no margins, a figure that could not be computed counts as the worst).
+  // Only points with a linear model take part (the others are noted below).
+  const withModel: number[] = [];
+  for (let i = 0; i < figures.length; i++) if (figures[i].margins !== null) withModel.push(i);
+  const worst = (f: FrequencyFigure): number => withModel[worstPoint(withModel.map((i) => figures[i]), f).index];
+  const gm = worst('gainMargin');
+  const pm = worst('phaseMarginDeg');
+  const ms = worst('maxSensitivity');
+  const mt = worst('maxComplementarySensitivity');
+  const bw = worst('bandwidth');
+  // Delay margin is no requirement: the smallest over the points that have one.
+  let dm = -1;
+  for (let i = 0; i < figures.length; i++) {
+    const m = figures[i].margins;
+    if (m === null) continue;
+    if (dm < 0 || m.delayMargin < figures[dm].margins!.delayMargin) dm = i;
+  }
   const at = (i: number): Margins => figures[i].margins!;
   let stable: boolean | null = true;
   let rhp = 0;

@@ -1,14 +1,14 @@
 /**
  * Every bundled plant diagnoses without a crash, and the physics of each file shows in its flags.
  */
-import { pointFigures, worstMargins } from '../../src/loop/index.js';
 import { describe, it, expect } from 'vitest';
 import { readFileSync, readdirSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { loadPlant } from '../../src/model/index.js';
 import { diagnosePlant, diagnosisJson, formatDiagnosis, type FlagKind } from '../../src/diagnose/index.js';
-import { loopMargins } from '../../src/analysis/index.js';
+import { applyStructure } from '../../src/control/index.js';
+import { gainMargins, tuningContext } from '../../src/tune/index.js';
 
 const plantsDir = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', 'plants');
 const load = (f: string) => {
@@ -44,9 +44,10 @@ describe('bundled plants', () => {
       expect(json.linear.poles.length).toBe(d.linear!.nx);
       expect(Object.keys(json.margins)).toEqual(expect.arrayContaining(['gain_margin', 'phase_margin_deg', 'crossover_frequency', 'max_sensitivity']));
       expect(formatDiagnosis(d)).toContain(spec.name);
-      // The prepared operating points give the same margins as the diagnosis for the file's gains.
-      const again = worstMargins(pointFigures(d.points, spec.loop.controller.gains, spec))!;
-      if (spec.loop.controller.structure === 'pid' || spec.loop.controller.structure === 'pi') {
+      // The tuning commands, prepared on their own, read the same margins as the diagnosis.
+      const c = spec.loop.controller;
+      const again = gainMargins(tuningContext(spec), applyStructure(c.structure, c.gains))!;
+      if (c.structure === 'pid' || c.structure === 'pi') {
         expect(again.maxSensitivity).toBeCloseTo(d.margins!.maxSensitivity, 12);
       }
     });
