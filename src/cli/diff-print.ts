@@ -26,7 +26,7 @@ function limitText(r: CheckRow): string {
 function rowText(r: CheckRow | null): string {
   if (r === null) return '-';
   const verdict = r.status === 'pass' ? 'pass' : r.status === 'fail' ? 'FAIL' : 'N/A';
-  return `${r.status === 'not available' ? 'n/a' : withUnit(r.measured, r.unit)} ${verdict}`;
+  return `${r.status === 'n/a' ? 'n/a' : withUnit(r.measured, r.unit)} ${verdict}`;
 }
 
 /** The limit of a verdict row, both when the change moved it. */

@@ -31,7 +31,7 @@ export interface FigureDelta {
   note: string;
 }
 
-/** How a requirement's verdict moved. A failing verdict is 'fail' or 'not available' (as in check). */
+/** How a requirement's verdict moved. A failing verdict is 'fail' or 'n/a' (as in check). */
 export type VerdictChange = 'newly fails' | 'newly passes' | 'still fails' | 'still passes' | 'new, passes' | 'removed';
 
 /** One requirement row (nominal or worst case) before and after. */

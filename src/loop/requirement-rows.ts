@@ -49,12 +49,13 @@ const FIGURE_OF: Readonly<Record<string, FrequencyFigure>> = {
 export interface Figure {
   measured: number;
   available: boolean;
-  /** Where the figure comes from ("worst: step at 2520 s", "at level 7, 0.83 rad/s") or why it is missing. */
+  /** Where the figure comes from ("worst step: at 2520 s", "at level 7, 0.83 rad/s") or why it is missing. */
   note: string;
 }
 
-/** Verdict of one requirement. 'not available': the figure could not be evaluated (the note says why); it fails a check. */
-export type RequirementStatus = 'pass' | 'fail' | 'not available';
+/** Verdict of one requirement: analysis' one vocabulary ('n/a': the figure could not be evaluated, the note says why; it fails a check). */
+export type { RequirementStatus } from '../analysis/index.js';
+import type { RequirementStatus } from '../analysis/index.js';
 
 /** One row of a requirement report. */
 export interface RequirementRow {
@@ -163,7 +164,7 @@ function passes(measured: number, limit: number, kind: LimitKind): boolean {
 
 /** The row of one requirement from its figure. */
 export function requirementRow(info: RequirementInfo, scope: RequirementRow['scope'], limit: number, f: Figure): RequirementRow {
-  const status: RequirementStatus = !f.available ? 'not available' : passes(f.measured, limit, info.kind) ? 'pass' : 'fail';
+  const status: RequirementStatus = !f.available ? 'n/a' : passes(f.measured, limit, info.kind) ? 'pass' : 'fail';
   return { requirement: info.name, scope, measured: f.measured, limit, kind: info.kind, unit: info.unit, status, note: f.note };
 }
 

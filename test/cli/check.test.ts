@@ -132,7 +132,7 @@ describe('check: frequency domain against closed forms', () => {
     const f = `${FIX}/not-linearisable.yaml`;
     const r = await cli(['check', f, '--json']);
     const rows = rowsOf(JSON.parse(r.out), f);
-    expect(rows.find((x) => x.name === 'gain_margin')).toMatchObject({ status: 'not available', measured: null });
+    expect(rows.find((x) => x.name === 'gain_margin')).toMatchObject({ status: 'n/a', measured: null });
     expect(rows.find((x) => x.name === 'gain_margin')!.note).toMatch(/^not available: .*(linearised|operating point)/);
     expect(r.code).toBe(1);
     const text = await cli(['check', f]);
@@ -150,7 +150,7 @@ describe('check: frequency domain against closed forms', () => {
     // The plain PI on the same plant (no predictor) would have a very different loop: Ms > 2.
     const plain = gainMargins(ctx, plant.loop.controller.gains)!;
     expect(Math.abs(plain.maxSensitivity - m.maxSensitivity)).toBeGreaterThan(0.1);
-    expect(rows.find((x) => x.name === 'bandwidth')).toMatchObject({ status: 'not available', measured: null });
+    expect(rows.find((x) => x.name === 'bandwidth')).toMatchObject({ status: 'n/a', measured: null });
   });
 
   it('dominantDamping: slowest pole and those decaying at most 2x faster; real poles count as 1', () => {

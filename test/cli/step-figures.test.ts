@@ -100,7 +100,7 @@ loop:
     const check = await cli(['check', 'flat.yaml', '--json'], { 'flat.yaml': flat });
     expect(check.code).toBe(1);
     const rows = JSON.parse(check.out).files[0].requirements;
-    expect(rows[0]).toMatchObject({ name: 'overshoot_pct', status: 'not available', note: 'not available: the trial has no setpoint step' });
+    expect(rows[0]).toMatchObject({ name: 'overshoot_pct', status: 'n/a', note: 'not available: the trial has no setpoint step' });
     expect(rows[1]).toMatchObject({ name: 'iae', status: 'pass' });
     // A gain set evaluated for tuning carries it as a flag (the rule list and optimiser show flags).
     const plant = loadPlant(flat, 'flat.yaml').plant!;

@@ -4,7 +4,7 @@
  * uncertainty box when the file sets `worst_case: true`) and print one table.
  *
  * Exit status: 0 every requirement of every file passes; 1 some requirement fails or cannot be
- * evaluated ("not available", N/A: e.g. overshoot_pct on a trial without a setpoint step; a CI job
+ * evaluated (status n/a, printed N/A: e.g. overshoot_pct on a trial without a setpoint step; a CI job
  * must not pass on a requirement nobody checked, so it is counted as not passing and printed with its reason); 2 a file is invalid (not a plant file, YAML
  * or schema errors, unreadable), bad arguments, or no plant file found. 2 wins over 1.
  */
@@ -221,7 +221,7 @@ function unitOf(r: CheckRow, v: number): string {
 }
 
 function measuredText(r: CheckRow): string {
-  if (r.status === 'not available') return 'n/a';
+  if (r.status === 'n/a') return 'n/a';
   if (r.measured === Infinity) return 'inf';
   if (!Number.isFinite(r.measured)) return '-';
   return `${num(r.measured, 4)}${unitOf(r, r.measured)}`;

@@ -417,7 +417,7 @@ export function summaryText(report: RunReport): string {
     lines.push('', 'requirements:');
     const req = report.requirements.map((r) => {
       const unit = UNITS[r.name] ?? '';
-      const where = r.at !== null && report.metrics.steps.length > 1 ? ` (worst: step at ${secs(r.at)})` : '';
+      const where = r.at !== null && report.metrics.steps.length > 1 ? ` (worst step: at ${secs(r.at)})` : '';
       const measured = Number.isFinite(r.measured) ? `${num(r.measured, 4)}${unit}` : (r.reason ?? '-');
       const word = r.status === 'pass' ? 'pass' : r.status === 'fail' ? 'FAIL' : 'N/A';
       return [r.name, r.status === 'n/a' ? '-' : measured, `limit ${num(r.limit)}${unit}`, word, r.status === 'n/a' ? `(${r.reason})` : where.trim()];
