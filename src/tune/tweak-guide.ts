@@ -14,7 +14,7 @@ import { headlineMetrics, headlineNumber, trialMetrics } from '../analysis/index
 import { buildController } from '../control/index.js';
 import type { ControllerStructure, GainSet } from '../model/types.js';
 import { runTrialBatch } from '../sim/index.js';
-import { gainSetMs } from './evaluate.js';
+import { FLAG_SHARE, gainSetMs } from './evaluate.js';
 import type { TuningContext } from './tuning-context.js';
 
 /** The figures the guide reports, per variant. */
@@ -105,11 +105,12 @@ export function tweakGuide(ctx: TuningContext, g: GainSet, structure: Controller
   for (const p of params) for (const f of [1 + TWEAK_STEP, 1 - TWEAK_STEP]) sets.push({ ...g, [p]: g[p] * f });
   const members = sets.map((s) => ({ plant: ctx.dynamics, controller: buildController({ ...plain, structure, gains: s }, spec.loop.sampleTime), loop: ctx.loop }));
   const batch = runTrialBatch(members, ctx.trial);
-  const figs = batch.results.map((r, i) => figures(ctx, sets[i], structure, trialMetrics(r.trace, ctx.trial, spec.loop.requirements)));
+  const metrics = batch.results.map((r) => trialMetrics(r.trace, ctx.trial, spec.loop.requirements));
+  const figs = metrics.map((m, i) => figures(ctx, sets[i], structure, m));
   const base = figs[0];
   const notes: string[] = [...batch.notes];
-  const satTime = trialMetrics(batch.results[0].trace, ctx.trial, spec.loop.requirements).overall.saturatedTime;
-  const saturated = satTime > 0.05 * spec.loop.trial.duration;
+  // The same share that flags a gain set as saturated (evaluate.ts).
+  const saturated = metrics[0].overall.saturatedTime > FLAG_SHARE * spec.loop.trial.duration;
   const rows: TweakRow[] = params.map((p, i) => {
     const plus = figs[1 + 2 * i];
     const minus = figs[2 + 2 * i];
