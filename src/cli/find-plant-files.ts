@@ -7,6 +7,7 @@ import { join, normalize } from 'node:path';
 import { parseDocument, isMap, isScalar } from 'yaml';
 import { UserError } from './errors.js';
 import { EncodingError, type Io } from './io.js';
+import { MAX_PLANT_BYTES } from './load-plant-file.js';
 
 /** One file to check. */
 export interface PlantFileEntry {
@@ -140,15 +141,17 @@ export function findPlantFiles(args: readonly string[], io: Io): { files: PlantF
 
 /**
  * A file found in a folder: its text when it is a plant file to check, null when it is skipped
- * (unreadable, or YAML without top-level model and loop). A file that is not UTF-8 is kept, as
- * '' (its check reads it again and reports the first bad byte).
+ * (unreadable, or YAML without top-level model and loop). A file that is not UTF-8 or is over the
+ * plant-file size limit is kept, as '' (its check reads it again and reports which).
  */
 export function plantFileText(path: string, io: Io): string | null {
   let text: string;
   try {
-    text = io.readText(path);
+    // The plant-file limit applies to files found in a folder as to files named.
+    text = io.readText(path, MAX_PLANT_BYTES);
   } catch (error) {
-    return error instanceof EncodingError ? '' : null;
+    // Not UTF-8, or over the size limit: kept, as '' (its check reads it again and says which).
+    return error instanceof EncodingError || (error as { code?: string }).code === 'EFBIG' ? '' : null;
   }
   return looksLikePlant(text) ? text : null;
 }

@@ -11,7 +11,7 @@ import type { BumpData, FitKind, IdentifyResult, LogDiagnostic } from '../../ide
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
 import type { Io } from '../io.js';
-import { toJson } from '../json.js';
+import { snakeKeys, toJson } from '../json.js';
 import { writeOutput } from '../write-output.js';
 import { fitClosedLoopCommand } from './fit-closed-loop.js';
 import { baseName, printLogDiagnostics, readLog, readLogText } from './fit-log.js';
@@ -340,7 +340,8 @@ function bucketMeans(a: Float64Array, buckets: number): number[] {
 function jsonReport(report: FitReport, options: FitOptions): unknown {
   const { result, data } = report;
   const a = result.analysis;
-  return {
+  // snake_case keys, as every --json document (the reading's record keys included).
+  return snakeKeys({
     file: report.file,
     window: { from: report.from, to: report.to, samples: data.n, dt: data.dt, resampled: data.resampled, firstLine: data.firstLine, lastLine: data.lastLine },
     columns: { input: data.inputName, output: data.outputName },
@@ -363,5 +364,5 @@ function jsonReport(report: FitReport, options: FitOptions): unknown {
     reason: result.reason,
     diagnostics: report.diagnostics.map((d) => ({ code: d.code, severity: d.severity, line: d.line, column: d.column, message: d.message })),
     out: options.out,
-  };
+  });
 }
