@@ -87,16 +87,16 @@ export interface LimitCycle {
   outputAmplitude: number;
 }
 
-/** What the prediction needs besides the element: the plant at the operating point and the loop. */
+/**
+ * What the prediction needs besides the element: the plant at the operating point (whose linear
+ * model already carries the valve's lag and characteristic slope: loop/'s operating points) and
+ * the loop.
+ */
 export interface CycleLoop {
   plant: PlantFrequencyResponse;
   gains: GainSet;
   sampleTime: number;
   sensor: LoopSensor;
-  /** Valve lag, s (0 = none). */
-  lag: number;
-  /** Local slope of the valve characteristic at the operating point (1 = linear). */
-  slope: number;
 }
 
 /**
@@ -123,11 +123,7 @@ export function predictLimitCycle(make: ElementFactory, band: number, loop: Cycl
     let re = tmp[0] * Math.cos(ph) - tmp[1] * Math.sin(ph);
     let im = tmp[0] * Math.sin(ph) + tmp[1] * Math.cos(ph);
     [re, im] = [re * cw[0] - im * cw[1], re * cw[1] + im * cw[0]];
-    if (loop.lag > 0) {
-      const d = 1 + (w * loop.lag) ** 2;
-      [re, im] = [(re + im * w * loop.lag) / d, (im - re * w * loop.lag) / d];
-    }
-    return [re * loop.slope, im * loop.slope];
+    return [re, im];
   };
   const lnBand = Math.log(band);
   // −1/N(A) moves fast just above the smallest moving amplitude: the amplitude grid is dense there.

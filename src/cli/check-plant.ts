@@ -33,7 +33,7 @@ import {
 import { num } from './format.js';
 import { simulatePlant, type SimulatedTrial } from './simulate-plant.js';
 
-export { CHECKED_REQUIREMENTS, dominantDamping, DOMINANCE_RATIO, type LimitKind } from '../loop/index.js';
+export { CHECKED_REQUIREMENTS, dominantDamping } from '../loop/index.js';
 export type { Figure } from '../loop/index.js';
 
 /** One row of the check table. */

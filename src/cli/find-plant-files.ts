@@ -125,21 +125,6 @@ export function listYamlFiles(args: readonly string[], io: Io): PlantFileEntry[]
 }
 
 /**
- * Expand the command-line arguments into the sorted list of plant files: the YAML files listed,
- * those found in folders kept when they look like plant files (the rest are `skipped`).
- */
-export function findPlantFiles(args: readonly string[], io: Io): { files: PlantFileEntry[]; skipped: string[] } {
-  const files: PlantFileEntry[] = [];
-  const skipped: string[] = [];
-  for (const entry of listYamlFiles(args, io)) {
-    if (entry.explicit) files.push(entry);
-    else if (plantFileText(entry.path, io) === null) skipped.push(entry.path);
-    else files.push(entry);
-  }
-  return { files, skipped };
-}
-
-/**
  * A file found in a folder: its text when it is a plant file to check, null when it is skipped
  * (unreadable, or YAML without top-level model and loop). A file that is not UTF-8 or is over the
  * plant-file size limit is kept, as '' (its check reads it again and reports which).

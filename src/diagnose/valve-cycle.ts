@@ -23,9 +23,6 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
     gains,
     sampleTime: spec.loop.sampleTime,
     sensor: spec.sensor,
-    // The point's linear model already has the valve's lag and local slope (loop/valve-model.ts).
-    lag: 0,
-    slope: 1,
   });
   if (cycle === null) return null;
   const isBacklash = band.static === band.dynamic;

@@ -82,8 +82,6 @@ loop:
       gains: { kc: 0.8, ti: 8, td: 0, n: 10, b: 1, c: 0, antiWindup: 'clamp', trackingTime: NaN },
       sampleTime: 0.5,
       sensor: spec.sensor,
-      lag: 0,
-      slope: 1,
     });
     expect(cycle).not.toBeNull();
     expect(Math.abs(cycle!.amplitude / simAmp - 1)).toBeLessThan(0.2);
