@@ -157,14 +157,15 @@ export function frequencyFigures(source: FrequencySource, wanted: ReadonlySet<st
 
 const fmtPole = (p: { re: number; im: number }): string => (Math.abs(p.im) > 0 ? `${fmt(p.re)} ± ${fmt(Math.abs(p.im))}j` : fmt(p.re));
 
-function passes(measured: number, limit: number, kind: LimitKind): boolean {
+/** The verdict rule of every requirement: measured <= limit ('max') or >= limit ('min'); NaN never meets one. */
+export function meetsLimit(measured: number, limit: number, kind: LimitKind): boolean {
   if (Number.isNaN(measured)) return false;
   return kind === 'max' ? measured <= limit : measured >= limit;
 }
 
 /** The row of one requirement from its figure. */
 export function requirementRow(info: RequirementInfo, scope: RequirementRow['scope'], limit: number, f: Figure): RequirementRow {
-  const status: RequirementStatus = !f.available ? 'n/a' : passes(f.measured, limit, info.kind) ? 'pass' : 'fail';
+  const status: RequirementStatus = !f.available ? 'n/a' : meetsLimit(f.measured, limit, info.kind) ? 'pass' : 'fail';
   return { requirement: info.name, scope, measured: f.measured, limit, kind: info.kind, unit: info.unit, status, note: f.note };
 }
 

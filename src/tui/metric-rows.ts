@@ -5,6 +5,7 @@
  * (margins); the words for a figure not reached / not settled are analysis' (stepFigureText).
  */
 import { headlineMetrics, stepFigureText, type HeadlineMetrics, type RequirementResult, type StepFigure, type TrialMetrics } from '../analysis/index.js';
+import { meetsLimit } from '../loop/index.js';
 import type { Requirements } from '../model/types.js';
 import type { MarginsView } from './notices.js';
 
@@ -82,9 +83,8 @@ function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number |
     if (inp.margins.closedLoopStable === false) return { text: 'unstable', status: limit === undefined ? null : 'no' };
     const measured = def.margin(inp.margins);
     if (limit === undefined) return { text: formatFigure(measured, def.unit), status: null };
-    // An infinite gain margin (no phase crossover) meets any lower limit.
-    const met = Number.isFinite(measured) ? (def.sense === 'max' ? measured <= limit : measured >= limit) : def.sense === 'min' && measured === Infinity;
-    return { text: formatFigure(measured, def.unit), status: met ? 'ok' : 'no' };
+    // The verdict rule check uses (an infinite gain margin meets any lower limit).
+    return { text: formatFigure(measured, def.unit), status: meetsLimit(measured, limit, def.sense) ? 'ok' : 'no' };
   }
   const check = inp.checks.find((c) => c.name === def.name);
   let status: MetricCell['status'] = null;
