@@ -15,6 +15,7 @@ import { jacobianConditioning, leastSquaresCovariance, levenbergMarquardt, nelde
 import type { BumpData } from './bump-data.js';
 import { emptyLti, FIT_KIND_INFO, kindSystem } from './fit-kinds.js';
 import type { FitKind } from './fit-kinds.js';
+import { fitStatistics } from './fit-statistics.js';
 import { ResponseSimulator } from './simulate-response.js';
 import type { StepAnalysis } from './step-analysis.js';
 import type { StepReading } from './two-point.js';
@@ -246,13 +247,9 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
   const response = new Float64Array(full.n);
   residuals(full)(final.x, response);
   for (let i = 0; i < full.n; i++) response[i] += full.y[i];
-  let mean = 0;
-  for (let i = 0; i < full.n; i++) mean += full.y[i];
-  mean /= full.n;
-  let sst = 0;
-  for (let i = 0; i < full.n; i++) sst += (full.y[i] - mean) ** 2;
-  const sse = final.sse;
-  const rmse = Math.sqrt(sse / full.n);
+  // The fit figures by their one definition (fit-statistics.ts), on the optimiser's SSE.
+  const stats = fitStatistics(full.y, response, final.sse);
+  const sse = stats.sse;
   // A noise-free record can fit to rounding: floor the SSE so the criterion stays finite.
   const sseFloor = full.n * (1e-12 * Math.max(yRange, 1e-300)) ** 2;
   const nFree = lagHeld ? np - 1 : np;
@@ -270,9 +267,9 @@ export function fitModel(kind: FitKind, ctx: FitContext): ModelFit {
     nParams: nFree,
     n: full.n,
     sse,
-    rmse,
-    nrmse: rmse / (yRange > 0 ? yRange : 1),
-    r2: sst > 0 ? 1 - sse / sst : 0,
+    rmse: stats.rmse,
+    nrmse: stats.nrmse,
+    r2: stats.r2,
     bic,
     response,
     covariance: cov === null ? null : Array.from(cov),
