@@ -4,10 +4,8 @@
  * option, one id per call, the prepared context shared) until its time slice is used up. The
  * rows are what `suggestGains` measured; nothing is estimated here.
  */
-import { headlineMetrics, headlineNumber } from '../analysis/index.js';
-import type { GainFlag, Suggestion } from '../tune/index.js';
-import { effectiveMs } from '../analysis/index.js';
-import { suggestGains, TUNING_RULES } from '../tune/index.js';
+import { effectiveMs, headlineMetrics, headlineNumber } from '../analysis/index.js';
+import { suggestGains, TUNING_RULES, type GainFlag, type Suggestion } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
 import type { GainEdit } from './state.js';
 import type { SuggestRow, SuggestView } from './tuning-views.js';
