@@ -57,8 +57,8 @@ const DEFS: readonly Def[] = [
   { name: 'max_output', label: 'peak |u|', unit: '', req: 'maxOutput', sense: 'max', figure: (m) => m.overall.maxAbsOutput },
   { name: 'saturated_time', label: 'saturated', unit: 's', req: 'saturatedTime', sense: 'max', figure: (m) => m.overall.saturatedTime },
   { name: 'max_sensitivity', label: 'Ms', unit: '', req: 'maxSensitivity', sense: 'max', margin: (g) => g.maxSensitivity },
-  { name: 'gain_margin', label: 'gain margin', unit: '', req: 'gainMargin', sense: 'min', margin: (g) => g.gainMargin },
-  { name: 'phase_margin_deg', label: 'phase margin', unit: '°', req: 'phaseMarginDeg', sense: 'min', margin: (g) => g.phaseMarginDeg },
+  { name: 'gain_margin', label: 'GM', unit: '', req: 'gainMargin', sense: 'min', margin: (g) => g.gainMargin },
+  { name: 'phase_margin_deg', label: 'PM', unit: '°', req: 'phaseMarginDeg', sense: 'min', margin: (g) => g.phaseMarginDeg },
 ];
 
 /** Figures shown even when the file does not require them, in this order, while rows last. */
