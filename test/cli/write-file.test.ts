@@ -30,7 +30,6 @@ import { Rng } from '../../src/num/index.js';
 import { fillText } from './helpers/fill-text.js';
 
 const root = resolve(import.meta.dirname, '..', '..');
-const CHILD = join(root, 'test', 'cli', 'helpers', 'write-child.ts');
 const tmp = mkdtempSync(join(tmpdir(), 'looprig-writer-'));
 // Other users (the read-only-folder child runs as "nobody") must reach the folders inside.
 chmodSync(tmp, 0o755);
@@ -138,14 +137,36 @@ describe('writeFileKeeping: modes and owners', () => {
   });
 });
 
+/**
+ * The child and the writer compiled to plain JavaScript in the test's own temporary folder (mode
+ * 755): "nobody" must not need to read the clone, which may sit in a folder only root can enter
+ * (a clone in `mktemp -d` is 0700).
+ */
+let userChild: string | null = null;
+function childForOtherUser(): string {
+  if (userChild !== null) return userChild;
+  const dir = join(tmp, 'user-child');
+  mkdirSync(dir, { mode: 0o755 });
+  const compile = (from: string, to: string, rewrite: (js: string) => string = (js) => js): void => {
+    const js = ts.transpileModule(readFileSync(join(root, from), 'utf8'), {
+      compilerOptions: { module: ts.ModuleKind.ES2022, target: ts.ScriptTarget.ES2022 },
+    }).outputText;
+    writeFileSync(join(dir, to), rewrite(js), { mode: 0o644 });
+  };
+  compile('src/cli/write-file.ts', 'write-file.mjs');
+  compile('test/cli/helpers/write-child.ts', 'write-child.mjs', (js) => js.replace('../../../src/cli/write-file.js', './write-file.mjs'));
+  userChild = join(dir, 'write-child.mjs');
+  return userChild;
+}
+
 /** Run the writer in a child (as "nobody" when we are root: root may create files anywhere). */
 function writeInChild(target: string, text: string, expectExisting = false): { stdout: string; status: number | null } {
   const src = join(tmp, `text-${dirCount++}.txt`);
   writeFileSync(src, text);
   chmodSync(src, 0o644);
-  const args = ['--import', 'tsx/esm', CHILD, target, src, ...(expectExisting ? ['--expect-existing'] : [])];
+  const args = [childForOtherUser(), target, src, ...(expectExisting ? ['--expect-existing'] : [])];
   const r = spawnSync(process.execPath, args, {
-    cwd: root,
+    cwd: tmp,
     encoding: 'utf8',
     ...(isRoot ? { uid: NOBODY, gid: NOBODY, env: { ...process.env, HOME: tmp } } : {}),
   });

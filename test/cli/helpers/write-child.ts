@@ -1,7 +1,8 @@
 /**
  * A separate process that writes one file through the CLI's writer, for tests that must run it
- * as another user (root may create files in any folder). Usage:
- *   node --import tsx/esm test/cli/helpers/write-child.ts TARGET TEXT_FILE [--expect-existing]
+ * as another user (root may create files in any folder). The test compiles it to plain JavaScript
+ * beside a compiled writer (write-file.test.ts childForOtherUser) and runs:
+ *   node write-child.mjs TARGET TEXT_FILE [--expect-existing]
  * Prints "ready" before writing and the outcome (JSON) after it; exit 1 with {error} on failure.
  */
 import { readFileSync } from 'node:fs';
