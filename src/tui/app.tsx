@@ -3,13 +3,10 @@
  * every question about the loop (engine.ts, live-run.ts); this component only wires the two
  * together and draws the panels that fit the terminal (layout.ts).
  */
-import { Box, Text, useApp, useInput, useStdout } from 'ink';
-import TextInput from 'ink-text-input';
+import { Box, useApp, useInput, useStdout } from 'ink';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
-import { gainNote, loadPlant } from '../model/index.js';
 import { defaultSwitchTime, switchBump, switchWindowEnd } from '../tune/index.js';
-import type { PidForm, Requirements } from '../model/types.js';
-import { LABEL_WIDTH, pointsForWidth, renderChart } from './chart.js';
+import type { PidForm } from '../model/types.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
 import {
   evaluate,
@@ -21,57 +18,30 @@ import {
   type Evaluation,
   type LoopSetup,
 } from './engine.js';
-import { useEnvelope, type EnvelopeState } from './hooks/use-envelope.js';
+import { frameId, namedOf, type GainEdit } from './gain-edit.js';
+import { useEnvelope } from './hooks/use-envelope.js';
+import { useLiveRun } from './hooks/use-live-run.js';
+import { useSave, type ScreenIo } from './hooks/use-save.js';
 import { useTuningAids } from './hooks/use-tuning-aids.js';
 import { HINT, LIST_HINT, keyTokens } from './keymap.js';
-import { computeLayout, type Layout } from './layout.js';
-import { LiveRun } from './live-run.js';
+import { computeLayout } from './layout.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
 import type { MarginsView, Notice, NoticeSource } from './notices.js';
 import { CautionOverlay } from './panels/CautionOverlay.js';
-import { ChartPanel } from './panels/ChartPanel.js';
 import { CompareOverlay } from './panels/CompareOverlay.js';
-import { GainsPanel, gainPanelLines } from './panels/GainsPanel.js';
-import { Heading } from './panels/Heading.js';
+import { gainPanelLines } from './panels/GainsPanel.js';
 import { HelpOverlay } from './panels/HelpOverlay.js';
-import { ellipsizePieces, Line, fit, type Piece } from './panels/line.js';
-import { MetricsPanel } from './panels/MetricsPanel.js';
-import { NoticesPanel, noticePieces } from './panels/NoticesPanel.js';
+import { Line } from './panels/line.js';
+import { MessageLine, messageLines } from './panels/MessageLine.js';
 import { noiseNotice } from './noise-notice.js';
 import { OptimizePanel } from './panels/OptimizePanel.js';
+import { Panels } from './panels/Panels.js';
 import { StatusLine } from './panels/StatusLine.js';
 import { SuggestPanel } from './panels/SuggestPanel.js';
-import { wrap } from './panels/wrap.js';
-import { planSave } from './save-gains.js';
-import {
-  frameId,
-  initialState,
-  isDirty,
-  namedOf,
-  paramInfo,
-  paramList,
-  reduce,
-  speedOf,
-  type Action,
-  type Effect,
-  type GainEdit,
-  type Overlay,
-  type RunMode,
-  type ScreenState,
-} from './state.js';
-import { makeTheme, type Theme } from './theme.js';
-import { bandLines, outputSeries, trendSeries, type BandStep } from './trend-series.js';
+import { initialState, isDirty, reduce, speedOf, type Action, type Effect, type Overlay, type RunMode, type ScreenState } from './state.js';
+import { makeTheme } from './theme.js';
 
-/** File access the screen needs; tests pass a fake, the command passes the real files. */
-export interface ScreenIo {
-  /** Read the file; an error with `code` 'ENOENT' means it is gone (a save writes it anew). */
-  readText(path: string): string;
-  /**
-   * Write the file keeping its link, mode and owner (the CLI's writer). Returns sentences about
-   * anything unusual (a link followed, a non-atomic write, the file recreated); fakes may not.
-   */
-  writeText(path: string, text: string, options?: { expectExisting?: boolean }): { notes: readonly string[] } | void;
-}
+export type { ScreenIo } from './hooks/use-save.js';
 
 export interface AppProps {
   setup: LoopSetup;
@@ -96,9 +66,6 @@ export interface AppProps {
   /** Called after each frame whose state changed (benchmarks). */
   onFrame?(): void;
 }
-
-/** Wall-time budget of one live tick, ms: the rest of the tick is left to keys and drawing. */
-const LIVE_BUDGET_MS = 25;
 
 const reducer = (s: ScreenState, a: Action): ScreenState => reduce(s, a, CORE_EDIT_MATH);
 
@@ -139,7 +106,8 @@ export function App(props: AppProps) {
   );
   const size = useTerminalSize(props.size);
   // A long message (a save error naming a path) is wrapped, not cut: the charts give up the rows.
-  const messageRows = messageLines(state, Math.max(20, Math.floor(size.columns || 80))).length;
+  const message = messageLines(state, Math.max(20, Math.floor(size.columns || 80)));
+  const messageRows = message.length;
   const layout = computeLayout(size.columns, size.rows - (messageRows - 1), gainPanelLines(state.current));
   const aids = useTuningAids(setup, dispatch);
 
@@ -178,46 +146,11 @@ export function App(props: AppProps) {
   }, [props.notices, trial, setup]);
 
   // ---------------------------------------------------------------- live run
-  const live = useRef<LiveRun | null>(null);
-  const achieved = useRef(NaN);
-  const [, setFrame] = useState(0);
-  if (state.mode === 'live' && live.current === null) live.current = new LiveRun(setup, state.current, trial.duration);
+  const liveRun = useLiveRun(setup, state, trial.duration, props.tickMs ?? 50, dispatch);
   const speed = speedOf(state);
-  // The timer reads the newest state: a pause must stop the run at once, not after the effect
-  // that clears the timer has run.
-  const latest = useRef(state);
-  latest.current = state;
-  useEffect(() => {
-    if (live.current?.setGains(state.current) === true) {
-      achieved.current = NaN;
-      // In instant mode the (paused) live run restarts unseen: nothing to tell.
-      if (latest.current.mode === 'live') dispatch({ type: 'notify', message: { text: 'live run restarted: the edited set runs another controller structure', tone: 'info' } });
-    }
-  }, [state.current.gains, state.current.structure, frameId(state.current)]);
-  useEffect(() => {
-    if (state.mode !== 'live' || state.paused) return undefined;
-    let last = performance.now();
-    const period = props.tickMs ?? 50;
-    const timer = setInterval(() => {
-      const run = live.current;
-      if (run === null || latest.current.paused || latest.current.mode !== 'live') return;
-      const t = performance.now();
-      const wall = (t - last) / 1000;
-      last = t;
-      if (run.diverged) return;
-      const done = run.advance(speed * wall, LIVE_BUDGET_MS);
-      // Smoothed achieved speed, shown when the machine cannot keep up. A tick that kept up ran
-      // at the asked speed (it may have run no sample at all: the fraction waits for the next).
-      const inst = !run.behind ? speed : wall > 0 ? done / wall : NaN;
-      achieved.current = Number.isNaN(achieved.current) ? inst : 0.8 * achieved.current + 0.2 * inst;
-      // No sample ran, nothing on the screen changed: no frame.
-      if (done > 0) setFrame((f) => f + 1);
-    }, period);
-    return () => clearInterval(timer);
-  }, [state.mode, state.paused, speed]);
+  const save = useSave({ io: props.io, filePath: props.filePath, fileName: props.fileName, text: props.text, fileForm }, dispatch);
 
   // ---------------------------------------------------------------- effects
-  const loaded = useRef(props.text);
   useEffect(() => {
     if (state.effects.length === 0) return;
     const effects = state.effects;
@@ -226,14 +159,14 @@ export function App(props: AppProps) {
   }, [state.effects]);
 
   function runEffect(e: Effect): void {
-    const run = live.current;
+    const run = liveRun.run;
     switch (e.kind) {
       case 'quit':
         props.onExit(0);
         exit();
         return;
       case 'save':
-        save(e.onDiskText);
+        save(state, e.onDiskText);
         return;
       case 'setpoint_step':
         if (run !== null) {
@@ -254,9 +187,7 @@ export function App(props: AppProps) {
         run?.setManual(e.on);
         return;
       case 'restart_live':
-        run?.restart();
-        achieved.current = NaN;
-        setFrame((f) => f + 1);
+        liveRun.restart();
         return;
       default:
         aids.run(e, state.current);
@@ -264,52 +195,15 @@ export function App(props: AppProps) {
     }
   }
 
-  function save(onDiskText: boolean): void {
-    // null: the file was deleted since loading; the loaded text gets the edit and is written anew.
-    let disk: string | null;
-    try {
-      disk = props.io.readText(props.filePath);
-    } catch (error) {
-      if ((error as { code?: string }).code !== 'ENOENT') {
-        // Unreadable is not absent: never write over a file we could not compare.
-        dispatch({ type: 'save_failed', text: `not written: cannot read ${props.fileName}: ${(error as Error).message}` });
-        return;
-      }
-      disk = null;
-    }
-    if (!onDiskText && disk !== null && disk !== loaded.current) {
-      dispatch({ type: 'save_conflict' });
-      return;
-    }
-    // The record beside each saved value: today's date and where the gains came from.
-    const plan = planSave(onDiskText && disk !== null ? disk : loaded.current, state.file, state.current, fileForm, gainNote(new Date().toISOString().slice(0, 10), 'screen'));
-    if (!plan.ok) {
-      dispatch({ type: 'save_failed', text: `not written: ${plan.error}` });
-      return;
-    }
-    // Never write a file the loader would reject.
-    const check = loadPlant(plan.text, props.fileName);
-    if (check.plant === undefined) {
-      dispatch({ type: 'save_failed', text: `not written: the edited file would not load (${check.diagnostics[0]?.message ?? 'unknown error'})` });
-      return;
-    }
-    let notes: readonly string[];
-    try {
-      notes = props.io.writeText(props.filePath, plan.text, { expectExisting: true })?.notes ?? [];
-    } catch (error) {
-      dispatch({ type: 'save_failed', text: `cannot write ${props.fileName}: ${(error as Error).message}` });
-      return;
-    }
-    loaded.current = plan.text;
-    dispatch({ type: 'saved', notes: plan.formNote === null ? notes : [...notes, plan.formNote], warn: notes.length > 0 });
-  }
-
   // ---------------------------------------------------------------- keys
+  // The handler reads the newest overlay, not the one of the render it was made in.
+  const latestOverlay = useRef(state.overlay);
+  latestOverlay.current = state.overlay;
   useInput((input, key) => {
     // While a value is typed the text field takes the keys (a read that carries Enter submits
     // there); only Esc is ours. Judged on the state the read met: the field may have closed the
     // prompt before these tokens are reduced, and '200 s' must not then step the setpoint.
-    const typing = latest.current.overlay.kind === 'input';
+    const typing = latestOverlay.current.kind === 'input';
     for (const token of keyTokens(input, key)) if (!typing || token === 'esc') dispatch({ type: 'press', token });
   });
 
@@ -318,7 +212,7 @@ export function App(props: AppProps) {
   });
 
   // ---------------------------------------------------------------- draw
-  const run = state.mode === 'live' ? live.current : null;
+  const run = state.mode === 'live' ? liveRun.run : null;
   const simTime = run !== null ? run.time : trial.duration;
   const nowLabel = rehearsing ? 'rehearsal' : 'now';
   const metricInput: MetricInput = { metrics: now.metrics, checks: now.checks, margins: marginsNow, diverged: now.result.status === 'diverged' };
@@ -390,7 +284,7 @@ export function App(props: AppProps) {
         dirty={isDirty(state)}
         mode={state.mode}
         speed={speed}
-        achieved={achieved.current}
+        achieved={liveRun.achieved}
         paused={state.paused}
         time={simTime}
         manual={state.manual}
@@ -402,7 +296,7 @@ export function App(props: AppProps) {
         theme={theme}
       />
       {body}
-      <MessageLine state={state} width={layout.width} theme={theme} notices={layout.noticesWidth > 0 ? [] : notices} dispatch={dispatch} />
+      <MessageLine state={state} lines={message} width={layout.width} theme={theme} notices={layout.noticesWidth > 0 ? [] : notices} dispatch={dispatch} />
       <Line pieces={[{ text: hintFor(state.overlay), color: theme.dim }]} width={layout.width} color={theme.color} />
     </Box>
   );
@@ -440,271 +334,3 @@ function fmt(v: number | null): string {
   return v === null ? '?' : String(Number(v.toPrecision(4)));
 }
 
-interface PanelsProps {
-  layout: Layout;
-  theme: Theme;
-  state: ScreenState;
-  now: Evaluation;
-  base: Evaluation | null;
-  run: LiveRun | null;
-  req: Requirements;
-  metricRowsNow: ReturnType<typeof metricRows>;
-  nowLabel: string;
-  notices: Notice[];
-  margins: MarginsView | null | 'pending';
-  actuator: { min: number; max: number };
-  /** The robustness envelope (null: not wanted, or not drawn in this mode). */
-  envelope: EnvelopeState | null;
-  /** Why the envelope asked for is not drawn (null: drawn, or not asked for). */
-  envelopeNote: string | null;
-}
-
-function Panels(p: PanelsProps) {
-  const { layout, theme, state } = p;
-  const w = layout.width;
-  const colors: Record<string, string | undefined> = {
-    pv: theme.pv,
-    sp: theme.sp,
-    baseline: theme.baseline,
-    band: theme.band,
-    output: theme.output,
-    limit: theme.limit,
-    envelope: theme.envelope,
-  };
-  const points = pointsForWidth(w);
-  let trace = p.now.result.trace;
-  let t0 = 0;
-  let t1 = state.trialDuration;
-  // The bands sit around what each step is measured against (its final value once settled).
-  let steps: BandStep[] = p.now.metrics.steps.map((s) => ({ at: s.at, end: s.end, to: s.target, change: s.target - s.from, band: s.band }));
-  let baselineTrace = p.base?.result.trace ?? null;
-  if (p.run !== null) {
-    trace = p.run.trace();
-    // Scroll over the last `window` seconds; before that, zoom out as the run grows so an
-    // early response is not squeezed into the left edge.
-    t0 = Math.max(0, p.run.time - p.run.window);
-    t1 = Math.max(p.run.time, t0 + p.run.window / 6);
-    steps = p.run.bandSteps();
-    baselineTrace = null;
-  }
-  const legend: Piece[] = [
-    { text: '╌ SP ', color: theme.sp },
-    { text: '─ PV ', color: theme.pv },
-  ];
-  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· baseline only ' : '· baseline ', color: theme.baseline });
-  if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
-  const env = p.run === null ? p.envelope : null;
-  if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
-  else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, color: theme.dim });
-  const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
-  const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
-  if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
-
-  const showTrend = layout.trendRows > 0;
-  const trendGrid = showTrend
-    ? renderChart(
-        trendSeries({
-          trace,
-          baseline: baselineTrace,
-          t0,
-          t1,
-          points,
-          band: bandLines(steps, p.req),
-          envelope: env?.envelope ? { t: env.envelope.t, lo: env.envelope.lo, hi: env.envelope.hi, length: env.envelope.t.length } : null,
-        }),
-        { width: w, height: layout.trendRows, labelWidth: LABEL_WIDTH },
-      )
-    : null;
-  const outputGrid =
-    layout.outputRows > 0
-      ? renderChart(outputSeries(trace, baselineTrace, t0, t1, points, p.actuator), {
-          width: w,
-          height: layout.outputRows,
-          labelWidth: LABEL_WIDTH,
-        })
-      : null;
-
-  const gainsW = layout.gainsWidth;
-  const bottom = (
-    <Box flexDirection="column" width={w}>
-      <Line pieces={bottomHeading(layout, theme)} width={w} color={theme.color} />
-      <Box flexDirection="row" width={w}>
-        <GainsPanel
-          edit={state.current}
-          baseline={state.baseline?.edit ?? null}
-          selected={state.selected}
-          width={gainsW}
-          rows={layout.bottomRows}
-          theme={theme}
-        />
-        {layout.metricsWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
-        {layout.metricsWidth > 0 && (
-          <MetricsPanel
-            rows={p.metricRowsNow}
-            nowLabel={p.nowLabel}
-            width={layout.metricsWidth}
-            height={layout.bottomRows}
-            theme={theme}
-            note={layout.marginsInMetrics ? marginsLine(p.margins, theme) : null}
-          />
-        )}
-        {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
-        {layout.noticesWidth > 0 && (
-          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
-        )}
-      </Box>
-    </Box>
-  );
-
-  if (layout.tier === 'tiny') {
-    return (
-      <Box flexDirection="column" width={w}>
-        <Line pieces={[{ text: `terminal too small for the trend (needs 60x16)`, color: theme.warn }]} width={w} color={theme.color} />
-        <GainsPanel
-          edit={state.current}
-          baseline={state.baseline?.edit ?? null}
-          selected={state.selected}
-          width={w}
-          rows={layout.bottomRows}
-          theme={theme}
-        />
-      </Box>
-    );
-  }
-  return (
-    <Box flexDirection="column" width={w}>
-      {trendGrid !== null && (
-        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} axis={layout.trendAxis} />
-      )}
-      {outputGrid !== null && (
-        <ChartPanel
-          title="Controller output"
-          legend={[
-            { text: '─ u ', color: theme.output },
-            ...(baselineTrace !== null ? [{ text: '· baseline ', color: theme.baseline }] : []),
-            { text: '= limits ', color: theme.limit },
-          ]}
-          grid={outputGrid}
-          marks={marks}
-          t0={t0}
-          t1={t1}
-          width={w}
-          theme={theme}
-          colors={colors}
-        />
-      )}
-      {bottom}
-    </Box>
-  );
-}
-
-/** The envelope's legend entry: its cases, or how far its sweep has come. */
-function envelopeLegend(e: EnvelopeState): string {
-  if (e.error !== null) return `░ envelope failed: ${e.error} `;
-  if (e.total === 0) return '░ envelope … ';
-  const cases = e.done < e.total ? `${e.done}/${e.total} cases…` : `${e.total} cases`;
-  // The widest spread, so that an envelope hidden under the PV line still says how wide it is.
-  let spread = 0;
-  const env = e.envelope;
-  if (env !== null) for (let i = 0; i < env.t.length; i++) if (Number.isFinite(env.hi[i] - env.lo[i])) spread = Math.max(spread, env.hi[i] - env.lo[i]);
-  return `░ envelope ${cases}, spread ≤ ${Number(spread.toPrecision(2))}${e.anyDiverged ? ', one diverges' : ''} `;
-}
-
-/** The margins of the edited gains as one notices line, or null without a diagnosis. */
-function marginsLine(m: MarginsView | null | 'pending', theme: Theme): Piece[] | null {
-  if (m === null) return null;
-  if (m === 'pending') return [{ text: 'margins …', color: theme.dim }];
-  if (m.closedLoopStable === false) return [{ text: 'closed loop UNSTABLE', color: theme.bad, bold: true }];
-  const f = (v: number, unit = ''): string => (Number.isFinite(v) ? `${Number(v.toPrecision(3))}${unit}` : v > 0 ? '∞' : '—');
-  return [{ text: `GM ${f(m.gainMargin)}  PM ${f(m.phaseMarginDeg, '°')}  Ms ${f(m.maxSensitivity)}`, bold: true }];
-}
-
-/** One rule over the gain, metrics and notices columns, with a title over each. */
-function bottomHeading(layout: Layout, theme: Theme): Piece[] {
-  const col = (title: string, width: number): Piece[] => [
-    { text: '─ ', color: theme.dim },
-    { text: title, color: theme.heading, bold: true },
-    { text: ' ' + '─'.repeat(Math.max(0, width - title.length - 3)), color: theme.dim },
-  ];
-  const pieces = col('Gain set', layout.gainsWidth);
-  if (layout.metricsWidth > 0) pieces.push({ text: '┼', color: theme.dim }, ...col('Trial vs requirements', layout.metricsWidth));
-  if (layout.noticesWidth > 0) pieces.push({ text: '┼', color: theme.dim }, ...col('Notices', layout.noticesWidth));
-  return pieces;
-}
-
-function Separator(p: { rows: number; theme: Theme }) {
-  return (
-    <Box flexDirection="column" width={1}>
-      {Array.from({ length: p.rows }, (_, i) => (
-        <Text key={i} color={p.theme.dim}>
-          │
-        </Text>
-      ))}
-    </Box>
-  );
-}
-
-/** Most lines a message may take; beyond that its last line ends in '…'. */
-const MESSAGE_MAX_LINES = 4;
-
-/** The message (or question) as word-wrapped lines of `width`; one line when there is none. */
-function messageLines(state: ScreenState, width: number): string[] {
-  const o = state.overlay;
-  const text = o.kind === 'confirm' ? `${o.text} (y/n)` : o.kind !== 'input' && state.message !== null ? state.message.text : '';
-  const lines = wrap(text, width);
-  if (lines.length === 0) return [''];
-  if (lines.length <= MESSAGE_MAX_LINES) return lines;
-  const kept = lines.slice(0, MESSAGE_MAX_LINES);
-  kept[MESSAGE_MAX_LINES - 1] = `${kept[MESSAGE_MAX_LINES - 1].slice(0, width - 1)}…`;
-  return kept;
-}
-
-function MessageLine(p: {
-  state: ScreenState;
-  width: number;
-  theme: Theme;
-  notices: readonly Notice[];
-  dispatch: (a: Action) => void;
-}) {
-  const { state, theme, width } = p;
-  const o = state.overlay;
-  if (o.kind === 'input') {
-    const what =
-      o.target === 'switch_time'
-        ? 'switch at'
-        : paramInfo(paramList(state.current)[Math.min(state.selected, paramList(state.current).length - 1)], state.current.form).symbol + ' =';
-    const tail = o.error !== null ? `  ${o.error}` : '  Enter accept, Esc cancel';
-    const shownLength = o.text.length > 0 ? o.text.length : o.placeholder.length;
-    return (
-      <Box width={width} height={1} overflow="hidden">
-        <Text color={theme.heading} bold>
-          {what}{' '}
-        </Text>
-        <TextInput
-          value={o.text}
-          placeholder={o.placeholder}
-          onChange={(text) => p.dispatch({ type: 'input_change', text })}
-          onSubmit={() => p.dispatch({ type: 'input_submit' })}
-        />
-        <Text color={o.error !== null ? theme.bad : theme.dim} wrap="truncate">
-          {fit(tail, Math.max(0, width - what.length - 2 - shownLength))}
-        </Text>
-      </Box>
-    );
-  }
-  const lines = messageLines(state, width);
-  if (o.kind === 'confirm' || state.message !== null) {
-    const tone = o.kind === 'confirm' ? 'warn' : state.message?.tone;
-    const color = tone === 'error' ? theme.bad : tone === 'warn' ? theme.warn : undefined;
-    return (
-      <Box flexDirection="column" width={width}>
-        {lines.map((text, i) => (
-          <Line key={i} pieces={[{ text, color, bold: o.kind === 'confirm' }]} width={width} color={theme.color} />
-        ))}
-      </Box>
-    );
-  }
-  const first = p.notices[0];
-  if (first !== undefined) return <Line pieces={ellipsizePieces(noticePieces(first, theme), width)} width={width} color={theme.color} />;
-  return <Line pieces={[]} width={width} color={theme.color} />;
-}

@@ -8,7 +8,7 @@
 import type { CompareResult } from '../tune/index.js';
 import { runnable } from './compare-view.js';
 import { editWithGains, fileFrame, frameOf, structureName, type LoopSetup } from './engine.js';
-import { frameId, sameEdit, type GainEdit } from './state.js';
+import { frameId, sameEdit, type GainEdit } from './gain-edit.js';
 import type { CandidateEntry } from './tuning-views.js';
 
 /** Entries for the candidates that ran (the indexing of compare-view's `runnable`), in `form` where it holds them. */

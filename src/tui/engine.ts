@@ -23,7 +23,8 @@ import {
   type TuningContext,
 } from '../tune/index.js';
 import type { MarginsView } from './notices.js';
-import { formParams, type ControllerFrame, type GainEdit } from './state.js';
+import { makeEdit, valuesInForm, type ControllerFrame, type GainEdit } from './gain-edit.js';
+import { formParams } from './param-meta.js';
 
 /** A compiled loop, made once per file. */
 export interface LoopSetup {
@@ -98,8 +99,9 @@ export function editFromSpec(spec: ControllerSpec, frame?: ControllerFrame): Gai
     const v = spec.values[k];
     values[k] = typeof v === 'number' && !Number.isNaN(v) ? v : (converted?.[k] ?? NaN);
   }
-  const edit: GainEdit = { structure: spec.structure, form: spec.form, values, gains };
-  return frame === undefined ? edit : { ...edit, frame };
+  // A value the file leaves to the model that its own form cannot hold (series needs Ti >= 4 Td): shown in ideal form.
+  if (Object.values(values).some(Number.isNaN)) return makeEdit(spec.structure, 'ideal', valuesInForm(spec.structure, 'ideal', gains)!, gains, frame);
+  return makeEdit(spec.structure, spec.form, values, gains, frame);
 }
 
 /** The file's controller as the screen edits it first. */
@@ -113,16 +115,9 @@ export function fileEdit(setup: LoopSetup): GainEdit {
  */
 export function editWithGains(gains: GainSet, structure: ControllerStructure, form: PidForm, frame: ControllerFrame | undefined): GainEdit {
   const g = applyStructure(structure, gains);
-  let shown: PidForm = form;
-  let all = fromIdeal(form, { kc: g.kc, ti: g.ti, td: g.td });
-  if (all === null) {
-    shown = 'ideal';
-    all = { kc: g.kc, ti: g.ti, td: g.td };
-  }
-  const values: Record<string, number> = {};
-  for (const k of formParams(structure, shown)) values[k] = all[k];
-  const edit: GainEdit = { structure, form: shown, values, gains: g };
-  return frame === undefined ? edit : { ...edit, frame };
+  const inForm = valuesInForm(structure, form, g);
+  if (inForm !== null) return makeEdit(structure, form, inForm, g, frame);
+  return makeEdit(structure, 'ideal', valuesInForm(structure, 'ideal', g)!, g, frame);
 }
 
 /** The controller spec an edit runs: its frame's (a compare candidate's) or the file's, with the edited law. */

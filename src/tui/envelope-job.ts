@@ -7,7 +7,7 @@
  */
 import { mergeEnvelopes, planSweep, robustnessSweep, type RobustnessCase, type SweepPlan, type TraceEnvelope } from '../tune/index.js';
 import { runningGains, type LoopSetup } from './engine.js';
-import type { GainEdit } from './state.js';
+import type { GainEdit } from './gain-edit.js';
 
 const plans = new WeakMap<LoopSetup, SweepPlan>();
 

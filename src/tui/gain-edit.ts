@@ -1,9 +1,17 @@
 /**
- * One gain set as the screen edits it, and the controller structure around it: plain data the
- * reducer (state.ts) and the tuning aids' views (tuning-views.ts) both hold, kept in a file of its
- * own so neither of those imports the other.
+ * The gain-edit model: one gain set as the screen edits it, and the controller structure around
+ * it. Plain data the reducer and the tuning aids' views (tuning-views.ts) both hold, kept in a file
+ * of its own so neither of those imports the other.
+ *
+ * One representation is stored: the form values the user sees, edits and the file gets
+ * (`values`), with the law settings that have no form (N, b, c, anti-windup, tracking time). The
+ * ideal gains the controller runs (`gains`) are derived from them, in one place (`makeEdit`), so
+ * the two can never disagree. Deriving the other way would not do: a series set has two writings
+ * of the same controller (Ti' and Td' swapped, another Kc'), and the user's own must stay on screen.
  */
+import { fromIdeal, toIdeal } from '../model/index.js';
 import type { ControllerSpec, ControllerStructure, GainSet, PidForm, StructureName } from '../model/types.js';
+import { formParams, type ParamId } from './param-meta.js';
 
 /**
  * What surrounds the edited PID law: the file's own controller structure, or a comparison
@@ -26,14 +34,112 @@ export interface ControllerFrame {
   readonly spec: ControllerSpec;
 }
 
-/** One gain set as edited: the form the user sees, its values, and the same set in ideal form. */
+/** The law settings that no PID form writes: they live in `gains` only. */
+export type LawSettings = Omit<GainSet, 'kc' | 'ti' | 'td'>;
+
+/** One gain set as edited: the form the user sees, its values, and (derived) the same set in ideal form. */
 export interface GainEdit {
   readonly structure: ControllerStructure;
   readonly form: PidForm;
-  /** Form parameters as shown (times in s, ki in 1/s). */
+  /** Form parameters as shown (times in s, ki in 1/s): the stored representation. */
   readonly values: Readonly<Record<string, number>>;
-  /** Ideal form, what the controller runs. n, b, c, antiWindup and trackingTime live only here. */
+  /** Ideal form, what the controller runs: `values` converted by `makeEdit`, with the law settings. */
   readonly gains: GainSet;
   /** The structure around the law; absent = the file's own controller. */
   readonly frame?: ControllerFrame;
+}
+
+/**
+ * A gain set from its form values: the one place the ideal gains are derived. Terms the structure
+ * lacks are neutral (no integral: Ti = ∞; no derivative: Td = 0). Throws RangeError when the form
+ * cannot mean the values (parallel gains of mixed signs, overflow).
+ */
+export function makeEdit(
+  structure: ControllerStructure,
+  form: PidForm,
+  values: Readonly<Record<string, number>>,
+  law: LawSettings,
+  frame?: ControllerFrame,
+): GainEdit {
+  const full: Record<string, number> =
+    form === 'parallel' ? { kp: 0, ki: 0, kd: 0, ...values } : { kc: 0, ti: Infinity, td: 0, ...values };
+  const ideal = toIdeal(form, full);
+  const { n, b, c, antiWindup, trackingTime } = law;
+  const edit: GainEdit = { structure, form, values, gains: { kc: ideal.kc, ti: ideal.ti, td: ideal.td, n, b, c, antiWindup, trackingTime } };
+  return frame === undefined ? edit : { ...edit, frame };
+}
+
+/**
+ * Ideal gains written in `form` for `structure` (only the form's parameters the structure has),
+ * or null when the form cannot hold them (series needs Ti >= 4 Td).
+ */
+export function valuesInForm(structure: ControllerStructure, form: PidForm, g: Pick<GainSet, 'kc' | 'ti' | 'td'>): Record<string, number> | null {
+  const all = fromIdeal(form, { kc: g.kc, ti: g.ti, td: g.td });
+  if (all === null) return null;
+  const values: Record<string, number> = {};
+  for (const k of formParams(structure, form)) values[k] = all[k];
+  return values;
+}
+
+/** The frame id of an edit ('file' when it has none). */
+export function frameId(e: GainEdit): string {
+  return e.frame?.id ?? 'file';
+}
+
+/** The structure name an edit runs, for display. */
+export function namedOf(e: GainEdit): StructureName {
+  return e.frame?.named ?? e.structure;
+}
+
+/** Every editable parameter of a gain set, in display order (b and c only where the structure leaves them free). */
+export function paramList(e: GainEdit): ParamId[] {
+  const hasD = e.structure === 'pd' || e.structure === 'pid';
+  const list = formParams(e.structure, e.form);
+  if (hasD) list.push('n');
+  if (e.frame?.fixedWeights === true) return list;
+  list.push('b');
+  if (hasD) list.push('c');
+  return list;
+}
+
+/** The value of a parameter in a gain set. */
+export function paramValue(e: GainEdit, id: ParamId): number {
+  if (id === 'n' || id === 'b' || id === 'c') return e.gains[id];
+  return e.values[id];
+}
+
+/**
+ * A new gain set with one parameter changed, or the reason the form refused it (e.g. parallel
+ * gains of mixed signs).
+ */
+export function withParam(e: GainEdit, id: ParamId, v: number): GainEdit | { error: string } {
+  if (id === 'n' || id === 'b' || id === 'c') return { ...e, gains: { ...e.gains, [id]: v } };
+  try {
+    return makeEdit(e.structure, e.form, { ...e.values, [id]: v }, e.gains, e.frame);
+  } catch (err) {
+    if (err instanceof RangeError) return { error: err.message };
+    throw err;
+  }
+}
+
+/** The same controller written in another form, or null when that form cannot hold it. */
+export function withForm(e: GainEdit, form: PidForm): GainEdit | null {
+  const values = valuesInForm(e.structure, form, e.gains);
+  return values === null ? null : makeEdit(e.structure, form, values, e.gains, e.frame);
+}
+
+/**
+ * True when two gain sets are the same controller: same structure and, in ideal form, the same
+ * gains (to 1e-9 relative, so that a form round trip's rounding is no change). The form they are
+ * shown in does not count: a save writes the file's own form.
+ */
+export function sameEdit(a: GainEdit, b: GainEdit): boolean {
+  if (a.structure !== b.structure || frameId(a) !== frameId(b)) return false;
+  const g = a.gains;
+  const h = b.gains;
+  return close(g.kc, h.kc) && close(g.ti, h.ti) && close(g.td, h.td) && g.n === h.n && g.b === h.b && g.c === h.c && g.antiWindup === h.antiWindup;
+}
+
+function close(x: number, y: number): boolean {
+  return x === y || Math.abs(x - y) <= 1e-9 * Math.max(Math.abs(x), Math.abs(y));
 }

@@ -10,7 +10,7 @@ import type { TrialEvent } from '../model/types.js';
 import { createSimulation, createTrace, eventSchedule, SAMPLE_EPS, type ScheduledEvent, type Simulation } from '../sim/index.js';
 import type { Trace } from '../sim/types.js';
 import { controllerFor, runningGains, type LoopSetup } from './engine.js';
-import { frameId, type GainEdit } from './state.js';
+import { frameId, type GainEdit } from './gain-edit.js';
 import type { BandStep } from './trend-series.js';
 
 /** Simulated seconds advanced per engine call, so that the wall-time budget is checked often. */

@@ -6,7 +6,7 @@
 import { FLAG_SHARE, gainNoiseActivity, noiseMessage } from '../tune/index.js';
 import { plantFor, runningGains, type LoopSetup } from './engine.js';
 import type { Notice } from './notices.js';
-import type { GainEdit } from './state.js';
+import type { GainEdit } from './gain-edit.js';
 
 /** The notice, or null when the noise stays clear of the rate limit (or the law is not the plain PID). */
 export function noiseNotice(setup: LoopSetup, edit: GainEdit): Notice | null {

@@ -10,7 +10,7 @@
 import { headlineMetrics, headlineNumber } from '../analysis/index.js';
 import { createOptimizer, DEFAULT_COST, type Optimizer, type OptimizeResult } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
-import type { GainEdit } from './state.js';
+import type { GainEdit } from './gain-edit.js';
 import type { OptimizeOutcome, OptimizeView } from './tuning-views.js';
 
 /** Options of the sliced run (tests; the screen uses the optimiser's defaults). */

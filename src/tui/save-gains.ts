@@ -8,7 +8,8 @@
  */
 import { controllerEdits, fromIdeal, savePlantValues, type ValueEdit } from '../model/index.js';
 import type { PidForm } from '../model/types.js';
-import { formParams, frameId, type GainEdit } from './state.js';
+import { frameId, type GainEdit } from './gain-edit.js';
+import { formParams } from './param-meta.js';
 
 /** Significant digits written for each value (nudges make long binary fractions). */
 export const SAVE_DIGITS = 6;

@@ -7,7 +7,7 @@
 import { effectiveMs, headlineMetrics, headlineNumber } from '../analysis/index.js';
 import { suggestGains, TUNING_RULES, type GainFlag, type Suggestion } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
-import type { GainEdit } from './state.js';
+import type { GainEdit } from './gain-edit.js';
 import type { SuggestRow, SuggestView } from './tuning-views.js';
 
 const FLAG_WORDS: Record<GainFlag['code'], string> = {

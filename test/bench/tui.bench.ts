@@ -159,7 +159,7 @@ export async function run(): Promise<void> {
     const file = engine.editFromSpec(m.setup.plant.loop.controller);
     const bare: number[] = [];
     for (let i = 0; i < 36; i++) {
-      const nudged = state.withParam(file, state.paramList(file)[0], state.paramValue(file, state.paramList(file)[0]) * (i % 2 === 0 ? 1.1 : 1), math);
+      const nudged = state.withParam(file, state.paramList(file)[0], state.paramValue(file, state.paramList(file)[0]) * (i % 2 === 0 ? 1.1 : 1));
       const t0 = performance.now();
       engine.evaluate(m.setup, nudged);
       const dt = performance.now() - t0;

@@ -20,7 +20,6 @@ import {
 } from '../../src/tui/engine.js';
 import { LiveRun, stepSizes } from '../../src/tui/live-run.js';
 import { paramList, withParam } from '../../src/tui/state.js';
-import { CORE_EDIT_MATH } from '../../src/tui/edit-math.js';
 
 const fixtures = join(import.meta.dirname, '..', 'fixtures', 'plants');
 function plant(name: string): PlantSpec {
@@ -43,7 +42,7 @@ describe('tui engine', () => {
 
   it('a higher gain changes the trial (the screen redraws what the engine returns)', () => {
     const a = evaluate(surge, file);
-    const edited = withParam(file, 'kc', 3, CORE_EDIT_MATH);
+    const edited = withParam(file, 'kc', 3);
     if ('error' in edited) throw new Error(edited.error);
     const b = evaluate(surge, edited);
     expect(a.result.trace.length).toBe(b.result.trace.length);
@@ -59,7 +58,7 @@ describe('tui engine', () => {
   });
 
   it('rehearsal: identical to the baseline before the switch, different after it', () => {
-    const edited = withParam(file, 'kc', 4, CORE_EDIT_MATH);
+    const edited = withParam(file, 'kc', 4);
     if ('error' in edited) throw new Error(edited.error);
     const at = 450;
     const base = evaluate(surge, file).result.trace;
@@ -157,7 +156,7 @@ describe('tui live run', () => {
     run.advance(250, 1000);
     const before = run.trace();
     const uBefore = before.u[before.length - 1];
-    const edited = withParam(file, 'kc', 6, CORE_EDIT_MATH);
+    const edited = withParam(file, 'kc', 6);
     if ('error' in edited) throw new Error(edited.error);
     run.setGains(edited);
     run.advance(surge.config.sampleTime * 2, 1000);
@@ -207,7 +206,7 @@ describe('tui live run: another controller structure', () => {
     const run = new LiveRun(setup, edit, 300);
     run.advance(50, 1000);
     expect(run.time).toBeGreaterThan(49);
-    const raised = withParam(edit, 'kc', 0.7, CORE_EDIT_MATH);
+    const raised = withParam(edit, 'kc', 0.7);
     if ('error' in raised) throw new Error(raised.error);
     // Same frame: the gains change in the running law, the run goes on.
     expect(run.setGains(raised)).toBe(false);
@@ -250,7 +249,7 @@ describe('tui engine: a loop.controller with a richer structure', () => {
   it('an edited gain inside the structure reaches the predictor (a different trial than the file gains)', () => {
     const setup = setupLoop(load(here, 'smith-fopdt.yaml'));
     const edit = fileEdit(setup);
-    const raised = withParam(edit, 'kc', 1.2, CORE_EDIT_MATH);
+    const raised = withParam(edit, 'kc', 1.2);
     if ('error' in raised) throw new Error(raised.error);
     expect(raised.frame).toBe(edit.frame);
     expect(evaluate(setup, raised).metrics.overall.iae).not.toBe(evaluate(setup, edit).metrics.overall.iae);

@@ -6,7 +6,6 @@ import { describe, it, expect } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { loadPlant } from '../../src/model/index.js';
-import { CORE_EDIT_MATH } from '../../src/tui/edit-math.js';
 import { editFromSpec } from '../../src/tui/engine.js';
 import { planSave } from '../../src/tui/save-gains.js';
 import { withForm, withParam, type GainEdit } from '../../src/tui/state.js';
@@ -28,7 +27,7 @@ function changedLines(a: string, b: string): string[] {
 }
 
 function edit(e: GainEdit, id: Parameters<typeof withParam>[1], v: number): GainEdit {
-  const r = withParam(e, id, v, CORE_EDIT_MATH);
+  const r = withParam(e, id, v);
   if ('error' in r) throw new Error(r.error);
   return r;
 }
@@ -68,7 +67,7 @@ describe('tui save', () => {
   it("a set shown in another form is written in the file's form, converted back", () => {
     const text = read('fopdt-heater.yaml'); // parallel PI: kp 0.8, ki 0.08
     const file = fileEdit(text);
-    const shownIdeal = withForm(file, 'ideal', CORE_EDIT_MATH)!;
+    const shownIdeal = withForm(file, 'ideal')!;
     const e = edit(shownIdeal, 'kc', 1.2); // Ti stays 10 s, so Ki = 0.12 /s (sheet section 13: Ki = Kc/Ti)
     const plan = planSave(text, file, e, 'parallel');
     if (!plan.ok) throw new Error(plan.error);
@@ -86,7 +85,7 @@ describe('tui save', () => {
     const r = loadPlant(text, 'x.yaml');
     expect(r.plant?.loop.controller.form).toBe('series');
     const file = fileEdit(text);
-    const ideal = withForm(file, 'ideal', CORE_EDIT_MATH)!;
+    const ideal = withForm(file, 'ideal')!;
     const e = edit(edit(ideal, 'ti', 1), 'td', 1);
     const plan = planSave(text, file, e, 'series');
     expect(plan).toMatchObject({ ok: false, error: expect.stringMatching(/Ti >= 4 Td/) });

@@ -8,7 +8,7 @@ import type { TraceEnvelope } from '../../tune/index.js';
 import type { LoopSetup } from '../engine.js';
 import { EnvelopeJob } from '../envelope-job.js';
 import { SliceRunner } from '../slice-runner.js';
-import type { GainEdit } from '../state.js';
+import type { GainEdit } from '../gain-edit.js';
 
 /** Pause after the last edit before sweeping, ms. */
 export const ENVELOPE_DEBOUNCE_MS = 200;

@@ -10,7 +10,8 @@ import { candidateEntries, editedEntry } from '../candidates.js';
 import type { LoopSetup } from '../engine.js';
 import { OptimizeJob } from '../optimize-job.js';
 import { SliceRunner } from '../slice-runner.js';
-import { sameEdit, type Action, type Effect, type GainEdit } from '../state.js';
+import { sameEdit, type GainEdit } from '../gain-edit.js';
+import type { Action, Effect } from '../screen-state.js';
 import { SuggestJob } from '../suggest-job.js';
 
 /** Wall time of one slice of rules, ms: the rest is left to keys and drawing. */

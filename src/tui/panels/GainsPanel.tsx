@@ -3,7 +3,8 @@
  * one marked ('>' always, highlighted too when colour is on), beside the baseline's value.
  */
 import { Box } from 'ink';
-import { namedOf, paramInfo, paramList, paramValue, type GainEdit } from '../state.js';
+import { namedOf, paramList, paramValue, type GainEdit } from '../gain-edit.js';
+import { paramInfo } from '../param-meta.js';
 import type { Theme } from '../theme.js';
 import { Line, fit, type Piece } from './line.js';
 

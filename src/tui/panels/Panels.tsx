@@ -1,0 +1,215 @@
+/**
+ * The main screen's panels: the trend, the controller output, and under them the gain set, the
+ * trial against the requirements and the notices, as many as the layout gives room for.
+ */
+import { Box, Text } from 'ink';
+import type { Requirements } from '../../model/types.js';
+import { LABEL_WIDTH, pointsForWidth, renderChart } from '../chart.js';
+import type { Evaluation } from '../engine.js';
+import type { EnvelopeState } from '../hooks/use-envelope.js';
+import type { Layout } from '../layout.js';
+import type { LiveRun } from '../live-run.js';
+import type { MetricRow } from '../metric-rows.js';
+import type { MarginsView, Notice } from '../notices.js';
+import type { ScreenState } from '../screen-state.js';
+import type { Theme } from '../theme.js';
+import { bandLines, outputSeries, trendSeries, type BandStep } from '../trend-series.js';
+import { ChartPanel } from './ChartPanel.js';
+import { GainsPanel } from './GainsPanel.js';
+import { Line, type Piece } from './line.js';
+import { MetricsPanel } from './MetricsPanel.js';
+import { NoticesPanel } from './NoticesPanel.js';
+
+export interface PanelsProps {
+  layout: Layout;
+  theme: Theme;
+  state: ScreenState;
+  now: Evaluation;
+  base: Evaluation | null;
+  run: LiveRun | null;
+  req: Requirements;
+  metricRowsNow: readonly MetricRow[];
+  nowLabel: string;
+  notices: Notice[];
+  margins: MarginsView | null | 'pending';
+  actuator: { min: number; max: number };
+  /** The robustness envelope (null: not wanted, or not drawn in this mode). */
+  envelope: EnvelopeState | null;
+  /** Why the envelope asked for is not drawn (null: drawn, or not asked for). */
+  envelopeNote: string | null;
+}
+
+export function Panels(p: PanelsProps) {
+  const { layout, theme, state } = p;
+  const w = layout.width;
+  const colors: Record<string, string | undefined> = {
+    pv: theme.pv,
+    sp: theme.sp,
+    baseline: theme.baseline,
+    band: theme.band,
+    output: theme.output,
+    limit: theme.limit,
+    envelope: theme.envelope,
+  };
+  const points = pointsForWidth(w);
+  let trace = p.now.result.trace;
+  let t0 = 0;
+  let t1 = state.trialDuration;
+  // The bands sit around what each step is measured against (its final value once settled).
+  let steps: BandStep[] = p.now.metrics.steps.map((s) => ({ at: s.at, end: s.end, to: s.target, change: s.target - s.from, band: s.band }));
+  let baselineTrace = p.base?.result.trace ?? null;
+  if (p.run !== null) {
+    trace = p.run.trace();
+    // Scroll over the last `window` seconds; before that, zoom out as the run grows so an
+    // early response is not squeezed into the left edge.
+    t0 = Math.max(0, p.run.time - p.run.window);
+    t1 = Math.max(p.run.time, t0 + p.run.window / 6);
+    steps = p.run.bandSteps();
+    baselineTrace = null;
+  }
+  const legend: Piece[] = [
+    { text: '╌ SP ', color: theme.sp },
+    { text: '─ PV ', color: theme.pv },
+  ];
+  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· baseline only ' : '· baseline ', color: theme.baseline });
+  if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
+  const env = p.run === null ? p.envelope : null;
+  if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
+  else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, color: theme.dim });
+  const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
+  const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
+  if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
+
+  const showTrend = layout.trendRows > 0;
+  const trendGrid = showTrend
+    ? renderChart(
+        trendSeries({
+          trace,
+          baseline: baselineTrace,
+          t0,
+          t1,
+          points,
+          band: bandLines(steps, p.req),
+          envelope: env?.envelope ? { t: env.envelope.t, lo: env.envelope.lo, hi: env.envelope.hi, length: env.envelope.t.length } : null,
+        }),
+        { width: w, height: layout.trendRows, labelWidth: LABEL_WIDTH },
+      )
+    : null;
+  const outputGrid =
+    layout.outputRows > 0
+      ? renderChart(outputSeries(trace, baselineTrace, t0, t1, points, p.actuator), {
+          width: w,
+          height: layout.outputRows,
+          labelWidth: LABEL_WIDTH,
+        })
+      : null;
+
+  const gainsW = layout.gainsWidth;
+  const gains = (width: number) => (
+    <GainsPanel edit={state.current} baseline={state.baseline?.edit ?? null} selected={state.selected} width={width} rows={layout.bottomRows} theme={theme} />
+  );
+  const bottom = (
+    <Box flexDirection="column" width={w}>
+      <Line pieces={bottomHeading(layout, theme)} width={w} color={theme.color} />
+      <Box flexDirection="row" width={w}>
+        {gains(gainsW)}
+        {layout.metricsWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
+        {layout.metricsWidth > 0 && (
+          <MetricsPanel
+            rows={p.metricRowsNow}
+            nowLabel={p.nowLabel}
+            width={layout.metricsWidth}
+            height={layout.bottomRows}
+            theme={theme}
+            note={layout.marginsInMetrics ? marginsLine(p.margins, theme) : null}
+          />
+        )}
+        {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
+        {layout.noticesWidth > 0 && (
+          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
+        )}
+      </Box>
+    </Box>
+  );
+
+  if (layout.tier === 'tiny') {
+    return (
+      <Box flexDirection="column" width={w}>
+        <Line pieces={[{ text: `terminal too small for the trend (needs 60x16)`, color: theme.warn }]} width={w} color={theme.color} />
+        {gains(w)}
+      </Box>
+    );
+  }
+  return (
+    <Box flexDirection="column" width={w}>
+      {trendGrid !== null && (
+        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} axis={layout.trendAxis} />
+      )}
+      {outputGrid !== null && (
+        <ChartPanel
+          title="Controller output"
+          legend={[
+            { text: '─ u ', color: theme.output },
+            ...(baselineTrace !== null ? [{ text: '· baseline ', color: theme.baseline }] : []),
+            { text: '= limits ', color: theme.limit },
+          ]}
+          grid={outputGrid}
+          marks={marks}
+          t0={t0}
+          t1={t1}
+          width={w}
+          theme={theme}
+          colors={colors}
+        />
+      )}
+      {bottom}
+    </Box>
+  );
+}
+
+/** The envelope's legend entry: its cases, or how far its sweep has come. */
+function envelopeLegend(e: EnvelopeState): string {
+  if (e.error !== null) return `░ envelope failed: ${e.error} `;
+  if (e.total === 0) return '░ envelope … ';
+  const cases = e.done < e.total ? `${e.done}/${e.total} cases…` : `${e.total} cases`;
+  // The widest spread, so that an envelope hidden under the PV line still says how wide it is.
+  let spread = 0;
+  const env = e.envelope;
+  if (env !== null) for (let i = 0; i < env.t.length; i++) if (Number.isFinite(env.hi[i] - env.lo[i])) spread = Math.max(spread, env.hi[i] - env.lo[i]);
+  return `░ envelope ${cases}, spread ≤ ${Number(spread.toPrecision(2))}${e.anyDiverged ? ', one diverges' : ''} `;
+}
+
+/** The margins of the edited gains as one notices line, or null without a diagnosis. */
+function marginsLine(m: MarginsView | null | 'pending', theme: Theme): Piece[] | null {
+  if (m === null) return null;
+  if (m === 'pending') return [{ text: 'margins …', color: theme.dim }];
+  if (m.closedLoopStable === false) return [{ text: 'closed loop UNSTABLE', color: theme.bad, bold: true }];
+  const f = (v: number, unit = ''): string => (Number.isFinite(v) ? `${Number(v.toPrecision(3))}${unit}` : v > 0 ? '∞' : '—');
+  return [{ text: `GM ${f(m.gainMargin)}  PM ${f(m.phaseMarginDeg, '°')}  Ms ${f(m.maxSensitivity)}`, bold: true }];
+}
+
+/** One rule over the gain, metrics and notices columns, with a title over each. */
+function bottomHeading(layout: Layout, theme: Theme): Piece[] {
+  const col = (title: string, width: number): Piece[] => [
+    { text: '─ ', color: theme.dim },
+    { text: title, color: theme.heading, bold: true },
+    { text: ' ' + '─'.repeat(Math.max(0, width - title.length - 3)), color: theme.dim },
+  ];
+  const pieces = col('Gain set', layout.gainsWidth);
+  if (layout.metricsWidth > 0) pieces.push({ text: '┼', color: theme.dim }, ...col('Trial vs requirements', layout.metricsWidth));
+  if (layout.noticesWidth > 0) pieces.push({ text: '┼', color: theme.dim }, ...col('Notices', layout.noticesWidth));
+  return pieces;
+}
+
+function Separator(p: { rows: number; theme: Theme }) {
+  return (
+    <Box flexDirection="column" width={1}>
+      {Array.from({ length: p.rows }, (_, i) => (
+        <Text key={i} color={p.theme.dim}>
+          │
+        </Text>
+      ))}
+    </Box>
+  );
+}
+
