@@ -1,6 +1,6 @@
 /**
  * `looprig run FILE --svg OUT.svg`: the trial plot of a run. With `--set` overrides, the file's
- * own gains are simulated too and drawn as the baseline.
+ * own gains are simulated too and drawn as the set in service.
  */
 import { loadPlant } from '../model/index.js';
 import type { Io } from './io.js';
@@ -15,7 +15,7 @@ export function writeRunSvg(report: RunReport, out: string, overridden: boolean,
   if (overridden) {
     // The file loaded cleanly a moment ago (runPlant did it), so this load cannot fail.
     const original = loadPlant(io.readText(report.file), report.file).plant;
-    if (original) baseline = { label: 'baseline (gains in the file)', trace: simulatePlant(original).result.trace };
+    if (original) baseline = { label: 'in service (gains in the file)', trace: simulatePlant(original).result.trace };
   }
   const failed = report.requirements.filter((r) => r.status === 'fail').map((r) => r.name);
   const svg = trialPlotSvg({

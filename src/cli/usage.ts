@@ -31,7 +31,7 @@ Options for run:
   --json              print one JSON document on stdout instead of the summary
   --csv OUT           also write the trace (t, setpoint, output, measured, u, disturbances) to OUT
   --svg OUT           also write a plot of the trial (setpoint, output, controller output,
-                      requirement bands; with --set, the file's gains as baseline) to OUT
+                      requirement bands; with --set, the file's gains as the set in service) to OUT
   --set NAME=VALUE    override a controller field in the file's form, e.g. --set kc=2.5 --set ti=40s
                       (repeatable; times may carry a unit: ms, s, min, h)
   --duration T        override the trial duration, e.g. --duration 20min

@@ -291,7 +291,7 @@ export function App(props: AppProps) {
         structure={namedOf(state.current)}
         form={state.current.form}
         rehearseAt={rehearsing ? state.switchAt : null}
-        baseline={state.baseline === null ? null : state.baseline.label === 'file' ? "file's gains" : 'kept set'}
+        baseline={state.baseline === null ? null : state.baseline.label === 'file' ? 'file' : 'pinned'}
         width={layout.width}
         theme={theme}
       />

@@ -72,10 +72,10 @@ export const KEYMAP: readonly KeyBinding[] = [
   { keys: ['r'], command: 'redo', group: 'edit', help: 'redo' },
   { keys: ['f'], command: 'next_form', group: 'edit', help: 'form: ideal/parallel/series' },
   { keys: ['a'], command: 'next_anti_windup', group: 'edit', help: 'anti-windup: none/clamp/back' },
-  { keys: ['b'], command: 'keep_baseline', group: 'compare', help: 'keep this set as baseline' },
-  { keys: ['o'], command: 'baseline_from_file', group: 'compare', help: "baseline = file's gains" },
-  { keys: ['x'], command: 'clear_baseline', group: 'compare', help: 'drop the baseline' },
-  { keys: ['g'], command: 'toggle_rehearse', group: 'compare', help: 'rehearse: baseline, then new' },
+  { keys: ['b'], command: 'keep_baseline', group: 'compare', help: 'pin this set as in service' },
+  { keys: ['o'], command: 'baseline_from_file', group: 'compare', help: "in service = file's gains" },
+  { keys: ['x'], command: 'clear_baseline', group: 'compare', help: 'forget the set in service' },
+  { keys: ['g'], command: 'toggle_rehearse', group: 'compare', help: 'rehearse: in service → new' },
   { keys: ['t'], command: 'set_switch_time', group: 'compare', help: 'time of the rehearsal switch' },
   { keys: ['l'], command: 'toggle_run_mode', group: 'run', help: 'instant trial / live run' },
   { keys: ['space'], command: 'pause_resume', group: 'run', help: 'live: pause / resume' },
@@ -235,7 +235,7 @@ export function keyLabel(token: string): string {
 
 const GROUP_TITLES: Record<KeyGroup, string> = {
   edit: 'Edit the gain set',
-  compare: 'Baseline and rehearsal',
+  compare: 'Set in service, rehearsal',
   tune: 'Tuning aids',
   run: 'Running',
   file: 'File and screen',

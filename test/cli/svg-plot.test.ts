@@ -137,15 +137,15 @@ describe('looprig run --svg', () => {
     ]) {
       expect(svg).toContain(s);
     }
-    expect(svg).not.toContain('baseline');
+    expect(svg).not.toContain('in service');
     expect(svg).not.toMatch(/NaN/);
   });
 
-  it('with --set the file\'s own gains are drawn as the baseline', async () => {
+  it('with --set the file\'s own gains are drawn as the set in service', async () => {
     const io = fakeIo();
     expect(await main(['run', 'plants/levitated-ball.yaml', '--set', 'kc=0.4', '--svg', 'b.svg'], io)).toBe(0);
     const svg = io.files.get('b.svg')!;
-    expect(svg).toContain('>baseline (gains in the file)<');
+    expect(svg).toContain('>in service (gains in the file)<');
     expect(svg).toContain('time (s)');
     expect(svg).toContain('FAILED: settling_time');
   });

@@ -109,12 +109,12 @@ describe('tui app: editing', () => {
     expect(s.frame()).toContain('[unsaved]');
   });
 
-  it('b keeps a baseline; its values and metrics show beside the current ones', async () => {
+  it('b pins the set in service; its values and metrics show beside the current ones', async () => {
     const s = await mount('surge-tank.yaml');
     await s.press('b', ']');
-    expect(s.frame()).toContain('base 2');
-    expect(s.frame()).toContain('baseline');
-    expect(s.frame()).toContain('· baseline');
+    expect(s.frame()).toContain('in svc 2');
+    expect(s.frame()).toContain('· in service');
+    expect(s.frame()).not.toMatch(/baseline/i);
   });
 
   it('g rehearses the retune from the file gains; the status shows the switch time', async () => {

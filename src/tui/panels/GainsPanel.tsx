@@ -1,6 +1,6 @@
 /**
  * The gain set being edited: structure, form, anti-windup, and each parameter with the selected
- * one marked ('>' always, highlighted too when colour is on), beside the baseline's value.
+ * one marked ('>' always, highlighted too when colour is on), beside the value of the set in service.
  */
 import { Box } from 'ink';
 import { namedOf, paramList, paramValue, type GainEdit } from '../gain-edit.js';
@@ -78,12 +78,12 @@ export function gainLines(p: GainsProps): Piece[][] {
     const base = typeof bv === 'number' ? bv : null;
     const text = `${mine ? '>' : ' '} ${fit(info.symbol, 4)}${fit(showValue(value), 9)}${fit(info.unit, 4)}`;
     const pieces: Piece[] = [{ text, inverse: mine && t.color, bold: mine }];
-    if (base !== null) pieces.push({ text: ` base ${showValue(base)}`, color: t.baseline });
+    if (base !== null) pieces.push({ text: ` in svc ${showValue(base)}`, color: t.baseline });
     else pieces.push({ text: ` ${info.label}`, color: t.dim });
     lines.push(pieces);
   });
   if (p.baseline !== null && p.baseline.form !== e.form) {
-    lines.push([{ text: `  (baseline is in ${p.baseline.form} form)`, color: t.dim }]);
+    lines.push([{ text: `  (set in service: ${p.baseline.form} form)`, color: t.dim }]);
   }
   if (lines.length <= p.rows) return lines;
   // Too few rows: keep the heading (and the frame notes, when they fit) and scroll the parameters

@@ -33,7 +33,7 @@ export function metricLines(p: MetricsProps): Piece[][] {
   const nowW = Math.max(8, ...p.rows.map((r) => r.now.text.length + 1));
   const baseW = Math.max(7, ...p.rows.map((r) => (r.base?.text.length ?? 0) + 1));
   const lines: Piece[][] = [
-    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'baseline' : ''}`, color: t.dim }],
+    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'in svc' : ''}`, color: t.dim }],
   ];
   for (const r of p.rows) {
     const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, 9), color: t.dim }, { text: fit(r.now.text, nowW) }, mark(r.now, t)];

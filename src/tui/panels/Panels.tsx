@@ -71,7 +71,7 @@ export function Panels(p: PanelsProps) {
     { text: '╌ SP ', color: theme.sp },
     { text: '─ PV ', color: theme.pv },
   ];
-  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· baseline only ' : '· baseline ', color: theme.baseline });
+  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· in service only ' : '· in service ', color: theme.baseline });
   if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
   const env = p.run === null ? p.envelope : null;
   if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
@@ -150,7 +150,7 @@ export function Panels(p: PanelsProps) {
           title="Controller output"
           legend={[
             { text: '─ u ', color: theme.output },
-            ...(baselineTrace !== null ? [{ text: '· baseline ', color: theme.baseline }] : []),
+            ...(baselineTrace !== null ? [{ text: '· in service ', color: theme.baseline }] : []),
             { text: '= limits ', color: theme.limit },
           ]}
           grid={outputGrid}

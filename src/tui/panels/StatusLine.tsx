@@ -41,7 +41,7 @@ export function statusPieces(p: StatusProps): Piece[] {
   pieces.push(sep, { text: `t ${p.time.toFixed(1)} s` }, sep, { text: p.manual ? 'MANUAL' : 'auto', color: p.manual ? t.warn : undefined });
   pieces.push(sep, { text: `${p.structure.toUpperCase()} ${p.form}` });
   if (p.rehearseAt !== null) pieces.push(sep, { text: `rehearse @ ${Number(p.rehearseAt.toPrecision(6))} s`, color: t.baseline });
-  else if (p.baseline !== null) pieces.push(sep, { text: `base: ${p.baseline}`, color: t.baseline });
+  else if (p.baseline !== null) pieces.push(sep, { text: `in svc: ${p.baseline}`, color: t.baseline });
   return pieces;
 }
 

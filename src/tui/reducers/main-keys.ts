@@ -112,20 +112,20 @@ export function mainCommand(s: ScreenState, c: KeyCommand): ScreenState {
       return push(s, { ...s.current, gains: { ...s.current.gains, antiWindup: aw } });
     }
     case 'keep_baseline':
-      return info({ ...s, baseline: { edit: s.current, label: 'kept' } }, 'baseline = the current gain set');
+      return info({ ...s, baseline: { edit: s.current, label: 'kept' } }, 'in service = the current gain set (pinned)');
     case 'baseline_from_file':
-      return info({ ...s, baseline: { edit: s.file, label: 'file' } }, "baseline = the file's gain set");
+      return info({ ...s, baseline: { edit: s.file, label: 'file' } }, "in service = the file's gain set");
     case 'clear_baseline':
-      return info({ ...s, baseline: null, rehearse: false }, 'baseline dropped');
+      return info({ ...s, baseline: null, rehearse: false }, 'set in service forgotten');
     case 'toggle_rehearse': {
       if (s.rehearse) return info({ ...s, rehearse: false }, 'rehearsal off');
       const baseline = s.baseline ?? { edit: s.file, label: 'file' as const };
       if (frameId(baseline.edit) !== frameId(s.current)) {
-        return info(s, 'a rehearsal switches gains inside one structure; the baseline runs another (b keeps this one)', 'warn');
+        return info(s, 'a rehearsal switches gains inside one structure; the set in service runs another (b pins this one)', 'warn');
       }
       return info(
         { ...s, rehearse: true, baseline },
-        `rehearsal: baseline until ${formatPlain(s.switchAt)} s, then the new gains (t sets the time)`,
+        `rehearsal: the set in service until ${formatPlain(s.switchAt)} s, then the new gains (t sets the time)`,
       );
     }
     case 'set_switch_time':
