@@ -11,7 +11,7 @@ import { createSimulation, createTrace, eventSchedule, SAMPLE_EPS, type Schedule
 import type { Trace } from '../sim/types.js';
 import { controllerFor, runningGains, type LoopSetup } from './engine.js';
 import { frameId, type GainEdit } from './gain-edit.js';
-import type { BandStep } from './trend-series.js';
+import type { StripStep } from './verdict-strip.js';
 
 /** Simulated seconds advanced per engine call, so that the wall-time budget is checked often. */
 const CHUNK_SAMPLES = 200;
@@ -239,17 +239,17 @@ export class LiveRun {
     return this.view;
   }
 
-  /** Setpoint steps inside the shown window, as the requirement band needs them. */
-  bandSteps(): BandStep[] {
+  /** Setpoint steps inside the shown window, as the verdict strip reads them (no figures: the run goes on). */
+  stripSteps(): StripStep[] {
     const now = this.sim.time;
-    const out: BandStep[] = [];
+    const out: StripStep[] = [];
     for (let k = 0; k < this.steps.length; k++) {
       const s = this.steps[k];
       const end = k + 1 < this.steps.length ? this.steps[k + 1].at : now;
       if (end < now - this.window) continue;
       const change = s.to - s.from;
       const band = (this.setup.plant.loop.requirements.settlingBand ?? DEFAULT_SETTLING_BAND) * Math.abs(change);
-      out.push({ at: s.at, end, to: s.to, change, band });
+      out.push({ at: s.at, end, from: s.from, target: s.to, band, figures: null });
     }
     return out;
   }

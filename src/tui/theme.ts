@@ -11,7 +11,6 @@ export interface Theme {
   readonly pv: string | undefined;
   readonly sp: string | undefined;
   readonly baseline: string | undefined;
-  readonly band: string | undefined;
   readonly output: string | undefined;
   readonly limit: string | undefined;
   /** The robustness envelope on the trend. */
@@ -27,7 +26,6 @@ const PALETTE = {
   pv: 'cyanBright',
   sp: 'yellow',
   baseline: 'magenta',
-  band: 'red',
   output: 'greenBright',
   limit: 'red',
   envelope: 'blue',
@@ -45,7 +43,6 @@ export function makeTheme(color: boolean): Theme {
     pv: undefined,
     sp: undefined,
     baseline: undefined,
-    band: undefined,
     output: undefined,
     limit: undefined,
     envelope: undefined,
@@ -86,7 +83,6 @@ export const GLYPHS = {
   pv: ['┼', '┤', '╶', '╴', '─', '╰', '╭', '╮', '╯', '│'],
   sp: ['┼', '┤', '╶', '╴', '╌', '╎', '╎', '╎', '╎', '╎'],
   baseline: ['┼', '┤', '╶', '╴', '·', '·', '·', '·', '·', '·'],
-  band: ['┼', '┤', '╶', '╴', '-', ' ', ' ', ' ', ' ', ' '],
   output: ['┼', '┤', '╶', '╴', '─', '╰', '╭', '╮', '╯', '│'],
   limit: ['┼', '┤', '╶', '╴', '=', ' ', ' ', ' ', ' ', ' '],
   // The envelope's edges as shaded cells, no verticals: a band, not a line.

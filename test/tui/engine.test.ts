@@ -147,7 +147,7 @@ describe('tui live run', () => {
     run.advance(5, 1000);
     const tr = run.trace();
     expect(tr.r[tr.length - 1]).toBeCloseTo(0.6, 12);
-    expect(run.bandSteps().at(-1)).toMatchObject({ to: r });
+    expect(run.stripSteps().at(-1)).toMatchObject({ target: r });
     expect(run.stepDisturbance(1)).toEqual({ name: 'extra_inflow', value: 0.15 });
   });
 

@@ -19,6 +19,8 @@ export interface ChartPanelProps {
   marks?: readonly { at: number; ch: string }[];
   /** Draw the time axis (default); false when the chart below shares it. */
   axis?: boolean;
+  /** A row drawn under the plot rows, over the time axis (the verdict strip). */
+  strip?: readonly Piece[];
   /** Tag -> colour of the series. */
   colors: Readonly<Record<string, string | undefined>>;
 }
@@ -35,6 +37,7 @@ export function ChartPanel(p: ChartPanelProps) {
           pieces={row.map((s) => ({ text: s.text, color: s.tag === 'axis' ? p.theme.dim : p.colors[s.tag] }))}
         />
       ))}
+      {p.strip !== undefined && <Line width={p.width} color={p.theme.color} pieces={p.strip} />}
       {p.axis !== false && (<Line
         width={p.width}
         color={p.theme.color}

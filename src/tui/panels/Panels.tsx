@@ -13,7 +13,8 @@ import type { MetricRow } from '../metric-rows.js';
 import type { MarginsView, Notice } from '../notices.js';
 import type { ScreenState } from '../screen-state.js';
 import type { Theme } from '../theme.js';
-import { bandLines, outputSeries, trendSeries, type BandStep } from '../trend-series.js';
+import { outputSeries, trendSeries } from '../trend-series.js';
+import { hasStripRequirements, stripSteps, VERDICT_MARKS, verdictStrip, type Strip, type StripStep } from '../verdict-strip.js';
 import { ChartPanel } from './ChartPanel.js';
 import { GainsPanel } from './GainsPanel.js';
 import { Line, type Piece } from './line.js';
@@ -46,7 +47,6 @@ export function Panels(p: PanelsProps) {
     pv: theme.pv,
     sp: theme.sp,
     baseline: theme.baseline,
-    band: theme.band,
     output: theme.output,
     limit: theme.limit,
     envelope: theme.envelope,
@@ -55,8 +55,7 @@ export function Panels(p: PanelsProps) {
   let trace = p.now.result.trace;
   let t0 = 0;
   let t1 = state.trialDuration;
-  // The bands sit around what each step is measured against (its final value once settled).
-  let steps: BandStep[] = p.now.metrics.steps.map((s) => ({ at: s.at, end: s.end, to: s.target, change: s.target - s.from, band: s.band }));
+  let steps: StripStep[] = stripSteps(p.now.metrics);
   let baselineTrace = p.base?.result.trace ?? null;
   if (p.run !== null) {
     trace = p.run.trace();
@@ -64,7 +63,7 @@ export function Panels(p: PanelsProps) {
     // early response is not squeezed into the left edge.
     t0 = Math.max(0, p.run.time - p.run.window);
     t1 = Math.max(p.run.time, t0 + p.run.window / 6);
-    steps = p.run.bandSteps();
+    steps = p.run.stripSteps();
     baselineTrace = null;
   }
   const legend: Piece[] = [
@@ -72,7 +71,6 @@ export function Panels(p: PanelsProps) {
     { text: '─ PV ', color: theme.pv },
   ];
   if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· in service only ' : '· in service ', color: theme.baseline });
-  if (p.req.overshootPct !== undefined || p.req.settlingTime !== undefined) legend.push({ text: '- limits ', color: theme.band });
   const env = p.run === null ? p.envelope : null;
   if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
   else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, color: theme.dim });
@@ -81,6 +79,8 @@ export function Panels(p: PanelsProps) {
   if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
 
   const showTrend = layout.trendRows > 0;
+  // One trend row becomes the verdict strip when the file sets a requirement it can mark.
+  const withStrip = showTrend && layout.trendRows >= 3 && hasStripRequirements(p.req);
   const trendGrid = showTrend
     ? renderChart(
         trendSeries({
@@ -89,12 +89,28 @@ export function Panels(p: PanelsProps) {
           t0,
           t1,
           points,
-          band: bandLines(steps, p.req),
           envelope: env?.envelope ? { t: env.envelope.t, lo: env.envelope.lo, hi: env.envelope.hi, length: env.envelope.t.length } : null,
         }),
-        { width: w, height: layout.trendRows, labelWidth: LABEL_WIDTH },
+        { width: w, height: layout.trendRows - (withStrip ? 1 : 0), labelWidth: LABEL_WIDTH },
       )
     : null;
+  let strip: Piece[] | undefined;
+  if (withStrip && trendGrid !== null) {
+    const run = p.run;
+    const result = p.now.result;
+    const marked = verdictStrip({
+      trace,
+      steps,
+      req: p.req,
+      overall: run === null ? p.now.metrics.overall : null,
+      divergedAt: run === null ? (result.status === 'diverged' ? result.divergedAt : null) : run.diverged ? run.divergedAt : null,
+      t0,
+      t1,
+      columns: trendGrid.columns,
+    });
+    strip = stripPieces(marked, trendGrid.gutter, theme);
+    legend.push(...stripLegend(marked, theme));
+  }
   const outputGrid =
     layout.outputRows > 0
       ? renderChart(outputSeries(trace, baselineTrace, t0, t1, points, p.actuator), {
@@ -143,7 +159,7 @@ export function Panels(p: PanelsProps) {
   return (
     <Box flexDirection="column" width={w}>
       {trendGrid !== null && (
-        <ChartPanel title={title} legend={legend} grid={trendGrid} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} axis={layout.trendAxis} />
+        <ChartPanel title={title} legend={legend} grid={trendGrid} strip={strip} t0={t0} t1={t1} width={w} theme={theme} colors={colors} marks={marks} axis={layout.trendAxis} />
       )}
       {outputGrid !== null && (
         <ChartPanel
@@ -165,6 +181,28 @@ export function Panels(p: PanelsProps) {
       {bottom}
     </Box>
   );
+}
+
+/** The verdict strip as one chart row: its label in the gutter, '·' where nothing is broken, the letter where a requirement is. */
+function stripPieces(strip: Strip, gutter: number, theme: Theme): Piece[] {
+  const pieces: Piece[] = [{ text: 'verdict'.padStart(gutter - 1) + '┤', color: theme.dim }];
+  let run: Piece | null = null;
+  for (const k of strip.cells) {
+    const text = k === null ? '·' : VERDICT_MARKS[k].letter;
+    const color = k === null ? theme.dim : theme.bad;
+    if (run !== null && run.color === color && (k === null) === (run.text[0] === '·')) run.text += text;
+    else {
+      run = { text, color, bold: k !== null };
+      pieces.push(run);
+    }
+  }
+  return pieces;
+}
+
+/** The strip's legend: the letters it shows with their words, or that every limit holds. */
+function stripLegend(strip: Strip, theme: Theme): Piece[] {
+  if (strip.broken.length === 0) return [{ text: '· requirements met ', color: theme.ok }];
+  return [{ text: `broken: ${strip.broken.map((k) => `${VERDICT_MARKS[k].letter} ${VERDICT_MARKS[k].word}`).join(' ')} `, color: theme.bad }];
 }
 
 /** The envelope's legend entry: its cases, or how far its sweep has come. */
