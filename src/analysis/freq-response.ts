@@ -13,7 +13,7 @@
 import type { GainSet } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';
 import { solveComplexInPlace } from '../num/index.js';
-import { originTolerance, poleZeroSummary } from './poles-zeros.js';
+import { originTolerance, poleZeroSummary, type PoleZeroSummary } from './poles-zeros.js';
 
 /** Evaluates the rational part of a plant (no delay) at one frequency into out[0] (re), out[1] (im). */
 export type RationalEvaluator = (w: number, out: Float64Array) => void;
@@ -27,6 +27,8 @@ export interface PlantFrequencyResponse extends SampledGrid {
   wMax: number;
   /** The rational part at any frequency (for refinement between grid points). */
   evaluate: RationalEvaluator;
+  /** The model's poles and zeros, worked out once for the grid (loop-path.ts reads them too); null when they could not be. */
+  poleZero: PoleZeroSummary | null;
 }
 
 /** Options for `plantFrequencyResponse`. */
@@ -101,8 +103,10 @@ export function wrapAngle(a: number): number {
 export function plantFrequencyResponse(model: LinearModel, options: FrequencyGridOptions = {}): PlantFrequencyResponse {
   const evaluate = rationalEvaluator(model);
   const chars: number[] = [];
+  let poleZero: PoleZeroSummary | null = null;
   try {
     const pz = poleZeroSummary(model);
+    poleZero = pz;
     const roots = pz.poles.concat(pz.zeros);
     const tol0 = originTolerance(roots);
     for (const r of roots) {
@@ -133,7 +137,7 @@ export function plantFrequencyResponse(model: LinearModel, options: FrequencyGri
   for (let i = 0; i < nBase; i++) ws.push(wMin * Math.pow(wMax / wMin, i / (nBase - 1)));
 
   const grid = sampleOnGrid(ws, evaluate, maxPoints);
-  return { model, ...grid, delay: model.delay, wMax, evaluate };
+  return { model, ...grid, delay: model.delay, wMax, evaluate, poleZero };
 }
 
 /** A response sampled on a grid (for a plant: its rational part P₀, the delay excluded). */

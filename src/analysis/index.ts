@@ -36,6 +36,8 @@ export type { PlantFrequencyResponse, FrequencyGridOptions, RationalEvaluator, L
 export { loopPath, sampledEvaluator } from './loop-path.js';
 export type { LoopPath, LoopSensor } from './loop-path.js';
 export { pidLawResponse } from './pid-law-response.js';
+export { loopResponse, loopFrequencyResponse, gridRange } from './loop-frequency-response.js';
+export type { LoopEvaluator, LoopMark, LoopFrequencyResponse, LoopGridOptions } from './loop-frequency-response.js';
 export type { LawResponse } from './pid-law-response.js';
 export { loopMargins, loopExtras } from './margins.js';
 export type { Margins } from './margins.js';

@@ -31,7 +31,7 @@ import type { SensorSpec } from '../model/types.js';
 import { delayInSteps, sensorFilterCoefficients, type LinearModel } from '../sim/index.js';
 import { solveComplexInPlace, zohDiscretise } from '../num/index.js';
 import { sampleOnGrid, type PlantFrequencyResponse, type RationalEvaluator, type SampledGrid } from './freq-response.js';
-import { originTolerance, poleZeroSummary } from './poles-zeros.js';
+import { originTolerance, type PoleZeroSummary } from './poles-zeros.js';
 
 /**
  * The loop without its controller, on a frequency grid: the rational part of G (for h > 0 the
@@ -86,28 +86,25 @@ interface OpenLoopFacts {
   undampedModes: boolean;
 }
 
-function openLoopFacts(model: LinearModel, h: number): OpenLoopFacts {
-  try {
-    const pz = poleZeroSummary(model);
-    // At the origin: within rounding of it, or (sampled) mapped within 1e-6 of z = 1.
-    const tol0 = Math.max(originTolerance(pz.poles.concat(pz.zeros)), h > 0 ? 1e-6 / h : 0);
-    let unstable = 0;
-    let nearOrigin = 0;
-    let undamped = false;
-    for (const q of pz.poles.concat(pz.zeros)) {
-      const m = Math.hypot(q.re, q.im);
-      if (m <= tol0) nearOrigin = Math.max(nearOrigin, m);
-    }
-    for (const q of pz.poles) {
-      const m = Math.hypot(q.re, q.im);
-      if (q.re > 1e-9 * Math.max(1, m)) unstable++;
-      // Damping below 1e-3: a resonance too narrow for the grid to unwrap reliably (its bisection stops near 1e-4 ω).
-      else if (m > tol0 && Math.abs(q.re) <= 1e-3 * m) undamped = true;
-    }
-    return { unstablePoles: unstable, nyquistFrom: 10 * nearOrigin, undampedModes: undamped };
-  } catch {
-    return { unstablePoles: -1, nyquistFrom: 0, undampedModes: false };
+/** From the plant response's own pole/zero summary (made once with its grid), null when there is none. */
+function openLoopFacts(pz: PoleZeroSummary | null, h: number): OpenLoopFacts {
+  if (pz === null) return { unstablePoles: -1, nyquistFrom: 0, undampedModes: false };
+  // At the origin: within rounding of it, or (sampled) mapped within 1e-6 of z = 1.
+  const tol0 = Math.max(originTolerance(pz.poles.concat(pz.zeros)), h > 0 ? 1e-6 / h : 0);
+  let unstable = 0;
+  let nearOrigin = 0;
+  let undamped = false;
+  for (const q of pz.poles.concat(pz.zeros)) {
+    const m = Math.hypot(q.re, q.im);
+    if (m <= tol0) nearOrigin = Math.max(nearOrigin, m);
   }
+  for (const q of pz.poles) {
+    const m = Math.hypot(q.re, q.im);
+    if (q.re > 1e-9 * Math.max(1, m)) unstable++;
+    // Damping below 1e-3: a resonance too narrow for the grid to unwrap reliably (its bisection stops near 1e-4 ω).
+    else if (m > tol0 && Math.abs(q.re) <= 1e-3 * m) undamped = true;
+  }
+  return { unstablePoles: unstable, nyquistFrom: 10 * nearOrigin, undampedModes: undamped };
 }
 
 function continuousPath(plant: PlantFrequencyResponse, sensorDelay: number, tf: number): LoopPath {
@@ -144,7 +141,7 @@ function continuousPath(plant: PlantFrequencyResponse, sensorDelay: number, tf: 
     phase,
     delay: plant.delay + sensorDelay,
     evaluate,
-    ...openLoopFacts(plant.model, 0),
+    ...openLoopFacts(plant.poleZero, 0),
   };
 }
 
@@ -267,5 +264,5 @@ function sampledPath(plant: PlantFrequencyResponse, h: number, sensorDelay: numb
   grid.im[last] = 0;
   grid.re[last] = Math.sign(grid.re[last]) * grid.mag[last];
   grid.phase[last] = Math.PI * Math.round(grid.phase[last] / Math.PI);
-  return { sampleTime: h, ...grid, delay: d * h, evaluate, ...openLoopFacts(model, h) };
+  return { sampleTime: h, ...grid, delay: d * h, evaluate, ...openLoopFacts(plant.poleZero, h) };
 }

@@ -4,13 +4,13 @@
  * (Åström & Murray, Feedback Systems, 2008, sec. 11.4 "design by loop shaping"; Åström &
  * Hägglund, Advanced PID Control, ISA 2006, ch. 4 and 6; from memory; the solution method below is ours).
  *
- * The loop is evaluated by the project's own margins path (analysis' loopPath, the sampled loop
- * with hold, sensor filter and delays, times pidLawResponse, the discrete law), so the
- * design and the reported margins are the same model of the loop. L is proportional to kc, so the
+ * The loop is evaluated by analysis' loopResponse (the one composition of L: the sampled loop
+ * with hold, sensor filter and delays, times the discrete law), so the design and the reported
+ * margins are the same model of the loop. L is proportional to kc, so the
  * phase at ωc depends on one parameter only (Ti for PI; Td with Ti = R Td for PID): it is found by
  * bisection on that parameter, then kc = 1/|L(jωc)| at kc = 1.
  */
-import { loopPath, pidLawResponse, type PlantFrequencyResponse } from '../analysis/index.js';
+import { loopResponse, type PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, SensorSpec } from '../model/types.js';
 import type { TuningRule } from './rule-table.js';
 
@@ -37,21 +37,11 @@ export interface ShapingLoop {
 export type Shaped = { kc: number; ti: number; td: number } | { reason: string };
 
 const work = new Float64Array(2);
-const pathAt = new Float64Array(2);
 
-/**
- * L(jω) for gain set g on the loop, as loopMargins forms it: the PID law's response (pidLawResponse)
- * times the loop path's rational part and its whole delay (loopPath, cached per plant response).
- */
+/** L(jω) for gain set g on the loop (analysis' loopResponse). */
 function loopAt(loop: ShapingLoop, g: GainSet, w: number): [number, number] {
-  const path = loopPath(loop.response, loop.sampleTime, loop.sensor);
-  pidLawResponse(g, loop.sampleTime)(w, work);
-  path.evaluate(w, pathAt);
-  const gr = pathAt[0] * work[0] - pathAt[1] * work[1];
-  const gi = pathAt[0] * work[1] + pathAt[1] * work[0];
-  const c = Math.cos(w * path.delay);
-  const s = -Math.sin(w * path.delay);
-  return [gr * c - gi * s, gr * s + gi * c];
+  loopResponse(loop.response, g, loop.sampleTime, loop.sensor)(w, work);
+  return [work[0], work[1]];
 }
 
 function wrap(a: number): number {

@@ -8,6 +8,7 @@ import { plantFrequencyResponse } from '../../src/analysis/freq-response.js';
 import { loopMargins } from '../../src/analysis/margins.js';
 import type { GainSet } from '../../src/model/types.js';
 import { tfModel } from './tf-model.js';
+import { loopOf, type SampledLoopCase } from './sampled-loop-case.js';
 import { expectClose } from '../helpers/expect-close.js';
 
 /**
@@ -17,18 +18,7 @@ import { expectClose } from '../helpers/expect-close.js';
  * by control.stability_margins checked against a dense unit-circle evaluation, Ms = max |1/(1+L)|,
  * stability from the closed-loop state matrix's eigenvalues.
  */
-interface RefCase {
-  name: string;
-  num: number[];
-  den: number[];
-  plantDelay: number;
-  sensorDelay: number;
-  filterTime: number;
-  h: number;
-  kc: number;
-  ti: number | null;
-  td: number;
-  n: number | null;
+interface RefCase extends SampledLoopCase {
   stable: boolean;
   gainMargin: number | null;
   phaseCrossover: number | null;
@@ -40,13 +30,9 @@ interface RefCase {
 
 const fixture = JSON.parse(readFileSync(join(__dirname, '../fixtures/reference/sampled-margins.json'), 'utf8')) as { cases: RefCase[] };
 
-function gainsOf(c: RefCase): GainSet {
-  return { kc: c.kc, ti: c.ti ?? Infinity, td: c.td, n: c.n ?? Infinity, b: 1, c: 0, antiWindup: 'none', trackingTime: NaN };
-}
-
 function marginsOf(c: RefCase, h = c.h) {
-  const p = plantFrequencyResponse(tfModel(c.num, c.den, c.plantDelay), { wMax: Math.PI / h });
-  return loopMargins(p, gainsOf(c), h, { delay: c.sensorDelay, filterTime: c.filterTime });
+  const { plant, gains, sensor } = loopOf(c, h);
+  return loopMargins(plant, gains, h, sensor);
 }
 
 describe('margins of the sampled loop against python-control (sampled-margins.py)', () => {
