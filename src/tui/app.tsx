@@ -18,12 +18,15 @@ import {
   type Evaluation,
   type LoopSetup,
 } from './engine.js';
-import { frameId, namedOf, type GainEdit } from './gain-edit.js';
+import { frameId, namedOf, sameEdit, type GainEdit } from './gain-edit.js';
 import { useEnvelope } from './hooks/use-envelope.js';
 import { useLiveRun } from './hooks/use-live-run.js';
 import { useSave, type ScreenIo } from './hooks/use-save.js';
 import { useTuningAids } from './hooks/use-tuning-aids.js';
 import { HINT, LIST_HINT, keyTokens } from './keymap.js';
+import { FREQUENCY_HINT } from './frequency-keys.js';
+import { frequencyViewData, shapeStep } from './frequency-view.js';
+import { FrequencyPanel } from './panels/FrequencyPanel.js';
 import { computeLayout } from './layout.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
 import type { MarginsView, Notice, NoticeSource } from './notices.js';
@@ -145,6 +148,16 @@ export function App(props: AppProps) {
     return list;
   }, [props.notices, trial, setup]);
 
+  // ---------------------------------------------------------------- frequency view
+  // The edited set at its worst operating point, the set in service (a pinned one, else the
+  // file's gains) overlaid when it differs; one frequency per braille dot across the screen.
+  const freqOpen = state.overlay.kind === 'frequency';
+  const inService = state.baseline?.edit ?? state.file;
+  const freqData = useMemo(
+    () => (freqOpen ? frequencyViewData(setup, setup.context().points, state.current, sameEdit(inService, state.current) ? null : inService, 2 * layout.width) : null),
+    [freqOpen, setup, state.current, inService, layout.width],
+  );
+
   // ---------------------------------------------------------------- live run
   const liveRun = useLiveRun(setup, state, trial.duration, props.tickMs ?? 50, dispatch);
   const speed = speedOf(state);
@@ -189,6 +202,12 @@ export function App(props: AppProps) {
       case 'restart_live':
         liveRun.restart();
         return;
+      case 'shape': {
+        const r = freqData === null ? null : shapeStep(setup, setup.context().points, freqData, state.current, e.command, e.from);
+        if (r === null) dispatch({ type: 'notify', message: { text: 'no crossover to shape from: type the gains first', tone: 'warn' } });
+        else dispatch({ type: 'shaped', ...r });
+        return;
+      }
       default:
         aids.run(e, state.current);
         return;
@@ -240,6 +259,21 @@ export function App(props: AppProps) {
     const o = state.overlay;
     const bodyLines = layout.lines - 3;
     if (o.kind === 'caution') return <CautionOverlay width={layout.width} height={bodyLines} theme={theme} />;
+    if (o.kind === 'frequency' && freqData !== null) {
+      return (
+        <FrequencyPanel
+          data={freqData}
+          edit={state.current}
+          selected={state.selected}
+          serviceName="in service"
+          page={o.page}
+          target={o.target}
+          width={layout.width}
+          height={bodyLines}
+          theme={theme}
+        />
+      );
+    }
     if (o.kind === 'help') return <HelpOverlay width={layout.width} height={bodyLines} theme={theme} page={o.page} />;
     if (o.kind === 'suggest') return <SuggestPanel view={o.view} selected={o.selected} width={layout.width} height={bodyLines} theme={theme} />;
     if (o.kind === 'optimize') {
@@ -325,6 +359,8 @@ function hintFor(o: Overlay): string {
       return o.outcome === null ? 'Esc stops the optimiser (the best so far is offered)' : 'Enter apply  Esc discard';
     case 'compare':
       return '↑↓ Tab switch the edited candidate  Esc back';
+    case 'frequency':
+      return FREQUENCY_HINT;
     default:
       return HINT;
   }

@@ -35,6 +35,7 @@ export type KeyCommand =
   | 'optimize'
   | 'toggle_envelope'
   | 'compare'
+  | 'frequency_view'
   | 'save'
   | 'help'
   | 'quit';
@@ -91,6 +92,7 @@ export const KEYMAP: readonly KeyBinding[] = [
   { keys: ['O'], command: 'optimize', group: 'tune', help: 'optimise gains (Esc stops)' },
   { keys: ['v'], command: 'toggle_envelope', group: 'tune', help: 'envelope over uncertainty' },
   { keys: ['c'], command: 'compare', group: 'tune', help: 'compare the candidates' },
+  { keys: ['F'], command: 'frequency_view', group: 'tune', help: 'frequency view, loop shaping' },
   { keys: ['w'], command: 'save', group: 'file', help: 'save to the file (asks)' },
   { keys: ['?', 'h'], command: 'help', group: 'file', help: 'this help' },
   { keys: ['q', 'ctrl-c'], command: 'quit', group: 'file', help: 'quit (asks if unsaved)' },

@@ -9,6 +9,7 @@ import { SPEEDS, type KeyCommand } from './keymap.js';
 import { frameId, paramList, sameEdit, type GainEdit } from './gain-edit.js';
 import type { ParamId } from './param-meta.js';
 import type { CandidateEntry, OptimizeOutcome, OptimizeView, SuggestView } from './tuning-views.js';
+import type { FrequencyCommand, ShapeTarget } from './frequency-keys.js';
 
 export type RunMode = 'instant' | 'live';
 
@@ -25,7 +26,9 @@ export type Overlay =
   | { kind: 'compare'; entries: readonly CandidateEntry[] | null; selected: number; edited: number | null }
   /** A typed value; `placeholder` shows the present value, an empty entry keeps it. */
   | { kind: 'input'; target: 'param' | 'switch_time'; text: string; placeholder: string; error: string | null }
-  | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string };
+  | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string }
+  /** The frequency view: `page` counts up with Tab (shown modulo its pages); the last shaping target. */
+  | { kind: 'frequency'; page: number; target: ShapeTarget | null };
 
 /** Work the shell must do; the reducer only asks. */
 export type Effect =
@@ -42,7 +45,9 @@ export type Effect =
   | { kind: 'optimize_start' }
   | { kind: 'optimize_cancel' }
   /** Compute (or reuse) the comparison of the file's candidates. */
-  | { kind: 'compare_start' };
+  | { kind: 'compare_start' }
+  /** Move the loop-shaping target from `from` (null: the loop's own ωc and PM) and design the gains for it. */
+  | { kind: 'shape'; command: FrequencyCommand; from: ShapeTarget | null };
 
 export interface Message {
   text: string;
@@ -105,7 +110,9 @@ export type Action =
   /** The comparison's candidates that ran; `edited` = the one the current gain set already is (or null). */
   | { type: 'compare_ready'; entries: readonly CandidateEntry[]; edited: number | null }
   /** A tuning aid could not run: its overlay closes and the reason is shown. */
-  | { type: 'aid_failed'; text: string };
+  | { type: 'aid_failed'; text: string }
+  /** The frequency view's new target and the gains designed for it (null: none, `text` says why). */
+  | { type: 'shaped'; target: ShapeTarget; edit: GainEdit | null; text: string };
 
 export interface InitOptions {
   fileName: string;

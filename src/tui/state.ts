@@ -14,6 +14,7 @@ import { cautionKey } from './reducers/caution.js';
 import { compareKey, compareReady } from './reducers/compare.js';
 import { answer, confirmKey, saveConflict } from './reducers/confirm.js';
 import { helpKey } from './reducers/help.js';
+import { frequencyKey, shaped } from './reducers/frequency.js';
 import { mainCommand } from './reducers/main-keys.js';
 import { optimizeDone, optimizeKey, optimizeProgress } from './reducers/optimize.js';
 import { promptChange, promptKey, promptSubmit } from './reducers/prompt.js';
@@ -77,6 +78,8 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
       return { ...s, message: { text: a.text, tone: 'error' } };
     case 'effects_taken':
       return { ...s, effects: s.effects.slice(a.count) };
+    case 'shaped':
+      return shaped(s, a.target, a.edit, a.text);
     case 'notify':
       return { ...s, message: a.message };
     case 'key':
@@ -105,6 +108,8 @@ function press(s: ScreenState, token: string, math: EditMath): ScreenState {
       return promptKey(s, token);
     case 'confirm':
       return confirmKey(s, token);
+    case 'frequency':
+      return frequencyKey(s, token);
     case 'none': {
       const c = commandFor(token);
       return c === null ? s : reduce(s, { type: 'key', command: c }, math);

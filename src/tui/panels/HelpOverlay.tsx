@@ -4,6 +4,7 @@
  */
 import { Box } from 'ink';
 import { helpLines, listHelpLines, PROMPT_KEYS } from '../keymap.js';
+import { frequencyHelpLines } from '../frequency-keys.js';
 import type { Theme } from '../theme.js';
 import { Line, fit, type Piece } from './line.js';
 
@@ -16,6 +17,8 @@ export function helpPieceLines(theme: Theme): Piece[][] {
   }
   out.push([{ text: 'In a list or view (p, O, c)', color: theme.heading, bold: true }]);
   for (const r of listHelpLines()) out.push([{ text: fit(r.keys, keyW), color: theme.sp, bold: true }, { text: ' ' + r.help }]);
+  out.push([{ text: 'In the frequency view (F)', color: theme.heading, bold: true }]);
+  for (const r of frequencyHelpLines()) out.push([{ text: fit(r.keys, keyW), color: theme.sp, bold: true }, { text: ' ' + r.help }]);
   out.push([{ text: 'In a question or a typed value', color: theme.heading, bold: true }]);
   for (const r of PROMPT_KEYS) out.push([{ text: fit(r.keys, keyW), color: theme.sp, bold: true }, { text: ' ' + r.help }]);
   return out;

@@ -20,13 +20,13 @@ const EDITS: ReadonlySet<KeyCommand> = new Set<KeyCommand>([
 ]);
 
 /** Why the current gain set cannot be edited here, or null when it can. */
-function readOnlyReason(e: GainEdit): string | null {
+export function readOnlyReason(e: GainEdit): string | null {
   if (e.frame === undefined || e.frame.editable) return null;
   return `read-only here: the ${e.frame.named} gains come from its table (edit it in the file)`;
 }
 
 /** Why the tuning aids (rules, optimiser, envelope) do not apply to the current gain set, or null. */
-function aidRefusal(e: GainEdit, what: string): string | null {
+export function aidRefusal(e: GainEdit, what: string): string | null {
   const f = e.frame;
   if (f === undefined || !f.extended) return null;
   return `${what} the plain PID law only; this loop is ${f.named}`;
@@ -188,6 +188,8 @@ export function mainCommand(s: ScreenState, c: KeyCommand): ScreenState {
     }
     case 'compare':
       return effect({ ...s, overlay: { kind: 'compare', entries: null, selected: 0, edited: null } }, { kind: 'compare_start' });
+    case 'frequency_view':
+      return { ...s, overlay: { kind: 'frequency', page: 0, target: null } };
     case 'quit':
       return askQuit(s);
   }
