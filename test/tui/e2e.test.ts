@@ -3,7 +3,7 @@
  * 80x24), keys sent, the pane read back. Raises the proportional gain and checks that the shown
  * gain and the shown overshoot both change, resizes to 120x40 and back, opens the tuning-rule list
  * and leaves it, quits and checks the exit status and that the terminal was given back (alternate
- * screen left, cursor shown).
+ * screen left, cursor shown). Opens the frequency view and closes it.
  *
  * Skipped, with a message, only when tmux is not installed.
  */
@@ -204,6 +204,24 @@ describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
     process.kill(Number(child), 'SIGTERM');
     expect(await exitStatus(term)).toBe('EXIT=143');
     expect(restored('term')).toBe('0 1');
+  }, 120_000);
+
+  it('the frequency view at 80x24: opens on F, shows the crossover and Ms, fits, closes with Esc', async () => {
+    const exitFile = join(work, 'exit-freq');
+    start('freq', 'plants/drum-level.yaml', exitFile);
+    await waitFor((t) => t.includes('press any key to continue'), 'the caution', 30000, 'freq');
+    tmux('send-keys', '-t', 'freq', '-l', 'x');
+    await waitFor((t) => t.includes('Trial trend'), 'the main screen', 20000, 'freq');
+    tmux('send-keys', '-t', 'freq', '-l', 'F');
+    let text = await waitFor((t) => t.includes('Frequency view') && /ωc \d\S* rad\/s/.test(t) && /Ms \d/.test(t), 'the frequency view', 20000, 'freq');
+    for (const line of text.split('\n')) expect(line.length).toBeLessThanOrEqual(80);
+    expect(text).toContain('|L| dB');
+    expect(text).toMatch(/[\u2801-\u28ff]/);
+    tmux('send-keys', '-t', 'freq', 'Escape');
+    text = await waitFor((t) => !t.includes('Frequency view') && t.includes('Trial trend'), 'the main screen again', 20000, 'freq');
+    tmux('send-keys', '-t', 'freq', 'C-c');
+    expect(await exitStatus(exitFile)).toBe('EXIT=0');
+    expect(restored('freq')).toBe('0 1');
   }, 120_000);
 
   it('a plant file that fails to load: FILE:LINE:COL on the terminal, exit 2, no stack trace', async () => {
