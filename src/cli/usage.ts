@@ -32,6 +32,9 @@ Options for run:
   --csv OUT           also write the trace (t, setpoint, output, measured, u, disturbances) to OUT
   --svg OUT           also write a plot of the trial (setpoint, output, controller output,
                       requirement bands; with --set, the file's gains as the set in service) to OUT
+  --svg-frequency OUT also write the loop's frequency plots (Bode magnitude and phase of L with the
+                      crossovers, |S| and |T| with Ms and Mt, Nyquist with the 1/Ms circle) at the
+                      worst operating point to OUT (with --set, the file's gains in service as well)
   --set NAME=VALUE    override a controller field in the file's form, e.g. --set kc=2.5 --set ti=40s
                       (repeatable; times may carry a unit: ms, s, min, h)
   --duration T        override the trial duration, e.g. --duration 20min

@@ -7,10 +7,20 @@
  * the same point so the two curves compare like with like.
  */
 import { loopFrequencyResponse, type LoopFrequencyResponse, type LoopGridOptions } from '../analysis/index.js';
-import type { GainSet, PlantSpec } from '../model/types.js';
+import type { ControllerSpec, GainSet, PlantSpec } from '../model/types.js';
 import type { PlantDynamics } from '../sim/index.js';
 import { describePoint } from './operating-points.js';
 import { pointFigures, worstPoint, type PreparedPoint } from './point-margins.js';
+
+/**
+ * The structure of a controller whose loop is not the plain PID loop (a Smith predictor, a
+ * cascade: their margins come from tune's structureMargins, the loop broken at the actuator), or
+ * null when this record describes its loop (plain laws, 2-DOF weights, feedforward, a schedule).
+ */
+export function notPlainPidLoop(controller: Pick<ControllerSpec, 'extension'>): string | null {
+  const kind = controller.extension?.kind;
+  return kind === 'smith_pi' || kind === 'cascade' ? kind : null;
+}
 
 /** The frequency response of a gain set at its worst operating point. */
 export interface WorstPointResponse {

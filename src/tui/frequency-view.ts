@@ -6,7 +6,7 @@
  * on that point's loop. Nothing here computes a figure of its own.
  */
 import type { LoopFrequencyResponse } from '../analysis/index.js';
-import { pointResponseOf, worstPointResponse, type PreparedPoint } from '../loop/index.js';
+import { notPlainPidLoop, pointResponseOf, worstPointResponse, type PreparedPoint } from '../loop/index.js';
 import { shapePi, shapePid, type ShapingTarget } from '../tune/index.js';
 import { editWithGains, runningGains, type LoopSetup } from './engine.js';
 import { movedTarget, type FrequencyCommand, type ShapeTarget } from './frequency-keys.js';
@@ -26,13 +26,10 @@ export type FrequencyViewData =
     }
   | { ok: false; problem: string };
 
-/** Structures whose loop is not the plain PID loop: their margins come from tune's structureMargins, this view has no curve for them. */
-const NOT_PID_LOOP = new Set(['smith_pi', 'cascade']);
-
 /** Why the view cannot show this edit's loop, or null when it can. */
 export function viewProblem(setup: LoopSetup, edit: GainEdit): string | null {
-  const kind = (edit.frame?.spec ?? setup.controller).extension?.kind;
-  if (kind !== undefined && NOT_PID_LOOP.has(kind)) return `the frequency view draws the plain PID loop; this loop is ${kind} (its margins are on the main screen)`;
+  const kind = notPlainPidLoop(edit.frame?.spec ?? setup.controller);
+  if (kind !== null) return `the frequency view draws the plain PID loop; this loop is ${kind} (its margins are on the main screen)`;
   return null;
 }
 

@@ -16,6 +16,7 @@ import { loadPlantFile, parseOverrides } from '../load-plant-file.js';
 import type { Override } from '../load-plant-file.js';
 import { runMetricsJson, type RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
+import { writeFrequencySvg } from '../frequency-svg.js';
 import { enforceBudget, LIMIT_OPTIONS } from '../budget-check.js';
 import { simulatePlant } from '../simulate-plant.js';
 import { USAGE } from '../usage.js';
@@ -30,6 +31,8 @@ export interface RunOptions {
   csv: string | null;
   /** Write the trial plot as SVG to this path. */
   svg: string | null;
+  /** Write the frequency plots (Bode, |S| |T|, Nyquist at the worst operating point) as SVG to this path. */
+  svgFrequency?: string | null;
   overrides: Override[];
   /** Trial duration override, s. */
   duration: number | null;
@@ -47,6 +50,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     json: { type: 'boolean' },
     csv: { type: 'string' },
     svg: { type: 'string' },
+    'svg-frequency': { type: 'string' },
     set: { type: 'string', multiple: true },
     duration: { type: 'string' },
     step: { type: 'string' },
@@ -61,6 +65,7 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
     json: values.json === true,
     csv: values.csv ?? null,
     svg: values.svg ?? null,
+    svgFrequency: values['svg-frequency'] ?? null,
     overrides: parseOverrides(values.set ?? []),
     duration: timeOption('run', 'duration', values.duration),
     step: timeOption('run', 'step', values.step, { min: MIN_STEP }),
@@ -87,7 +92,7 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
     noLimits: options.noLimits,
     // run simulates only: no margins, so a long dead time costs only its (bounded) delay line;
     // the tweak guide adds its runs (at most 11) and Ms.
-    frequencyAnalysis: options.tweak === true,
+    frequencyAnalysis: options.tweak === true || (options.svgFrequency ?? null) !== null,
     runs: options.tweak ? 11 : 1,
     given: {
       ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
@@ -148,6 +153,7 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
     writeOutput(io, options.csv, traceCsvChunks(report.result.trace));
   }
   if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
+  if ((options.svgFrequency ?? null) !== null) writeFrequencySvg(report.plant, compilePlant(report.plant), options.file, options.svgFrequency!, options.overrides.length > 0, io);
   io.out(options.json ? toJson(reportJson(report)) : summaryText(report) + (report.tweak ? tweakText(report.tweak) : ''));
   return 0;
 }
