@@ -62,7 +62,10 @@ describe('tui keymap', () => {
       expect(KEYMAP.find((b) => b.command === c)?.group).toBe('tune');
       expect(HINT).toContain(`${k} `);
     }
-    expect(helpLines().find((g) => g.title === 'Tuning aids')?.rows).toHaveLength(4);
+    // The frequency view is a tuning aid too; the hint line has no room for it (80 columns): the help lists it.
+    expect(commandFor('F')).toBe('frequency_view');
+    expect(KEYMAP.find((b) => b.command === 'frequency_view')?.group).toBe('tune');
+    expect(helpLines().find((g) => g.title === 'Tuning aids')?.rows).toHaveLength(5);
   });
 
   it('the list keys come from their own table, for the reducer and the help alike', () => {
