@@ -13,6 +13,7 @@ import {
   askedRequirements,
   CHECKED_REQUIREMENTS,
   describePoint,
+  notPlainPidLoop,
   frequencyFigures as figuresFrom,
   requirementRow,
   timeFigures as trialTimeFigures,
@@ -63,8 +64,7 @@ export interface CheckOptions {
 /** Where one case's frequency-domain figures come from, with the controller's starting gains. */
 export function frequencySource(ctx: TuningContext, gains: GainSet, withDamping: boolean): FrequencySource {
   const spec = ctx.spec;
-  const ext = spec.loop.controller.extension;
-  if (ext !== undefined && (ext.kind === 'smith_pi' || ext.kind === 'cascade')) {
+  if (notPlainPidLoop(spec.loop.controller) !== null) {
     // A Smith predictor or a cascade is not the plain PID loop: Ms, GM and PM come from tune's
     // structureMargins (loop broken at the actuator); bandwidth and damping are not computed.
     const c = spec.loop.controller;

@@ -9,7 +9,7 @@
  */
 import { checkRequirements, trialMetrics, type RequirementResult, type TrialMetrics } from '../analysis/index.js';
 import { applyStructure } from '../control/index.js';
-import type { BuiltLoop } from '../loop/index.js';
+import { notPlainPidLoop, type BuiltLoop } from '../loop/index.js';
 import { MATH_HELPERS, fromIdeal } from '../model/index.js';
 import type { ControllerSpec, ControllerStructure, GainSet, PidForm, PlantSpec, StructureName, TrialSpec } from '../model/types.js';
 import { runTrial } from '../sim/index.js';
@@ -138,8 +138,7 @@ export function controllerFor(setup: LoopSetup, edit: GainEdit): DiscreteControl
  * source computes.
  */
 export function structureMarginsView(setup: LoopSetup, edit: GainEdit): MarginsView | null | undefined {
-  const kind = (edit.frame?.spec ?? setup.controller).extension?.kind;
-  if (kind !== 'smith_pi' && kind !== 'cascade') return undefined;
+  if (notPlainPidLoop(edit.frame?.spec ?? setup.controller) === null) return undefined;
   const m = structureMargins(setup.context(), specFor(setup, edit));
   if (m === null) return null;
   return { gainMargin: m.gainMargin, phaseMarginDeg: m.phaseMarginDeg, maxSensitivity: m.maxSensitivity, closedLoopStable: m.closedLoopStable };
