@@ -213,13 +213,20 @@ function bodePlot(kind: Exclude<PlotKind, 'nyquist'>, c: PlotCurves, width: numb
     const col = Math.floor(xOf(mk.w) / 2);
     canvas.write(col + 1 + mk.label.length <= canvas.cols ? col + 1 : col - mk.label.length, 0, mk.label, 'mark');
   }
+  // Cells taken by a peak's marker and label, so the next one's label goes to a free row.
+  const taken: { row: number; from: number; to: number }[] = [];
+  const free = (row: number, from: number, to: number): boolean => taken.every((t) => t.row !== row || to < t.from || from > t.to);
   for (const p of points) {
     if (p.at === null || !(p.at.w >= e.w[0] && p.at.w <= e.w[n - 1])) continue;
     const col = Math.floor(xOf(p.at.w) / 2);
     const row = Math.max(0, Math.min(canvas.rows - 1, Math.floor(yOf(p.value(p.at)) / 4)));
-    canvas.write(col, row, '●', 'mark');
-    // Beside the dot, on the side where it fits.
-    canvas.write(col + 1 + p.label.length < canvas.cols ? col + 2 : col - 1 - p.label.length, row, p.label, 'mark');
+    // Beside the dot, on the side where it fits; on the next free row when another label is there.
+    const at = col + 1 + p.label.length < canvas.cols ? col + 2 : col - 1 - p.label.length;
+    const rows = [row, row + 1, row - 1, row + 2, row - 2].filter((r) => r >= 0 && r < canvas.rows);
+    const labelRow = rows.find((r) => free(r, Math.min(at, col), Math.max(at + p.label.length - 1, col))) ?? row;
+    if (free(row, col, col)) canvas.write(col, row, '●', 'mark');
+    canvas.write(at, labelRow, p.label, 'mark');
+    taken.push({ row, from: col, to: col }, { row: labelRow, from: at, to: at + p.label.length - 1 });
   }
   const gutter = gutterLabels(rows, (r) => axisLabel(hi - ((r * 4 + 1.5) / (canvas.height - 1)) * (hi - lo)));
   const out = canvas.spans().map((row, r) => [{ text: gutter[r], tag: 'axis' }, ...row]);

@@ -117,7 +117,9 @@ export function shapeStep(
 ): ShapeOutcome | null {
   const start = startTarget(from, data);
   if (start === null || !data.ok) return null;
-  const target = movedTarget(start, command);
+  // The target as it is shown (3 significant digits, 0.1°): what the design is asked for and says.
+  const moved = movedTarget(start, command);
+  const target = { crossover: Number(moved.crossover.toPrecision(3)), phaseMarginDeg: Math.round(moved.phaseMarginDeg * 10) / 10 };
   const r = shapedEdit(setup, prepared, data.index, edit, target);
   const aim = `ωc ${figure(target.crossover)} rad/s, PM ${figure(target.phaseMarginDeg)}°`;
   if ('error' in r) return { target, edit: null, text: r.error };
