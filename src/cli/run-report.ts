@@ -32,12 +32,11 @@ export interface RunMetric {
 
 /**
  * The trial's figures as `run --json` reports them under `metrics`, in order: the step figures
- * (analysis' headline: the worst over the setpoint steps; peak_time of the overshoot's step), then
+ * (analysis' headline: the worst over the setpoint steps; peak_time on the overshoot's step, from the same headline), then
  * the whole trial's. One list, so every surface that prints them (run, diff) agrees.
  */
 export function runMetrics(metrics: TrialMetrics): RunMetric[] {
   const head = headlineMetrics(metrics);
-  const peakStep = head.overshootPct === null ? null : (metrics.steps.find((s) => s.at === head.overshootPct!.stepAt) ?? null);
   const step = (name: string, f: HeadlineFigure | null, unit: string): RunMetric => ({ name, value: f === null ? NaN : f.value, unit, stepAt: f?.stepAt ?? null });
   const whole = (name: string, value: number, unit: string): RunMetric => ({ name, value, unit, stepAt: null });
   const o = metrics.overall;
@@ -45,7 +44,7 @@ export function runMetrics(metrics: TrialMetrics): RunMetric[] {
     step('rise_time', head.riseTime, 's'),
     step('overshoot_pct', head.overshootPct, '%'),
     step('undershoot_pct', head.undershootPct, '%'),
-    { name: 'peak_time', value: peakStep === null ? NaN : peakStep.peakTime, unit: 's', stepAt: peakStep?.at ?? null },
+    step('peak_time', head.peakTime, 's'),
     step('settling_time', head.settlingTime, 's'),
     step('steady_state_error', head.steadyStateError, ''),
     whole('iae', o.iae, ''),
