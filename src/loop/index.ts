@@ -11,5 +11,5 @@ export { operatingPoints, trialLevels, startOutput, describePoint, MAX_OPERATING
 export type { OperatingPoint, OperatingPoints, TrialLevel } from './operating-points.js';
 export { pointResponse, preparePoints, pointFigures, dominantDamping, figureAt, worstPoint, worstMargins, DOMINANCE_RATIO } from './point-margins.js';
 export type { PreparedPoint, PointFigures, FrequencyFigure } from './point-margins.js';
-export { CHECKED_REQUIREMENTS, timeFigures, frequencyFigures, requirementRow, askedRequirements, meetsLimit } from './requirement-rows.js';
+export { CHECKED_REQUIREMENTS, timeFigures, frequencyFigures, requirementRow, requirementUnit, requirementUnitOf, askedRequirements, meetsLimit } from './requirement-rows.js';
 export type { LimitKind, RequirementInfo, Figure, RequirementStatus, RequirementRow, StructureFigures, FrequencySource } from './requirement-rows.js';
