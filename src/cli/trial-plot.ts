@@ -4,7 +4,7 @@
  * step (settling band, overshoot limit) and an optional baseline run.
  */
 import type { TrialMetrics } from '../analysis/index.js';
-import { plantUnits, withUnit } from '../model/index.js';
+import { plantUnits, quantityLabel, withUnit } from '../model/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { Trace } from '../sim/types.js';
 import { num } from './format.js';
@@ -40,11 +40,6 @@ function gainsText(plant: PlantSpec): string {
     .filter(([k, v]) => !(k === 'ti' && v === Infinity) && !(k === 'td' && v === 0) && !(k === 'kd' && v === 0) && !(k === 'ki' && v === 0))
     .map(([k, v]) => `${k} ${num(v)}${k === 'ti' || k === 'td' ? ' s' : ''}`)
     .join(', ');
-}
-
-/** An axis title: the quantity with its unit in parentheses, or the quantity alone. */
-function axisLabel(quantity: string, unit: string | null): string {
-  return unit === null ? quantity : `${quantity} (${unit})`;
 }
 
 /** The SVG text of a trial plot. */
@@ -121,8 +116,8 @@ export function trialPlotSvg(input: TrialPlotInput): string {
 
   // The axes carry the file's units; without one the quantity's name stands alone.
   const panels: PlotPanel[] = [
-    { yLabel: axisLabel('process value', units.output), series: top, bands, limits, weight: 1.6 },
-    { yLabel: axisLabel('controller output', units.actuator), series: bottom, limits: outLimits, weight: 1 },
+    { yLabel: quantityLabel('process value', units.output), series: top, bands, limits, weight: 1.6 },
+    { yLabel: quantityLabel('controller output', units.actuator), series: bottom, limits: outLimits, weight: 1 },
   ];
   const c = plant.loop.controller;
   const subtitle = [

@@ -29,3 +29,11 @@ export function plantUnits(plant: { model: ModelSpec; actuator: ActuatorSpec }):
 export function withUnit(value: string, unit: string | null): string {
   return unit === null ? value : `${value} ${unit}`;
 }
+
+/**
+ * A heading for values of one quantity, an axis or a chart: "process value (m)", or the quantity
+ * alone when there is no unit.
+ */
+export function quantityLabel(quantity: string, unit: string | null): string {
+  return unit === null ? quantity : `${quantity} (${unit})`;
+}

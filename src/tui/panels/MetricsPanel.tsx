@@ -32,11 +32,13 @@ export function metricLines(p: MetricsProps): Piece[][] {
   // Value columns as wide as their longest text ('not settled'), at least 8 and 7.
   const nowW = Math.max(8, ...p.rows.map((r) => r.now.text.length + 1));
   const baseW = Math.max(7, ...p.rows.map((r) => (r.base?.text.length ?? 0) + 1));
+  // The limit column as wide as its longest text: a limit with the file's unit ('≤ 150 N m').
+  const limitW = Math.max(9, ...p.rows.map((r) => r.limit.length + 1));
   const lines: Piece[][] = [
-    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'in svc' : ''}`, color: t.dim }],
+    [{ text: `${fit('', 12)}${fit('limit', limitW)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'in svc' : ''}`, color: t.dim }],
   ];
   for (const r of p.rows) {
-    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, 9), color: t.dim }, { text: fit(r.now.text, nowW) }, mark(r.now, t)];
+    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, limitW), color: t.dim }, { text: fit(r.now.text, nowW) }, mark(r.now, t)];
     if (r.base !== null) pieces.push({ text: ' ' + fit(r.base.text, baseW), color: t.baseline }, mark(r.base, t));
     lines.push(pieces);
   }
