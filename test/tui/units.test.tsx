@@ -12,12 +12,18 @@ import { mount, repoPlants, until } from './mount-app.js';
 
 const lines = (f: string): string[] => f.split('\n');
 
+/** The first full frame of a bundled plant at 80x24, every line checked to fit. */
+async function frameOf(name: string, ready: string): Promise<string> {
+  const s = await mount(name, { dir: repoPlants });
+  await until(() => s.frame().includes(ready), ready, s.frame);
+  const f = s.frame();
+  for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
+  return f;
+}
+
 describe('units on the screen at 80x24', () => {
   it('drum level (mm, %): chart titles, the offset row and its limit, no line wider than 80', async () => {
-    const s = await mount('drum-level.yaml', { dir: repoPlants });
-    await until(() => s.frame().includes('Trial vs requirements'), 'the first frame', s.frame);
-    const f = s.frame();
-    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
+    const f = await frameOf('drum-level.yaml', 'Trial vs requirements');
     expect(f).toContain('─ Trial trend (mm) ');
     expect(f).toContain('─ Controller output (%) ');
     // steady_state_error: 1 (mm) in the file.
@@ -27,10 +33,7 @@ describe('units on the screen at 80x24', () => {
   });
 
   it('belt drive (rad/s, N m): the peak |u| limit with the actuator unit keeps a gap before the value', async () => {
-    const s = await mount('belt-drive-speed.yaml', { dir: repoPlants });
-    await until(() => s.frame().includes('peak |u|'), 'the verdict rows', s.frame);
-    const f = s.frame();
-    for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
+    const f = await frameOf('belt-drive-speed.yaml', 'peak |u|');
     expect(f).toContain('─ Trial trend (rad/s) ');
     expect(f).toContain('─ Controller output (N m) ');
     expect(f).toMatch(/│peak \|u\| +≤ 150 N m +150 N m +\[ok\]/);
