@@ -12,6 +12,11 @@ import type { MarginsView } from './notices.js';
 
 export interface MetricCell {
   text: string;
+  /**
+   * The text without the file's unit, for a column too narrow for it (the limit beside it names
+   * the unit); absent when the figure carries no unit of the file.
+   */
+  short?: string;
   /** 'ok' met, 'no' not met, 'n/a' cannot be evaluated on this trial, null no limit. */
   status: 'ok' | 'no' | 'n/a' | null;
 }
@@ -102,10 +107,17 @@ function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number |
     const f = head[def.step];
     // The offset is judged by its magnitude (checkRequirements), so it is shown as one.
     const v = f === null ? NaN : def.step === 'steadyStateError' ? Math.abs(f.value) : f.value;
-    const text = f === null ? NO_STEP : stepFigureText(def.step, v, (x) => formatFigure(x, ''), '-', units.output);
-    return { text, status };
+    if (f === null) return { text: NO_STEP, status };
+    const text = stepFigureText(def.step, v, (x) => formatFigure(x, ''), '-', units.output);
+    return withShort({ text, status }, stepFigureText(def.step, v, (x) => formatFigure(x, '')));
   }
-  return { text: formatFigure(def.figure!(inp.metrics), unit), status };
+  const v = def.figure!(inp.metrics);
+  return withShort({ text: formatFigure(v, unit), status }, formatFigure(v, def.unit));
+}
+
+/** The cell with its unit-less text when that differs (a figure in the file's units). */
+function withShort(c: MetricCell, short: string): MetricCell {
+  return short === c.text ? c : { ...c, short };
 }
 
 /**

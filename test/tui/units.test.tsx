@@ -12,12 +12,12 @@ import { mount, repoPlants, until } from './mount-app.js';
 
 const lines = (f: string): string[] => f.split('\n');
 
-/** The first full frame of a bundled plant at 80x24, every line checked to fit. */
-async function frameOf(name: string, ready: string): Promise<string> {
-  const s = await mount(name, { dir: repoPlants });
+/** The first full frame of a bundled plant (80x24 unless given), every line checked to fit. */
+async function frameOf(name: string, ready: string, columns = 80, rows = 24): Promise<string> {
+  const s = await mount(name, { dir: repoPlants, columns, rows });
   await until(() => s.frame().includes(ready), ready, s.frame);
   const f = s.frame();
-  for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(80);
+  for (const l of lines(f)) expect(l.length).toBeLessThanOrEqual(columns);
   return f;
 }
 
@@ -37,6 +37,12 @@ describe('units on the screen at 80x24', () => {
     expect(f).toContain('─ Trial trend (rad/s) ');
     expect(f).toContain('─ Controller output (N m) ');
     expect(f).toMatch(/│peak \|u\| +≤ 150 N m +150 N m +\[ok\]/);
+  });
+
+  it('60x20: the values go without the unit so the verdict stays in the panel; the limit keeps it', async () => {
+    const f = await frameOf('drum-level.yaml', 'Trial vs requirements', 60, 20);
+    expect(f).toContain('─ Trial trend (mm) ');
+    expect(f).toMatch(/│offset +≤ 1 mm +[\d.e-]+ +\[ok/);
   });
 
   it('a live setpoint step names the unit', async () => {
@@ -74,6 +80,9 @@ describe('metricRows: figures in the plant units', () => {
     const row = (label: string) => rows.find((x) => x.label === label)!;
     expect(row('offset').limit).toBe('≤ 0.05 bar');
     expect(row('offset').now.text).toMatch(/ bar$/);
+    // The same figure without the unit, for a narrow column.
+    expect(row('offset').now.short).toBe(row('offset').now.text.replace(/ bar$/, ''));
+    expect(row('overshoot').now.short).toBeUndefined();
     expect(row('IAE').limit).toBe('≤ 2 bar·s');
     expect(row('IAE').now.text).toMatch(/ bar·s$/);
     expect(row('peak |u|')).toMatchObject({ limit: '≤ 3 %', now: { text: '2 %' } });
