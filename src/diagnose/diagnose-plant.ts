@@ -161,7 +161,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
     if (ss !== null) {
       x = ss.x;
       u = uf;
-      notes.push(`linear analysis made at the steady state with the actuator at ${withUnit(fmt(uf), spec.actuator.unit ?? null)} (output ${withUnit(fmt(ss.y), spec.model.outputUnit ?? null)}) instead`);
+      notes.push(`linear analysis made at the steady state with the actuator at ${withUnit(fmt(uf), plantUnits(spec).actuator)} (output ${withUnit(fmt(ss.y), plantUnits(spec).output)}) instead`);
     } else if (dyn.linear !== null) {
       x = new Float64Array(dyn.nx);
       u = 0;
