@@ -316,10 +316,11 @@ export function headlineMetrics(metrics: TrialMetrics): HeadlineMetrics {
     const k = worstStep(key);
     return figure(k, steps[k][key]);
   };
+  // The overshoot's step gives both the overshoot and the peak time.
   const overshootStep = steps.length === 0 ? -1 : worstStep('overshootPct');
   return {
     peakTime: overshootStep < 0 ? null : figure(overshootStep, steps[overshootStep].peakTime),
-    overshootPct: pick('overshootPct'),
+    overshootPct: overshootStep < 0 ? null : figure(overshootStep, steps[overshootStep].overshootPct),
     undershootPct: pick('undershootPct'),
     riseTime: pick('riseTime'),
     settlingTime: pick('settlingTime'),
