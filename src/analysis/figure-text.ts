@@ -37,14 +37,22 @@ export function missingWord(key: StepFigure): string {
 
 /**
  * A step figure as text: `format(value)` and its unit, or the missing word for NaN (or Infinity,
- * headlineNumber's "not reached"); `none` when the trial has no setpoint step (figure null).
+ * headlineNumber's "not reached"); `none` when the trial has no setpoint step (figure null). A
+ * figure in the output's own unit (the steady-state error) takes `outputUnit`, the plant file's
+ * `model.output_unit` (null: printed bare).
  */
-export function stepFigureText(key: StepFigure, figure: HeadlineFigure | number | null, format: (x: number) => string, none = '-'): string {
+export function stepFigureText(
+  key: StepFigure,
+  figure: HeadlineFigure | number | null,
+  format: (x: number) => string,
+  none = '-',
+  outputUnit: string | null = null,
+): string {
   if (figure === null) return none;
   const v = typeof figure === 'number' ? figure : figure.value;
   if (Number.isNaN(v) || v === Infinity) return missingWord(key);
-  const unit = STEP_FIGURE_UNIT[key];
-  return unit === '' ? format(v) : `${format(v)} ${unit}`;
+  const unit = STEP_FIGURE_UNIT[key] === '' ? outputUnit : STEP_FIGURE_UNIT[key];
+  return unit === null || unit === '' ? format(v) : `${format(v)} ${unit}`;
 }
 
 /**

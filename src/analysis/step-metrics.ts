@@ -199,8 +199,12 @@ export interface HeadlineFigure {
   of: number;
 }
 
-/** The headline figures of a trial; null for each when the trial has no setpoint step. */
-export type HeadlineMetrics = Record<StepFigure, HeadlineFigure | null>;
+/**
+ * The headline figures of a trial; null for each when the trial has no setpoint step. `peakTime`
+ * is not a worst of its own: it is the time of the peak on the overshoot's step (the step the
+ * overshoot figure comes from), so the two always describe the same response.
+ */
+export type HeadlineMetrics = Record<StepFigure, HeadlineFigure | null> & { peakTime: HeadlineFigure | null };
 
 /**
  * Compute the metrics of a trial from its trace.
@@ -293,20 +297,30 @@ const WORSE_BY: Record<StepFigure, (v: number) => number> = {
  * rise, settling or offset figure, and the requirements, take it from here.
  */
 export function headlineMetrics(metrics: TrialMetrics): HeadlineMetrics {
-  const pick = (key: StepFigure): HeadlineFigure | null => {
-    const steps = metrics.steps;
-    if (steps.length === 0) return null;
+  const steps = metrics.steps;
+  const worstStep = (key: StepFigure): number => {
     const worse = WORSE_BY[key];
     let k = 0;
     for (let i = 1; i < steps.length && !Number.isNaN(steps[k][key]); i++) {
       const v = steps[i][key];
       if (Number.isNaN(v) || worse(v) > worse(steps[k][key])) k = i;
     }
-    const s = steps[k];
-    return { value: s[key], stepAt: s.at, from: s.from, to: s.to, of: steps.length };
+    return k;
   };
+  const figure = (k: number, value: number): HeadlineFigure => {
+    const s = steps[k];
+    return { value, stepAt: s.at, from: s.from, to: s.to, of: steps.length };
+  };
+  const pick = (key: StepFigure): HeadlineFigure | null => {
+    if (steps.length === 0) return null;
+    const k = worstStep(key);
+    return figure(k, steps[k][key]);
+  };
+  // The overshoot's step gives both the overshoot and the peak time.
+  const overshootStep = steps.length === 0 ? -1 : worstStep('overshootPct');
   return {
-    overshootPct: pick('overshootPct'),
+    peakTime: overshootStep < 0 ? null : figure(overshootStep, steps[overshootStep].peakTime),
+    overshootPct: overshootStep < 0 ? null : figure(overshootStep, steps[overshootStep].overshootPct),
     undershootPct: pick('undershootPct'),
     riseTime: pick('riseTime'),
     settlingTime: pick('settlingTime'),

@@ -21,6 +21,7 @@ import {
   type FrequencySource,
   type RequirementRow,
 } from '../loop/index.js';
+import { plantUnits } from '../model/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import {
   gainPointFigures,
@@ -81,7 +82,7 @@ export function frequencySource(ctx: TuningContext, gains: GainSet, withDamping:
   return {
     kind: 'points',
     figures: gainPointFigures(ctx, gains, withDamping),
-    describe: (i) => describePoint(ctx.points[i].point, dyn.disturbanceNames, dyn.d0),
+    describe: (i) => describePoint(ctx.points[i].point, dyn.disturbanceNames, dyn.d0, plantUnits(spec).output ?? ''),
   };
 }
 
@@ -139,10 +140,11 @@ export function checkPlant(plant: PlantSpec, options: CheckOptions = {}): PlantC
   for (const w of nominal!.warnings) notes.push(w);
 
   const rows: CheckRow[] = [];
+  const units = plantUnits(plant);
   for (const c of asked) {
     const limit = req[c.key] as number;
     const nom = perCase[0].figures.get(c.name) ?? { measured: NaN, available: false, note: 'not available' };
-    rows.push(requirementRow(c, 'nominal', limit, nom));
+    rows.push(requirementRow(c, 'nominal', limit, nom, units));
     if (!worst || perCase.length < 2) continue;
     // Worst: the largest measured value for a 'max' limit, the smallest for 'min'; a case that
     // could not be measured (NaN) is the worst of all.
@@ -172,7 +174,7 @@ export function checkPlant(plant: PlantSpec, options: CheckOptions = {}): PlantC
       requirementRow(c, 'worst case', limit, {
         ...f,
         note: [`worst of ${perCase.length} cases${where ? ` at ${where}` : ' (nominal)'}`, f.note].filter((s) => s).join('; '),
-      }),
+      }, units),
     );
   }
   return { rows, pass: rows.every((r) => r.status === 'pass'), nominal: nominal!, figures: perCase[0].figures, notes };

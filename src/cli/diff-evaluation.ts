@@ -4,6 +4,7 @@
  * uncertainty box) and of `looprig run` (the headline metrics of that same trial), so that each
  * side of a diff prints exactly what `run` and `check` print for that revision.
  */
+import { plantUnits } from '../model/index.js';
 import type { PlantSpec } from '../model/types.js';
 import { CHECKED_REQUIREMENTS, checkPlant, type PlantCheck } from './check-plant.js';
 import { runMetrics, type RunMetric } from './run-report.js';
@@ -36,5 +37,5 @@ export function evaluateRevision(plant: PlantSpec): RevisionEvaluation {
     const f = check.figures.get(c.name);
     margins.push({ name: c.name, value: f?.measured ?? NaN, unit: c.unit, available: f?.available ?? false, note: f?.note ?? '' });
   }
-  return { check, metrics: runMetrics(check.nominal.metrics), margins };
+  return { check, metrics: runMetrics(check.nominal.metrics, plantUnits(plant)), margins };
 }

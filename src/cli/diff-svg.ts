@@ -5,6 +5,7 @@
 import type { DiffReport } from './diff-report.js';
 import { num } from './format.js';
 import { svgPlot, type PlotPanel, type PlotSeries } from './svg-plot.js';
+import { plantUnits, quantityLabel } from '../model/index.js';
 import { COLORS } from './trial-plot.js';
 
 const REHEARSAL = '#2e7d32';
@@ -16,6 +17,7 @@ export function diffSvg(r: DiffReport): string {
   const plant = r.after.plant!;
   const t1 = Math.max(plant.loop.trial.duration, r.before.plant?.loop.trial.duration ?? 0);
   const minutes = t1 >= 1200;
+  const units = plantUnits(plant);
   const top: PlotSeries[] = [];
   const bottom: PlotSeries[] = [];
   if (before !== null) {
@@ -26,15 +28,15 @@ export function diffSvg(r: DiffReport): string {
   top.push({ label: 'setpoint (after)', t: after.t, v: after.r, length: after.length, color: COLORS.setpoint, dash: '2 2', width: 1.1, step: true });
   bottom.push({ label: 'controller output after', t: after.t, v: after.u, length: after.length, color: COLORS.output, width: 1.5, step: true });
   const panels: PlotPanel[] = [
-    { yLabel: 'process value', series: top, weight: 1.5 },
-    { yLabel: 'controller output', series: bottom, weight: 1 },
+    { yLabel: quantityLabel('process value', units.output), series: top, weight: 1.5 },
+    { yLabel: quantityLabel('controller output', units.actuator), series: bottom, weight: 1 },
   ];
   const markers = [];
   const h = r.rehearsal;
   if (h !== null) {
     const t = h.run.result.trace;
     panels.push({
-      yLabel: 'rehearsal: output',
+      yLabel: quantityLabel('rehearsal: output', units.output),
       series: [
         { label: 'rehearsal: old gains, then new', t: t.t, v: t.y, length: t.length, color: REHEARSAL, width: 1.6 },
         { label: 'setpoint', t: t.t, v: t.r, length: t.length, color: COLORS.setpoint, dash: '2 2', width: 1.1, step: true },
@@ -42,7 +44,7 @@ export function diffSvg(r: DiffReport): string {
       weight: 1.2,
     });
     panels.push({
-      yLabel: 'rehearsal: controller',
+      yLabel: quantityLabel('rehearsal: controller', units.actuator),
       series: [{ label: 'rehearsal controller output', t: t.t, v: t.u, length: t.length, color: REHEARSAL, dash: '4 2', width: 1.3, step: true }],
       weight: 0.8,
     });

@@ -5,6 +5,8 @@
 import { headlineMetrics } from '../analysis/index.js';
 import type { HeadlineFigure, RequirementResult, TrialMetrics } from '../analysis/index.js';
 import { finiteOrNull } from './json.js';
+import { requirementUnitOf } from '../loop/index.js';
+import { NO_UNITS, type PlantUnits } from '../model/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { TrialResult } from '../sim/types.js';
 import type { TweakGuide } from '../tune/index.js';
@@ -32,12 +34,15 @@ export interface RunMetric {
 
 /**
  * The trial's figures as `run --json` reports them under `metrics`, in order: the step figures
- * (analysis' headline: the worst over the setpoint steps; peak_time of the overshoot's step), then
- * the whole trial's. One list, so every surface that prints them (run, diff) agrees.
+ * (analysis' headline: the worst over the setpoint steps; peak_time on the overshoot's step, from
+ * the same headline), then the whole trial's, with the file's `units` where a figure is in the
+ * plant's own. One list, so every surface that prints them (run, diff) agrees.
  */
-export function runMetrics(metrics: TrialMetrics): RunMetric[] {
+export function runMetrics(metrics: TrialMetrics, units: PlantUnits = NO_UNITS): RunMetric[] {
   const head = headlineMetrics(metrics);
-  const peakStep = head.overshootPct === null ? null : (metrics.steps.find((s) => s.at === head.overshootPct!.stepAt) ?? null);
+  // Figures in the plant's own units carry the file's ('' without one), as the requirement rows do.
+  const output = requirementUnitOf('steady_state_error', units);
+  const actuator = requirementUnitOf('max_output', units);
   const step = (name: string, f: HeadlineFigure | null, unit: string): RunMetric => ({ name, value: f === null ? NaN : f.value, unit, stepAt: f?.stepAt ?? null });
   const whole = (name: string, value: number, unit: string): RunMetric => ({ name, value, unit, stepAt: null });
   const o = metrics.overall;
@@ -45,15 +50,15 @@ export function runMetrics(metrics: TrialMetrics): RunMetric[] {
     step('rise_time', head.riseTime, 's'),
     step('overshoot_pct', head.overshootPct, '%'),
     step('undershoot_pct', head.undershootPct, '%'),
-    { name: 'peak_time', value: peakStep === null ? NaN : peakStep.peakTime, unit: 's', stepAt: peakStep?.at ?? null },
+    step('peak_time', head.peakTime, 's'),
     step('settling_time', head.settlingTime, 's'),
-    step('steady_state_error', head.steadyStateError, ''),
-    whole('iae', o.iae, ''),
+    step('steady_state_error', head.steadyStateError, output),
+    whole('iae', o.iae, requirementUnitOf('iae', units)),
     whole('ise', o.ise, ''),
     whole('itae', o.itae, ''),
-    whole('u_total_variation', o.uTotalVariation, ''),
+    whole('u_total_variation', o.uTotalVariation, actuator),
     whole('saturated_time', o.saturatedTime, 's'),
-    whole('max_abs_output', o.maxAbsOutput, ''),
+    whole('max_abs_output', o.maxAbsOutput, actuator),
   ];
 }
 

@@ -4,6 +4,7 @@
  * step (settling band, overshoot limit) and an optional baseline run.
  */
 import type { TrialMetrics } from '../analysis/index.js';
+import { plantUnits, quantityLabel, withUnit } from '../model/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { Trace } from '../sim/types.js';
 import { num } from './format.js';
@@ -50,6 +51,7 @@ export function trialPlotSvg(input: TrialPlotInput): string {
   const minutes = t1 >= 1200;
   const req = plant.loop.requirements;
   const bandFraction = req.settlingBand ?? 0.02;
+  const units = plantUnits(plant);
 
   const top: PlotSeries[] = [];
   const sensor = plant.sensor;
@@ -109,12 +111,13 @@ export function trialPlotSvg(input: TrialPlotInput): string {
   if (Number.isFinite(min)) outLimits.push({ label: 'actuator limits', value: min, t0: 0, t1, color: COLORS.limit, dash: '4 3' });
   if (Number.isFinite(max)) outLimits.push({ label: 'actuator limits', value: max, t0: 0, t1, color: COLORS.limit, dash: '4 3' });
   if (req.maxOutput !== undefined) {
-    outLimits.push({ label: `max_output ${num(req.maxOutput)}`, value: req.maxOutput, t0: 0, t1, color: '#7b1fa2', dash: '1 3' });
+    outLimits.push({ label: `max_output ${withUnit(num(req.maxOutput), units.actuator)}`, value: req.maxOutput, t0: 0, t1, color: '#7b1fa2', dash: '1 3' });
   }
 
+  // The axes carry the file's units; without one the quantity's name stands alone.
   const panels: PlotPanel[] = [
-    { yLabel: 'process value (model output units)', series: top, bands, limits, weight: 1.6 },
-    { yLabel: 'controller output (actuator units)', series: bottom, limits: outLimits, weight: 1 },
+    { yLabel: quantityLabel('process value', units.output), series: top, bands, limits, weight: 1.6 },
+    { yLabel: quantityLabel('controller output', units.actuator), series: bottom, limits: outLimits, weight: 1 },
   ];
   const c = plant.loop.controller;
   const subtitle = [
@@ -134,7 +137,7 @@ export function trialPlotSvg(input: TrialPlotInput): string {
             ? e.mode
             : e.kind === 'gains'
               ? e.label
-              : `ramp to ${num(e.to)}`,
+              : `ramp to ${withUnit(num(e.to), units.output)}`,
     }));
   return svgPlot({
     markers,

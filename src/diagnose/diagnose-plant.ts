@@ -25,7 +25,7 @@ import {
   type SecondOrderApprox,
 } from '../analysis/index.js';
 import { applyStructure } from '../control/index.js';
-import { compilePlant } from '../model/index.js';
+import { compilePlant, plantUnits, withUnit } from '../model/index.js';
 import type { ActuatorSpec, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
 import { buildLoop, describePoint, operatingPoints, pointFigures, preparePoints, worstMargins, type PreparedPoint } from '../loop/index.js';
 import { runTrial } from '../sim/index.js';
@@ -70,6 +70,7 @@ function emptyDiagnosis(spec: PlantSpec, op: OperatingPoint): Diagnosis {
   return {
     plantName: spec.name,
     modelType: spec.model.type,
+    units: plantUnits(spec),
     operatingPoint: op,
     linear: null,
     exact: spec.model.type !== 'ode',
@@ -160,7 +161,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
     if (ss !== null) {
       x = ss.x;
       u = uf;
-      notes.push(`linear analysis made at the steady state with the actuator at ${fmt(uf)} (output ${fmt(ss.y)}) instead`);
+      notes.push(`linear analysis made at the steady state with the actuator at ${withUnit(fmt(uf), plantUnits(spec).actuator)} (output ${withUnit(fmt(ss.y), plantUnits(spec).output)}) instead`);
     } else if (dyn.linear !== null) {
       x = new Float64Array(dyn.nx);
       u = 0;
@@ -255,7 +256,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
     d.points = preparePoints(ops.points, spec);
     const figures = pointFigures(d.points, gains, spec);
     d.pointMargins = figures.map((f) => ({
-      description: describePoint(f.point, dyn.disturbanceNames, dyn.d0),
+      description: describePoint(f.point, dyn.disturbanceNames, dyn.d0, plantUnits(spec).output ?? ''),
       at: f.point.at,
       margins: f.margins,
       problem: f.point.problem,

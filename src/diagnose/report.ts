@@ -2,6 +2,7 @@
  * The diagnosis as the documented JSON document and as a readable report (strings only; the
  * command line prints them).
  */
+import { withUnit } from '../model/index.js';
 import type { Diagnosis, Flag } from './types.js';
 
 const num = (v: number | null | undefined): number | null => (v === null || v === undefined || !Number.isFinite(v) ? null : v);
@@ -19,6 +20,8 @@ export function diagnosisJson(d: Diagnosis): Record<string, unknown> {
   return {
     plant: d.plantName,
     model_type: d.modelType,
+    // The units of the output and the actuator, once: every number below is a plain number.
+    units: d.units,
     operating_point: {
       setpoint: num(d.operatingPoint.setpoint),
       source: d.operatingPoint.source,
@@ -96,22 +99,26 @@ function cleanEvidence(f: Flag): Record<string, number | string | null> {
 /** A readable multi-line report. */
 export function formatDiagnosis(d: Diagnosis): string {
   const lines: string[] = [];
+  const out = (v: number | null): string => withUnit(fmt(v), d.units.output);
+  const act = (v: number | null): string => withUnit(fmt(v), d.units.actuator);
+  // A gain from the actuator to the output: "4.56 m per fraction"; no unit when either is missing.
+  const per = d.units.output !== null && d.units.actuator !== null ? ` ${d.units.output} per ${d.units.actuator}` : '';
   lines.push(`${d.plantName} (${d.modelType})`);
   const op = d.operatingPoint;
   if (op.found) {
     const state = Object.entries(op.state)
       .map(([k, v]) => `${k} ${fmt(v)}`)
       .join(', ');
-    lines.push(`operating point: output ${fmt(op.setpoint)} with actuator at ${fmt(op.input)}${state ? ` (${state})` : ''}`);
+    lines.push(`operating point: output ${out(op.setpoint)} with actuator at ${act(op.input)}${state ? ` (${state})` : ''}`);
   } else {
-    lines.push(`operating point: output ${fmt(op.setpoint)}: ${op.message ?? 'not found'}`);
+    lines.push(`operating point: output ${out(op.setpoint)}: ${op.message ?? 'not found'}`);
   }
   const pz = d.poleZero;
   if (d.linear && pz) {
     lines.push(`${d.exact ? 'linear model' : 'linearised at the operating point'}: ${d.linear.nx} state(s), input delay ${fmt(d.linear.delay)} s`);
     lines.push(`  poles: ${pz.poles.map(root).join(', ') || 'none'}`);
     lines.push(`  zeros: ${pz.zeros.map(root).join(', ') || 'none'}`);
-    lines.push(pz.integrators > 0 ? `  integrating: slope gain ${fmt(pz.lowFrequencyGain)} per s` : `  static gain: ${fmt(pz.staticGain)}`);
+    lines.push(pz.integrators > 0 ? `  integrating: slope gain ${fmt(pz.lowFrequencyGain)}${per} per s` : `  static gain: ${fmt(pz.staticGain)}${per}`);
     const lags = d.modes.filter((m) => m.im === 0 && Number.isFinite(m.timeConstant)).map((m) => m.timeConstant);
     if (lags.length > 0) lines.push(`  time constants: ${lags.map((t) => `${fmt(t)} s`).join(', ')}${lags.some((t) => t < 0) ? ' (negative: unstable)' : ''}`);
     for (const m of d.modes) {
@@ -123,8 +130,8 @@ export function formatDiagnosis(d: Diagnosis): string {
     const how = d.fopdtSource === 'step_fit' ? 'fitted to a simulated 5 % step' : 'half rule';
     lines.push(
       Number.isFinite(f.timeConstant)
-        ? `first order + dead time (${how}, as the controller sees it): K ${fmt(f.gain)}, T ${fmt(f.timeConstant)} s, L ${fmt(f.delay)} s`
-        : `integrating + dead time (${how}, as the controller sees it): K' ${fmt(f.gain)} per s, L ${fmt(f.delay)} s`,
+        ? `first order + dead time (${how}, as the controller sees it): K ${fmt(f.gain)}${per}, T ${fmt(f.timeConstant)} s, L ${fmt(f.delay)} s`
+        : `integrating + dead time (${how}, as the controller sees it): K' ${fmt(f.gain)}${per} per s, L ${fmt(f.delay)} s`,
     );
   }
   const m = d.margins;

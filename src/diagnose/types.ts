@@ -12,6 +12,7 @@ import type {
   PoleZeroSummary,
   SecondOrderApprox,
 } from '../analysis/index.js';
+import type { PlantUnits } from '../model/index.js';
 import type { ModelType } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';
 
@@ -78,6 +79,8 @@ export interface TrialFindings {
 export interface Diagnosis {
   plantName: string;
   modelType: ModelType;
+  /** The file's units of the output and the actuator (labels for printing). */
+  units: PlantUnits;
   operatingPoint: OperatingPoint;
   /** Linear model at the operating point (exact for linear kinds); null when it could not be formed. */
   linear: LinearModel | null;

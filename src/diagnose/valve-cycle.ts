@@ -5,6 +5,7 @@
  */
 import { predictLimitCycle, stictionElement, valveBand } from '../analysis/index.js';
 import type { PreparedPoint } from '../loop/index.js';
+import { plantUnits, withUnit } from '../model/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import type { Flag } from './types.js';
 
@@ -26,6 +27,7 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
   });
   if (cycle === null) return null;
   const isBacklash = band.static === band.dynamic;
+  const units = plantUnits(spec);
   const integral = Number.isFinite(gains.ti);
   return {
     kind: 'valve_stiction_cycle',
@@ -39,8 +41,8 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
       at_setpoint: at.point.level,
     },
     advice:
-      `The valve's ${isBacklash ? 'backlash' : 'stiction'} (static band ${fmt(band.static)}, dynamic ${fmt(band.dynamic)}) and these gains sustain a limit cycle: ` +
-      `the measurement swings about \u00b1${fmt(cycle.outputAmplitude)} with a period near ${fmt(cycle.period)} s (describing-function prediction, first harmonic). ` +
+      `The valve's ${isBacklash ? 'backlash' : 'stiction'} (static band ${withUnit(fmt(band.static), units.actuator)}, dynamic ${withUnit(fmt(band.dynamic), units.actuator)}) and these gains sustain a limit cycle: ` +
+      `the measurement swings about \u00b1${withUnit(fmt(cycle.outputAmplitude), units.output)} with a period near ${fmt(cycle.period)} s (describing-function prediction, first harmonic). ` +
       'Retuning does not cure it, and more integral action (a shorter ti) makes it worse. ' +
       (integral
         ? 'On a self-regulating plant P-only control, or PI with a much longer ti, stops the cycle at the price of an offset or a slow loop; '

@@ -13,5 +13,5 @@ export { pointResponse, preparePoints, pointFigures, dominantDamping, figureAt, 
 export type { PreparedPoint, PointFigures, FrequencyFigure } from './point-margins.js';
 export { worstPointResponse, pointResponseOf, notPlainPidLoop } from './worst-point-response.js';
 export type { WorstPointResponse } from './worst-point-response.js';
-export { CHECKED_REQUIREMENTS, timeFigures, frequencyFigures, requirementRow, askedRequirements, meetsLimit } from './requirement-rows.js';
+export { CHECKED_REQUIREMENTS, timeFigures, frequencyFigures, requirementRow, requirementUnit, requirementUnitOf, askedRequirements, meetsLimit } from './requirement-rows.js';
 export type { LimitKind, RequirementInfo, Figure, RequirementStatus, RequirementRow, StructureFigures, FrequencySource } from './requirement-rows.js';

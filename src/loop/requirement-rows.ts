@@ -5,6 +5,7 @@
  * tuning commands print these rows; none of them decides a verdict of its own.
  */
 import type { RequirementResult } from '../analysis/index.js';
+import type { PlantUnits } from '../model/index.js';
 import type { Requirements } from '../model/types.js';
 import type { TrialResult } from '../sim/index.js';
 import { worstPoint, type FrequencyFigure, type PointFigures } from './point-margins.js';
@@ -17,8 +18,14 @@ export interface RequirementInfo {
   name: string;
   key: keyof Requirements;
   kind: LimitKind;
+  /** Its fixed unit ('' for a ratio, or for a figure in the plant's units: see `of`). */
   unit: string;
   domain: 'time' | 'frequency';
+  /**
+   * A figure in the plant's own units: of the measured output (an error), its time integral (IAE:
+   * output unit times seconds), or of the actuator. Its unit is then the file's (`requirementUnit`).
+   */
+  of?: 'output' | 'output_integral' | 'actuator';
 }
 
 /** Every requirement looprig checks, in report order. */
@@ -26,9 +33,9 @@ export const CHECKED_REQUIREMENTS: readonly RequirementInfo[] = [
   { name: 'overshoot_pct', key: 'overshootPct', kind: 'max', unit: '%', domain: 'time' },
   { name: 'rise_time', key: 'riseTime', kind: 'max', unit: 's', domain: 'time' },
   { name: 'settling_time', key: 'settlingTime', kind: 'max', unit: 's', domain: 'time' },
-  { name: 'steady_state_error', key: 'steadyStateError', kind: 'max', unit: '', domain: 'time' },
-  { name: 'iae', key: 'iae', kind: 'max', unit: '', domain: 'time' },
-  { name: 'max_output', key: 'maxOutput', kind: 'max', unit: '', domain: 'time' },
+  { name: 'steady_state_error', key: 'steadyStateError', kind: 'max', unit: '', domain: 'time', of: 'output' },
+  { name: 'iae', key: 'iae', kind: 'max', unit: '', domain: 'time', of: 'output_integral' },
+  { name: 'max_output', key: 'maxOutput', kind: 'max', unit: '', domain: 'time', of: 'actuator' },
   { name: 'saturated_time', key: 'saturatedTime', kind: 'max', unit: 's', domain: 'time' },
   { name: 'bandwidth', key: 'bandwidth', kind: 'min', unit: 'rad/s', domain: 'frequency' },
   { name: 'damping_ratio', key: 'dampingRatio', kind: 'min', unit: '', domain: 'frequency' },
@@ -36,6 +43,24 @@ export const CHECKED_REQUIREMENTS: readonly RequirementInfo[] = [
   { name: 'gain_margin', key: 'gainMargin', kind: 'min', unit: '', domain: 'frequency' },
   { name: 'phase_margin_deg', key: 'phaseMarginDeg', kind: 'min', unit: 'deg', domain: 'frequency' },
 ];
+
+/**
+ * The unit a requirement's figure is printed with: its fixed unit, or for a figure in the plant's
+ * own units the file's unit ('' when the file gives none). IAE integrates the output's error over
+ * seconds: "m·s".
+ */
+export function requirementUnit(info: RequirementInfo, units: PlantUnits): string {
+  if (info.of === 'output') return units.output ?? '';
+  if (info.of === 'actuator') return units.actuator ?? '';
+  if (info.of === 'output_integral') return units.output === null ? '' : `${units.output}·s`;
+  return info.unit;
+}
+
+/** `requirementUnit` by requirement name ('' for a name looprig does not check). */
+export function requirementUnitOf(name: string, units: PlantUnits): string {
+  const info = CHECKED_REQUIREMENTS.find((c) => c.name === name);
+  return info === undefined ? '' : requirementUnit(info, units);
+}
 
 const FIGURE_OF: Readonly<Record<string, FrequencyFigure>> = {
   bandwidth: 'bandwidth',
@@ -163,10 +188,10 @@ export function meetsLimit(measured: number, limit: number, kind: LimitKind): bo
   return kind === 'max' ? measured <= limit : measured >= limit;
 }
 
-/** The row of one requirement from its figure. */
-export function requirementRow(info: RequirementInfo, scope: RequirementRow['scope'], limit: number, f: Figure): RequirementRow {
+/** The row of one requirement from its figure, its unit the file's where the figure is in the plant's units. */
+export function requirementRow(info: RequirementInfo, scope: RequirementRow['scope'], limit: number, f: Figure, units: PlantUnits): RequirementRow {
   const status: RequirementStatus = !f.available ? 'n/a' : meetsLimit(f.measured, limit, info.kind) ? 'pass' : 'fail';
-  return { requirement: info.name, scope, measured: f.measured, limit, kind: info.kind, unit: info.unit, status, note: f.note };
+  return { requirement: info.name, scope, measured: f.measured, limit, kind: info.kind, unit: requirementUnit(info, units), status, note: f.note };
 }
 
 /** The requirements a file sets, in report order. */

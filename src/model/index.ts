@@ -42,3 +42,5 @@ export { MAX_TIME, MIN_SAMPLE_TIME, MIN_STEP } from './schema/time-range.js';
 export { durationPattern, type DurationPatternOptions } from './units.js';
 export { PLANT_SCHEMA } from './schema/plant.js';
 export type { FieldDef, FieldType, SectionDef, NameRule, FieldCase } from './schema/fields.js';
+export { NO_UNITS, plantUnits, quantityLabel, withUnit, type PlantUnits } from './plant-units.js';
+export { MAX_UNIT_LENGTH } from './schema/unit-label.js';

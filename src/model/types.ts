@@ -28,7 +28,16 @@ export type Expr =
 
 // ---------------------------------------------------------------- model kinds
 
-export interface OdeModel {
+/** What every model kind may carry besides its dynamics. */
+export interface ModelCommon {
+  /**
+   * Engineering unit of the controlled (measured) output, as written (`model.output_unit`, e.g.
+   * "m", "°C"); absent = none given. A label for printing only: no value is converted.
+   */
+  outputUnit?: string;
+}
+
+export interface OdeModel extends ModelCommon {
   type: 'ode';
   params: Record<string, number>;
   /** Ordered: the state vector x follows this order. */
@@ -48,20 +57,20 @@ export interface OdeModel {
 }
 
 /** Linear kinds. Each has one implicit input disturbance `load` added to the input at the plant. */
-export interface TransferModel {
+export interface TransferModel extends ModelCommon {
   type: 'transfer';
   /** Descending powers of s. */
   numerator: number[];
   denominator: number[];
   delay: number;
 }
-export interface FirstOrderModel {
+export interface FirstOrderModel extends ModelCommon {
   type: 'first_order';
   gain: number;
   timeConstant: number;
   delay: number;
 }
-export interface SecondOrderModel {
+export interface SecondOrderModel extends ModelCommon {
   type: 'second_order';
   gain: number;
   /** Either two real lags ... */
@@ -71,7 +80,7 @@ export interface SecondOrderModel {
   damping: number | null;
   delay: number;
 }
-export interface IntegratingModel {
+export interface IntegratingModel extends ModelCommon {
   type: 'integrating';
   /** Rate of change of the output per unit input, 1/s. */
   gain: number;
@@ -79,7 +88,7 @@ export interface IntegratingModel {
   /** Optional extra lag, s (0 = none). */
   timeConstant: number;
 }
-export interface StateSpaceModel {
+export interface StateSpaceModel extends ModelCommon {
   type: 'state_space';
   a: number[][];
   b: number[];
@@ -116,6 +125,11 @@ export interface ActuatorSpec {
   rangeability?: number;
   /** Positioner and actuator first-order lag, s; absent or 0 = none. */
   lag?: number;
+  /**
+   * Engineering unit of the actuator position, the controller output and the plant input, as
+   * written (`actuator.unit`, e.g. "%"); absent = none given. A label for printing only.
+   */
+  unit?: string;
 }
 
 export interface SensorSpec {

@@ -6,6 +6,7 @@
 import { Box, useApp, useInput, useStdout } from 'ink';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { defaultSwitchTime, switchBump, switchWindowEnd } from '../tune/index.js';
+import { plantUnits, withUnit } from '../model/index.js';
 import type { PidForm } from '../model/types.js';
 import { CORE_EDIT_MATH } from './edit-math.js';
 import {
@@ -92,6 +93,7 @@ export function App(props: AppProps) {
   const plant = setup.plant;
   const trial = plant.loop.trial;
   const req = plant.loop.requirements;
+  const units = plantUnits(plant);
   const theme = useMemo(() => makeTheme(props.color), [props.color]);
   const fileForm: PidForm = plant.loop.controller.form;
   const { exit } = useApp();
@@ -184,7 +186,7 @@ export function App(props: AppProps) {
       case 'setpoint_step':
         if (run !== null) {
           const r = run.stepSetpoint(e.sign);
-          dispatch({ type: 'notify', message: { text: `setpoint -> ${Number(r.toPrecision(6))}`, tone: 'info' } });
+          dispatch({ type: 'notify', message: { text: `setpoint -> ${withUnit(String(Number(r.toPrecision(6))), units.output)}`, tone: 'info' } });
         }
         return;
       case 'disturbance_step':
@@ -300,11 +302,12 @@ export function App(props: AppProps) {
         base={base}
         run={run}
         req={req}
-        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - (layout.marginsInMetrics ? 2 : 1))}
+        metricRowsNow={metricRows(req, metricInput, baseInput, layout.bottomRows - (layout.marginsInMetrics ? 2 : 1), units)}
         nowLabel={nowLabel}
         notices={notices}
         margins={marginsNow}
         actuator={plant.actuator}
+        units={units}
         envelope={envelope}
         envelopeNote={state.envelope ? envelopeNote : null}
       />

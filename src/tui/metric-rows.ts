@@ -5,12 +5,18 @@
  * (margins); the words for a figure not reached / not settled are analysis' (stepFigureText).
  */
 import { headlineMetrics, stepFigureText, type HeadlineMetrics, type RequirementResult, type StepFigure, type TrialMetrics } from '../analysis/index.js';
-import { meetsLimit } from '../loop/index.js';
+import { meetsLimit, requirementUnitOf } from '../loop/index.js';
+import { NO_UNITS, type PlantUnits } from '../model/index.js';
 import type { Requirements } from '../model/types.js';
 import type { MarginsView } from './notices.js';
 
 export interface MetricCell {
   text: string;
+  /**
+   * The text without the file's unit, for a column too narrow for it (the limit beside it names
+   * the unit); absent when the figure carries no unit of the file.
+   */
+  short?: string;
   /** 'ok' met, 'no' not met, 'n/a' cannot be evaluated on this trial, null no limit. */
   status: 'ok' | 'no' | 'n/a' | null;
 }
@@ -76,15 +82,21 @@ export function formatFigure(v: number, unit: string): string {
   return unit === '' ? s : unit === '°' ? `${s}°` : `${s} ${unit}`;
 }
 
-function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number | undefined): MetricCell {
+/** The unit a row prints: its own, or for a figure in the plant's units (offset, IAE, peak |u|) the file's. */
+function unitOf(def: Def, units: PlantUnits): string {
+  return def.unit !== '' ? def.unit : requirementUnitOf(def.name, units);
+}
+
+function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number | undefined, units: PlantUnits): MetricCell {
+  const unit = unitOf(def, units);
   if (def.margin !== undefined) {
     if (inp.margins === null) return { text: 'n/a', status: null };
     if (inp.margins === 'pending') return { text: '…', status: null };
     if (inp.margins.closedLoopStable === false) return { text: 'unstable', status: limit === undefined ? null : 'no' };
     const measured = def.margin(inp.margins);
-    if (limit === undefined) return { text: formatFigure(measured, def.unit), status: null };
+    if (limit === undefined) return { text: formatFigure(measured, unit), status: null };
     // The verdict rule check uses (an infinite gain margin meets any lower limit).
-    return { text: formatFigure(measured, def.unit), status: meetsLimit(measured, limit, def.sense) ? 'ok' : 'no' };
+    return { text: formatFigure(measured, unit), status: meetsLimit(measured, limit, def.sense) ? 'ok' : 'no' };
   }
   const check = inp.checks.find((c) => c.name === def.name);
   let status: MetricCell['status'] = null;
@@ -95,17 +107,25 @@ function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number |
     const f = head[def.step];
     // The offset is judged by its magnitude (checkRequirements), so it is shown as one.
     const v = f === null ? NaN : def.step === 'steadyStateError' ? Math.abs(f.value) : f.value;
-    const text = f === null ? NO_STEP : stepFigureText(def.step, v, (x) => formatFigure(x, ''));
-    return { text, status };
+    if (f === null) return { text: NO_STEP, status };
+    const text = stepFigureText(def.step, v, (x) => formatFigure(x, ''), '-', units.output);
+    return withShort({ text, status }, stepFigureText(def.step, v, (x) => formatFigure(x, '')));
   }
-  return { text: formatFigure(def.figure!(inp.metrics), def.unit), status };
+  const v = def.figure!(inp.metrics);
+  return withShort({ text: formatFigure(v, unit), status }, formatFigure(v, def.unit));
+}
+
+/** The cell with its unit-less text when that differs (a figure in the file's units). */
+function withShort(c: MetricCell, short: string): MetricCell {
+  return short === c.text ? c : { ...c, short };
 }
 
 /**
  * Rows for the metrics panel: every requirement of the file first (time-domain ones checked by
- * analysis, frequency-domain ones from the margins), then further figures up to `maxRows`.
+ * analysis, frequency-domain ones from the margins), then further figures up to `maxRows`; a
+ * figure in the plant's units (offset, IAE, peak |u|) carries the file's `units`.
  */
-export function metricRows(req: Requirements, now: MetricInput, base: MetricInput | null, maxRows: number): MetricRow[] {
+export function metricRows(req: Requirements, now: MetricInput, base: MetricInput | null, maxRows: number, units: PlantUnits = NO_UNITS): MetricRow[] {
   const rows: MetricRow[] = [];
   const headNow = headlineMetrics(now.metrics);
   const headBase = base === null ? null : headlineMetrics(base.metrics);
@@ -113,9 +133,9 @@ export function metricRows(req: Requirements, now: MetricInput, base: MetricInpu
     const limit = req[def.req] as number | undefined;
     rows.push({
       label: def.label,
-      limit: limit === undefined ? '' : `${def.sense === 'max' ? '≤' : '≥'} ${formatFigure(limit, def.unit)}`,
-      now: cell(def, now, headNow, limit),
-      base: base === null || headBase === null ? null : cell(def, base, headBase, limit),
+      limit: limit === undefined ? '' : `${def.sense === 'max' ? '≤' : '≥'} ${formatFigure(limit, unitOf(def, units))}`,
+      now: cell(def, now, headNow, limit, units),
+      base: base === null || headBase === null ? null : cell(def, base, headBase, limit, units),
     });
   };
   for (const def of DEFS) if (req[def.req] !== undefined) add(def);

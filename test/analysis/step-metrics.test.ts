@@ -395,6 +395,17 @@ describe('headlineMetrics: one figure per trial, the worst step, with where it c
     expect(r.status).toBe('fail');
   });
 
+  it("the peak time is the overshoot's step's, not a worst of its own", () => {
+    // Step 1 (zeta 0.5) overshoots most, tp = pi / wd = 3.6276 s; step 2 (zeta 0.7) peaks later,
+    // tp = 4.3991 s (sheet section 11 "Computed exact values"): the headline takes step 1's.
+    const m = trialMetrics(makeTrace(60, 1e-3, y, (t) => (t < 20 ? 1 : 3)), trial(60, events));
+    const h = headlineMetrics(m);
+    expect(h.peakTime!.stepAt).toBe(h.overshootPct!.stepAt);
+    expectClose(h.peakTime!.value, 3.6276, { abs: 5e-4 + 5e-5 });
+    expectClose(m.steps[1].peakTime, 4.3991, { abs: 5e-4 + 5e-5 });
+    expect(headlineMetrics(trialMetrics(makeTrace(5, 0.1, () => 0, () => 0), trial(5, []))).peakTime).toBeNull();
+  });
+
   it('a step not settled is the worst of all, and says so in the one word', () => {
     // The second step is cut off 3 s after it happens: still moving.
     const m = trialMetrics(makeTrace(23, 1e-3, y, (t) => (t < 20 ? 1 : 3)), trial(23, events));

@@ -50,6 +50,20 @@ describe('check on the bundled plants/', () => {
     expect(r.out).toContain(`${bundled.length} files: ${bundled.length - 1} pass, 1 fail, 0 invalid`);
   });
 
+  it("the file's units beside the output's values (text), once per file and on the rows' unit (JSON)", async () => {
+    const text = await cli(['check', 'plants/surge-tank.yaml', 'plants/drum-level.yaml']);
+    expect(text.out).toMatch(/plants\/surge-tank\.yaml\s+steady_state_error\s+nominal\s+\S+ m\s+<= 0\.01 m\s+pass/);
+    expect(text.out).toMatch(/plants\/drum-level\.yaml\s+steady_state_error\s+nominal\s+\S+ mm\s+<= 1 mm\s+pass/);
+    const doc = JSON.parse((await cli(['check', 'plants/surge-tank.yaml', '--json'])).out);
+    expect(doc.files[0].units).toEqual({ output: 'm', actuator: 'fraction' });
+    const row = doc.files[0].requirements.find((r: { name: string }) => r.name === 'steady_state_error');
+    expect(row.unit).toBe('m');
+    expect(typeof row.measured).toBe('number');
+    // Without units: the rows' unit stays '' and the file's units are nulls.
+    const bare = JSON.parse((await cli(['check', 'test/fixtures/plants/surge-tank.yaml', '--json'])).out);
+    expect(bare.files[0].units).toEqual({ output: null, actuator: null });
+  });
+
   it('--json: one document with a row per requirement, the same verdicts as `run`', async () => {
     const r = await cli(['check', 'plants', '--json']);
     const doc = JSON.parse(r.out);

@@ -104,7 +104,8 @@ describe('looprig compare', () => {
     const io = fakeIo();
     expect(await main(['compare', reactor, '--nominal', '--evaluations', '0'], io)).toBe(0);
     const lines = io.stdout.split('\n');
-    expect(lines[3]).toMatch(/^candidate\s+structure\s+gains\s+rise\s+overshoot\s+settling\s+IAE sp\s+IAE dist\s+peak u\s+sat\s+Ms\s+GM\s+PM\s+binds\s+worst case$/);
+    // The reactor's units (°C, fraction) head the columns in the plant's units.
+    expect(lines[3]).toMatch(/^candidate\s+structure\s+gains\s+rise\s+overshoot\s+settling\s+IAE sp \(°C·s\)\s+IAE dist \(°C·s\)\s+peak u \(fraction\)\s+sat\s+Ms\s+GM\s+PM\s+binds\s+worst case$/);
     expect(lines.filter((l) => /^(single|cascade|feedforward) /.test(l))).toHaveLength(8); // 4 rows + 4 reason lines
     expect(io.stdout).toContain("cascade on jacket: listed in the file's compare:, gains tuned for its structure");
   });

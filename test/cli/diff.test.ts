@@ -25,15 +25,15 @@ function git(cwd: string, ...args: string[]): string {
 }
 
 /** A small plant file: PI on a first-order lag with a delay, requirements, uncertainty. */
-function plantText(o: { kc?: number; ti?: string; tau?: string; overshoot?: number; worst?: boolean } = {}): string {
+function plantText(o: { kc?: number; ti?: string; tau?: string; overshoot?: number; worst?: boolean; units?: boolean } = {}): string {
   return `# tank temperature (test plant)
 name: Test lag
 model:
   type: first_order
   gain: 2
   time_constant: ${o.tau ?? '20 s'}
-  delay: 2 s
-actuator: { min: -5, max: 5 }
+  delay: 2 s${o.units ? '\n  output_unit: K' : ''}
+actuator: { min: -5, max: 5${o.units ? ", unit: '%'" : ''} }
 uncertainty:
   gain: [1.6, 2.4]
 loop:
@@ -193,6 +193,15 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     } finally {
       git(dir, 'checkout', '-q', '--', 'plants/tank.yaml');
     }
+  });
+
+  it("the file's units: a changed field, on the figures in the plant's units and on the plot's axes", async () => {
+    const d = repo('units', [{ files: { 'p.yaml': plantText() } }, { files: { 'p.yaml': plantText({ kc: 2, units: true }) } }]);
+    const r = await cli(['diff', join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD', '--svg', join(tmp, 'u.svg')]);
+    expect(r.out).toMatch(/model\.output_unit/);
+    expect(r.out).toMatch(/iae .*K·s/);
+    const svg = r.io.files.get(join(tmp, 'u.svg'))!;
+    for (const label of ['process value (K)', 'controller output (%)', 'rehearsal: output (K)', 'rehearsal: controller (%)']) expect(svg).toContain(label);
   });
 
   it('worst case over the uncertainty box appears when the file asks for it', async () => {

@@ -108,6 +108,24 @@ describe('export: proportional band and repeats (common practice, ISA usage; she
     expect(doc.proportional_band).toMatchObject({ percent: 25, action: 'direct' });
   });
 
+  it("the file's units on the gains, the spans and once in JSON; neutral words without them", async () => {
+    const withUnits = plant(['kc: 2', 'ti: 5 s'], "actuator: { min: 0, max: 100, unit: '%' }\nsensor: { span: [0, 200] }").replace(
+      'delay: 2 s }',
+      'delay: 2 s, output_unit: kPa }',
+    );
+    const r = await cli(['export', 'p.yaml', '--form', 'parallel', '--proportional-band'], { 'p.yaml': withUnits });
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/Kp\s+2\s+% per kPa\s+proportional gain/);
+    expect(r.out).toMatch(/Ki\s+0\.4\s+% per kPa per s\s/);
+    expect(r.out).toContain('sensor span [0, 200] kPa (sensor.span), output span [0, 100] % (actuator limits)');
+    const doc = await json(['export', 'p.yaml', '--form', 'parallel'], { 'p.yaml': withUnits });
+    expect(doc.units).toEqual({ output: 'kPa', actuator: '%' });
+    expect(doc.values.kp).toEqual({ value: 2, unit: '% per kPa' });
+    const bare = await json(['export', 'p.yaml'], { 'p.yaml': plant(['kc: 2', 'ti: 5 s'], spans) });
+    expect(bare.units).toEqual({ output: null, actuator: null });
+    expect(bare.values.kc.unit).toBe('output per measured unit');
+  });
+
   it('no spans in the file: refused, exit 2, naming what is missing', async () => {
     const r = await cli(['export', 'p.yaml', '--proportional-band'], { 'p.yaml': plant(['kc: 2', 'ti: 5 s']) });
     expect(r.code).toBe(2);

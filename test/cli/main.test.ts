@@ -132,6 +132,8 @@ describe('looprig run --json', () => {
     expect(r.code).toBe(0);
     const doc = JSON.parse(r.out); // throws if there is anything besides one document
     expect(doc.plant).toEqual({ name: 'Mixing loop reference', file: plant('mixing-loop-reference.yaml'), model_type: 'second_order' });
+    // The file's units once; the figures stay plain numbers.
+    expect(doc.units).toEqual({ output: 'g/L', actuator: '%' });
     expect(doc.status).toBe('ok');
     expect(doc.diverged_at).toBeNull();
     expect(doc.steps).toBe(3000); // 300 s at one step per 0.1 s sample
@@ -149,6 +151,8 @@ describe('looprig run --json', () => {
   it('writes NaN as null: a trial without a setpoint step has null step metrics', async () => {
     const { code, doc } = await runJson(['run', fixture('inverse-response.yaml')]);
     expect(code).toBe(0);
+    // A file without units says so with nulls.
+    expect(doc.units).toEqual({ output: null, actuator: null });
     expect(doc.metrics.rise_time).toBeNull();
     expect(doc.metrics.overshoot_pct).toBeNull();
     expect(typeof doc.metrics.iae).toBe('number');
@@ -309,11 +313,21 @@ describe('looprig run: the summary', () => {
     expect(r.out).toContain('Pipe outlet temperature rise');
     // A failed requirement is in the status line: 'ok' only when nothing is wrong.
     expect(r.out).toContain('status: FAILS settling_time');
-    expect(r.out).toContain('setpoint step 0 -> 4 at 30 s:');
-    expect(r.out).toMatch(/disturbance load\s+0 -> -10/);
+    // The file's output unit (K) beside every value of the output; the disturbance's own values bare.
+    expect(r.out).toContain('setpoint step 0 -> 4 K at 30 s:');
+    expect(r.out).toMatch(/steady-state error -?[\d.e-]+ K/);
+    expect(r.out).toMatch(/IAE [\d.]+ K·s, .* peak \|u\| [\d.]+ %/);
+    expect(r.out).toMatch(/disturbance load\s+0 -> -10\s+peak -?[\d.]+ K at/);
     // This plant fails its settling-time requirement on purpose (see its header).
     expect(r.out).toMatch(/settling_time\s+\S+ s\s+limit 300 s\s+FAIL/);
     expect(r.out).toMatch(/overshoot_pct\s+\S+ %\s+limit 10 %\s+pass/);
+  });
+
+  it('a file without units prints every value bare, as before units existed', async () => {
+    const r = await run(['run', fixture('inverse-response.yaml')]);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/whole trial: IAE [\d.]+, ISE/);
+    expect(r.out).toMatch(/peak \|u\| [\d.]+\n/);
   });
 
   it('--set on a valid value keeps comments irrelevant: the file on disk is not changed', async () => {

@@ -139,6 +139,30 @@ describe('looprig run --svg', () => {
     }
     expect(svg).not.toContain('in service');
     expect(svg).not.toMatch(/NaN/);
+    // The axes carry the file's units (model.output_unit: m, actuator.unit: fraction).
+    expect(svg).toContain('>process value (m)<');
+    expect(svg).toContain('>controller output (fraction)<');
+    expect(svg).not.toContain('units)');
+  });
+
+  it('without units in the file the axes name the quantity alone', async () => {
+    const io = fakeIo();
+    expect(await main(['run', 'test/fixtures/plants/surge-tank.yaml', '--svg', 'bare.svg'], io)).toBe(0);
+    const svg = io.files.get('bare.svg')!;
+    elements(svg);
+    expect(svg).toContain('>process value<');
+    expect(svg).toContain('>controller output<');
+    expect(svg).not.toContain('model output units');
+  });
+
+  it('a unit with XML characters is escaped on the axis', async () => {
+    const io = fakeIo();
+    const text = io.readText('plants/drum-level.yaml').replace('output_unit: mm', "output_unit: 'mm<&>'");
+    io.files.set('odd.yaml', text);
+    expect(await main(['run', 'odd.yaml', '--svg', 'odd.svg'], io)).toBe(0);
+    const svg = io.files.get('odd.svg')!;
+    elements(svg);
+    expect(svg).toContain('>process value (mm&lt;&amp;&gt;)<');
   });
 
   it('with --set the file\'s own gains are drawn as the set in service', async () => {

@@ -57,6 +57,24 @@ describe('looprig diagnose', () => {
     expect(io.stdout).toMatch(/margins with the file's gains: GM/);
   });
 
+  it("the file's units beside the output's and the actuator's values; JSON names them once", async () => {
+    const io = fakeIo();
+    expect(await main(['diagnose', 'plants/sticky-flow-valve.yaml'], io)).toBe(0);
+    expect(io.stdout).toMatch(/operating point: output 24 m3\/h with actuator at 60 %/);
+    expect(io.stdout).toMatch(/static gain: 0\.4 m3\/h per %/);
+    expect(io.stdout).toMatch(/level 20 m3\/h \(from 0 s\)/);
+    expect(io.stdout).toMatch(/static band 1\.5 %, dynamic 0\.7 %\).*swings about ±[\d.]+ m3\/h/);
+    const json = fakeIo();
+    await main(['diagnose', 'plants/sticky-flow-valve.yaml', '--json'], json);
+    const doc = JSON.parse(json.stdout);
+    expect(doc.units).toEqual({ output: 'm3/h', actuator: '%' });
+    expect(typeof doc.operating_point.setpoint).toBe('number');
+    // A file without units: the values bare, as before.
+    const bare = fakeIo();
+    await main(['diagnose', 'test/fixtures/plants/inverse-response.yaml'], bare);
+    expect(bare.stdout).toMatch(/operating point: output [-\d.e]+ with actuator at [-\d.e]+( |\n)/);
+  });
+
   it('a bad file exits 2 with FILE:LINE:COL messages', async () => {
     const io = fakeIo({ 'bad.yaml': 'name: broken\n' });
     expect(await main(['diagnose', 'bad.yaml'], io)).toBe(2);

@@ -24,6 +24,7 @@ const CATALOGUE: Record<string, { code: DiagnosticCode; line: number; col: numbe
   'ti-not-positive.yaml': { code: 'BAD_VALUE', line: 7, col: 9, message: /loop\.controller\.ti must be > 0, got 0 s/ },
   'not-a-mapping.yaml': { code: 'NOT_A_MAPPING', line: 1, col: 1, message: /must be a mapping/ },
   'unknown-function.yaml': { code: 'EXPR_UNKNOWN_FUNCTION', line: 7, col: 28, message: /unknown function 'cbrt'/ },
+  'bad-output-unit.yaml': { code: 'BAD_VALUE', line: 7, col: 16, message: /model\.output_unit is 27 characters long; a unit has at most 12/ },
   'unknown-disturbance.yaml': { code: 'UNKNOWN_DISTURBANCE', line: 9, col: 36, message: /unknown disturbance 'inflow'; the model has load/ },
 };
 

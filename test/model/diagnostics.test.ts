@@ -13,7 +13,7 @@ describe('formatDiagnostic: one exact message per family', () => {
   it('schema: unknown field', () => {
     const text = `name: a\nmodel: { type: first_order, gain: 1, time_constant: 1, foo: 2 }\n${LOOP}`;
     expect(formatDiagnostic(first(text), text, 'p.yaml')).toBe(
-      "p.yaml:2:56: unknown field 'foo' in model; expected one of type, gain, time_constant, delay",
+      "p.yaml:2:56: unknown field 'foo' in model; expected one of type, gain, time_constant, delay, output_unit",
     );
   });
 

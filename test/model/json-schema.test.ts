@@ -97,6 +97,7 @@ const BAD_CASES: Readonly<Record<string, 'schema' | keyof typeof VALIDATOR_ONLY>
   'event-after-end.yaml': 'order_relations',
   'improper-transfer.yaml': 'model_shape',
   'missing-field.yaml': 'schema',
+  'bad-output-unit.yaml': 'schema',
   'negative-time-constant.yaml': 'schema',
   'not-a-mapping.yaml': 'schema',
   'step-exceeds-sample.yaml': 'order_relations',
@@ -169,6 +170,12 @@ function mutations(data: Data): { what: string; apply: (d: Data) => void }[] {
         break;
       case 'text':
         out.push({ what: `${path.join('.')}: a number`, apply: set(12) });
+        break;
+      case 'unit':
+        out.push({ what: `${path.join('.')}: a number`, apply: set(12) });
+        out.push({ what: `${path.join('.')}: empty`, apply: set(' ') });
+        out.push({ what: `${path.join('.')}: too long`, apply: set('metres of water column') });
+        out.push({ what: `${path.join('.')}: a control character`, apply: set('m\u001b[2J') });
         break;
       case 'numbers':
         out.push({ what: `${path.join('.')}: text entry`, apply: set(['x']) });

@@ -58,7 +58,8 @@ describe('loadPlant: good fixtures', () => {
 
   it('heater (first order, parallel PI) converts to ideal and reads every event kind', () => {
     const p = ok(fixture('fopdt-heater.yaml'));
-    expect(p.model).toEqual({ type: 'first_order', gain: 2.5, timeConstant: 12, delay: 3 });
+    expect(p.model).toEqual({ type: 'first_order', gain: 2.5, timeConstant: 12, delay: 3, outputUnit: 'degC' });
+    expect(p.actuator.unit).toBe('%');
     expect(p.sensor.span).toEqual([0, 150]);
     expect(p.uncertainty).toEqual({ gain: [2, 3], delay: [2, 4] });
     expect(p.loop.step).toBe(0.05);

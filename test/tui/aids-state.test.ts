@@ -40,7 +40,7 @@ function act(s: ScreenState, ...actions: Action[]): ScreenState {
   return s;
 }
 /** Headline figures of a trial without a setpoint step (the rows' figures are set directly). */
-const NO_HEAD = { overshootPct: null, undershootPct: null, riseTime: null, settlingTime: null, steadyStateError: null };
+const NO_HEAD = { overshootPct: null, undershootPct: null, riseTime: null, settlingTime: null, steadyStateError: null, peakTime: null };
 function row(label: string, e: GainEdit, oscillation = false): SuggestRow {
   return { id: label, label, structure: e.structure, edit: e, overshootPct: 5, settlingTime: 30, head: NO_HEAD, iae: 1, diverged: false, ms: 1.5, gm: 3, flags: [], oscillation };
 }

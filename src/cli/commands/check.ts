@@ -11,7 +11,7 @@
 import { parseCommandArgs } from '../parse-command.js';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { compilePlant, formatDiagnostic, loadPlant } from '../../model/index.js';
+import { compilePlant, formatDiagnostic, loadPlant, plantUnits, type PlantUnits } from '../../model/index.js';
 import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
 import { readFailure } from '../read-bounded.js';
@@ -85,6 +85,8 @@ export interface FileOutcome {
   file: string;
   status: 'pass' | 'fail' | 'invalid';
   plant: string | null;
+  /** The file's units (null for an invalid file). */
+  units: PlantUnits | null;
   /** The verdicts; the nominal trial itself is dropped once its plot (if any) is written. */
   check: Omit<PlantCheck, 'nominal'> | null;
   /** Why the file is invalid (already printed to stderr as FILE:LINE:COL lines). */
@@ -103,7 +105,7 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: str
   const file = entry.path;
   const invalid = (errors: string[]): FileOutcome => {
     for (const e of errors) io.err(`${e}\n`);
-    return { file, status: 'invalid', plant: null, check: null, errors, warnings: [], svg: null };
+    return { file, status: 'invalid', plant: null, units: null, check: null, errors, warnings: [], svg: null };
   };
   if (text === undefined) {
     try {
@@ -143,7 +145,7 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: str
     throw error;
   }
   const { nominal, ...verdicts } = check;
-  const outcome: FileOutcome = { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, check: verdicts, errors: [], warnings, svg: null };
+  const outcome: FileOutcome = { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, units: plantUnits(loaded.plant), check: verdicts, errors: [], warnings, svg: null };
   if (svgDir !== null && outcome.status === 'fail') outcome.svg = writePlot(loaded.plant, file, check.rows, nominal, svgDir, io);
   return outcome;
 }
@@ -280,6 +282,8 @@ export function checkJson(
     files: outcomes.map((o) => ({
       file: o.file,
       plant: o.plant,
+      // The units of the file's output and actuator once; every number below is a plain number.
+      units: o.units,
       status: o.status,
       errors: o.errors,
       warnings: o.warnings,

@@ -6,6 +6,8 @@
  */
 import { countOption, onePositional, parseCommandArgs } from '../parse-command.js';
 import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
+import { requirementUnitOf } from '../../loop/index.js';
+import { plantUnits, quantityLabel } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { bindingSummary, compareCandidates, DEFAULT_EVALUATIONS, sweepCaseCount, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -110,8 +112,12 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
     lines.push('  candidates without gains run their rule gains, not tuned further (no optimiser budget)');
   }
   lines.push('');
+  // Columns in the plant's units name the file's unit in their heading, so the cells stay narrow.
+  const units = plantUnits(plant);
+  const iae = requirementUnitOf('iae', units);
   const rows: string[][] = [
-    ['candidate', 'structure', 'gains', 'rise', 'overshoot', 'settling', 'IAE sp', 'IAE dist', 'peak u', 'sat', 'Ms', 'GM', 'PM', 'binds', 'worst case'],
+    ['candidate', 'structure', 'gains', 'rise', 'overshoot', 'settling', quantityLabel('IAE sp', iae || null), quantityLabel('IAE dist', iae || null),
+      quantityLabel('peak u', units.actuator), 'sat', 'Ms', 'GM', 'PM', 'binds', 'worst case'],
   ];
   for (const c of r.candidates) {
     const w = c.row;
@@ -155,6 +161,8 @@ export function compareText(plant: PlantSpec, r: CompareResult): string {
 export function compareJson(file: string, plant: PlantSpec, r: CompareResult): unknown {
   return {
     plant: { name: plant.name, file },
+    // The units of the output and the actuator, once: every number below is a plain number.
+    units: plantUnits(plant),
     source: r.source,
     flags: r.flags.map((f) => ({ kind: f.kind, severity: f.severity, evidence: f.evidence })),
     sweep_cases: r.sweepCases,

@@ -14,6 +14,7 @@
 import { onePositional, parseCommandArgs } from '../parse-command.js';
 import { DISCRETISATION_METHODS, fromIdeal, seriesRealizable, velocityForm } from '../../control/index.js';
 import type { DiscretisationMethod, VelocityForm } from '../../control/index.js';
+import { plantUnits, withUnit, type PlantUnits } from '../../model/index.js';
 import type { PidForm, PlantSpec } from '../../model/types.js';
 import { UserError } from '../errors.js';
 import { num, table } from '../format.js';
@@ -110,6 +111,8 @@ export interface ExportValue {
 export interface ExportReport {
   file: string;
   plant: string;
+  /** The file's units of the output and the actuator. */
+  units: PlantUnits;
   structure: string;
   /** The form and values as written in the file (times in s). */
   source: { form: PidForm; values: Record<string, number> };
@@ -150,13 +153,16 @@ export function exportPlant(plant: PlantSpec, file: string, a: Omit<ExportArgs, 
   if (converted === null) throw new UserError(`export: ${file}: cannot convert to the ${form} form`);
   const tu = a.timeUnit === 'min' ? 60 : 1;
   const un = a.timeUnit;
+  const units = plantUnits(plant);
+  // The gain's unit: the controller output's per the measurement's, in the file's units where it gives them.
+  const gainUnit = `${units.actuator ?? 'output'} per ${units.output ?? 'measured unit'}`;
   const values: ExportValue[] = [];
   if (form === 'parallel') {
-    values.push({ name: 'Kp', value: converted.kp, unit: 'output per measured unit', meaning: 'proportional gain' });
-    values.push({ name: 'Ki', value: converted.ki * tu, unit: `output per measured unit per ${un}`, meaning: 'integral gain (Kc/Ti)' });
-    values.push({ name: 'Kd', value: converted.kd / tu, unit: `output per measured unit times ${un}`, meaning: 'derivative gain (Kc Td)' });
+    values.push({ name: 'Kp', value: converted.kp, unit: gainUnit, meaning: 'proportional gain' });
+    values.push({ name: 'Ki', value: converted.ki * tu, unit: `${gainUnit} per ${un}`, meaning: 'integral gain (Kc/Ti)' });
+    values.push({ name: 'Kd', value: converted.kd / tu, unit: `${gainUnit} times ${un}`, meaning: 'derivative gain (Kc Td)' });
   } else {
-    values.push({ name: 'Kc', value: converted.kc, unit: 'output per measured unit', meaning: 'controller gain' });
+    values.push({ name: 'Kc', value: converted.kc, unit: gainUnit, meaning: 'controller gain' });
     values.push({
       name: 'Ti',
       value: converted.ti / tu,
@@ -202,6 +208,7 @@ export function exportPlant(plant: PlantSpec, file: string, a: Omit<ExportArgs, 
   return {
     file,
     plant: plant.name,
+    units,
     structure: c.named ?? c.structure,
     source: { form: c.form, values: { ...c.values } },
     form,
@@ -231,6 +238,8 @@ export function exportJson(r: ExportReport): unknown {
   const d = r.discrete;
   return {
     plant: { name: r.plant, file: r.file },
+    // The units of the output and the actuator, once (the values' own units are spelt out beside them).
+    units: r.units,
     structure: r.structure,
     source: r.source,
     form: r.form,
@@ -306,7 +315,8 @@ export function exportText(r: ExportReport): string {
       `    PB = 100 / Kn with Kn = K x span_y / span_u = ${num(pb.normalisedGain, DIGITS)} (dimensionless, % output per % measurement);`,
     );
     lines.push(
-      `    sensor span [${num(pb.sensorSpan[0])}, ${num(pb.sensorSpan[1])}] (sensor.span), output span [${num(pb.actuatorSpan[0])}, ${num(pb.actuatorSpan[1])}] (actuator limits)`,
+      `    sensor span ${withUnit(`[${num(pb.sensorSpan[0])}, ${num(pb.sensorSpan[1])}]`, r.units.output)} (sensor.span), ` +
+        `output span ${withUnit(`[${num(pb.actuatorSpan[0])}, ${num(pb.actuatorSpan[1])}]`, r.units.actuator)} (actuator limits)`,
     );
   }
   if (r.form === 'series' && r.source.form !== 'series') {

@@ -5,7 +5,8 @@
 import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
-import { compilePlant, MIN_STEP } from '../../model/index.js';
+import { compilePlant, MIN_STEP, plantUnits, withUnit } from '../../model/index.js';
+import { requirementUnitOf } from '../../loop/index.js';
 import type { ControllerStructure, PlantSpec, Requirements } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
 import { UserError } from '../errors.js';
@@ -231,6 +232,8 @@ export function reportJson(report: RunReport): unknown {
   ].sort((a, b) => a.at - b.at);
   return {
     plant: { name: plant.name, file: report.file, model_type: plant.model.type },
+    // The units of the output and the actuator, once: every number below is a plain number.
+    units: plantUnits(plant),
     controller: {
       structure: plant.loop.controller.structure,
       form: plant.loop.controller.form,
@@ -320,13 +323,6 @@ function tweakJson(g: TweakGuide): unknown {
 /** Controller values that are times (printed with their unit). */
 const TIME_VALUES = new Set(['ti', 'td', 'tracking_time']);
 
-const UNITS: Readonly<Record<string, string>> = {
-  overshoot_pct: ' %',
-  rise_time: ' s',
-  settling_time: ' s',
-  saturated_time: ' s',
-};
-
 /** Overshoot (%) above which `status` never says ok: the output passed its target by more than the step. */
 const OVERSHOOT_NOT_OK = 100;
 
@@ -362,6 +358,11 @@ export function summaryText(report: RunReport): string {
   const { plant, result, metrics } = report;
   const loop = plant.loop;
   const c = loop.controller;
+  const units = plantUnits(plant);
+  // A value of the measured output, of its time integral, or of the actuator, with the file's unit.
+  const out = (text: string): string => withUnit(text, units.output);
+  const outTime = (text: string): string => withUnit(text, requirementUnitOf('iae', units) || null);
+  const act = (text: string): string => withUnit(text, units.actuator);
   const lines: string[] = [];
   lines.push(`${plant.name}  (${report.file})`);
   const gains = Object.entries(c.values)
@@ -377,9 +378,9 @@ export function summaryText(report: RunReport): string {
   const head = headlineMetrics(metrics);
   const n = metrics.steps.length;
   if (n > 0) {
-    const fig = (k: StepFigure): string => stepFigureText(k, head[k], (x) => (k === 'riseTime' || k === 'settlingTime' ? num(x) : num(x, 3)));
+    const fig = (k: StepFigure): string => stepFigureText(k, head[k], (x) => (k === 'riseTime' || k === 'settlingTime' ? num(x) : num(x, 3)), '-', units.output);
     const under = head.undershootPct !== null && head.undershootPct.value > 0 ? `, undershoot ${fig('undershootPct')}` : '';
-    lines.push(n === 1 ? `setpoint step ${num(metrics.steps[0].from)} -> ${num(metrics.steps[0].to)} at ${secs(metrics.steps[0].at)}:` : `${n} setpoint steps, the worst of each figure:`);
+    lines.push(n === 1 ? `setpoint step ${num(metrics.steps[0].from)} -> ${out(num(metrics.steps[0].to))} at ${secs(metrics.steps[0].at)}:` : `${n} setpoint steps, the worst of each figure:`);
     lines.push(
       `  rise time ${fig('riseTime')}, overshoot ${fig('overshootPct')}${under}, settling ${fig('settlingTime')}, ` +
         `steady-state error ${fig('steadyStateError')}` +
@@ -390,23 +391,24 @@ export function summaryText(report: RunReport): string {
   }
   const o = metrics.overall;
   lines.push(
-    `whole trial: IAE ${num(o.iae)}, ISE ${num(o.ise)}, ITAE ${num(o.itae)}, u total variation ${num(o.uTotalVariation)}, ` +
-      `saturated ${secs(o.saturatedTime)}, peak |u| ${num(o.maxAbsOutput)}`,
+    `whole trial: IAE ${outTime(num(o.iae))}, ISE ${num(o.ise)}, ITAE ${num(o.itae)}, u total variation ${act(num(o.uTotalVariation))}, ` +
+      `saturated ${secs(o.saturatedTime)}, peak |u| ${act(num(o.maxAbsOutput))}`,
   );
 
   const rows: string[][] = [];
   for (const e of metrics.steps) {
-    rows.push([secs(e.at), 'setpoint', `${num(e.from)} -> ${num(e.to)}`, `rise ${stepFigureText('riseTime', e.riseTime, num)}`,
+    rows.push([secs(e.at), 'setpoint', `${num(e.from)} -> ${out(num(e.to))}`, `rise ${stepFigureText('riseTime', e.riseTime, num)}`,
       `overshoot ${stepFigureText('overshootPct', e.overshootPct, (x) => num(x, 3))}`, `settling ${stepFigureText('settlingTime', e.settlingTime, num)}`,
-      `final ${num(e.finalValue)}${e.settled ? '' : ' (still moving)'}`, `IAE ${num(e.iae)}`]);
+      `final ${out(num(e.finalValue))}${e.settled ? '' : ' (still moving)'}`, `IAE ${outTime(num(e.iae))}`]);
   }
   for (const r of metrics.ramps) {
-    rows.push([secs(r.at), 'ramp', `${num(r.from)} -> ${num(r.to)} in ${secs(r.duration)}`, `end error ${num(r.endError)}`,
-      `max |e| ${num(r.maxAbsError)}`, '', '', `IAE ${num(r.iae)}`]);
+    rows.push([secs(r.at), 'ramp', `${num(r.from)} -> ${out(num(r.to))} in ${secs(r.duration)}`, `end error ${out(num(r.endError))}`,
+      `max |e| ${out(num(r.maxAbsError))}`, '', '', `IAE ${outTime(num(r.iae))}`]);
   }
   for (const d of metrics.disturbances) {
-    rows.push([secs(d.at), `disturbance ${d.name}`, `${num(d.from)} -> ${num(d.to)}`, `peak ${num(d.peakDeviation)} at +${secs(d.peakTime)}`,
-      `band ${num(d.band)}`, `recovery ${secs(d.recoveryTime, 'not recovered')}`, '', `IAE ${num(d.iae)}`]);
+    // The disturbance's own values carry no unit the file gives; its effect on the output does.
+    rows.push([secs(d.at), `disturbance ${d.name}`, `${num(d.from)} -> ${num(d.to)}`, `peak ${out(num(d.peakDeviation))} at +${secs(d.peakTime)}`,
+      `band ${out(num(d.band))}`, `recovery ${secs(d.recoveryTime, 'not recovered')}`, '', `IAE ${outTime(num(d.iae))}`]);
   }
   rows.sort((a, b) => parseFloat(a[0]) - parseFloat(b[0]));
   if (rows.length > 0) {
@@ -422,7 +424,8 @@ export function summaryText(report: RunReport): string {
   if (report.requirements.length > 0) {
     lines.push('', 'requirements:');
     const req = report.requirements.map((r) => {
-      const unit = UNITS[r.name] ?? '';
+      const u = requirementUnitOf(r.name, units);
+      const unit = u === '' ? '' : ` ${u}`;
       const where = r.at !== null && report.metrics.steps.length > 1 ? ` (worst step: at ${secs(r.at)})` : '';
       const measured = Number.isFinite(r.measured) ? `${num(r.measured, 4)}${unit}` : (r.reason ?? '-');
       const word = r.status === 'pass' ? 'pass' : r.status === 'fail' ? 'FAIL' : 'N/A';

@@ -1,7 +1,7 @@
 /** The `actuator:` section: position limits, rate limit (units per second) and the valve as it is: stiction, backlash, lag, characteristic. */
 import type { ActuatorSpec, Span } from '../types.js';
 import type { YNode } from '../yaml-doc.js';
-import { choiceField, fieldNames, numberField, sectionOf, type SectionDef } from './fields.js';
+import { choiceField, fieldNames, numberField, sectionOf, textField, type SectionDef } from './fields.js';
 import type { Fields, Reader } from './reader.js';
 
 export const DEFAULT_ACTUATOR: Readonly<ActuatorSpec> = Object.freeze({ min: -Infinity, max: Infinity, rateLimit: Infinity });
@@ -43,6 +43,11 @@ export const ACTUATOR_SCHEMA: SectionDef = {
     },
     rangeability: { kind: 'number', rule: { gt: 1 }, default: 50, description: 'Rangeability R of the equal-percentage characteristic (> 1).' },
     lag: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Positioner and actuator lag, first order (>= 0; 0 = none), s or with a unit.' },
+    unit: {
+      kind: 'unit',
+      description:
+        "Engineering unit of the actuator position and the controller output (e.g. '%', m3/h), printed beside their values and axes; a label only, nothing is converted (default: none).",
+    },
   },
 };
 
@@ -60,6 +65,8 @@ export function readActuator(r: Reader, node: YNode | undefined, owner: Span): A
   if (min !== undefined) out.min = min;
   if (max !== undefined) out.max = max;
   if (rate !== undefined) out.rateLimit = rate;
+  const unit = textField(r, f, s, 'unit', undefined);
+  if (unit !== undefined) out.unit = unit;
   const mx = f.get('max');
   if (min !== undefined && max !== undefined && !(min < max) && mx) {
     r.error('BAD_VALUE', `actuator.min (${min}) must be below actuator.max (${max})`, mx.span);

@@ -8,6 +8,7 @@
  */
 import type { Fields, NumberRule, Reader } from './reader.js';
 import type { YNode } from '../yaml-doc.js';
+import { readUnitLabel } from './unit-label.js';
 
 /** How a field's value is written. */
 export type FieldType =
@@ -17,6 +18,8 @@ export type FieldType =
   | { kind: 'time'; rule?: NumberRule }
   /** Text; with `name`, a name the expressions use (pattern, reserved words). */
   | { kind: 'text'; name?: NameRule }
+  /** An engineering unit label (unit-label.ts: short text, no control characters). */
+  | { kind: 'unit' }
   | { kind: 'boolean' }
   | { kind: 'choice'; choices: readonly string[] }
   /** An expression of the plant file's expression language (text, or a bare number). */
@@ -126,6 +129,8 @@ export function readScalarField<A>(
       return r.time(node, path, d.rule ?? {});
     case 'text':
       return r.string(node, path);
+    case 'unit':
+      return readUnitLabel(r, node, path);
     case 'boolean':
       return r.boolean(node, path);
     case 'choice':
@@ -148,9 +153,10 @@ export function choiceField<T extends string, A>(r: Reader, f: Fields, section: 
   return readScalarField(r, f, section, key, absent) as T | A | undefined;
 }
 
-/** `readScalarField` for text fields. */
+/** `readScalarField` for text and unit fields. */
 export function textField<A>(r: Reader, f: Fields, section: SectionDef, key: string, absent: A): string | A | undefined {
-  if (def(section, key).kind !== 'text') throw new RangeError(`field '${key}' is not text`);
+  const kind = def(section, key).kind;
+  if (kind !== 'text' && kind !== 'unit') throw new RangeError(`field '${key}' is not text`);
   return readScalarField(r, f, section, key, absent) as string | A | undefined;
 }
 

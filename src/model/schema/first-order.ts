@@ -5,6 +5,7 @@ import { fieldNames, numberField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
+import { OUTPUT_UNIT_FIELD } from './output-unit.js';
 
 export const FIRST_ORDER_SCHEMA: SectionDef = {
   description: 'First-order lag with dead time: K e^(-L s) / (T s + 1). The input disturbance `load` adds to the input.',
@@ -13,6 +14,7 @@ export const FIRST_ORDER_SCHEMA: SectionDef = {
     gain: { kind: 'number', required: true, description: 'Steady-state gain K, output units per input unit.' },
     time_constant: { kind: 'time', rule: { gt: 0 }, required: true, description: 'Time constant T (> 0), s or with a unit.' },
     delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    output_unit: OUTPUT_UNIT_FIELD,
   },
 };
 

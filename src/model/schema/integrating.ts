@@ -5,6 +5,7 @@ import { fieldNames, numberField, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
+import { OUTPUT_UNIT_FIELD } from './output-unit.js';
 
 export const INTEGRATING_SCHEMA: SectionDef = {
   description: 'Integrating process with dead time: K e^(-L s) / s, optionally with a lag: K e^(-L s) / (s (T s + 1)).',
@@ -14,6 +15,7 @@ export const INTEGRATING_SCHEMA: SectionDef = {
     delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
     // 0 (or absent) = no extra lag; a negative lag is an error like any time constant.
     time_constant: { kind: 'time', rule: { ge: 0 }, default: 0, description: 'Optional extra lag T (>= 0; 0 = none), s or with a unit.' },
+    output_unit: OUTPUT_UNIT_FIELD,
   },
 };
 

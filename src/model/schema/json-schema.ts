@@ -14,6 +14,7 @@ import { durationPattern } from '../units.js';
 import type { FieldDef, FieldType, NameRule, SectionDef } from './fields.js';
 import type { NumberRule } from './reader.js';
 import { PLANT_SCHEMA } from './plant.js';
+import { MAX_UNIT_LENGTH, UNIT_PATTERN } from './unit-label.js';
 
 /** JSON Schema as plain data. */
 export type JsonSchema = { [key: string]: unknown };
@@ -73,6 +74,8 @@ function typeSchema(t: FieldType): JsonSchema {
       return timeSchema(t.rule);
     case 'text':
       return t.name ? { type: 'string', ...nameSchema(t.name) } : { type: 'string' };
+    case 'unit':
+      return { type: 'string', minLength: 1, maxLength: MAX_UNIT_LENGTH, pattern: UNIT_PATTERN };
     case 'boolean':
       return { type: 'boolean' };
     case 'choice':

@@ -1,11 +1,12 @@
 /** The `model:` section: dispatch on `type` to one reader per model kind. */
 import type { ModelType, Span } from '../types.js';
-import type { YNode } from '../yaml-doc.js';
+import type { YMap, YNode } from '../yaml-doc.js';
 import type { FieldDef, SectionDef } from './fields.js';
 import { FIRST_ORDER_SCHEMA, readFirstOrder } from './first-order.js';
 import { INTEGRATING_SCHEMA, readIntegrating } from './integrating.js';
 import type { ModelRead } from './model-read.js';
 import { ODE_SCHEMA, readOde } from './ode.js';
+import { readOutputUnit } from './output-unit.js';
 import type { Reader } from './reader.js';
 import { readSecondOrder, SECOND_ORDER_SCHEMA } from './second-order.js';
 import { readStateSpace, STATE_SPACE_SCHEMA } from './state-space.js';
@@ -39,6 +40,14 @@ export function readModel(r: Reader, node: YNode, owner: Span): ModelRead | unde
     return undefined;
   }
   const type = r.choice(typeEntry.value, 'model.type', MODEL_TYPES);
+  const read = readKind(r, type, m, owner);
+  // Every kind's table lists output_unit, so its reader has accepted the key; read it once here.
+  const unit = readOutputUnit(r, m);
+  if (read !== undefined && unit !== undefined) read.model.outputUnit = unit;
+  return read;
+}
+
+function readKind(r: Reader, type: ModelType | undefined, m: YMap, owner: Span): ModelRead | undefined {
   switch (type) {
     case 'ode':
       return readOde(r, m, owner);

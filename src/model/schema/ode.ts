@@ -11,6 +11,7 @@ import type { ModelRead } from './model-read.js';
 import { describe, type Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
 import { MODEL_LIMITS } from './size-limits.js';
+import { OUTPUT_UNIT_FIELD } from './output-unit.js';
 
 const IDENT = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
@@ -60,6 +61,7 @@ export const ODE_SCHEMA: SectionDef = {
       description: 'Further named measurements (e.g. the inner variable of a cascade): name -> expression.',
     },
     delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time on the manipulated input (>= 0), s or with a unit.' },
+    output_unit: OUTPUT_UNIT_FIELD,
   },
 };
 

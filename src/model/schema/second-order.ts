@@ -8,6 +8,7 @@ import { fieldNames, numberField, ruleOf, type SectionDef } from './fields.js';
 import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
+import { OUTPUT_UNIT_FIELD } from './output-unit.js';
 
 export const SECOND_ORDER_SCHEMA: SectionDef = {
   description:
@@ -19,6 +20,7 @@ export const SECOND_ORDER_SCHEMA: SectionDef = {
     natural_frequency: { kind: 'number', rule: { gt: 0 }, description: 'Natural frequency wn (> 0), rad/s; goes with damping.' },
     damping: { kind: 'number', description: 'Damping ratio zeta (negative = unstable); goes with natural_frequency.' },
     delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    output_unit: OUTPUT_UNIT_FIELD,
   },
   oneOfGroups: [['time_constant'], ['natural_frequency', 'damping']],
 };

@@ -6,6 +6,7 @@ import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
 import { MODEL_LIMITS } from './size-limits.js';
+import { OUTPUT_UNIT_FIELD } from './output-unit.js';
 
 export const STATE_SPACE_SCHEMA: SectionDef = {
   description: 'Linear state space, one input and one output: dx/dt = A x + B u, y = C x + D u. The input disturbance `load` adds to the input.',
@@ -16,6 +17,7 @@ export const STATE_SPACE_SCHEMA: SectionDef = {
     c: { kind: 'numbers', required: true, description: 'C, n entries (output row).' },
     d: { kind: 'number', default: 0, description: 'D, direct feed-through.' },
     delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time on the input (>= 0), s or with a unit.' },
+    output_unit: OUTPUT_UNIT_FIELD,
   },
 };
 

@@ -6,6 +6,7 @@ import { LOAD_DISTURBANCE, type ModelRead } from './model-read.js';
 import type { Reader } from './reader.js';
 import { DELAY_RULE } from './time-range.js';
 import { MODEL_LIMITS } from './size-limits.js';
+import { OUTPUT_UNIT_FIELD } from './output-unit.js';
 
 export const TRANSFER_SCHEMA: SectionDef = {
   description: 'Transfer function num(s)/den(s) e^(-L s), coefficients in descending powers of s. The input disturbance `load` adds to the input.',
@@ -20,6 +21,7 @@ export const TRANSFER_SCHEMA: SectionDef = {
       description: 'Denominator coefficients, highest power of s first (the first must not be 0; degree >= the numerator\'s).',
     },
     delay: { kind: 'time', rule: DELAY_RULE, default: 0, description: 'Dead time L on the input (>= 0), s or with a unit.' },
+    output_unit: OUTPUT_UNIT_FIELD,
   },
 };
 

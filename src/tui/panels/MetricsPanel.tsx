@@ -29,15 +29,22 @@ function mark(c: MetricCell, theme: Theme): Piece {
 export function metricLines(p: MetricsProps): Piece[][] {
   const t = p.theme;
   const hasBase = p.rows.some((r) => r.base !== null);
-  // Value columns as wide as their longest text ('not settled'), at least 8 and 7.
-  const nowW = Math.max(8, ...p.rows.map((r) => r.now.text.length + 1));
-  const baseW = Math.max(7, ...p.rows.map((r) => (r.base?.text.length ?? 0) + 1));
+  // The limit column as wide as its longest text: a limit with the file's unit ('≤ 150 N m').
+  const limitW = Math.max(9, ...p.rows.map((r) => r.limit.length + 1));
+  // Value columns as wide as their longest text ('not settled'), at least 8 and 7. When the values
+  // with the file's unit would push the verdict out of the panel, they go without it: the limit
+  // beside them still names the unit.
+  const widest = (pick: (c: MetricCell) => string): number => Math.max(8, ...p.rows.map((r) => pick(r.now).length + 1));
+  const bare = 12 + limitW + widest((c) => c.text) + 4 > p.width;
+  const shown = (c: MetricCell): string => (bare ? (c.short ?? c.text) : c.text);
+  const nowW = widest(shown);
+  const baseW = Math.max(7, ...p.rows.map((r) => (r.base === null ? 0 : shown(r.base).length) + 1));
   const lines: Piece[][] = [
-    [{ text: `${fit('', 12)}${fit('limit', 9)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'in svc' : ''}`, color: t.dim }],
+    [{ text: `${fit('', 12)}${fit('limit', limitW)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'in svc' : ''}`, color: t.dim }],
   ];
   for (const r of p.rows) {
-    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, 9), color: t.dim }, { text: fit(r.now.text, nowW) }, mark(r.now, t)];
-    if (r.base !== null) pieces.push({ text: ' ' + fit(r.base.text, baseW), color: t.baseline }, mark(r.base, t));
+    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, limitW), color: t.dim }, { text: fit(shown(r.now), nowW) }, mark(r.now, t)];
+    if (r.base !== null) pieces.push({ text: ' ' + fit(shown(r.base), baseW), color: t.baseline }, mark(r.base, t));
     lines.push(pieces);
   }
   if (p.note !== null) lines.push(p.note);

@@ -3,6 +3,7 @@
  * trial against the requirements and the notices, as many as the layout gives room for.
  */
 import { Box, Text } from 'ink';
+import { quantityLabel, withUnit, type PlantUnits } from '../../model/index.js';
 import type { Requirements } from '../../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from '../chart.js';
 import type { Evaluation } from '../engine.js';
@@ -34,6 +35,8 @@ export interface PanelsProps {
   notices: Notice[];
   margins: MarginsView | null | 'pending';
   actuator: { min: number; max: number };
+  /** The file's units: on the charts' titles (their value axes) and the envelope's spread. */
+  units: PlantUnits;
   /** The robustness envelope (null: not wanted, or not drawn in this mode). */
   envelope: EnvelopeState | null;
   /** Why the envelope asked for is not drawn (null: drawn, or not asked for). */
@@ -72,9 +75,9 @@ export function Panels(p: PanelsProps) {
   ];
   if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· in service only ' : '· in service ', color: theme.baseline });
   const env = p.run === null ? p.envelope : null;
-  if (env !== null) legend.push({ text: envelopeLegend(env), color: theme.envelope });
+  if (env !== null) legend.push({ text: envelopeLegend(env, p.units.output), color: theme.envelope });
   else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, color: theme.dim });
-  const title = p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend';
+  const title = quantityLabel(p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend', p.units.output);
   const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
   if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
 
@@ -163,7 +166,7 @@ export function Panels(p: PanelsProps) {
       )}
       {outputGrid !== null && (
         <ChartPanel
-          title="Controller output"
+          title={quantityLabel('Controller output', p.units.actuator)}
           legend={[
             { text: '─ u ', color: theme.output },
             ...(baselineTrace !== null ? [{ text: '· in service ', color: theme.baseline }] : []),
@@ -206,7 +209,7 @@ function stripLegend(strip: Strip, theme: Theme): Piece[] {
 }
 
 /** The envelope's legend entry: its cases, or how far its sweep has come. */
-function envelopeLegend(e: EnvelopeState): string {
+function envelopeLegend(e: EnvelopeState, unit: string | null): string {
   if (e.error !== null) return `░ envelope failed: ${e.error} `;
   if (e.total === 0) return '░ envelope … ';
   const cases = e.done < e.total ? `${e.done}/${e.total} cases…` : `${e.total} cases`;
@@ -214,7 +217,7 @@ function envelopeLegend(e: EnvelopeState): string {
   let spread = 0;
   const env = e.envelope;
   if (env !== null) for (let i = 0; i < env.t.length; i++) if (Number.isFinite(env.hi[i] - env.lo[i])) spread = Math.max(spread, env.hi[i] - env.lo[i]);
-  return `░ envelope ${cases}, spread ≤ ${Number(spread.toPrecision(2))}${e.anyDiverged ? ', one diverges' : ''} `;
+  return `░ envelope ${cases}, spread ≤ ${withUnit(String(Number(spread.toPrecision(2))), unit)}${e.anyDiverged ? ', one diverges' : ''} `;
 }
 
 /** The margins of the edited gains as one notices line, or null without a diagnosis. */
