@@ -100,13 +100,17 @@ export interface CycleLoop {
 }
 
 /**
- * The limit cycle of the loop with the element, or null when 1 + N(A) L(jω) = 0 has no solution.
- * `band`: the smallest amplitude that moves the element ((static + dynamic)/2 for stiction).
- * Along a grid of amplitudes (from there to 1000 times it), the frequency where L's phase equals
- * that of −1/N(A) is found on a frequency grid, and the magnitudes compared; a sign change of
- * their log ratio is refined by bisection. Of several solutions the
- * largest amplitude is reported (our choice: the outermost intersection is the one a cycle grows
- * into from small disturbances for these elements).
+ * The limit cycle of the loop with the element, or null when 1 + N(A) L(jω) = 0 has no stable
+ * solution. `band`: the smallest amplitude that moves the element ((static + dynamic)/2 for
+ * stiction). Along a grid of amplitudes (from there to 1000 times it), every frequency where L's
+ * phase equals that of −1/N(A) is found on a frequency grid (an integrating loop under PI meets a
+ * phase twice: once where the PI zero lifts its phase, once where the delay pulls it down), and
+ * on each such branch the magnitudes compared; a sign change of their log ratio g = ln|N L| is
+ * refined by bisection. A solution is kept only when the cycle is stable in amplitude (Loeb's
+ * criterion, Gelb & Vander Velde 1968, ch. 2, from memory): a slightly larger amplitude must see
+ * a loop gain |N L| below 1 where L's phase falls with frequency, above 1 where it rises (the
+ * point −1/N leaves the region L encircles). Of several stable solutions the largest amplitude
+ * is reported (our choice: the outermost is the one a cycle grows into from small disturbances).
  */
 export function predictLimitCycle(make: ElementFactory, band: number, loop: CycleLoop): LimitCycle | null {
   const path = loopPath(loop.plant, loop.sampleTime, loop.sensor);
@@ -143,15 +147,19 @@ export function predictLimitCycle(make: ElementFactory, band: number, loop: Cycl
     lnMag.push(Math.log(Math.hypot(lr, li)));
     phase.push(i === 0 ? p : phase[i - 1] + wrapAngle(p - phase[i - 1]));
   }
-  /**
-   * For amplitude e^lnA: the lowest frequency where L's phase meets −1/N(A)'s, and the mismatch
-   * g = ln|L| − ln|1/N| there (0 on a limit cycle); null when N = 0 or the phases never meet.
-   */
-  const mismatch = (lnA: number): { g: number; lnW: number } | null => {
+  /** A frequency where L's phase meets −1/N(A)'s: g = ln|L| − ln|1/N| there (0 on a limit cycle), `rising` L's phase with ω. */
+  interface Meet {
+    g: number;
+    lnW: number;
+    rising: boolean;
+  }
+  /** Every meeting point for amplitude e^lnA, by frequency; empty when N = 0 or the phases never meet. */
+  const meetings = (lnA: number): Meet[] => {
     const n = describingFunction(make, Math.exp(lnA));
     const nn = n.re * n.re + n.im * n.im;
-    if (!(nn > 1e-18)) return null;
+    if (!(nn > 1e-18)) return [];
     const target = Math.atan2(n.im / nn, -n.re / nn);
+    const out: Meet[] = [];
     for (let i = 0; i + 1 < nW; i++) {
       for (const k of [-2, -1, 0, 1]) {
         const t = target + 2 * Math.PI * k;
@@ -159,25 +167,36 @@ export function predictLimitCycle(make: ElementFactory, band: number, loop: Cycl
         const b = phase[i + 1] - t;
         if (a === 0 || a * b < 0) {
           const f = a === 0 ? 0 : a / (a - b);
-          return { g: lnMag[i] + f * (lnMag[i + 1] - lnMag[i]) + 0.5 * Math.log(nn), lnW: lnW[i] + f * (lnW[i + 1] - lnW[i]) };
+          out.push({ g: lnMag[i] + f * (lnMag[i + 1] - lnMag[i]) + 0.5 * Math.log(nn), lnW: lnW[i] + f * (lnW[i + 1] - lnW[i]), rising: phase[i + 1] > phase[i] });
         }
       }
     }
-    return null;
+    return out;
+  };
+  /** The meeting point of `ms` on the branch of `near` (the same direction, nearest in frequency). */
+  const onBranch = (ms: Meet[], near: Meet): Meet | null => {
+    let best: Meet | null = null;
+    for (const m of ms) if (m.rising === near.rising && (best === null || Math.abs(m.lnW - near.lnW) < Math.abs(best.lnW - near.lnW))) best = m;
+    return best;
   };
   const found: LimitCycle[] = [];
-  let prev: { lnA: number; m: { g: number; lnW: number } | null } | null = null;
+  let prevLnA = NaN;
+  let prev: Meet[] = [];
   for (const lnA of lnAs) {
-    const m = mismatch(lnA);
-    if (prev !== null && prev.m !== null && m !== null && prev.m.g * m.g <= 0) {
+    const here = meetings(lnA);
+    for (const m of here) {
+      const before = onBranch(prev, m);
+      if (before === null || before.g * m.g > 0) continue;
+      // Stable in amplitude: g falls with A where L's phase falls with ω, rises where it rises.
+      if (m.rising ? !(m.g > before.g) : !(m.g < before.g)) continue;
       // Bisection on ln A between the grid points where the mismatch changes sign.
-      let lo = prev.lnA;
+      let lo = prevLnA;
       let hi = lnA;
-      let gLo = prev.m.g;
+      let gLo = before.g;
       let best = m;
       for (let it = 0; it < 30; it++) {
         const mid = 0.5 * (lo + hi);
-        const mm = mismatch(mid);
+        const mm = onBranch(meetings(mid), best);
         if (mm === null) break;
         best = mm;
         if (gLo * mm.g <= 0) hi = mid;
@@ -195,7 +214,8 @@ export function predictLimitCycle(make: ElementFactory, band: number, loop: Cycl
       const outputAmplitude = (a * Math.hypot(nv.re, nv.im) * Math.hypot(lr, li)) / Math.hypot(cw[0], cw[1]);
       found.push({ amplitude: a, frequency: w, period: (2 * Math.PI) / w, outputAmplitude });
     }
-    prev = { lnA, m };
+    prevLnA = lnA;
+    prev = here;
   }
   if (found.length === 0) return null;
   return found.reduce((best, c) => (c.amplitude > best.amplitude ? c : best));

@@ -1,9 +1,10 @@
 /**
  * The `valve_stiction_cycle` flag: the limit cycle the actuator's stiction or backlash band
  * sustains with the file's gains, predicted by the describing-function method (analysis'
- * stiction-cycle.ts) at the first operating point of the trial, with advice on what helps.
+ * stiction-cycle.ts) at every operating point of the trial (loop/'s points, the models check and
+ * the screen read), the worst (largest measurement swing) reported, with advice on what helps.
  */
-import { predictLimitCycle, stictionElement, valveBand } from '../analysis/index.js';
+import { predictLimitCycle, stictionElement, valveBand, type LimitCycle } from '../analysis/index.js';
 import type { PreparedPoint } from '../loop/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import type { Flag } from './types.js';
@@ -16,15 +17,23 @@ function fmt(v: number, digits = 3): string {
 export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[], gains: GainSet): Flag | null {
   const band = valveBand(spec.actuator);
   if (band === null) return null;
-  const at = points.find((p) => p.response !== null);
-  if (at === undefined || at.response === null) return null;
-  const cycle = predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, {
-    plant: at.response,
-    gains,
-    sampleTime: spec.loop.sampleTime,
-    sensor: spec.sensor,
-  });
-  if (cycle === null) return null;
+  // The valve's slope and the plant's gain change with the level: a cycle may appear at one only.
+  let worst: { cycle: LimitCycle; at: PreparedPoint } | null = null;
+  let cycling = 0;
+  for (const at of points) {
+    if (at.response === null) continue;
+    const cycle = predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, {
+      plant: at.response,
+      gains,
+      sampleTime: spec.loop.sampleTime,
+      sensor: spec.sensor,
+    });
+    if (cycle === null) continue;
+    cycling++;
+    if (worst === null || cycle.outputAmplitude > worst.cycle.outputAmplitude) worst = { cycle, at };
+  }
+  if (worst === null) return null;
+  const { cycle, at } = worst;
   const isBacklash = band.static === band.dynamic;
   const integral = Number.isFinite(gains.ti);
   return {
@@ -37,10 +46,13 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
       predicted_controller_amplitude: cycle.amplitude,
       predicted_period_s: cycle.period,
       at_setpoint: at.point.level,
+      points_cycling: cycling,
+      points_evaluated: points.filter((p) => p.response !== null).length,
     },
     advice:
       `The valve's ${isBacklash ? 'backlash' : 'stiction'} (static band ${fmt(band.static)}, dynamic ${fmt(band.dynamic)}) and these gains sustain a limit cycle: ` +
-      `the measurement swings about \u00b1${fmt(cycle.outputAmplitude)} with a period near ${fmt(cycle.period)} s (describing-function prediction, first harmonic). ` +
+      `the measurement swings about \u00b1${fmt(cycle.outputAmplitude)} with a period near ${fmt(cycle.period)} s at setpoint ${fmt(at.point.level)}` +
+      `${cycling > 1 ? ` (the worst of ${cycling} operating points that cycle)` : ''} (describing-function prediction, first harmonic). ` +
       'Retuning does not cure it, and more integral action (a shorter ti) makes it worse. ' +
       (integral
         ? 'On a self-regulating plant P-only control, or PI with a much longer ti, stops the cycle at the price of an offset or a slow loop; '
