@@ -14,10 +14,13 @@
  * as a continuous factor).
  */
 import type { ActuatorSpec, GainSet } from '../model/types.js';
-import { Actuator, valveInput } from '../sim/index.js';
+import { Actuator, valveBand, valveInput } from '../sim/index.js';
 import { wrapAngle, type PlantFrequencyResponse } from './freq-response.js';
 import { loopPath, type LoopSensor } from './loop-path.js';
 import { pidLawResponse } from './pid-law-response.js';
+
+/** The band the element is made from: sim's own reading of the actuator (one definition). */
+export { valveBand };
 
 /** A memory element stepped on its input: returns its output (state kept inside). */
 export type ElementStep = (u: number) => number;
@@ -50,12 +53,6 @@ export function describingFunction(make: ElementFactory, A: number, points = DF_
   b1 *= 2 / points;
   a1 *= 2 / points;
   return { re: b1 / A, im: a1 / A };
-}
-
-/** The stiction/backlash band of an actuator, as the engine runs it (null when it has none). */
-export function valveBand(spec: ActuatorSpec): { static: number; dynamic: number } | null {
-  if (spec.backlash !== undefined && spec.backlash > 0) return { static: spec.backlash / 2, dynamic: spec.backlash / 2 };
-  return spec.stiction !== undefined && spec.stiction.static > 0 ? spec.stiction : null;
 }
 
 /**

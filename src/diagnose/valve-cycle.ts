@@ -52,7 +52,7 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
     advice:
       `The valve's ${isBacklash ? 'backlash' : 'stiction'} (static band ${fmt(band.static)}, dynamic ${fmt(band.dynamic)}) and these gains sustain a limit cycle: ` +
       `the measurement swings about \u00b1${fmt(cycle.outputAmplitude)} with a period near ${fmt(cycle.period)} s at setpoint ${fmt(at.point.level)}` +
-      `${cycling > 1 ? ` (the worst of ${cycling} operating points that cycle)` : ''} (describing-function prediction, first harmonic). ` +
+      `${cycling > 1 ? `, the worst of ${cycling} operating points that cycle` : ''} (describing-function prediction, first harmonic). ` +
       'Retuning does not cure it, and more integral action (a shorter ti) makes it worse. ' +
       (integral
         ? 'On a self-regulating plant P-only control, or PI with a much longer ti, stops the cycle at the price of an offset or a slow loop; '

@@ -28,15 +28,21 @@ export function lagCoefficients(lag: number, h: number): { la: number; lm: numbe
   return { la, lm: (lag / h) * (1 - la) };
 }
 
-/** The shape of the valve after the limits, and its band: backlash w is stiction w/2, w/2. */
+/** The stiction/backlash band the engine runs (backlash w is stiction w/2, w/2); null when it has none. */
+export function valveBand(spec: ActuatorSpec): { static: number; dynamic: number } | null {
+  if (spec.backlash !== undefined && spec.backlash > 0) return { static: spec.backlash / 2, dynamic: spec.backlash / 2 };
+  return spec.stiction !== undefined && spec.stiction.static > 0 ? spec.stiction : null;
+}
+
+/** The shape of the valve after the limits, and its band (`valveBand`). */
 export function valveOf(spec: ActuatorSpec): { shape: ValveShape; fs: number; fd: number; aspan: number; rgl: number } {
-  const band = spec.backlash !== undefined && spec.backlash > 0 ? { static: spec.backlash / 2, dynamic: spec.backlash / 2 } : spec.stiction;
-  const sticky = band !== undefined && band.static > 0;
+  const band = valveBand(spec);
+  const sticky = band !== null;
   const characteristic = spec.characteristic ?? 'linear';
   return {
     shape: { sticky, lagged: (spec.lag ?? 0) > 0, characteristic },
-    fs: sticky ? band.static : 0,
-    fd: sticky ? band.dynamic : 0,
+    fs: band !== null ? band.static : 0,
+    fd: band !== null ? band.dynamic : 0,
     aspan: spec.max - spec.min,
     rgl: Math.log(spec.rangeability ?? 50),
   };

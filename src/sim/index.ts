@@ -29,7 +29,7 @@ export { checkBudget, estimateBudget, DEFAULT_BUDGET, HARD_LIMITS, SECONDS_PER_S
 export { plantBudget } from './plant-budget.js';
 export type { BudgetRefusal, PlantBudgetOptions } from './plant-budget.js';
 export type { BudgetCause, BudgetEstimate, BudgetExcess, BudgetLimits, RunSize } from './budget.js';
-export { Actuator, valveInput, valveTravel } from './actuator.js';
+export { Actuator, valveBand, valveInput, valveTravel } from './actuator.js';
 export { Sensor, sensorFilterCoefficients } from './sensor.js';
 export { createTrace, TraceRing } from './trace.js';
 export type { TraceChannel } from './trace.js';
