@@ -14,7 +14,8 @@
  * as a continuous factor).
  */
 import type { ActuatorSpec, GainSet } from '../model/types.js';
-import { Actuator, valveBand, valveInput } from '../sim/index.js';
+import { solve } from '../num/index.js';
+import { Actuator, valveBand, valveInput, type LinearModel } from '../sim/index.js';
 import { wrapAngle, type PlantFrequencyResponse } from './freq-response.js';
 import { loopPath, type LoopSensor } from './loop-path.js';
 import { pidLawResponse } from './pid-law-response.js';
@@ -229,4 +230,57 @@ export function characteristicSlope(spec: ActuatorSpec, travel: number): number 
   const lo = Math.max(spec.min, travel - d);
   const hi = Math.min(spec.max, travel + d);
   return (valveInput(spec, hi) - valveInput(spec, lo)) / (hi - lo);
+}
+
+/**
+ * The stick-slip cycle of a self-regulating loop under integral action, from the balance of one
+ * stuck stretch (our derivation, no published source; checked against the engine in
+ * test/analysis/stiction-cycle.test.ts). While the stem sticks, the measurement settles and the
+ * integral ramps the controller output at kc·e/ti; the stem slips when the output has crossed the
+ * stick band S = static + dynamic from where the last slip left it, and each slip moves it by the
+ * slip jump J = static − dynamic, alternately up and down round the steady travel (x* ± J/2, so
+ * the settled error is ±K·J/2 with K the static gain from travel to measurement). Over a half
+ * period the output must cross S: kc·K·J of it comes from the proportional term as the measurement
+ * moves by K·J, the rest, S − kc·K·J, from the integral of the error, which after a slip reaches
+ * its settled value K·J/2 only after the loop's mean residence time T_ar (the integral falls
+ * 2·T_ar·K·J/2 short). Hence the half period (S − kc·K·J)·2ti/(kc·K·J) + 2·T_ar, the measurement
+ * swing ±K·J/2, the output swing ±(S/2 + kc·K·J·θ/(2ti)) (the integral keeps ramping over the
+ * dead time θ before the slip shows). T_ar = −G′(0)/G(0) of the model (C A⁻²B/G(0)) plus its
+ * delay, the sensor's delay and filter time and h/2 for the hold.
+ *
+ * Valid when the stem rests long enough for the measurement to settle: the stuck stretch beyond
+ * the transient at least T_ar, J > 0 (backlash alone has no slip jump: no such cycle), and
+ * kc·K·J < S (a larger proportional kick slips the stem straight back: no stuck stretch). Null
+ * otherwise, and for a model without a finite static gain (an integrating plant).
+ */
+export function stickSlipCycle(model: LinearModel, band: { static: number; dynamic: number }, loop: Omit<CycleLoop, 'plant'>): LimitCycle | null {
+  const n = model.nx;
+  const jump = band.static - band.dynamic;
+  const stickBand = band.static + band.dynamic;
+  if (!(jump > 0) || !Number.isFinite(loop.gains.ti) || !(loop.gains.ti > 0)) return null;
+  // −A⁻¹B and A⁻²B: G(0) = D − C A⁻¹ B, −G′(0) = C A⁻² B.
+  const negA = Float64Array.from(model.a, (v) => -v);
+  const v1 = n > 0 ? solve(negA, n, model.b) : new Float64Array(0);
+  const v2 = v1 !== null && n > 0 ? solve(negA, n, v1) : new Float64Array(0);
+  if (v1 === null || v2 === null) return null;
+  let gain = model.d;
+  let moment = 0;
+  for (let i = 0; i < n; i++) {
+    gain += model.c[i] * v1[i];
+    moment += model.c[i] * v2[i];
+  }
+  const h = loop.sampleTime > 0 ? loop.sampleTime : 0;
+  const dead = model.delay + loop.sensor.delay + h / 2;
+  const residence = moment / gain + dead + loop.sensor.filterTime;
+  const kick = loop.gains.kc * gain * jump;
+  if (!(kick > 0) || !(kick < stickBand) || !(residence >= 0)) return null;
+  const stuck = (2 * loop.gains.ti * (stickBand - kick)) / kick;
+  if (!(stuck >= residence)) return null;
+  const period = 2 * stuck + 4 * residence;
+  return {
+    amplitude: stickBand / 2 + (kick * dead) / (2 * loop.gains.ti),
+    period,
+    frequency: (2 * Math.PI) / period,
+    outputAmplitude: (Math.abs(gain) * jump) / 2,
+  };
 }

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { diagnosePlant } from '../../src/diagnose/index.js';
-import { predictLimitCycle, stictionElement, valveBand } from '../../src/analysis/index.js';
+import { predictLimitCycle, stickSlipCycle, stictionElement, valveBand } from '../../src/analysis/index.js';
 import { applyStructure } from '../../src/control/index.js';
 import { loadPlant } from '../../src/model/index.js';
 
@@ -32,14 +32,10 @@ describe('valve_stiction_cycle', () => {
     const f = d.flags.find((x) => x.kind === 'valve_stiction_cycle');
     expect(f).toBeDefined();
     const band = valveBand(spec.actuator)!;
-    const each = d.points.map((p) =>
-      predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, {
-        plant: p.response!,
-        gains: applyStructure(spec.loop.controller.structure, spec.loop.controller.gains),
-        sampleTime: spec.loop.sampleTime,
-        sensor: spec.sensor,
-      }),
-    );
+    const each = d.points.map((p) => {
+      const loop = { plant: p.response!, gains: applyStructure(spec.loop.controller.structure, spec.loop.controller.gains), sampleTime: spec.loop.sampleTime, sensor: spec.sensor };
+      return stickSlipCycle(p.point.linear!, band, loop) ?? predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, loop);
+    });
     expect(each.length).toBe(3);
     const amps = each.map((c) => c!.outputAmplitude);
     const worst = amps.indexOf(Math.max(...amps));
