@@ -2,12 +2,11 @@
  * The `valve_stiction_cycle` flag: the limit cycle the actuator's stiction or backlash band
  * sustains with the file's gains, predicted at every operating point of the trial (loop/'s points,
  * the models check and the screen read), the worst (largest measurement swing) reported, with
- * advice on what helps. The prediction (analysis' stiction-cycle.ts) is the stick-slip balance
- * where its assumptions hold (a self-regulating loop under integral action whose stem rests long
- * enough for the measurement to settle: within 4 % of the settled simulated cycle on the test
- * cases, where the first harmonic is 12 to 20 % off), else the describing function.
+ * advice on what helps. The prediction is analysis' valveCycle: the stick-slip balance where its
+ * assumptions hold (a self-regulating loop under integral action whose stem rests long enough for
+ * the measurement to settle), else the describing function.
  */
-import { predictLimitCycle, stickSlipCycle, stictionElement, valveBand, type CycleLoop, type LimitCycle } from '../analysis/index.js';
+import { valveBand, valveCycle, type CycleLoop, type LimitCycle } from '../analysis/index.js';
 import type { PreparedPoint } from '../loop/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import type { Flag } from './types.js';
@@ -26,11 +25,11 @@ export function flagValveCycle(spec: PlantSpec, points: readonly PreparedPoint[]
   for (const at of points) {
     if (at.response === null || at.point.linear === null) continue;
     const loop: CycleLoop = { plant: at.response, gains, sampleTime: spec.loop.sampleTime, sensor: spec.sensor };
-    const balanced = stickSlipCycle(at.point.linear, band, loop);
-    const cycle = balanced ?? predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, loop);
-    if (cycle === null) continue;
+    const predicted = valveCycle(at.point.linear, band, loop);
+    if (predicted === null) continue;
     cycling++;
-    if (worst === null || cycle.outputAmplitude > worst.cycle.outputAmplitude) worst = { cycle, at, balance: balanced !== null };
+    const { cycle } = predicted;
+    if (worst === null || cycle.outputAmplitude > worst.cycle.outputAmplitude) worst = { cycle, at, balance: predicted.method === 'stick_slip_balance' };
   }
   if (worst === null) return null;
   const { cycle, at, balance } = worst;

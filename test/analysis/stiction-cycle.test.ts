@@ -3,7 +3,7 @@
  * predicted stiction limit cycle against the simulated one.
  */
 import { describe, expect, it } from 'vitest';
-import { describingFunction, predictLimitCycle, stickSlipCycle, stictionElement, valveBand, type ElementStep, type LimitCycle } from '../../src/analysis/index.js';
+import { describingFunction, predictLimitCycle, stickSlipCycle, stictionElement, valveBand, valveCycle, type ElementStep, type LimitCycle } from '../../src/analysis/index.js';
 import { buildLoop, operatingPoints, pointResponse } from '../../src/loop/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import { runTrial } from '../../src/sim/index.js';
@@ -158,6 +158,15 @@ describe('stick-slip balance vs the settled simulated cycle (our derivation; the
       expect(Math.abs(cycle!.outputAmplitude / sim.outputAmplitude - 1)).toBeLessThan(0.15);
     });
   }
+  it('valveCycle, the one prediction: the balance where it holds, the describing function on the integrating plant', () => {
+    const at = (text: string) => {
+      const spec = loadPlant(text, 'case.yaml').plant!;
+      const point = operatingPoints(spec, buildLoop(spec).dynamics).points.at(-1)!;
+      return valveCycle(point.linear!, valveBand(spec.actuator)!, { plant: pointResponse(point.linear!, spec), gains: spec.loop.controller.gains, sampleTime: 0.5, sensor: spec.sensor });
+    };
+    expect(at(caseText('{ type: first_order, gain: 1, time_constant: 10 s, delay: 2 s }', '{ kc: 1, ti: 10 s }', '{ static: 2, dynamic: 1 }', 0, 200))!.method).toBe('stick_slip_balance');
+    expect(at(caseText('{ type: integrating, gain: 0.05, delay: 2 s }', '{ kc: 4, ti: 40 s }', '{ static: 2, dynamic: 1 }', -100, 200))!.method).toBe('describing_function');
+  });
   it('the small-jump case the describing function misses', () => {
     const text = caseText('{ type: first_order, gain: 1, time_constant: 10 s, delay: 2 s }', '{ kc: 1, ti: 10 s }', '{ static: 2, dynamic: 1.8 }', 0, 200);
     expect(predicted(text)).toBeNull();

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { diagnosePlant } from '../../src/diagnose/index.js';
-import { predictLimitCycle, stickSlipCycle, stictionElement, valveBand } from '../../src/analysis/index.js';
+import { valveBand, valveCycle } from '../../src/analysis/index.js';
 import { applyStructure } from '../../src/control/index.js';
 import { loadPlant } from '../../src/model/index.js';
 
@@ -20,6 +20,7 @@ describe('valve_stiction_cycle', () => {
     // Simulated without noise (test/sim/stiction-cycles.test.ts's case): about 0.34 peak to peak, period ~65 s.
     expect(Math.abs((f!.evidence.predicted_output_amplitude as number) / 0.17 - 1)).toBeLessThan(0.3);
     expect(Math.abs((f!.evidence.predicted_period_s as number) / 65 - 1)).toBeLessThan(0.2);
+    expect(f!.evidence.method).toBe('stick_slip_balance');
     expect(f!.advice).toMatch(/more integral action/);
     expect(f!.advice).toMatch(/fix is the valve/);
   });
@@ -34,7 +35,7 @@ describe('valve_stiction_cycle', () => {
     const band = valveBand(spec.actuator)!;
     const each = d.points.map((p) => {
       const loop = { plant: p.response!, gains: applyStructure(spec.loop.controller.structure, spec.loop.controller.gains), sampleTime: spec.loop.sampleTime, sensor: spec.sensor };
-      return stickSlipCycle(p.point.linear!, band, loop) ?? predictLimitCycle(stictionElement(band), (band.static + band.dynamic) / 2, loop);
+      return valveCycle(p.point.linear!, band, loop)?.cycle ?? null;
     });
     expect(each.length).toBe(3);
     const amps = each.map((c) => c!.outputAmplitude);
