@@ -51,5 +51,5 @@ export { halfRule } from './half-rule.js';
 export type { HalfRuleInput, HalfRuleResult, FirstOrderApprox, SecondOrderApprox } from './half-rule.js';
 export { openLoopStep, fitFopdt } from './step-fit.js';
 export type { StepResponse, FopdtFit } from './step-fit.js';
-export { characteristicSlope, describingFunction, predictLimitCycle, stictionElement, valveBand } from './stiction-cycle.js';
-export type { CycleLoop, ElementFactory, ElementStep, LimitCycle } from './stiction-cycle.js';
+export { characteristicSlope, describingFunction, predictLimitCycle, stickSlipCycle, stictionElement, valveBand, valveCycle } from './stiction-cycle.js';
+export type { CycleLoop, ElementFactory, ElementStep, LimitCycle, ValveCycle } from './stiction-cycle.js';

@@ -7,16 +7,11 @@
 import {
   characteristicSlope,
   describeMode,
-  findEquilibrium,
   fitFopdt,
   halfRule,
-  linearise,
-  loopMargins,
   openLoopStep,
   originTolerance,
-  plantFrequencyResponse,
   poleZeroSummary,
-  steadyStateAtInput,
   type FirstOrderApprox,
   type FopdtFit,
   type HalfRuleResult,
@@ -26,9 +21,21 @@ import {
 } from '../analysis/index.js';
 import { applyStructure } from '../control/index.js';
 import { compilePlant, plantUnits, withUnit } from '../model/index.js';
-import type { ActuatorSpec, GainSet, PlantSpec, TrialSpec } from '../model/types.js';
-import { buildLoop, describePoint, operatingPoints, pointFigures, preparePoints, worstMargins, type PreparedPoint } from '../loop/index.js';
-import { runTrial } from '../sim/index.js';
+import type { GainSet, PlantSpec, TrialSpec } from '../model/types.js';
+import {
+  buildLoop,
+  describePoint,
+  modelThroughValve,
+  operatingPoints,
+  pointAtTravel,
+  pointFigures,
+  preparePoints,
+  startOutput,
+  worstMargins,
+  type OperatingPoint as LoopPoint,
+  type OperatingPoints,
+} from '../loop/index.js';
+import { runTrial, valveInput, valveTravel } from '../sim/index.js';
 import type { LinearModel, PlantDynamics } from '../sim/types.js';
 import { controllerNoise } from './noise.js';
 import { flagValveCycle } from './valve-cycle.js';
@@ -114,30 +121,40 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   const u0Guess = spec.loop.trial.initialOutput ?? undefined;
   let yStart = NaN;
   try {
-    yStart = dyn.output(0, dyn.x0, u0Guess ?? 0, dyn.d0, dyn.params);
+    yStart = startOutput(dyn, u0Guess ?? 0);
   } catch {
     // reported below through the equilibrium search
   }
   const target = options.operatingPoint ?? trialOperatingPoint(spec.loop.trial, yStart).value;
   const source = options.operatingPoint !== undefined ? 'initial_setpoint' : trialOperatingPoint(spec.loop.trial, yStart).source;
-  const eqOptions = { uMin, uMax, u0: u0Guess };
   const flags: Flag[] = [];
   const notes: string[] = [];
 
-  // ---------------------------------------------------------------- operating point
-  let eq = safe(() => findEquilibrium(dyn, target, eqOptions));
+  // ---------------------------------------------------------------- operating points
+  // loop/'s operating points (check and the screen read the same): every level of the trial, each
+  // with its steady state and the model through the valve. The headline is the one at `target`.
+  const trialForPoints: TrialSpec =
+    options.operatingPoint !== undefined ? { ...spec.loop.trial, initialSetpoint: options.operatingPoint, events: [] } : spec.loop.trial;
+  const ops = safe(() => operatingPoints(spec, dyn, trialForPoints));
+  const pointAt = levelPoints(spec, dyn, ops);
+  const head = pointAt(target);
+  const eq = head?.equilibrium ?? null;
   const op: OperatingPoint = { setpoint: target, source, found: false, state: {}, input: null, message: null };
   let x: Float64Array | null = null;
   let u = NaN;
-  if (eq !== null && eq.ok) {
+  let model: LinearModel | null = null;
+  if (head !== null && eq !== null && eq.ok) {
     op.found = true;
-    op.input = eq.u;
-    dyn.stateNames.forEach((n, i) => (op.state[n] = eq!.ok ? (eq as { x: Float64Array }).x[i] : NaN));
+    // The actuator's steady value: the travel that delivers the plant input found.
+    op.input = valveTravel(actuator, eq.u);
+    dyn.stateNames.forEach((n, i) => (op.state[n] = eq.x[i]));
     x = eq.x;
     u = eq.u;
+    model = head.linear;
+    if (model === null && head.problem !== null) notes.push(head.problem);
   } else {
-    op.message = eq === null ? 'the operating-point search failed' : eq.message;
-    if (eq !== null && eq.reason === 'unreachable') {
+    op.message = eq === null ? 'the operating-point search failed' : eq.ok ? null : eq.message;
+    if (eq !== null && !eq.ok && eq.reason === 'unreachable') {
       flags.push({
         kind: 'unreachable_setpoint',
         severity: 'severe',
@@ -145,7 +162,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
         advice:
           'No steady state inside the actuator range gives this output: the actuator cannot hold the setpoint. Change the setpoint or the actuator limits, or check the model; the controller will sit at a limit and wind up.',
       });
-    } else if (eq !== null && eq.reason === 'singular') {
+    } else if (eq !== null && !eq.ok && eq.reason === 'singular') {
       flags.push({
         kind: 'no_response',
         severity: 'severe',
@@ -157,17 +174,21 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
     }
     // Fall back to a steady state at the initial actuator value for the linear analysis.
     const uf = u0Guess ?? (Number.isFinite(range) ? uMin + 0.5 * range : 0);
-    const ss = safe(() => steadyStateAtInput(dyn, uf, eqOptions));
-    if (ss !== null) {
-      x = ss.x;
-      u = uf;
-      notes.push(`linear analysis made at the steady state with the actuator at ${withUnit(fmt(uf), plantUnits(spec).actuator)} (output ${withUnit(fmt(ss.y), plantUnits(spec).output)}) instead`);
-    } else if (dyn.linear !== null) {
+    const tp = safe(() => pointAtTravel(spec, dyn, uf));
+    if (tp !== null) {
+      x = tp.state;
+      u = tp.input;
+      model = tp.linear;
+      notes.push(`linear analysis made at the steady state with the actuator at ${withUnit(fmt(uf), plantUnits(spec).actuator)} (output ${withUnit(fmt(tp.output), plantUnits(spec).output)}) instead`);
+    } else if (head !== null && head.linear !== null) {
+      // A linear kind: its model holds everywhere.
       x = new Float64Array(dyn.nx);
       u = 0;
+      model = head.linear;
     } else {
       x = Float64Array.from(dyn.x0);
-      u = uf;
+      u = valveInput(actuator, uf);
+      model = safe(() => modelThroughValve(spec, dyn, Float64Array.from(dyn.x0), u, dyn.d0).linear);
       notes.push('linear analysis made at the initial state, which is not a steady state');
     }
   }
@@ -176,16 +197,15 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   d.flags = flags;
   d.notes = notes;
 
-  // ---------------------------------------------------------------- linearisation
-  const lin = linearise(dyn, x, u, { inputScale: Number.isFinite(range) ? range : Math.max(Math.abs(u), 1) });
-  if (!lin.ok) {
-    flags.push({ kind: 'model_problem', severity: 'severe', evidence: { input: num(u) }, advice: lin.message });
+  // ---------------------------------------------------------------- the linear model there
+  if (model === null) {
+    flags.push({ kind: 'model_problem', severity: 'severe', evidence: { input: num(u) }, advice: head?.problem ?? 'the plant could not be linearised' });
     finishTrial(d, spec, dyn, gains, options);
     return d;
   }
-  const model = lin.model;
   d.linear = model;
-  d.exact = lin.exact;
+  // Exact: a linear kind behind a valve whose characteristic is linear (the lag is linear too).
+  d.exact = dyn.linear !== null && (actuator.characteristic ?? 'linear') === 'linear';
   let pz: PoleZeroSummary;
   try {
     pz = poleZeroSummary(model);
@@ -235,10 +255,14 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   const unstablePoles = pz.poles.filter((p) => p.re > tol0);
   const stableSelfRegulating = unstablePoles.length === 0 && pz.integrators === 0;
   if (spec.model.type === 'ode' && stableSelfRegulating && op.found) {
-    const fit = stepFit(dyn, x, u, range, uMin, uMax, pz, model);
+    // The step is made on the plant's own input (the valve's characteristic maps the travel limits).
+    const inMin = valveInput(actuator, uMin);
+    const inMax = valveInput(actuator, uMax);
+    const fit = stepFit(dyn, x, u, inMax - inMin, inMin, inMax, pz, model);
     d.stepFit = fit;
     if (fit !== null && fit.relativeRmsError < 0.1 && fit.timeConstant > 0) {
-      d.fopdt = withLoopElements(fit, sensor.delay, h, sensor.filterTime);
+      const slope = characteristicSlope(actuator, valveTravel(actuator, u));
+      d.fopdt = withLoopElements(fit, sensor.delay, h, [sensor.filterTime, actuator.lag ?? 0], slope);
       d.fopdtSource = 'step_fit';
     } else if (fit !== null) {
       notes.push(`the first-order fit to the simulated step is poor (rms error ${fmt(100 * fit.relativeRmsError, 2)} % of the change); the half-rule model is used`);
@@ -249,9 +273,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   try {
     // Margins at every operating point of the trial (loop/'s operating points, as check and the
     // screen read them); the reported set is the worst of each figure over the points.
-    const trialForPoints: TrialSpec =
-      options.operatingPoint !== undefined ? { ...spec.loop.trial, initialSetpoint: options.operatingPoint, events: [] } : spec.loop.trial;
-    const ops = operatingPoints(spec, dyn, trialForPoints);
+    if (ops === null) throw new Error('the operating points could not be found');
     for (const n of ops.notes) notes.push(n);
     d.points = preparePoints(ops.points, spec);
     const figures = pointFigures(d.points, gains, spec);
@@ -296,10 +318,10 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   }
   // A valve characteristic other than linear makes any model nonlinear between controller and plant.
   const curved = (spec.actuator.characteristic ?? 'linear') !== 'linear';
-  if ((spec.model.type === 'ode' || curved) && Number.isFinite(range)) flagNonlinear(flags, dyn, uMin, range, eqOptions, spec.actuator);
+  if ((spec.model.type === 'ode' || curved) && Number.isFinite(range)) flagNonlinear(flags, spec, dyn, uMin, range);
   flagSampling(flags, h, d.margins, d.fopdt, gains);
   flagNoise(flags, gains, h, sensor.noiseStd, range);
-  flagSetpoints(flags, spec, dyn, target, eqOptions);
+  flagSetpoints(flags, spec, target, pointAt);
   const valveCycle = flagValveCycle(spec, d.points, gains);
   if (valveCycle !== null) flags.push(valveCycle);
 
@@ -323,11 +345,36 @@ function safe<T>(f: () => T): T | null {
   }
 }
 
-/** Add the sensor delay, h/2 and the sensor filter (half rule on the two lags) to a fitted plant FOPDT. */
-function withLoopElements(fit: FirstOrderApprox, sensorDelay: number, h: number, filterTime: number): FirstOrderApprox {
-  const big = Math.max(fit.timeConstant, filterTime);
-  const small = Math.min(fit.timeConstant, filterTime);
-  return { gain: fit.gain, timeConstant: big + small / 2, delay: fit.delay + sensorDelay + 0.5 * h + small / 2 };
+/**
+ * loop/'s operating point at a setpoint level: the trial's own point there when it has one (with
+ * the loads at the start), else loop's search on a trial that holds only that level (a linear
+ * kind's one point stands for every level's model, its steady state is the first level's).
+ */
+function levelPoints(spec: PlantSpec, dyn: PlantDynamics, ops: OperatingPoints | null): (level: number) => LoopPoint | null {
+  const own = new Map<number, LoopPoint>();
+  for (const p of ops?.points ?? []) {
+    if (p.allLevels || own.has(p.level)) continue;
+    if (p.disturbances.every((v, i) => v === dyn.d0[i])) own.set(p.level, p);
+  }
+  return (level) => {
+    const hit = own.get(level);
+    if (hit !== undefined) return hit;
+    const only: TrialSpec = { ...spec.loop.trial, initialSetpoint: level, events: [] };
+    return safe(() => operatingPoints(spec, dyn, only).points[0]) ?? null;
+  };
+}
+
+/**
+ * The fitted plant FOPDT as the controller sees it: the gain times the valve characteristic's slope,
+ * plus the sensor delay, h/2, and the sensor filter and valve lag folded in by the half rule
+ * (Skogestad 2003: the largest lag kept, half the second added to it and half to the delay, every
+ * smaller one to the delay).
+ */
+function withLoopElements(fit: FirstOrderApprox, sensorDelay: number, h: number, lags: readonly number[], slope: number): FirstOrderApprox {
+  const all = [fit.timeConstant, ...lags.filter((l) => l > 0)].sort((a, b) => b - a);
+  const second = all.length > 1 ? all[1] : 0;
+  const rest = all.slice(2).reduce((a, b) => a + b, 0);
+  return { gain: fit.gain * slope, timeConstant: all[0] + second / 2, delay: fit.delay + sensorDelay + 0.5 * h + second / 2 + rest };
 }
 
 function stepFit(
@@ -467,26 +514,26 @@ function flagDeadTime(
 }
 
 /**
- * Gain and slowest time constant of the linearisation at steady states with u at 10, 50 and 90 % of
- * its range; the gain includes the valve characteristic's local slope there (the plant sees the
- * flow, the controller moves the travel).
+ * Gain and slowest time constant of the loop's model (loop/'s pointAtTravel: the plant at the steady
+ * state behind the valve's lag and local slope) with the valve at 10, 50 and 90 % of its travel;
+ * the gain includes the characteristic's slope there (the plant sees the flow, the controller
+ * moves the travel).
  */
-function flagNonlinear(flags: Flag[], dyn: PlantDynamics, uMin: number, range: number, eqOptions: { uMin: number; uMax: number }, actuator: ActuatorSpec): void {
+function flagNonlinear(flags: Flag[], spec: PlantSpec, dyn: PlantDynamics, uMin: number, range: number): void {
   const inputs: number[] = [];
   const gainsAt: number[] = [];
   const taus: number[] = [];
   for (const share of [0.1, 0.5, 0.9]) {
-    const uu = uMin + share * range;
-    const ss = safe(() => steadyStateAtInput(dyn, uu, eqOptions));
-    if (ss === null) continue;
-    const lin = linearise(dyn, ss.x, uu, { inputScale: range });
-    if (!lin.ok) continue;
-    const pz = safe(() => poleZeroSummary(lin.model));
+    const travel = uMin + share * range;
+    const at = safe(() => pointAtTravel(spec, dyn, travel));
+    if (at === null || at.linear === null) continue;
+    const model = at.linear;
+    const pz = safe(() => poleZeroSummary(model));
     if (pz === null || pz.identicallyZero || !Number.isFinite(pz.staticGain)) continue;
     let slowest = Infinity;
     for (const p of pz.poles) slowest = Math.min(slowest, Math.abs(p.re) > 0 ? Math.abs(p.re) : Infinity);
-    inputs.push(uu);
-    gainsAt.push(Math.abs(pz.staticGain) * characteristicSlope(actuator, uu));
+    inputs.push(travel);
+    gainsAt.push(Math.abs(pz.staticGain));
     taus.push(Number.isFinite(slowest) ? 1 / slowest : NaN);
   }
   if (gainsAt.length < 2) return;
@@ -560,13 +607,13 @@ function flagNoise(flags: Flag[], g: GainSet, h: number, noiseStd: number, range
   });
 }
 
-function flagSetpoints(flags: Flag[], spec: PlantSpec, dyn: PlantDynamics, target: number, eqOptions: { uMin: number; uMax: number }): void {
+function flagSetpoints(flags: Flag[], spec: PlantSpec, target: number, pointAt: (level: number) => LoopPoint | null): void {
   const bad: number[] = [];
   let reach: [number | null, number | null] = [null, null];
   for (const r of trialSetpoints(spec.loop.trial)) {
     if (r === target) continue;
-    const eq = safe(() => findEquilibrium(dyn, r, eqOptions));
-    if (eq !== null && !eq.ok && eq.reason === 'unreachable') {
+    const eq = pointAt(r)?.equilibrium;
+    if (eq !== undefined && !eq.ok && eq.reason === 'unreachable') {
       bad.push(r);
       reach = eq.reachable;
     }

@@ -15,7 +15,7 @@
  * - The steady state is analysis' findEquilibrium with the actuator limits; a linear model kind
  *   is the same at every level, so it has one point that stands for all.
  */
-import { characteristicSlope, findEquilibrium, linearise } from '../analysis/index.js';
+import { characteristicSlope, findEquilibrium, linearise, steadyStateAtInput, type EquilibriumResult } from '../analysis/index.js';
 import type { PlantSpec, TrialSpec } from '../model/types.js';
 import { valveInput, valveTravel, type LinearModel, type PlantDynamics } from '../sim/index.js';
 import { throughValve, valveShapesLoop } from './valve-model.js';
@@ -39,8 +39,14 @@ export interface OperatingPoint extends TrialLevel {
   allLevels: boolean;
   /** Steady state, or null when none was found. */
   state: Float64Array | null;
-  /** Steady actuator input, or null when none was found. */
+  /** Steady plant input (after the valve's characteristic), or null when none was found. */
   input: number | null;
+  /**
+   * The steady-state search at this level (analysis' findEquilibrium, with the travel limits mapped
+   * through the valve's characteristic): its reason and the reachable outputs when it failed. For
+   * a linear kind's one point, the search at the first level.
+   */
+  equilibrium: EquilibriumResult;
   /** The plant linearised here (exact for linear kinds); null when it could not be made. */
   linear: LinearModel | null;
   /** Why there is no steady state or no linear model here, else null. */
@@ -113,10 +119,15 @@ export function operatingPoints(spec: PlantSpec, dyn: PlantDynamics, trial: Tria
   let levels = trialLevels(trial, dyn.disturbanceNames, dyn.d0, startOutput(dyn, u0));
   const valve = spec.actuator;
   const shaped = valveShapesLoop(valve);
+  // In plant input: the characteristic maps the travel limits to input limits (settled-start.ts).
+  const search = (lv: TrialLevel, x0: Float64Array, u0: number | undefined): EquilibriumResult =>
+    findEquilibrium(dyn, lv.level, { uMin: valveInput(valve, valve.min), uMax: valveInput(valve, valve.max), d: lv.disturbances, x0, u0 });
   if (dyn.linear !== null && !shaped) {
     const first = levels[0];
+    // The model stands for every level; the steady state is the first level's (diagnose reports it).
+    const eq = search(first, dyn.x0, trial.initialOutput ?? undefined);
     return {
-      points: [{ ...first, allLevels: true, state: null, input: null, linear: dyn.linear, problem: null }],
+      points: [{ ...first, allLevels: true, state: eq.ok ? eq.x : null, input: eq.ok ? eq.u : null, equilibrium: eq, linear: dyn.linear, problem: null }],
       notes,
     };
   }
@@ -124,43 +135,63 @@ export function operatingPoints(spec: PlantSpec, dyn: PlantDynamics, trial: Tria
     notes.push(`the trial visits ${levels.length} operating points; the first ${MAX_OPERATING_POINTS} are evaluated`);
     levels = levels.slice(0, MAX_OPERATING_POINTS);
   }
-  const span = spec.actuator.max - spec.actuator.min;
-  const inputScale = Number.isFinite(span) && span > 0 ? span : undefined;
   const points: OperatingPoint[] = [];
   let guessX: Float64Array = dyn.x0;
   let guessU: number | undefined = trial.initialOutput ?? undefined;
   for (const lv of levels) {
-    // In plant input: the characteristic maps the travel limits to input limits (settled-start.ts).
-    const eq = findEquilibrium(dyn, lv.level, {
-      uMin: valveInput(valve, valve.min),
-      uMax: valveInput(valve, valve.max),
-      d: lv.disturbances,
-      x0: guessX,
-      u0: guessU,
-    });
+    const eq = search(lv, guessX, guessU);
     if (!eq.ok) {
-      points.push({ ...lv, allLevels: false, state: null, input: null, linear: null, problem: eq.message });
+      points.push({ ...lv, allLevels: false, state: null, input: null, equilibrium: eq, linear: null, problem: eq.message });
       continue;
     }
     // The previous level's steady state is a good first guess for the next one.
     guessX = eq.x;
     guessU = eq.u;
-    const lin =
-      dyn.linear !== null
-        ? ({ ok: true, model: dyn.linear } as const)
-        : linearise(dyn, eq.x, eq.u, { ...(inputScale !== undefined ? { inputScale } : {}), d: lv.disturbances });
-    // The controller moves the travel: the valve's lag and local slope sit before the plant.
-    const slope = characteristicSlope(valve, valveTravel(valve, eq.u));
-    points.push({
-      ...lv,
-      allLevels: false,
-      state: eq.x,
-      input: eq.u,
-      linear: lin.ok ? throughValve(lin.model, valve.lag ?? 0, slope) : null,
-      problem: lin.ok ? null : `the plant could not be linearised there: ${lin.message}`,
-    });
+    const lin = modelThroughValve(spec, dyn, eq.x, eq.u, lv.disturbances);
+    points.push({ ...lv, allLevels: false, state: eq.x, input: eq.u, equilibrium: eq, ...lin });
   }
   return { points, notes };
+}
+
+/**
+ * The linear model the controller sees at steady state (x, plant input u): the plant's (exact for
+ * a linear kind, else linearised) behind the valve's lag and its characteristic's local slope at
+ * the travel that delivers u (the controller moves the travel). The one assembly of a point's model.
+ */
+export function modelThroughValve(spec: PlantSpec, dyn: PlantDynamics, x: Float64Array, u: number, d: Float64Array): { linear: LinearModel | null; problem: string | null } {
+  const valve = spec.actuator;
+  const span = valve.max - valve.min;
+  const inputScale = Number.isFinite(span) && span > 0 ? span : undefined;
+  const lin = dyn.linear !== null ? ({ ok: true, model: dyn.linear } as const) : linearise(dyn, x, u, { ...(inputScale !== undefined ? { inputScale } : {}), d });
+  if (!lin.ok) return { linear: null, problem: `the plant could not be linearised there: ${lin.message}` };
+  return { linear: throughValve(lin.model, valve.lag ?? 0, characteristicSlope(valve, valveTravel(valve, u))), problem: null };
+}
+
+/** A steady state with the valve held at a travel, and the model there (see `pointAtTravel`). */
+export interface TravelPoint {
+  /** Travel, actuator units. */
+  travel: number;
+  /** The plant input the valve delivers there. */
+  input: number;
+  state: Float64Array;
+  /** Plant output at the steady state. */
+  output: number;
+  /** The model through the valve (as at an operating point); null when it could not be made. */
+  linear: LinearModel | null;
+  problem: string | null;
+}
+
+/**
+ * The steady state with the valve resting at `travel` (analysis' steadyStateAtInput on the plant
+ * input the characteristic delivers there) and the model the controller sees there, made as at an
+ * operating point; null when the plant has no steady state at that input (e.g. integrating).
+ */
+export function pointAtTravel(spec: PlantSpec, dyn: PlantDynamics, travel: number, d: Float64Array = dyn.d0): TravelPoint | null {
+  const valve = spec.actuator;
+  const input = valveInput(valve, travel);
+  const ss = steadyStateAtInput(dyn, input, { uMin: valveInput(valve, valve.min), uMax: valveInput(valve, valve.max), d });
+  if (ss === null) return null;
+  return { travel, input, state: ss.x, output: ss.y, ...modelThroughValve(spec, dyn, ss.x, input, d) };
 }
 
 /** A short name of an operating point for reports: "7 bar" style, with the loads when not the defaults. */

@@ -15,7 +15,7 @@
  * with the batch generator.
  */
 import type { ActuatorSpec } from '../model/types.js';
-import { actuatorCommandLaw, actuatorPathIntegral, stictionLaw, valveStepLaw, type ValveShape } from './element-laws.js';
+import { actuatorCommandLaw, actuatorPathIntegral, stictionLaw, valvePerStep, valveSampleLaw, valveStepLaw, type ValveShape } from './element-laws.js';
 import { compileElementLaw } from './generate-stepper.js';
 
 /**
@@ -28,15 +28,21 @@ export function lagCoefficients(lag: number, h: number): { la: number; lm: numbe
   return { la, lm: (lag / h) * (1 - la) };
 }
 
-/** The shape of the valve after the limits, and its band: backlash w is stiction w/2, w/2. */
+/** The stiction/backlash band the engine runs (backlash w is stiction w/2, w/2); null when it has none. */
+export function valveBand(spec: ActuatorSpec): { static: number; dynamic: number } | null {
+  if (spec.backlash !== undefined && spec.backlash > 0) return { static: spec.backlash / 2, dynamic: spec.backlash / 2 };
+  return spec.stiction !== undefined && spec.stiction.static > 0 ? spec.stiction : null;
+}
+
+/** The shape of the valve after the limits, and its band (`valveBand`). */
 export function valveOf(spec: ActuatorSpec): { shape: ValveShape; fs: number; fd: number; aspan: number; rgl: number } {
-  const band = spec.backlash !== undefined && spec.backlash > 0 ? { static: spec.backlash / 2, dynamic: spec.backlash / 2 } : spec.stiction;
-  const sticky = band !== undefined && band.static > 0;
+  const band = valveBand(spec);
+  const sticky = band !== null;
   const characteristic = spec.characteristic ?? 'linear';
   return {
     shape: { sticky, lagged: (spec.lag ?? 0) > 0, characteristic },
-    fs: sticky ? band.static : 0,
-    fd: sticky ? band.dynamic : 0,
+    fs: band !== null ? band.static : 0,
+    fd: band !== null ? band.dynamic : 0,
     aspan: spec.max - spec.min,
     rgl: Math.log(spec.rangeability ?? 50),
   };
@@ -50,9 +56,7 @@ export function valveInput(spec: ActuatorSpec, travel: number): number {
   if ((spec.characteristic ?? 'linear') === 'linear' || !Number.isFinite(spec.max - spec.min)) return travel;
   const a = new Actuator({ min: spec.min, max: spec.max, rateLimit: Infinity, characteristic: spec.characteristic, rangeability: spec.rangeability }, travel);
   a.command(travel, 1);
-  const out = new Float64Array(1);
-  a.fillSteps(out, 0, 1, 1);
-  return out[0];
+  return a.input;
 }
 
 /**
@@ -83,6 +87,12 @@ export class Actuator {
   end = 0;
   /** Stem position after stiction/backlash (= `end` without them), held over the sample. */
   stem = 0;
+  /** The plant input while the valve rests at the stem: its characteristic there (= `stem` when linear). */
+  input = 0;
+  /** Equal percentage: input − min at the stem (element-laws.ts valveSampleLaw). */
+  private cb = 0;
+  /** The stem `input` and `cb` belong to (NaN: not worked out yet). */
+  private xc = NaN;
   /** Lag output at the end of the last integration step (the valve position). */
   private xv = 0;
   /** True when the last command hit a position or rate limit. */
@@ -95,13 +105,17 @@ export class Actuator {
   private readonly commandLaw: (s: Actuator, uc: number, ts: number) => void;
   /** Stiction on the command (element-laws.ts), null without a band. */
   private readonly stickLaw: ((s: Actuator) => void) | null;
-  /** Lag and characteristic over the steps of a sample (element-laws.ts), null when neither. */
+  /** The characteristic at the stem, once per sample (element-laws.ts), null when linear. */
+  private readonly sampleLaw: ((s: Actuator) => void) | null;
+  /** Lag and characteristic over the steps of a sample (element-laws.ts), null when the input is held. */
   private readonly stepLaw: ((s: Actuator, out: Float64Array, off: number, n: number, la: number, lm: number) => void) | null;
   private readonly fs: number;
   private readonly fd: number;
   private readonly aspan: number;
   private readonly rgl: number;
+  private readonly rga: number;
   private readonly lag: number;
+  private readonly lagged: boolean;
   private lagStep = NaN;
   private la = 0;
   private lm = 0;
@@ -114,25 +128,29 @@ export class Actuator {
     this.min = spec.min;
     this.max = spec.max;
     this.rateLimit = spec.rateLimit;
-    this.start = this.end = this.stem = this.xv = this.clamp(initial);
+    this.start = this.end = this.stem = this.input = this.xv = this.clamp(initial);
     const valve = valveOf(spec);
     this.fs = valve.fs;
     this.fd = valve.fd;
     this.aspan = valve.aspan;
     this.rgl = valve.rgl;
+    this.rga = valve.rgl / valve.aspan;
     this.lag = spec.lag ?? 0;
+    this.lagged = valve.shape.lagged;
     this.stickLaw = valve.shape.sticky
       ? compileElementLaw(['s'], `const end = s.end, fs = s.fs, fd = s.fd; let xs = s.stem;\n${stictionLaw()}\ns.stem = xs; s.rampTime = 0;`)
       : null;
-    const stepText = valveStepLaw(valve.shape);
-    this.stepLaw =
-      stepText === ''
+    this.sampleLaw =
+      valve.shape.characteristic === 'linear'
         ? null
-        : compileElementLaw(
-            ['s', 'out', 'off', 'n', 'la', 'lm'],
-            `const amin = s.min, aspan = s.aspan, rgl = s.rgl; let xv = s.xv;\n` +
-              `for (let i = 0; i < n; i++) { let u = out[off + i];\n${stepText}\nout[off + i] = u; }\ns.xv = xv;`,
-          );
+        : compileElementLaw(['s'], `const amin = s.min, aspan = s.aspan, rgl = s.rgl, xs = s.stem; let cb = s.cb, ui = s.input, xc = s.xc;\n${valveSampleLaw(valve.shape)}\ns.cb = cb; s.input = ui; s.xc = xc;`);
+    this.stepLaw = !valvePerStep(valve.shape, this.rateLimit !== Infinity)
+      ? null
+      : compileElementLaw(
+          ['s', 'out', 'off', 'n', 'la', 'lm'],
+          `const amin = s.min, aspan = s.aspan, cb = s.cb, rga = s.rga, xs = s.stem; let xv = s.xv;\n` +
+            `for (let i = 0; i < n; i++) { let u = out[off + i];\n${valveStepLaw(valve.shape)}\nout[off + i] = u; }\ns.xv = xv;`,
+        );
     this.commandLaw = compileElementLaw(
       ['s', 'uc', 'ts'],
       'const amin = s.min, amax = s.max, rate = s.rateLimit;\n' +
@@ -148,22 +166,27 @@ export class Actuator {
     return v < this.min ? this.min : v > this.max ? this.max : v;
   }
 
-  /** True when the plant input varies within the current sample (a rate ramp or the valve after the stem). */
+  /** True when the plant input varies within the current sample (a rate ramp, or the valve's lag); else it is `input`. */
   get ramping(): boolean {
-    return this.rampTime > 0 || this.stepLaw !== null;
+    return this.rampTime > 0 || this.lagged;
   }
 
-  /** Take the command for a sample of length `ts`; sets `end`, `stem` and `saturated` (element-laws.ts). */
+  /** Take the command for a sample of length `ts`; sets `end`, `stem`, `input` and `saturated` (element-laws.ts). */
   command(uc: number, ts: number): void {
     this.commandLaw(this, uc, ts);
     if (this.stickLaw !== null) this.stickLaw(this);
     else this.stem = this.end;
+    if (this.sampleLaw !== null) this.sampleLaw(this);
+    else this.input = this.stem;
   }
 
   /** out[off + i] = mean plant input over integration step i of the sample (n steps of h). */
   fillSteps(out: Float64Array, off: number, n: number, h: number): void {
+    const law = this.stepLaw;
     if (this.rampTime === 0) {
-      for (let i = 0; i < n; i++) out[off + i] = this.stem;
+      // Held: the stem for the per-step law to shape, else already the plant input.
+      const v = law === null ? this.input : this.stem;
+      for (let i = 0; i < n; i++) out[off + i] = v;
     } else {
       let prev = 0;
       const path = this.pathLaw;
@@ -173,7 +196,6 @@ export class Actuator {
         prev = next;
       }
     }
-    const law = this.stepLaw;
     if (law === null) return;
     if (h !== this.lagStep) {
       // Once per step length, not per sample: the inner loop allocates nothing.

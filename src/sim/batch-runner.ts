@@ -299,6 +299,7 @@ function prepare(
     lm: lagC.lm,
     aspan: valve.aspan,
     rgl: valve.rgl,
+    rga: valve.rgl / valve.aspan,
   };
   BATCH_FIELDS.forEach((f, i) => {
     numbers[i] = values[f];
@@ -312,6 +313,7 @@ function prepare(
   const state = new Float64Array(widths.z);
   for (const f of ['start', 'end', 'xs', 'xv'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
   state[BATCH_STATE.indexOf('uPlant')] = uIn;
+  state[BATCH_STATE.indexOf('xc')] = NaN;
   state.set(start.x, BATCH_STATE.length);
   const shape = {
     inputDelay: plant.inputDelay > 0,

@@ -28,7 +28,7 @@
  * before `new Function` sees them (as for the one-loop stepper).
  */
 import { MATH_HELPERS, type AntiWindup, type IntegratorName } from '../model/index.js';
-import { actuatorCommandLaw, actuatorPathIntegral, pidInitLaw, pidTrackLaw, pidUpdateLaw, sensorLaw, stictionLaw, valveStepLaw, type PidNames, type ValveShape } from './element-laws.js';
+import { actuatorCommandLaw, actuatorPathIntegral, pidInitLaw, pidTrackLaw, pidUpdateLaw, sensorLaw, stictionLaw, valvePerStep, valveSampleLaw, valveStepLaw, type PidNames, type ValveShape } from './element-laws.js';
 import { checkSource, integratorStages, INTEGRATOR_STAGES, prepareSources } from './generate-stepper.js';
 import type { PlantDynamics } from './types.js';
 
@@ -67,11 +67,12 @@ export const BATCH_FIELDS = [
   /** Stiction bands (backlash w: w/2, w/2). */
   'fs',
   'fd',
-  /** Valve lag weights for the step h (actuator.ts lagCoefficients), travel, ln rangeability. */
+  /** Valve lag weights for the step h (actuator.ts lagCoefficients), travel, ln rangeability, ln rangeability / travel. */
   'la',
   'lm',
   'aspan',
   'rgl',
+  'rga',
 ] as const;
 
 /**
@@ -101,6 +102,12 @@ export const BATCH_STATE = [
   'xs',
   /** Valve lag output. */
   'xv',
+  /** The plant input while the valve rests at the stem (element-laws.ts valveSampleLaw). */
+  'ui',
+  /** Equal percentage: ui − amin. */
+  'cb',
+  /** The stem ui and cb belong to (NaN at the start). */
+  'xc',
 ] as const;
 
 /** Trace channels per copy in the `T` argument: r (read), y, ym, uc, u, sat, then d_0 … (read). */
@@ -298,11 +305,13 @@ export function batchSource(
   a.push('let sat = false;', actuatorCommandLaw(shape.rateLimited));
   // Stiction/backlash on the limited command (actuator.ts): the stem held over the sample.
   a.push(shape.valve.sticky ? `${stictionLaw()} rampTime = 0;` : 'xs = end;');
+  // The characteristic at the held stem, once per sample.
+  a.push(shape.valve.characteristic === 'linear' ? 'ui = xs;' : `{ let cb = Z[zo + ${S('cb')}]; ${valveSampleLaw(shape.valve)} Z[zo + ${S('cb')}] = cb; }`);
   // Anti-windup with what the actuator delivered (the controller's track step).
   a.push(pidTrackLaw(PID_LOCALS, shape.antiWindup, 'end'));
   a.push('T[to + 1][k] = y; T[to + 2][k] = ym; T[to + 3][k] = uc; T[to + 4][k] = xs; T[to + 5][k] = sat ? 1 : 0;');
   a.push(
-    BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'uPlant' && f !== 'prev' && f !== 'xv')
+    BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'uPlant' && f !== 'prev' && f !== 'xv' && f !== 'cb')
       .map((f) => `Z[zo + ${S(f)}] = ${f};`)
       .join(' '),
     `Z[zo + ${S('prev')}] = 0;`,
@@ -314,7 +323,7 @@ export function batchSource(
     const text = a.join('\n');
     const used = (name: string): boolean => new RegExp(`(^|[^\\w$.])${name.replace('$', '\\$')}([^\\w$]|$)`).test(text);
     const fields = BATCH_FIELDS.map((f, i) => [f === 'c' ? 'cw' : f, i] as const).filter(([f]) => used(f));
-    const state = BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'prev' && f !== 'xv').filter(used);
+    const state = BATCH_STATE.filter((f) => f !== 'ih' && f !== 'sh' && f !== 'prev' && f !== 'xv' && f !== 'cb').filter(used);
     const decl: string[] = [];
     if (fields.length > 0) decl.push(`const ${fields.map(([f, i]) => `${f} = P[o + ${i}]`).join(', ')};`);
     if (state.length > 0) decl.push(`let ${state.map((f) => `${f} = Z[zo + ${S(f)}]`).join(', ')};`);
@@ -338,7 +347,9 @@ export function batchSource(
     if (xs.length > 0) pre.push(`let ${xs.join(', ')};`);
   }
   const input: string[] = [`for (let c = 0; c < ${K}; c++) {`, `const o = c * ${widths.p}, zo = c * ${widths.z};`];
-  input.push(`let u = Z[zo + ${S('xs')}];`);
+  const perStep = valvePerStep(shape.valve, shape.rateLimited);
+  // Held over the sample: the plant input itself, or the stem the per-step valve law shapes.
+  input.push(`let u = Z[zo + ${S(perStep ? 'xs' : 'ui')}];`);
   if (shape.rateLimited) {
     // Actuator.fillSteps: the mean of the ramp-then-hold path over step $i.
     input.push(
@@ -348,14 +359,12 @@ export function batchSource(
         `u = ($nx - Z[zo + ${S('prev')}]) / h; Z[zo + ${S('prev')}] = $nx; }`,
     );
   }
-  const valveStep = valveStepLaw(shape.valve);
-  if (valveStep !== '') {
+  if (perStep) {
     // Actuator.fillSteps: lag and characteristic of the step.
-    input.push(
-      `{ const amin = P[o + ${F('amin')}], aspan = P[o + ${F('aspan')}], rgl = P[o + ${F('rgl')}], la = P[o + ${F('la')}], lm = P[o + ${F('lm')}]; let xv = Z[zo + ${S('xv')}];`,
-      valveStep,
-      `Z[zo + ${S('xv')}] = xv; }`,
-    );
+    const law = valveStepLaw(shape.valve);
+    const reads = ['amin', 'aspan', 'rga', 'la', 'lm'].filter((f) => law.includes(f)).map((f) => `${f} = P[o + ${F(f as (typeof BATCH_FIELDS)[number])}]`);
+    reads.push(`xs = Z[zo + ${S('xs')}]`, `cb = Z[zo + ${S('cb')}]`);
+    input.push(`{ const ${reads.join(', ')}; let xv = Z[zo + ${S('xv')}];`, law, `Z[zo + ${S('xv')}] = xv; }`);
   }
   if (shape.inputDelay) {
     input.push(pushLine('B[2 * c]', `zo + ${S('ih')}`, 'u'));

@@ -29,7 +29,7 @@ export { checkBudget, estimateBudget, DEFAULT_BUDGET, HARD_LIMITS, SECONDS_PER_S
 export { plantBudget } from './plant-budget.js';
 export type { BudgetRefusal, PlantBudgetOptions } from './plant-budget.js';
 export type { BudgetCause, BudgetEstimate, BudgetExcess, BudgetLimits, RunSize } from './budget.js';
-export { Actuator, valveInput, valveTravel } from './actuator.js';
+export { Actuator, valveBand, valveInput, valveTravel } from './actuator.js';
 export { Sensor, sensorFilterCoefficients } from './sensor.js';
 export { createTrace, TraceRing } from './trace.js';
 export type { TraceChannel } from './trace.js';
@@ -40,7 +40,7 @@ export { eventSchedule, trialRows, sampleIndexAt, SAMPLE_EPS } from './event-sch
 export type { EventSchedule, ScheduledEvent } from './event-schedule.js';
 export type { TrialOptions } from './run-trial.js';
 export { loopStart } from './start-state.js';
-export { pidInitLaw, pidUpdateLaw, pidTrackLaw } from './element-laws.js';
+export { pidInitLaw, pidUpdateLaw, pidTrackLaw, EXP_SERIES_LIMIT } from './element-laws.js';
 export type { PidNames } from './element-laws.js';
 export { compileElementLaw } from './generate-stepper.js';
 export { decimateMinMax } from './decimate.js';

@@ -371,8 +371,8 @@ export class Simulation {
     const inLine = this.inputLine;
     const outSeq = this.sensorLine !== null;
     if (inLine === null && !act.ramping) {
-      this.stepper(false, outSeq)(x, this.p, this.d, act.stem, this.us, 0, this.ys, 0, t, h, n);
-      this.uPlant = act.stem;
+      this.stepper(false, outSeq)(x, this.p, this.d, act.input, this.us, 0, this.ys, 0, t, h, n);
+      this.uPlant = act.input;
     } else {
       const us = this.us;
       act.fillSteps(us, 0, n, h);

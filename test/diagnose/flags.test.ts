@@ -268,6 +268,34 @@ describe('nonlinear plants', () => {
     expect(kinds(d)).not.toContain('unstable');
   });
 
+  it('the tank behind an equal-percentage valve (R = 20): plant gain and valve slope both read at the travel (gain ratio R^1.6, time constants R^0.8)', () => {
+    // Travel f delivers plant input R^(f−1); the tank's gain 8·u and time constant ∝ u at that
+    // input, times the valve's slope ln R·R^(f−1): between 10 and 90 % travel the plant's gain and
+    // time constant change by R^0.8 and the loop's gain by R^0.8·R^0.8. Reading the plant at an
+    // input equal to the travel (as before) gave 9·R^0.8 = 98.8 instead of R^1.6 = 120.7.
+    const spec = tankModel(1.3);
+    const d = diagnosePlant({ ...spec, actuator: { ...spec.actuator, characteristic: 'equal_percentage', rangeability: 20 } });
+    const f = flag(d, 'nonlinear')!;
+    expect(f).toBeDefined();
+    expectClose(f.evidence.gain_ratio as number, 20 ** 1.6, { rel: 1e-5 });
+    expectClose(f.evidence.time_constant_ratio as number, 20 ** 0.8, { rel: 1e-5 });
+  });
+
+  it('the headline model carries the valve: its lag as a pole at −1/T and its slope in the static gain', () => {
+    // 2/(10 s + 1) behind a valve with a 4 s lag and an equal-percentage characteristic (R = 30,
+    // travel 0..100): the setpoint 20 needs plant input 10, i.e. travel 100 f with
+    // 100·30^(f−1) = 10, where the slope is ln 30 · 10/100.
+    const valve = '{ min: 0, max: 100, lag: 4 s, characteristic: equal_percentage, rangeability: 30 }';
+    const d = diagnosePlant(transfer([2], [10, 1], 0, { actuator: valve, trial: 'duration: 60 s\n    events: [{ at: 1 s, setpoint: 20 }]' }), { simulate: false });
+    expect(d.linear!.nx).toBe(2);
+    const poles = d.poleZero!.poles.map((p) => p.re).sort((a, b) => a - b);
+    expectClose(poles[0], -0.25, { rel: 1e-9 });
+    expectClose(poles[1], -0.1, { rel: 1e-9 });
+    expectClose(d.poleZero!.staticGain, 2 * Math.log(30) * 0.1, { rel: 1e-5 });
+    expect(d.exact).toBe(false);
+    expectClose(d.operatingPoint.input!, 100 * (1 + Math.log(0.1) / Math.log(30)), { rel: 1e-9 });
+  });
+
   it('a linear ode x′ = (−x + 2u)/5 is not flagged nonlinear', () => {
     const d = diagnosePlant(
       load(plantText('type: ode\nparams: { k: 2 }\nstates: { x: { initial: 0 } }\ninput: u\nderivatives:\n  x: (-x + k*u)/5\noutput: x', { actuator: '{ min: 0, max: 10 }' })),

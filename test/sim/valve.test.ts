@@ -10,7 +10,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { ActuatorSpec } from '../../src/model/types.js';
-import { Actuator, runTrial, Sensor } from '../../src/sim/index.js';
+import { Actuator, EXP_SERIES_LIMIT, runTrial, Sensor } from '../../src/sim/index.js';
 import { ConstantController } from './controllers.js';
 import * as H from './hand-plants.js';
 import { loopConfig, QUIET_SENSOR, trial } from './loops.js';
@@ -102,6 +102,24 @@ describe('characteristic and lag (per integration step)', () => {
     };
     for (const f of [0.1, 0.5, 0.9]) expect(gain(f)).toBeCloseTo(Math.log(R) * R ** (f - 1), 6);
     expect(gain(0.9) / gain(0.1)).toBeCloseTo(R ** 0.8, 4);
+  });
+  it('equal percentage behind the lag: each step gives 100·R^(v/100 − 1) of the lag output v, the exact step mean (series branch and Math.exp branch)', () => {
+    // A 40 % travel step through T = 2 s: the first steps move far (w > EXP_SERIES_LIMIT, Math.exp),
+    // the last ones little (the degree-6 series); both within 2 ulp of the formula.
+    const R = 30;
+    const T = 2;
+    const h = 0.1;
+    const n = 200;
+    const out = steps({ characteristic: 'equal_percentage', rangeability: R, lag: T }, 30, 70, n, h);
+    let series = 0;
+    out.forEach((v, i) => {
+      const mean = 70 - (40 * T / h) * (Math.exp(-i * h / T) - Math.exp(-(i + 1) * h / T));
+      const want = 100 * R ** (mean / 100 - 1);
+      if (Math.abs((Math.log(R) / 100) * (mean - 70)) <= EXP_SERIES_LIMIT) series++;
+      expect(Math.abs(v / want - 1), `step ${i}`).toBeLessThan(1e-13);
+    });
+    expect(series).toBeGreaterThan(20);
+    expect(series).toBeLessThan(n - 20);
   });
   it('quick opening √f and linear f', () => {
     expect(steps({ characteristic: 'quick_opening' }, 0, 25, 1, 1)[0]).toBeCloseTo(50, 12);

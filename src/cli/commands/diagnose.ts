@@ -18,7 +18,7 @@ the file's gains, and flags where plain PID tuning will likely fall short: unsta
 non_minimum_phase, dead_time_dominant, high_order_lag (apparent dead time from a chain of lags,
 not a true delay), integrating, lightly_damped, nonlinear, saturating, rate_limited,
 slow_sampling, noise_sensitive, unreachable_setpoint, valve_stiction_cycle (the limit cycle a
-sticky valve sustains, predicted by describing function) (and closed_loop_unstable, no_response,
+sticky valve sustains, by stick-slip balance or describing function) (and closed_loop_unstable, no_response,
 model_problem). Each flag carries its numbers and advice.
 
 Options:
