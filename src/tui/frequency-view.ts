@@ -7,7 +7,7 @@
  */
 import type { LoopFrequencyResponse } from '../analysis/index.js';
 import { notPlainPidLoop, pointResponseOf, worstPointResponse, type PreparedPoint } from '../loop/index.js';
-import { shapePi, shapePid, type ShapingTarget } from '../tune/index.js';
+import { responseDesignLoop, shapePi, shapePid, type ShapingTarget } from '../tune/index.js';
 import { editWithGains, runningGains, type LoopSetup } from './engine.js';
 import { movedTarget, type FrequencyCommand, type ShapeTarget } from './frequency-keys.js';
 import { figure } from './frequency-plots.js';
@@ -87,7 +87,7 @@ export function shapedEdit(setup: LoopSetup, prepared: readonly PreparedPoint[],
   const g = runningGains(edit);
   const ratio = structure === 'pid' && g.td > 0 && Number.isFinite(g.ti) ? g.ti / g.td : TI_TD_RATIO;
   const t: ShapingTarget = { crossover: target.crossover, phaseMarginDeg: target.phaseMarginDeg, tiTdRatio: ratio };
-  const loop = { response, sampleTime: setup.plant.loop.sampleTime, sensor: setup.plant.sensor, base: g };
+  const loop = responseDesignLoop(response, setup.plant.loop.sampleTime, setup.plant.sensor, g);
   const sign = g.kc < 0 ? -1 : 1;
   const r = structure === 'pi' ? shapePi(loop, t, sign) : shapePid(loop, t, sign);
   if ('reason' in r) return { error: r.reason };

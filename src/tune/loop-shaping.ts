@@ -10,8 +10,9 @@
  * phase at ωc depends on one parameter only (Ti for PI; Td with Ti = R Td for PID): it is found by
  * bisection on that parameter, then kc = 1/|L(jωc)| at kc = 1.
  */
-import { loopResponse, type PlantFrequencyResponse } from '../analysis/index.js';
-import type { GainSet, SensorSpec } from '../model/types.js';
+import { loopResponse } from '../analysis/index.js';
+import type { GainSet } from '../model/types.js';
+import type { DesignLoop } from './design-loop.js';
 import type { TuningRule } from './rule-table.js';
 
 /** What the loop-shaping rows aim at. */
@@ -24,22 +25,13 @@ export interface ShapingTarget {
   tiTdRatio: number;
 }
 
-/** The loop's elements besides the controller (as the margins path takes them). */
-export interface ShapingLoop {
-  response: PlantFrequencyResponse;
-  sampleTime: number;
-  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>;
-  /** The file's gain set: derivative filter, weights and anti-windup are kept. */
-  base: GainSet;
-}
-
 /** Gains (ideal form, kc ti td), or why not and the phase margins this crossover allows. */
 export type Shaped = { kc: number; ti: number; td: number } | { reason: string };
 
 const work = new Float64Array(2);
 
 /** L(jω) for gain set g on the loop (analysis' loopResponse). */
-function loopAt(loop: ShapingLoop, g: GainSet, w: number): [number, number] {
+function loopAt(loop: DesignLoop, g: GainSet, w: number): [number, number] {
   loopResponse(loop.response, g, loop.sampleTime, loop.sensor)(w, work);
   return [work[0], work[1]];
 }
@@ -55,7 +47,7 @@ const GRID = 240;
  * Find the parameter p on a log grid [lo, hi] (in the given order) at which the phase of L(jωc)
  * for gains(p) (kc = 1) is −π + PM; null when it never is (phase outside the reachable range).
  */
-function solvePhase(loop: ShapingLoop, t: ShapingTarget, gains: (p: number) => GainSet, from: number, to: number): number | null {
+function solvePhase(loop: DesignLoop, t: ShapingTarget, gains: (p: number) => GainSet, from: number, to: number): number | null {
   const w = t.crossover;
   const want = -Math.PI + (t.phaseMarginDeg * Math.PI) / 180;
   const f = (p: number): number => {
@@ -90,7 +82,7 @@ function solvePhase(loop: ShapingLoop, t: ShapingTarget, gains: (p: number) => G
 }
 
 /** The phase margins reachable at ωc by the parameter's range (degrees, [low, high]). */
-function reachable(loop: ShapingLoop, t: ShapingTarget, gains: (p: number) => GainSet, from: number, to: number): [number, number] {
+function reachable(loop: DesignLoop, t: ShapingTarget, gains: (p: number) => GainSet, from: number, to: number): [number, number] {
   let lo = Infinity;
   let hi = -Infinity;
   for (let i = 0; i <= GRID; i++) {
@@ -103,7 +95,7 @@ function reachable(loop: ShapingLoop, t: ShapingTarget, gains: (p: number) => Ga
   return [lo, hi];
 }
 
-function finish(loop: ShapingLoop, t: ShapingTarget, g: GainSet, structure: string, range: () => [number, number], found: boolean): Shaped {
+function finish(loop: DesignLoop, t: ShapingTarget, g: GainSet, structure: string, range: () => [number, number], found: boolean): Shaped {
   if (!found) {
     const [lo, hi] = range();
     return {
@@ -118,7 +110,7 @@ function finish(loop: ShapingLoop, t: ShapingTarget, g: GainSet, structure: stri
 }
 
 /** PI with a gain crossover at ωc and phase margin PM on the loop. */
-export function shapePi(loop: ShapingLoop, t: ShapingTarget, sign: 1 | -1): Shaped {
+export function shapePi(loop: DesignLoop, t: ShapingTarget, sign: 1 | -1): Shaped {
   const w = t.crossover;
   const gains = (ti: number): GainSet => ({ ...loop.base, kc: sign, ti, td: 0 });
   // From little integral action (large Ti) to much: the phase at ωc goes down from the P phase.
@@ -129,7 +121,7 @@ export function shapePi(loop: ShapingLoop, t: ShapingTarget, sign: 1 | -1): Shap
 }
 
 /** PID with Ti = R Td, a gain crossover at ωc and phase margin PM on the loop. */
-export function shapePid(loop: ShapingLoop, t: ShapingTarget, sign: 1 | -1): Shaped {
+export function shapePid(loop: DesignLoop, t: ShapingTarget, sign: 1 | -1): Shaped {
   const w = t.crossover;
   const r = t.tiTdRatio;
   const gains = (td: number): GainSet => ({ ...loop.base, kc: sign, ti: r * td, td });
@@ -141,7 +133,7 @@ export function shapePid(loop: ShapingLoop, t: ShapingTarget, sign: 1 | -1): Sha
 }
 
 /** The loop-shaping rows of `suggest` (PI, and PID with Ti = R Td), as rules of the common shape. */
-export function shapingRules(loop: ShapingLoop | null, t: ShapingTarget, sign: 1 | -1): TuningRule[] {
+export function shapingRules(loop: DesignLoop | null, t: ShapingTarget, sign: 1 | -1): TuningRule[] {
   const SOURCE = 'loop shaping at the crossover (Åström & Murray, Feedback Systems, 2008, sec. 11.4)';
   const row = (id: string, label: string, structure: 'pi' | 'pid', shape: typeof shapePi): TuningRule => ({
     id,

@@ -11,27 +11,8 @@
  * bisection; kiMax(kc) is maximised over kc on a grid from 0 to the largest kc that keeps
  * Ms <= target at vanishing ki, then refined by golden-section search around the best grid point.
  */
-import { effectiveMs, loopMargins, type PlantFrequencyResponse } from '../analysis/index.js';
-import type { GainSet, SensorSpec } from '../model/types.js';
+import type { DesignLoop } from './design-loop.js';
 import type { TuningRule } from './rule-table.js';
-
-/** The loop the constraint is evaluated on. */
-export interface MsLoop {
-  /** Ms of a gain set on the loop, Infinity when the closed loop is not stable (effectiveMs). */
-  ms(g: GainSet): number;
-  /** The file's gain set (weights, anti-windup kept; td is set to 0). */
-  base: GainSet;
-}
-
-/** The loop of one frequency response (one operating point): for a plant without a plant file. */
-export function responseMsLoop(
-  response: PlantFrequencyResponse,
-  sampleTime: number,
-  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
-  base: GainSet,
-): MsLoop {
-  return { base, ms: (g) => effectiveMs(loopMargins(response, g, sampleTime, sensor)) };
-}
 
 /** Result: ideal-form PI and the Ms it has, or why there is none. */
 export type MsPi = { kc: number; ti: number; ki: number; ms: number } | { reason: string };
@@ -40,12 +21,12 @@ const KC_GRID = 10;
 const BISECT = 18;
 
 /** Ms of PI (kc, ki) on the loop; Infinity when the closed loop is not stable. */
-export function piMs(loop: MsLoop, kc: number, ki: number): number {
+export function piMs(loop: DesignLoop, kc: number, ki: number): number {
   return loop.ms({ ...loop.base, kc, ti: ki === 0 ? Infinity : kc / ki, td: 0 });
 }
 
 /** The largest ki (same sign as kc) with Ms <= target at this kc; 0 when none. */
-function kiMax(loop: MsLoop, kc: number, target: number): number {
+function kiMax(loop: DesignLoop, kc: number, target: number): number {
   let lo = 0;
   let hi = Math.abs(kc) * 1e-3 || 1e-9;
   const s = Math.sign(kc);
@@ -68,7 +49,7 @@ function kiMax(loop: MsLoop, kc: number, target: number): number {
 }
 
 /** The Ms-constrained PI of the loop for plant sign `sign` (kc and ki get that sign). */
-export function msConstrainedPi(loop: MsLoop, target: number, sign: 1 | -1): MsPi {
+export function msConstrainedPi(loop: DesignLoop, target: number, sign: 1 | -1): MsPi {
   if (!(target > 1) || !Number.isFinite(target)) return { reason: `the Ms limit must be a number > 1, got ${target}` };
   // Largest proportional gain with Ms <= target (ki -> 0): the end of the kc range.
   let kcHi = 1e-6;
@@ -123,7 +104,7 @@ export function msConstrainedPi(loop: MsLoop, target: number, sign: 1 | -1): MsP
 }
 
 /** The Ms-constrained PI row of `suggest`, as a rule of the common shape. */
-export function msPiRule(loop: MsLoop | null, target: number, sign: 1 | -1): TuningRule {
+export function msPiRule(loop: DesignLoop | null, target: number, sign: 1 | -1): TuningRule {
   return {
     id: 'ms-constrained-pi',
     label: 'Ms-constrained PI',

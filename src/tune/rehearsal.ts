@@ -17,15 +17,7 @@ import type { GainSet, PlantDynamics, PlantSpec, TrialSpec } from '../model/type
 import { runTrial } from '../sim/index.js';
 import type { Trace, TrialResult } from '../sim/types.js';
 import { fileLoop } from './structure-tuning.js';
-
-/**
- * The file's trial as a rehearsal runs it: without the file's own 'gains' events, so that one
- * gain set runs until the switch (the rehearsal adds its own, see `rehearsalTrial`).
- */
-export function screenTrial(trial: TrialSpec): TrialSpec {
-  if (!trial.events.some((e) => e.kind === 'gains')) return trial;
-  return { ...trial, events: trial.events.filter((e) => e.kind !== 'gains') };
-}
+import { screenTrial } from './judged-trial.js';
 
 /** The file's trial with a switch to the running gains `next` at `at`, s (rehearsing a retune). */
 export function rehearsalTrial(trial: TrialSpec, next: GainSet, at: number): TrialSpec {

@@ -17,10 +17,10 @@ import { TUNING_RULES, type RuleInputs, type RuleParameters, type TuningRule } f
 import { tuningContext, type TuningContext } from './tuning-context.js';
 import { poleDelayNote, poleRules } from './pole-rules.js';
 import type { PoleTarget } from './rules/pole-placement.js';
-import { shapingRules, type ShapingLoop, type ShapingTarget } from './loop-shaping.js';
+import { shapingRules, type ShapingTarget } from './loop-shaping.js';
+import { contextDesignLoop } from './design-loop.js';
 import { msPiRule } from './ms-constrained-pi.js';
-import { effectiveMs, sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
-import { gainMargins } from './gain-margins.js';
+import { sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
 
 /** Options of `suggestGains`. */
 export interface SuggestOptions {
@@ -157,10 +157,10 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const skipped: SuggestResult['skipped'] = [];
   // Design rows are asked for by their own option, so a rule filter does not drop them.
   const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime) : [];
-  const shapeRules = options.shaping ? shapingRules(designLoop(ctx), options.shaping, plantSign(inputs)) : [];
-  // The Ms PI is held to the Ms every row is judged by: the worst over the operating points.
-  const msLoop = ctx.points.some((p) => p.response !== null) ? { base: ctx.spec.loop.controller.gains, ms: (g: GainSet) => effectiveMs(gainMargins(ctx, g)) } : null;
-  const msRules = options.maxMs ? [msPiRule(msLoop, options.maxMs, plantSign(inputs))] : [];
+  // The designs' loop: Ms is the one every row is judged by (the worst over the operating points).
+  const loop = contextDesignLoop(ctx);
+  const shapeRules = options.shaping ? shapingRules(loop, options.shaping, plantSign(inputs)) : [];
+  const msRules = options.maxMs ? [msPiRule(loop, options.maxMs, plantSign(inputs))] : [];
   const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules, ...shapeRules, ...msRules];
   if (options.poles) {
     const note = poleDelayNote(inputs, options.poles);
@@ -220,12 +220,6 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const hint = slowerLoopHint(suggestions, params);
   if (hint !== null) notes.push(hint);
   return { inputs, ultimateSource, ultimateModel, relay, suggestions, skipped, notes, caution: RELAY_CAUTION };
-}
-
-/** The loop as the margins see it, for the designs on it (null without a linear model). */
-function designLoop(ctx: TuningContext): ShapingLoop | null {
-  if (ctx.response === null) return null;
-  return { response: ctx.response, sampleTime: ctx.spec.loop.sampleTime, sensor: ctx.spec.sensor, base: ctx.spec.loop.controller.gains };
 }
 
 /** The plant's sign from its low-order description (reverse-acting plants need kc < 0). */

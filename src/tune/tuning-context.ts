@@ -10,6 +10,7 @@ import type { PlantSpec, TrialSpec } from '../model/types.js';
 import { buildLoop, operatingPoints, pointResponse, preparePoints, type LoopStart, type PreparedPoint } from '../loop/index.js';
 import type { LinearModel, LoopConfig, PlantDynamics } from '../sim/index.js';
 import { operatingPointModel } from './operating-point.js';
+import { screenTrial } from './judged-trial.js';
 
 /** A plant file ready for evaluating many gain sets. */
 export interface TuningContext {
@@ -49,10 +50,8 @@ export function tuningContext(spec: PlantSpec, dynamics: PlantDynamics = compile
   const built = buildLoop(spec, { dynamics });
   const loop = built.config;
   const notes = [...built.notes];
-  const t = spec.loop.trial;
-  const events = t.events.filter((e) => e.kind !== 'gains');
-  if (events.length < t.events.length) notes.push("the trial's scripted gain changes are left out when judging a gain set");
-  const trial = { ...t, events };
+  const trial = screenTrial(spec.loop.trial);
+  if (trial !== spec.loop.trial) notes.push("the trial's scripted gain changes are left out when judging a gain set");
   const ops = operatingPoints(spec, dynamics, trial);
   for (const n of ops.notes) notes.push(n);
   const points = preparePoints(ops.points, spec);

@@ -6,7 +6,7 @@
  */
 import { plantFrequencyResponse } from '../../src/analysis/index.js';
 import type { GainSet } from '../../src/model/types.js';
-import { shapePi, shapePid, type ShapingLoop, type ShapingTarget } from '../../src/tune/index.js';
+import { responseDesignLoop, shapePi, shapePid, type DesignLoop, type ShapingTarget } from '../../src/tune/index.js';
 import { product, tf } from './tf.js';
 
 export interface ShapingCase {
@@ -29,10 +29,10 @@ export const SHAPING_CASES: ShapingCase[] = [
   { name: 'PI on −0.8 e^(−2 s)/(20 s + 1) (reverse acting), h 0.2 s', k: -0.8, lags: [20], delay: 2, h: 0.2, filterTime: 0, n: 10, structure: 'pi', target: { crossover: 0.1, phaseMarginDeg: 60, tiTdRatio: 4 } },
 ];
 
-export function shapingLoopOf(c: ShapingCase): ShapingLoop {
+export function shapingLoopOf(c: ShapingCase): DesignLoop {
   const model = tf([c.k], product(...c.lags.map((t) => [t, 1])), c.delay);
   const base: GainSet = { kc: 1, ti: Infinity, td: 0, n: c.n, b: 1, c: 0, antiWindup: 'clamp', trackingTime: NaN };
-  return { response: plantFrequencyResponse(model, { wMax: Math.PI / c.h, extraDelay: 0 }), sampleTime: c.h, sensor: { delay: 0, filterTime: c.filterTime }, base };
+  return responseDesignLoop(plantFrequencyResponse(model, { wMax: Math.PI / c.h, extraDelay: 0 }), c.h, { delay: 0, filterTime: c.filterTime }, base);
 }
 
 export function designed(c: ShapingCase): { kc: number; ti: number; td: number } {

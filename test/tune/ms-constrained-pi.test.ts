@@ -13,15 +13,16 @@
 import { describe, expect, it } from 'vitest';
 import { plantFrequencyResponse } from '../../src/analysis/index.js';
 import type { GainSet } from '../../src/model/types.js';
-import { msConstrainedPi, piMs, responseMsLoop, type MsLoop } from '../../src/tune/ms-constrained-pi.js';
+import { msConstrainedPi, piMs } from '../../src/tune/ms-constrained-pi.js';
+import { responseDesignLoop, type DesignLoop } from '../../src/tune/design-loop.js';
 import { amigoPi } from '../../src/tune/rules/amigo.js';
 import { tf } from './tf.js';
 
 const BASE: GainSet = { kc: 1, ti: Infinity, td: 0, n: 10, b: 1, c: 0, antiWindup: 'clamp', trackingTime: NaN };
 
-function fopdtLoop(k: number, T: number, L: number): MsLoop {
+function fopdtLoop(k: number, T: number, L: number): DesignLoop {
   const h = L / 100;
-  return responseMsLoop(plantFrequencyResponse(tf([k], [T, 1], L), { wMax: Math.PI / h, extraDelay: 0 }), h, { delay: 0, filterTime: 0 }, BASE);
+  return responseDesignLoop(plantFrequencyResponse(tf([k], [T, 1], L), { wMax: Math.PI / h, extraDelay: 0 }), h, { delay: 0, filterTime: 0 }, BASE);
 }
 
 describe('Ms-constrained PI', () => {

@@ -1,0 +1,53 @@
+/**
+ * The loop a model-based design works on (loop shaping, the Ms-constrained PI, loop shaping to
+ * an Ms target): one type for all of them. The design point's frequency response with the
+ * elements the margins path adds (hold at the sample time, sensor delay and filter), the file's
+ * gain set whose filter, weights and anti-windup a design keeps, and the project's one Ms of a
+ * gain set on the loop.
+ */
+import { effectiveMs, loopMargins, type PlantFrequencyResponse } from '../analysis/index.js';
+import type { GainSet, SensorSpec } from '../model/types.js';
+import { gainMargins } from './gain-margins.js';
+import type { TuningContext } from './tuning-context.js';
+
+/** A loop to design on. */
+export interface DesignLoop {
+  /** Frequency response of the linear model the design places L(jω) on. */
+  response: PlantFrequencyResponse;
+  /** Controller sample time, s. */
+  sampleTime: number;
+  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>;
+  /** The file's gain set: derivative filter, weights and anti-windup are kept. */
+  base: GainSet;
+  /**
+   * Ms of a gain set on the loop, Infinity when the closed loop is not stable (analysis'
+   * effectiveMs). From a plant file: the worst over the trial's operating points (tune's
+   * gainMargins), the figure every row of `suggest` is judged by.
+   */
+  ms(g: GainSet): number;
+}
+
+/** The loop of one frequency response (one operating point): for a plant without a plant file. */
+export function responseDesignLoop(
+  response: PlantFrequencyResponse,
+  sampleTime: number,
+  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
+  base: GainSet,
+): DesignLoop {
+  return { response, sampleTime, sensor, base, ms: (g) => effectiveMs(loopMargins(response, g, sampleTime, sensor)) };
+}
+
+/**
+ * The loop of a prepared plant file: the rules' linear model for L(jω), Ms the worst over the
+ * operating points; null without a linear model.
+ */
+export function contextDesignLoop(ctx: TuningContext): DesignLoop | null {
+  if (ctx.response === null) return null;
+  return {
+    response: ctx.response,
+    sampleTime: ctx.spec.loop.sampleTime,
+    sensor: ctx.spec.sensor,
+    base: ctx.spec.loop.controller.gains,
+    ms: (g) => effectiveMs(gainMargins(ctx, g)),
+  };
+}
