@@ -39,8 +39,9 @@ Options for run:
                       (repeatable; times may carry a unit: ms, s, min, h)
   --duration T        override the trial duration, e.g. --duration 20min
   --step DT           override the integration step, e.g. --step 0.01s
-  --tweak             add the tweak guide: what +10 % and -10 % on each controller parameter do
+  --tweak             print the tweak guide: what +10 % and -10 % on each controller parameter do
                       to rise, overshoot, settling, IAE, peak output, travel and Ms, simulated
+                      (--json always carries it under "tweak"; --tweak holds its runs to the budget)
   --no-limits         run even when the run is over the resource budget (every command
                       takes it; README "Errors and limits")
   -h, --help          show this text

@@ -13,7 +13,7 @@
 import { headlineMetrics, headlineNumber, trialMetrics } from '../analysis/index.js';
 import { buildController } from '../control/index.js';
 import type { ControllerStructure, GainSet } from '../model/types.js';
-import { runTrialBatch } from '../sim/index.js';
+import { batchChunks, DEFAULT_BATCH_WIDTH, runTrialBatch } from '../sim/index.js';
 import { FLAG_SHARE, gainSetMs } from './evaluate.js';
 import type { TuningContext } from './tuning-context.js';
 
@@ -96,21 +96,50 @@ function parametersOf(g: GainSet, structure: ControllerStructure): TweakParamete
   return p;
 }
 
-/** The tweak guide for gain set `g` (ideal form) of the file's plain PID law. */
-export function tweakGuide(ctx: TuningContext, g: GainSet, structure: ControllerStructure): TweakGuide {
+/**
+ * The tweak guide for gain set `g` (ideal form) of the file's plain PID law, in slices: each
+ * `next()` simulates at most `width` variants (one batched run) and measures them, so a screen
+ * can answer keys between slices; the generator's return value is the guide. `width` (default
+ * sim's DEFAULT_BATCH_WIDTH) only changes how the work is cut, not one figure (the batch runner
+ * is bit-identical to runTrial).
+ */
+export function* tweakGuideSteps(ctx: TuningContext, g: GainSet, structure: ControllerStructure, width = DEFAULT_BATCH_WIDTH): Generator<void, TweakGuide, void> {
   const spec = ctx.spec;
   const { extension: _e, named: _n, ...plain } = spec.loop.controller;
   const params = parametersOf(g, structure);
   const sets: GainSet[] = [g];
   for (const p of params) for (const f of [1 + TWEAK_STEP, 1 - TWEAK_STEP]) sets.push({ ...g, [p]: g[p] * f });
-  const members = sets.map((s) => ({ plant: ctx.dynamics, controller: buildController({ ...plain, structure, gains: s }, spec.loop.sampleTime), loop: ctx.loop }));
-  const batch = runTrialBatch(members, ctx.trial);
-  const metrics = batch.results.map((r) => trialMetrics(r.trace, ctx.trial, spec.loop.requirements));
-  const figs = metrics.map((m, i) => figures(ctx, sets[i], structure, m));
+  const figs: Record<TweakFigure, number>[] = [];
+  const notes = new Set<string>();
+  let baseMetrics: ReturnType<typeof trialMetrics> | null = null;
+  for (const chunk of batchChunks(sets, Math.max(1, width))) {
+    const members = chunk.map((s) => ({ plant: ctx.dynamics, controller: buildController({ ...plain, structure, gains: s }, spec.loop.sampleTime), loop: ctx.loop }));
+    const batch = runTrialBatch(members, ctx.trial, { width });
+    for (const n of batch.notes) notes.add(n);
+    batch.results.forEach((r, i) => {
+      const m = trialMetrics(r.trace, ctx.trial, spec.loop.requirements);
+      baseMetrics ??= m;
+      figs.push(figures(ctx, chunk[i], structure, m));
+    });
+    if (figs.length < sets.length) yield;
+  }
+  return assemble(g, params, figs, baseMetrics!, spec.loop.trial.duration, [...notes]);
+}
+
+/** The tweak guide for gain set `g` (ideal form) of the file's plain PID law, all at once. */
+export function tweakGuide(ctx: TuningContext, g: GainSet, structure: ControllerStructure): TweakGuide {
+  const steps = tweakGuideSteps(ctx, g, structure);
+  for (;;) {
+    const next = steps.next();
+    if (next.done) return next.value;
+  }
+}
+
+/** The rows from the figures of every variant (base first, then +/− per parameter). */
+function assemble(g: GainSet, params: TweakParameter[], figs: Record<TweakFigure, number>[], baseMetrics: ReturnType<typeof trialMetrics>, duration: number, notes: string[]): TweakGuide {
   const base = figs[0];
-  const notes: string[] = [...batch.notes];
   // The same share that flags a gain set as saturated (evaluate.ts).
-  const saturated = metrics[0].overall.saturatedTime > FLAG_SHARE * spec.loop.trial.duration;
+  const saturated = baseMetrics.overall.saturatedTime > FLAG_SHARE * duration;
   const rows: TweakRow[] = params.map((p, i) => {
     const plus = figs[1 + 2 * i];
     const minus = figs[2 + 2 * i];

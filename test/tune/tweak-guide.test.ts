@@ -9,7 +9,7 @@
 import { describe, expect, it } from 'vitest';
 import { headlineMetrics, headlineNumber } from '../../src/analysis/index.js';
 import { loadPlant } from '../../src/model/index.js';
-import { simulateGains, tuningContext, tweakGuide, TWEAK_FIGURE_WORDS } from '../../src/tune/index.js';
+import { simulateGains, tuningContext, tweakGuide, tweakGuideSteps, TWEAK_FIGURE_WORDS } from '../../src/tune/index.js';
 import { readFileSync } from 'node:fs';
 
 const HEATER = `name: Heater
@@ -68,13 +68,13 @@ describe('tweak guide', () => {
   });
 });
 
-describe('looprig run --tweak', () => {
-  it('--json carries the guide (signed changes per parameter); the text has the table', async () => {
+describe('looprig run: the tweak guide', () => {
+  it('--json always carries it (signed changes per parameter); the text has the table with --tweak only', async () => {
     const { main } = await import('../../src/cli/index.js');
     const { fakeIo } = await import('../cli/fake-io.js');
     const io = fakeIo({ 'heater.yaml': HEATER });
-    expect(await main(['run', 'heater.yaml', '--json', '--tweak'], io)).toBe(0);
-    const g = JSON.parse(io.stdout).tweak_guide;
+    expect(await main(['run', 'heater.yaml', '--json'], io)).toBe(0);
+    const g = JSON.parse(io.stdout).tweak;
     expect(g.parameters.map((p: { parameter: string }) => p.parameter)).toEqual(['kc', 'ti', 'td', 'n', 'b']);
     const kc = g.parameters[0];
     expect(kc.plus.change.overshoot_pct).toBeCloseTo(kc.plus.figures.overshoot_pct - g.base.overshoot_pct, 12);
@@ -84,7 +84,42 @@ describe('looprig run --tweak', () => {
     expect(text.stdout).toMatch(/tweak guide \(each parameter ±10 %/);
     expect(text.stdout).toMatch(/kc \+10 %\s+↓/);
     const plain = fakeIo({ 'heater.yaml': HEATER });
-    expect(await main(['run', 'heater.yaml', '--json'], plain)).toBe(0);
-    expect(JSON.parse(plain.stdout).tweak_guide).toBeUndefined();
+    expect(await main(['run', 'heater.yaml'], plain)).toBe(0);
+    expect(plain.stdout).not.toMatch(/tweak guide/);
+    // --tweak with --json: the same document.
+    const both = fakeIo({ 'heater.yaml': HEATER });
+    expect(await main(['run', 'heater.yaml', '--json', '--tweak'], both)).toBe(0);
+    expect(JSON.parse(both.stdout).tweak).toEqual(g);
+  });
+
+  it('run --json leaves the guide out (null, a warning says why) when its runs and margins are over the budget; --tweak then refuses', async () => {
+    const { main } = await import('../../src/cli/index.js');
+    const { fakeIo } = await import('../cli/fake-io.js');
+    // A dead time of 3e5 s at h = 0.1 s: ~1.5e6 phase turns for the margins (over the budget's
+    // 1e6), while the 10 s trial alone reads only 10 s of its delay line.
+    const far = HEATER.replace('delay: 1 s', 'delay: 300000 s').replace('duration: 60 s', 'duration: 10 s');
+    const io = fakeIo({ 'far.yaml': far });
+    expect(await main(['run', 'far.yaml', '--json'], io)).toBe(0);
+    const doc = JSON.parse(io.stdout);
+    expect(doc.tweak).toBeNull();
+    expect(doc.warnings.some((w: string) => /^tweak guide left out/.test(w))).toBe(true);
+    const asked = fakeIo({ 'far.yaml': far });
+    expect(await main(['run', 'far.yaml', '--json', '--tweak'], asked)).toBe(2);
+  });
+
+  it('in slices of two variants the guide is the same, figure for figure', () => {
+    const spec = loadPlant(HEATER, 'heater.yaml').plant!;
+    const ctx = tuningContext(spec);
+    const g = spec.loop.controller.gains;
+    const steps = tweakGuideSteps(ctx, g, 'pid', 2);
+    let slices = 0;
+    let next = steps.next();
+    while (!next.done) {
+      slices++;
+      next = steps.next();
+    }
+    // 11 variants in chunks of at most 2: 6 slices, the last one returning.
+    expect(slices).toBe(5);
+    expect(next.value).toEqual(tweakGuide(ctx, g, 'pid'));
   });
 });

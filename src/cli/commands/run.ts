@@ -18,7 +18,8 @@ import type { Override } from '../load-plant-file.js';
 import { runMetricsJson, type RunReport } from '../run-report.js';
 import { writeRunSvg } from '../run-svg.js';
 import { writeFrequencySvg } from '../frequency-svg.js';
-import { enforceBudget, LIMIT_OPTIONS } from '../budget-check.js';
+import { enforceBudget, LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
+import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { simulatePlant } from '../simulate-plant.js';
 import { USAGE } from '../usage.js';
 import { writeOutput } from '../write-output.js';
@@ -41,7 +42,7 @@ export interface RunOptions {
   step: number | null;
   /** --no-limits: the resource budget lifted. */
   noLimits: boolean;
-  /** --tweak: add the tweak guide (±10 % on each parameter, simulated). */
+  /** --tweak: add the tweak guide (±10 % on each parameter, simulated) and print its table. */
   tweak?: boolean;
 }
 
@@ -84,21 +85,28 @@ const FREQUENCY_REQUIREMENTS: readonly [keyof Requirements, string][] = [
   ['dampingRatio', 'damping_ratio'],
 ];
 
+/**
+ * When the tweak guide is computed: 'asked' (--tweak: its runs are held to the budget like the
+ * trial's, over it is exit 2), 'within-budget' (run --json without --tweak: computed when its runs
+ * fit the budget, else left out with a warning saying why), 'none'.
+ */
+export type TweakWhen = 'asked' | 'within-budget' | 'none';
+
 /** Load, apply overrides, simulate and measure. Prints only loader diagnostics (stderr). */
-export function runPlant(options: RunOptions, io: Io): RunReport {
+export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options.tweak === true ? 'asked' : 'none'): RunReport {
   const loaded = loadPlantFile(options.file, io, options.overrides);
   const plant = withRunOverrides(loaded.plant, options);
   const dynamics = compilePlant(plant);
+  const given = {
+    ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
+    ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
+  };
+  // run simulates only: no margins, so a long dead time costs only its (bounded) delay line;
+  // the tweak guide adds its runs (at most 11) and Ms.
+  const tweakBudget = { frequencyAnalysis: true, runs: TWEAK_RUNS, given };
   enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
-    // run simulates only: no margins, so a long dead time costs only its (bounded) delay line;
-    // the tweak guide adds its runs (at most 11) and Ms.
-    frequencyAnalysis: options.tweak === true || (options.svgFrequency ?? null) !== null,
-    runs: options.tweak ? 11 : 1,
-    given: {
-      ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
-      ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
-    },
+    ...(tweak === 'asked' ? tweakBudget : { frequencyAnalysis: (options.svgFrequency ?? null) !== null, runs: 1, given }),
   });
   const sim = simulatePlant(plant, dynamics);
   const { result, metrics, requirements } = sim;
@@ -106,8 +114,18 @@ export function runPlant(options: RunOptions, io: Io): RunReport {
   for (const [key, name] of FREQUENCY_REQUIREMENTS) {
     if (plant.loop.requirements[key] !== undefined) warnings.push(`requirement ${name} is not checked by run (frequency domain)`);
   }
-  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: options.tweak === true ? runTweak(plant, dynamics, warnings) : null };
+  let guide: TweakGuide | null = null;
+  if (tweak === 'asked') guide = runTweak(plant, dynamics, warnings);
+  else if (tweak === 'within-budget') {
+    const over = plantBudget(plant, dynamics, loaded.text, options.file, { ...tweakBudget, limits: options.noLimits ? null : DEFAULT_BUDGET });
+    if (over.length > 0) warnings.push(`tweak guide left out (its ${TWEAK_RUNS} runs and margins): ${refusalLine(over[0])}`);
+    else guide = runTweak(plant, dynamics, warnings);
+  }
+  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: guide };
 }
+
+/** Most runs of the tweak guide: the gains as they are and ±10 % on kc, ti, td, n and b. */
+const TWEAK_RUNS = 11;
 
 /** The tweak guide of the file's gains (plain PID laws only; otherwise a warning says why not). */
 function runTweak(plant: PlantSpec, dynamics: ReturnType<typeof compilePlant>, warnings: string[]): TweakGuide | null {
@@ -149,7 +167,9 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
     io.out(USAGE);
     return 0;
   }
-  const report = runPlant(options, io);
+  // --json always carries the tweak guide (key `tweak`: null when not made, a warning says why);
+  // the text shows its table only with --tweak.
+  const report = runPlant(options, io, options.tweak === true ? 'asked' : options.json ? 'within-budget' : 'none');
   if (options.csv !== null) {
     writeOutput(io, options.csv, traceCsvChunks(report.result.trace));
   }
@@ -259,7 +279,7 @@ export function reportJson(report: RunReport): unknown {
       at: r.at,
     })),
     warnings: report.warnings,
-    ...(report.tweak ? { tweak_guide: tweakJson(report.tweak) } : {}),
+    tweak: report.tweak === null ? null : tweakJson(report.tweak),
   };
 }
 
