@@ -42,6 +42,7 @@ import { OptimizePanel } from './panels/OptimizePanel.js';
 import { Panels } from './panels/Panels.js';
 import { StatusLine } from './panels/StatusLine.js';
 import { SuggestPanel } from './panels/SuggestPanel.js';
+import { TweakView } from './tweak-view.js';
 import { initialState, isDirty, reduce, speedOf, type Action, type Effect, type Overlay, type RunMode, type ScreenState } from './state.js';
 import { makeTheme } from './theme.js';
 
@@ -277,6 +278,7 @@ export function App(props: AppProps) {
       );
     }
     if (o.kind === 'help') return <HelpOverlay width={layout.width} height={bodyLines} theme={theme} page={o.page} />;
+    if (o.kind === 'tweak') return <TweakView setup={setup} edit={state.current} selected={state.selected} width={layout.width} height={bodyLines} theme={theme} />;
     if (o.kind === 'suggest') return <SuggestPanel view={o.view} selected={o.selected} width={layout.width} height={bodyLines} theme={theme} />;
     if (o.kind === 'optimize') {
       return <OptimizePanel view={o.view} outcome={o.outcome} cancelling={o.cancelling} width={layout.width} height={bodyLines} theme={theme} />;
@@ -364,6 +366,8 @@ function hintFor(o: Overlay): string {
       return '↑↓ Tab switch the edited candidate  Esc back';
     case 'frequency':
       return FREQUENCY_HINT;
+    case 'tweak':
+      return '↑↓ choose  ←→ [] nudge  u r undo/redo  T Esc close';
     default:
       return HINT;
   }

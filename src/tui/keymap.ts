@@ -36,6 +36,7 @@ export type KeyCommand =
   | 'toggle_envelope'
   | 'compare'
   | 'frequency_view'
+  | 'tweak'
   | 'save'
   | 'help'
   | 'quit';
@@ -93,6 +94,7 @@ export const KEYMAP: readonly KeyBinding[] = [
   { keys: ['v'], command: 'toggle_envelope', group: 'tune', help: 'envelope over uncertainty' },
   { keys: ['c'], command: 'compare', group: 'tune', help: 'compare the candidates' },
   { keys: ['F'], command: 'frequency_view', group: 'tune', help: 'frequency view, loop shaping' },
+  { keys: ['T'], command: 'tweak', group: 'tune', help: 'tweak guide: ±10 % per gain' },
   { keys: ['w'], command: 'save', group: 'file', help: 'save to the file (asks)' },
   { keys: ['?', 'h'], command: 'help', group: 'file', help: 'this help' },
   { keys: ['q', 'ctrl-c'], command: 'quit', group: 'file', help: 'quit (asks if unsaved)' },

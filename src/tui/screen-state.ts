@@ -24,6 +24,8 @@ export type Overlay =
   | { kind: 'optimize'; view: OptimizeView | null; outcome: OptimizeOutcome | null; cancelling: boolean }
   /** The comparison view; `entries` null while it is computed. `selected` indexes `entries`. */
   | { kind: 'compare'; entries: readonly CandidateEntry[] | null; selected: number; edited: number | null }
+  /** The tweak guide of the edited gains (tweak-view.tsx computes and draws it; edit keys stay live). */
+  | { kind: 'tweak' }
   /** A typed value; `placeholder` shows the present value, an empty entry keeps it. */
   | { kind: 'input'; target: 'param' | 'switch_time'; text: string; placeholder: string; error: string | null }
   | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string }

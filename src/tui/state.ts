@@ -19,6 +19,7 @@ import { mainCommand } from './reducers/main-keys.js';
 import { optimizeDone, optimizeKey, optimizeProgress } from './reducers/optimize.js';
 import { promptChange, promptKey, promptSubmit } from './reducers/prompt.js';
 import { suggestKey, suggestProgress } from './reducers/suggest.js';
+import { tweakKey } from './reducers/tweak.js';
 import type { Action, ScreenState } from './screen-state.js';
 
 export type { EditMath, FormTriple } from './edit-math.js';
@@ -104,6 +105,8 @@ function press(s: ScreenState, token: string, math: EditMath): ScreenState {
       return optimizeKey(s, token);
     case 'compare':
       return compareKey(s, token);
+    case 'tweak':
+      return tweakKey(s, token);
     case 'input':
       return promptKey(s, token);
     case 'confirm':

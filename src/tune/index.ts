@@ -30,7 +30,7 @@ export type { TuningContext } from './tuning-context.js';
 export { operatingPointModel } from './operating-point.js';
 export { evaluateGains, simulateGains, gainSetMs, gainNoiseActivity, FLAG_SHARE } from './evaluate.js';
 export { gainMargins, gainPointFigures } from './gain-margins.js';
-export { tweakGuide, tweakGuideSteps, TWEAK_FIGURES, TWEAK_FIGURE_WORDS, TWEAK_STEP } from './tweak-guide.js';
+export { tweakGuide, tweakGuideSteps, tweakChangeText, TWEAK_FIGURE_HEADS, TWEAK_FIGURES, TWEAK_FIGURE_WORDS, TWEAK_STEP } from './tweak-guide.js';
 export type { TweakGuide, TweakRow, TweakFigure, TweakParameter } from './tweak-guide.js';
 export { noiseActivity, noiseMessage } from './noise-activity.js';
 export type { NoiseActivity } from './noise-activity.js';

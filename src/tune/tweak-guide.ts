@@ -32,6 +32,29 @@ export const TWEAK_FIGURE_WORDS: Record<TweakFigure, string> = {
   ms: 'Ms',
 };
 
+/** Short column heads of the figures, for the guide's compact table (CLI and screen). */
+export const TWEAK_FIGURE_HEADS: Record<TweakFigure, string> = {
+  riseTime: 'rise',
+  overshootPct: 'overshoot',
+  settlingTime: 'settling',
+  iae: 'IAE',
+  peakOutput: 'peak u',
+  travel: 'travel',
+  ms: 'Ms',
+};
+
+/**
+ * One cell of the compact table: an arrow and the signed change of a figure from `base` to `v`
+ * ('=' when it moves by less than 0.1 % of the figure; 'now reached' / 'lost' when the figure
+ * appears or disappears, e.g. a step that settles only with the change). `format` writes a number.
+ */
+export function tweakChangeText(v: number, base: number, format: (x: number) => string): string {
+  const d = v - base;
+  if (!Number.isFinite(d)) return Number.isFinite(base) || Number.isFinite(v) ? (Number.isFinite(v) ? 'now reached' : 'lost') : '-';
+  if (Math.abs(d) <= 1e-3 * Math.max(Math.abs(base), 1e-12)) return '=';
+  return `${d > 0 ? '↑' : '↓'} ${d > 0 ? '+' : ''}${format(d)}`;
+}
+
 /** The parameters varied (those the structure uses). */
 export type TweakParameter = 'kc' | 'ti' | 'td' | 'b' | 'n';
 

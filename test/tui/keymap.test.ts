@@ -65,7 +65,10 @@ describe('tui keymap', () => {
     // The frequency view is a tuning aid too; the hint line has no room for it (80 columns): the help lists it.
     expect(commandFor('F')).toBe('frequency_view');
     expect(KEYMAP.find((b) => b.command === 'frequency_view')?.group).toBe('tune');
-    expect(helpLines().find((g) => g.title === 'Tuning aids')?.rows).toHaveLength(5);
+    // The tweak guide too; the hint line (80 columns) has no room for it: the help lists it.
+    expect(commandFor('T')).toBe('tweak');
+    expect(KEYMAP.find((b) => b.command === 'tweak')?.group).toBe('tune');
+    expect(helpLines().find((g) => g.title === 'Tuning aids')?.rows).toHaveLength(6);
   });
 
   it('the list keys come from their own table, for the reducer and the help alike', () => {

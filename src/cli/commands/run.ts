@@ -23,7 +23,7 @@ import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { simulatePlant } from '../simulate-plant.js';
 import { USAGE } from '../usage.js';
 import { writeOutput } from '../write-output.js';
-import { tuningContext, tweakGuide, TWEAK_FIGURES, TWEAK_STEP, type TweakFigure, type TweakGuide } from '../../tune/index.js';
+import { tuningContext, tweakChangeText, tweakGuide, TWEAK_FIGURE_HEADS, TWEAK_FIGURES, TWEAK_STEP, type TweakFigure, type TweakGuide } from '../../tune/index.js';
 
 export type { RunReport } from '../run-report.js';
 
@@ -283,25 +283,10 @@ export function reportJson(report: RunReport): unknown {
   };
 }
 
-const FIGURE_HEAD: Record<TweakFigure, string> = {
-  riseTime: 'rise',
-  overshootPct: 'overshoot',
-  settlingTime: 'settling',
-  iae: 'IAE',
-  peakOutput: 'peak u',
-  travel: 'travel',
-  ms: 'Ms',
-};
-
 /** The tweak guide as a compact table: per parameter and direction, an arrow and the signed change. */
 export function tweakText(g: TweakGuide): string {
-  const cell = (v: number, b: number): string => {
-    const d = v - b;
-    if (!Number.isFinite(d)) return Number.isFinite(b) || Number.isFinite(v) ? (Number.isFinite(v) ? 'now reached' : 'lost') : '-';
-    if (Math.abs(d) <= 1e-3 * Math.max(Math.abs(b), 1e-12)) return '=';
-    return `${d > 0 ? '↑' : '↓'} ${d > 0 ? '+' : ''}${num(d, 3)}`;
-  };
-  const rows: string[][] = [['change', ...TWEAK_FIGURES.map((f) => FIGURE_HEAD[f])]];
+  const cell = (v: number, b: number): string => tweakChangeText(v, b, (x) => num(x, 3));
+  const rows: string[][] = [['change', ...TWEAK_FIGURES.map((f) => TWEAK_FIGURE_HEADS[f])]];
   rows.push(['as is', ...TWEAK_FIGURES.map((f) => (Number.isFinite(g.base[f]) ? num(g.base[f], 4) : '-'))]);
   for (const r of g.rows) {
     rows.push([`${r.parameter} +${100 * TWEAK_STEP} %`, ...TWEAK_FIGURES.map((f) => cell(r.plus[f], g.base[f]))]);

@@ -190,6 +190,10 @@ export function mainCommand(s: ScreenState, c: KeyCommand): ScreenState {
       return effect({ ...s, overlay: { kind: 'compare', entries: null, selected: 0, edited: null } }, { kind: 'compare_start' });
     case 'frequency_view':
       return { ...s, overlay: { kind: 'frequency', page: 0, target: null } };
+    case 'tweak': {
+      const why = aidRefusal(s.current, 'the tweak guide varies');
+      return why !== null ? info(s, why, 'warn') : { ...s, overlay: { kind: 'tweak' } };
+    }
     case 'quit':
       return askQuit(s);
   }
