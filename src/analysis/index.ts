@@ -29,7 +29,7 @@ export { findEquilibrium, steadyStateAtInput } from './equilibrium.js';
 export type { EquilibriumOptions, EquilibriumResult, Equilibrium, NoEquilibrium } from './equilibrium.js';
 export { linearise } from './linearise.js';
 export type { LineariseOptions, LinearisationResult } from './linearise.js';
-export { poles, zeros, poleZeroSummary, describeMode, cancelPairs, originTolerance } from './poles-zeros.js';
+export { poles, zeros, poleZeroSummary, describeMode, cancelPairs, originTolerance, slowestRhpZero } from './poles-zeros.js';
 export type { Root, Mode, PoleZeroSummary } from './poles-zeros.js';
 export { plantFrequencyResponse, rationalEvaluator, controllerResponse, wrapAngle } from './freq-response.js';
 export type { PlantFrequencyResponse, FrequencyGridOptions, RationalEvaluator, LoopExtras } from './freq-response.js';

@@ -154,6 +154,18 @@ export function originTolerance(roots: Root[]): number {
 }
 
 /**
+ * The right-half-plane zero nearest the origin of a summary, |z| in rad/s (NaN when there is
+ * none): the one that limits how fast the loop can be (crossover below about |z|/2, see the
+ * callers). Zeros within the summary's origin tolerance do not count.
+ */
+export function slowestRhpZero(pz: Pick<PoleZeroSummary, 'poles' | 'zeros'>): number {
+  const tol0 = originTolerance(pz.poles.concat(pz.zeros));
+  let z = NaN;
+  for (const q of pz.zeros) if (q.re > tol0 && !(Math.hypot(q.re, q.im) >= z)) z = Math.hypot(q.re, q.im);
+  return z;
+}
+
+/**
  * Remove pole/zero pairs that cancel (closer than `relTol` relative to their magnitude, or both at
  * the origin). Returns the remaining poles and zeros.
  */

@@ -12,6 +12,7 @@ import {
   openLoopStep,
   originTolerance,
   poleZeroSummary,
+  slowestRhpZero,
   type FirstOrderApprox,
   type FopdtFit,
   type HalfRuleResult,
@@ -292,8 +293,8 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   }
 
   // ---------------------------------------------------------------- flags from the linear model
-  flagUnstable(flags, unstablePoles, pz, loopDelay, tol0);
-  flagNonMinimumPhase(flags, pz, d.stepFit, tol0);
+  flagUnstable(flags, unstablePoles, pz, loopDelay);
+  flagNonMinimumPhase(flags, pz, d.stepFit);
   // Lags the half rule folds into the apparent delay: every stable pole (a complex pair as two) and the sensor filter.
   const lagCount = pz.poles.length - pz.integrators + (sensor.filterTime > 0 ? 1 : 0);
   flagDeadTime(flags, d.fopdt, d.sopdt, { trueDelay: loopDelay, inverseResponse: hrLoop.inverseResponseDelay, lags: lagCount });
@@ -404,11 +405,10 @@ function stepFit(
   return safe(() => fitFopdt(resp, model.delay));
 }
 
-function flagUnstable(flags: Flag[], unstable: { re: number; im: number }[], pz: PoleZeroSummary, loopDelay: number, tol0: number): void {
+function flagUnstable(flags: Flag[], unstable: { re: number; im: number }[], pz: PoleZeroSummary, loopDelay: number): void {
   if (unstable.length === 0) return;
   const p = Math.max(...unstable.map((q) => q.re));
-  const rhpZeros = pz.zeros.filter((z) => z.re > tol0).map((z) => Math.hypot(z.re, z.im));
-  const z = rhpZeros.length > 0 ? Math.min(...rhpZeros) : NaN;
+  const z = slowestRhpZero(pz);
   const product = p * loopDelay;
   const severe = product > THRESHOLDS.unstableDelayProduct || z < THRESHOLDS.zeroPoleRatio * p;
   flags.push({
@@ -432,17 +432,16 @@ function flagUnstable(flags: Flag[], unstable: { re: number; im: number }[], pz:
   });
 }
 
-function flagNonMinimumPhase(flags: Flag[], pz: PoleZeroSummary, fit: FopdtFit | null, tol0: number): void {
-  const rhp = pz.zeros.filter((z) => z.re > tol0);
+function flagNonMinimumPhase(flags: Flag[], pz: PoleZeroSummary, fit: FopdtFit | null): void {
+  const z = slowestRhpZero(pz);
   const inverse = fit?.inverseResponse ?? 0;
-  if (rhp.length === 0 && !(inverse > THRESHOLDS.inverseResponse)) return;
-  const z = rhp.length > 0 ? Math.min(...rhp.map((q) => Math.hypot(q.re, q.im))) : NaN;
+  if (Number.isNaN(z) && !(inverse > THRESHOLDS.inverseResponse)) return;
   flags.push({
     kind: 'non_minimum_phase',
     severity: 'warning',
     evidence: { rhp_zero_per_s: num(z), max_crossover_rad_s: num(z / 2), inverse_response_share: fit ? inverse : null },
     advice:
-      (rhp.length > 0
+      (!Number.isNaN(z)
         ? `A right-half-plane zero at ${fmt(z)} 1/s (inverse response): the loop cannot be made faster than about z/2 = ${fmt(z / 2)} rad/s. `
         : `The step response first moves the wrong way (${fmt(100 * inverse, 2)} % of the final change). `) +
       'Detune (lower gain, longer integral time) rather than add derivative action; feedforward from a measured disturbance helps more than a faster loop.',

@@ -40,8 +40,22 @@ function tooFast(t: PoleTarget, fastest: number, h: number, withAlpha: boolean):
   return `target ${targetText(t, withAlpha)} is faster than the sample time ${fmt(h)} s allows (fastest pole × h = ${fmt(fastest * h)} > ${MAX_POLE_TIMES_SAMPLE}): wn <= ${fmt(wnMax)} rad/s can`;
 }
 
-/** PI and PID rows placing `target` on a loop sampled every `h` s. */
-export function poleRules(target: PoleTarget, h: number): TuningRule[] {
+/**
+ * A right-half-plane zero at z limits the crossover to about z/2 (Skogestad & Postlethwaite,
+ * Multivariable Feedback Control, 2nd ed. 2005, ch. 5, from memory; reference sheet section 9);
+ * the pair's natural frequency is the closed loop's bandwidth to first order, so a faster target
+ * would be placed on an approximation that has turned the zero into delay. Null when none is in the way.
+ */
+function zeroInTheWay(t: PoleTarget, z: number, withAlpha: boolean): string | null {
+  if (!(t.wn > z / 2)) return null;
+  return `target ${targetText(t, withAlpha)} cannot be placed: an unstable zero in the way (the model has a right-half-plane zero at ${fmt(z)} 1/s, which allows a bandwidth below about z/2 = ${fmt(z / 2)} rad/s): wn <= ${fmt(z / 2)} rad/s can`;
+}
+
+/**
+ * PI and PID rows placing `target` on a loop sampled every `h` s; `rhpZero`: the model's slowest
+ * right-half-plane zero, rad/s (NaN: none).
+ */
+export function poleRules(target: PoleTarget, h: number, rhpZero = NaN): TuningRule[] {
   return [
     {
       id: 'pole-placement-pi',
@@ -50,7 +64,7 @@ export function poleRules(target: PoleTarget, h: number): TuningRule[] {
       source: SOURCE,
       usesUltimate: false,
       apply: (i: RuleInputs) => {
-        const fast = tooFast(target, target.wn, h, false);
+        const fast = tooFast(target, target.wn, h, false) ?? zeroInTheWay(target, rhpZero, false);
         if (fast !== null) return fast;
         if (i.integrating !== null) return poleplacementIntegratingPi(i.integrating.kv, target);
         if (i.fopdt === null) return 'needs a first-order or integrating model';
@@ -66,7 +80,7 @@ export function poleRules(target: PoleTarget, h: number): TuningRule[] {
       source: SOURCE,
       usesUltimate: false,
       apply: (i: RuleInputs) => {
-        const fast = tooFast(target, Math.max(1, target.alpha) * target.wn, h, true);
+        const fast = tooFast(target, Math.max(1, target.alpha) * target.wn, h, true) ?? zeroInTheWay(target, rhpZero, true);
         if (fast !== null) return fast;
         if (i.sopdt === null || !(i.sopdt.tau2 > 0)) return 'needs a self-regulating model with a second lag (second order approximation)';
         return placed(poleplacementPid(i.sopdt.k, i.sopdt.tau1, i.sopdt.tau2, target), target, true);

@@ -7,6 +7,7 @@
  * derivative filter (extra lag ~h/2 + Td/N ≈ 0.01 s; it moves the poles about 0.6 % here, 1.5 %
  * allowed; at h = 0.05 s the real pole moves 5 %, which is why the report gives achieved poles).
  */
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/index.js';
 import { fakeIo } from '../cli/fake-io.js';
@@ -96,5 +97,21 @@ describe('looprig suggest --poles', () => {
       expect(io.stderr).toMatch(/suggest: --poles/);
       expect(io.stderr).not.toMatch(/at .*\.ts:\d+/);
     }
+  });
+
+  it('refuses a target past an unstable zero on the bundled drum level, naming the bandwidth it allows', async () => {
+    // The drum level's model is (0.11 − 1.65 s)/(s (5 s + 1)): a right-half-plane zero at
+    // z = 0.11/1.65 = 0.0667 1/s (by hand). The crossover limit z/2 = 0.0333 rad/s is the common
+    // rule (Skogestad & Postlethwaite 2005, ch. 5, from memory; reference sheet section 9).
+    const text = readFileSync(new URL('../../plants/drum-level.yaml', import.meta.url), 'utf8');
+    const io = fakeIo({ 'drum.yaml': text });
+    expect(await main(['suggest', 'drum.yaml', '--poles', 'wn=0.1,zeta=0.7', '--json'], io)).toBe(0);
+    const doc = JSON.parse(io.stdout);
+    const pi = doc.skipped.find((k: { id: string }) => k.id === 'pole-placement-pi');
+    expect(pi.reason).toMatch(/an unstable zero in the way .*right-half-plane zero at 0\.0667 1\/s.*z\/2 = 0\.0333 rad\/s\): wn <= 0\.0333 rad\/s can/);
+    // A target within the limit is placed (and simulated like every row).
+    const ok = fakeIo({ 'drum.yaml': text });
+    expect(await main(['suggest', 'drum.yaml', '--poles', 'wn=0.03,zeta=0.7', '--json'], ok)).toBe(0);
+    expect(JSON.parse(ok.stdout).suggestions.some((s: { rule: string }) => s.rule === 'pole-placement-pi')).toBe(true);
   });
 });
