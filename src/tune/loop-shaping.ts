@@ -132,20 +132,28 @@ export function shapePid(loop: DesignLoop, t: ShapingTarget, sign: 1 | -1): Shap
   return finish(loop, t, gains(td ?? from), 'PID', () => reachable(loop, t, gains, from, to), td !== null);
 }
 
-/** The loop-shaping rows of `suggest` (PI, and PID with Ti = R Td), as rules of the common shape. */
-export function shapingRules(loop: DesignLoop | null, t: ShapingTarget, sign: 1 | -1): TuningRule[] {
-  const SOURCE = 'loop shaping at the crossover (Åström & Murray, Feedback Systems, 2008, sec. 11.4)';
-  const row = (id: string, label: string, structure: 'pi' | 'pid', shape: typeof shapePi): TuningRule => ({
+/**
+ * The loop-shaping rows of `suggest` (PI, and PID with Ti = R Td) from a design per structure, as
+ * rules of the common shape: the phase-margin design here, the Ms one in ms-shaping.ts.
+ */
+export function shapingRows(loop: DesignLoop | null, source: string, design: (loop: DesignLoop, structure: 'pi' | 'pid') => Shaped): TuningRule[] {
+  const row = (id: string, label: string, structure: 'pi' | 'pid'): TuningRule => ({
     id,
     label,
     structure,
-    source: SOURCE,
+    source,
     usesUltimate: false,
     apply: () => {
       if (loop === null) return 'needs a linear model of the loop';
-      const r = shape(loop, t, sign);
+      const r = design(loop, structure);
       return 'reason' in r ? r.reason : { form: 'ideal', kc: r.kc, ti: r.ti, td: r.td };
     },
   });
-  return [row('loop-shaping-pi', 'PI by loop shaping', 'pi', shapePi), row('loop-shaping-pid', 'PID by loop shaping', 'pid', shapePid)];
+  return [row('loop-shaping-pi', 'PI by loop shaping', 'pi'), row('loop-shaping-pid', 'PID by loop shaping', 'pid')];
+}
+
+/** The loop-shaping rows at a crossover and phase margin. */
+export function shapingRules(loop: DesignLoop | null, t: ShapingTarget, sign: 1 | -1): TuningRule[] {
+  const SOURCE = 'loop shaping at the crossover (Åström & Murray, Feedback Systems, 2008, sec. 11.4)';
+  return shapingRows(loop, SOURCE, (l, structure) => (structure === 'pi' ? shapePi : shapePid)(l, t, sign));
 }

@@ -19,6 +19,7 @@ import { poleDelayNote, poleRules } from './pole-rules.js';
 import type { PoleTarget } from './rules/pole-placement.js';
 import { shapingRules, type ShapingTarget } from './loop-shaping.js';
 import { contextDesignLoop } from './design-loop.js';
+import { msShapingRules, type MsShapingTarget } from './ms-shaping.js';
 import { msPiRule } from './ms-constrained-pi.js';
 import { poleZeroSummary, sampledClosedLoopPoles, slowestRhpZero, type SampledPoles } from '../analysis/index.js';
 
@@ -47,8 +48,8 @@ export interface SuggestOptions {
   context?: TuningContext;
   /** Closed-loop pole target: adds the pole-placement rows (PI, PID where the model allows). */
   poles?: PoleTarget | null;
-  /** Crossover and phase-margin target: adds the loop-shaping rows (PI, PID). */
-  shaping?: ShapingTarget | null;
+  /** Crossover and phase-margin (or Ms) target: adds the loop-shaping rows (PI, PID). */
+  shaping?: LoopShapingTarget | null;
   /** Ms limit: adds the Ms-constrained PI row (largest integral gain with Ms <= this). */
   maxMs?: number | null;
 }
@@ -57,7 +58,10 @@ export interface SuggestOptions {
  * What a design row aimed at and what the loop does. Loop shaping: the target only (what the loop
  * achieves is the evaluation's margins, the project's one margins path).
  */
-export type DesignOutcome = PoleOutcome | { kind: 'shaping'; target: ShapingTarget } | { kind: 'ms'; maxMs: number };
+export type DesignOutcome = PoleOutcome | { kind: 'shaping'; target: LoopShapingTarget } | { kind: 'ms'; maxMs: number };
+
+/** A loop-shaping target: a crossover with a phase margin, or with an Ms (ms-shaping.ts). */
+export type LoopShapingTarget = ShapingTarget | MsShapingTarget;
 
 /** A pole-placement row's target and achieved poles. */
 export interface PoleOutcome {
@@ -159,7 +163,8 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime, ctx.linear ? slowestRhpZero(poleZeroSummary(ctx.linear)) : NaN) : [];
   // The designs' loop: Ms is the one every row is judged by (the worst over the operating points).
   const loop = contextDesignLoop(ctx);
-  const shapeRules = options.shaping ? shapingRules(loop, options.shaping, plantSign(inputs)) : [];
+  const st = options.shaping;
+  const shapeRules = !st ? [] : 'ms' in st ? msShapingRules(loop, st, plantSign(inputs)) : shapingRules(loop, st, plantSign(inputs));
   const msRules = options.maxMs ? [msPiRule(loop, options.maxMs, plantSign(inputs))] : [];
   const rules = [...TUNING_RULES.filter((r) => !wanted || wanted.has(r.id)), ...designRules, ...shapeRules, ...msRules];
   if (options.poles) {

@@ -40,7 +40,7 @@ describe('looprig suggest --crossover --phase-margin', () => {
     expect(Object.keys(pid.values).sort()).toEqual(['kd', 'ki', 'kp']);
     expect(pid.phase_margin_deg).toBeCloseTo(60, 2);
     expect(pid.ideal.ti / pid.ideal.td).toBeCloseTo(4, 9);
-    expect(pid.design).toEqual({ kind: 'shaping', target: { crossover: 0.5, phase_margin_deg: 60, ti_td_ratio: 4 } });
+    expect(pid.design).toEqual({ kind: 'shaping', target: { crossover: 0.5, phase_margin_deg: 60, ms: null, ti_td_ratio: 4 } });
     const pi = doc.skipped.find((s: { id: string }) => s.id === 'loop-shaping-pi');
     expect(pi.reason).toMatch(/no PI puts the loop at phase margin 60° at 0.5 rad\/s: there the PI reaches/);
   });

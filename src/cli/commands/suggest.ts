@@ -6,7 +6,7 @@ import { countOption, onePositional, parseCommandArgs, timeOption } from '../par
 import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
 import { MIN_SAMPLE_TIME } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
-import type { PoleTarget, ShapingTarget } from '../../tune/index.js';
+import type { LoopShapingTarget, PoleTarget } from '../../tune/index.js';
 import { caseFigures, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
@@ -34,6 +34,9 @@ Options:
   --crossover W --phase-margin DEG
                  add PI and PID rows putting the loop's gain crossover at W rad/s with that phase
                  margin (PID with Ti = R·Td), with the achieved margins of the loop
+  --crossover W --ms M
+                 the same rows with the sensitivity peak Ms = M instead of a phase margin (of
+                 the solutions, the largest integral gain); --ms also adds the row below
   --ti-td-ratio R
                  Ti/Td of the loop-shaping PID (default 4)
   --ms M         add the Ms-constrained PI row: the largest integral gain with Ms <= M (M > 1)
@@ -51,7 +54,7 @@ interface SuggestArgs {
   lambda: number | null;
   relay: boolean;
   poles: PoleTarget | null;
-  shaping: ShapingTarget | null;
+  shaping: LoopShapingTarget | null;
   maxMs: number | null;
   samples: number;
   jobs: number;
@@ -85,7 +88,7 @@ function parseSuggestArgs(args: readonly string[], env: Io['env']): SuggestArgs 
     lambda: timeOption('suggest', 'lambda', values.lambda, { min: MIN_SAMPLE_TIME }),
     relay: values.relay === true,
     poles: values.poles === undefined ? null : parsePoles(values.poles),
-    shaping: parseShaping(values.crossover, values['phase-margin'], values['ti-td-ratio']),
+    shaping: parseShaping(values.crossover, values['phase-margin'], values['ti-td-ratio'], values.ms),
     maxMs: values.ms === undefined ? null : parseMaxMs(values.ms),
     samples,
     jobs,
@@ -121,14 +124,27 @@ function parseMaxMs(raw: string): number {
   return v;
 }
 
-/** --crossover and --phase-margin (both or neither) and --ti-td-ratio → a loop-shaping target. */
-export function parseShaping(crossover: string | undefined, pm: string | undefined, ratio: string | undefined): ShapingTarget | null {
+/**
+ * --crossover with --phase-margin or with --ms, and --ti-td-ratio → a loop-shaping target (null:
+ * no --crossover; --ms alone is the Ms-constrained PI only).
+ */
+export function parseShaping(crossover: string | undefined, pm: string | undefined, ratio: string | undefined, ms?: string): LoopShapingTarget | null {
   if (crossover === undefined && pm === undefined) {
-    if (ratio !== undefined) throw new UserError('suggest: --ti-td-ratio goes with --crossover and --phase-margin');
+    if (ratio !== undefined) throw new UserError('suggest: --ti-td-ratio goes with --crossover and --phase-margin (or --ms)');
     return null;
   }
-  if (crossover === undefined || pm === undefined) throw new UserError('suggest: --crossover W (rad/s) and --phase-margin DEG go together, e.g. --crossover 0.1 --phase-margin 60');
-  return { crossover: positive('crossover', crossover), phaseMarginDeg: positive('phase-margin', pm, 180), tiTdRatio: ratio === undefined ? 4 : positive('ti-td-ratio', ratio) };
+  if (crossover === undefined) throw new UserError('suggest: --phase-margin goes with --crossover W (rad/s), e.g. --crossover 0.1 --phase-margin 60');
+  if (pm !== undefined && ms !== undefined) throw new UserError('suggest: with --crossover give --phase-margin DEG or --ms M as the target, not both');
+  if (pm === undefined && ms === undefined) throw new UserError('suggest: --crossover W (rad/s) goes with --phase-margin DEG or --ms M, e.g. --crossover 0.1 --phase-margin 60');
+  const tiTdRatio = ratio === undefined ? 4 : positive('ti-td-ratio', ratio);
+  if (ms !== undefined) return { crossover: positive('crossover', crossover), ms: parseMaxMs(ms), tiTdRatio };
+  return { crossover: positive('crossover', crossover), phaseMarginDeg: positive('phase-margin', pm!, 180), tiTdRatio };
+}
+
+/** A crossover at or above the Nyquist frequency π/h of the file's sample time cannot be designed for: exit 2 with the limit. */
+function checkCrossover(t: LoopShapingTarget | null, h: number): void {
+  if (t === null || t.crossover < Math.PI / h) return;
+  throw new UserError(`suggest: --crossover ${num(t.crossover)} rad/s is at or above the Nyquist frequency π/h = ${num(Math.PI / h, 4)} rad/s of the sample time ${num(h)} s: choose a crossover below it (a tenth of it or less is usual)`);
 }
 
 /** A continuous-time pole as `-0.21±0.214j` (the pair once). */
@@ -185,7 +201,8 @@ function designLines(r: SuggestResult): string[] {
       const t = d.target;
       const m = s.evaluation.margins;
       const got = m ? `crossover ${num(m.crossoverFrequency, 4)} rad/s, phase margin ${num(m.phaseMarginDeg, 3)}°, GM ${num(m.gainMargin, 3, 'inf')}, Ms ${num(m.maxSensitivity, 3)}` : 'no margins (no linear model)';
-      shaping.push(`  ${s.rule.label}: target crossover ${num(t.crossover, 4)} rad/s, phase margin ${num(t.phaseMarginDeg, 3)}°${s.structure === 'pid' ? `, Ti/Td ${num(t.tiTdRatio, 3)}` : ''}; achieved ${got}`);
+      const aim = 'ms' in t ? `Ms ${num(t.ms, 3)}` : `phase margin ${num(t.phaseMarginDeg, 3)}°`;
+      shaping.push(`  ${s.rule.label}: target crossover ${num(t.crossover, 4)} rad/s, ${aim}${s.structure === 'pid' ? `, Ti/Td ${num(t.tiTdRatio, 3)}` : ''}; achieved ${got}`);
     } else {
       const t = d.target;
       const pair = poleText(-t.zeta * t.wn, t.wn * Math.sqrt(Math.max(0, 1 - t.zeta * t.zeta)));
@@ -245,7 +262,10 @@ function designJson(s: Suggestion): unknown {
   if (d === null) return null;
   // Loop shaping: what the loop achieves is the row's margins (crossover, phase margin above).
   if (d.kind === 'ms') return { kind: d.kind, max_ms: d.maxMs };
-  if (d.kind === 'shaping') return { kind: d.kind, target: { crossover: d.target.crossover, phase_margin_deg: d.target.phaseMarginDeg, ti_td_ratio: d.target.tiTdRatio } };
+  if (d.kind === 'shaping') {
+    const t = d.target;
+    return { kind: d.kind, target: { crossover: t.crossover, phase_margin_deg: 'ms' in t ? null : t.phaseMarginDeg, ms: 'ms' in t ? t.ms : null, ti_td_ratio: t.tiTdRatio } };
+  }
   return {
     kind: d.kind,
     target: d.target,
@@ -316,6 +336,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
   }
   const loaded = loadPlantFile(options.file, io);
   const { plant, text } = loaded;
+  checkCrossover(options.shaping, plant.loop.sampleTime);
   const sweep = { samples: options.samples };
   // Every rule's trial, and its sweep over the uncertainty.
   const cases = sweepCaseCount(plant, { ...sweep, nominal: false }) + 1;
