@@ -1,11 +1,13 @@
 /**
  * The tuning-rule suggestions for the gain set being edited, computed one rule at a time so the
  * screen keeps answering keys: each `step` runs rules through tune's `suggestGains` (its `rules`
- * option, one id per call, the prepared context shared) until its time slice is used up. The
- * rows are what `suggestGains` measured; nothing is estimated here.
+ * option, one id per call, the prepared context shared) until its time slice is used up. After
+ * the rules come the model-based design rows (pole placement, loop shaping, the Ms-constrained
+ * PI), one design per step, at the targets tune's defaultDesignTargets chooses from the model.
+ * The rows are what `suggestGains` measured; nothing is estimated here.
  */
 import { effectiveMs, headlineMetrics, headlineNumber } from '../analysis/index.js';
-import { suggestGains, TUNING_RULES, type GainFlag, type Suggestion } from '../tune/index.js';
+import { defaultDesignTargets, ruleInputsOf, suggestGains, TUNING_RULES, type DesignDefaults, type GainFlag, type SuggestOptions, type Suggestion, type TuningContext } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
 import type { GainEdit } from './gain-edit.js';
 import type { SuggestRow, SuggestView } from './tuning-views.js';
@@ -42,7 +44,29 @@ export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
     gm: m === null ? NaN : m.gainMargin,
     flags,
     oscillation: s.rule.usesUltimate,
+    design: designText(s),
   };
+}
+
+/** What a design row aimed at, in a few words (the rules: null). */
+function designText(s: Suggestion): string | null {
+  const d = s.design;
+  if (d === null) return null;
+  const f = (x: number): string => String(Number(x.toPrecision(3)));
+  if (d.kind === 'ms') return `target Ms ≤ ${f(d.maxMs)}`;
+  if (d.kind === 'poles') return `target poles wn ${f(d.target.wn)} rad/s, zeta ${f(d.target.zeta)}${s.structure === 'pid' ? `, alpha ${f(d.target.alpha)}` : ''}`;
+  const t = d.target;
+  return `target crossover ${f(t.crossover)} rad/s, ${'ms' in t ? `Ms ${f(t.ms)}` : `phase margin ${f(t.phaseMarginDeg)}°`}`;
+}
+
+/** The design steps after the rules, each one suggestGains call with that design's option. */
+export const DESIGN_STEPS = ['design:poles', 'design:shaping', 'design:ms'] as const;
+
+/** The suggestGains option of a design step at the default targets (null: no target to aim at). */
+function designOption(step: string, d: DesignDefaults): Partial<SuggestOptions> | null {
+  if (step === 'design:poles') return d.poles && { poles: d.poles };
+  if (step === 'design:shaping') return d.shaping && { shaping: d.shaping };
+  return { maxMs: d.maxMs };
 }
 
 export class SuggestJob {
@@ -53,17 +77,31 @@ export class SuggestJob {
   private notes: string[] = [];
   private readonly ids: readonly string[];
   private next = 0;
+  private design: DesignDefaults | null = null;
 
   /**
    * @param base the gain set the rules keep their filter, weights and anti-windup from
-   * @param rules rule ids to run (default every rule of the table)
+   * @param rules rule ids to run (default every rule of the table, then the design rows)
    */
   constructor(
     private readonly setup: LoopSetup,
     readonly base: GainEdit,
     rules?: readonly string[],
   ) {
-    this.ids = rules ?? TUNING_RULES.map((r) => r.id);
+    this.ids = rules ?? [...TUNING_RULES.map((r) => r.id), ...DESIGN_STEPS];
+  }
+
+  /** One rule's call, or one design's at the default targets. */
+  private run(ctx: TuningContext, id: string): ReturnType<typeof suggestGains> | null {
+    if (!id.startsWith('design:')) return suggestGains(ctx.spec, { context: ctx, robustness: false, rules: [id] });
+    this.design ??= defaultDesignTargets(ctx, ruleInputsOf(ctx).inputs);
+    const option = designOption(id, this.design);
+    if (option === null) {
+      const label = id === 'design:poles' ? 'PI and PID by pole placement' : 'PI and PID by loop shaping';
+      this.skipped.push({ label, reason: 'no default target: no linear model with a lag, delay or zero to choose a bandwidth from' });
+      return null;
+    }
+    return suggestGains(ctx.spec, { context: ctx, robustness: false, rules: [], ...option });
   }
 
   get finished(): boolean {
@@ -76,10 +114,12 @@ export class SuggestJob {
     const ctx = contextFor(this.setup, this.base);
     while (this.next < this.ids.length) {
       const id = this.ids[this.next];
-      const r = suggestGains(ctx.spec, { context: ctx, robustness: false, rules: [id] });
-      // The notes are about the plant and its approximation: the same on every call.
-      if (this.next === 0) this.notes = r.notes;
+      const r = this.run(ctx, id);
       this.next++;
+      if (r === null) continue;
+      // The notes are about the plant and its approximation: the same on every call.
+      if (this.next === 1) this.notes = r.notes;
+      else if (id.startsWith('design:')) for (const n of r.notes) if (!this.notes.includes(n)) this.notes.push(n);
       for (const s of r.suggestions) {
         this.suggestions.push(s);
         this.rows.push(suggestionRow(s, this.base));
@@ -97,7 +137,7 @@ export class SuggestJob {
       total: this.ids.length,
       finished: this.finished,
       skipped: [...this.skipped],
-      notes: [...this.notes],
+      notes: this.design === null ? [...this.notes] : [...this.notes, this.design.basis],
     };
   }
 }

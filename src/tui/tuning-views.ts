@@ -35,6 +35,8 @@ export interface SuggestRow {
    * into a sustained oscillation (relay test or ultimate-cycle experiment), hence the caution.
    */
   readonly oscillation: boolean;
+  /** A design row's target in words (pole placement, loop shaping, Ms limit); null for the rules. */
+  readonly design?: string | null;
 }
 
 /** The suggestion list as computed so far (rules run one slice at a time). */

@@ -29,7 +29,7 @@ import { structureMargins, type StructureMargins } from './structure-margins.js'
 import { resolveController, startState, StructureUnavailable, trialSetpoints } from './structure-tuning.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 import { frameWithGains } from './gain-sets.js';
-import { createOptimizer, DEFAULT_EVALUATIONS, DEFAULT_MS_TARGET, type BindingConstraint, type OptimizeStop } from './optimize.js';
+import { createOptimizer, DEFAULT_EVALUATIONS, fileMsTarget, type BindingConstraint, type OptimizeStop } from './optimize.js';
 
 /** Options of `compareCandidates`. */
 export interface CompareOptions {
@@ -528,7 +528,7 @@ export function* compareSteps(spec: PlantSpec, options: CompareOptions = {}): Ge
     for (const n of new Set(plan.notes)) notes.push(`uncertainty cases: ${n}`);
   }
   const fight: FairFight = {
-    msTarget: options.msTarget ?? spec.loop.requirements.maxSensitivity ?? DEFAULT_MS_TARGET,
+    msTarget: options.msTarget ?? fileMsTarget(spec),
     evaluations: options.evaluations ?? DEFAULT_EVALUATIONS,
   };
   const candidates: CandidateReport[] = [];

@@ -5,7 +5,7 @@
  * gain set whose filter, weights and anti-windup a design keeps, and the project's one Ms of a
  * gain set on the loop.
  */
-import { effectiveMs, loopMargins, type PlantFrequencyResponse } from '../analysis/index.js';
+import { effectiveMs, loopMargins, poleZeroSummary, slowestRhpZero, type PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, SensorSpec } from '../model/types.js';
 import { gainMargins } from './gain-margins.js';
 import type { TuningContext } from './tuning-context.js';
@@ -50,4 +50,12 @@ export function contextDesignLoop(ctx: TuningContext): DesignLoop | null {
     base: ctx.spec.loop.controller.gains,
     ms: (g) => effectiveMs(gainMargins(ctx, g)),
   };
+}
+
+/**
+ * The slowest right-half-plane zero of the context's linear model, rad/s (NaN: none, or no linear
+ * model): what bounds the bandwidth a design may aim at.
+ */
+export function contextRhpZero(ctx: TuningContext): number {
+  return ctx.linear === null ? NaN : slowestRhpZero(poleZeroSummary(ctx.linear));
 }

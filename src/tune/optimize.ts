@@ -44,6 +44,11 @@ export const DEFAULT_EVALUATIONS = 300;
 /** Default Ms target when the file has no max_sensitivity requirement. */
 export const DEFAULT_MS_TARGET = 1.6;
 
+/** The Ms a file's gains are held to: its max_sensitivity requirement, else DEFAULT_MS_TARGET. */
+export function fileMsTarget(spec: PlantSpec): number {
+  return spec.loop.requirements.maxSensitivity ?? DEFAULT_MS_TARGET;
+}
+
 /** Options of `createOptimizer` / `optimizeGains`. */
 export interface OptimizeOptions {
   /** The law searched (default: the frame's law; else PID when the file's law has derivative action, else PI). */
@@ -286,7 +291,7 @@ const hasDerivative = (law: ControllerStructure): boolean => law === 'pd' || law
 export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {}): Optimizer {
   const spec = ctx.spec;
   const cost: CostSpec = { ...DEFAULT_COST, ...options.cost };
-  const msTarget = options.msTarget ?? spec.loop.requirements.maxSensitivity ?? DEFAULT_MS_TARGET;
+  const msTarget = options.msTarget ?? fileMsTarget(spec);
   if (!(msTarget > 1)) throw new RangeError('msTarget must be > 1');
   const maxEvaluations = options.maxEvaluations ?? DEFAULT_EVALUATIONS;
   const timeLimit = options.timeLimitMs;

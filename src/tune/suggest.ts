@@ -18,10 +18,10 @@ import { tuningContext, type TuningContext } from './tuning-context.js';
 import { poleDelayNote, poleRules } from './pole-rules.js';
 import type { PoleTarget } from './rules/pole-placement.js';
 import { shapingRules, type ShapingTarget } from './loop-shaping.js';
-import { contextDesignLoop } from './design-loop.js';
+import { contextDesignLoop, contextRhpZero } from './design-loop.js';
 import { msShapingRules, type MsShapingTarget } from './ms-shaping.js';
 import { msPiRule } from './ms-constrained-pi.js';
-import { poleZeroSummary, sampledClosedLoopPoles, slowestRhpZero, type SampledPoles } from '../analysis/index.js';
+import { sampledClosedLoopPoles, type SampledPoles } from '../analysis/index.js';
 
 /** Options of `suggestGains`. */
 export interface SuggestOptions {
@@ -160,7 +160,7 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
   const suggestions: Suggestion[] = [];
   const skipped: SuggestResult['skipped'] = [];
   // Design rows are asked for by their own option, so a rule filter does not drop them.
-  const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime, ctx.linear ? slowestRhpZero(poleZeroSummary(ctx.linear)) : NaN) : [];
+  const designRules = options.poles ? poleRules(options.poles, spec.loop.sampleTime, contextRhpZero(ctx)) : [];
   // The designs' loop: Ms is the one every row is judged by (the worst over the operating points).
   const loop = contextDesignLoop(ctx);
   const st = options.shaping;

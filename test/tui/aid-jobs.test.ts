@@ -10,13 +10,13 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { loadPlant } from '../../src/model/index.js';
 import type { GainSet, PlantSpec } from '../../src/model/types.js';
-import { compareCandidates, DEFAULT_COST, evaluateGains, optimizeGains, optimizerScore, robustnessSweep, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
+import { compareCandidates, DEFAULT_COST, defaultDesignTargets, evaluateGains, optimizeGains, optimizerScore, robustnessSweep, ruleInputsOf, suggestGains, TUNING_RULES, type TraceEnvelope } from '../../src/tune/index.js';
 import { candidateEntries, editedEntry } from '../../src/tui/candidates.js';
 import { contextFor, evaluate, fileEdit, plantFor, runningGains, setupLoop } from '../../src/tui/engine.js';
 import { EnvelopeJob, mergeEnvelope, sweepPlan } from '../../src/tui/envelope-job.js';
 import { OptimizeJob } from '../../src/tui/optimize-job.js';
 import { SliceRunner } from '../../src/tui/slice-runner.js';
-import { SuggestJob } from '../../src/tui/suggest-job.js';
+import { DESIGN_STEPS, SuggestJob } from '../../src/tui/suggest-job.js';
 
 function plant(dir: string, name: string): PlantSpec {
   const r = loadPlant(readFileSync(join(dir, name), 'utf8'), name);
@@ -35,12 +35,19 @@ describe('tui SuggestJob: the rules one slice at a time', () => {
     let slices = 0;
     // A zero budget runs one rule per slice.
     while (!job.step(0)) slices++;
-    expect(slices + 1).toBe(TUNING_RULES.length);
-    const once = suggestGains(plantFor(setup, base), { robustness: false });
+    // Then the three design steps (pole placement, loop shaping, Ms-constrained PI).
+    expect(slices + 1).toBe(TUNING_RULES.length + DESIGN_STEPS.length);
+    const ctx = contextFor(setup, base);
+    const design = defaultDesignTargets(ctx, ruleInputsOf(ctx).inputs);
+    const once = suggestGains(plantFor(setup, base), { robustness: false, poles: design.poles, shaping: design.shaping, maxMs: design.maxMs });
     const v = job.view();
     expect(v.finished).toBe(true);
     expect(v.rows.map((r) => r.label)).toEqual(once.suggestions.map((s) => s.rule.label));
+    expect(v.rows.map((r) => r.label)).toContain('PI by pole placement');
+    expect(v.rows.map((r) => r.label)).toContain('PI by loop shaping');
+    expect(v.rows.map((r) => r.label)).toContain('Ms-constrained PI');
     expect(v.skipped.map((k) => k.label)).toEqual(once.skipped.map((k) => k.label));
+    expect(v.notes.at(-1)).toBe(design.basis);
     v.rows.forEach((r, i) => {
       const s = once.suggestions[i];
       expect(r.edit.gains).toEqual(s.gains);

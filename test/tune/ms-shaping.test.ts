@@ -6,6 +6,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { heaterText } from './heater-text.js';
 import { main } from '../../src/cli/index.js';
 import { shapePi, shapeToMs } from '../../src/tune/index.js';
 import { fakeIo } from '../cli/fake-io.js';
@@ -66,18 +67,7 @@ describe('loop shaping to an Ms: python-control Ms and crossover of the sampled 
   });
 });
 
-const FILE = `name: Heater
-model: { type: first_order, gain: 2, time_constant: 10 s, delay: 1 s }
-actuator: { min: -1000, max: 1000 }
-loop:
-  sample_time: 0.1 s
-  controller: { structure: pi, form: ideal, kc: 1, ti: 10 s }
-  trial:
-    duration: 60 s
-    initial_setpoint: 0
-    events:
-      - { at: 1 s, setpoint: 1 }
-`;
+const FILE = heaterText();
 
 describe('looprig suggest --crossover W --ms M', () => {
   it('adds loop-shaping rows at the Ms (and the Ms-constrained PI); their evaluated Ms is the target within 1 %', async () => {

@@ -7,23 +7,13 @@
  *   no source; Ang, Chong & Li 2005 Table I from memory) or the row says why not.
  */
 import { describe, expect, it } from 'vitest';
+import { heaterText } from './heater-text.js';
 import { headlineMetrics, headlineNumber } from '../../src/analysis/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import { simulateGains, tuningContext, tweakGuide, tweakGuideSteps, TWEAK_FIGURE_WORDS } from '../../src/tune/index.js';
 import { readFileSync } from 'node:fs';
 
-const HEATER = `name: Heater
-model: { type: first_order, gain: 2, time_constant: 10 s, delay: 1 s }
-actuator: { min: -1000, max: 1000 }
-loop:
-  sample_time: 0.1 s
-  controller: { structure: pid, form: ideal, kc: 2, ti: 8 s, td: 0.5 s }
-  trial:
-    duration: 60 s
-    initial_setpoint: 0
-    events:
-      - { at: 1 s, setpoint: 1 }
-`;
+const HEATER = heaterText('{ structure: pid, form: ideal, kc: 2, ti: 8 s, td: 0.5 s }');
 
 describe('tweak guide', () => {
   it('linear plant: the batched variants equal separate runs (central difference from separate runs)', () => {

@@ -103,8 +103,8 @@ export function SuggestPanel(p: SuggestPanelProps) {
       { text: gainsText(sel.edit) },
       { text: sel.flags.length > 0 ? `  ! ${sel.flags.join(', ')}` : '', color: t.warn },
     ]);
-    const from = sel.diverged ? '' : figuresFrom(sel.head);
-    if (from !== '') detail.push([{ text: from.trim(), color: t.dim }]);
+    const from = [sel.diverged ? '' : figuresFrom(sel.head).trim(), sel.design ?? ''].filter((x) => x !== '').join('  ');
+    if (from !== '') detail.push([{ text: from, color: t.dim }]);
   }
   if (v !== null && v.finished && v.skipped.length > 0) {
     detail.push([{ text: `not applicable: ${v.skipped.map((k) => `${k.label} (${k.reason})`).join('; ')}`, color: t.dim }]);
