@@ -82,6 +82,11 @@ export interface OptimizeOptions {
   /** Rule parameters passed to the start search (see suggestGains). */
   lambda?: number | null;
   tauc?: number | null;
+  /**
+   * For a PI search, the Ms-constrained PI at the run's Ms target is a start candidate beside
+   * the rules (default true; false only to measure what it brings, test/bench/design.bench.ts).
+   */
+  msPiStart?: boolean;
 }
 
 /** Where a run is. */
@@ -245,6 +250,9 @@ function msFeasible(ms: number, msTarget: number): boolean {
   return Number.isNaN(ms) || ms <= msTarget;
 }
 
+/** The start step that designs the Ms-constrained PI (not a rule of the table: a design row). */
+const MS_PI_START = 'ms-constrained-pi';
+
 /** Factor on kc per step while a start above the Ms target is backed off (common practice, no source). */
 const BACK_OFF = 0.8;
 
@@ -308,6 +316,8 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
 
   // Start candidates: the law's rules one per step, then the own gains (when they run this law).
   const ruleIds = options.start !== undefined ? [] : TUNING_RULES.filter((r) => r.structure === law).map((r) => r.id);
+  // The PI that maximises integral gain under the Ms target: a start made for this very constraint.
+  if (options.start === undefined && law === 'pi' && options.msPiStart !== false) ruleIds.push(MS_PI_START);
   const own = options.own ?? { label: "the file's gains", gains: spec.loop.controller.gains };
   const ownCandidate = options.start === undefined && frame0 === undefined && spec.loop.controller.structure === law;
   const startTotal = ruleIds.length + (ownCandidate ? 1 : 0);
@@ -346,7 +356,9 @@ export function createOptimizer(ctx: TuningContext, options: OptimizeOptions = {
 
   function startOne(): void {
     if (startDone < ruleIds.length) {
-      const s = suggestGains(spec, { cost, lambda: options.lambda ?? null, tauc: options.tauc ?? null, robustness: false, context: ctx, rules: [ruleIds[startDone]] });
+      const id = ruleIds[startDone];
+      const one = id === MS_PI_START ? { rules: [], maxMs: msTarget } : { rules: [id] };
+      const s = suggestGains(spec, { cost, lambda: options.lambda ?? null, tauc: options.tauc ?? null, robustness: false, context: ctx, ...one });
       for (const x of s.suggestions) candidates.push({ label: x.rule.label, gains: x.gains, evaluation: x.evaluation, rule: x });
     } else if (ownCandidate) {
       ownEvaluation = evaluate(own.gains, frame0);

@@ -2,7 +2,9 @@
  * Design-rows benchmark: `suggest` with the pole-placement, loop-shaping and Ms-constrained PI
  * rows on every bundled plant (target < 300 ms each), against `suggest` without them in the same
  * run; and the tweak guide on the surge tank (target < 150 ms) against the bare simulations it
- * holds (one runTrial of the file's controller times the number of variants).
+ * holds (one runTrial of the file's controller times the number of variants); and the PI
+ * optimiser on every bundled plant with and without the Ms-constrained PI among its starts (cost
+ * reached, evaluations, wall time: the evaluations and costs are the same on any machine).
  *
  * Run: `npx tsx test/bench/design.bench.ts` or `npm run bench -- design`.
  */
@@ -10,7 +12,7 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { buildController } from '../../src/control/index.js';
 import { runTrial } from '../../src/sim/index.js';
-import { suggestGains, tuningContext, tweakGuide } from '../../src/tune/index.js';
+import { optimizeGains, suggestGains, tuningContext, tweakGuide } from '../../src/tune/index.js';
 import type { SuggestOptions } from '../../src/tune/index.js';
 import { bundledPlants, load, PLANTS_DIR } from './bundled-plants.js';
 import { median } from './median.js';
@@ -59,6 +61,27 @@ export async function run(): Promise<void> {
     `tweak guide on the surge tank: ${guideMs.toFixed(0)} ms ${guideMs < 150 ? 'ok' : 'SLOW'} (target < 150 ms) for ${variants} simulations; ` +
       `${variants} bare runTrial ${(variants * bare).toFixed(0)} ms (ratio ${(guideMs / (variants * bare)).toFixed(2)})`,
   );
+  optimiserStarts();
+}
+
+/** The PI optimiser from the best start with and without the Ms-constrained PI among the candidates. */
+function optimiserStarts(): void {
+  console.log('PI optimiser: without / with the Ms-constrained PI as a start candidate');
+  for (const { file, spec } of bundledPlants()) {
+    const ctx = tuningContext(spec);
+    const run = (msPiStart: boolean) => {
+      const t0 = performance.now();
+      const r = optimizeGains(spec, { context: ctx, structure: 'pi', msPiStart });
+      return { r, ms: performance.now() - t0 };
+    };
+    const a = run(false);
+    const b = run(true);
+    const f = (x: number): string => x.toPrecision(5);
+    console.log(
+      `  ${file.padEnd(36)} start ${a.r.startLabel} / ${b.r.startLabel}; cost ${f(a.r.best.cost)} / ${f(b.r.best.cost)} (ratio ${(b.r.best.cost / a.r.best.cost).toFixed(3)}); ` +
+        `evaluations ${a.r.evaluations} / ${b.r.evaluations}; ${a.ms.toFixed(0)} / ${b.ms.toFixed(0)} ms`,
+    );
+  }
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();

@@ -192,3 +192,28 @@ describe('optimizeGains on the surge tank demo (saturated_time 10 min in the fil
     expect(free.best.flags.map((f) => f.code)).toContain('NOISE_AT_RATE_LIMIT');
   });
 });
+
+describe('optimizeGains: the Ms-constrained PI among the PI starts', () => {
+  const spec = fopdtPlant({ duration: 30 });
+  const piRules = suggestGains(spec, { robustness: false }).suggestions.filter((s) => s.structure === 'pi').length;
+
+  it('is one more start candidate of a PI search (none for PID), unless turned off', () => {
+    const ctx = tuningContext(spec);
+    const total = (o: Parameters<typeof createOptimizer>[1]) => createOptimizer(ctx, o).progress.startTotal;
+    const own = spec.loop.controller.structure === 'pi' ? 1 : 0;
+    expect(total({ structure: 'pi' })).toBe(piRules + 1 + own);
+    expect(total({ structure: 'pi', msPiStart: false })).toBe(piRules + own);
+    expect(total({ structure: 'pid' })).toBe(total({ structure: 'pid', msPiStart: false }));
+  });
+
+  it('bundled pipe outlet temperature (measured): it is the start chosen, and the search ends lower than without it', () => {
+    const text = readFileSync(join(import.meta.dirname, '..', '..', 'plants', 'pipe-outlet-temperature.yaml'), 'utf8');
+    const pipe = loadPlant(text, 'pipe-outlet-temperature.yaml').plant!;
+    const ctx = tuningContext(pipe);
+    const withIt = optimizeGains(pipe, { context: ctx, structure: 'pi' });
+    const without = optimizeGains(pipe, { context: ctx, structure: 'pi', msPiStart: false });
+    expect(withIt.startLabel).toBe('Ms-constrained PI');
+    expect(withIt.startCost).toBeLessThan(without.startCost);
+    expect(withIt.best.cost).toBeLessThan(0.95 * without.best.cost);
+  });
+});
