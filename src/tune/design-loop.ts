@@ -9,6 +9,7 @@ import { effectiveMs, loopMargins, poleZeroSummary, slowestRhpZero, type PlantFr
 import type { GainSet, SensorSpec } from '../model/types.js';
 import { gainMargins } from './gain-margins.js';
 import type { TuningContext } from './tuning-context.js';
+import { pointFigures, worstMargins } from '../loop/index.js';
 
 /** A loop to design on. */
 export interface DesignLoop {
@@ -25,6 +26,13 @@ export interface DesignLoop {
    * gainMargins), the figure every row of `suggest` is judged by.
    */
   ms(g: GainSet): number;
+  /**
+   * With several distinct operating points (linear models): how many, and Ms over a subset of
+   * them (indices below `pointCount`), the same figure as `ms` when the subset is all of them.
+   * A design may then work on the points that bind and check the rest (ms-constrained-pi.ts).
+   */
+  pointCount?: number;
+  msAt?(g: GainSet, points: readonly number[]): number;
 }
 
 /** The loop of one frequency response (one operating point): for a plant without a plant file. */
@@ -43,12 +51,21 @@ export function responseDesignLoop(
  */
 export function contextDesignLoop(ctx: TuningContext): DesignLoop | null {
   if (ctx.response === null) return null;
-  return {
+  const loop: DesignLoop = {
     response: ctx.response,
     sampleTime: ctx.spec.loop.sampleTime,
     sensor: ctx.spec.sensor,
     base: ctx.spec.loop.controller.gains,
     ms: (g) => effectiveMs(gainMargins(ctx, g)),
+  };
+  // One point per distinct linear model (points with the same model have the same Ms).
+  const seen = new Set<PlantFrequencyResponse>();
+  const distinct = ctx.points.filter((p) => p.response !== null && !seen.has(p.response) && seen.add(p.response) !== undefined);
+  if (distinct.length < 2) return loop;
+  return {
+    ...loop,
+    pointCount: distinct.length,
+    msAt: (g, points) => effectiveMs(worstMargins(pointFigures(points.map((i) => distinct[i]), g, ctx.spec))),
   };
 }
 

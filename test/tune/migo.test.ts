@@ -6,8 +6,8 @@
  * exact delay, independent of src/): the Ms-only design and MIGO (combined Ms/Mt circle, M = 1.4,
  * from memory). AMIGO PI is the published rule (src/tune/rules/amigo.ts, reference sheet section 4).
  *
- * Measured (looprig at h = L/100 / numpy): ki 0.5-0.8 % lower on the sampled loop (its hold adds
- * h/2 of delay), kc within 2.5 %. AMIGO against MIGO: kc 0.67-1.02, ki 0.67-1.14 of MIGO's; AMIGO's
+ * Measured (looprig at h = L/100 / numpy): ki 0.5-1.1 % lower on the sampled loop (its hold adds
+ * h/2 of delay), kc within 8 %. AMIGO against MIGO: kc 0.67-1.02, ki 0.67-1.14 of MIGO's; AMIGO's
  * Ms on these loops 1.23-1.46: above 1.4 for the delay-dominated T = 0.1 and 0.3, where the
  * Ms-constrained PI therefore has a smaller ki than AMIGO (0.90 of it); on the others a larger one
  * (1.48-1.74 of it).
@@ -41,7 +41,8 @@ describe('Ms-constrained PI on the lag-plus-delay batch: numpy brute force, MIGO
       // The independent brute force on the continuous loop (the hold's h/2 costs < 1 % of ki).
       expect(d.ki / r.ms_only.ki).toBeGreaterThan(0.985);
       expect(d.ki / r.ms_only.ki).toBeLessThan(1.005);
-      expect(Math.abs(d.kc / r.ms_only.kp - 1)).toBeLessThan(0.05);
+      // ki is flat in kc at its maximum, so kc is pinned loosely (by both searches).
+      expect(Math.abs(d.kc / r.ms_only.kp - 1)).toBeLessThan(0.1);
       // MIGO's circle holds the Ms circle: its ki can only be smaller.
       expect(r.migo.ki).toBeLessThanOrEqual(r.ms_only.ki);
       // AMIGO: where it meets Ms <= M on this loop, the Ms-constrained PI (the largest ki that

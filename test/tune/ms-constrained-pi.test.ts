@@ -67,3 +67,24 @@ describe('Ms-constrained PI', () => {
     expect('reason' in r && r.reason).toMatch(/must be a number > 1/);
   });
 });
+
+describe('Ms-constrained PI over several operating points', () => {
+  it('bundled jacketed reactor (4 linear models): designing on the binding points gives the design on all of them', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { loadPlant } = await import('../../src/model/index.js');
+    const { contextDesignLoop, tuningContext } = await import('../../src/tune/index.js');
+    const text = readFileSync(new URL('../../plants/jacketed-reactor-temperature.yaml', import.meta.url), 'utf8');
+    const loop = contextDesignLoop(tuningContext(loadPlant(text, 'j.yaml').plant!))!;
+    expect(loop.pointCount).toBe(4);
+    let pointEvaluations = 0;
+    const counted = { ...loop, msAt: (g: GainSet, p: readonly number[]) => ((pointEvaluations += p.length), loop.msAt!(g, p)) };
+    const fast = msConstrainedPi(counted, 1.4, 1);
+    const whole = msConstrainedPi({ ...loop, msAt: undefined }, 1.4, 1);
+    if ('reason' in fast || 'reason' in whole) throw new Error('no design');
+    expect(fast.ki / whole.ki).toBeCloseTo(1, 3);
+    expect(fast.ms).toBeLessThanOrEqual(1.4);
+    expect(Math.abs(fast.ms / 1.4 - 1)).toBeLessThan(0.01);
+    // One binding point: about a third of the point evaluations of the design on all four.
+    expect(pointEvaluations).toBeLessThan(300);
+  });
+});
