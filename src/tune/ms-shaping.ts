@@ -49,9 +49,15 @@ function at(loop: DesignLoop, t: MsShapingTarget, structure: 'pi' | 'pid', sign:
   return { g, ms: loop.ms(set) };
 }
 
-/** Lower crossovers tried, each this factor below the last, when the asked one has no stable loop. */
+/** Lower crossovers tried, each this factor below the last (down to 0.8^12 = 0.07 of the asked one). */
 const LOWER = 0.8;
-const LOWER_TRIES = 20;
+const LOWER_TRIES = 12;
+
+/** Three significant digits rounded down: a named crossover that works is never rounded past it. */
+function fmtDown(x: number): string {
+  const step = Math.pow(10, Math.floor(Math.log10(x)) - 2);
+  return Number((Math.floor(x / step) * step).toPrecision(3)).toString();
+}
 
 /** The PI or PID with crossover ωc and Ms = target on the loop, for plant sign `sign`. */
 export function shapeToMs(loop: DesignLoop, t: MsShapingTarget, structure: 'pi' | 'pid', sign: 1 | -1): MsShaped {
@@ -71,7 +77,7 @@ export function shapeToMs(loop: DesignLoop, t: MsShapingTarget, structure: 'pi' 
   let w = t.crossover;
   for (let i = 0; i < LOWER_TRIES; i++) {
     w *= LOWER;
-    if (!('scan' in solve(loop, { ...t, crossover: w }, structure, sign))) return { reason: `${there}; a crossover of ${fmt(w)} rad/s with Ms ${fmt(t.ms)} can` };
+    if (!('scan' in solve(loop, { ...t, crossover: w }, structure, sign))) return { reason: `${there}; a crossover of ${fmtDown(w)} rad/s with Ms ${fmt(t.ms)} can` };
   }
   return { reason: `${there} (nor any crossover down to ${fmt(w)} rad/s): choose a lower crossover or a larger Ms` };
 }
