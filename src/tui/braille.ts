@@ -97,7 +97,9 @@ export class BrailleCanvas {
         const b = this.bits[cell];
         const ch = t !== null ? t : b === 0 ? ' ' : String.fromCharCode(0x2800 + b);
         const tag = t !== null || b !== 0 ? this.tags[cell] : '';
-        if (cur !== null && cur.tag === tag) cur.text += ch;
+        // A blank looks the same in any colour: it joins the run before it (fewer style changes
+        // for the terminal to be sent and for the screen to lay out, e.g. along a dotted guide).
+        if (cur !== null && (cur.tag === tag || ch === ' ')) cur.text += ch;
         else {
           cur = { text: ch, tag };
           row.push(cur);

@@ -5,7 +5,7 @@
  * the PI or PID that tune's loop-shaping design puts through a crossover and phase-margin target
  * on that point's loop. Nothing here computes a figure of its own.
  */
-import type { LoopFrequencyResponse } from '../analysis/index.js';
+import { loopMargins, type LoopFrequencyResponse, type Margins } from '../analysis/index.js';
 import { notPlainPidLoop, pointResponseOf, worstPointResponse, type PreparedPoint } from '../loop/index.js';
 import { responseDesignLoop, shapePi, shapePid, type ShapingTarget } from '../tune/index.js';
 import { editWithGains, runningGains, type LoopSetup } from './engine.js';
@@ -56,8 +56,35 @@ export function frequencyViewData(
   const other =
     service === null || viewProblem(setup, service) !== null
       ? null
-      : pointResponseOf(prepared[worst.index], runningGains(service), spec, { wMin: w[0], wMax: w[w.length - 1], points: w.length });
+      : pointResponseOf(prepared[worst.index], runningGains(service), spec, {
+          wMin: w[0],
+          wMax: w[w.length - 1],
+          points: w.length,
+          margins: serviceMargins(setup, prepared[worst.index], service),
+        });
   return { ok: true, label: worst.label, index: worst.index, edited: worst.response, service: other };
+}
+
+/**
+ * The set in service does not change while its gains are edited: its margins at a point are
+ * worked out once (loopMargins) and kept with the edit object and the point, so a key press only
+ * evaluates its curve on the new grid.
+ */
+const marginsKept = new WeakMap<GainEdit, WeakMap<PreparedPoint, Margins>>();
+
+function serviceMargins(setup: LoopSetup, point: PreparedPoint, service: GainEdit): Margins | undefined {
+  if (point.response === null) return undefined;
+  let byPoint = marginsKept.get(service);
+  if (byPoint === undefined) {
+    byPoint = new WeakMap();
+    marginsKept.set(service, byPoint);
+  }
+  let m = byPoint.get(point);
+  if (m === undefined) {
+    m = loopMargins(point.response, runningGains(service), setup.plant.loop.sampleTime, setup.plant.sensor);
+    byPoint.set(point, m);
+  }
+  return m;
 }
 
 /** The target to move from: the last one, or the loop's own crossover and phase margin. */

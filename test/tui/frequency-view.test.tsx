@@ -98,6 +98,9 @@ describe('frequency view', () => {
         const m = await mount(name, { dir: repoPlants, columns, rows });
         await m.press('F');
         await until(() => m.frame().includes('Frequency'), `the view of ${name}`, m.frame, 30000);
+        // The view works on every bundled plant: the figures of the loop, and plots where they fit.
+        if (columns >= 60) expect(m.frame(), name).toMatch(/ωc \S+ rad\/s {2}PM \S+ {2}GM \S+ {2}Ms \d/);
+        if (columns >= 60) expect(m.frame(), name).toContain('|L| dB');
         for (let page = 0; page < 4; page++) {
           const f = m.frame();
           expect(widest(f), `${name} page ${page}:\n${f}`).toBeLessThanOrEqual(columns);
