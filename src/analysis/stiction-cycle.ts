@@ -8,17 +8,20 @@
  * N(A) is computed from its definition on the element the engine runs (sim's Actuator, the one
  * written law), in the continuous limit: two periods of A sin θ on a fine grid, the first harmonic
  * of the second period by the rectangle rule (exact for a periodic function up to the grid's
- * resolution). L is analysis' own loop path (the exact sampled loop, loop-path.ts) times the PID
- * law's response (pid-law-response.ts), times the valve lag 1/(1 + jωT) and the characteristic's
- * local slope (our approximation: the lag acts on the held stem before the plant, here it is taken
- * as a continuous factor).
+ * resolution). L is analysis' one composition of the loop (loop-frequency-response.ts
+ * loopResponse: the exact sampled loop path times the PID law) on the point's model, which carries
+ * the valve lag 1/(1 + jωT) and the characteristic's local slope (loop/'s operating points; our
+ * approximation: the lag acts on the held stem, here it is part of the continuous plant).
+ *
+ * Beside it, the stick-slip balance (`stickSlipCycle`) for a self-regulating loop under integral
+ * action, and `valveCycle`, the one prediction that picks between them.
  */
 import type { ActuatorSpec, GainSet } from '../model/types.js';
 import { solve } from '../num/index.js';
 import { Actuator, valveBand, valveInput, type LinearModel } from '../sim/index.js';
 import { wrapAngle, type PlantFrequencyResponse } from './freq-response.js';
 import { loopPath, type LoopSensor } from './loop-path.js';
-import { pidLawResponse } from './pid-law-response.js';
+import { loopResponse } from './loop-frequency-response.js';
 
 /** The band the element is made from: sim's own reading of the actuator (one definition). */
 export { valveBand };
@@ -112,20 +115,14 @@ export interface CycleLoop {
  */
 export function predictLimitCycle(make: ElementFactory, band: number, loop: CycleLoop): LimitCycle | null {
   const path = loopPath(loop.plant, loop.sampleTime, loop.sensor);
-  const law = pidLawResponse(loop.gains, loop.sampleTime);
+  const loopAt = loopResponse(loop.plant, loop.gains, loop.sampleTime, loop.sensor);
   const wMax = path.w[path.w.length - 1];
   const wMin = path.w[0];
   const tmp = new Float64Array(2);
-  const cw = new Float64Array(2);
-  /** L(jω) into [re, im]. */
+  /** L(jω) into [re, im] (analysis' one composition of the loop). */
   const L = (w: number): [number, number] => {
-    path.evaluate(w, tmp);
-    law(w, cw);
-    const ph = -w * path.delay;
-    let re = tmp[0] * Math.cos(ph) - tmp[1] * Math.sin(ph);
-    let im = tmp[0] * Math.sin(ph) + tmp[1] * Math.cos(ph);
-    [re, im] = [re * cw[0] - im * cw[1], re * cw[1] + im * cw[0]];
-    return [re, im];
+    loopAt(w, tmp);
+    return [tmp[0], tmp[1]];
   };
   const lnBand = Math.log(band);
   // −1/N(A) moves fast just above the smallest moving amplitude: the amplitude grid is dense there.
@@ -206,10 +203,10 @@ export function predictLimitCycle(make: ElementFactory, band: number, loop: Cycl
       const a = Math.exp(0.5 * (lo + hi));
       const w = Math.exp(best.lnW);
       const nv = describingFunction(make, a);
-      const [lr, li] = L(w);
-      law(w, cw);
-      // The measurement's first harmonic: the stem's (A |N|) through L/C.
-      const outputAmplitude = (a * Math.hypot(nv.re, nv.im) * Math.hypot(lr, li)) / Math.hypot(cw[0], cw[1]);
+      // The measurement's first harmonic: the stem's (A |N|) through the loop path G = L/C (the
+      // whole-sample delay has unit magnitude).
+      path.evaluate(w, tmp);
+      const outputAmplitude = a * Math.hypot(nv.re, nv.im) * Math.hypot(tmp[0], tmp[1]);
       found.push({ amplitude: a, frequency: w, period: (2 * Math.PI) / w, outputAmplitude });
     }
     prevLnA = lnA;
