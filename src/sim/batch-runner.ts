@@ -11,7 +11,7 @@
  */
 import { MATH_HELPERS } from '../model/index.js';
 import { Rng } from '../num/index.js';
-import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
+import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidthFor, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
 import { lagCoefficients, valveInput, valveOf } from './actuator.js';
 import { loopStep } from './choose-step.js';
 import { delayInSteps, usableDelay } from './delay-line.js';
@@ -36,7 +36,7 @@ export interface BatchOptions extends TrialOptions {
    * Most loops generated into one function (default 4). Measured on the bundled plants
    * (test/bench/sweep.bench.ts) the gain comes mostly from running the whole loop inline, one
    * generated function with no call per sample, and little from more copies side by side; wider
-   * functions only take longer to compile.
+   * functions only take longer to compile. Larger plants get fewer (batch-stepper.ts batchWidthFor).
    */
   width?: number;
   /**
@@ -455,7 +455,9 @@ export function runTrialBatch(members: readonly BatchMember[], trial: TrialSpec,
   });
   for (const list of groups.values()) {
     const sched = scheds.get(list[0].member.loop.sampleTime) as EventSchedule;
-    for (const chunk of batchChunks(list, width)) runChunk(chunk, sched, noise, helpers, results);
+    // Fewer copies side by side for larger plants (batchWidthFor: the function must stay optimisable).
+    const plantWidth = batchWidthFor(list[0].member.plant, list[0].member.loop.integrator, width, helpers);
+    for (const chunk of batchChunks(list, plantWidth)) runChunk(chunk, sched, noise, helpers, results);
     for (const p of list) batched[p.index] = true;
   }
   for (const i of single) {

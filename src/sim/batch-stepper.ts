@@ -30,6 +30,7 @@
 import { MATH_HELPERS, type AntiWindup, type IntegratorName } from '../model/index.js';
 import { actuatorCommandLaw, actuatorPathIntegral, pidInitLaw, pidTrackLaw, pidUpdateLaw, sensorLaw, stictionLaw, valvePerStep, valveSampleLaw, valveStepLaw, type PidNames, type ValveShape } from './element-laws.js';
 import { checkSource, integratorStages, INTEGRATOR_STAGES, prepareSources } from './generate-stepper.js';
+import { chunkedStep, chunkValues, compileChunkOutput, compileChunks, inlineStepChars, SPLIT_STEP_CHARS, splitStep, type ChunkLayout } from './stage-chunks.js';
 import type { PlantDynamics } from './types.js';
 
 /** The PID law's quantities as the generated body names them (the setpoint weight c is cw: c is the copy index). */
@@ -249,6 +250,8 @@ export function batchSource(
   const rawOutput = prepared.raw;
   const inverses = prepared.inverses;
   const nl = prepared.values.length;
+  const statesRead = new Set<number>();
+  for (const m of `${rawOutput} ${prepared.output}`.matchAll(/(?<![\w$])x_(\d+)(?![\w$])/g)) statesRead.add(Number(m[1]));
   const widths = batchWidths(nx, np, nl);
   const nch = BATCH_CHANNELS + nd;
   const nf = BATCH_FIELDS.length;
@@ -257,6 +260,10 @@ export function batchSource(
   const S = (f: (typeof BATCH_STATE)[number]): number => BATCH_STATE.indexOf(f);
 
   /** Bindings of the plant sources' names: x (null = bound elsewhere), p (and inverses), d, u. */
+  // A split body (large plants) binds only the states an expression reads: hundreds of unused
+  // bindings would make the function itself too large to optimise.
+  const split = splitStep(prepared.deriv, INTEGRATOR_STAGES[integrator], K);
+  const layout: ChunkLayout = { np, nl, nd };
   const binds = (
     x: ((i: number) => string) | null,
     p: (j: number) => string,
@@ -266,7 +273,7 @@ export function batchSource(
     lit: (j: number) => string,
   ): string => {
     const b: string[] = [];
-    if (x !== null) for (let i = 0; i < nx; i++) b.push(`x_${i} = ${x(i)}`);
+    if (x !== null) for (let i = 0; i < nx; i++) if (!split || statesRead.has(i)) b.push(`x_${i} = ${x(i)}`);
     for (let j = 0; j < np; j++) b.push(`p_${j} = ${p(j)}`);
     if (ip !== null) for (const j of inverses) b.push(`$ip${j} = ${ip(j)}`);
     for (let k = 0; k < nd; k++) b.push(`d_${k} = ${d(k)}`);
@@ -335,7 +342,7 @@ export function batchSource(
   // out in a loop over the copies, the stages are written out per copy and interleaved.
   const q = (c: number, name: string): string => `q${c}_${name}`;
   const pre: string[] = [];
-  for (let c = 0; c < K; c++) {
+  for (let c = 0; c < K && !split; c++) {
     const b: string[] = [];
     for (let j = 0; j < np; j++) b.push(`${q(c, `p${j}`)} = P[${c * widths.p + nf + j}]`);
     for (const j of inverses) b.push(`${q(c, `ip${j}`)} = P[${c * widths.p + nf + np + j}]`);
@@ -372,53 +379,87 @@ export function batchSource(
   }
   input.push('$U[c] = u;', '}');
 
-  const sub: string[] = ['const $t = $tk + $i * h;', ...input];
-  const perCopy: { stages: string[]; update: string }[] = [];
-  for (let c = 0; c < K; c++) {
-    sub.push(`const ${q(c, 'u')} = $U[${c}];`);
-    perCopy.push(
-      integratorStages(integrator, nx, prepared.deriv, {
-        x: (i) => q(c, `x${i}`),
-        k: (s, i) => q(c, `k${s}_${i}`),
-        extra: binds(null, (j) => q(c, `p${j}`), (j) => q(c, `ip${j}`), (k) => q(c, `d${k}`), q(c, 'u'), (j) => q(c, `L${j}`)),
-      }),
-    );
-  }
-  const stageCount = INTEGRATOR_STAGES[integrator];
-  for (let c = 0; c < K; c++) {
-    const ks: string[] = [];
-    for (let s2 = 1; s2 <= stageCount; s2++) for (let i = 0; i < nx; i++) ks.push(`${q(c, `k${s2}_${i}`)} = 0`);
-    if (ks.length > 0) sub.push(`let ${ks.join(', ')};`);
-  }
-  for (let st = 0; st < stageCount; st++) for (let c = 0; c < K; c++) sub.push(perCopy[c].stages[st]);
-  for (let c = 0; c < K; c++) sub.push(perCopy[c].update);
-  if (shape.sensorDelay) {
-    for (let c = 0; c < K; c++) {
-      const bind = binds(
-        (i) => q(c, `x${i}`),
-        (j) => q(c, `p${j}`),
-        (j) => q(c, `ip${j}`),
-        (k) => q(c, `d${k}`),
-        q(c, 'u'),
-        (j) => q(c, `L${j}`),
-      );
-      sub.push(`{ let $yo = 0; { const t = $t + h, ${bind}; $yo = (${prepared.output}); } ${pushLine(`B[${2 * c + 1}]`, `${c * widths.z + S('sh')}`, '$yo')} }`);
-    }
-  }
+  let sub: string[];
   const after: string[] = [];
-  for (let c = 0; c < K; c++) {
-    const fin: string[] = [];
-    for (let i = 0; i < nx; i++) {
-      after.push(`Z[${c * widths.z + ns + i}] = ${q(c, `x${i}`)};`);
-      fin.push(`Number.isFinite(${q(c, `x${i}`)})`);
+  /** Code that runs once per call, before the first sample (the split body's arrays). */
+  const setup: string[] = [];
+  if (split) {
+    // Large plants: each copy's step through the chunk functions (stage-chunks.ts), one copy after
+    // another; the state stays in Z (a view per copy), the values of each copy are gathered in
+    // $V<c> once per sample.
+    const chunks = compileChunks(integrator, prepared.deriv, layout, helpers)[0].length;
+    const stages = INTEGRATOR_STAGES[integrator];
+    const calls: string[] = [];
+    for (let st = 0; st < stages; st++) for (let j = 0; j < chunks; j++) calls.push(`$c${st}_${j} = $C[${st}][${j}]`);
+    setup.push(`const ${calls.join(', ')};`);
+    setup.push(`const $S0 = new Float64Array(${nx}), $S1 = new Float64Array(${nx}), $K1 = new Float64Array(${nx}), $K2 = new Float64Array(${nx}), $K3 = new Float64Array(${nx});`);
+    for (let c = 0; c < K; c++) {
+      setup.push(`const $X${c} = Z.subarray(${c * widths.z + ns}, ${c * widths.z + ns + nx}), $V${c} = new Float64Array(${chunkValues(layout)});`);
+      for (let j = 0; j < np; j++) pre.push(`$V${c}[${j}] = P[${c * widths.p + nf + j}];`);
+      for (const j of inverses) pre.push(`$V${c}[${np + j}] = P[${c * widths.p + nf + np + j}];`);
+      for (let j = 0; j < nl; j++) pre.push(`$V${c}[${2 * np + j}] = P[${c * widths.p + nf + 2 * np + j}];`);
+      for (let k = 0; k < nd; k++) pre.push(`$V${c}[${2 * np + nl + k}] = T[${c * nch + BATCH_CHANNELS + k}][k];`);
     }
-    after.push(`Z[${c * widths.z + S('uPlant')}] = $U[${c}];`);
-    if (nx > 0) after.push(`if (OUT[${c}] === 0 && !(${fin.join(' && ')})) { OUT[${c}] = k + 1; $alive--; }`);
+    sub = ['const $t = $tk + $i * h;', ...input];
+    for (let c = 0; c < K; c++) {
+      sub.push(`{ const $u = $U[${c}];`);
+      sub.push(chunkedStep(integrator, nx, chunks, { x: `$X${c}`, s: ['$S0', '$S1'], k: ['$K1', '$K2', '$K3'], v: `$V${c}`, u: '$u', chunk: (st, j) => `$c${st}_${j}` }));
+      if (shape.sensorDelay) sub.push(pushLine(`B[${2 * c + 1}]`, `${c * widths.z + S('sh')}`, `$O($X${c}, $t + h, $u, $V${c})`));
+      sub.push('}');
+    }
+    for (let c = 0; c < K; c++) {
+      after.push(`Z[${c * widths.z + S('uPlant')}] = $U[${c}];`);
+      if (nx > 0) after.push(`if (OUT[${c}] === 0) { for (let $j = 0; $j < ${nx}; $j++) if (!Number.isFinite($X${c}[$j])) { OUT[${c}] = k + 1; $alive--; break; } }`);
+    }
+  } else {
+    sub = ['const $t = $tk + $i * h;', ...input];
+    const perCopy: { stages: string[]; update: string }[] = [];
+    for (let c = 0; c < K; c++) {
+      sub.push(`const ${q(c, 'u')} = $U[${c}];`);
+      perCopy.push(
+        integratorStages(integrator, nx, prepared.deriv, {
+          x: (i) => q(c, `x${i}`),
+          k: (s, i) => q(c, `k${s}_${i}`),
+          extra: binds(null, (j) => q(c, `p${j}`), (j) => q(c, `ip${j}`), (k) => q(c, `d${k}`), q(c, 'u'), (j) => q(c, `L${j}`)),
+        }),
+      );
+    }
+    const stageCount = INTEGRATOR_STAGES[integrator];
+    for (let c = 0; c < K; c++) {
+      const ks: string[] = [];
+      for (let s2 = 1; s2 <= stageCount; s2++) for (let i = 0; i < nx; i++) ks.push(`${q(c, `k${s2}_${i}`)} = 0`);
+      if (ks.length > 0) sub.push(`let ${ks.join(', ')};`);
+    }
+    for (let st = 0; st < stageCount; st++) for (let c = 0; c < K; c++) sub.push(perCopy[c].stages[st]);
+    for (let c = 0; c < K; c++) sub.push(perCopy[c].update);
+    if (shape.sensorDelay) {
+      for (let c = 0; c < K; c++) {
+        const bind = binds(
+          (i) => q(c, `x${i}`),
+          (j) => q(c, `p${j}`),
+          (j) => q(c, `ip${j}`),
+          (k) => q(c, `d${k}`),
+          q(c, 'u'),
+          (j) => q(c, `L${j}`),
+        );
+        sub.push(`{ let $yo = 0; { const t = $t + h, ${bind}; $yo = (${prepared.output}); } ${pushLine(`B[${2 * c + 1}]`, `${c * widths.z + S('sh')}`, '$yo')} }`);
+      }
+    }
+    for (let c = 0; c < K; c++) {
+      const fin: string[] = [];
+      for (let i = 0; i < nx; i++) {
+        after.push(`Z[${c * widths.z + ns + i}] = ${q(c, `x${i}`)};`);
+        fin.push(`Number.isFinite(${q(c, `x${i}`)})`);
+      }
+      after.push(`Z[${c * widths.z + S('uPlant')}] = $U[${c}];`);
+      if (nx > 0) after.push(`if (OUT[${c}] === 0 && !(${fin.join(' && ')})) { OUT[${c}] = k + 1; $alive--; }`);
+    }
   }
   after.push('if ($alive === 0) break;');
 
   return `"use strict";
 return function batch(P, Z, B, T, G, OUT, kLast, ts, h, n) {
+${setup.join('\n')}
 const $h2 = 0.5 * h, $h6 = h / 6;
 const $U = new Float64Array(${K});
 let $alive = ${K};
@@ -435,6 +476,23 @@ ${after.join('\n')}
 }
 }
 };`;
+}
+
+/**
+ * The most copies of this plant one batch function should hold: `asked`, or fewer when that many
+ * copies written out inline would be too large for V8 to optimise (SPLIT_STEP_CHARS; the 64-state
+ * chain ran 3x slower batched four wide than one loop at a time). A plant too large even for one
+ * inline copy keeps `asked`: its batch body is split (stage-chunks.ts) whatever the width.
+ */
+export function batchWidthFor(
+  plant: PlantDynamics,
+  integrator: IntegratorName,
+  asked: number,
+  helpers: Readonly<Record<string, (...args: number[]) => number>> = MATH_HELPERS,
+): number {
+  const one = inlineStepChars(liftedSources(plant, helpers).deriv, INTEGRATOR_STAGES[integrator] ?? 1);
+  const fits = Math.floor(SPLIT_STEP_CHARS / one);
+  return fits < 1 ? asked : Math.min(asked, fits);
 }
 
 const CACHE_LIMIT = 64;
@@ -473,8 +531,13 @@ export function generateBatch(
   const hit = cache.get(key);
   if (hit !== undefined) return hit;
   const src = batchSource(plant, integrator, shape, helpers);
+  // A split body (large plants) calls the chunk functions ($C) and the output ($O).
+  const layout: ChunkLayout = { np: plant.params.length, nl: lifted.values.length, nd: plant.d0.length };
+  const split = splitStep(lifted.deriv, INTEGRATOR_STAGES[integrator], shape.width);
+  const chunks = split ? compileChunks(integrator, lifted.deriv, layout, helpers) : [];
+  const out = split && shape.sensorDelay ? compileChunkOutput(lifted.output, layout, helpers) : null;
   // eslint-disable-next-line @typescript-eslint/no-implied-eval -- generated from checked trees
-  const fn = new Function('F', src)(helpers) as BatchFunction;
+  const fn = new Function('F', '$C', '$O', src)(helpers, chunks, out) as BatchFunction;
   if (cache.size >= CACHE_LIMIT) {
     const oldest = cache.keys().next().value;
     if (oldest !== undefined) cache.delete(oldest);

@@ -18,6 +18,7 @@
  * scoping, not text substitution, binds it to the stage's state.
  */
 import { MATH_HELPERS, type IntegratorName } from '../model/index.js';
+import { chunkedStep, chunkValues, compileChunkOutput, compileChunks, splitStep, type ChunkFunction, type ChunkLayout, type ChunkOutput } from './stage-chunks.js';
 import type { PlantDynamics } from './types.js';
 
 /**
@@ -54,6 +55,11 @@ export interface StepperOptions {
   outputSequence?: boolean;
   /** The table the sources call as `F.*`. Default: model/'s MATH_HELPERS. */
   helpers?: Readonly<Record<string, (...args: number[]) => number>>;
+  /**
+   * Split the step into chunk functions (stage-chunks.ts) or write it inline; default: split
+   * past SPLIT_STEP_CHARS. Both give the same numbers bit for bit; the choice is speed only.
+   */
+  split?: boolean;
 }
 
 /** Real-axis stability limit |h·λ| of each explicit method on y' = λy, λ < 0 (Butcher 2016, sec. 23). */
@@ -189,6 +195,11 @@ function prepare(plant: PlantDynamics, helpers: Readonly<Record<string, unknown>
   return { deriv, output, inverses };
 }
 
+/** Where a chunk of the split step finds p, 1/p and d (no lifted literals here). */
+function layoutOf(plant: PlantDynamics): ChunkLayout {
+  return { np: plant.params.length, nl: 0, nd: plant.d0.length };
+}
+
 /** Declarations of parameters, inverses and disturbances as call-local constants. */
 function loadLocals(np: number, nd: number, inverses: Set<number>): string {
   const lines: string[] = [];
@@ -281,11 +292,61 @@ function stepBody(integrator: IntegratorName, nx: number, deriv: string[]): stri
   return [...stages, update].join('\n');
 }
 
+/** Whether this plant's step is generated split into chunk functions (stage-chunks.ts: large plants). */
+export function isSplitStep(plant: PlantDynamics, integrator: IntegratorName, options: StepperOptions = {}): boolean {
+  const helpers = options.helpers ?? DEFAULT_HELPERS;
+  return options.split ?? splitStep(prepare(plant, helpers).deriv, INTEGRATOR_STAGES[integrator] ?? 1);
+}
+
+/**
+ * The split form of the step (stage-chunks.ts): the same operations with the state updated in
+ * `x` itself and the stage values in arrays made once per generated function. Called with the
+ * chunk functions as `$C` and the output (or null) as `$O`.
+ */
+function splitStepperSource(plant: PlantDynamics, integrator: IntegratorName, options: StepperOptions, p: Prepared, chunks: number): string {
+  const nx = plant.nx;
+  const np = plant.params.length;
+  const nd = plant.d0.length;
+  const fill: string[] = [];
+  for (let j = 0; j < np; j++) fill.push(`$V[${j}] = p[${j}];`);
+  for (const j of [...p.inverses].sort((a, b) => a - b)) fill.push(`$V[${np + j}] = 1 / p[${j}];`);
+  for (let k = 0; k < nd; k++) fill.push(`$V[${2 * np + k}] = d[${k}];`);
+  const calls: string[] = [];
+  const stages = INTEGRATOR_STAGES[integrator];
+  for (let st = 0; st < stages; st++) for (let j = 0; j < chunks; j++) calls.push(`$c${st}_${j} = $C[${st}][${j}]`);
+  const step = chunkedStep(integrator, nx, chunks, {
+    x: 'x',
+    s: ['$S0', '$S1'],
+    k: ['$K1', '$K2', '$K3'],
+    v: '$V',
+    u: 'u',
+    chunk: (st, j) => `$c${st}_${j}`,
+  });
+  const arrays: string[] = [`$V = new Float64Array(${chunkValues({ np, nl: 0, nd })})`];
+  for (const a of ['$S0', '$S1', '$K1', '$K2', '$K3']) arrays.push(`${a} = new Float64Array(${nx})`);
+  return `"use strict";
+const ${arrays.join(', ')};
+${calls.length > 0 ? `const ${calls.join(', ')};` : ''}
+return function step(x, p, d, ${options.inputSequence ? '$u' : 'u'}, us, uoff, ys, yoff, t0, h, n) {
+${fill.join('\n')}
+for (let $i = 0; $i < n; $i++) {
+const $t = t0 + $i * h;
+${options.inputSequence ? 'const u = us[uoff + $i];' : ''}
+${step}
+${options.outputSequence ? 'ys[yoff + $i] = $O(x, $t + h, u, $V);' : ''}
+}
+};`;
+}
+
 /** The JavaScript source of the step function (exposed for inspection and tests). */
 export function stepperSource(plant: PlantDynamics, integrator: IntegratorName, options: StepperOptions = {}): string {
   const helpers = options.helpers ?? DEFAULT_HELPERS;
-  const { deriv, output, inverses } = prepare(plant, helpers);
+  const prepared = prepare(plant, helpers);
+  const { deriv, output, inverses } = prepared;
   const nx = plant.nx;
+  if (options.split ?? splitStep(deriv, INTEGRATOR_STAGES[integrator] ?? 1)) {
+    return splitStepperSource(plant, integrator, options, prepared, compileChunks(integrator, deriv, layoutOf(plant), helpers)[0].length);
+  }
   const stages = integrator === 'rk4' ? 4 : integrator === 'heun' ? 2 : 1;
   const ks: string[] = [];
   for (let s = 1; s <= stages; s++) for (let i = 0; i < nx; i++) ks.push(`$k${s}_${i} = 0`);
@@ -327,6 +388,7 @@ export function generateStepper(
     integrator,
     options.inputSequence ? 'U' : 'u',
     options.outputSequence ? 'Y' : 'y',
+    options.split === undefined ? '' : options.split ? 'S' : 'I',
     helperKey(helpers),
     plant.nx,
     plant.params.length,
@@ -336,8 +398,15 @@ export function generateStepper(
   ].join('\u0000');
   return remember(stepCache, key, () => {
     const src = stepperSource(plant, integrator, options);
+    let chunks: ChunkFunction[][] = [];
+    let out: ChunkOutput | null = null;
+    const prepared = prepare(plant, helpers);
+    if (options.split ?? splitStep(prepared.deriv, INTEGRATOR_STAGES[integrator] ?? 1)) {
+      chunks = compileChunks(integrator, prepared.deriv, layoutOf(plant), helpers);
+      if (options.outputSequence) out = compileChunkOutput(prepared.output, layoutOf(plant), helpers);
+    }
     // eslint-disable-next-line @typescript-eslint/no-implied-eval -- generated from checked trees
-    return new Function('F', src)(helpers) as StepFunction;
+    return new Function('F', '$C', '$O', src)(helpers, chunks, out) as StepFunction;
   });
 }
 

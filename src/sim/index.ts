@@ -47,5 +47,5 @@ export { decimateMinMax } from './decimate.js';
 export { withParams } from './with-params.js';
 export { runTrialBatch, batchChunks, DEFAULT_BATCH_WIDTH } from './batch-runner.js';
 export type { BatchMember, BatchOptions, BatchResult } from './batch-runner.js';
-export { generateBatch, batchSource, batchWidths, liftedSources, BATCH_FIELDS, BATCH_STATE, BATCH_CHANNELS } from './batch-stepper.js';
+export { generateBatch, batchSource, batchWidths, batchWidthFor, liftedSources, BATCH_FIELDS, BATCH_STATE, BATCH_CHANNELS } from './batch-stepper.js';
 export type { BatchFunction, BatchShape, LiftedSources } from './batch-stepper.js';

@@ -260,3 +260,32 @@ export function detestD(e: number): PlantDynamics {
     output: (_t, x) => x[0],
   });
 }
+
+/**
+ * An n-state chain of lags x1' = (K (u + load) − x1)/tau, xi' = (x(i−1) − xi)/tau, y = xn. Params
+ * K, tau. Built by hand rather than from a plant file: files stop at 100 states
+ * (model/schema/size-limits.ts) and the engine takes any size.
+ */
+export function chainPlant(n: number, K = 1, tau = 0.5): PlantDynamics {
+  const derivSource: string[] = [];
+  for (let i = 0; i < n; i++) derivSource.push(`(${i === 0 ? 'p_0 * (u + d_0)' : `x_${i - 1}`} - x_${i}) / p_1`);
+  return {
+    nx: n,
+    stateNames: derivSource.map((_s, i) => `x${i + 1}`),
+    x0: new Float64Array(n),
+    paramNames: ['k', 'tau'],
+    params: Float64Array.of(K, tau),
+    disturbanceNames: ['load'],
+    d0: Float64Array.of(0),
+    derivSource,
+    outputSource: `x_${n - 1}`,
+    measurementSources: {},
+    deriv: (_t, x, u, d, p, dx) => {
+      dx[0] = (p[0] * (u + d[0]) - x[0]) / p[1];
+      for (let i = 1; i < n; i++) dx[i] = (x[i - 1] - x[i]) / p[1];
+    },
+    output: (_t, x) => x[n - 1],
+    inputDelay: 0,
+    linear: null,
+  };
+}
