@@ -57,8 +57,14 @@ export function balance(a: Float64Array, n: number): void {
   }
 }
 
-/** Reduce to upper Hessenberg form in place (Gaussian elimination with pivoting); entries below the subdiagonal are zeroed. */
-export function hessenberg(a: Float64Array, n: number): void {
+/**
+ * Reduce to upper Hessenberg form in place (Gaussian elimination with pivoting, EISPACK elmhes);
+ * entries below the subdiagonal are zeroed. The reduction is a similarity H = T⁻¹ A T; given
+ * `left` (a column vector b, length n) it is replaced by T⁻¹ b, given `right` (a row vector c)
+ * by c T, so that c (sI − A)⁻¹ b = c T (sI − H)⁻¹ T⁻¹ b: a transfer function evaluated on the
+ * Hessenberg form (analysis/freq-response.ts).
+ */
+export function hessenberg(a: Float64Array, n: number, left?: Float64Array, right?: Float64Array): void {
   for (let m = 1; m < n - 1; m++) {
     let x = 0;
     let piv = m;
@@ -79,6 +85,9 @@ export function hessenberg(a: Float64Array, n: number): void {
         a[j * n + piv] = a[j * n + m];
         a[j * n + m] = t;
       }
+      // The same interchange P (P⁻¹ = P) on both vectors.
+      if (left !== undefined) [left[piv], left[m]] = [left[m], left[piv]];
+      if (right !== undefined) [right[piv], right[m]] = [right[m], right[piv]];
     }
     if (x === 0) continue;
     for (let i = m + 1; i < n; i++) {
@@ -88,6 +97,9 @@ export function hessenberg(a: Float64Array, n: number): void {
       a[i * n + m - 1] = 0;
       for (let j = m; j < n; j++) a[i * n + j] -= y * a[m * n + j];
       for (let j = 0; j < n; j++) a[j * n + m] += y * a[j * n + i];
+      // Row i −= y row m is T⁻¹'s step (applied to b), column m += y column i is T's (applied to c).
+      if (left !== undefined) left[i] -= y * left[m];
+      if (right !== undefined) right[m] += y * right[i];
     }
   }
   for (let i = 2; i < n; i++) for (let j = 0; j < i - 1; j++) a[i * n + j] = 0;

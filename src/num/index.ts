@@ -2,7 +2,7 @@
  * num/: generic maths without control words. One concept per file; this list is the public surface.
  * Owners append their own lines.
  */
-export { luFactor, luSolve, solve, determinant, matMul, matVec, identity, transpose, normInf, householderQ, solveComplexInPlace } from './linalg.js';
+export { luFactor, luSolve, solve, determinant, matMul, matVec, identity, transpose, normInf, householderQ, solveComplexInPlace, solveHessenbergComplexInPlace } from './linalg.js';
 export { eigenvalues, eigenvector, balance, hessenberg, hessenbergEigenvalues } from './eig.js';
 export type { Eigenvalues } from './eig.js';
 export { polyTrim, polyEval, polyEvalComplex, polyMul, polyAdd, polyFromRoots, polyRoots } from './poly.js';

@@ -226,25 +226,38 @@ export function solveComplexInPlace(
     const pr = ar[k * n + k];
     const pi = ai[k * n + k];
     const den = pr * pr + pi * pi;
-    for (let i = k + 1; i < n; i++) {
-      const xr = ar[i * n + k];
-      const xi = ai[i * n + k];
-      if (xr === 0 && xi === 0) continue;
-      // f = x / pivot
-      const fr = (xr * pr + xi * pi) / den;
-      const fi = (xi * pr - xr * pi) / den;
-      for (let j = k + 1; j < n; j++) {
-        const yr = ar[k * n + j];
-        const yi = ai[k * n + j];
-        ar[i * n + j] -= fr * yr - fi * yi;
-        ai[i * n + j] -= fr * yi + fi * yr;
-      }
-      const yr = br[k];
-      const yi = bi[k];
-      br[i] -= fr * yr - fi * yi;
-      bi[i] -= fr * yi + fi * yr;
-    }
+    for (let i = k + 1; i < n; i++) eliminateRow(ar, ai, n, br, bi, k, i, pr, pi, den);
   }
+  backSubstituteComplex(ar, ai, n, br, bi);
+  return true;
+}
+
+/**
+ * Row i −= f · row k (columns after k, and the right-hand side), f = a[i][k] / pivot, pivot
+ * pr + i pi with |pivot|² = den; nothing when a[i][k] is zero. The column-k entry is left as it
+ * is (never read again).
+ */
+function eliminateRow(ar: Float64Array, ai: Float64Array, n: number, br: Float64Array, bi: Float64Array, k: number, i: number, pr: number, pi: number, den: number): void {
+  const xr = ar[i * n + k];
+  const xi = ai[i * n + k];
+  if (xr === 0 && xi === 0) return;
+  // f = x / pivot
+  const fr = (xr * pr + xi * pi) / den;
+  const fi = (xi * pr - xr * pi) / den;
+  for (let j = k + 1; j < n; j++) {
+    const yr = ar[k * n + j];
+    const yi = ai[k * n + j];
+    ar[i * n + j] -= fr * yr - fi * yi;
+    ai[i * n + j] -= fr * yi + fi * yr;
+  }
+  const yr = br[k];
+  const yi = bi[k];
+  br[i] -= fr * yr - fi * yi;
+  bi[i] -= fr * yi + fi * yr;
+}
+
+/** Solve the upper triangular complex system U x = b in place (x left in br, bi). */
+function backSubstituteComplex(ar: Float64Array, ai: Float64Array, n: number, br: Float64Array, bi: Float64Array): void {
   for (let i = n - 1; i >= 0; i--) {
     let sr = br[i];
     let si = bi[i];
@@ -260,5 +273,43 @@ export function solveComplexInPlace(
     br[i] = (sr * pr + si * pi) / den;
     bi[i] = (si * pr - sr * pi) / den;
   }
+}
+
+/**
+ * Solve (Hr + i Hi) x = (br + i bi) in place for an UPPER HESSENBERG matrix (entries below the
+ * subdiagonal are not read): Gaussian elimination with partial pivoting, where only the row below
+ * can be a pivot candidate, so the elimination costs O(n²) instead of O(n³) (Golub & Van Loan,
+ * Matrix Computations, 4th ed., 2013, sec. 4.3.4, Hessenberg LU). `hr`, `hi` are destroyed; the
+ * solution is left in `br`, `bi`. Returns false when a pivot is exactly zero.
+ */
+export function solveHessenbergComplexInPlace(hr: Float64Array, hi: Float64Array, n: number, br: Float64Array, bi: Float64Array): boolean {
+  for (let k = 0; k < n; k++) {
+    const d = k * n + k;
+    if (k + 1 < n) {
+      const s = d + n;
+      if (Math.abs(hr[s]) + Math.abs(hi[s]) > Math.abs(hr[d]) + Math.abs(hi[d])) {
+        for (let j = k; j < n; j++) {
+          let t = hr[k * n + j];
+          hr[k * n + j] = hr[(k + 1) * n + j];
+          hr[(k + 1) * n + j] = t;
+          t = hi[k * n + j];
+          hi[k * n + j] = hi[(k + 1) * n + j];
+          hi[(k + 1) * n + j] = t;
+        }
+        let t = br[k];
+        br[k] = br[k + 1];
+        br[k + 1] = t;
+        t = bi[k];
+        bi[k] = bi[k + 1];
+        bi[k + 1] = t;
+      }
+    }
+    const pr = hr[d];
+    const pi = hi[d];
+    if (pr === 0 && pi === 0) return false;
+    if (k + 1 === n) break;
+    eliminateRow(hr, hi, n, br, bi, k, k + 1, pr, pi, pr * pr + pi * pi);
+  }
+  backSubstituteComplex(hr, hi, n, br, bi);
   return true;
 }

@@ -11,7 +11,12 @@
  * Run: `npx tsx test/bench/large-plant.bench.ts` or `npm run bench -- large-plant`.
  */
 import { pathToFileURL } from 'node:url';
+import { readFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { rationalEvaluator } from '../../src/analysis/index.js';
 import { PidController } from '../../src/control/index.js';
+import { solveComplexInPlace } from '../../src/num/index.js';
 import type { GainSet } from '../../src/model/types.js';
 import { chainPlant } from '../sim/hand-plants.js';
 import { loopConfig, trial as trialSpec } from '../sim/loops.js';
@@ -98,6 +103,68 @@ export async function run(): Promise<void> {
     );
   }
   console.log('  target: n = 256 within 1.5x of n = 16 in both columns');
+  frequencyResponse();
+}
+
+/**
+ * One frequency point of the 64-state dense model of test/fixtures/reference/large-model-response
+ * through the evaluator (Hessenberg form, reduced once) against the dense complex solve per point
+ * it replaced (the same arithmetic as freq-response.ts uses below HESSENBERG_STATES).
+ */
+function frequencyResponse(): void {
+  const here = dirname(fileURLToPath(import.meta.url));
+  const ref = JSON.parse(readFileSync(join(here, '../fixtures/reference/large-model-response.json'), 'utf8')) as {
+    models: Record<string, { a: number[]; b: number[]; c: number[]; d: number }>;
+  };
+  const m = ref.models.dense;
+  const n = m.b.length;
+  const model = { nx: n, a: Float64Array.from(m.a), b: Float64Array.from(m.b), c: Float64Array.from(m.c), d: m.d, delay: 0 };
+  const out = new Float64Array(2);
+  const ar = new Float64Array(n * n);
+  const ai = new Float64Array(n * n);
+  const br = new Float64Array(n);
+  const bi = new Float64Array(n);
+  const points = 400;
+  const ws = Array.from({ length: points }, (_v, i) => 1e-3 * 1e5 ** (i / (points - 1)));
+  const denseRun = (): number => {
+    let s = 0;
+    for (const w of ws) {
+      for (let i = 0; i < n * n; i++) {
+        ar[i] = -model.a[i];
+        ai[i] = 0;
+      }
+      for (let i = 0; i < n; i++) {
+        ai[i * n + i] = w;
+        br[i] = model.b[i];
+        bi[i] = 0;
+      }
+      solveComplexInPlace(ar, ai, n, br, bi);
+      for (let i = 0; i < n; i++) s += model.c[i] * br[i];
+    }
+    return s;
+  };
+  const hessRun = (): number => {
+    // The reduction is part of every run: one per model, as a sweep case pays it.
+    const ev = rationalEvaluator(model);
+    let s = 0;
+    for (const w of ws) {
+      ev(w, out);
+      s += out[0];
+    }
+    return s;
+  };
+  const best = { dense: Infinity, hess: Infinity };
+  for (let r = 0; r < 9; r++) {
+    let t0 = performance.now();
+    denseRun();
+    best.dense = Math.min(best.dense, (performance.now() - t0) / points);
+    t0 = performance.now();
+    hessRun();
+    best.hess = Math.min(best.hess, (performance.now() - t0) / points);
+  }
+  console.log(`frequency response of a 64-state dense model, ${points} points (best of 9)`);
+  console.log(`  dense solve per point   ${(best.dense * 1000).toFixed(1).padStart(7)} µs`);
+  console.log(`  Hessenberg (+ reduction) ${(best.hess * 1000).toFixed(1).padStart(6)} µs   dense/this ${(best.dense / best.hess).toFixed(1)}x`);
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();
