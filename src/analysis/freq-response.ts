@@ -56,49 +56,83 @@ export interface FrequencyGridOptions {
  */
 export const HESSENBERG_STATES = 12;
 
+/** Solves (s I − M) x = b for many s, M fixed (see `shiftedSolver`). */
+export interface ShiftedSolver {
+  /** Whether M was reduced to Hessenberg form (more than HESSENBERG_STATES states). */
+  readonly reduced: boolean;
+  /** The given input vectors in the solver's coordinates (T⁻¹ b). */
+  readonly inputs: readonly Float64Array[];
+  /** The given output vector in the solver's coordinates (c T). */
+  readonly output: Float64Array;
+  /**
+   * Solve (s I − M) x = b in place, s = sr + j si, b and x in the solver's coordinates (br, bi
+   * in, x out); false when s I − M is singular (s an eigenvalue of M).
+   */
+  solve(sr: number, si: number, br: Float64Array, bi: Float64Array): boolean;
+}
+
 /**
- * A reusable evaluator of C (jωI − A)⁻¹ B + D with its own work buffers. Above HESSENBERG_STATES
- * states, A is reduced once to H = T⁻¹ A T (num/'s elimination reduction, with b → T⁻¹ b and
- * c → c T) and each frequency solves (jωI − H) x = T⁻¹ b by Hessenberg elimination.
+ * The one way a response C (sI − M)⁻¹ B is evaluated, for the continuous plant (s = jω, M = A)
+ * and the sampled loop (loop-path.ts: s = z − 1, M = AΨ). Above HESSENBERG_STATES states M is
+ * reduced once to H = T⁻¹ M T (num/'s elimination reduction, the input vectors carried to T⁻¹ b,
+ * the output to c T) and each point is a Hessenberg solve; below, a dense solve per point.
  */
-export function rationalEvaluator(model: LinearModel): RationalEvaluator {
-  const n = model.nx;
+export function shiftedSolver(m: ArrayLike<number>, n: number, inputs: readonly ArrayLike<number>[], output: ArrayLike<number>): ShiftedSolver {
+  const reduced = n > HESSENBERG_STATES;
+  const h = Float64Array.from(m);
+  const ins = inputs.map((b) => Float64Array.from(b));
+  const out = Float64Array.from(output);
+  if (reduced) hessenberg(h, n, ins, out);
   const ar = new Float64Array(n * n);
   const ai = new Float64Array(n * n);
+  return {
+    reduced,
+    inputs: ins,
+    output: out,
+    solve(sr, si, br, bi) {
+      if (reduced) {
+        for (let i = 0; i < n; i++) {
+          // Only the Hessenberg band (j ≥ i − 1) is read by the solve.
+          for (let j = i > 0 ? i - 1 : 0; j < n; j++) {
+            ar[i * n + j] = -h[i * n + j];
+            ai[i * n + j] = 0;
+          }
+        }
+      } else {
+        for (let i = 0; i < n * n; i++) {
+          ar[i] = -h[i];
+          ai[i] = 0;
+        }
+      }
+      for (let i = 0; i < n; i++) {
+        // A zero shift is not added: −m + 0 would turn a −0 into +0.
+        if (sr !== 0) ar[i * n + i] += sr;
+        ai[i * n + i] = si;
+      }
+      return reduced ? solveHessenbergComplexInPlace(ar, ai, n, br, bi) : solveComplexInPlace(ar, ai, n, br, bi);
+    },
+  };
+}
+
+/** A reusable evaluator of C (jωI − A)⁻¹ B + D with its own work buffers (through `shiftedSolver`). */
+export function rationalEvaluator(model: LinearModel): RationalEvaluator {
+  const n = model.nx;
   const br = new Float64Array(n);
   const bi = new Float64Array(n);
-  const reduced = n > HESSENBERG_STATES;
-  const h = Float64Array.from(model.a);
-  const b = Float64Array.from(model.b);
-  const c = Float64Array.from(model.c);
-  if (reduced) hessenberg(h, n, b, c);
+  const solver = shiftedSolver(model.a, n, [model.b], model.c);
+  const b = solver.inputs[0];
+  const c = solver.output;
   return (w: number, out: Float64Array): void => {
     if (n === 0) {
       out[0] = model.d;
       out[1] = 0;
       return;
     }
-    if (reduced) {
-      for (let i = 0; i < n; i++) {
-        // Only the Hessenberg band (j ≥ i − 1) is read by the solve.
-        for (let j = i > 0 ? i - 1 : 0; j < n; j++) {
-          ar[i * n + j] = -h[i * n + j];
-          ai[i * n + j] = 0;
-        }
-        ai[i * n + i] = w;
-      }
-    } else {
-      for (let i = 0; i < n * n; i++) {
-        ar[i] = -h[i];
-        ai[i] = 0;
-      }
-      for (let i = 0; i < n; i++) ai[i * n + i] = w;
-    }
     for (let i = 0; i < n; i++) {
       br[i] = b[i];
       bi[i] = 0;
     }
-    if (!(reduced ? solveHessenbergComplexInPlace(ar, ai, n, br, bi) : solveComplexInPlace(ar, ai, n, br, bi))) {
+    if (!solver.solve(0, w, br, bi)) {
       // jω is an eigenvalue (an integrator at ω = 0, or an undamped mode): the response is infinite.
       out[0] = Infinity;
       out[1] = 0;

@@ -29,8 +29,8 @@
  */
 import type { SensorSpec } from '../model/types.js';
 import { delayInSteps, sensorFilterCoefficients, type LinearModel } from '../sim/index.js';
-import { solveComplexInPlace, zohDiscretise } from '../num/index.js';
-import { sampleOnGrid, type PlantFrequencyResponse, type RationalEvaluator, type SampledGrid } from './freq-response.js';
+import { zohDiscretise } from '../num/index.js';
+import { sampleOnGrid, shiftedSolver, type PlantFrequencyResponse, type RationalEvaluator, type SampledGrid } from './freq-response.js';
 import { originTolerance, type PoleZeroSummary } from './poles-zeros.js';
 
 /**
@@ -189,10 +189,11 @@ export function sampledEvaluator(model: LinearModel, h: number, fraction: number
   } else {
     zohDiscretise(model.a, model.b, n, h, phiTmp, g0);
   }
-  const ar = new Float64Array(n * n);
-  const ai = new Float64Array(n * n);
   const br = new Float64Array(n);
   const bi = new Float64Array(n);
+  const solver = shiftedSolver(aPsi, n, [g0, g1], model.c);
+  const [t0, t1] = solver.inputs;
+  const c = solver.output;
   return (w: number, out: Float64Array): void => {
     const half = 0.5 * w * h;
     const sh = Math.sin(half);
@@ -204,25 +205,19 @@ export function sampledEvaluator(model: LinearModel, h: number, fraction: number
     let vr = model.d * cr;
     let vi = -model.d * zi;
     if (n > 0) {
-      for (let i = 0; i < n * n; i++) {
-        ar[i] = -aPsi[i];
-        ai[i] = 0;
-      }
       for (let i = 0; i < n; i++) {
-        ar[i * n + i] += zr1;
-        ai[i * n + i] = zi;
-        br[i] = g0[i] + g1[i] * cr;
-        bi[i] = -g1[i] * zi;
+        br[i] = t0[i] + t1[i] * cr;
+        bi[i] = -t1[i] * zi;
       }
-      if (!solveComplexInPlace(ar, ai, n, br, bi)) {
+      if (!solver.solve(zr1, zi, br, bi)) {
         // z is an eigenvalue of Φ (an integrator at ω = 0, or an undamped mode): infinite response.
         out[0] = Infinity;
         out[1] = 0;
         return;
       }
       for (let i = 0; i < n; i++) {
-        vr += model.c[i] * br[i];
-        vi += model.c[i] * bi[i];
+        vr += c[i] * br[i];
+        vi += c[i] * bi[i];
       }
     }
     // F(z) = (slope (z − 1) + (1 − a))/((z − 1) + (1 − a)).

@@ -59,12 +59,12 @@ export function balance(a: Float64Array, n: number): void {
 
 /**
  * Reduce to upper Hessenberg form in place (Gaussian elimination with pivoting, EISPACK elmhes);
- * entries below the subdiagonal are zeroed. The reduction is a similarity H = T⁻¹ A T; given
- * `left` (a column vector b, length n) it is replaced by T⁻¹ b, given `right` (a row vector c)
- * by c T, so that c (sI − A)⁻¹ b = c T (sI − H)⁻¹ T⁻¹ b: a transfer function evaluated on the
- * Hessenberg form (analysis/freq-response.ts).
+ * entries below the subdiagonal are zeroed. The reduction is a similarity H = T⁻¹ A T; each of
+ * `left` (column vectors b, length n) is replaced by T⁻¹ b, `right` (a row vector c) by c T, so
+ * that c (sI − A)⁻¹ b = c T (sI − H)⁻¹ T⁻¹ b: a transfer function evaluated on the Hessenberg
+ * form (analysis/freq-response.ts).
  */
-export function hessenberg(a: Float64Array, n: number, left?: Float64Array, right?: Float64Array): void {
+export function hessenberg(a: Float64Array, n: number, left: readonly Float64Array[] = [], right?: Float64Array): void {
   for (let m = 1; m < n - 1; m++) {
     let x = 0;
     let piv = m;
@@ -86,7 +86,7 @@ export function hessenberg(a: Float64Array, n: number, left?: Float64Array, righ
         a[j * n + m] = t;
       }
       // The same interchange P (P⁻¹ = P) on both vectors.
-      if (left !== undefined) [left[piv], left[m]] = [left[m], left[piv]];
+      for (const b of left) [b[piv], b[m]] = [b[m], b[piv]];
       if (right !== undefined) [right[piv], right[m]] = [right[m], right[piv]];
     }
     if (x === 0) continue;
@@ -98,7 +98,7 @@ export function hessenberg(a: Float64Array, n: number, left?: Float64Array, righ
       for (let j = m; j < n; j++) a[i * n + j] -= y * a[m * n + j];
       for (let j = 0; j < n; j++) a[j * n + m] += y * a[j * n + i];
       // Row i −= y row m is T⁻¹'s step (applied to b), column m += y column i is T's (applied to c).
-      if (left !== undefined) left[i] -= y * left[m];
+      for (const b of left) b[i] -= y * b[m];
       if (right !== undefined) right[m] += y * right[i];
     }
   }
