@@ -106,6 +106,38 @@ export function loopMargins(
   sampleTime: number,
   sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
 ): Margins {
+  return evaluateLoop(plant, gains, sampleTime, sensor, true);
+}
+
+/** Ms of a loop and what effectiveMs reads besides it (see `loopMs`). */
+export interface LoopMs {
+  /** Peak of |S| = |1/(1 + L)|, as `loopMargins` gives it. */
+  maxSensitivity: number;
+  maxSensitivityFrequency: number;
+  /** Closed-loop stability, as `loopMargins` gives it. */
+  closedLoopStable: boolean | null;
+}
+
+/**
+ * Ms and closed-loop stability only, for sweeps that report nothing else (tune's robustness sweep,
+ * the Ms-constrained designs): the same evaluation as `loopMargins`, bit for bit the same Ms and
+ * stability, without the |T| peak, the bandwidth and the notes (about a third of the work).
+ * The gain and phase crossings stay: their points of the |S| curve are Ms candidates and the
+ * real-axis crossings are the Nyquist count of the sampled loop.
+ */
+export function loopMs(plant: PlantFrequencyResponse, gains: GainSet, sampleTime: number, sensor: Pick<SensorSpec, 'delay' | 'filterTime'>): LoopMs {
+  const m = evaluateLoop(plant, gains, sampleTime, sensor, false);
+  return { maxSensitivity: m.maxSensitivity, maxSensitivityFrequency: m.maxSensitivityFrequency, closedLoopStable: m.closedLoopStable };
+}
+
+/** The one evaluation behind `loopMargins` and `loopMs`; `full` false skips Mt, bandwidth and notes (NaN / none). */
+function evaluateLoop(
+  plant: PlantFrequencyResponse,
+  gains: GainSet,
+  sampleTime: number,
+  sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
+  full: boolean,
+): Margins {
   const extras = loopExtras(sampleTime, sensor);
   const h = extras.sampleTime;
   const path = loopPath(plant, h, sensor);
@@ -348,13 +380,13 @@ export function loopMargins(
       msW = crossingS[k + 1];
     }
   }
-  const [mt, mtW] = peak(tAt, sT);
+  const [mt, mtW] = full ? peak(tAt, sT) : [NaN, NaN];
 
   // Bandwidth: first upward crossing of |S| = 1/√2.
   let bandwidth = NaN;
   const sq = Math.SQRT1_2;
   const sGrid = (i: number): number => 1 / Math.hypot(1 + re[i], im[i]);
-  if (sGrid(0) < sq) {
+  if (full && sGrid(0) < sq) {
     for (let i = 0; i + 1 < n; i++) {
       const a = sGrid(i) - sq;
       const b = sGrid(i + 1) - sq;
@@ -394,16 +426,18 @@ export function loopMargins(
       notes.push('closed-loop eigenvalue check failed');
     }
   }
-  if (closedLoopStable === false) notes.push('the closed loop is unstable with these gains: the margins describe an unstable loop');
-  if (path.unstablePoles > 0) {
-    notes.push(
-      `the plant has ${path.unstablePoles} unstable pole(s): gain and phase margins alone do not prove stability; rely on the closed-loop check`,
-    );
+  if (full) {
+    if (closedLoopStable === false) notes.push('the closed loop is unstable with these gains: the margins describe an unstable loop');
+    if (path.unstablePoles > 0) {
+      notes.push(
+        `the plant has ${path.unstablePoles} unstable pole(s): gain and phase margins alone do not prove stability; rely on the closed-loop check`,
+      );
+    }
+    if (Number.isFinite(nyquist) && n > 0 && mag[n - 1] > 0.5) {
+      notes.push(`loop gain is still ${mag[n - 1].toFixed(2)} at the Nyquist frequency ${nyquist.toPrecision(3)} rad/s: the sampling limits this loop`);
+    }
+    if (n > 0 && !Number.isFinite(nyquist) && mag[n - 1] >= 1) notes.push('loop gain is above 1 at the top of the frequency grid');
   }
-  if (Number.isFinite(nyquist) && n > 0 && mag[n - 1] > 0.5) {
-    notes.push(`loop gain is still ${mag[n - 1].toFixed(2)} at the Nyquist frequency ${nyquist.toPrecision(3)} rad/s: the sampling limits this loop`);
-  }
-  if (n > 0 && !Number.isFinite(nyquist) && mag[n - 1] >= 1) notes.push('loop gain is above 1 at the top of the frequency grid');
 
   return {
     gainMargin: gm,

@@ -9,7 +9,7 @@ export { settledStart } from './settled-start.js';
 export type { LoopStart } from './settled-start.js';
 export { operatingPoints, pointAtTravel, modelThroughValve, trialLevels, startOutput, describePoint, MAX_OPERATING_POINTS } from './operating-points.js';
 export type { OperatingPoint, OperatingPoints, TrialLevel, TravelPoint } from './operating-points.js';
-export { pointResponse, preparePoints, pointFigures, dominantDamping, figureAt, worstPoint, worstMargins, DOMINANCE_RATIO } from './point-margins.js';
+export { pointResponse, preparePoints, pointFigures, dominantDamping, figureAt, worstPoint, worstMargins, worstMs, DOMINANCE_RATIO } from './point-margins.js';
 export type { PreparedPoint, PointFigures, FrequencyFigure } from './point-margins.js';
 export { worstPointResponse, pointResponseOf, notPlainPidLoop } from './worst-point-response.js';
 export type { WorstPointResponse } from './worst-point-response.js';

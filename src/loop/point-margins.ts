@@ -11,7 +11,7 @@
  * branches of a dead-time loop (for s + a e^(−θ s) = 0 with aθ = 0.5 the second branch decays 3.5
  * times faster than the first).
  */
-import { closedLoopCheck, effectiveMs, loopExtras, loopMargins, plantFrequencyResponse } from '../analysis/index.js';
+import { closedLoopCheck, effectiveMs, loopExtras, loopMargins, loopMs, plantFrequencyResponse } from '../analysis/index.js';
 import type { Margins, PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import type { LinearModel } from '../sim/index.js';
@@ -123,6 +123,28 @@ export function pointFigures(prepared: readonly PreparedPoint[], gains: GainSet,
     done.set(response, { margins, damping, dampingPole });
     return { point, margins, damping, dampingPole };
   });
+}
+
+/**
+ * The Ms the worst-over-points margins give, `effectiveMs(worstMargins(pointFigures(...)))`, from
+ * analysis' Ms-only evaluation (loopMs): for sweeps that report Ms and nothing else. worstMargins
+ * takes the point of largest effective Ms and calls the loop unstable when any point is, so its
+ * effective Ms is the largest effective Ms over the points with a linear model (an unstable point
+ * gives Infinity). Null when no point has a linear model.
+ */
+export function worstMs(prepared: readonly PreparedPoint[], gains: GainSet, spec: PlantSpec): number | null {
+  const done = new Map<PlantFrequencyResponse, number>();
+  let worst: number | null = null;
+  for (const { point, response } of prepared) {
+    if (response === null || point.linear === null) continue;
+    let ms = done.get(response);
+    if (ms === undefined) {
+      ms = effectiveMs(loopMs(response, gains, spec.loop.sampleTime, spec.sensor));
+      done.set(response, ms);
+    }
+    if (worst === null || ms > worst) worst = ms;
+  }
+  return worst;
 }
 
 /** Frequency-domain figures a requirement or a report can ask for. */

@@ -24,7 +24,7 @@ import { diagnosePlant, type Flag } from '../diagnose/index.js';
 import { structureLaw } from '../model/index.js';
 import type { CompareCandidateSpec, ControllerSpec, PlantSpec, StructureName } from '../model/types.js';
 import { runTrial, type TrialResult } from '../sim/index.js';
-import { caseFigures, planSweep, summarise, type RobustnessCase, type RobustnessSummary, type SweepPlan } from './robustness.js';
+import { batchedRuns, caseFigures, planSweep, summarise, type RobustnessCase, type RobustnessSummary, type SweepPlan } from './robustness.js';
 import { structureMargins, type StructureMargins } from './structure-margins.js';
 import { resolveController, startState, StructureUnavailable, trialSetpoints } from './structure-tuning.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
@@ -447,11 +447,19 @@ function* evaluate(ctx: TuningContext, choice: Choice, plan: SweepPlan | null, f
   const g = resolved.gains;
   let worst: RobustnessSummary | null = null;
   if (plan !== null) {
-    const cases: RobustnessCase[] = [caseWithMs(caseFigures('nominal', {}, run.result, m, null), msOf(report.margins))];
-    for (const pc of plan.cases) {
-      const r = runOne(pc.ctx, resolved);
-      cases.push(caseWithMs(caseFigures(pc.kind, pc.values, r.result, r.metrics, null), msOf(structureMargins(pc.ctx, resolved))));
-    }
+    const cases: RobustnessCase[] = [caseWithMs(caseFigures('nominal', {}, run.result, m, NaN), msOf(report.margins))];
+    // The cases through the batch runner (as the sweep runs them; the same results as one
+    // runTrial each, bit for bit); a structure outside its subset runs one case at a time there.
+    const sampled = new Array<RobustnessCase>(plan.cases.length);
+    batchedRuns(
+      plan.cases,
+      (cx) => buildController(resolved, cx.spec.loop.sampleTime, cx.dynamics),
+      (i, result, metrics) => {
+        const pc = plan.cases[i];
+        sampled[i] = caseWithMs(caseFigures(pc.kind, pc.values, result, metrics, NaN), msOf(structureMargins(pc.ctx, resolved)));
+      },
+    );
+    cases.push(...sampled);
     worst = summarise(cases);
   }
   report.row = {

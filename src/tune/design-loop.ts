@@ -5,11 +5,11 @@
  * gain set whose filter, weights and anti-windup a design keeps, and the project's one Ms of a
  * gain set on the loop.
  */
-import { effectiveMs, loopMargins, poleZeroSummary, slowestRhpZero, type PlantFrequencyResponse } from '../analysis/index.js';
+import { effectiveMs, loopMs, poleZeroSummary, slowestRhpZero, type PlantFrequencyResponse } from '../analysis/index.js';
 import type { GainSet, SensorSpec } from '../model/types.js';
-import { gainMargins } from './gain-margins.js';
+import { gainMs } from './gain-margins.js';
 import type { TuningContext } from './tuning-context.js';
-import { pointFigures, worstMargins } from '../loop/index.js';
+import { worstMs } from '../loop/index.js';
 
 /** A loop to design on. */
 export interface DesignLoop {
@@ -23,7 +23,8 @@ export interface DesignLoop {
   /**
    * Ms of a gain set on the loop, Infinity when the closed loop is not stable (analysis'
    * effectiveMs). From a plant file: the worst over the trial's operating points (tune's
-   * gainMargins), the figure every row of `suggest` is judged by.
+   * gainMargins), the figure every row of `suggest` is judged by; read through the Ms-only
+   * evaluation (loopMs, worstMs, gainMs: the same number bit for bit, test/tune/gain-ms.test.ts).
    */
   ms(g: GainSet): number;
   /**
@@ -42,7 +43,7 @@ export function responseDesignLoop(
   sensor: Pick<SensorSpec, 'delay' | 'filterTime'>,
   base: GainSet,
 ): DesignLoop {
-  return { response, sampleTime, sensor, base, ms: (g) => effectiveMs(loopMargins(response, g, sampleTime, sensor)) };
+  return { response, sampleTime, sensor, base, ms: (g) => effectiveMs(loopMs(response, g, sampleTime, sensor)) };
 }
 
 /**
@@ -56,7 +57,7 @@ export function contextDesignLoop(ctx: TuningContext): DesignLoop | null {
     sampleTime: ctx.spec.loop.sampleTime,
     sensor: ctx.spec.sensor,
     base: ctx.spec.loop.controller.gains,
-    ms: (g) => effectiveMs(gainMargins(ctx, g)),
+    ms: (g) => gainMs(ctx, g) ?? Infinity,
   };
   // One point per distinct linear model (points with the same model have the same Ms).
   const seen = new Set<PlantFrequencyResponse>();
@@ -65,7 +66,7 @@ export function contextDesignLoop(ctx: TuningContext): DesignLoop | null {
   return {
     ...loop,
     pointCount: distinct.length,
-    msAt: (g, points) => effectiveMs(worstMargins(pointFigures(points.map((i) => distinct[i]), g, ctx.spec))),
+    msAt: (g, points) => worstMs(points.map((i) => distinct[i]), g, ctx.spec) ?? Infinity,
   };
 }
 

@@ -17,7 +17,7 @@ import { batchChunks, createTrace, DEFAULT_BATCH_WIDTH, runTrialBatch, trialRows
 import type { Margins, TrialMetrics } from '../analysis/index.js';
 import { EnvelopeBuilder, finishEnvelope, mergeEnvelopes, type PartialEnvelope, type TraceEnvelope } from './envelope.js';
 import { simulateGains } from './evaluate.js';
-import { gainMargins } from './gain-margins.js';
+import { gainMs } from './gain-margins.js';
 import { modelValues, specWithValues } from './uncertain-spec.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 
@@ -168,7 +168,7 @@ function runCases(
   const envelope = keep ? new EnvelopeBuilder() : null;
   const take = (i: number, result: TrialResult, metrics: TrialMetrics): void => {
     const ctx = list[i].ctx;
-    cases[i] = caseFigures(list[i].kind, list[i].values, result, metrics, gainMargins(ctx, g));
+    cases[i] = caseFigures(list[i].kind, list[i].values, result, metrics, gainMs(ctx, g) ?? NaN);
     envelope?.add(result.trace, firstIsNominal && i === 0);
   };
   if (options.runner === 'sequential') {
@@ -178,7 +178,7 @@ function runCases(
     }
     return { cases, envelope: envelope?.part() ?? null, single: 0, why: [] };
   }
-  const batch = batchedRuns(list, g, structure, take);
+  const batch = batchedRuns(list, (ctx) => gainController(ctx, g, structure), take);
   return { cases, envelope: envelope?.part() ?? null, single: batch.single, why: batch.why };
 }
 
@@ -347,14 +347,16 @@ function sameTrial(a: TrialSpec, b: TrialSpec): boolean {
 }
 
 /**
- * All cases simulated through the batch runner, grouped by trial, a chunk of loops at a time;
- * each chunk's results are handed to `take` (with their metrics) before the next chunk runs, so
- * a handful of traces is recorded into over and over instead of one trace per case.
+ * All cases simulated through the batch runner, grouped by trial, a chunk of loops at a time, each
+ * with the controller `controller(ctx)` makes for it; each chunk's results are handed to `take`
+ * (with their metrics) before the next chunk runs, so a handful of traces is recorded into over
+ * and over instead of one trace per case: `take` must not keep the result's trace. Controllers
+ * outside the batch runner's subset run one at a time (counted in `single`, reasons in `why`).
+ * Used by the sweep and by compare's candidates over the same cases.
  */
-function batchedRuns(
-  list: SweepPlan['cases'],
-  gains: GainSet,
-  structure: ControllerStructure,
+export function batchedRuns(
+  list: readonly SweepPlan['cases'][number][],
+  controller: (ctx: TuningContext) => DiscreteController,
   take: (i: number, result: TrialResult, metrics: TrialMetrics) => void,
 ): { single: number; why: string[] } {
   const groups: { trial: TrialSpec; idx: number[] }[] = [];
@@ -371,7 +373,7 @@ function batchedRuns(
     const rows = ts > 0 && Number.isFinite(ts) && grp.trial.duration >= 0 ? trialRows(grp.trial.duration, ts) : 0;
     let traces: Trace[] | undefined;
     for (const chunk of batchChunks(grp.idx, DEFAULT_BATCH_WIDTH)) {
-      const members = chunk.map((i) => ({ plant: list[i].ctx.dynamics, controller: gainController(list[i].ctx, gains, structure), loop: list[i].ctx.loop }));
+      const members = chunk.map((i) => ({ plant: list[i].ctx.dynamics, controller: controller(list[i].ctx), loop: list[i].ctx.loop }));
       // Storage only where every case of the chunk has the first case's sample grid and disturbances.
       const fits = chunk.every((i) => list[i].ctx.loop.sampleTime === ctx0.loop.sampleTime && sameNames(list[i].ctx.dynamics.disturbanceNames, ctx0.dynamics.disturbanceNames));
       if (fits && rows > 0 && traces === undefined) traces = scratchTraces(rows, ctx0.dynamics.disturbanceNames);
@@ -413,13 +415,18 @@ function sameNames(a: readonly string[], b: readonly string[]): boolean {
   return a.length === b.length && a.every((n, i) => n === b[i]);
 }
 
-/** The figures of one simulated case. */
+/** A case's Ms from its margins: effectiveMs, NaN without margins (no linear model). */
+export function caseMs(m: Margins | null): number {
+  return m === null ? NaN : effectiveMs(m);
+}
+
+/** The figures of one simulated case; `ms` its effective Ms (NaN without a linear model, see `caseMs`). */
 export function caseFigures(
   kind: RobustnessCase['kind'],
   values: Record<string, number>,
   result: TrialResult,
   metrics: TrialMetrics,
-  m: Margins | null,
+  ms: number,
 ): RobustnessCase {
   const head = headlineMetrics(metrics);
   const overshoot = headlineNumber(head.overshootPct);
@@ -432,7 +439,7 @@ export function caseFigures(
     overshootPct: overshoot,
     settlingTime: diverged ? Infinity : settling,
     iae: diverged ? Infinity : metrics.overall.iae,
-    ms: m === null ? NaN : effectiveMs(m),
+    ms,
   };
 }
 

@@ -12,7 +12,7 @@ import { ruleGainSet, valuesInForm } from './gain-sets.js';
 import type { RuleGains, UltimatePoint } from './low-order.js';
 import { relayOnPlant, type PlantRelayOptions, type PlantRelayResult } from './relay-on-plant.js';
 
-import { caseFigures, planSweep, robustnessSweep, summarise, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
+import { caseFigures, caseMs, planSweep, robustnessSweep, summarise, type RobustnessOptions, type RobustnessSummary } from './robustness.js';
 import { TUNING_RULES, type RuleInputs, type RuleParameters, type TuningRule } from './rule-table.js';
 import { tuningContext, type TuningContext } from './tuning-context.js';
 import { poleDelayNote, poleRules } from './pole-rules.js';
@@ -199,7 +199,7 @@ export function suggestGains(spec: PlantSpec, options: SuggestOptions = {}): Sug
     let worstCase: RobustnessSummary | null = null;
     if (sweep && plan) {
       const others = robustnessSweep(spec, evaluation.gains, { ...sweep, structure: rule.structure, envelope: false }, ctx, plan);
-      const nominal = caseFigures('nominal', {}, evaluation.result, evaluation.metrics, evaluation.margins);
+      const nominal = caseFigures('nominal', {}, evaluation.result, evaluation.metrics, caseMs(evaluation.margins));
       worstCase = summarise([nominal, ...others.cases]);
     }
     suggestions.push({

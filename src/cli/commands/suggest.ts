@@ -7,7 +7,7 @@ import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js
 import { MIN_SAMPLE_TIME } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import type { LoopShapingTarget, PoleTarget } from '../../tune/index.js';
-import { caseFigures, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
+import { caseFigures, caseMs, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -363,7 +363,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
       for (const s of result.suggestions) {
         const others = await pool.sweep({ text, fileName: options.file }, s.gains, { ...sweep, nominal: false, structure: s.structure, envelope: false });
         const e = s.evaluation;
-        s.worstCase = summarise([caseFigures('nominal', {}, e.result, e.metrics, e.margins), ...others.cases]);
+        s.worstCase = summarise([caseFigures('nominal', {}, e.result, e.metrics, caseMs(e.margins)), ...others.cases]);
       }
     } finally {
       await pool.close();
