@@ -26,16 +26,26 @@ export interface PlantSource {
 }
 
 /**
- * Number of threads for sweeps: `LOOPRIG_JOBS` (a whole number >= 1) when set, else the
- * machine's available parallelism. 1 means in-process only.
+ * Number of threads for sweeps: `LOOPRIG_JOBS` (a whole number >= 1) when set, else
+ * `defaultJobs(cores)` for the machine's available parallelism. 1 means in-process only.
  */
-export function sweepJobs(env: Readonly<Record<string, string | undefined>> = {}): number {
+export function sweepJobs(env: Readonly<Record<string, string | undefined>> = {}, cores: number = availableParallelism()): number {
   const raw = env.LOOPRIG_JOBS;
   if (raw !== undefined && raw.trim() !== '') {
     const n = Number(raw);
     if (Number.isInteger(n) && n >= 1) return n;
   }
-  return availableParallelism();
+  return defaultJobs(cores);
+}
+
+/**
+ * Threads a sweep uses unless asked otherwise: one (this thread) on a machine of two cores or
+ * fewer, else one per core. On two cores a worker did not pay: `suggest --jobs 2` ran 11 % slower
+ * than `--jobs 1` (the second core also serves the garbage collector, the compiler threads and
+ * whatever else runs), so threads are used there only when asked for (`--jobs`, LOOPRIG_JOBS).
+ */
+export function defaultJobs(cores: number): number {
+  return cores <= 2 ? 1 : cores;
 }
 
 /**
@@ -170,7 +180,7 @@ export class SweepPool {
  * One sweep on a pool of its own when it pays off (`jobs` > 1 and at least MIN_PARALLEL_CASES
  * cases), else in-process; the pool is closed afterwards. Same result either way.
  */
-export async function parallelSweep(source: PlantSource, gains: GainSet, options: RobustnessOptions = {}, jobs = availableParallelism()): Promise<RobustnessResult> {
+export async function parallelSweep(source: PlantSource, gains: GainSet, options: RobustnessOptions = {}, jobs = defaultJobs(availableParallelism())): Promise<RobustnessResult> {
   const loaded = loadPlant(source.text, source.fileName);
   if (loaded.plant === undefined) throw new RangeError(`${source.fileName}: the plant file does not load`);
   const pool = new SweepPool(sweepCaseCount(loaded.plant, options) >= MIN_PARALLEL_CASES ? jobs : 1);

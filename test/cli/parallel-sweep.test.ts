@@ -93,6 +93,11 @@ describe('splitCases and sweepJobs', () => {
     expect(sweepJobs({ LOOPRIG_JOBS: '3' })).toBe(3);
     expect(sweepJobs({ LOOPRIG_JOBS: 'x' })).toBe(sweepJobs({}));
     expect(sweepJobs({})).toBeGreaterThanOrEqual(1);
+    // Two cores or fewer: this thread only unless asked (a worker did not pay there); more: one per core.
+    expect(sweepJobs({}, 2)).toBe(1);
+    expect(sweepJobs({}, 1)).toBe(1);
+    expect(sweepJobs({}, 8)).toBe(8);
+    expect(sweepJobs({ LOOPRIG_JOBS: '2' }, 2)).toBe(2);
   });
 });
 

@@ -43,7 +43,8 @@ Options:
   --relay        take the ultimate point from a relay test in the simulation instead of the model
   --samples N    Monte-Carlo samples over the uncertainty per rule, besides the corners (default 0)
   --jobs N       threads for the worst-case sweeps when they have ${MIN_PARALLEL_CASES} or more cases (default:
-                 LOOPRIG_JOBS, else the machine's cores; 1 = this thread only); same results
+                 LOOPRIG_JOBS, else the machine's cores, or 1 on two cores or fewer; 1 = this
+                 thread only); same results
   -h, --help     show this text
 `;
 
