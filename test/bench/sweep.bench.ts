@@ -142,6 +142,10 @@ export async function run(): Promise<void> {
   console.log(`  whole sweep (+ metrics + margins), sequential ${fmt('sweepSeq')}`);
   console.log(`  whole sweep (+ metrics + margins), batched    ${fmt('sweepBatch')}`);
   console.log(`    batched / sequential sweep: ${(r('sweepBatch').best / r('sweepSeq').best).toFixed(2)}x (median ${(r('sweepBatch').median / r('sweepSeq').median).toFixed(2)}x)`);
+  console.log(
+    `    simulation share of the batched sweep (its simulations alone / the whole sweep): ${((100 * r('sweepBatch').best) / r('batch').best).toFixed(0)} %` +
+      ` (median ${((100 * r('sweepBatch').median) / r('batch').median).toFixed(0)} %; target >= 40 %)`,
+  );
   console.log(`  first batched sweep in this process (generated code compiled): ${coldBatched.toFixed(0)} ms`);
 
   // Whole sweeps again, the pool beside them. The in-process sweeps get the prepared plan; the
