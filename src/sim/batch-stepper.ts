@@ -387,7 +387,7 @@ export function batchSource(
     // Large plants: each copy's step through the chunk functions (stage-chunks.ts), one copy after
     // another; the state stays in Z (a view per copy), the values of each copy are gathered in
     // $V<c> once per sample.
-    const chunks = compileChunks(integrator, prepared.deriv, layout, helpers)[0].length;
+    const chunks = compileChunks(integrator, prepared.deriv, layout, helpers, 'batch')[0].length;
     const stages = INTEGRATOR_STAGES[integrator];
     const calls: string[] = [];
     for (let st = 0; st < stages; st++) for (let j = 0; j < chunks; j++) calls.push(`$c${st}_${j} = $C[${st}][${j}]`);
@@ -534,7 +534,7 @@ export function generateBatch(
   // A split body (large plants) calls the chunk functions ($C) and the output ($O).
   const layout: ChunkLayout = { np: plant.params.length, nl: lifted.values.length, nd: plant.d0.length };
   const split = splitStep(lifted.deriv, INTEGRATOR_STAGES[integrator], shape.width);
-  const chunks = split ? compileChunks(integrator, lifted.deriv, layout, helpers) : [];
+  const chunks = split ? compileChunks(integrator, lifted.deriv, layout, helpers, 'batch') : [];
   const out = split && shape.sensorDelay ? compileChunkOutput(lifted.output, layout, helpers) : null;
   // eslint-disable-next-line @typescript-eslint/no-implied-eval -- generated from checked trees
   const fn = new Function('F', '$C', '$O', src)(helpers, chunks, out) as BatchFunction;

@@ -345,7 +345,7 @@ export function stepperSource(plant: PlantDynamics, integrator: IntegratorName, 
   const { deriv, output, inverses } = prepared;
   const nx = plant.nx;
   if (options.split ?? splitStep(deriv, INTEGRATOR_STAGES[integrator] ?? 1)) {
-    return splitStepperSource(plant, integrator, options, prepared, compileChunks(integrator, deriv, layoutOf(plant), helpers)[0].length);
+    return splitStepperSource(plant, integrator, options, prepared, compileChunks(integrator, deriv, layoutOf(plant), helpers, 'step')[0].length);
   }
   const stages = integrator === 'rk4' ? 4 : integrator === 'heun' ? 2 : 1;
   const ks: string[] = [];
@@ -402,7 +402,7 @@ export function generateStepper(
     let out: ChunkOutput | null = null;
     const prepared = prepare(plant, helpers);
     if (options.split ?? splitStep(prepared.deriv, INTEGRATOR_STAGES[integrator] ?? 1)) {
-      chunks = compileChunks(integrator, prepared.deriv, layoutOf(plant), helpers);
+      chunks = compileChunks(integrator, prepared.deriv, layoutOf(plant), helpers, 'step');
       if (options.outputSequence) out = compileChunkOutput(prepared.output, layoutOf(plant), helpers);
     }
     // eslint-disable-next-line @typescript-eslint/no-implied-eval -- generated from checked trees

@@ -235,10 +235,19 @@ function remember<T>(cache: Map<string, T>, key: string, make: () => T): T {
 
 /**
  * The chunk functions, [stage][chunk], of these derivative sources (already checked and prepared
- * by the caller: model/'s generated expressions, never user text), cached by their text.
+ * by the caller: model/'s generated expressions, never user text), cached by their text and by
+ * `site`, the generator calling them: the one-loop step and the batch function each get their
+ * own functions, so each keeps its own type feedback (they are handed different arrays: the
+ * caller's state array against views into the batch's state).
  */
-export function compileChunks(integrator: IntegratorName, deriv: readonly string[], layout: ChunkLayout, helpers: Helpers): ChunkFunction[][] {
-  return remember(chunkCache, cacheKey(helpers, layout, [integrator, ...deriv]), () =>
+export function compileChunks(
+  integrator: IntegratorName,
+  deriv: readonly string[],
+  layout: ChunkLayout,
+  helpers: Helpers,
+  site: 'step' | 'batch',
+): ChunkFunction[][] {
+  return remember(chunkCache, cacheKey(helpers, layout, [site, integrator, ...deriv]), () =>
     chunkSources(integrator, deriv, layout).map((stage) =>
       // eslint-disable-next-line @typescript-eslint/no-implied-eval -- generated from checked trees
       stage.map((src) => new Function('F', src)(helpers) as ChunkFunction),
