@@ -16,6 +16,10 @@
  * Stage expressions are evaluated inside a block that re-declares `x_0 … x_{n-1}` and `t` (and
  * `u` for the per-step input variant) with `const`, so each source is pasted verbatim and block
  * scoping, not text substitution, binds it to the stage's state.
+ *
+ * Large plants (past SPLIT_STEP_CHARS of inline step) are generated in the split form of
+ * stage-chunks.ts instead: the same operations, bit-identical results, in functions small enough
+ * for V8 to optimise.
  */
 import { MATH_HELPERS, type IntegratorName } from '../model/index.js';
 import { chunkedStep, chunkValues, compileChunkOutput, compileChunks, splitStep, type ChunkFunction, type ChunkLayout, type ChunkOutput } from './stage-chunks.js';
@@ -290,12 +294,6 @@ function stepBody(integrator: IntegratorName, nx: number, deriv: string[]): stri
     extra: '',
   });
   return [...stages, update].join('\n');
-}
-
-/** Whether this plant's step is generated split into chunk functions (stage-chunks.ts: large plants). */
-export function isSplitStep(plant: PlantDynamics, integrator: IntegratorName, options: StepperOptions = {}): boolean {
-  const helpers = options.helpers ?? DEFAULT_HELPERS;
-  return options.split ?? splitStep(prepare(plant, helpers).deriv, INTEGRATOR_STAGES[integrator] ?? 1);
 }
 
 /**
