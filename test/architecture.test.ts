@@ -25,7 +25,7 @@ const RULES: ArchitectureRules = {
   shellPackages: Object.keys(pkg.dependencies),
   // The only places that turn generated JavaScript (built from checked expression trees and
   // numbers, never user text) into functions.
-  generators: ['model/compile-plant.ts', 'model/expr/compile.ts', 'sim/generate-stepper.ts', 'sim/batch-stepper.ts'],
+  generators: ['model/compile-plant.ts', 'model/expr/compile.ts', 'sim/generate-stepper.ts', 'sim/batch-stepper.ts', 'sim/stage-chunks.ts'],
   contracts: ['index.ts', 'types.ts'],
 };
 
