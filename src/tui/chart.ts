@@ -15,6 +15,17 @@ export interface ChartSeries {
   readonly tag: string;
   /** Line glyphs in asciichart's order (10 characters); absent = asciichart's own. */
   readonly symbols?: readonly string[];
+  /**
+   * Hysteresis in rows: the line leaves its row only when the value moves more than half a row
+   * plus this much from it, so a value resting on the boundary between two rows is drawn on one
+   * of them instead of flickering between both. Absent = plain rounding.
+   */
+  readonly hold?: number;
+  /**
+   * The column's lowest and highest value (per point, as `values`): where they lie more than one
+   * row apart the column is filled between them with `ch`, beneath the line (noise, a fast swing).
+   */
+  readonly spread?: { readonly lo: ArrayLike<number>; readonly hi: ArrayLike<number>; readonly ch: string };
 }
 
 export interface ChartOptions {
@@ -44,6 +55,8 @@ export interface ChartGrid {
   columns: number;
   min: number;
   max: number;
+  /** Tags of the series that filled a column with their spread (the legend says what it means). */
+  spread: ReadonlySet<string>;
 }
 
 /** Label width the panels reserve: fits every `axisLabel` result. */
@@ -66,12 +79,20 @@ export function axisLabel(v: number): string {
 export function seriesRange(series: readonly ChartSeries[]): { min: number; max: number } {
   let min = Infinity;
   let max = -Infinity;
-  for (const s of series) {
-    for (let i = 0; i < s.values.length; i++) {
-      const v = s.values[i];
+  const take = (values: ArrayLike<number>): void => {
+    for (let i = 0; i < values.length; i++) {
+      const v = values[i];
       if (!Number.isFinite(v)) continue;
       if (v < min) min = v;
       if (v > max) max = v;
+    }
+  };
+  for (const s of series) {
+    take(s.values);
+    // A spread's extremes are drawn too: the range must hold them (a peak narrower than a column).
+    if (s.spread !== undefined) {
+      take(s.spread.lo);
+      take(s.spread.hi);
     }
   }
   if (min === Infinity) return { min: 0, max: 1 };
@@ -120,6 +141,7 @@ export function renderChart(series: readonly ChartSeries[], o: ChartOptions): Ch
 
   const cells: string[][] = [];
   const tags: string[][] = [];
+  const spread = new Set<string>();
   for (let r = 0; r <= rows; r++) {
     cells.push(new Array<string>(columns).fill(' '));
     tags.push(new Array<string>(columns).fill(''));
@@ -127,14 +149,21 @@ export function renderChart(series: readonly ChartSeries[], o: ChartOptions): Ch
   if (n >= 2 && columns > 0) {
     const vals = new Array<number>(columns + 1);
     for (const s of series) {
+      if (s.spread !== undefined && drawSpread(s, s.spread, columns, { min, max, ratio, top: max2 }, cells, tags)) spread.add(s.tag);
       let last = (min + max) / 2;
+      let held = NaN;
       for (let i = 0; i <= columns; i++) {
         const v = s.values[i];
         // Clamp so that a wild value (a diverging run) still plots at the edge, never off the grid.
         if (Number.isFinite(v)) last = Math.min(max, Math.max(min, v));
         else if (v === Infinity) last = max;
         else if (v === -Infinity) last = min;
-        vals[i] = last;
+        if (s.hold !== undefined) {
+          // Snap to a row (the value asciichart rounds to that row), keeping the held one while near it.
+          const at = last * ratio;
+          if (!(Math.abs(at - held) <= 0.5 + s.hold)) held = Math.round(at);
+          vals[i] = held / ratio;
+        } else vals[i] = last;
       }
       const symbols = s.symbols === undefined ? undefined : (s.symbols.slice(0, 10) as PlotSymbols);
       const text = plot(vals, { min, max, height: h, offset: 2, padding: '', format: () => ' ', symbols });
@@ -168,7 +197,32 @@ export function renderChart(series: readonly ChartSeries[], o: ChartOptions): Ch
     if (pad > 0) spans.push({ text: ' '.repeat(pad), tag: '' });
     out.push(spans);
   }
-  return { rows: out, gutter, columns, min, max };
+  return { rows: out, gutter, columns, min, max, spread };
+}
+
+/** Fill each column whose lowest and highest values lie more than a row apart, between them; true when one was. */
+function drawSpread(
+  s: ChartSeries,
+  sp: NonNullable<ChartSeries['spread']>,
+  columns: number,
+  m: { min: number; max: number; ratio: number; top: number },
+  cells: string[][],
+  tags: string[][],
+): boolean {
+  let any = false;
+  const rowOf = (v: number): number => m.top - Math.round(Math.min(m.max, Math.max(m.min, v)) * m.ratio);
+  for (let k = 0; k <= columns; k++) {
+    const lo = sp.lo[k];
+    const hi = sp.hi[k];
+    if (!Number.isFinite(lo) || !Number.isFinite(hi) || (hi - lo) * m.ratio <= 1) continue;
+    const x = Math.min(k, columns - 1);
+    any = true;
+    for (let r = rowOf(hi); r <= rowOf(lo); r++) {
+      cells[r][x] = sp.ch;
+      tags[r][x] = s.tag;
+    }
+  }
+  return any;
 }
 
 function rowsFor(min: number, max: number, h: number): number {

@@ -47,18 +47,30 @@ export function envelopeSeries(env: EnvelopeInput, t0: number, t1: number, point
 export function trendSeries(inp: TrendInput): ChartSeries[] {
   const { trace, baseline, t0, t1, points } = inp;
   const out: ChartSeries[] = inp.envelope ? envelopeSeries(inp.envelope, t0, t1, points) : [];
-  if (baseline !== null) {
-    const b = chartPoints(baseline.t, baseline.y, baseline.length, t0, t1, points);
-    out.push({ values: b.lo, tag: 'baseline', symbols: GLYPHS.baseline });
-    out.push({ values: b.hi, tag: 'baseline', symbols: GLYPHS.baseline });
-  }
+  if (baseline !== null) out.push(oneLine(chartPoints(baseline.t, baseline.y, baseline.length, t0, t1, points), 'baseline', GLYPHS.baseline));
   const r = chartPoints(trace.t, trace.r, trace.length, t0, t1, points);
   out.push({ values: r.hi, tag: 'sp', symbols: GLYPHS.sp });
-  // The measured value is what an operator sees on the real loop; noise shows as a band.
-  const y = chartPoints(trace.t, trace.ym, trace.length, t0, t1, points);
-  out.push({ values: y.lo, tag: 'pv', symbols: GLYPHS.pv });
-  out.push({ values: y.hi, tag: 'pv', symbols: GLYPHS.pv });
+  // The measured value is what an operator sees on the real loop.
+  out.push(oneLine(chartPoints(trace.t, trace.ym, trace.length, t0, t1, points), 'pv', GLYPHS.pv));
   return out;
+}
+
+/** Hysteresis of a process-value line, rows (see ChartSeries.hold). */
+export const PV_HOLD = 0.25;
+
+/** Glyph filling a column whose samples spread over more than one row (noise, a fast swing). */
+export const SPREAD_GLYPH = '┆';
+
+/**
+ * A process value as ONE line: the middle of each column's lowest and highest sample, held on its
+ * row against flicker, with the column filled from lowest to highest only where they lie more
+ * than a row apart. Two lines (lowest and highest) doubled every steep part and drew a ripple
+ * where a settled value sat on a row boundary.
+ */
+export function oneLine(mm: { lo: Float64Array; hi: Float64Array }, tag: string, symbols: readonly string[]): ChartSeries {
+  const mid = new Float64Array(mm.lo.length);
+  for (let k = 0; k < mid.length; k++) mid[k] = (mm.lo[k] + mm.hi[k]) / 2;
+  return { values: mid, tag, symbols, hold: PV_HOLD, spread: { lo: mm.lo, hi: mm.hi, ch: SPREAD_GLYPH } };
 }
 
 /**

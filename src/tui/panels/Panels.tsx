@@ -14,7 +14,7 @@ import type { MetricRow } from '../metric-rows.js';
 import type { MarginsView, Notice } from '../notices.js';
 import type { ScreenState } from '../screen-state.js';
 import type { Theme } from '../theme.js';
-import { outputSeries, trendSeries } from '../trend-series.js';
+import { outputSeries, SPREAD_GLYPH, trendSeries } from '../trend-series.js';
 import { hasStripRequirements, stripSteps, VERDICT_MARKS, verdictStrip, type Strip, type StripStep } from '../verdict-strip.js';
 import { ChartPanel } from './ChartPanel.js';
 import { GainsPanel } from './GainsPanel.js';
@@ -97,6 +97,8 @@ export function Panels(p: PanelsProps) {
         { width: w, height: layout.trendRows - (withStrip ? 1 : 0), labelWidth: LABEL_WIDTH },
       )
     : null;
+  // PV is one line (each column's middle); where its samples spread over more than a row, the legend says what fills the column.
+  if (trendGrid?.spread.has('pv') === true) legend.splice(2, 0, { text: `${SPREAD_GLYPH} PV range `, color: theme.pv });
   let strip: Piece[] | undefined;
   if (withStrip && trendGrid !== null) {
     const run = p.run;
