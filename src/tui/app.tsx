@@ -24,10 +24,10 @@ import { useEnvelope } from './hooks/use-envelope.js';
 import { useLiveRun } from './hooks/use-live-run.js';
 import { useSave, type ScreenIo } from './hooks/use-save.js';
 import { useTuningAids } from './hooks/use-tuning-aids.js';
-import { HINT, LIST_HINT, keyTokens } from './keymap.js';
 import { FREQUENCY_HINT } from './frequency-keys.js';
 import { frequencyViewData, shapeStep } from './frequency-view.js';
 import { FrequencyPanel } from './panels/FrequencyPanel.js';
+import { fittingText, HINT, HINT_SHORTER, LIST_HINT, keyTokens } from './keymap.js';
 import { computeLayout } from './layout.js';
 import { metricRows, type MetricInput } from './metric-rows.js';
 import type { MarginsView, Notice, NoticeSource } from './notices.js';
@@ -112,9 +112,6 @@ export function App(props: AppProps) {
   );
   const size = useTerminalSize(props.size);
   // A long message (a save error naming a path) is wrapped, not cut: the charts give up the rows.
-  const message = messageLines(state, Math.max(20, Math.floor(size.columns || 80)));
-  const messageRows = message.length;
-  const layout = computeLayout(size.columns, size.rows - (messageRows - 1), gainPanelLines(state.current));
   const aids = useTuningAids(setup, dispatch);
 
   // ---------------------------------------------------------------- instant evaluation
@@ -155,10 +152,12 @@ export function App(props: AppProps) {
   // The edited set at its worst operating point, the set in service (a pinned one, else the
   // file's gains) overlaid when it differs; one frequency per braille dot across the screen.
   const freqOpen = state.overlay.kind === 'frequency';
+  // The width every line is cut to (the layout's, which is worked out below, after the notices).
+  const screenWidth = Math.max(20, Math.floor(size.columns || 80));
   const inService = state.baseline?.edit ?? state.file;
   const freqData = useMemo(
-    () => (freqOpen ? frequencyViewData(setup, setup.context().points, state.current, sameEdit(inService, state.current) ? null : inService, 2 * layout.width) : null),
-    [freqOpen, setup, state.current, inService, layout.width],
+    () => (freqOpen ? frequencyViewData(setup, setup.context().points, state.current, sameEdit(inService, state.current) ? null : inService, 2 * screenWidth) : null),
+    [freqOpen, setup, state.current, inService, screenWidth],
   );
 
   // ---------------------------------------------------------------- live run
@@ -258,6 +257,14 @@ export function App(props: AppProps) {
     }
   }
 
+  // A long message (a save error naming a path) is wrapped, not cut: the charts give up the rows.
+  // Without the notices column the first notice takes the message line, on two lines if it needs them.
+  const columnFree = computeLayout(size.columns, size.rows, gainPanelLines(state.current)).noticesWidth > 0;
+  const footNotice = columnFree ? null : (notices[0] ?? null);
+  const message = messageLines(state, screenWidth, footNotice);
+  const messageRows = message.length;
+  const layout = computeLayout(size.columns, size.rows - (messageRows - 1), gainPanelLines(state.current));
+
   const body = (() => {
     const o = state.overlay;
     const bodyLines = layout.lines - 3;
@@ -335,8 +342,8 @@ export function App(props: AppProps) {
         theme={theme}
       />
       {body}
-      <MessageLine state={state} lines={message} width={layout.width} theme={theme} notices={layout.noticesWidth > 0 ? [] : notices} dispatch={dispatch} />
-      <Line pieces={[{ text: hintFor(state.overlay), color: theme.dim }]} width={layout.width} color={theme.color} />
+      <MessageLine state={state} lines={message} width={layout.width} theme={theme} notice={footNotice} dispatch={dispatch} />
+      <Line pieces={[{ text: hintFor(state.overlay, layout.width), color: theme.dim }]} width={layout.width} color={theme.color} />
     </Box>
   );
 }
@@ -355,21 +362,21 @@ function useDeferred<T>(compute: () => T, deps: readonly unknown[]): T | 'pendin
   return fresh ? value.value : 'pending';
 }
 
-/** The hint line: the main keys, or the keys of the open list or view. */
-function hintFor(o: Overlay): string {
+/** The hint line: the main keys, or the keys of the open list or view, in words that fit `width`. */
+function hintFor(o: Overlay, width: number): string {
   switch (o.kind) {
     case 'suggest':
       return LIST_HINT;
     case 'optimize':
-      return o.outcome === null ? 'Esc stops the optimiser (the best so far is offered)' : 'Enter apply  Esc discard';
+      return o.outcome === null ? fittingText(['Esc stops the optimiser (the best so far is offered)', 'Esc stops the optimiser'], width) : 'Enter apply  Esc discard';
     case 'compare':
-      return '↑↓ Tab switch the edited candidate  Esc back';
+      return fittingText(['↑↓ Tab switch the edited candidate  Esc back', '↑↓ switch candidate  Esc back'], width);
     case 'frequency':
       return FREQUENCY_HINT;
     case 'tweak':
       return '↑↓ choose  ←→ [] nudge  u r undo/redo  T Esc close';
     default:
-      return HINT;
+      return fittingText([HINT, ...HINT_SHORTER], width);
   }
 }
 

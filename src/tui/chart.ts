@@ -232,7 +232,8 @@ function rowsFor(min: number, max: number, h: number): number {
 
 /**
  * The time axis under a chart: start time under the first data column, end time at the right
- * edge, the middle when there is room, and one-character marks at given instants. Exactly
+ * edge, the middle when there is room, and one-character marks at given instants (a label that
+ * would touch a mark is left out). Exactly
  * `width` characters.
  */
 export function timeAxis(
@@ -249,16 +250,20 @@ export function timeAxis(
   const put = (at: number, s: string): void => {
     for (let i = 0; i < s.length && at + i < width; i++) if (at + i >= 0) line[at + i] = s[i];
   };
-  put(gutter, left);
-  const rightAt = gutter + columns - right.length;
-  if (rightAt > gutter + left.length + 1) put(rightAt, right);
-  const mid = `${axisLabel((t0 + t1) / 2)} s`;
-  const midAt = gutter + Math.round(columns / 2 - mid.length / 2);
-  if (midAt > gutter + left.length + 2 && midAt + mid.length + 2 < rightAt) put(midAt, mid);
-  // Instants worth pointing at (the rehearsal's switch) go over the labels.
+  // Instants worth pointing at (the rehearsal's switch) come first; a label that would touch one
+  // is left out rather than drawn through ('180▲ s').
+  const marked: { x: number; ch: string }[] = [];
   for (const m of marks) {
     if (!(t1 > t0) || m.at < t0 || m.at > t1) continue;
-    put(gutter + Math.min(columns - 1, Math.round(((m.at - t0) / (t1 - t0)) * columns)), m.ch);
+    marked.push({ x: gutter + Math.min(columns - 1, Math.round(((m.at - t0) / (t1 - t0)) * columns)), ch: m.ch });
   }
+  const clear = (at: number, s: string): boolean => marked.every(({ x }) => x < at - 1 || x > at + s.length);
+  if (clear(gutter, left)) put(gutter, left);
+  const rightAt = gutter + columns - right.length;
+  if (rightAt > gutter + left.length + 1 && clear(rightAt, right)) put(rightAt, right);
+  const mid = `${axisLabel((t0 + t1) / 2)} s`;
+  const midAt = gutter + Math.round(columns / 2 - mid.length / 2);
+  if (midAt > gutter + left.length + 2 && midAt + mid.length + 2 < rightAt && clear(midAt, mid)) put(midAt, mid);
+  for (const m of marked) put(m.x, m.ch);
   return line.join('');
 }

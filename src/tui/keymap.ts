@@ -69,16 +69,16 @@ export const KEYMAP: readonly KeyBinding[] = [
   { keys: ['left', '-', '_'], command: 'nudge_down_fine', group: 'edit', help: `selected value −${NUDGE.fine * 100} %` },
   { keys: [']', 'pgup'], command: 'nudge_up_coarse', group: 'edit', help: `selected value +${NUDGE.coarse * 100} %` },
   { keys: ['[', 'pgdn'], command: 'nudge_down_coarse', group: 'edit', help: `selected value −${NUDGE.coarse * 100} %` },
-  { keys: ['enter', 'e'], command: 'type_value', group: 'edit', help: 'type a value (90 s, 1.5 min)' },
+  { keys: ['enter', 'e'], command: 'type_value', group: 'edit', help: 'type a value: 90 s, 1.5 min' },
   { keys: ['u'], command: 'undo', group: 'edit', help: 'undo' },
   { keys: ['r'], command: 'redo', group: 'edit', help: 'redo' },
   { keys: ['f'], command: 'next_form', group: 'edit', help: 'form: ideal/parallel/series' },
-  { keys: ['a'], command: 'next_anti_windup', group: 'edit', help: 'anti-windup: none/clamp/back' },
+  { keys: ['a'], command: 'next_anti_windup', group: 'edit', help: 'anti-windup none/clamp/back' },
   { keys: ['b'], command: 'keep_baseline', group: 'compare', help: 'pin this set as in service' },
   { keys: ['o'], command: 'baseline_from_file', group: 'compare', help: "in service = file's gains" },
   { keys: ['x'], command: 'clear_baseline', group: 'compare', help: 'forget the set in service' },
   { keys: ['g'], command: 'toggle_rehearse', group: 'compare', help: 'rehearse: in service → new' },
-  { keys: ['t'], command: 'set_switch_time', group: 'compare', help: 'time of the rehearsal switch' },
+  { keys: ['t'], command: 'set_switch_time', group: 'compare', help: 'time of the switch (g)' },
   { keys: ['l'], command: 'toggle_run_mode', group: 'run', help: 'instant trial / live run' },
   { keys: ['space'], command: 'pause_resume', group: 'run', help: 'live: pause / resume' },
   { keys: ['>', '.'], command: 'speed_up', group: 'run', help: 'live: faster' },
@@ -102,7 +102,7 @@ export const KEYMAP: readonly KeyBinding[] = [
 
 /** Keys answered inside a question or the text field; shown in the help overlay too. */
 export const PROMPT_KEYS: readonly { keys: string; help: string }[] = [
-  { keys: 'y n', help: 'answer a question (Esc = no)' },
+  { keys: 'y n', help: 'answer a question, Esc no' },
   { keys: 'Enter Esc', help: 'accept / cancel a value' },
 ];
 
@@ -142,6 +142,14 @@ export function listCommandFor(token: string): ListCommand | null {
 
 /** The always-visible one-line hint (short on purpose: it must fit 80 columns). */
 export const HINT = '↑↓ ←→ edit  u undo  p rules  O optimise  v envelope  c compare  ? keys  q quit';
+
+/** Shorter hints for narrower terminals, longest first (each a prefix of the keys that matter most). */
+export const HINT_SHORTER: readonly string[] = ['↑↓ ←→ edit  u undo  p rules  c compare  ? keys  q quit', '←→ edit  ? keys  q quit'];
+
+/** The first of `options` that fits `width` columns (the last one when none does). */
+export function fittingText(options: readonly string[], width: number): string {
+  return options.find((o) => o.length <= width) ?? options[options.length - 1];
+}
 
 /** The hint line while a list or view is open. */
 export const LIST_HINT = '↑↓ choose  Enter apply  Esc close';

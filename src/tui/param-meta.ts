@@ -35,7 +35,7 @@ export function paramInfo(id: ParamId, form: PidForm): ParamInfo {
     case 'td':
       return { symbol: `Td${prime}`, label: 'derivative time', unit: 's' };
     case 'kp':
-      return { symbol: 'Kp', label: 'proportional gain', unit: '' };
+      return { symbol: 'Kp', label: 'proportional', unit: '' };
     case 'ki':
       return { symbol: 'Ki', label: 'integral gain', unit: '1/s' };
     case 'kd':

@@ -1,11 +1,10 @@
 /**
  * The safety caution shown before anything else: every word of it on screen, none cut at the
- * edge, at 80x24 and wider; on a terminal too small for all of it, the interlock and manual
- * fallback advice comes before the rest.
+ * edge, at 80x24 and wider; on a terminal too small for all of it, a short caution, in order.
  */
 import { describe, expect, it, afterEach } from 'vitest';
 import { render, cleanup } from 'ink-testing-library';
-import { CAUTION_TEXT, CautionOverlay } from '../../src/tui/panels/CautionOverlay.js';
+import { CAUTION_SHORT, CAUTION_TEXT, CautionOverlay } from '../../src/tui/panels/CautionOverlay.js';
 import { makeTheme } from '../../src/tui/theme.js';
 
 afterEach(() => cleanup());
@@ -30,11 +29,17 @@ describe('CautionOverlay', () => {
     });
   }
 
-  it('on a small terminal the interlock advice and the prompt come before the rest', () => {
-    const f = frame(40, 12);
-    expect(f.split('\n').length).toBe(12);
+  it('40x12 (9 body lines): the short caution, whole and in order, interlock advice and prompt included', () => {
+    const f = frame(40, 9);
+    expect(f.split('\n').length).toBe(9);
+    for (const line of f.split('\n')) expect(line.length).toBeLessThanOrEqual(40);
+    expect(words(f)).toEqual([...CAUTION_SHORT.flatMap(words), 'press', 'any', 'key', 'to', 'continue']);
+  });
+
+  it('smaller still: what fits, in order, and a line saying the terminal is too small', () => {
+    const f = frame(30, 6);
     const text = words(f).join(' ');
-    expect(text).toContain(words(CAUTION_TEXT[2]).join(' '));
-    expect(text).toContain('press any key to continue');
+    expect(text.startsWith(words(CAUTION_SHORT[0]).join(' '))).toBe(true);
+    expect(f).toContain('terminal too small');
   });
 });

@@ -6,6 +6,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { render } from 'ink-testing-library';
 import { loadPlant } from '../../src/model/index.js';
+import type { PlantSpec } from '../../src/model/types.js';
 import { App, type ScreenIo } from '../../src/tui/app.js';
 import { setupLoop } from '../../src/tui/engine.js';
 import { NO_DIAGNOSIS, type NoticeSource } from '../../src/tui/notices.js';
@@ -44,7 +45,7 @@ export interface Mounted {
 
 export async function mount(
   name: string,
-  opts: { columns?: number; rows?: number; color?: boolean; caution?: boolean; notices?: NoticeSource; dir?: string } = {},
+  opts: { columns?: number; rows?: number; color?: boolean; caution?: boolean; notices?: NoticeSource | ((plant: PlantSpec) => NoticeSource); dir?: string } = {},
 ): Promise<Mounted> {
   const text = readFileSync(join(opts.dir ?? fixtures, name), 'utf8');
   const loaded = loadPlant(text, name);
@@ -74,7 +75,7 @@ export async function mount(
       fileName={name}
       text={text}
       io={io}
-      notices={opts.notices ?? NO_DIAGNOSIS}
+      notices={typeof opts.notices === 'function' ? opts.notices(loaded.plant) : (opts.notices ?? NO_DIAGNOSIS)}
       color={opts.color ?? false}
       caution={opts.caution ?? false}
       size={{ columns: opts.columns ?? 80, rows: opts.rows ?? 24 }}

@@ -13,16 +13,27 @@ export const CAUTION_TEXT: readonly string[] = [
   'Change gains on the real controller in small steps, with the interlocks active, a manual fallback ready and someone watching the process.',
 ];
 
+/** The same caution in few words, for a terminal too small for the whole of it (same order). */
+export const CAUTION_SHORT: readonly string[] = [
+  'Before you use these gains',
+  'They are a starting point: the real plant differs from the file.',
+  'Change the real controller in small steps, interlocks on, manual fallback ready, someone watching.',
+];
+
 export function CautionOverlay(p: { width: number; height: number; theme: Theme }) {
-  const room = Math.max(10, p.width - 4);
-  const title = wrap(CAUTION_TEXT[0], room).map((l): Piece[] => [{ text: '  ' + l, color: p.theme.warn, bold: true }]);
-  const paragraphs = CAUTION_TEXT.slice(1).map((para) => wrap(para, room).map((l): Piece[] => [{ text: '  ' + l }]));
-  const prompt: Piece[] = [{ text: '  press any key to continue', color: p.theme.dim }];
-  // Spaced out when it fits; else without the blank lines; else the last paragraph (interlocks,
-  // manual fallback) is kept before the first: on a small terminal the safety advice comes first.
-  const spaced: Piece[][] = [[], ...title, ...paragraphs.flatMap((lines) => [[], ...lines]), [], prompt];
-  const tight: Piece[][] = [...title, ...paragraphs.flat(), prompt];
-  const rows = spaced.length <= p.height ? spaced : tight.length <= p.height ? tight : [...title, ...paragraphs[paragraphs.length - 1], prompt, ...paragraphs.slice(0, -1).flat()];
+  const layouts = (text: readonly string[], indent: string): { spaced: Piece[][]; tight: Piece[][] } => {
+    const w = Math.max(10, p.width - indent.length * 2);
+    const title = wrap(text[0], w).map((l): Piece[] => [{ text: indent + l, color: p.theme.warn, bold: true }]);
+    const paragraphs = text.slice(1).map((para) => wrap(para, w).map((l): Piece[] => [{ text: indent + l }]));
+    const prompt: Piece[] = [{ text: `${indent}press any key to continue`, color: p.theme.dim }];
+    return { spaced: [[], ...title, ...paragraphs.flatMap((lines) => [[], ...lines]), [], prompt], tight: [...title, ...paragraphs.flat(), prompt] };
+  };
+  // Spaced out when it fits; else without the blank lines; else the short caution; always in
+  // order. Below even that, as much as fits and a line saying the terminal is too small.
+  const full = layouts(CAUTION_TEXT, '  ');
+  const short = layouts(CAUTION_SHORT, p.width >= 40 ? '  ' : '');
+  const cut: Piece[][] = [...short.tight.slice(0, Math.max(0, p.height - 2)), [{ text: 'terminal too small; a key goes on', color: p.theme.warn }]];
+  const rows = [full.spaced, full.tight, short.spaced, short.tight].find((r) => r.length <= p.height) ?? cut;
   while (rows.length < p.height) rows.push([]);
   return (
     <Box flexDirection="column" width={p.width}>

@@ -4,12 +4,12 @@
 import { Box } from 'ink';
 import { timeAxis, type ChartGrid } from '../chart.js';
 import type { Theme } from '../theme.js';
-import { Heading } from './Heading.js';
+import { Heading, type LegendPiece } from './Heading.js';
 import { Line, type Piece } from './line.js';
 
 export interface ChartPanelProps {
   title: string;
-  legend: readonly Piece[];
+  legend: readonly LegendPiece[];
   grid: ChartGrid;
   t0: number;
   t1: number;

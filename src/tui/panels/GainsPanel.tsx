@@ -58,12 +58,10 @@ export function gainsText(e: GainEdit): string {
 export function gainLines(p: GainsProps): Piece[][] {
   const t = p.theme;
   const e = p.edit;
-  const lines: Piece[][] = [
-    [
-      { text: `${namedOf(e).toUpperCase()} ${e.form}`, bold: true },
-      { text: `  anti-windup ${AW_WORDS[e.gains.antiWindup]}`, color: t.dim },
-    ],
-  ];
+  const name = `${namedOf(e).toUpperCase()} ${e.form}`;
+  // The anti-windup in words where they fit, else shorter; never cut mid-word.
+  const aw = [`  anti-windup ${AW_WORDS[e.gains.antiWindup]}`, `  AW ${AW_WORDS[e.gains.antiWindup]}`, ''].find((x) => name.length + x.length <= p.width) ?? '';
+  const lines: Piece[][] = [[{ text: name, bold: true }, { text: aw, color: t.dim }]];
   const notes = frameNotes(e);
   for (const n of notes) lines.push([{ text: `  ${n}`, color: e.frame?.editable === false ? t.warn : t.dim }]);
   const head = lines.length;
@@ -78,8 +76,11 @@ export function gainLines(p: GainsProps): Piece[][] {
     const base = typeof bv === 'number' ? bv : null;
     const text = `${mine ? '>' : ' '} ${fit(info.symbol, 4)}${fit(showValue(value), 9)}${fit(info.unit, 4)}`;
     const pieces: Piece[] = [{ text, inverse: mine && t.color, bold: mine }];
-    if (base !== null) pieces.push({ text: ` in svc ${showValue(base)}`, color: t.baseline });
-    else pieces.push({ text: ` ${info.label}`, color: t.dim });
+    // Beside the value: the set in service's, else the words, each only when it fits whole.
+    const room = p.width - text.length;
+    const beside = base !== null ? [` in svc ${showValue(base)}`, ` ${showValue(base)}`] : [` ${info.label}`];
+    const fits = beside.find((x) => x.length <= room);
+    if (fits !== undefined) pieces.push({ text: fits, color: base !== null ? t.baseline : t.dim });
     lines.push(pieces);
   });
   if (p.baseline !== null && p.baseline.form !== e.form) {

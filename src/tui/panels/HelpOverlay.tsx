@@ -36,7 +36,8 @@ export function HelpOverlay(p: { width: number; height: number; theme: Theme; pa
   const all = helpPieceLines(p.theme);
   const { pages, perColumn: room, twoCols } = helpPages(p.width, p.height, all.length);
   const page = (p.page ?? 0) % pages;
-  const colW = twoCols ? Math.floor((p.width - 1) / 2) : p.width;
+  // Two columns with a rule between them, so that a long left entry never runs into the right one.
+  const colW = twoCols ? Math.floor((p.width - 3) / 2) : p.width;
   const perPage = twoCols ? 2 * room : room;
   const shown = all.slice(page * perPage, (page + 1) * perPage);
   const left = twoCols ? shown.slice(0, room) : shown;
@@ -45,7 +46,7 @@ export function HelpOverlay(p: { width: number; height: number; theme: Theme; pa
   for (let i = 0; i < room; i++) {
     const l = left[i] ?? [];
     const r = right[i] ?? [];
-    rows.push(twoCols ? [...padTo(l, colW), { text: ' ' }, ...r] : l);
+    rows.push(twoCols ? [...padTo(l, colW), { text: ' │ ', color: p.theme.dim }, ...r] : l);
   }
   const footer: Piece[] = [
     { text: pages > 1 ? `page ${page + 1}/${pages}: ↓ ${page + 1 < pages ? 'next page' : 'page 1'}, any other key closes this help` : 'any key closes this help', color: p.theme.dim },

@@ -10,21 +10,37 @@ import { paramInfo } from '../param-meta.js';
 import type { Action, ScreenState } from '../screen-state.js';
 import type { Theme } from '../theme.js';
 import { ellipsizePieces, fit, Line } from './line.js';
-import { noticePieces } from './NoticesPanel.js';
+import { markText } from './NoticesPanel.js';
 import { wrap } from './wrap.js';
 
 /** Most lines a message may take; beyond that its last line ends in '…'. */
 const MESSAGE_MAX_LINES = 4;
 
 /** The message (or question) as word-wrapped lines of `width`; one line when there is none. */
-export function messageLines(state: ScreenState, width: number): string[] {
+/** Most lines the first notice takes on the message line (a line more than the trend can spare would hide it). */
+const NOTICE_MAX_LINES = 2;
+
+/** A notice as one text: its marker, title and words. */
+export function noticeText(n: Notice): string {
+  const mark = markText(n);
+  return n.title === undefined ? `${mark}${n.text}` : `${mark}${n.title}: ${n.text}`;
+}
+
+/**
+ * The message (or question) as word-wrapped lines of `width`; without one, the first notice
+ * (`notice`, when the notices have no column of their own); one empty line when there is neither.
+ */
+export function messageLines(state: ScreenState, width: number, notice: Notice | null = null): string[] {
   const o = state.overlay;
   const text = o.kind === 'confirm' ? `${o.text} (y/n)` : o.kind !== 'input' && state.message !== null ? state.message.text : '';
-  const lines = wrap(text, width);
+  const showNotice = text === '' && o.kind !== 'input' && notice !== null;
+  const lines = wrap(showNotice ? noticeText(notice) : text, width);
+  const most = showNotice ? NOTICE_MAX_LINES : MESSAGE_MAX_LINES;
   if (lines.length === 0) return [''];
-  if (lines.length <= MESSAGE_MAX_LINES) return lines;
-  const kept = lines.slice(0, MESSAGE_MAX_LINES);
-  kept[MESSAGE_MAX_LINES - 1] = `${kept[MESSAGE_MAX_LINES - 1].slice(0, width - 1)}…`;
+  if (lines.length <= most) return lines;
+  const kept = lines.slice(0, most);
+  // The last line kept ends at a word, with '…' saying there is more.
+  kept[most - 1] = ellipsizePieces([{ text: `${kept[most - 1]} ${lines[most]}` }], width)[0].text;
   return kept;
 }
 
@@ -34,7 +50,8 @@ export function MessageLine(p: {
   lines: readonly string[];
   width: number;
   theme: Theme;
-  notices: readonly Notice[];
+  /** The notice on the message line when there is no message (null: none, or they have a column). */
+  notice: Notice | null;
   dispatch: (a: Action) => void;
 }) {
   const { state, theme, width } = p;
@@ -75,7 +92,14 @@ export function MessageLine(p: {
       </Box>
     );
   }
-  const first = p.notices[0];
-  if (first !== undefined) return <Line pieces={ellipsizePieces(noticePieces(first, theme), width)} width={width} color={theme.color} />;
-  return <Line pieces={[]} width={width} color={theme.color} />;
+  const n = p.notice;
+  if (n === null) return <Line pieces={[]} width={width} color={theme.color} />;
+  const color = n.tone === 'bad' ? theme.bad : n.tone === 'warn' ? theme.warn : undefined;
+  return (
+    <Box flexDirection="column" width={width}>
+      {lines.map((text, i) => (
+        <Line key={i} pieces={[{ text, color, bold: i === 0 && n.tone !== 'info' }]} width={width} color={theme.color} />
+      ))}
+    </Box>
+  );
 }

@@ -1,5 +1,5 @@
 /**
- * Trial figures against the file's requirements, for the current gain set and the baseline;
+ * Trial figures against the file's requirements, for the current gain set and the set in service;
  * each limit marked met or not met ([ok] / [NO] without colour), or n/a when the trial cannot
  * show it (a step requirement without a setpoint step).
  */
@@ -19,16 +19,18 @@ export interface MetricsProps {
   note: Piece[] | null;
 }
 
-function mark(c: MetricCell, theme: Theme): Piece {
-  if (c.status === null) return { text: '    ' };
-  if (c.status === 'n/a') return { text: 'n/a ', color: theme.warn };
-  if (theme.color) return c.status === 'ok' ? { text: ' ok ', color: theme.ok } : { text: ' NO ', color: theme.bad, bold: true };
-  return { text: c.status === 'ok' ? '[ok]' : '[NO]' };
+/** The verdict of a cell in `w` columns: 4 ([ok] / [NO] without colour), or 3 when the panel is narrow (' ok' / ' NO'). */
+function mark(c: MetricCell, theme: Theme, w: 3 | 4): Piece {
+  if (c.status === null) return { text: ' '.repeat(w) };
+  if (c.status === 'n/a') return { text: fit('n/a', w), color: theme.warn };
+  const word = c.status === 'ok' ? 'ok' : 'NO';
+  const text = w === 3 ? ` ${word}` : theme.color ? ` ${word} ` : `[${word}]`;
+  return c.status === 'ok' ? { text, color: theme.ok } : { text, color: theme.bad, bold: true };
 }
 
 export function metricLines(p: MetricsProps): Piece[][] {
   const t = p.theme;
-  const hasBase = p.rows.some((r) => r.base !== null);
+  const anyBase = p.rows.some((r) => r.base !== null);
   // The limit column as wide as its longest text: a limit with the file's unit ('≤ 150 N m').
   const limitW = Math.max(9, ...p.rows.map((r) => r.limit.length + 1));
   // Value columns as wide as their longest text ('not settled'), at least 8 and 7. When the values
@@ -39,12 +41,18 @@ export function metricLines(p: MetricsProps): Piece[][] {
   const shown = (c: MetricCell): string => (bare ? (c.short ?? c.text) : c.text);
   const nowW = widest(shown);
   const baseW = Math.max(7, ...p.rows.map((r) => (r.base === null ? 0 : shown(r.base).length) + 1));
+  // Narrow (80 columns with the set in service beside): shorter labels and verdicts, nothing cut.
+  const full = 12 + limitW + nowW + 4 + (anyBase ? 1 + baseW + 4 : 0);
+  const labelW = full <= p.width ? 12 : 10;
+  const markW: 3 | 4 = full <= p.width ? 4 : 3;
+  // Narrower still: the set in service's column goes (its values stay in the gain panel, its line on the trend).
+  const hasBase = anyBase && labelW + limitW + nowW + markW + 1 + baseW + markW <= p.width;
   const lines: Piece[][] = [
-    [{ text: `${fit('', 12)}${fit('limit', limitW)}${fit(p.nowLabel, nowW + 4)}${hasBase ? 'in svc' : ''}`, color: t.dim }],
+    [{ text: `${fit('', labelW)}${fit('limit', limitW)}${fit(p.nowLabel, nowW + markW)}${hasBase ? ' in svc' : ''}`, color: t.dim }],
   ];
   for (const r of p.rows) {
-    const pieces: Piece[] = [{ text: fit(r.label, 12) }, { text: fit(r.limit, limitW), color: t.dim }, { text: fit(shown(r.now), nowW) }, mark(r.now, t)];
-    if (r.base !== null) pieces.push({ text: ' ' + fit(shown(r.base), baseW), color: t.baseline }, mark(r.base, t));
+    const pieces: Piece[] = [{ text: fit(r.label, labelW) }, { text: fit(r.limit, limitW), color: t.dim }, { text: fit(shown(r.now), nowW) }, mark(r.now, t, markW)];
+    if (hasBase && r.base !== null) pieces.push({ text: ' ' + fit(shown(r.base), baseW), color: t.baseline }, mark(r.base, t, markW));
     lines.push(pieces);
   }
   if (p.note !== null) lines.push(p.note);

@@ -7,8 +7,13 @@ import type { Theme } from '../theme.js';
 import { Line, type Piece } from './line.js';
 import { wrap } from './wrap.js';
 
+/** The marker before a notice: '!! ' bad, '!  ' warning, '·  ' information. */
+export function markText(n: Notice): string {
+  return n.tone === 'bad' ? '!! ' : n.tone === 'warn' ? '!  ' : '·  ';
+}
+
 function mark(n: Notice, theme: Theme): Piece {
-  const text = n.tone === 'bad' ? '!! ' : n.tone === 'warn' ? '!  ' : '·  ';
+  const text = markText(n);
   const color = n.tone === 'bad' ? theme.bad : n.tone === 'warn' ? theme.warn : theme.dim;
   return { text, color, bold: n.tone !== 'info' };
 }

@@ -8,7 +8,7 @@ import type { Requirements } from '../../model/types.js';
 import { LABEL_WIDTH, pointsForWidth, renderChart } from '../chart.js';
 import type { Evaluation } from '../engine.js';
 import type { EnvelopeState } from '../hooks/use-envelope.js';
-import type { Layout } from '../layout.js';
+import { MIN_TREND, type Layout } from '../layout.js';
 import type { LiveRun } from '../live-run.js';
 import type { MetricRow } from '../metric-rows.js';
 import type { MarginsView, Notice } from '../notices.js';
@@ -18,9 +18,11 @@ import { outputSeries, SPREAD_GLYPH, trendSeries } from '../trend-series.js';
 import { hasStripRequirements, stripSteps, VERDICT_MARKS, verdictStrip, type Strip, type StripStep } from '../verdict-strip.js';
 import { ChartPanel } from './ChartPanel.js';
 import { GainsPanel } from './GainsPanel.js';
+import type { LegendPiece } from './Heading.js';
 import { Line, type Piece } from './line.js';
 import { MetricsPanel } from './MetricsPanel.js';
 import { NoticesPanel } from './NoticesPanel.js';
+import { wrap } from './wrap.js';
 
 export interface PanelsProps {
   layout: Layout;
@@ -69,21 +71,22 @@ export function Panels(p: PanelsProps) {
     steps = p.run.stripSteps();
     baselineTrace = null;
   }
-  const legend: Piece[] = [
-    { text: '╌ SP ', color: theme.sp },
-    { text: '─ PV ', color: theme.pv },
+  // Legend entries in the order shown; on a narrow heading the highest `drop` goes first.
+  const legend: LegendPiece[] = [
+    { text: '╌ SP ', color: theme.sp, drop: 3 },
+    { text: '─ PV ', color: theme.pv, drop: 4 },
   ];
-  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· in service only ' : '· in service ', color: theme.baseline });
+  if (baselineTrace !== null) legend.push({ text: p.state.rehearse ? '· in service only ' : '· in service ', short: '· in svc ', color: theme.baseline, drop: 2 });
   const env = p.run === null ? p.envelope : null;
-  if (env !== null) legend.push({ text: envelopeLegend(env, p.units.output), color: theme.envelope });
-  else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, color: theme.dim });
+  if (env !== null) legend.push({ text: envelopeLegend(env, p.units.output), color: theme.envelope, drop: 1 });
+  else if (p.envelopeNote !== null) legend.push({ text: `░ envelope: ${p.envelopeNote} `, short: '░ no envelope ', color: theme.dim, drop: 1 });
   const title = quantityLabel(p.run !== null ? 'Live trend' : p.state.rehearse ? 'Rehearsal trend' : 'Trial trend', p.units.output);
   const marks = p.run === null && p.state.rehearse ? [{ at: p.state.switchAt, ch: '▲' }] : [];
-  if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline });
+  if (marks.length > 0) legend.push({ text: '▲ switch ', color: theme.baseline, drop: 6 });
 
   const showTrend = layout.trendRows > 0;
   // One trend row becomes the verdict strip when the file sets a requirement it can mark.
-  const withStrip = showTrend && layout.trendRows >= 3 && hasStripRequirements(p.req);
+  const withStrip = showTrend && layout.trendRows >= 4 && hasStripRequirements(p.req);
   const trendGrid = showTrend
     ? renderChart(
         trendSeries({
@@ -98,7 +101,7 @@ export function Panels(p: PanelsProps) {
       )
     : null;
   // PV is one line (each column's middle); where its samples spread over more than a row, the legend says what fills the column.
-  if (trendGrid?.spread.has('pv') === true) legend.splice(2, 0, { text: `${SPREAD_GLYPH} PV range `, color: theme.pv });
+  if (trendGrid?.spread.has('pv') === true) legend.splice(2, 0, { text: `${SPREAD_GLYPH} PV range `, short: `${SPREAD_GLYPH} range `, color: theme.pv, drop: 5 });
   let strip: Piece[] | undefined;
   if (withStrip && trendGrid !== null) {
     const run = p.run;
@@ -142,22 +145,26 @@ export function Panels(p: PanelsProps) {
             width={layout.metricsWidth}
             height={layout.bottomRows}
             theme={theme}
-            note={layout.marginsInMetrics ? marginsLine(p.margins, theme) : null}
+            note={layout.marginsInMetrics ? marginsLine(p.margins, theme, layout.metricsWidth) : null}
           />
         )}
         {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
         {layout.noticesWidth > 0 && (
-          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
+          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme, layout.noticesWidth)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
         )}
       </Box>
     </Box>
   );
 
   if (layout.tier === 'tiny') {
+    // Said in full (wrapped), with the size it has and the size the charts need.
+    const warn = wrap(`Terminal too small (${w}x${layout.lines + 1}): the charts need ${MIN_TREND.columns}x${MIN_TREND.rows}. Gain set:`, w);
     return (
       <Box flexDirection="column" width={w}>
-        <Line pieces={[{ text: `terminal too small for the trend (needs 60x16)`, color: theme.warn }]} width={w} color={theme.color} />
-        {gains(w)}
+        {warn.map((text, i) => (
+          <Line key={i} pieces={[{ text, color: theme.warn, bold: true }]} width={w} color={theme.color} />
+        ))}
+        <GainsPanel edit={state.current} baseline={state.baseline?.edit ?? null} selected={state.selected} width={w} rows={Math.max(1, layout.bottomRows - warn.length + 1)} theme={theme} />
       </Box>
     );
   }
@@ -205,9 +212,15 @@ function stripPieces(strip: Strip, gutter: number, theme: Theme): Piece[] {
 }
 
 /** The strip's legend: the letters it shows with their words, or that every limit holds. */
-function stripLegend(strip: Strip, theme: Theme): Piece[] {
-  if (strip.broken.length === 0) return [{ text: '· requirements met ', color: theme.ok }];
-  return [{ text: `broken: ${strip.broken.map((k) => `${VERDICT_MARKS[k].letter} ${VERDICT_MARKS[k].word}`).join(' ')} `, color: theme.bad }];
+function stripLegend(strip: Strip, theme: Theme): LegendPiece[] {
+  if (strip.broken.length === 0) return [{ text: '· requirements met ', short: '· met ', color: theme.ok }];
+  return [
+    {
+      text: `broken: ${strip.broken.map((k) => `${VERDICT_MARKS[k].letter} ${VERDICT_MARKS[k].word}`).join(' ')} `,
+      short: `✗ ${strip.broken.map((k) => VERDICT_MARKS[k].letter).join(' ')} `,
+      color: theme.bad,
+    },
+  ];
 }
 
 /** The envelope's legend entry: its cases, or how far its sweep has come. */
@@ -223,12 +236,15 @@ function envelopeLegend(e: EnvelopeState, unit: string | null): string {
 }
 
 /** The margins of the edited gains as one notices line, or null without a diagnosis. */
-function marginsLine(m: MarginsView | null | 'pending', theme: Theme): Piece[] | null {
+function marginsLine(m: MarginsView | null | 'pending', theme: Theme, width: number): Piece[] | null {
   if (m === null) return null;
   if (m === 'pending') return [{ text: 'margins …', color: theme.dim }];
   if (m.closedLoopStable === false) return [{ text: 'closed loop UNSTABLE', color: theme.bad, bold: true }];
   const f = (v: number, unit = ''): string => (Number.isFinite(v) ? `${Number(v.toPrecision(3))}${unit}` : v > 0 ? '∞' : '—');
-  return [{ text: `GM ${f(m.gainMargin)}  PM ${f(m.phaseMarginDeg, '°')}  Ms ${f(m.maxSensitivity)}`, bold: true }];
+  const parts = [`GM ${f(m.gainMargin)}`, `PM ${f(m.phaseMarginDeg, '°')}`, `Ms ${f(m.maxSensitivity)}`];
+  // Two spaces between the figures where they fit, one where not: never a cut figure.
+  const text = parts.join('  ').length <= width ? parts.join('  ') : parts.join(' ');
+  return [{ text, bold: true }];
 }
 
 /** One rule over the gain, metrics and notices columns, with a title over each. */
