@@ -222,10 +222,10 @@ export function App(props: AppProps) {
   latestOverlay.current = state.overlay;
   useInput((input, key) => {
     // While a value is typed the text field takes the keys (a read that carries Enter submits
-    // there); only Esc is ours. Judged on the state the read met: the field may have closed the
+    // there); only Esc and Ctrl-C (quit, asking first with unsaved changes) are ours. Judged on the state the read met: the field may have closed the
     // prompt before these tokens are reduced, and '200 s' must not then step the setpoint.
     const typing = latestOverlay.current.kind === 'input';
-    for (const token of keyTokens(input, key)) if (!typing || token === 'esc') dispatch({ type: 'press', token });
+    for (const token of keyTokens(input, key)) if (!typing || token === 'esc' || token === 'ctrl-c') dispatch({ type: 'press', token });
   });
 
   useEffect(() => {

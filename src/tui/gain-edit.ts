@@ -9,6 +9,7 @@
  * the two can never disagree. Deriving the other way would not do: a series set has two writings
  * of the same controller (Ti' and Td' swapped, another Kc'), and the user's own must stay on screen.
  */
+import { defaultTrackingTime } from '../control/index.js';
 import { fromIdeal, toIdeal } from '../model/index.js';
 import type { ControllerSpec, ControllerStructure, GainSet, PidForm, StructureName } from '../model/types.js';
 import { formParams, type ParamId } from './param-meta.js';
@@ -91,21 +92,32 @@ export function namedOf(e: GainEdit): StructureName {
   return e.frame?.named ?? e.structure;
 }
 
-/** Every editable parameter of a gain set, in display order (b and c only where the structure leaves them free). */
+/**
+ * Every editable parameter of a gain set, in display order: b and c only where the structure
+ * leaves them free, the tracking time only with back-calculation on an integral term.
+ */
 export function paramList(e: GainEdit): ParamId[] {
   const hasD = e.structure === 'pd' || e.structure === 'pid';
+  const hasI = e.structure === 'pi' || e.structure === 'pid';
   const list = formParams(e.structure, e.form);
   if (hasD) list.push('n');
+  if (hasI && e.gains.antiWindup === 'back_calculation') list.push('tt');
   if (e.frame?.fixedWeights === true) return list;
   list.push('b');
   if (hasD) list.push('c');
   return list;
 }
 
-/** The value of a parameter in a gain set. */
+/** The value of a parameter in a gain set (the tracking time: NaN when left to its default). */
 export function paramValue(e: GainEdit, id: ParamId): number {
   if (id === 'n' || id === 'b' || id === 'c') return e.gains[id];
+  if (id === 'tt') return e.gains.trackingTime;
   return e.values[id];
+}
+
+/** The value a parameter acts with: the tracking time left to its default is control's default (√(Ti Td), or Ti/2). */
+export function effectiveValue(e: GainEdit, id: ParamId): number {
+  return id === 'tt' ? defaultTrackingTime(e.gains) : paramValue(e, id);
 }
 
 /**
@@ -114,6 +126,7 @@ export function paramValue(e: GainEdit, id: ParamId): number {
  */
 export function withParam(e: GainEdit, id: ParamId, v: number): GainEdit | { error: string } {
   if (id === 'n' || id === 'b' || id === 'c') return { ...e, gains: { ...e.gains, [id]: v } };
+  if (id === 'tt') return { ...e, gains: { ...e.gains, trackingTime: v } };
   try {
     return makeEdit(e.structure, e.form, { ...e.values, [id]: v }, e.gains, e.frame);
   } catch (err) {
@@ -137,7 +150,16 @@ export function sameEdit(a: GainEdit, b: GainEdit): boolean {
   if (a.structure !== b.structure || frameId(a) !== frameId(b)) return false;
   const g = a.gains;
   const h = b.gains;
-  return close(g.kc, h.kc) && close(g.ti, h.ti) && close(g.td, h.td) && g.n === h.n && g.b === h.b && g.c === h.c && g.antiWindup === h.antiWindup;
+  return (
+    close(g.kc, h.kc) &&
+    close(g.ti, h.ti) &&
+    close(g.td, h.td) &&
+    g.n === h.n &&
+    g.b === h.b &&
+    g.c === h.c &&
+    g.antiWindup === h.antiWindup &&
+    Object.is(g.trackingTime, h.trackingTime)
+  );
 }
 
 function close(x: number, y: number): boolean {

@@ -5,7 +5,8 @@
 import type { ControllerStructure, PidForm } from '../model/types.js';
 import type { EditMath } from './edit-math.js';
 
-export type ParamId = 'kc' | 'ti' | 'td' | 'kp' | 'ki' | 'kd' | 'n' | 'b' | 'c';
+/** Form parameters, the derivative filter N, the setpoint weights b and c, and the back-calculation tracking time Tt. */
+export type ParamId = 'kc' | 'ti' | 'td' | 'kp' | 'ki' | 'kd' | 'n' | 'b' | 'c' | 'tt';
 
 /** Form parameter names of a structure in a form, in display order. */
 export function formParams(structure: ControllerStructure, form: PidForm): ParamId[] {
@@ -46,6 +47,8 @@ export function paramInfo(id: ParamId, form: PidForm): ParamInfo {
       return { symbol: 'b', label: 'SP weight on P', unit: '' };
     case 'c':
       return { symbol: 'c', label: 'SP weight on D', unit: '' };
+    case 'tt':
+      return { symbol: 'Tt', label: 'tracking time', unit: 's' };
   }
 }
 
@@ -68,6 +71,8 @@ export function checkValue(id: ParamId, v: number): string | null {
     case 'b':
     case 'c':
       return v >= 0 && v <= 1 ? null : 'a setpoint weight lies in [0, 1]';
+    case 'tt':
+      return v > 0 ? null : 'the tracking time must be > 0';
   }
 }
 

@@ -51,6 +51,11 @@ export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm:
     values.derivative_filter = edit.gains.n;
     changed.push('derivative_filter');
   }
+  // A tracking time set on the screen is written; one left to its default (NaN) writes nothing.
+  if (!Object.is(edit.gains.trackingTime, file.gains.trackingTime) && !Number.isNaN(edit.gains.trackingTime)) {
+    values.tracking_time = edit.gains.trackingTime;
+    changed.push('tracking_time');
+  }
   let edits: ValueEdit[];
   try {
     edits = controllerEdits(text, values, { digits: SAVE_DIGITS, note });

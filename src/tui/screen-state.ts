@@ -190,9 +190,14 @@ export function info(s: ScreenState, text: string, tone: Message['tone'] = 'info
   return { ...s, message: { text, tone } };
 }
 
-/** Quit, or (with unsaved changes) ask first. Every overlay's Ctrl-C comes here. */
+/**
+ * Quit, or (with unsaved changes) ask first. Every overlay's Ctrl-C comes here; a rule list or an
+ * optimiser still running is stopped, as closing it would.
+ */
 export function askQuit(s: ScreenState): ScreenState {
-  const closed: ScreenState = { ...s, overlay: { kind: 'none' }, message: null };
+  let closed: ScreenState = { ...s, overlay: { kind: 'none' }, message: null };
+  if (s.overlay.kind === 'suggest') closed = effect(closed, { kind: 'suggest_stop' });
+  if (s.overlay.kind === 'optimize' && s.overlay.outcome === null) closed = effect(closed, { kind: 'optimize_cancel' });
   if (!isDirty(s)) return effect(closed, { kind: 'quit' });
   return { ...closed, overlay: { kind: 'confirm', question: 'quit', text: 'There are unsaved changes. Quit without saving?' } };
 }

@@ -20,7 +20,7 @@ import { optimizeDone, optimizeKey, optimizeProgress } from './reducers/optimize
 import { promptChange, promptKey, promptSubmit } from './reducers/prompt.js';
 import { suggestKey, suggestProgress } from './reducers/suggest.js';
 import { tweakKey } from './reducers/tweak.js';
-import type { Action, ScreenState } from './screen-state.js';
+import { askQuit, type Action, type ScreenState } from './screen-state.js';
 
 export type { EditMath, FormTriple } from './edit-math.js';
 export { frameId, namedOf, paramList, paramValue, sameEdit, withForm, withParam, type ControllerFrame, type GainEdit } from './gain-edit.js';
@@ -94,6 +94,9 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
  * previous key left (a handler closed over an older render could act on a closed overlay).
  */
 function press(s: ScreenState, token: string, math: EditMath): ScreenState {
+  // Ctrl-C quits from anywhere, asking first when there are unsaved changes (the quit question
+  // itself takes it as yes).
+  if (token === 'ctrl-c' && !(s.overlay.kind === 'confirm' && s.overlay.question === 'quit')) return askQuit(s);
   switch (s.overlay.kind) {
     case 'help':
       return helpKey(s, token);

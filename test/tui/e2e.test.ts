@@ -191,7 +191,7 @@ describe.skipIf(!hasTmux)('tui end to end in tmux', () => {
     start('term', 'plants/surge-tank.yaml', term);
     await waitFor((t) => t.includes('press any key to continue'), 'the caution (ctrlc)', 30000, 'ctrlc');
     await waitFor((t) => t.includes('press any key to continue'), 'the caution (term)', 30000, 'term');
-    tmux('send-keys', '-t', 'ctrlc', 'C-c');
+    tmux('send-keys', '-t', 'ctrlc', 'x');
     await waitFor((t) => t.includes('Trial trend'), 'the screen after the caution', 20000, 'ctrlc');
     tmux('send-keys', '-t', 'ctrlc', 'C-c');
     expect(await exitStatus(ctrlc)).toBe('EXIT=0');

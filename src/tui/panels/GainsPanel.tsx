@@ -3,7 +3,7 @@
  * one marked ('>' always, highlighted too when colour is on), beside the value of the set in service.
  */
 import { Box } from 'ink';
-import { namedOf, paramList, paramValue, type GainEdit } from '../gain-edit.js';
+import { effectiveValue, namedOf, paramList, paramValue, type GainEdit } from '../gain-edit.js';
 import { paramInfo } from '../param-meta.js';
 import type { Theme } from '../theme.js';
 import { Line, fit, type Piece } from './line.js';
@@ -69,16 +69,18 @@ export function gainLines(p: GainsProps): Piece[][] {
   const sel = Math.min(p.selected, list.length - 1);
   list.forEach((id, i) => {
     const info = paramInfo(id, e.form);
-    const value = paramValue(e, id);
+    // A tracking time left to its default shows the default it acts with, and says so.
+    const auto = Number.isNaN(paramValue(e, id));
+    const value = effectiveValue(e, id);
     const mine = i === sel;
     // The baseline may run another structure (a rule's PID over a PI): it has no value for every term.
-    const bv = p.baseline !== null && p.baseline.form === e.form ? paramValue(p.baseline, id) : undefined;
+    const bv = p.baseline !== null && p.baseline.form === e.form ? effectiveValue(p.baseline, id) : undefined;
     const base = typeof bv === 'number' ? bv : null;
     const text = `${mine ? '>' : ' '} ${fit(info.symbol, 4)}${fit(showValue(value), 9)}${fit(info.unit, 4)}`;
     const pieces: Piece[] = [{ text, inverse: mine && t.color, bold: mine }];
     // Beside the value: the set in service's, else the words, each only when it fits whole.
     const room = p.width - text.length;
-    const beside = base !== null ? [` in svc ${showValue(base)}`, ` ${showValue(base)}`] : [` ${info.label}`];
+    const beside = base !== null ? [` in svc ${showValue(base)}`, ` ${showValue(base)}`] : auto ? [` ${info.label} (default)`, ' (default)'] : [` ${info.label}`];
     const fits = beside.find((x) => x.length <= room);
     if (fits !== undefined) pieces.push({ text: fits, color: base !== null ? t.baseline : t.dim });
     lines.push(pieces);

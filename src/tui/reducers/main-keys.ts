@@ -1,7 +1,7 @@
 /** The main screen's commands (keymap.ts KEYMAP), when no overlay is open. */
 import type { AntiWindup, PidForm } from '../../model/types.js';
 import { NUDGE, SPEEDS, type KeyCommand } from '../keymap.js';
-import { frameId, paramList, paramValue, withForm, withParam, type GainEdit } from '../gain-edit.js';
+import { effectiveValue, frameId, paramList, withForm, withParam, type GainEdit } from '../gain-edit.js';
 import { checkValue, formatPlain, paramInfo } from '../param-meta.js';
 import { askQuit, effect, info, isDirty, push, selectedParam, type ScreenState } from '../screen-state.js';
 
@@ -46,7 +46,8 @@ export function saveRefusal(s: ScreenState): string | null {
 
 function nudge(s: ScreenState, sign: 1 | -1, size: number): ScreenState {
   const id = selectedParam(s);
-  const v = paramValue(s.current, id);
+  // The tracking time left to its default is nudged from the default it acts with.
+  const v = effectiveValue(s.current, id);
   const symbol = paramInfo(id, s.current.form).symbol;
   let next: number;
   if (id === 'b' || id === 'c') next = Math.min(1, Math.max(0, Math.round((v + sign * size) * 1e6) / 1e6));
@@ -84,7 +85,7 @@ export function mainCommand(s: ScreenState, c: KeyCommand): ScreenState {
       return nudge(s, -1, NUDGE.coarse);
     case 'type_value': {
       const id = selectedParam(s);
-      return { ...s, overlay: { kind: 'input', target: 'param', text: '', placeholder: formatPlain(paramValue(s.current, id)), error: null } };
+      return { ...s, overlay: { kind: 'input', target: 'param', text: '', placeholder: formatPlain(effectiveValue(s.current, id)), error: null } };
     }
     case 'undo': {
       if (s.past.length === 0) return info(s, 'nothing to undo');

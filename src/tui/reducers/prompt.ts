@@ -1,6 +1,6 @@
 /** The value prompt: a parameter's value or the rehearsal's switch time, typed with units. */
 import type { EditMath } from '../edit-math.js';
-import { paramValue, withParam } from '../gain-edit.js';
+import { effectiveValue, withParam } from '../gain-edit.js';
 import { formatPlain, parseParamText } from '../param-meta.js';
 import { info, push, selectedParam, type ScreenState } from '../screen-state.js';
 import { typedText } from '../typed-text.js';
@@ -35,7 +35,7 @@ export function promptSubmit(s: ScreenState, math: EditMath): ScreenState {
   const r = parseParamText(id, o.text, math);
   if ('error' in r) return { ...s, overlay: { ...o, error: r.error } };
   const closed: ScreenState = { ...s, overlay: { kind: 'none' } };
-  if (r.value === paramValue(s.current, id)) return closed;
+  if (r.value === effectiveValue(s.current, id)) return closed;
   const edited = withParam(s.current, id, r.value);
   if ('error' in edited) return { ...s, overlay: { ...o, error: edited.error } };
   return push(closed, edited);
