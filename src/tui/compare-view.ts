@@ -92,10 +92,15 @@ function f(x: number, digits = 3): string {
  */
 const DROP_ORDER: readonly string[] = ['peak u', 'td', 'IAE dist', 'worst Ms', 'binds', 'ti', 'settling', 'structure'];
 
+/** Columns holding figures (not names): the ones that tell candidates apart. */
+const FIGURE_FROM = 2;
+
 /**
  * The table as fixed-width text lines: a header, then one line per candidate (all of them).
- * With `width`, columns are left out (DROP_ORDER) until each line fits, the first marker column
- * (2 characters, see ComparePanel) included.
+ * With `width`, columns are left out until each line fits, the first marker column (2
+ * characters, see ComparePanel) included: first those that are the same for every candidate,
+ * then in DROP_ORDER, but never a column whose figures alone tell two candidates apart (the
+ * feedforward candidate differs from the plain loop only in IAE dist).
  */
 export function compareTable(result: CompareResult, width = Infinity): string[] {
   const rows = tableCells(result);
@@ -107,9 +112,15 @@ export function compareTable(result: CompareResult, width = Infinity): string[] 
     });
     return w + 2;
   };
-  for (const name of DROP_ORDER) {
+  const data = rows.slice(1);
+  const distinct = (): number => new Set(data.map((r) => r.filter((_, i) => i >= FIGURE_FROM && keep[i]).join('\u0000'))).size;
+  const apart = distinct();
+  const uniform = DROP_ORDER.filter((name) => new Set(data.map((r) => r[rows[0].indexOf(name)])).size <= 1);
+  for (const name of [...uniform, ...DROP_ORDER.filter((n) => !uniform.includes(n))]) {
     if (lineWidth() <= width) break;
-    keep[rows[0].indexOf(name)] = false;
+    const i = rows[0].indexOf(name);
+    keep[i] = false;
+    if (i >= FIGURE_FROM && distinct() < apart) keep[i] = true;
   }
   const kept = rows.map((r) => r.filter((_, i) => keep[i]));
   const widths: number[] = [];

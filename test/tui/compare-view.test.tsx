@@ -52,7 +52,7 @@ describe('compare view', () => {
     expect(lines.filter((l) => /^ {2}(single|cascade|feedforward)/.test(l))).toHaveLength(3);
   });
 
-  it('table at a width: columns are left out in a fixed order until it fits; name and step figures stay', () => {
+  it('table at a width: columns are left out until it fits (same-for-all first); name, step figures and the one column telling feedforward apart stay', () => {
     const wide = compareTable(result);
     expect(wide[0].split(/\s{2,}/)).toHaveLength(13);
     expect(wide[0]).toContain('binds');
@@ -61,6 +61,11 @@ describe('compare view', () => {
     const head = narrow[0].split(/\s{2,}/);
     for (const c of ['candidate', 'overshoot', 'IAE sp', 'Ms']) expect(head).toContain(c);
     expect(head).not.toContain('peak u');
+    // The feedforward candidate differs from the file's PI only in IAE dist (80 columns, 78 for the table).
+    expect(head).toContain('IAE dist');
+    const ff = narrow.find((l) => l.startsWith('feedforward'))!;
+    const pi = narrow.find((l) => l.startsWith('single PI'))!;
+    expect(ff.split(/\s{2,}/).slice(2)).not.toEqual(pi.split(/\s{2,}/).slice(2));
   });
 
   it('a legend too long for the heading wraps between entries onto its own lines: no name is cut', () => {
