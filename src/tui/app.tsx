@@ -181,7 +181,7 @@ export function App(props: AppProps) {
         exit();
         return;
       case 'save':
-        save(state, e.onDiskText);
+        save(state, e.onDiskText, e.structure === true);
         return;
       case 'setpoint_step':
         if (run !== null) {
@@ -286,7 +286,7 @@ export function App(props: AppProps) {
     }
     if (o.kind === 'help') return <HelpOverlay width={layout.width} height={bodyLines} theme={theme} page={o.page} />;
     if (o.kind === 'tweak') return <TweakView setup={setup} edit={state.current} selected={state.selected} width={layout.width} height={bodyLines} theme={theme} />;
-    if (o.kind === 'suggest') return <SuggestPanel view={o.view} selected={o.selected} width={layout.width} height={bodyLines} theme={theme} />;
+    if (o.kind === 'suggest') return <SuggestPanel view={o.view} selected={o.selected} fileStructure={state.file.structure} width={layout.width} height={bodyLines} theme={theme} />;
     if (o.kind === 'optimize') {
       return <OptimizePanel view={o.view} outcome={o.outcome} cancelling={o.cancelling} width={layout.width} height={bodyLines} theme={theme} />;
     }

@@ -82,14 +82,28 @@ export function valuesInForm(structure: ControllerStructure, form: PidForm, g: P
   return values;
 }
 
+/** Structures a save may switch the file's controller between (it gains or loses its derivative term). */
+const SWITCHABLE: ReadonlySet<ControllerStructure> = new Set<ControllerStructure>(['pi', 'pid']);
+
+/** True when a file whose controller is `from` can be rewritten as `to` (asked first on the screen). */
+export function structureSwitchable(from: ControllerStructure, to: ControllerStructure): boolean {
+  return SWITCHABLE.has(from) && SWITCHABLE.has(to);
+}
+
 /** The frame id of an edit ('file' when it has none). */
 export function frameId(e: GainEdit): string {
   return e.frame?.id ?? 'file';
 }
 
-/** The structure name an edit runs, for display. */
+/**
+ * The structure name an edit runs, for display: its frame's (i_pd, smith_pi ...), except that a
+ * plain law of another structure in the file's frame (a rule's PID over a PI file) is named as
+ * what it is.
+ */
 export function namedOf(e: GainEdit): StructureName {
-  return e.frame?.named ?? e.structure;
+  const named = e.frame?.named;
+  if (named === undefined || (named === 'p' || named === 'pi' || named === 'pd' || named === 'pid')) return e.structure;
+  return named;
 }
 
 /**

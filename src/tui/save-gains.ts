@@ -28,11 +28,13 @@ const AW_WORDS = { none: 'none', clamp: 'clamp', back_calculation: 'back_calcula
  * @param fileForm the form the file uses
  * @param note record comment written beside each changed value (e.g. from `gainNote`), or none
  */
-export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm: PidForm, note?: string): SavePlan {
-  // Only the file's own controller block is written: a comparison candidate's structure, or
-  // another law (a rule's PID over the file's PI), would need fields the file does not have.
+export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm: PidForm, note?: string, options: { structure?: boolean } = {}): SavePlan {
+  // Only the file's own controller block is written: a comparison candidate's structure needs
+  // fields the file does not have. Another law (a rule's PID over the file's PI) is written only
+  // when asked to change loop.controller.structure too (the screen asks first).
   if (frameId(edit) !== frameId(file)) return { ok: false, error: `'${edit.frame?.candidate ?? edit.frame?.named}' is not the file's controller` };
-  if (edit.structure !== file.structure) return { ok: false, error: `the file's controller is a ${file.structure.toUpperCase()}, not a ${edit.structure.toUpperCase()}` };
+  const restructure = edit.structure !== file.structure;
+  if (restructure && options.structure !== true) return { ok: false, error: `the file's controller is a ${file.structure.toUpperCase()}, not a ${edit.structure.toUpperCase()}` };
   const converted = fromIdeal(fileForm, { kc: edit.gains.kc, ti: edit.gains.ti, td: edit.gains.td });
   if (converted === null) {
     return { ok: false, error: `the file uses the ${fileForm} form, which cannot hold these gains (series needs Ti >= 4 Td)` };
@@ -45,6 +47,13 @@ export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm:
     if (!sameAtDigits(converted[k], fileValue)) {
       values[k] = converted[k];
       changed.push(k);
+    }
+  }
+  // A derivative term the new structure lacks is written as 0 where the file has it (absent stays absent).
+  if (restructure) {
+    for (const k of formParams('pid', fileForm)) {
+      if (k in values || formParams(edit.structure, fileForm).includes(k)) continue;
+      if (k === 'td' || k === 'kd') values[k] = 0;
     }
   }
   if (edit.gains.n !== file.gains.n) {
@@ -70,6 +79,10 @@ export function planSave(text: string, file: GainEdit, edit: GainEdit, fileForm:
       if (edit.gains.b !== file.gains.b) edits.push({ path: ['loop', 'controller', 'setpoint_weight', 'p'], value: edit.gains.b, note });
       if (edit.gains.c !== file.gains.c) edits.push({ path: ['loop', 'controller', 'setpoint_weight', 'd'], value: edit.gains.c, note });
       changed.push('setpoint_weight');
+    }
+    if (restructure) {
+      edits.push({ path: ['loop', 'controller', 'structure'], value: edit.structure, note });
+      changed.push('structure');
     }
     const out = savePlantValues(text, edits);
     const formNote = edit.form !== fileForm ? `written in the file's ${fileForm} form (the screen showed ${edit.form})` : null;

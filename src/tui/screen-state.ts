@@ -28,13 +28,14 @@ export type Overlay =
   | { kind: 'tweak' }
   /** A typed value; `placeholder` shows the present value, an empty entry keeps it. */
   | { kind: 'input'; target: 'param' | 'switch_time'; text: string; placeholder: string; error: string | null }
-  | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string }
+  /** `structure`: the save also changes loop.controller.structure to the edited set's (asked for in `text`). */
+  | { kind: 'confirm'; question: 'save' | 'overwrite' | 'quit'; text: string; structure?: boolean }
   /** The frequency view: `page` counts up with Tab (shown modulo its pages); the last shaping target. */
   | { kind: 'frequency'; page: number; target: ShapeTarget | null };
 
 /** Work the shell must do; the reducer only asks. */
 export type Effect =
-  | { kind: 'save'; onDiskText: boolean }
+  | { kind: 'save'; onDiskText: boolean; structure?: boolean }
   | { kind: 'quit' }
   | { kind: 'setpoint_step'; sign: 1 | -1 }
   | { kind: 'disturbance_step'; sign: 1 | -1 }
@@ -97,8 +98,8 @@ export type Action =
   | { type: 'input_submit' }
   | { type: 'input_cancel' }
   | { type: 'answer'; yes: boolean }
-  /** The shell found the file changed on disk since it was loaded. */
-  | { type: 'save_conflict' }
+  /** The shell found the file changed on disk since it was loaded (`structure`: the save was to change the structure too). */
+  | { type: 'save_conflict'; structure?: boolean }
   /** Written; `notes` say anything unusual (a link followed, not atomic, form converted). */
   | { type: 'saved'; notes?: readonly string[]; warn?: boolean }
   | { type: 'save_failed'; text: string }

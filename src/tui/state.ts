@@ -68,7 +68,7 @@ export function reduce(s: ScreenState, a: Action, math: EditMath): ScreenState {
     case 'answer':
       return answer(s, a.yes);
     case 'save_conflict':
-      return saveConflict(s);
+      return saveConflict(s, a.structure === true);
     case 'saved':
       return {
         ...s,

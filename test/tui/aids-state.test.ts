@@ -178,10 +178,13 @@ describe('tui state: frames around the law', () => {
     expect(saveRefusal(moved)).toBe("candidate 'cascade' is not the file's controller: not saved (u goes back)");
     const w = keys(moved, 'save');
     expect(w.overlay.kind).toBe('none');
-    // Another law in the file's frame (a rule's PID on a PI file) is not written either.
+    // Another law in the file's frame (a rule's PID on a PI file): w asks to change the file's structure.
     const pid = keys({ ...s, current: edit(2, 10, 1) }, 'save');
-    expect(pid.overlay.kind).toBe('none');
-    expect(pid.message?.text).toContain("a PID is not the file's PI: not saved");
+    expect(pid.overlay).toMatchObject({ kind: 'confirm', question: 'save', structure: true });
+    expect(pid.overlay.kind === 'confirm' && pid.overlay.text).toContain('change loop.controller.structure to pid');
+    const yes = reduce(pid, { type: 'answer', yes: true }, CORE_EDIT_MATH);
+    expect(yes.effects).toEqual([{ kind: 'save', onDiskText: false, structure: true }]);
+    expect(reduce(pid, { type: 'answer', yes: false }, CORE_EDIT_MATH).effects).toEqual([]);
   });
 });
 

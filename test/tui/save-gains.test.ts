@@ -128,3 +128,30 @@ describe('planSave with a record note', () => {
     expect(changed[0]).toMatch(/kc: 4\.5\b.*2026-12-02 looprig screen/);
   });
 });
+
+describe('planSave changing the structure (asked for on the screen)', () => {
+  it("a PID over the PI file: written with its Td, structure: pid, and it loads back as that PID", () => {
+    const text = read('air-receiver.yaml');
+    const file = fileEdit(text);
+    expect(file.structure).toBe('pi');
+    const pid = editFromSpec({ ...loadPlant(text, 'a.yaml').plant!.loop.controller, structure: 'pid', values: { kc: 0.6, ti: 3, td: 0.5 }, gains: { ...file.gains, kc: 0.6, ti: 3, td: 0.5 } });
+    expect(planSave(text, file, pid, 'ideal')).toMatchObject({ ok: false });
+    const plan = planSave(text, file, pid, 'ideal', undefined, { structure: true });
+    if (!plan.ok) throw new Error(plan.error);
+    expect(plan.changed).toEqual(expect.arrayContaining(['kc', 'td', 'structure']));
+    const back = loadPlant(plan.text, 'a.yaml').plant!.loop.controller;
+    expect(back.structure).toBe('pid');
+    expect(back.gains).toMatchObject({ kc: 0.6, ti: 3, td: 0.5 });
+  });
+
+  it('a PI over the PID file (Td 0 written as 0): structure: pi, loads back as that PI', () => {
+    const text = read('surge-tank.yaml');
+    const file = fileEdit(text);
+    const pi = editFromSpec({ ...loadPlant(text, 's.yaml').plant!.loop.controller, structure: 'pi', values: { kc: 1.5, ti: 40 }, gains: { ...file.gains, kc: 1.5, ti: 40, td: 0 } });
+    const plan = planSave(text, file, pi, 'ideal', undefined, { structure: true });
+    if (!plan.ok) throw new Error(plan.error);
+    const back = loadPlant(plan.text, 's.yaml').plant!.loop.controller;
+    expect(back.structure).toBe('pi');
+    expect(back.gains).toMatchObject({ kc: 1.5, ti: 40, td: 0 });
+  });
+});

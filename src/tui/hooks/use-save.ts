@@ -33,9 +33,9 @@ export interface SaveTarget {
 }
 
 /** A function that saves the state's edited set (`onDiskText`: write into the text now on disk, after a conflict was accepted). */
-export function useSave(target: SaveTarget, dispatch: (a: Action) => void): (state: ScreenState, onDiskText: boolean) => void {
+export function useSave(target: SaveTarget, dispatch: (a: Action) => void): (state: ScreenState, onDiskText: boolean, structure: boolean) => void {
   const loaded = useRef(target.text);
-  return (state, onDiskText) => {
+  return (state, onDiskText, structure) => {
     const { io, filePath, fileName } = target;
     // null: the file was deleted since loading; the loaded text gets the edit and is written anew.
     let disk: string | null;
@@ -50,12 +50,12 @@ export function useSave(target: SaveTarget, dispatch: (a: Action) => void): (sta
       disk = null;
     }
     if (!onDiskText && disk !== null && disk !== loaded.current) {
-      dispatch({ type: 'save_conflict' });
+      dispatch({ type: 'save_conflict', structure });
       return;
     }
     // The record beside each saved value: today's date and where the gains came from.
     const base = onDiskText && disk !== null ? disk : loaded.current;
-    const plan = planSave(base, state.file, state.current, target.fileForm, gainNote(new Date().toISOString().slice(0, 10), 'screen'));
+    const plan = planSave(base, state.file, state.current, target.fileForm, gainNote(new Date().toISOString().slice(0, 10), 'screen'), { structure });
     if (!plan.ok) {
       dispatch({ type: 'save_failed', text: `not written: ${plan.error}` });
       return;

@@ -7,6 +7,8 @@
 import { Box } from 'ink';
 import { headlineSources, rankedFigureText } from '../../analysis/index.js';
 import { RELAY_CAUTION } from '../../tune/index.js';
+import type { ControllerStructure } from '../../model/types.js';
+import { structureSwitchable } from '../gain-edit.js';
 import type { Theme } from '../theme.js';
 import type { SuggestView } from '../tuning-views.js';
 import { gainsText } from './GainsPanel.js';
@@ -43,12 +45,17 @@ const COLS = [
 /** Columns left out, in this order, when the widened table is wider than the panel. */
 const DROP = ['GM', 'td'];
 
-/** The table's lines as text: header, then one line per row ('>' marks the selected one, '!' a flagged one). */
-export function suggestTableLines(view: SuggestView, selected: number, width = 80): string[] {
+/**
+ * The table's lines as text: header, then one line per row ('>' marks the selected one, '!' a
+ * flagged one). A rule whose structure is not the file's (a PID over a PI file) is marked '*':
+ * saving it changes the file's structure, which `w` asks about.
+ */
+export function suggestTableLines(view: SuggestView, selected: number, width = 80, fileStructure: string | null = null): string[] {
   const body = view.rows.map((r) => {
     const g = r.edit.gains;
+    const other = fileStructure !== null && r.structure !== fileStructure;
     return [
-      `${r.label}${r.oscillation ? ' ~' : ''}`,
+      `${r.label}${r.oscillation ? ' ~' : ''}${other ? ' *' : ''}`,
       fig(g.kc),
       Number.isFinite(g.ti) ? `${fig(g.ti)} s` : '-',
       g.td > 0 ? `${fig(g.td)} s` : '-',
@@ -83,6 +90,8 @@ export function figuresFrom(head: SuggestView['rows'][number]['head'] | null): s
 export interface SuggestPanelProps {
   view: SuggestView | null;
   selected: number;
+  /** The file's controller structure: rows of another are marked (null: mark none). */
+  fileStructure?: ControllerStructure | null;
   width: number;
   height: number;
   theme: Theme;
@@ -93,7 +102,8 @@ export function SuggestPanel(p: SuggestPanelProps) {
   const v = p.view;
   const rows: Piece[][] = [];
   const progress = v === null ? 'computing…' : v.finished ? `${v.rows.length} rules` : `computing… ${v.done}/${v.total}`;
-  const lines = v === null ? [] : suggestTableLines(v, p.selected, p.width);
+  const fileStructure = p.fileStructure ?? null;
+  const lines = v === null ? [] : suggestTableLines(v, p.selected, p.width, fileStructure);
   const caution = v !== null && v.rows.some((r) => r.oscillation) ? wrap(`~ ultimate point. ${RELAY_CAUTION}`, p.width) : [];
   const sel = v?.rows[p.selected];
   const detail: Piece[][] = [];
@@ -103,6 +113,10 @@ export function SuggestPanel(p: SuggestPanelProps) {
       { text: gainsText(sel.edit) },
       { text: sel.flags.length > 0 ? `  ! ${sel.flags.join(', ')}` : '', color: t.warn },
     ]);
+    if (fileStructure !== null && sel.structure !== fileStructure) {
+      const then = structureSwitchable(fileStructure, sel.structure) ? 'w asks to change its structure' : 'w cannot write it';
+      detail.push([{ text: `* a ${sel.structure.toUpperCase()}; the file's controller is a ${fileStructure.toUpperCase()}: ${then}`, color: t.warn }]);
+    }
     const from = [sel.diverged ? '' : figuresFrom(sel.head).trim(), sel.design ?? ''].filter((x) => x !== '').join('  ');
     if (from !== '') detail.push([{ text: from, color: t.dim }]);
   }

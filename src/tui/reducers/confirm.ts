@@ -16,13 +16,14 @@ export function answer(s: ScreenState, yes: boolean): ScreenState {
   const closed: ScreenState = { ...s, overlay: { kind: 'none' } };
   if (!yes) return info(closed, q === 'quit' ? 'not quitting' : 'not written');
   if (q === 'quit') return effect(closed, { kind: 'quit' });
-  return effect(closed, { kind: 'save', onDiskText: q === 'overwrite' });
+  const save = { kind: 'save' as const, onDiskText: q === 'overwrite' };
+  return effect(closed, s.overlay.structure === true ? { ...save, structure: true } : save);
 }
 
 /** The file changed on disk since it was loaded: ask before writing over it. */
-export function saveConflict(s: ScreenState): ScreenState {
+export function saveConflict(s: ScreenState, structure: boolean): ScreenState {
   return {
     ...s,
-    overlay: { kind: 'confirm', question: 'overwrite', text: `${s.fileName} changed on disk since it was loaded. Write the gains into the file as it is now?` },
+    overlay: { kind: 'confirm', question: 'overwrite', ...(structure ? { structure } : {}), text: `${s.fileName} changed on disk since it was loaded. Write the gains into the file as it is now?` },
   };
 }

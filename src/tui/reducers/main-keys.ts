@@ -1,7 +1,7 @@
 /** The main screen's commands (keymap.ts KEYMAP), when no overlay is open. */
 import type { AntiWindup, PidForm } from '../../model/types.js';
 import { NUDGE, SPEEDS, type KeyCommand } from '../keymap.js';
-import { effectiveValue, frameId, paramList, withForm, withParam, type GainEdit } from '../gain-edit.js';
+import { effectiveValue, frameId, paramList, structureSwitchable, withForm, withParam, type GainEdit } from '../gain-edit.js';
 import { checkValue, formatPlain, paramInfo } from '../param-meta.js';
 import { askQuit, effect, info, isDirty, push, selectedParam, type ScreenState } from '../screen-state.js';
 
@@ -32,13 +32,18 @@ export function aidRefusal(e: GainEdit, what: string): string | null {
   return `${what} the plain PID law only; this loop is ${f.named}`;
 }
 
+/** True when saving the current set means changing the file's controller structure (a rule's PID over a PI file), which the save asks about. */
+export function changesStructure(s: ScreenState): boolean {
+  return frameId(s.current) === frameId(s.file) && s.current.structure !== s.file.structure;
+}
+
 /** Why the current gain set cannot be written into the file, or null when it can. */
 export function saveRefusal(s: ScreenState): string | null {
   const e = s.current;
   if (frameId(e) !== frameId(s.file)) {
     return `candidate '${e.frame?.candidate ?? '?'}' is not the file's controller: not saved (u goes back)`;
   }
-  if (e.structure !== s.file.structure) {
+  if (e.structure !== s.file.structure && !(structureSwitchable(s.file.structure, e.structure) && s.file.frame?.extended !== true)) {
     return `a ${e.structure.toUpperCase()} is not the file's ${s.file.structure.toUpperCase()}: not saved (change loop.controller.structure first)`;
   }
   return null;
@@ -157,6 +162,18 @@ export function mainCommand(s: ScreenState, c: KeyCommand): ScreenState {
     case 'save': {
       const why = saveRefusal(s);
       if (why !== null) return info(s, why, 'warn');
+      if (changesStructure(s)) {
+        const to = s.current.structure;
+        return {
+          ...s,
+          overlay: {
+            kind: 'confirm',
+            question: 'save',
+            structure: true,
+            text: `The file's controller is a ${s.file.structure.toUpperCase()}; this set is a ${to.toUpperCase()}. Write it and change loop.controller.structure to ${to} in ${s.fileName}?`,
+          },
+        };
+      }
       return {
         ...s,
         overlay: {
