@@ -304,6 +304,7 @@ export function App(props: AppProps) {
     }
     return (
       <Panels
+        terminal={size}
         layout={layout}
         theme={theme}
         state={state}

@@ -13,12 +13,13 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, s
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { HAS_TMUX, tmuxServer } from '../helpers/tmux.js';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
-const hasTmux = spawnSync('tmux', ['-V'], { encoding: 'utf8' }).status === 0;
+const hasTmux = HAS_TMUX;
 if (!hasTmux) console.warn('tui e2e: tmux is not installed, the end-to-end screen test is skipped');
 
-const socket = `looprig-e2e-${process.pid}-${Math.random().toString(36).slice(2, 8)}`;
+const server = tmuxServer('looprig-e2e');
 let work = '';
 let bin = '';
 let buildReport = '';
@@ -60,17 +61,13 @@ function builtBin(): string {
   return out;
 }
 
-function tmux(...args: string[]): string {
-  const r = spawnSync('tmux', ['-L', socket, ...args], { encoding: 'utf8' });
-  if (r.status !== 0) throw new Error(`tmux ${args.join(' ')}: ${r.stderr}`);
-  return r.stdout;
-}
+const tmux = server.run;
 
 /** Type characters literally (tmux would read some, like ']', as key names). */
 const type = (chars: string): void => {
   for (const c of chars) tmux('send-keys', '-t', 'screen', '-l', c);
 };
-const pane = (session = 'screen'): string => tmux('capture-pane', '-p', '-t', session);
+const pane = (session = 'screen'): string => server.pane(session);
 
 /** Start `looprig ARGS` in a new 80x24 session; the shell writes EXIT=<status> to `exitFile` after it. */
 function start(session: string, args: string, exitFile: string): void {
@@ -115,12 +112,7 @@ beforeAll(() => {
 }, 180_000);
 
 afterAll(() => {
-  if (hasTmux) {
-    const path = spawnSync('tmux', ['-L', socket, 'display-message', '-p', '#{socket_path}'], { encoding: 'utf8' }).stdout.trim();
-    spawnSync('tmux', ['-L', socket, 'kill-server']);
-    // tmux leaves the socket file behind.
-    if (path !== '') rmSync(path, { force: true });
-  }
+  if (hasTmux) server.kill();
   if (work !== '') rmSync(work, { recursive: true, force: true });
 });
 

@@ -25,6 +25,8 @@ import { NoticesPanel } from './NoticesPanel.js';
 import { wrap } from './wrap.js';
 
 export interface PanelsProps {
+  /** The terminal's size (the too-small notice says it). */
+  terminal: { columns: number; rows: number };
   layout: Layout;
   theme: Theme;
   state: ScreenState;
@@ -158,7 +160,7 @@ export function Panels(p: PanelsProps) {
 
   if (layout.tier === 'tiny') {
     // Said in full (wrapped), with the size it has and the size the charts need.
-    const warn = wrap(`Terminal too small (${w}x${layout.lines + 1}): the charts need ${MIN_TREND.columns}x${MIN_TREND.rows}. Gain set:`, w);
+    const warn = wrap(`Terminal too small (${p.terminal.columns}x${p.terminal.rows}): the charts need ${MIN_TREND.columns}x${MIN_TREND.rows}. Gain set:`, w);
     return (
       <Box flexDirection="column" width={w}>
         {warn.map((text, i) => (
