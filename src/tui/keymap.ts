@@ -93,7 +93,7 @@ export const KEYMAP: readonly KeyBinding[] = [
   { keys: ['O'], command: 'optimize', group: 'tune', help: 'optimise gains (Esc stops)' },
   { keys: ['v'], command: 'toggle_envelope', group: 'tune', help: 'envelope over uncertainty' },
   { keys: ['c'], command: 'compare', group: 'tune', help: 'compare the candidates' },
-  { keys: ['F'], command: 'frequency_view', group: 'tune', help: 'frequency view, loop shaping' },
+  { keys: ['F'], command: 'frequency_view', group: 'tune', help: 'frequency view, shaping' },
   { keys: ['T'], command: 'tweak', group: 'tune', help: 'tweak guide: ±10 % per gain' },
   { keys: ['w'], command: 'save', group: 'file', help: 'save to the file (asks)' },
   { keys: ['?', 'h'], command: 'help', group: 'file', help: 'this help' },

@@ -10,9 +10,9 @@ describe('tui: a rule of another structure', () => {
     const s = await mount('air-receiver.yaml', { columns: 100, rows: 32 });
     await s.press('p');
     await until(() => / \d+ rules /.test(s.frame()), 'the finished rule list', s.frame, 30000);
-    const rows = s.frame().split('\n').filter((l) => /^[> ][ !]\S/.test(l));
+    const rows = s.frame().split('\n').filter((l) => /^[> ][ !][ *]\S/.test(l));
     // P rows are marked too (w cannot write those); a PID row is what a PI file can become.
-    const marked = rows.findIndex((l) => /PID \*\s/.test(l));
+    const marked = rows.findIndex((l) => /^..\*.*PID\s/.test(l));
     const at = rows.findIndex((l) => l.startsWith('>'));
     expect(marked, s.frame()).toBeGreaterThanOrEqual(0);
     for (let i = at; i < marked; i++) await s.press(KEY.down);

@@ -47,15 +47,14 @@ const DROP = ['GM', 'td'];
 
 /**
  * The table's lines as text: header, then one line per row ('>' marks the selected one, '!' a
- * flagged one). A rule whose structure is not the file's (a PID over a PI file) is marked '*':
- * saving it changes the file's structure, which `w` asks about.
+ * flagged one, '*' in the third column a rule whose structure is not the file's (a PID over a PI
+ * file): saving it changes the file's structure, which `w` asks about).
  */
 export function suggestTableLines(view: SuggestView, selected: number, width = 80, fileStructure: string | null = null): string[] {
   const body = view.rows.map((r) => {
     const g = r.edit.gains;
-    const other = fileStructure !== null && r.structure !== fileStructure;
     return [
-      `${r.label}${r.oscillation ? ' ~' : ''}${other ? ' *' : ''}`,
+      `${r.label}${r.oscillation ? ' ~' : ''}`,
       fig(g.kc),
       Number.isFinite(g.ti) ? `${fig(g.ti)} s` : '-',
       g.td > 0 ? `${fig(g.td)} s` : '-',
@@ -68,15 +67,16 @@ export function suggestTableLines(view: SuggestView, selected: number, width = 8
   });
   const widths = COLS.map((c, i) => Math.max(c.w, ...body.map((cells) => cells[i].length)));
   const keep = COLS.map(() => true);
-  const total = (): number => 2 + widths.reduce((sum, w, i) => sum + (keep[i] ? w + 1 : 0), -1);
+  const total = (): number => 3 + widths.reduce((sum, w, i) => sum + (keep[i] ? w + 1 : 0), -1);
   for (const name of DROP) {
     if (total() <= width) break;
     keep[COLS.findIndex((c) => c.head === name)] = false;
   }
   const line = (cells: readonly string[]): string => cells.map((v, i) => (keep[i] ? fit(v, widths[i]) : null)).filter((v) => v !== null).join(' ');
-  const out = [`  ${line(COLS.map((c) => c.head))}`];
+  const out = [`   ${line(COLS.map((c) => c.head))}`];
   body.forEach((cells, i) => {
-    out.push(`${i === selected ? '>' : ' '}${view.rows[i].flags.length > 0 ? '!' : ' '}${line(cells)}`);
+    const other = fileStructure !== null && view.rows[i].structure !== fileStructure;
+    out.push(`${i === selected ? '>' : ' '}${view.rows[i].flags.length > 0 ? '!' : ' '}${other ? '*' : ' '}${line(cells)}`);
   });
   return out;
 }
