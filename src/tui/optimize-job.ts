@@ -7,7 +7,7 @@
  * search goes on where it stopped, so the gains are those `looprig optimize` finds for the same
  * file and gains, bit for bit.
  */
-import { headlineMetrics, headlineNumber } from '../analysis/index.js';
+import { headlineMetrics } from '../analysis/index.js';
 import { createOptimizer, DEFAULT_COST, type Optimizer, type OptimizeResult } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
 import type { GainEdit } from './gain-edit.js';
@@ -97,8 +97,6 @@ function outcomeOf(r: OptimizeResult, base: GainEdit, slices: number): OptimizeO
     evaluations: r.evaluations,
     slices,
     stoppedBy: r.stoppedBy,
-    overshootPct: headlineNumber(head.overshootPct),
-    settlingTime: headlineNumber(head.settlingTime),
     head,
     ms: b.ms,
     gm: b.margins === null ? NaN : b.margins.gainMargin,

@@ -6,7 +6,7 @@
  * PI), one design per step, at the targets tune's defaultDesignTargets chooses from the model.
  * The rows are what `suggestGains` measured; nothing is estimated here.
  */
-import { effectiveMs, headlineMetrics, headlineNumber } from '../analysis/index.js';
+import { effectiveMs, headlineMetrics } from '../analysis/index.js';
 import { defaultDesignTargets, ruleInputsOf, suggestGains, TUNING_RULES, type DesignDefaults, type GainFlag, type SuggestOptions, type Suggestion, type TuningContext } from '../tune/index.js';
 import { contextFor, editWithGains, type LoopSetup } from './engine.js';
 import type { GainEdit } from './gain-edit.js';
@@ -35,8 +35,6 @@ export function suggestionRow(s: Suggestion, base: GainEdit): SuggestRow {
     label: s.rule.label,
     structure: s.structure,
     edit: editWithGains(s.gains, s.structure, base.form, base.frame),
-    overshootPct: headlineNumber(head.overshootPct),
-    settlingTime: headlineNumber(head.settlingTime),
     head,
     iae: e.metrics.overall.iae,
     diverged: e.result.status !== 'ok',

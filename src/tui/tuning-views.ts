@@ -16,11 +16,11 @@ export interface SuggestRow {
   readonly structure: ControllerStructure;
   /** The gain set as the screen would edit it. */
   readonly edit: GainEdit;
-  /** Overshoot, worst over the setpoint steps, % (analysis' headlineNumber: Infinity not reached). */
-  readonly overshootPct: number;
-  /** Settling time, worst over the setpoint steps, s (Infinity: not settled). */
-  readonly settlingTime: number;
-  /** The headline figures those come from (which step), from analysis' headlineMetrics. */
+  /**
+   * The headline figures (the worst over the setpoint steps, with the step each comes from), from
+   * analysis' headlineMetrics; a single number of one is analysis' headlineNumber (Infinity: not
+   * reached / not settled), worked out where it is shown, not stored beside it.
+   */
   readonly head: HeadlineMetrics;
   /** IAE over the whole trial. */
   readonly iae: number;
@@ -82,11 +82,8 @@ export interface OptimizeOutcome {
   readonly evaluations: number;
   readonly slices: number;
   readonly stoppedBy: 'converged' | 'evaluations' | 'time' | 'cancelled';
-  /** Worst over the setpoint steps, as SuggestRow's. */
-  readonly overshootPct: number;
-  readonly settlingTime: number;
-  /** Which step they come from (null or absent: no gain set found; the panel then names none). */
-  readonly head?: HeadlineMetrics | null;
+  /** The headline figures, as SuggestRow's (null: no gain set found; the panel then names none). */
+  readonly head: HeadlineMetrics | null;
   readonly ms: number;
   readonly gm: number;
   readonly flags: readonly string[];

@@ -42,7 +42,7 @@ function act(s: ScreenState, ...actions: Action[]): ScreenState {
 /** Headline figures of a trial without a setpoint step (the rows' figures are set directly). */
 const NO_HEAD = { overshootPct: null, undershootPct: null, riseTime: null, settlingTime: null, steadyStateError: null, peakTime: null };
 function row(label: string, e: GainEdit, oscillation = false): SuggestRow {
-  return { id: label, label, structure: e.structure, edit: e, overshootPct: 5, settlingTime: 30, head: NO_HEAD, iae: 1, diverged: false, ms: 1.5, gm: 3, flags: [], oscillation };
+  return { id: label, label, structure: e.structure, edit: e, head: NO_HEAD, iae: 1, diverged: false, ms: 1.5, gm: 3, flags: [], oscillation };
 }
 function view(rows: SuggestRow[], finished = true): SuggestView {
   return { rows, done: rows.length, total: rows.length, finished, skipped: [], notes: [] };
@@ -101,8 +101,7 @@ describe('tui state: the optimiser (O)', () => {
     evaluations: 90,
     slices: 3,
     stoppedBy: 'cancelled',
-    overshootPct: 1,
-    settlingTime: 10,
+    head: null,
     ms: 1.5,
     gm: 3,
     flags: [],

@@ -3,7 +3,7 @@
  * start it came from); at the end the result with its figures, offered to apply.
  */
 import { Box } from 'ink';
-import { rankedFigureText } from '../../analysis/index.js';
+import { headlineNumber, rankedFigureText } from '../../analysis/index.js';
 import type { Theme } from '../theme.js';
 import type { OptimizeOutcome, OptimizeView } from '../tuning-views.js';
 import { gainsText } from './GainsPanel.js';
@@ -57,11 +57,11 @@ export function optimizeLines(view: OptimizeView | null, outcome: OptimizeOutcom
   ]);
   out.push([{ text: `  start: ${outcome.startLabel ?? 'the edited gains'}${Number.isFinite(outcome.startCost) ? `, ${c} ${fig(outcome.startCost, 5)}` : ''}`, color: theme.dim }]);
   if (outcome.edit !== null) out.push([{ text: '  gains: ' }, { text: gainsText(outcome.edit), bold: true }]);
-  const os = rankedFigureText('overshootPct', outcome.overshootPct, (x) => fig(x));
-  const ts = rankedFigureText('settlingTime', outcome.settlingTime, (x) => fig(x));
+  const os = rankedFigureText('overshootPct', outcome.head === null ? NaN : headlineNumber(outcome.head.overshootPct), (x) => fig(x));
+  const ts = rankedFigureText('settlingTime', outcome.head === null ? NaN : headlineNumber(outcome.head.settlingTime), (x) => fig(x));
   const ms = outcome.ms === Infinity ? 'unstable' : fig(outcome.ms);
   out.push([{ text: `  overshoot ${os}, settling ${ts}, Ms ${ms}, GM ${fig(outcome.gm)}` }]);
-  const from = figuresFrom(outcome.head ?? null);
+  const from = figuresFrom(outcome.head);
   if (from !== '') out.push([{ text: `  ${from.trim()}`, color: theme.dim }]);
   const now = outcome.current;
   if (now !== null) {

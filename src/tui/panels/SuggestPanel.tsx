@@ -5,7 +5,7 @@
  * oscillation caution is shown whenever such a row is listed.
  */
 import { Box } from 'ink';
-import { headlineSources, rankedFigureText } from '../../analysis/index.js';
+import { headlineNumber, headlineSources, rankedFigureText } from '../../analysis/index.js';
 import { RELAY_CAUTION } from '../../tune/index.js';
 import type { ControllerStructure } from '../../model/types.js';
 import { structureSwitchable } from '../gain-edit.js';
@@ -58,8 +58,8 @@ export function suggestTableLines(view: SuggestView, selected: number, width = 8
       fig(g.kc),
       Number.isFinite(g.ti) ? `${fig(g.ti)} s` : '-',
       g.td > 0 ? `${fig(g.td)} s` : '-',
-      r.diverged ? 'diverged' : rankedFigureText('overshootPct', r.overshootPct, (x) => fig(x)),
-      r.diverged ? '' : rankedFigureText('settlingTime', r.settlingTime, (x) => fig(x)),
+      r.diverged ? 'diverged' : rankedFigureText('overshootPct', headlineNumber(r.head.overshootPct), (x) => fig(x)),
+      r.diverged ? '' : rankedFigureText('settlingTime', headlineNumber(r.head.settlingTime), (x) => fig(x)),
       r.diverged ? '' : fig(r.iae),
       r.ms === Infinity ? 'unst.' : fig(r.ms),
       fig(r.gm),
