@@ -22,7 +22,7 @@ import { suggestKey, suggestProgress } from './reducers/suggest.js';
 import { tweakKey } from './reducers/tweak.js';
 import { askQuit, type Action, type ScreenState } from './screen-state.js';
 
-export type { EditMath, FormTriple } from './edit-math.js';
+export type { EditMath } from './edit-math.js';
 export { frameId, namedOf, paramList, paramValue, sameEdit, withForm, withParam, type ControllerFrame, type GainEdit } from './gain-edit.js';
 export { checkValue, formatPlain, formParams, paramInfo, parseParamText, type ParamId, type ParamInfo } from './param-meta.js';
 export { saveRefusal } from './reducers/main-keys.js';
