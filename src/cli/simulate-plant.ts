@@ -4,6 +4,7 @@
  */
 import { checkRequirements, trialMetrics } from '../analysis/index.js';
 import type { RequirementResult, TrialMetrics } from '../analysis/index.js';
+import type { BuiltLoop } from '../loop/index.js';
 import { fileLoop } from '../tune/index.js';
 import { compilePlant } from '../model/index.js';
 import type { PlantDynamics, PlantSpec } from '../model/types.js';
@@ -19,9 +20,12 @@ export interface SimulatedTrial {
   warnings: string[];
 }
 
-/** Simulate the file's trial with its controller (`dynamics` may be passed when compiled already). */
-export function simulatePlant(plant: PlantSpec, dynamics: PlantDynamics = compilePlant(plant)): SimulatedTrial {
-  const { loop } = fileLoop(plant, dynamics);
+/**
+ * Simulate the file's trial with its controller (`dynamics` may be passed when compiled already,
+ * `built` when its loop is built already: `buildLoop(plant, { dynamics })`, the budget's).
+ */
+export function simulatePlant(plant: PlantSpec, dynamics: PlantDynamics = compilePlant(plant), built?: BuiltLoop): SimulatedTrial {
+  const { loop } = fileLoop(plant, dynamics, built);
   const result = runTrial(loop.dynamics, loop.controller(), loop.config, loop.trial);
   const requirements = plant.loop.requirements;
   const metrics = trialMetrics(result.trace, loop.trial, requirements);

@@ -27,7 +27,7 @@ export type { StepChoice } from './choose-step.js';
 export { DelayLine, usableDelay, delayInSteps } from './delay-line.js';
 export { checkBudget, estimateBudget, DEFAULT_BUDGET, HARD_LIMITS, SECONDS_PER_STATE_STEP } from './budget.js';
 export { plantBudget } from './plant-budget.js';
-export type { BudgetRefusal, PlantBudgetOptions } from './plant-budget.js';
+export type { BudgetedLoop, BudgetRefusal, PlantBudgetOptions } from './plant-budget.js';
 export type { BudgetCause, BudgetEstimate, BudgetExcess, BudgetLimits, RunSize } from './budget.js';
 export { Actuator, valveBand, valveInput, valveTravel } from './actuator.js';
 export { Sensor, sensorFilterCoefficients } from './sensor.js';

@@ -11,6 +11,7 @@
 import { parseCommandArgs } from '../parse-command.js';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
+import { buildLoop } from '../../loop/index.js';
 import { compilePlant, formatDiagnostic, loadPlant, plantUnits, type PlantUnits } from '../../model/index.js';
 import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
@@ -133,12 +134,15 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: str
     return invalid(errors);
   }
   for (const w of warnings) io.err(`${w}\n`);
-  // The nominal trial's budget (a worst-case sweep repeats it per corner).
-  const over = plantBudget(loaded.plant, compilePlant(loaded.plant), text, file, { limits: noLimits ? null : DEFAULT_BUDGET });
+  // The nominal trial's budget (a worst-case sweep repeats it per corner), on the loop that runs:
+  // the plant is compiled and its loop built once.
+  const dynamics = compilePlant(loaded.plant);
+  const built = buildLoop(loaded.plant, { dynamics });
+  const over = plantBudget(loaded.plant, built, text, file, { limits: noLimits ? null : DEFAULT_BUDGET });
   if (over.length > 0) return invalid(over.map(refusalLine));
   let check: PlantCheck;
   try {
-    check = checkPlant(loaded.plant);
+    check = checkPlant(loaded.plant, { loop: built });
   } catch (error) {
     // A structure this plant cannot support (e.g. a Smith predictor on an integrating plant).
     if (error instanceof StructureUnavailable) return invalid([`${file}: ${error.message}`]);

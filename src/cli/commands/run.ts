@@ -6,7 +6,7 @@ import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { compilePlant, MIN_STEP, plantUnits, withUnit } from '../../model/index.js';
-import { requirementUnitOf } from '../../loop/index.js';
+import { buildLoop, requirementUnitOf } from '../../loop/index.js';
 import type { ControllerStructure, PlantSpec, Requirements } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
 import { UserError } from '../errors.js';
@@ -96,7 +96,9 @@ export type TweakWhen = 'asked' | 'within-budget' | 'none';
 export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options.tweak === true ? 'asked' : 'none'): RunReport {
   const loaded = loadPlantFile(options.file, io, options.overrides);
   const plant = withRunOverrides(loaded.plant, options);
+  // Compiled and built once: the budget is worked out on the loop that runs.
   const dynamics = compilePlant(plant);
+  const built = buildLoop(plant, { dynamics });
   const given = {
     ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
     ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
@@ -104,11 +106,11 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
   // run simulates only: no margins, so a long dead time costs only its (bounded) delay line;
   // the tweak guide adds its runs (at most 11) and Ms.
   const tweakBudget = { frequencyAnalysis: true, runs: TWEAK_RUNS, given };
-  enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
+  enforceBudget(plant, built, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
     ...(tweak === 'asked' ? tweakBudget : { frequencyAnalysis: (options.svgFrequency ?? null) !== null, runs: 1, given }),
   });
-  const sim = simulatePlant(plant, dynamics);
+  const sim = simulatePlant(plant, dynamics, built);
   const { result, metrics, requirements } = sim;
   const warnings = [...loaded.warnings, ...sim.warnings];
   for (const [key, name] of FREQUENCY_REQUIREMENTS) {
@@ -117,7 +119,7 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
   let guide: TweakGuide | null = null;
   if (tweak === 'asked') guide = runTweak(plant, dynamics, warnings);
   else if (tweak === 'within-budget') {
-    const over = plantBudget(plant, dynamics, loaded.text, options.file, { ...tweakBudget, limits: options.noLimits ? null : DEFAULT_BUDGET });
+    const over = plantBudget(plant, built, loaded.text, options.file, { ...tweakBudget, limits: options.noLimits ? null : DEFAULT_BUDGET });
     if (over.length > 0) warnings.push(`tweak guide left out (its ${TWEAK_RUNS} runs and margins): ${refusalLine(over[0])}`);
     else guide = runTweak(plant, dynamics, warnings);
   }
