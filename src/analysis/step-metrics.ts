@@ -296,7 +296,8 @@ export type RowTime = (k: number) => number;
  * whole trace as one chunk.
  */
 export class TrialMetricsStream {
-  private readonly rows: number;
+  /** Rows of the trial (the count the segments were fixed for). */
+  readonly rows: number;
   private readonly time: RowTime;
   private readonly trial: TrialSpec;
   private readonly band: number;

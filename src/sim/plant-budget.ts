@@ -28,6 +28,8 @@ export interface PlantBudgetOptions {
   limits?: BudgetLimits | null;
   /** Whether the caller also analyses the loop in frequency (diagnose, suggest ...); default true. */
   frequencyAnalysis?: boolean;
+  /** Trace rows a run holds at most (see budget.ts RunSize.heldRows). */
+  heldRows?: number;
   /** Causes set on the command line, and how to name them there (e.g. `duration: '--duration 1e9'`). */
   given?: Partial<Record<BudgetCause, string>>;
 }
@@ -78,6 +80,7 @@ export function plantBudget(
       runs: options.runs ?? 1,
       bounded: options.bounded ?? true,
       frequencyAnalysis: options.frequencyAnalysis ?? true,
+      heldRows: options.heldRows,
     },
     options.limits === undefined ? DEFAULT_BUDGET : options.limits,
     stepGiven,

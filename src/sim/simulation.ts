@@ -27,7 +27,7 @@ import { SAMPLE_EPS as TIME_EPS } from './event-schedule.js';
 import { generateOutput, generateStepper, type OutputFunction, type StepFunction } from './generate-stepper.js';
 import { Sensor } from './sensor.js';
 import { TraceRing } from './trace.js';
-import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus } from './types.js';
+import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus, Trace } from './types.js';
 
 /** Start conditions and options of a simulation. */
 export interface SimulationInit {
@@ -47,6 +47,12 @@ export interface SimulationInit {
    * far longer than the run costs nothing.
    */
   horizon?: number;
+  /**
+   * Stream the rows instead of keeping them: the trace ring (`traceCapacity` rows) hands each full
+   * chunk, rows in order, with the trial row of its first row, to this reader before it wraps
+   * (`finishStream` hands over the last part).
+   */
+  onChunk?: (chunk: Trace, first: number) => void;
 }
 
 export type ControllerMode = 'manual' | 'auto';
@@ -153,7 +159,7 @@ export class Simulation {
 
     this.r = init.initialSetpoint ?? y0;
     this.initSetpoint = this.r;
-    this.trace = new TraceRing(init.traceCapacity ?? 4096, plant.disturbanceNames);
+    this.trace = new TraceRing(init.traceCapacity ?? 4096, plant.disturbanceNames, init.onChunk ?? null);
   }
 
   /** Simulated time, s: the next sample instant to be processed. */
@@ -234,6 +240,11 @@ export class Simulation {
    */
   recordFinal(): void {
     if (this.status === 'ok') this.sample(false);
+  }
+
+  /** Hand the rows not yet handed over to the `onChunk` reader (a streamed run's end). */
+  finishStream(): void {
+    this.trace.flush();
   }
 
   /** Setpoint step at the next sample (cancels a ramp). */

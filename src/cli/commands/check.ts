@@ -11,7 +11,7 @@
 import { parseCommandArgs } from '../parse-command.js';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { buildLoop } from '../../loop/index.js';
+import { buildLoop, STREAM_ROWS } from '../../loop/index.js';
 import { compilePlant, formatDiagnostic, loadPlant, plantUnits, type PlantUnits } from '../../model/index.js';
 import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
@@ -138,7 +138,7 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: str
   // the plant is compiled and its loop built once.
   const dynamics = compilePlant(loaded.plant);
   const built = buildLoop(loaded.plant, { dynamics });
-  const over = plantBudget(loaded.plant, built, text, file, { limits: noLimits ? null : DEFAULT_BUDGET });
+  const over = plantBudget(loaded.plant, built, text, file, { limits: noLimits ? null : DEFAULT_BUDGET, heldRows: STREAM_ROWS });
   if (over.length > 0) return invalid(over.map(refusalLine));
   let check: PlantCheck;
   try {

@@ -6,9 +6,10 @@ import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { compilePlant, MIN_STEP, plantUnits, withUnit } from '../../model/index.js';
-import { buildLoop, requirementUnitOf } from '../../loop/index.js';
+import { buildLoop, requirementUnitOf, STREAM_ROWS } from '../../loop/index.js';
 import type { ControllerStructure, PlantSpec, Requirements } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
+import type { TrialChunk } from '../../sim/index.js';
 import { UserError } from '../errors.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
@@ -108,7 +109,10 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
   const tweakBudget = { frequencyAnalysis: true, runs: TWEAK_RUNS, given };
   enforceBudget(plant, built, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
-    ...(tweak === 'asked' ? tweakBudget : { frequencyAnalysis: (options.svgFrequency ?? null) !== null, runs: 1, given }),
+    // A trial over STREAM_ROWS rows is streamed (simulate-plant.ts): it holds a chunk and its kept
+    // rows, not its trace (and is run twice: the second pass costs time, not memory). The tweak
+    // guide's runs are held whole.
+    ...(tweak === 'asked' ? tweakBudget : { frequencyAnalysis: (options.svgFrequency ?? null) !== null, runs: 1, given, heldRows: STREAM_ROWS }),
   });
   const sim = simulatePlant(plant, dynamics, built);
   const { result, metrics, requirements } = sim;
@@ -123,7 +127,7 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
     if (over.length > 0) warnings.push(`tweak guide left out (its ${TWEAK_RUNS} runs and margins): ${refusalLine(over[0])}`);
     else guide = runTweak(plant, dynamics, warnings);
   }
-  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: guide };
+  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: guide, replay: sim.replay };
 }
 
 /** Most runs of the tweak guide: the gains as they are and ±10 % on kc, ti, td, n and b. */
@@ -173,7 +177,9 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
   // the text shows its table only with --tweak.
   const report = runPlant(options, io, options.tweak === true ? 'asked' : options.json ? 'within-budget' : 'none');
   if (options.csv !== null) {
-    writeOutput(io, options.csv, traceCsvChunks(report.result.trace));
+    // Every sample: a streamed trial is run again for its rows, a chunk at a time.
+    const replay = report.replay ?? null;
+    writeOutput(io, options.csv, replay === null ? traceCsvChunks(report.result.trace) : chunksCsv(report.result.trace.disturbanceNames, replay()));
   }
   if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
   if ((options.svgFrequency ?? null) !== null) writeFrequencySvg(report.plant, compilePlant(report.plant), options.file, options.svgFrequency!, options.overrides.length > 0, io);
@@ -191,7 +197,21 @@ const CSV_CHUNK_ROWS = 4096;
  * sample, as chunks of text (the header first) so a long trace goes to disk a piece at a time.
  */
 export function* traceCsvChunks(trace: Trace, rowsPerChunk: number = CSV_CHUNK_ROWS): Generator<string> {
-  yield `${['t', 'setpoint', 'output', 'measured', 'u', ...trace.disturbanceNames].join(',')}\n`;
+  yield csvHeader(trace.disturbanceNames);
+  yield* csvRows(trace, rowsPerChunk);
+}
+
+/** The CSV of a streamed trial's rows (its replay), as `traceCsvChunks` writes a whole trace. */
+export function* chunksCsv(disturbanceNames: readonly string[], chunks: Iterable<TrialChunk>): Generator<string> {
+  yield csvHeader(disturbanceNames);
+  for (const { chunk } of chunks) yield* csvRows(chunk, CSV_CHUNK_ROWS);
+}
+
+function csvHeader(disturbanceNames: readonly string[]): string {
+  return `${['t', 'setpoint', 'output', 'measured', 'u', ...disturbanceNames].join(',')}\n`;
+}
+
+function* csvRows(trace: Trace, rowsPerChunk: number): Generator<string> {
   for (let start = 0; start < trace.length; start += rowsPerChunk) {
     const end = Math.min(trace.length, start + rowsPerChunk);
     let text = '';
