@@ -88,8 +88,11 @@ export interface FileOutcome {
   plant: string | null;
   /** The file's units (null for an invalid file). */
   units: PlantUnits | null;
-  /** The verdicts; the nominal trial itself is dropped once its plot (if any) is written. */
-  check: Omit<PlantCheck, 'nominal'> | null;
+  /**
+   * The verdicts: rows and notes. The nominal trial is dropped once its plot (if any) is written,
+   * and the figures map too (the rows carry what is printed): a folder's outcomes are held to the end.
+   */
+  check: Pick<PlantCheck, 'rows' | 'pass' | 'notes'> | null;
   /** Why the file is invalid (already printed to stderr as FILE:LINE:COL lines). */
   errors: string[];
   warnings: string[];
@@ -148,9 +151,9 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: str
     if (error instanceof StructureUnavailable) return invalid([`${file}: ${error.message}`]);
     throw error;
   }
-  const { nominal, ...verdicts } = check;
+  const verdicts = { rows: check.rows, pass: check.pass, notes: check.notes };
   const outcome: FileOutcome = { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, units: plantUnits(loaded.plant), check: verdicts, errors: [], warnings, svg: null };
-  if (svgDir !== null && outcome.status === 'fail') outcome.svg = writePlot(loaded.plant, file, check.rows, nominal, svgDir, io);
+  if (svgDir !== null && outcome.status === 'fail') outcome.svg = writePlot(loaded.plant, file, check.rows, check.nominal, svgDir, io);
   return outcome;
 }
 
