@@ -4,6 +4,7 @@
  */
 export {
   trialMetrics,
+  TrialMetricsStream,
   headlineMetrics,
   headlineNumber,
   DEFAULT_SETTLING_BAND,
@@ -19,6 +20,7 @@ export type {
   DisturbanceMetrics,
   OverallMetrics,
   TrialMetrics,
+  RowTime,
 } from './step-metrics.js';
 export { checkRequirements, timeRequirementNames } from './requirements.js';
 export type { RequirementResult, RequirementStatus } from './requirements.js';

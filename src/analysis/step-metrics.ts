@@ -207,78 +207,18 @@ export interface HeadlineFigure {
 export type HeadlineMetrics = Record<StepFigure, HeadlineFigure | null> & { peakTime: HeadlineFigure | null };
 
 /**
- * Compute the metrics of a trial from its trace.
+ * Compute the metrics of a trial from its trace: the two passes of `TrialMetricsStream` over the
+ * trace held whole (the one definition of every figure; a long run streams the same passes).
  * @param trace recorded trial (times in s)
  * @param trial the trial that produced it (events give the segments)
  * @param requirements only `settlingBand` is read here (fraction, default 0.02)
  */
 export function trialMetrics(trace: Trace, trial: TrialSpec, requirements: Requirements = {}): TrialMetrics {
-  const band = requirements.settlingBand ?? DEFAULT_SETTLING_BAND;
-  if (!(band > 0)) throw new RangeError('settlingBand must be > 0');
-  const n = trace.length;
   const t = trace.t;
-  const y = trace.y;
-  const tEnd = n > 0 ? t[n - 1] : 0;
-  const events = trial.events;
-
-  // Samples at which a setpoint step takes effect: the interval ending there still had the old
-  // setpoint, so the trapezoid must not smear the jump over it.
-  const jumpAt = new Uint8Array(n);
-  for (const ev of events) {
-    if (ev.kind !== 'setpoint') continue;
-    const i = firstIndexAtOrAfter(t, n, ev.at);
-    if (i > 0 && i < n) jumpAt[i] = 1;
-  }
-  const overall = overallMetrics(trace, jumpAt);
-  const steps: StepMetrics[] = [];
-  const ramps: RampMetrics[] = [];
-  const disturbances: DisturbanceMetrics[] = [];
-
-  // Setpoint level as scripted by the events, walked in order.
-  let level = trial.initialSetpoint ?? (n > 0 ? y[0] : 0);
-  let ramp: { at: number; from: number; to: number; duration: number } | null = null;
-  const setpointAt = (time: number): number => {
-    if (ramp === null) return level;
-    if (time >= ramp.at + ramp.duration) return ramp.to;
-    return ramp.from + ((ramp.to - ramp.from) * (time - ramp.at)) / ramp.duration;
-  };
-  const lastDisturbance = new Map<string, number>();
-  let firstChange = NaN;
-  const pendingDisturbances: { ev: TrialEvent & { kind: 'disturbance' }; segEnd: number; r0: number; from: number }[] = [];
-
-  for (let k = 0; k < events.length; k++) {
-    const ev = events[k];
-    const segEnd = nextEventTime(events, k, tEnd);
-    if (ev.kind === 'setpoint') {
-      const from = setpointAt(ev.at);
-      ramp = null;
-      level = ev.value;
-      const change = ev.value - from;
-      if (change !== 0 && n > 0 && ev.at <= tEnd) {
-        if (Number.isNaN(firstChange)) firstChange = change;
-        steps.push(stepMetrics(trace, ev.at, segEnd, from, ev.value, band));
-      }
-    } else if (ev.kind === 'setpoint_ramp') {
-      const from = setpointAt(ev.at);
-      ramp = { at: ev.at, from, to: ev.to, duration: ev.duration };
-      level = ev.to;
-      if (n > 0 && ev.at <= tEnd) ramps.push(rampMetrics(trace, ev.at, segEnd, from, ev.to, ev.duration));
-    } else if (ev.kind === 'disturbance') {
-      const col = trace.disturbanceNames.indexOf(ev.name);
-      let from = lastDisturbance.get(ev.name) ?? NaN;
-      if (Number.isNaN(from) && col >= 0) {
-        const i0 = firstIndexAtOrAfter(t, n, ev.at);
-        if (i0 > 0) from = trace.d[col][i0 - 1];
-      }
-      lastDisturbance.set(ev.name, ev.value);
-      if (n > 0 && ev.at <= tEnd) pendingDisturbances.push({ ev, segEnd, r0: setpointAt(ev.at), from });
-    }
-  }
-  // The recovery band needs the first setpoint change, known only after the walk.
-  for (const p of pendingDisturbances) {
-    disturbances.push(disturbanceMetrics(trace, p.ev, p.segEnd, p.r0, p.from, band, firstChange));
-  }
-  return { overall, steps, ramps, disturbances };
+  const stream = new TrialMetricsStream(trial, trace.length, (k) => t[k], requirements);
+  stream.first(trace, 0);
+  stream.second(trace, 0);
+  return stream.result();
 }
 
 /** Which way is worse for each step figure: larger, or larger in magnitude (steady-state error). */
@@ -337,6 +277,692 @@ export function headlineNumber(figure: HeadlineFigure | null): number {
   return Number.isNaN(figure.value) ? Infinity : figure.value;
 }
 
+// ---------------------------------------------------------------- the two passes
+
+/** Time of row k, s: the trace's own time, or k·Ts for rows of a run still to come (identical). */
+export type RowTime = (k: number) => number;
+
+/**
+ * The metrics of a trial computed from its rows in two passes, each given the rows in order, in
+ * chunks (a `Trace` whose row i is row `first + i` of the trial), so a run too long to hold can be
+ * measured as it is made and made again (sim is deterministic) without keeping its trace:
+ * - `first`: whole-trial figures, integrals, tail means (final values), disturbance peaks, ramp
+ *   figures: everything whose reference is known before the rows are seen;
+ * - `second`: what is measured against a final value (settling, rise and peak against it, and
+ *   against the setpoint, the choice between them made at the end) and disturbance recovery.
+ * The segments and every index are fixed up front from the row count and the row times (and the
+ * first row's output, the default initial setpoint). Every figure is accumulated in the order the
+ * rows come, so the result does not depend on how the rows are chunked: `trialMetrics` is the
+ * whole trace as one chunk.
+ */
+export class TrialMetricsStream {
+  /** Rows of the trial (the count the segments were fixed for). */
+  readonly rows: number;
+  private readonly time: RowTime;
+  private readonly trial: TrialSpec;
+  private readonly band: number;
+  private planned = false;
+  private steps: StepAcc[] = [];
+  private ramps: RampAcc[] = [];
+  private disturbances: DisturbanceAcc[] = [];
+  private firstChange = NaN;
+  /** Rows at which a setpoint step takes effect, ascending, no repeats. */
+  private jumps: number[] = [];
+  private readonly overall = new OverallAcc();
+  private nextA = 0;
+  private nextB = 0;
+  private betweenDone = false;
+
+  /**
+   * @param rows rows of the trial (all of them, as the first pass will see them)
+   * @param time time of row k, s
+   * @param requirements only `settlingBand` is read (fraction, default 0.02)
+   */
+  constructor(trial: TrialSpec, rows: number, time: RowTime, requirements: Requirements = {}) {
+    const band = requirements.settlingBand ?? DEFAULT_SETTLING_BAND;
+    if (!(band > 0)) throw new RangeError('settlingBand must be > 0');
+    this.band = band;
+    this.trial = trial;
+    this.rows = rows;
+    this.time = time;
+  }
+
+  /** The segments, from the events, once the first row's output (the default initial setpoint) is known. */
+  private plan(y0: number): void {
+    this.planned = true;
+    const n = this.rows;
+    const time = this.time;
+    const tEnd = n > 0 ? time(n - 1) : 0;
+    const events = this.trial.events;
+    // Samples at which a setpoint step takes effect: the interval ending there still had the old
+    // setpoint, so the trapezoid must not smear the jump over it.
+    const jumps = new Set<number>();
+    for (const ev of events) {
+      if (ev.kind !== 'setpoint') continue;
+      const i = firstIndexAtOrAfter(time, n, ev.at);
+      if (i > 0 && i < n) jumps.add(i);
+    }
+    this.jumps = [...jumps].sort((a, b) => a - b);
+    this.overall.start(n, n > 0 ? time(0) : 0, n > 0 ? time(n - 1) : 0, this.jumps);
+
+    // Setpoint level as scripted by the events, walked in order.
+    let level = this.trial.initialSetpoint ?? (n > 0 ? y0 : 0);
+    let ramp: { at: number; from: number; to: number; duration: number } | null = null;
+    const setpointAt = (at: number): number => {
+      if (ramp === null) return level;
+      if (at >= ramp.at + ramp.duration) return ramp.to;
+      return ramp.from + ((ramp.to - ramp.from) * (at - ramp.at)) / ramp.duration;
+    };
+    const lastDisturbance = new Map<string, number>();
+    const segment = (at: number, end: number): [number, number] => {
+      const i0 = Math.min(firstIndexAtOrAfter(time, n, at), n - 1);
+      return [i0, Math.max(lastIndexAtOrBefore(time, n, end), i0)];
+    };
+    for (let k = 0; k < events.length; k++) {
+      const ev = events[k];
+      const segEnd = nextEventTime(events, k, tEnd);
+      if (ev.kind === 'setpoint') {
+        const from = setpointAt(ev.at);
+        ramp = null;
+        level = ev.value;
+        const change = ev.value - from;
+        if (change !== 0 && n > 0 && ev.at <= tEnd) {
+          if (Number.isNaN(this.firstChange)) this.firstChange = change;
+          const [i0, i1] = segment(ev.at, segEnd);
+          this.steps.push(new StepAcc(ev.at, segEnd, from, ev.value, i0, i1, tailStart(time, i0, i1), time(i0), time(i1)));
+        }
+      } else if (ev.kind === 'setpoint_ramp') {
+        const from = setpointAt(ev.at);
+        ramp = { at: ev.at, from, to: ev.to, duration: ev.duration };
+        level = ev.to;
+        if (n > 0 && ev.at <= tEnd) {
+          const [i0, i1] = segment(ev.at, segEnd);
+          const tr = ev.at + ev.duration;
+          const j = lastIndexAtOrBefore(time, n, tr);
+          this.ramps.push(new RampAcc(ev.at, segEnd, from, ev.to, ev.duration, i0, i1, j, n, j >= 0 ? time(j) : NaN));
+        }
+      } else if (ev.kind === 'disturbance') {
+        const known = lastDisturbance.get(ev.name) ?? NaN;
+        lastDisturbance.set(ev.name, ev.value);
+        if (n > 0 && ev.at <= tEnd) {
+          const [i0, i1] = segment(ev.at, segEnd);
+          // The value before, when no earlier event set it: the trace's, at the row before the event.
+          const before = Number.isNaN(known) ? firstIndexAtOrAfter(time, n, ev.at) - 1 : -1;
+          this.disturbances.push(new DisturbanceAcc(ev.at, segEnd, ev.name, known, ev.value, setpointAt(ev.at), i0, i1, before));
+        }
+      }
+    }
+  }
+
+  /** The first pass: the next chunk of rows, in order (`first` = the trial row of its row 0). */
+  first(chunk: Trace, first: number): void {
+    if (first !== this.nextA) throw new RangeError(`rows must come in order: expected row ${this.nextA}, got ${first}`);
+    const len = Math.min(chunk.length, this.rows - first);
+    if (len <= 0) return;
+    if (!this.planned) this.plan(chunk.y[0]);
+    this.nextA = first + len;
+    this.overall.add(chunk, first, len);
+    for (const s of this.steps) s.addFirst(chunk, first, len);
+    for (const r of this.ramps) r.add(chunk, first, len);
+    for (const d of this.disturbances) d.addFirst(chunk, first, len);
+  }
+
+  /** The second pass: the same rows again, in order. */
+  second(chunk: Trace, first: number): void {
+    if (this.nextA < this.rows) throw new RangeError('the first pass has not seen every row');
+    if (!this.betweenDone) this.between();
+    if (first !== this.nextB) throw new RangeError(`rows must come in order: expected row ${this.nextB}, got ${first}`);
+    const len = Math.min(chunk.length, this.rows - first);
+    if (len <= 0) return;
+    this.nextB = first + len;
+    for (const s of this.steps) s.addSecond(chunk, first, len);
+    for (const d of this.disturbances) d.addSecond(chunk, first, len);
+  }
+
+  private between(): void {
+    this.betweenDone = true;
+    if (!this.planned) this.plan(0);
+    for (const s of this.steps) s.between(this.band);
+    for (const d of this.disturbances) d.between(this.band, this.firstChange);
+  }
+
+  /** The metrics, once both passes have seen every row. */
+  result(): TrialMetrics {
+    if (!this.betweenDone) this.between();
+    if (this.nextB < this.rows) throw new RangeError('the second pass has not seen every row');
+    return {
+      overall: this.overall.result(),
+      steps: this.steps.map((s) => s.result()),
+      ramps: this.ramps.map((r) => r.result()),
+      disturbances: this.disturbances.map((d) => d.result()),
+    };
+  }
+}
+
+/** Rows `lo..hi` (trial rows) of a chunk starting at `first` with `len` rows, as chunk indices [a, b]; a > b when none. */
+function within(first: number, len: number, lo: number, hi: number): [number, number] {
+  return [Math.max(lo, first) - first, Math.min(hi, first + len - 1) - first];
+}
+
+/**
+ * Instant after which |y - ref| stays <= tol over a segment, interpolated; relative to t0.
+ * 0 when never outside; NaN when still outside at its last row. Fed the rows in order.
+ */
+class LastExit {
+  private j = -1;
+  private yj = 0;
+  private tj = 0;
+  private yNext = 0;
+  private tNext = 0;
+  constructor(
+    private readonly ref: number,
+    private readonly tol: number,
+  ) {}
+
+  add(y: Float64Array, t: Float64Array, a: number, b: number, first: number): void {
+    const ref = this.ref;
+    const tol = this.tol;
+    for (let i = a; i <= b; i++) {
+      if (!(Math.abs(y[i] - ref) <= tol)) {
+        this.j = first + i;
+        this.yj = y[i];
+        this.tj = t[i];
+      } else if (first + i === this.j + 1) {
+        this.yNext = y[i];
+        this.tNext = t[i];
+      }
+    }
+  }
+
+  result(i1: number, t0: number): number {
+    const j = this.j;
+    if (j < 0) return 0;
+    if (j === i1) return NaN;
+    const ea = Math.abs(this.yj - this.ref) - this.tol;
+    const eb = Math.abs(this.yNext - this.ref) - this.tol;
+    const frac = Number.isFinite(ea) && ea - eb > 0 ? ea / (ea - eb) : 1;
+    return this.tj + frac * (this.tNext - this.tj) - t0;
+  }
+}
+
+/** Trapezoidal integrals of |e|, e^2 and (t - t0)|e| with e = ref - y, over a segment, fed in order. */
+class Integrals {
+  iae = 0;
+  ise = 0;
+  itae = 0;
+  private started = false;
+  private tPrev = 0;
+  private ePrev = 0;
+  constructor(
+    private readonly ref: number,
+    private readonly t0: number,
+  ) {}
+
+  add(y: Float64Array, t: Float64Array, a: number, b: number): void {
+    const ref = this.ref;
+    const t0 = this.t0;
+    let i = a;
+    if (i <= b && !this.started) {
+      this.started = true;
+      this.tPrev = t[i];
+      this.ePrev = Math.abs(ref - y[i]);
+      i++;
+    }
+    let tPrev = this.tPrev;
+    let ea = this.ePrev;
+    let iae = this.iae;
+    let ise = this.ise;
+    let itae = this.itae;
+    for (; i <= b; i++) {
+      const ti = t[i];
+      const h = ti - tPrev;
+      const eb = Math.abs(ref - y[i]);
+      iae += 0.5 * h * (ea + eb);
+      ise += 0.5 * h * (ea * ea + eb * eb);
+      itae += 0.5 * h * ((tPrev - t0) * ea + (ti - t0) * eb);
+      tPrev = ti;
+      ea = eb;
+    }
+    this.tPrev = tPrev;
+    this.ePrev = ea;
+    this.iae = iae;
+    this.ise = ise;
+    this.itae = itae;
+  }
+}
+
+/** Rise crossings and peak of a step's response normalised by one span, fed in order. */
+class Normalised {
+  t10 = NaN;
+  t90 = NaN;
+  /** Whether each level was reached (the crossing instant itself may be NaN). */
+  private reached10 = false;
+  private reached90 = false;
+  kPeak: number;
+  tPeak: number;
+  yPeak: number;
+  zPeak = -Infinity;
+  zLow = Infinity;
+  private zPrev = 0;
+  private tPrev = 0;
+  constructor(
+    private readonly from: number,
+    private readonly span: number,
+    private readonly i0: number,
+    t0: number,
+    y0: number,
+  ) {
+    this.kPeak = i0;
+    this.tPeak = t0;
+    this.yPeak = y0;
+  }
+
+  add(y: Float64Array, t: Float64Array, a: number, b: number, first: number): void {
+    const from = this.from;
+    const span = this.span;
+    for (let i = a; i <= b; i++) {
+      const zi = (y[i] - from) / span;
+      const ti = t[i];
+      if (first + i === this.i0) {
+        if (zi >= 0.1) {
+          this.t10 = ti;
+          this.reached10 = true;
+        }
+        if (zi >= 0.9) {
+          this.t90 = ti;
+          this.reached90 = true;
+        }
+      } else {
+        const za = this.zPrev;
+        if (!this.reached10 && zi >= 0.1) {
+          this.t10 = this.tPrev + ((0.1 - za) / (zi - za)) * (ti - this.tPrev);
+          this.reached10 = true;
+        }
+        if (!this.reached90 && zi >= 0.9) {
+          this.t90 = this.tPrev + ((0.9 - za) / (zi - za)) * (ti - this.tPrev);
+          this.reached90 = true;
+        }
+      }
+      if (zi > this.zPeak) {
+        this.zPeak = zi;
+        this.kPeak = first + i;
+        this.tPeak = ti;
+        this.yPeak = y[i];
+      }
+      if (zi < this.zLow) this.zLow = zi;
+      this.zPrev = zi;
+      this.tPrev = ti;
+    }
+  }
+}
+
+/** One setpoint step (module comment: final value, basis, rise, overshoot, settling). */
+class StepAcc {
+  private tailSum = 0;
+  private readonly integrals: Integrals;
+  private finalValue = NaN;
+  private response = NaN;
+  private finalBand = NaN;
+  private settle: LastExit | null = null;
+  private againstFinal: Normalised | null = null;
+  private againstSetpoint: Normalised | null = null;
+  private y0 = NaN;
+  private bandFraction = NaN;
+  constructor(
+    private readonly at: number,
+    private readonly end: number,
+    private readonly from: number,
+    private readonly to: number,
+    private readonly i0: number,
+    private readonly i1: number,
+    private readonly tail: number,
+    private readonly t0: number,
+    private readonly t1: number,
+  ) {
+    this.integrals = new Integrals(to, at);
+  }
+
+  addFirst(c: Trace, first: number, len: number): void {
+    const [a, b] = within(first, len, this.i0, this.i1);
+    if (a > b) return;
+    const y = c.y;
+    if (first + a === this.i0) this.y0 = y[a];
+    const [ta, tb] = within(first, len, this.tail, this.i1);
+    let sum = this.tailSum;
+    for (let i = ta; i <= tb; i++) sum += y[i];
+    this.tailSum = sum;
+    this.integrals.add(y, c.t, a, b);
+  }
+
+  between(bandFraction: number): void {
+    this.bandFraction = bandFraction;
+    this.finalValue = this.tailSum / (this.i1 - this.tail + 1);
+    this.response = this.finalValue - this.from;
+    this.finalBand = bandFraction * Math.abs(this.response);
+    if (this.response !== 0) this.settle = new LastExit(this.finalValue, this.finalBand);
+    this.againstFinal = new Normalised(this.from, this.finalValue - this.from, this.i0, this.t0, this.y0);
+    this.againstSetpoint = new Normalised(this.from, this.to - this.from, this.i0, this.t0, this.y0);
+  }
+
+  addSecond(c: Trace, first: number, len: number): void {
+    const [a, b] = within(first, len, this.i0, this.i1);
+    if (a > b) return;
+    this.settle?.add(c.y, c.t, a, b, first);
+    this.againstFinal!.add(c.y, c.t, a, b, first);
+    this.againstSetpoint!.add(c.y, c.t, a, b, first);
+  }
+
+  result(): StepMetrics {
+    const { at, end, from, to, finalValue, response, finalBand } = this;
+    const change = to - from;
+    const settleFinal = this.settle !== null ? this.settle.result(this.i1, at) : NaN;
+    const settled = settleFinal <= (1 - SETTLED_DWELL) * (this.t1 - at);
+    const basis: StepMetrics['basis'] = settled && response / change >= FOLLOW_MIN ? 'final' : 'setpoint';
+    const target = basis === 'final' ? finalValue : to;
+    const z = basis === 'final' ? this.againstFinal! : this.againstSetpoint!;
+    // Never 90 % of the way: no overshoot to speak of (NaN, "not reached"), not a silent 0. A
+    // settled output whose largest value lies in the window its final value is averaged over is
+    // still creeping up to it (a monotone response): above the mean by a fraction of the band,
+    // which is no overshoot (python-control, taking the last sample as the final value, gives 0).
+    // Excursions below ROUNDING of the change are floating-point noise on a flat tail, not overshoot.
+    const creeping = basis === 'final' && z.kPeak >= this.tail;
+    const zPeak = z.zPeak;
+    const overshootPct = Number.isFinite(zPeak) && !Number.isNaN(z.t90) ? (creeping || zPeak - 1 <= ROUNDING ? 0 : 100 * (zPeak - 1)) : NaN;
+    const undershootPct = Number.isFinite(z.zLow) ? Math.max(0, -100 * z.zLow) : NaN;
+    return {
+      at,
+      end,
+      from,
+      to,
+      change,
+      finalValue,
+      settled,
+      basis,
+      target,
+      riseTime: z.t90 - z.t10,
+      overshootPct,
+      undershootPct,
+      peakTime: z.tPeak - at,
+      peakValue: z.yPeak,
+      settlingTime: basis === 'final' ? settleFinal : NaN,
+      band: basis === 'final' ? finalBand : this.bandFraction * Math.abs(change),
+      steadyStateError: to - finalValue,
+      iae: this.integrals.iae,
+      ise: this.integrals.ise,
+      itae: this.integrals.itae,
+    };
+  }
+}
+
+/** One setpoint ramp. */
+class RampAcc {
+  private maxAbsError = 0;
+  private iae = 0;
+  private ePrev = 0;
+  private tPrev = 0;
+  private yj = NaN;
+  private yNext = NaN;
+  private tNext = NaN;
+  constructor(
+    private readonly at: number,
+    private readonly end: number,
+    private readonly from: number,
+    private readonly to: number,
+    private readonly duration: number,
+    private readonly i0: number,
+    private readonly i1: number,
+    /** Last row at or before the ramp's end instant (-1: none), the rows, and that row's time. */
+    private readonly j: number,
+    private readonly rows: number,
+    private readonly tj: number,
+  ) {}
+
+  private ref(time: number): number {
+    const { at, duration, from, to } = this;
+    return time >= at + duration || duration <= 0 ? to : from + ((to - from) * (time - at)) / duration;
+  }
+
+  add(c: Trace, first: number, len: number): void {
+    const y = c.y;
+    const t = c.t;
+    const j = this.j - first;
+    if (j >= 0 && j < len) this.yj = y[j];
+    if (j + 1 >= 0 && j + 1 < len) {
+      this.yNext = y[j + 1];
+      this.tNext = t[j + 1];
+    }
+    const [a, b] = within(first, len, this.i0, this.i1);
+    for (let i = a; i <= b; i++) {
+      const e = Math.abs(this.ref(t[i]) - y[i]);
+      if (!(e <= this.maxAbsError)) this.maxAbsError = e;
+      if (first + i > this.i0) this.iae += 0.5 * (t[i] - this.tPrev) * (e + this.ePrev);
+      this.ePrev = e;
+      this.tPrev = t[i];
+    }
+  }
+
+  result(): RampMetrics {
+    const { at, end, from, to, duration, j } = this;
+    // Output at the ramp end, interpolated between the bracketing samples.
+    const tr = at + duration;
+    let endError = NaN;
+    if (j >= 0 && Math.abs(this.tj - tr) <= timeEps(tr)) endError = to - this.yj;
+    else if (j >= 0 && j + 1 < this.rows) {
+      const f = (tr - this.tj) / (this.tNext - this.tj);
+      endError = to - (this.yj + f * (this.yNext - this.yj));
+    }
+    return { at, end, from, to, duration, endError, maxAbsError: this.maxAbsError, iae: this.iae };
+  }
+}
+
+/** One disturbance step. */
+class DisturbanceAcc {
+  private kPeak: number;
+  private peakAbs = -Infinity;
+  private yPeak = NaN;
+  private tPeak = NaN;
+  private readonly integrals: Integrals;
+  private tol = NaN;
+  private recovery: LastExit | null = null;
+  constructor(
+    private readonly at: number,
+    private readonly end: number,
+    private readonly name: string,
+    private from: number,
+    private readonly to: number,
+    private readonly r0: number,
+    private readonly i0: number,
+    private readonly i1: number,
+    /** Row whose disturbance value is the value before (-1: known already). */
+    private readonly before: number,
+  ) {
+    this.kPeak = i0;
+    this.integrals = new Integrals(r0, at);
+  }
+
+  addFirst(c: Trace, first: number, len: number): void {
+    const y = c.y;
+    const t = c.t;
+    const k = this.before - first;
+    if (this.before >= 0 && k >= 0 && k < len) {
+      const col = c.disturbanceNames.indexOf(this.name);
+      if (col >= 0) this.from = c.d[col][k];
+    }
+    const [a, b] = within(first, len, this.i0, this.i1);
+    if (a > b) return;
+    if (first + a === this.i0) {
+      this.yPeak = y[a];
+      this.tPeak = t[a];
+    }
+    const r0 = this.r0;
+    for (let i = a; i <= b; i++) {
+      const dev = Math.abs(y[i] - r0);
+      if (dev > this.peakAbs) {
+        this.peakAbs = dev;
+        this.kPeak = first + i;
+        this.yPeak = y[i];
+        this.tPeak = t[i];
+      }
+    }
+    this.integrals.add(y, t, a, b);
+  }
+
+  between(bandFraction: number, firstChange: number): void {
+    const peakDeviation = this.yPeak - this.r0;
+    if (!Number.isNaN(firstChange)) this.tol = bandFraction * Math.abs(firstChange);
+    else if (this.r0 !== 0) this.tol = bandFraction * Math.abs(this.r0);
+    else this.tol = bandFraction * Math.abs(peakDeviation);
+    this.recovery = new LastExit(this.r0, this.tol);
+  }
+
+  addSecond(c: Trace, first: number, len: number): void {
+    const [a, b] = within(first, len, this.i0, this.i1);
+    if (a <= b) this.recovery!.add(c.y, c.t, a, b, first);
+  }
+
+  result(): DisturbanceMetrics {
+    return {
+      at: this.at,
+      end: this.end,
+      name: this.name,
+      from: this.from,
+      to: this.to,
+      setpoint: this.r0,
+      peakDeviation: this.yPeak - this.r0,
+      peakTime: this.tPeak - this.at,
+      recoveryTime: this.recovery!.result(this.i1, this.at),
+      band: this.tol,
+      iae: this.integrals.iae,
+      ise: this.integrals.ise,
+      itae: this.integrals.itae,
+    };
+  }
+}
+
+/** The whole-trial figures, fed in order. */
+class OverallAcc {
+  private t0 = 0;
+  private duration = 0;
+  private jumps: readonly number[] = [];
+  private nextJump = 0;
+  private iae = 0;
+  private ise = 0;
+  private itae = 0;
+  private tv = 0;
+  private satTime = 0;
+  private maxAbs = NaN;
+  private maxU = NaN;
+  private minU = NaN;
+  private tPrev = 0;
+  private uPrev = 0;
+  private rPrev = 0;
+  private satPrev = 0;
+  private ea = 0;
+
+  start(rows: number, t0: number, tLast: number, jumps: readonly number[]): void {
+    this.t0 = t0;
+    // Worked out before the loop: code compiled while the loop runs (on-stack replacement) would
+    // otherwise reach a comparison after it with no type feedback and be thrown away on every call.
+    this.duration = rows > 0 ? tLast - t0 : 0;
+    this.jumps = jumps;
+  }
+
+  add(c: Trace, first: number, len: number): void {
+    // Channels in locals: one pass over every row of every case of a sweep.
+    const t = c.t;
+    const u = c.u;
+    const r = c.r;
+    const y = c.y;
+    const sat = c.sat;
+    const t0 = this.t0;
+    let i = 0;
+    if (first === 0) {
+      this.maxAbs = Math.abs(u[0]);
+      this.maxU = u[0];
+      this.minU = u[0];
+      this.tPrev = t[0];
+      this.uPrev = u[0];
+      this.rPrev = r[0];
+      this.satPrev = sat[0];
+      this.ea = Math.abs(r[0] - y[0]);
+      i = 1;
+    }
+    let iae = this.iae;
+    let ise = this.ise;
+    let itae = this.itae;
+    let tv = this.tv;
+    let satTime = this.satTime;
+    let maxAbs = this.maxAbs;
+    let maxU = this.maxU;
+    let minU = this.minU;
+    let tPrev = this.tPrev;
+    let uPrev = this.uPrev;
+    let rPrev = this.rPrev;
+    let satPrev = this.satPrev;
+    let ea = this.ea;
+    const jumps = this.jumps;
+    let next = this.nextJump;
+    let jumpRow = next < jumps.length ? jumps[next] - first : -1;
+    for (; i < len; i++) {
+      const ti = t[i];
+      const h = ti - tPrev;
+      // Left limit of the setpoint at t[i]: the old level when a step takes effect at row i.
+      const ri = r[i];
+      let rb = ri;
+      if (i === jumpRow) {
+        rb = rPrev;
+        next++;
+        jumpRow = next < jumps.length ? jumps[next] - first : -1;
+      }
+      const yi = y[i];
+      const eb = Math.abs(rb - yi);
+      iae += 0.5 * h * (ea + eb);
+      ise += 0.5 * h * (ea * ea + eb * eb);
+      itae += 0.5 * h * ((tPrev - t0) * ea + (ti - t0) * eb);
+      const ui = u[i];
+      tv += Math.abs(ui - uPrev);
+      if (satPrev !== 0) satTime += h;
+      const a = Math.abs(ui);
+      if (!(a <= maxAbs)) maxAbs = a;
+      if (!(ui <= maxU)) maxU = ui;
+      if (!(ui >= minU)) minU = ui;
+      ea = Math.abs(ri - yi);
+      tPrev = ti;
+      uPrev = ui;
+      rPrev = ri;
+      satPrev = sat[i];
+    }
+    this.nextJump = next;
+    this.iae = iae;
+    this.ise = ise;
+    this.itae = itae;
+    this.tv = tv;
+    this.satTime = satTime;
+    this.maxAbs = maxAbs;
+    this.maxU = maxU;
+    this.minU = minU;
+    this.tPrev = tPrev;
+    this.uPrev = uPrev;
+    this.rPrev = rPrev;
+    this.satPrev = satPrev;
+    this.ea = ea;
+  }
+
+  result(): OverallMetrics {
+    return {
+      duration: this.duration,
+      iae: this.iae,
+      ise: this.ise,
+      itae: this.itae,
+      uTotalVariation: this.tv,
+      saturatedTime: this.satTime,
+      maxAbsOutput: this.maxAbs,
+      maxOutput: this.maxU,
+      minOutput: this.minU,
+    };
+  }
+}
+
 // ---------------------------------------------------------------- segments
 
 function nextEventTime(events: readonly TrialEvent[], k: number, tEnd: number): number {
@@ -351,295 +977,36 @@ function timeEps(time: number): number {
   return 1e-9 * Math.max(1, Math.abs(time));
 }
 
-/** First index with t[i] >= time (within rounding), or n. */
-function firstIndexAtOrAfter(t: Float64Array, n: number, time: number): number {
+/** First index with t(i) >= time (within rounding), or n. */
+function firstIndexAtOrAfter(t: RowTime, n: number, time: number): number {
   const eps = timeEps(time);
   let lo = 0;
   let hi = n;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
-    if (t[mid] < time - eps) lo = mid + 1;
+    if (t(mid) < time - eps) lo = mid + 1;
     else hi = mid;
   }
   return lo;
 }
 
-/** Last index with t[i] <= time (within rounding), or -1. */
-function lastIndexAtOrBefore(t: Float64Array, n: number, time: number): number {
+/** Last index with t(i) <= time (within rounding), or -1. */
+function lastIndexAtOrBefore(t: RowTime, n: number, time: number): number {
   const eps = timeEps(time);
   let lo = 0;
   let hi = n;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
-    if (t[mid] <= time + eps) lo = mid + 1;
+    if (t(mid) <= time + eps) lo = mid + 1;
     else hi = mid;
   }
   return lo - 1;
 }
 
-/** Trapezoidal integrals of |e|, e^2 and (t - t0)|e| with e = ref - y[i], over samples i0..i1. */
-function segmentIntegrals(trace: Trace, i0: number, i1: number, ref: number, t0: number): [number, number, number] {
-  const t = trace.t;
-  const y = trace.y;
-  let iae = 0;
-  let ise = 0;
-  let itae = 0;
-  for (let i = i0 + 1; i <= i1; i++) {
-    const h = t[i] - t[i - 1];
-    const ea = Math.abs(ref - y[i - 1]);
-    const eb = Math.abs(ref - y[i]);
-    iae += 0.5 * h * (ea + eb);
-    ise += 0.5 * h * (ea * ea + eb * eb);
-    itae += 0.5 * h * ((t[i - 1] - t0) * ea + (t[i] - t0) * eb);
-  }
-  return [iae, ise, itae];
-}
-
-/**
- * Instant after which |y - ref| stays <= tol over samples i0..i1, interpolated; relative to t0.
- * 0 when never outside; NaN when still outside at i1.
- */
-function lastExitTime(trace: Trace, i0: number, i1: number, ref: number, tol: number, t0: number): number {
-  const t = trace.t;
-  const y = trace.y;
-  let j = -1;
-  for (let i = i1; i >= i0; i--) {
-    if (!(Math.abs(y[i] - ref) <= tol)) {
-      j = i;
-      break;
-    }
-  }
-  if (j < 0) return 0;
-  if (j === i1) return NaN;
-  const ea = Math.abs(y[j] - ref) - tol;
-  const eb = Math.abs(y[j + 1] - ref) - tol;
-  const frac = Number.isFinite(ea) && ea - eb > 0 ? ea / (ea - eb) : 1;
-  return t[j] + frac * (t[j + 1] - t[j]) - t0;
-}
-
-function stepMetrics(trace: Trace, at: number, end: number, from: number, to: number, bandFraction: number): StepMetrics {
-  const t = trace.t;
-  const y = trace.y;
-  const n = trace.length;
-  const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
-  const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
-  const change = to - from;
-
-  // Final value and whether the segment got there (module comment: settled, following the step).
-  const finalValue = tailMean(trace, i0, i1);
-  const response = finalValue - from;
-  const finalBand = bandFraction * Math.abs(response);
-  const settleFinal = response !== 0 ? lastExitTime(trace, i0, i1, finalValue, finalBand, at) : NaN;
-  const settled = settleFinal <= (1 - SETTLED_DWELL) * (t[i1] - at);
-  const basis: StepMetrics['basis'] = settled && response / change >= FOLLOW_MIN ? 'final' : 'setpoint';
-  const target = basis === 'final' ? finalValue : to;
-  const span = target - from;
-
-  // Normalised response z = (y - from)/span: 0 at the start, 1 at the target, whatever the sign.
-  const z = (i: number): number => (y[i] - from) / span;
-  const crossing = (level: number): number => {
-    if (z(i0) >= level) return t[i0];
-    for (let i = i0 + 1; i <= i1; i++) {
-      const zb = z(i);
-      if (zb >= level) {
-        const za = z(i - 1);
-        return t[i - 1] + ((level - za) / (zb - za)) * (t[i] - t[i - 1]);
-      }
-    }
-    return NaN;
-  };
-  const t10 = crossing(0.1);
-  const t90 = crossing(0.9);
-
-  let kPeak = i0;
-  let zPeak = -Infinity;
-  let zLow = Infinity;
-  for (let i = i0; i <= i1; i++) {
-    const zi = z(i);
-    if (zi > zPeak) {
-      zPeak = zi;
-      kPeak = i;
-    }
-    if (zi < zLow) zLow = zi;
-  }
-  // Never 90 % of the way: no overshoot to speak of (NaN, "not reached"), not a silent 0. A
-  // settled output whose largest value lies in the window its final value is averaged over is
-  // still creeping up to it (a monotone response): above the mean by a fraction of the band,
-  // which is no overshoot (python-control, taking the last sample as the final value, gives 0).
-  // Excursions below ROUNDING of the change are floating-point noise on a flat tail, not overshoot.
-  const creeping = basis === 'final' && kPeak >= tailStart(trace, i0, i1);
-  const overshootPct = Number.isFinite(zPeak) && !Number.isNaN(t90) ? (creeping || zPeak - 1 <= ROUNDING ? 0 : 100 * (zPeak - 1)) : NaN;
-  const undershootPct = Number.isFinite(zLow) ? Math.max(0, -100 * zLow) : NaN;
-
-  const [iae, ise, itae] = segmentIntegrals(trace, i0, i1, to, at);
-  return {
-    at,
-    end,
-    from,
-    to,
-    change,
-    finalValue,
-    settled,
-    basis,
-    target,
-    riseTime: t90 - t10,
-    overshootPct,
-    undershootPct,
-    peakTime: t[kPeak] - at,
-    peakValue: y[kPeak],
-    settlingTime: basis === 'final' ? settleFinal : NaN,
-    band: basis === 'final' ? finalBand : bandFraction * Math.abs(change),
-    steadyStateError: to - finalValue,
-    iae,
-    ise,
-    itae,
-  };
-}
-
-/** Mean of y over the last STEADY_FRACTION of the segment's duration, at least STEADY_MIN_SAMPLES: the final value. */
-function tailMean(trace: Trace, i0: number, i1: number): number {
-  const j = tailStart(trace, i0, i1);
-  let sum = 0;
-  for (let i = j; i <= i1; i++) sum += trace.y[i];
-  return sum / (i1 - j + 1);
-}
-
-/** First sample of the window `tailMean` averages. */
-function tailStart(trace: Trace, i0: number, i1: number): number {
-  const t = trace.t;
-  const from = t[i1] - STEADY_FRACTION * (t[i1] - t[i0]);
+/** First row of the window the final value averages: the last STEADY_FRACTION of the segment's duration, at least STEADY_MIN_SAMPLES. */
+function tailStart(t: RowTime, i0: number, i1: number): number {
+  const from = t(i1) - STEADY_FRACTION * (t(i1) - t(i0));
   let j = i1;
-  while (j > i0 && (t[j - 1] >= from || i1 - j + 1 < STEADY_MIN_SAMPLES)) j--;
+  while (j > i0 && (t(j - 1) >= from || i1 - j + 1 < STEADY_MIN_SAMPLES)) j--;
   return j;
-}
-
-function rampMetrics(trace: Trace, at: number, end: number, from: number, to: number, duration: number): RampMetrics {
-  const t = trace.t;
-  const y = trace.y;
-  const n = trace.length;
-  const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
-  const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
-  const ref = (time: number): number =>
-    time >= at + duration || duration <= 0 ? to : from + ((to - from) * (time - at)) / duration;
-  let maxAbsError = 0;
-  let iae = 0;
-  for (let i = i0; i <= i1; i++) {
-    const e = Math.abs(ref(t[i]) - y[i]);
-    if (!(e <= maxAbsError)) maxAbsError = e;
-    if (i > i0) iae += 0.5 * (t[i] - t[i - 1]) * (e + Math.abs(ref(t[i - 1]) - y[i - 1]));
-  }
-  // Output at the ramp end, interpolated between the bracketing samples.
-  const tr = at + duration;
-  let endError = NaN;
-  const j = lastIndexAtOrBefore(t, n, tr);
-  if (j >= 0 && Math.abs(t[j] - tr) <= timeEps(tr)) endError = to - y[j];
-  else if (j >= 0 && j + 1 < n) {
-    const f = (tr - t[j]) / (t[j + 1] - t[j]);
-    endError = to - (y[j] + f * (y[j + 1] - y[j]));
-  }
-  return { at, end, from, to, duration, endError, maxAbsError, iae };
-}
-
-function disturbanceMetrics(
-  trace: Trace,
-  ev: { at: number; name: string; value: number },
-  end: number,
-  r0: number,
-  from: number,
-  bandFraction: number,
-  firstChange: number,
-): DisturbanceMetrics {
-  const t = trace.t;
-  const y = trace.y;
-  const n = trace.length;
-  const at = ev.at;
-  const i0 = Math.min(firstIndexAtOrAfter(t, n, at), n - 1);
-  const i1 = Math.max(lastIndexAtOrBefore(t, n, end), i0);
-  let kPeak = i0;
-  let peakAbs = -Infinity;
-  for (let i = i0; i <= i1; i++) {
-    const dev = Math.abs(y[i] - r0);
-    if (dev > peakAbs) {
-      peakAbs = dev;
-      kPeak = i;
-    }
-  }
-  const peakDeviation = y[kPeak] - r0;
-  let tol: number;
-  if (!Number.isNaN(firstChange)) tol = bandFraction * Math.abs(firstChange);
-  else if (r0 !== 0) tol = bandFraction * Math.abs(r0);
-  else tol = bandFraction * Math.abs(peakDeviation);
-  const [iae, ise, itae] = segmentIntegrals(trace, i0, i1, r0, at);
-  return {
-    at,
-    end,
-    name: ev.name,
-    from,
-    to: ev.value,
-    setpoint: r0,
-    peakDeviation,
-    peakTime: t[kPeak] - at,
-    recoveryTime: lastExitTime(trace, i0, i1, r0, tol, at),
-    band: tol,
-    iae,
-    ise,
-    itae,
-  };
-}
-
-function overallMetrics(trace: Trace, jumpAt: Uint8Array): OverallMetrics {
-  // Channels in locals: one pass over every row of every case of a sweep.
-  const n = trace.length;
-  const t = trace.t;
-  const u = trace.u;
-  const r = trace.r;
-  const y = trace.y;
-  const sat = trace.sat;
-  let iae = 0;
-  let ise = 0;
-  let itae = 0;
-  let tv = 0;
-  let satTime = 0;
-  let maxAbs = n > 0 ? Math.abs(u[0]) : NaN;
-  let maxU = n > 0 ? u[0] : NaN;
-  let minU = n > 0 ? u[0] : NaN;
-  const t0 = n > 0 ? t[0] : 0;
-  // Worked out before the loop: code compiled while the loop runs (on-stack replacement) would
-  // otherwise reach a comparison after it with no type feedback and be thrown away on every call.
-  const duration = n > 0 ? t[n - 1] - t0 : 0;
-  let tPrev = t0;
-  let uPrev = n > 0 ? u[0] : 0;
-  let ea = n > 0 ? Math.abs(r[0] - y[0]) : 0;
-  for (let i = 1; i < n; i++) {
-    const ti = t[i];
-    const h = ti - tPrev;
-    // Left limit of the setpoint at t[i]: the old level when a step takes effect at sample i.
-    const rb = jumpAt[i] !== 0 ? r[i - 1] : r[i];
-    const yi = y[i];
-    const eb = Math.abs(rb - yi);
-    iae += 0.5 * h * (ea + eb);
-    ise += 0.5 * h * (ea * ea + eb * eb);
-    itae += 0.5 * h * ((tPrev - t0) * ea + (ti - t0) * eb);
-    const ui = u[i];
-    tv += Math.abs(ui - uPrev);
-    if (sat[i - 1] !== 0) satTime += h;
-    const a = Math.abs(ui);
-    if (!(a <= maxAbs)) maxAbs = a;
-    if (!(ui <= maxU)) maxU = ui;
-    if (!(ui >= minU)) minU = ui;
-    ea = Math.abs(r[i] - yi);
-    tPrev = ti;
-    uPrev = ui;
-  }
-  return {
-    duration,
-    iae,
-    ise,
-    itae,
-    uTotalVariation: tv,
-    saturatedTime: satTime,
-    maxAbsOutput: maxAbs,
-    maxOutput: maxU,
-    minOutput: minU,
-  };
 }

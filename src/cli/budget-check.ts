@@ -4,8 +4,9 @@
  * option to blame, exit 2. The core works the budget out (sim/plant-budget.ts).
  */
 import { compilePlant } from '../model/index.js';
-import type { PlantDynamics, PlantSpec } from '../model/types.js';
-import { DEFAULT_BUDGET, plantBudget, type BudgetRefusal, type PlantBudgetOptions } from '../sim/index.js';
+import type { PlantSpec } from '../model/types.js';
+import { DEFAULT_BUDGET, plantBudget, type BudgetedLoop, type BudgetRefusal, type PlantBudgetOptions } from '../sim/index.js';
+import { buildLoop, type BuiltLoop } from '../loop/index.js';
 import { UserError } from './errors.js';
 import type { Io } from './io.js';
 
@@ -30,28 +31,35 @@ export function refusalLine(r: BudgetRefusal): string {
 }
 
 /**
- * Refuse (UserError, exit 2, one line per limit on stderr) the runs of `plant` when they exceed
- * the budget, or, with `noLimits`, what cannot be allocated at all.
+ * Refuse (UserError, exit 2, one line per limit on stderr) the runs of `plant`'s built loop when
+ * they exceed the budget, or, with `noLimits`, what cannot be allocated at all.
  */
 export function enforceBudget(
   plant: PlantSpec,
-  dynamics: PlantDynamics,
+  loop: BudgetedLoop,
   source: { text: string; file: string },
   io: Io,
   options: PlantBudgetOptions & { noLimits: boolean },
 ): void {
-  const refusals = plantBudget(plant, dynamics, source.text, source.file, { ...options, limits: options.noLimits ? null : DEFAULT_BUDGET });
+  const refusals = plantBudget(plant, loop, source.text, source.file, { ...options, limits: options.noLimits ? null : DEFAULT_BUDGET });
   if (refusals.length === 0) return;
   for (const r of refusals) io.err(`${refusalLine(r)}\n`);
   throw new UserError('', UserError.USAGE);
 }
 
-/** `enforceBudget` on a file just loaded (compiles it for the state count and the step choice). */
+/**
+ * `enforceBudget` on a file just loaded: compiles it and builds its loop (loop/'s buildLoop, the
+ * file's controller as written: resolving a structure's model-derived values is analysis the
+ * budget must come before) for the state count and the step the run takes. @returns that loop,
+ * whose compiled plant the caller runs (compiled once).
+ */
 export function enforceFileBudget(
   loaded: { plant: PlantSpec; text: string },
   file: string,
   io: Io,
   options: PlantBudgetOptions & { noLimits: boolean },
-): void {
-  enforceBudget(loaded.plant, compilePlant(loaded.plant), { text: loaded.text, file }, io, options);
+): BuiltLoop {
+  const built = buildLoop(loaded.plant, { dynamics: compilePlant(loaded.plant) });
+  enforceBudget(loaded.plant, built, { text: loaded.text, file }, io, options);
+  return built;
 }

@@ -19,9 +19,10 @@ import {
   timeFigures as trialTimeFigures,
   type Figure,
   type FrequencySource,
+  type BuiltLoop,
   type RequirementRow,
 } from '../loop/index.js';
-import { plantUnits } from '../model/index.js';
+import { compilePlant, plantUnits } from '../model/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import {
   gainPointFigures,
@@ -60,6 +61,8 @@ export interface PlantCheck {
 export interface CheckOptions {
   /** Also measure every frequency-domain figure, asked for or not (default false). */
   allFigures?: boolean;
+  /** The file's loop when built already (`buildLoop(plant, ...)`, e.g. for the budget): its compiled plant is used. */
+  loop?: BuiltLoop;
 }
 
 /** Where one case's frequency-domain figures come from, with the controller's starting gains. */
@@ -99,7 +102,9 @@ export function checkPlant(plant: PlantSpec, options: CheckOptions = {}): PlantC
   const gains = plant.loop.controller.gains;
   // The linear model and its frequency response are only prepared when something needs them.
   const needsContext = worst || wantedFreq.size > 0;
-  const base: TuningContext | null = needsContext ? tuningContext(plant) : null;
+  const built = options.loop;
+  const dynamics = built?.dynamics ?? compilePlant(plant);
+  const base: TuningContext | null = needsContext ? tuningContext(plant, dynamics) : null;
   if (wantedFreq.size > 0 && plant.loop.trial.events.some((e) => e.kind === 'gains')) {
     notes.push('frequency-domain figures use the controller\'s starting gains (the trial changes them later)');
   }
@@ -129,7 +134,10 @@ export function checkPlant(plant: PlantSpec, options: CheckOptions = {}): PlantC
       const spec = { ...c.ctx.spec, loop: { ...c.ctx.spec.loop, controller: resolved } };
       c.ctx = { ...c.ctx, spec };
     }
-    const sim = c.ctx === null ? simulatePlant(plant) : simulatePlant(c.ctx.spec, c.ctx.dynamics);
+    const sim =
+      c.ctx === null || (c.ctx.spec === plant && c.ctx.dynamics === dynamics)
+        ? simulatePlant(plant, dynamics, built)
+        : simulatePlant(c.ctx.spec, c.ctx.dynamics);
     if (nominal === null) nominal = sim;
     const figures = trialTimeFigures(sim.result, sim.requirements, multipleSteps);
     if (c.ctx !== null && wantedFreq.size > 0) {

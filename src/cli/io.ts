@@ -2,9 +2,9 @@
  * The CLI's only window on the outside world. Commands receive an `Io` and never touch
  * `process` or `fs` themselves, so tests drive `main()` in-process with a fake.
  */
-import { spawnSync } from 'node:child_process';
 import { existsSync, lstatSync } from 'node:fs';
 import { findEncodingProblem } from '../num/index.js';
+import { childProcess } from './builtin.js';
 import { readBytesBounded } from './read-bounded.js';
 import { writeFileKeeping, type WriteOptions, type WriteOutcome } from './write-file.js';
 
@@ -53,7 +53,7 @@ export function runGit(args: readonly string[], cwd: string): GitResult {
   // Answer as `git -C` does for a missing folder (spawning there would fail as if git were missing).
   if (!existsSync(cwd)) return { status: 128, stdout: new Uint8Array(0), stderr: `fatal: cannot change to '${cwd}': No such file or directory\n` };
   // LC_ALL=C: git's messages are matched in English; GIT_PAGER off: never wait on a pager.
-  const r = spawnSync('git', [...args], {
+  const r = childProcess().spawnSync('git', [...args], {
     cwd,
     env: { ...process.env, LC_ALL: 'C', GIT_PAGER: 'cat', GIT_TERMINAL_PROMPT: '0' },
     maxBuffer: 64 * 1024 * 1024,

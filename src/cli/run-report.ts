@@ -10,6 +10,7 @@ import { NO_UNITS, type PlantUnits } from '../model/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { TrialResult } from '../sim/types.js';
 import type { TweakGuide } from '../tune/index.js';
+import type { SimulatedTrial } from './simulate-plant.js';
 
 /** Everything `run` computed, before printing. */
 export interface RunReport {
@@ -21,6 +22,8 @@ export interface RunReport {
   warnings: string[];
   /** The tweak guide (run --tweak), else null. */
   tweak: TweakGuide | null;
+  /** Every row again when `result.trace` holds only the kept rows of a streamed trial (simulate-plant.ts); else null. */
+  replay?: SimulatedTrial['replay'];
 }
 
 /** One figure of `run --json`'s `metrics`: its name, value (NaN: not reached / not settled / no step), unit. */

@@ -8,7 +8,6 @@
  * same file system), are flushed to disk, given the target's mode and owner, and renamed over
  * it, so a reader (or a crash, or a SIGKILL) sees the old file or the whole new one.
  */
-import { randomBytes } from 'node:crypto';
 import {
   accessSync,
   closeSync,
@@ -231,9 +230,14 @@ function writeAt(fd: number, bytes: Uint8Array, at: number): number {
 /** Longest file name part taken into a temporary name (names are limited to 255 bytes). */
 const TEMP_BASE_MAX = 200;
 
-/** `.NAME.PID.HEX.tmp`, the name every looprig version has used for its temporary files. */
+/**
+ * `.NAME.PID.HEX.tmp`, the name every looprig version has used for its temporary files. HEX is
+ * 8 random hex digits: only to keep two writers of one process apart (the file is created
+ * exclusively), so Math.random does, and node:crypto is not loaded at every start for it.
+ */
 function tempName(base: string, pid: number): string {
-  return `.${base.slice(0, TEMP_BASE_MAX)}.${pid}.${randomBytes(4).toString('hex')}.tmp`;
+  const hex = Math.floor(Math.random() * 0x100000000).toString(16).padStart(8, '0');
+  return `.${base.slice(0, TEMP_BASE_MAX)}.${pid}.${hex}.tmp`;
 }
 
 /**

@@ -49,6 +49,8 @@ export interface DiagnoseOptions {
   simulate?: boolean;
   /** Operating point (output value) overriding the trial's first setpoint. */
   operatingPoint?: number;
+  /** The plant compiled already (`compilePlant(spec)`, e.g. for the budget). */
+  dynamics?: PlantDynamics;
 }
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -105,7 +107,7 @@ export function diagnosePlant(spec: PlantSpec, options: DiagnoseOptions = {}): D
   const placeholder: OperatingPoint = { setpoint: NaN, source: 'initial_output', found: false, state: {}, input: null, message: null };
   let dyn: PlantDynamics;
   try {
-    dyn = compilePlant(spec);
+    dyn = options.dynamics ?? compilePlant(spec);
   } catch (e) {
     const d = emptyDiagnosis(spec, placeholder);
     d.flags.push({

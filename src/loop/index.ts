@@ -15,3 +15,5 @@ export { worstPointResponse, pointResponseOf, notPlainPidLoop } from './worst-po
 export type { WorstPointResponse } from './worst-point-response.js';
 export { CHECKED_REQUIREMENTS, timeFigures, frequencyFigures, requirementRow, requirementUnit, requirementUnitOf, askedRequirements, meetsLimit } from './requirement-rows.js';
 export type { LimitKind, RequirementInfo, Figure, RequirementStatus, RequirementRow, StructureFigures, FrequencySource } from './requirement-rows.js';
+export { streamedTrial, STREAM_ROWS } from './streamed-trial.js';
+export type { StreamableLoop, StreamedTrial, StreamedTrialOptions } from './streamed-trial.js';

@@ -12,14 +12,11 @@
 import { MATH_HELPERS } from '../model/index.js';
 import { Rng } from '../num/index.js';
 import { BATCH_CHANNELS, BATCH_FIELDS, BATCH_STATE, batchWidthFor, batchWidths, generateBatch, liftedSources, type BatchShape } from './batch-stepper.js';
-import { lagCoefficients, valveInput, valveOf } from './actuator.js';
-import { loopStep } from './choose-step.js';
-import { delayInSteps, usableDelay } from './delay-line.js';
-import { generateOutput } from './generate-stepper.js';
+import { lagCoefficients, valveOf } from './actuator.js';
+import { engineStart } from './engine-start.js';
 import { eventSchedule, SAMPLE_EPS as TIME_EPS, type EventSchedule } from './event-schedule.js';
 import { runTrial, type TrialOptions } from './run-trial.js';
 import { Sensor } from './sensor.js';
-import { loopStart } from './start-state.js';
 import { createTrace } from './trace.js';
 import type { DiscreteController, LoopConfig, PidLaw, PlantDynamics, Trace, TrialResult, TrialSpec } from './types.js';
 
@@ -227,25 +224,15 @@ function prepare(
   storage: Trace | undefined,
 ): Prepared | string {
   const { plant, loop } = m;
-  // The checks and start-up of Simulation's constructor, in the same order.
+  // Simulation's start-up (engine-start.ts): the same checks, start, step and first output.
   const ts = loop.sampleTime;
-  if (!(ts > 0) || !Number.isFinite(ts)) throw new RangeError('sampleTime must be positive and finite');
-  if (!(loop.integrator in { rk4: 1, heun: 1, euler: 1 })) throw new RangeError(`unknown integrator ${loop.integrator}`);
-  if (plant.x0.length !== plant.nx) throw new TypeError('x0 length must equal nx');
-  const start = loopStart(plant, loop, trial.initialOutput, trial.start);
-  const uStart = start.uStart;
-  // What the plant receives at the start: the valve's characteristic at that travel (simulation.ts).
-  const uIn = valveInput(loop.actuator, uStart);
-  const chosen = loopStep(plant, ts, loop.step, loop.integrator, uIn);
+  const e = engineStart(plant, loop, { initialOutput: trial.initialOutput, start: trial.start, horizon: trial.duration, helpers });
+  const { uStart, uIn, y0 } = e;
   const law = (m.controller.pidLaw as () => PidLaw | null).call(m.controller);
   if (law === null) return 'the controller is not the plain PID law';
-  const h = chosen.step;
-  if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
-  if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
-  const inSteps = delayInSteps(usableDelay(plant.inputDelay, trial.duration, ts), h);
-  const outFn = generateOutput(plant, plant.outputSource, helpers);
-  const y0 = outFn(Float64Array.from(start.x), plant.params, Float64Array.from(plant.d0), uIn, 0);
-  const outSteps = delayInSteps(usableDelay(loop.sensor.delay, trial.duration, ts), h);
+  const h = e.step;
+  const inSteps = e.inputDelaySteps;
+  const outSteps = e.sensorDelaySteps;
   const sensor = new Sensor(loop.sensor, ts);
   const rInit = trial.initialSetpoint ?? y0;
 
@@ -314,7 +301,7 @@ function prepare(
   for (const f of ['start', 'end', 'xs', 'xv'] as const) state[BATCH_STATE.indexOf(f)] = uStart;
   state[BATCH_STATE.indexOf('uPlant')] = uIn;
   state[BATCH_STATE.indexOf('xc')] = NaN;
-  state.set(start.x, BATCH_STATE.length);
+  state.set(e.x, BATCH_STATE.length);
   const shape = {
     inputDelay: plant.inputDelay > 0,
     sensorDelay: s.delay > 0,
@@ -331,7 +318,7 @@ function prepare(
     loop.integrator,
     ts,
     h,
-    chosen.substeps,
+    e.substeps,
     plant.nx,
     plant.params.length,
     plant.d0.length,
@@ -351,8 +338,8 @@ function prepare(
     sensorLine,
     trace,
     step: h,
-    substeps: chosen.substeps,
-    warnings: start.warning === null ? chosen.warnings : [...chosen.warnings, start.warning],
+    substeps: e.substeps,
+    warnings: e.warnings,
     key,
   };
 }

@@ -43,6 +43,8 @@ export interface RunSize {
   bounded?: boolean;
   /** Whether the caller analyses the loop in frequency (margins) too; default true. */
   frequencyAnalysis?: boolean;
+  /** Trace rows a run holds at most (a streamed run: loop/streamed-trial.ts); default every row. */
+  heldRows?: number;
 }
 
 /** What a run of `RunSize` costs. */
@@ -53,7 +55,7 @@ export interface BudgetEstimate {
   substeps: number;
   /** Integration steps of all runs together. */
   integrationSteps: number;
-  /** Trace bytes of one run. */
+  /** Trace bytes one run holds. */
   traceBytes: number;
   /** Entries of the longer delay line. */
   delayEntries: number;
@@ -115,7 +117,7 @@ export function estimateBudget(size: RunSize): BudgetEstimate {
   const rows = trialRows(size.duration, size.sampleTime);
   const substeps = roundStep(size.sampleTime, size.step).substeps;
   const integrationSteps = (rows - 1) * substeps * runs;
-  const traceBytes = rows * rowBytes(size.disturbances);
+  const traceBytes = Math.min(rows, size.heldRows ?? rows) * rowBytes(size.disturbances);
   const held = (delay: number): number => {
     if (!(delay > 0)) return 0;
     const d = size.bounded === false ? delay : usableDelay(delay, size.duration, size.sampleTime);

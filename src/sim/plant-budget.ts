@@ -4,9 +4,9 @@
  * every command and the screen, so they all refuse the same runs with the same words.
  */
 import { diagnostic, fieldSpan, formatDiagnostic } from '../model/index.js';
-import type { PlantDynamics, PlantSpec } from '../model/types.js';
+import type { PlantSpec } from '../model/types.js';
 import { checkBudget, type BudgetCause, type BudgetLimits, DEFAULT_BUDGET } from './budget.js';
-import { chooseStep } from './choose-step.js';
+import type { LoopConfig, PlantDynamics } from './types.js';
 
 /** Where each cause is written in a plant file. */
 const FIELD_PATH: Readonly<Record<BudgetCause, readonly string[]>> = {
@@ -28,6 +28,8 @@ export interface PlantBudgetOptions {
   limits?: BudgetLimits | null;
   /** Whether the caller also analyses the loop in frequency (diagnose, suggest ...); default true. */
   frequencyAnalysis?: boolean;
+  /** Trace rows a run holds at most (see budget.ts RunSize.heldRows). */
+  heldRows?: number;
   /** Causes set on the command line, and how to name them there (e.g. `duration: '--duration 1e9'`). */
   given?: Partial<Record<BudgetCause, string>>;
 }
@@ -41,20 +43,31 @@ export interface BudgetRefusal {
 }
 
 /**
- * Check the runs of `plant`'s trial (with the file's step, or the one the engine would choose)
- * against the budget. `text`/`fileName` locate the fields; the plant must be the one loaded from
- * `text` with `given` naming every value changed since.
+ * The loop whose runs are budgeted, as loop/'s buildLoop makes it: the compiled plant and the
+ * engine's configuration, whose step is the file's or the one chosen at the loop's own start.
+ */
+export interface BudgetedLoop {
+  readonly dynamics: PlantDynamics;
+  readonly config: Pick<LoopConfig, 'step'>;
+}
+
+/**
+ * Check the runs of `plant`'s trial against the budget, with the step the runs will take (the
+ * built loop's: the file's, or the engine's choice at the start the trial runs from, so the
+ * budget and the run never disagree on it). `text`/`fileName` locate the fields; the plant must
+ * be the one loaded from `text` with `given` naming every value changed since.
  */
 export function plantBudget(
   plant: PlantSpec,
-  dynamics: PlantDynamics,
+  built: BudgetedLoop,
   text: string,
   fileName: string,
   options: PlantBudgetOptions = {},
 ): BudgetRefusal[] {
   const loop = plant.loop;
   const stepGiven = loop.step !== null;
-  const step = loop.step ?? chooseStep(dynamics, loop.sampleTime, loop.integrator, loop.trial.initialOutput ?? 0).step;
+  const dynamics = built.dynamics;
+  const step = built.config.step;
   const excesses = checkBudget(
     {
       duration: loop.trial.duration,
@@ -67,6 +80,7 @@ export function plantBudget(
       runs: options.runs ?? 1,
       bounded: options.bounded ?? true,
       frequencyAnalysis: options.frequencyAnalysis ?? true,
+      heldRows: options.heldRows,
     },
     options.limits === undefined ? DEFAULT_BUDGET : options.limits,
     stepGiven,

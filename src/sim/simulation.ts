@@ -20,15 +20,14 @@
  * Nothing in steps 2–8 allocates.
  */
 import type { GainSet, IntegratorName, TrialEvent, TrialStart } from '../model/types.js';
-import { Actuator, valveInput } from './actuator.js';
-import { loopStep } from './choose-step.js';
-import { DelayLine, delayInSteps as delaySteps, usableDelay } from './delay-line.js';
+import { Actuator } from './actuator.js';
+import { DelayLine } from './delay-line.js';
+import { engineStart } from './engine-start.js';
 import { SAMPLE_EPS as TIME_EPS } from './event-schedule.js';
 import { generateOutput, generateStepper, type OutputFunction, type StepFunction } from './generate-stepper.js';
 import { Sensor } from './sensor.js';
-import { loopStart } from './start-state.js';
 import { TraceRing } from './trace.js';
-import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus } from './types.js';
+import type { DiscreteController, LoopConfig, PlantDynamics, RunStatus, Trace } from './types.js';
 
 /** Start conditions and options of a simulation. */
 export interface SimulationInit {
@@ -48,6 +47,12 @@ export interface SimulationInit {
    * far longer than the run costs nothing.
    */
   horizon?: number;
+  /**
+   * Stream the rows instead of keeping them: the trace ring (`traceCapacity` rows) hands each full
+   * chunk, rows in order, with the trial row of its first row, to this reader before it wraps
+   * (`finishStream` hands over the last part).
+   */
+  onChunk?: (chunk: Trace, first: number) => void;
 }
 
 export type ControllerMode = 'manual' | 'auto';
@@ -113,34 +118,26 @@ export class Simulation {
 
   constructor(plant: PlantDynamics, controller: DiscreteController, loop: LoopConfig, init: SimulationInit = {}) {
     const ts = loop.sampleTime;
-    if (!(ts > 0) || !Number.isFinite(ts)) throw new RangeError('sampleTime must be positive and finite');
-    if (!(loop.integrator in { rk4: 1, heun: 1, euler: 1 })) throw new RangeError(`unknown integrator ${loop.integrator}`);
-    if (plant.x0.length !== plant.nx) throw new TypeError('x0 length must equal nx');
+    const e = engineStart(plant, loop, init);
     this.plant = plant;
     this.controller = controller;
     this.sampleTime = ts;
     this.integrator = loop.integrator;
     this.helpers = init.helpers;
 
-    const start = loopStart(plant, loop, init.initialOutput, init.start);
-    this.actuator = new Actuator(loop.actuator, start.uStart);
-    const uStart = this.actuator.end;
-    // What the plant receives at the start: the valve's characteristic at that travel.
-    const uIn = valveInput(loop.actuator, uStart);
+    this.actuator = new Actuator(loop.actuator, e.uStart);
+    const uIn = e.uIn;
+    this.step = e.step;
+    this.substeps = e.substeps;
+    for (const w of e.warnings) this.warnings.push(w);
 
-    const chosen = loopStep(plant, ts, loop.step, loop.integrator, uIn);
-    this.step = chosen.step;
-    this.substeps = chosen.substeps;
-    for (const w of chosen.warnings) this.warnings.push(w);
-
-    this.x = start.x;
-    if (start.warning !== null) this.warnings.push(start.warning);
+    this.x = e.x;
     this.p = plant.params;
     this.d = Float64Array.from(plant.d0);
     this.us = new Float64Array(this.substeps);
     this.ys = new Float64Array(this.substeps);
     this.uPlant = uIn;
-    this.outFn = generateOutput(plant, plant.outputSource, init.helpers);
+    this.outFn = e.outFn;
     const names = controller.measurementNames ?? [];
     this.measureFns = names.map((name) => {
       const src = Object.prototype.hasOwnProperty.call(plant.measurementSources, name) ? plant.measurementSources[name] : undefined;
@@ -153,20 +150,16 @@ export class Simulation {
     this.measured = new Float64Array(names.length);
     this.observes = typeof controller.observe === 'function';
 
-    const h = this.step;
-    if (!(plant.inputDelay >= 0)) throw new RangeError('input delay must be >= 0');
-    if (!(loop.sensor.delay >= 0)) throw new RangeError('sensor delay must be >= 0');
-    const horizon = init.horizon ?? Infinity;
-    this.inputDelaySteps = delaySteps(usableDelay(plant.inputDelay, horizon, ts), h);
+    this.inputDelaySteps = e.inputDelaySteps;
     this.inputLine = plant.inputDelay > 0 ? new DelayLine(Math.floor(this.inputDelaySteps) + 2, uIn) : null;
-    const y0 = this.outFn(this.x, this.p, this.d, uIn, 0);
-    this.sensorDelaySteps = delaySteps(usableDelay(loop.sensor.delay, horizon, ts), h);
+    const y0 = e.y0;
+    this.sensorDelaySteps = e.sensorDelaySteps;
     this.sensorLine = loop.sensor.delay > 0 ? new DelayLine(Math.floor(this.sensorDelaySteps) + 2, y0) : null;
     this.sensor = new Sensor(loop.sensor, ts);
 
     this.r = init.initialSetpoint ?? y0;
     this.initSetpoint = this.r;
-    this.trace = new TraceRing(init.traceCapacity ?? 4096, plant.disturbanceNames);
+    this.trace = new TraceRing(init.traceCapacity ?? 4096, plant.disturbanceNames, init.onChunk ?? null);
   }
 
   /** Simulated time, s: the next sample instant to be processed. */
@@ -247,6 +240,11 @@ export class Simulation {
    */
   recordFinal(): void {
     if (this.status === 'ok') this.sample(false);
+  }
+
+  /** Hand the rows not yet handed over to the `onChunk` reader (a streamed run's end). */
+  finishStream(): void {
+    this.trace.flush();
   }
 
   /** Setpoint step at the next sample (cancels a ramp). */

@@ -1,7 +1,8 @@
 /**
  * Traces: struct-of-arrays records, one row per controller sample, never one per integration
  * step. `TraceRing` keeps the newest `capacity` rows of a live run; a trial uses a ring whose
- * capacity is the trial's row count, so it never wraps and its storage is the trial's `Trace`.
+ * capacity is the trial's row count, so it never wraps and its storage is the trial's `Trace`;
+ * a trial too long to hold streams through a ring that hands each full chunk to a reader.
  */
 import type { Trace } from './types.js';
 
@@ -29,6 +30,18 @@ export function createTrace(rows: number, disturbanceNames: readonly string[]): 
   return { length: 0, t, r, y, ym, uc, u, sat: new Uint8Array(buf, at, rows), d, disturbanceNames: [...disturbanceNames] };
 }
 
+/** Copy row `i` of `src` into row `j` of `dst`, every channel (the disturbances both have). */
+export function copyRow(src: Trace, i: number, dst: Trace, j: number): void {
+  dst.t[j] = src.t[i];
+  dst.r[j] = src.r[i];
+  dst.y[j] = src.y[i];
+  dst.ym[j] = src.ym[i];
+  dst.uc[j] = src.uc[i];
+  dst.u[j] = src.u[i];
+  dst.sat[j] = src.sat[i];
+  for (let c = 0; c < src.d.length && c < dst.d.length; c++) dst.d[c][j] = src.d[c][i];
+}
+
 /** Names of the numeric per-row channels of a trace. */
 export type TraceChannel = 't' | 'r' | 'y' | 'ym' | 'uc' | 'u';
 
@@ -42,10 +55,29 @@ export class TraceRing {
   /** Storage index of the next row: recorded mod capacity, kept without a division per row. */
   private next = 0;
 
-  constructor(capacity: number, disturbanceNames: readonly string[]) {
+  /**
+   * @param onFull called each time the ring is full, before it wraps, with its storage (rows in
+   *   order, `length` = capacity) and the trial row of its first row: a streamed run's chunks.
+   */
+  constructor(
+    capacity: number,
+    disturbanceNames: readonly string[],
+    private readonly onFull: ((chunk: Trace, first: number) => void) | null = null,
+  ) {
     if (!Number.isInteger(capacity) || capacity < 1) throw new RangeError('capacity must be a positive integer');
     this.capacity = capacity;
     this.storage = createTrace(capacity, disturbanceNames);
+  }
+
+  /**
+   * Hand the rows written since the ring last filled (if any) to `onFull`: the last chunk of a
+   * streamed run. The storage's `length` is then those rows (the ring is done).
+   */
+  flush(): void {
+    const rest = this.recorded % this.capacity;
+    if (this.onFull === null || rest === 0) return;
+    this.storage.length = rest;
+    this.onFull(this.storage, this.recorded - rest);
   }
 
   /** Rows currently held: min(recorded, capacity). */
@@ -57,7 +89,8 @@ export class TraceRing {
   write(t: number, r: number, y: number, ym: number, uc: number, u: number, sat: boolean, d: Float64Array): void {
     const s = this.storage;
     const i = this.next;
-    this.next = i + 1 === this.capacity ? 0 : i + 1;
+    const full = i + 1 === this.capacity;
+    this.next = full ? 0 : i + 1;
     s.t[i] = t;
     s.r[i] = r;
     s.y[i] = y;
@@ -68,6 +101,7 @@ export class TraceRing {
     for (let j = 0; j < s.d.length; j++) s.d[j][i] = d[j];
     this.recorded++;
     s.length = this.length;
+    if (full && this.onFull !== null) this.onFull(s, this.recorded - this.capacity);
   }
 
   /** Index in storage of the oldest row held. */
@@ -104,14 +138,7 @@ export class TraceRing {
     const s = this.storage;
     let i = first;
     for (let k = 0; k < count; k++) {
-      out.t[k] = s.t[i];
-      out.r[k] = s.r[i];
-      out.y[k] = s.y[i];
-      out.ym[k] = s.ym[i];
-      out.uc[k] = s.uc[i];
-      out.u[k] = s.u[i];
-      out.sat[k] = s.sat[i];
-      for (let j = 0; j < s.d.length && j < out.d.length; j++) out.d[j][k] = s.d[j][i];
+      copyRow(s, i, out, k);
       i++;
       if (i === this.capacity) i = 0;
     }

@@ -76,7 +76,7 @@ export async function runScreen(filePath: string, options: ScreenOptions): Promi
   }
   // The live run has no end, so its delay lines hold the whole delay (bounded: false).
   const budget = options.budget ?? { lifted: false, hint: '' };
-  const over = plantBudget(loaded.plant, setup.dynamics, text, filePath, { bounded: false, limits: budget.lifted ? null : DEFAULT_BUDGET });
+  const over = plantBudget(loaded.plant, setup.loop, text, filePath, { bounded: false, limits: budget.lifted ? null : DEFAULT_BUDGET });
   if (over.length > 0) {
     for (const r of over) stderr.write(`${r.message}${r.hard || budget.hint === '' ? '' : `; ${budget.hint}`}\n`);
     return 2;

@@ -483,11 +483,12 @@ export interface FileLoop {
 /**
  * The plant file's loop (loop/'s buildLoop) running the file's `loop.controller`: a plain law as
  * it is, a structure with its model-derived values filled in (gains as written). Throws
- * `StructureUnavailable` when the structure cannot be set up for this plant.
+ * `StructureUnavailable` when the structure cannot be set up for this plant. `plain`: the loop
+ * `buildLoop(spec, { dynamics })` made already (the budget's), used as it is for a plain law.
  */
-export function fileLoop(spec: PlantSpec, dynamics: PlantDynamics = compilePlant(spec)): FileLoop {
+export function fileLoop(spec: PlantSpec, dynamics: PlantDynamics = compilePlant(spec), plain?: BuiltLoop): FileLoop {
   const c = spec.loop.controller;
-  if (c.extension === undefined) return { loop: buildLoop(spec, { dynamics }), basis: [], context: null };
+  if (c.extension === undefined) return { loop: plain ?? buildLoop(spec, { dynamics }), basis: [], context: null };
   const context = tuningContext(spec, dynamics);
   const r = resolveController(context, c);
   return { loop: buildLoop(spec, { dynamics, controller: r.controller }), basis: [...r.basis, ...r.notes], context };

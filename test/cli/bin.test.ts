@@ -1,12 +1,15 @@
 /**
- * Spawn tests of the compiled bin, built by test/helpers/build-bin.ts into a folder laid out like
- * the installed package: the test checks the real build output - shebang, ESM resolution with .js
- * extensions, the plants folder found from import.meta.url.
+ * Spawn tests of the installed bin (package.json's bin: the code-split bundle scripts/bundle.mjs
+ * makes from the tsc output), built by test/helpers/build-bin.ts into a folder laid out like the
+ * installed package: the test checks the real build output - shebang, chunk resolution, yaml
+ * inside the bundle, the plants folder found from import.meta.url, the sweep worker's entry.
  */
 import { describe, it, expect, beforeAll } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { main } from '../../src/cli/index.js';
 import { buildBin, REPO_ROOT as root } from '../helpers/build-bin.js';
 import { fakeIo } from './fake-io.js';
@@ -31,7 +34,7 @@ function looprig(args: string[]) {
   return spawnSync(process.execPath, [bin, ...args], { encoding: 'utf8', cwd: root });
 }
 
-describe('built bin (node dist/cli/bin.js)', { timeout: SPAWN_TIMEOUT_MS }, () => {
+describe('built bin (node dist/bundle/bin.js)', { timeout: SPAWN_TIMEOUT_MS }, () => {
   it('starts with a node shebang', () => {
     expect(readFileSync(bin, 'utf8').startsWith('#!/usr/bin/env node\n')).toBe(true);
   });
@@ -53,7 +56,7 @@ describe('built bin (node dist/cli/bin.js)', { timeout: SPAWN_TIMEOUT_MS }, () =
     expect(r.stderr).not.toMatch(/\n\s+at /);
   });
 
-  it('suggest --jobs 2 (worker threads from dist/cli/sweep-worker.js) prints what --jobs 1 prints in-process', async () => {
+  it('suggest --jobs 2 (worker threads from dist/bundle/sweep-worker.js) prints what --jobs 1 prints in-process', async () => {
     const args = ['suggest', join(root, 'plants', 'surge-tank.yaml'), '--json', '--samples', '16'];
     // One spawn for what only the built bin can show (workers started from dist/), the
     // reference through main() in this process: same source, same arguments.
@@ -66,6 +69,27 @@ describe('built bin (node dist/cli/bin.js)', { timeout: SPAWN_TIMEOUT_MS }, () =
     expect(io.stderr).toBe('');
     expect(JSON.parse(two.stdout).suggestions[0].worst_case.cases).toBe(19);
     expect(two.stdout).toBe(io.stdout);
+  });
+
+  it('check on a plant file: the table, and no package file loaded (yaml is inside the bundle)', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'looprig-bin-loads-'));
+    try {
+      const log = join(dir, 'loads.txt');
+      const hook = pathToFileURL(join(root, 'test', 'cli', 'helpers', 'record-loads.mjs')).href;
+      const r = spawnSync(process.execPath, ['--import', hook, bin, 'check', 'plants/surge-tank.yaml'], {
+        encoding: 'utf8',
+        cwd: root,
+        env: { ...process.env, LOOPRIG_LOAD_LOG: log },
+      });
+      expect(r.stderr).toBe('');
+      expect(r.status).toBe(0);
+      expect(r.stdout).toContain('1 file: 1 pass, 0 fail, 0 invalid');
+      const loaded = readFileSync(log, 'utf8').split('\n').filter((u) => u.startsWith('file:'));
+      expect(loaded.filter((u) => u.includes('/node_modules/') && !u.includes('/node_modules/.cache/'))).toEqual([]);
+      expect(loaded.length).toBeGreaterThan(1);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 
   it('--version: the version of the package.json installed beside dist/', () => {

@@ -41,14 +41,20 @@ function expectRefused(r: { code: number; err: string }, at: RegExp, what: RegEx
 }
 
 describe('the resource budget refuses runs that would take minutes or gigabytes', () => {
-  it('duration 1e8 s: the trace (11 GiB) is refused at loop.trial.duration', async () => {
+  it('duration 1e8 s: refused at loop.trial.duration (2e8 integration steps; the trace itself is streamed, not held)', async () => {
     const r = await run(['run', 'p.yaml'], { 'p.yaml': plantText({ duration: '1e8' }) });
-    expectRefused(r, /^p\.yaml:7:\d+: loop\.trial\.duration: /, /over the limit of 512 MiB.*--no-limits/);
+    expectRefused(r, /^p\.yaml:7:\d+: loop\.trial\.duration: /, /2e8 integration steps.*over the limit of 1e8.*--no-limits/);
+    expect(r.err).not.toMatch(/MiB/);
   });
 
-  it('sample_time 1e-6 s: refused at loop.sample_time', async () => {
-    const r = await run(['run', 'p.yaml'], { 'p.yaml': plantText({ ts: '1e-6' }) });
-    expectRefused(r, /^p\.yaml:5:\d+: loop\.sample_time: /, /trace of 6e7 rows/);
+  it('sample_time 1e-6 s on a 200 s trial: refused at loop.sample_time', async () => {
+    const r = await run(['run', 'p.yaml'], { 'p.yaml': plantText({ ts: '1e-6', duration: '200 s' }) });
+    expectRefused(r, /^p\.yaml:5:\d+: loop\.sample_time: /, /2e8 samples/);
+  });
+
+  it('a trace held whole is still bounded: 2e7 rows over 512 MiB (suggest holds each case whole)', async () => {
+    const r = await run(['suggest', 'p.yaml'], { 'p.yaml': plantText({ ts: '1e-5', duration: '200 s' }) });
+    expectRefused(r, /^p\.yaml:5:\d+: loop\.sample_time: the run needs a trace of 2e7 rows/m, /over the limit of 512 MiB/);
   });
 
   it('run --step 1e-6 on the surge tank: refused, naming the option', async () => {

@@ -10,6 +10,7 @@ import { main } from '../../src/cli/index.js';
 import { traceCsvChunks } from '../../src/cli/commands/run.js';
 import { createTrace } from '../../src/sim/index.js';
 import { fakeIo } from './fake-io.js';
+import { BLOW_UP_PLANT } from '../helpers/blow-up-plant.js';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const plant = (name: string): string => join(root, 'plants', name);
@@ -166,22 +167,7 @@ describe('looprig run --json', () => {
 
   it('a diverging loop is a result: exit 0, status diverged, diverged_at set', async () => {
     // dx/dt = x^2 from x = 1 blows up at t = 1 s whatever the controller does (kc = 0).
-    const text = [
-      'name: Finite-time blow-up',
-      'model:',
-      '  type: ode',
-      '  params: { unused: 0 }',
-      '  states: { x: { initial: 1 } }',
-      '  input: u',
-      '  derivatives: { x: x*x + 0*u }',
-      '  output: x',
-      'loop:',
-      '  sample_time: 0.01 s',
-      '  step: 0.001 s',
-      '  controller: { structure: p, form: ideal, kc: 0 }',
-      '  trial: { duration: 3 s, events: [ { at: 0.1 s, setpoint: 2 } ] }',
-      '',
-    ].join('\n');
+    const text = BLOW_UP_PLANT;
     const { code, doc } = await runJson(['run', 'virtual/blow-up.yaml'], { 'virtual/blow-up.yaml': text });
     expect(code).toBe(0);
     expect(doc.status).toBe('diverged');

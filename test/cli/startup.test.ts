@@ -16,7 +16,7 @@ const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const recorder = pathToFileURL(join(root, 'test', 'cli', 'helpers', 'record-loads.mjs')).href;
 
 /** Source files (relative to src/) and packages loaded by `looprig ARGS`, with its output. */
-function loads(args: string[]): { files: string[]; packages: string[]; stdout: string; status: number | null } {
+function loads(args: string[]): { files: string[]; packages: string[]; builtins: string[]; stdout: string; status: number | null } {
   const dir = mkdtempSync(join(tmpdir(), 'looprig-loads-'));
   const log = join(dir, 'loads.txt');
   try {
@@ -25,7 +25,9 @@ function loads(args: string[]): { files: string[]; packages: string[]; stdout: s
       encoding: 'utf8',
       env: { ...process.env, LOOPRIG_LOAD_LOG: log },
     });
-    const urls = [...new Set(readFileSync(log, 'utf8').split('\n').filter((u) => u.startsWith('file:')))];
+    const lines = readFileSync(log, 'utf8').split('\n');
+    const urls = [...new Set(lines.filter((u) => u.startsWith('file:')))];
+    const builtins = [...new Set(lines.filter((u) => u.startsWith('node:')))].sort();
     const paths = urls.map((u) => fileURLToPath(u));
     const src = join(root, 'src');
     const files = paths.filter((p) => p.startsWith(src)).map((p) => relative(src, p).split('\\').join('/'));
@@ -33,7 +35,7 @@ function loads(args: string[]): { files: string[]; packages: string[]; stdout: s
       .filter((p) => p.includes(`${join('node_modules')}/`))
       .map((p) => p.split('node_modules/').at(-1)!.split('/')[0])
       .filter((name) => name !== 'tsx' && name !== 'get-tsconfig' && name !== 'esbuild' && name !== 'resolve-pkg-maps');
-    return { files: [...new Set(files)].sort(), packages: [...new Set(packages)].sort(), stdout: r.stdout, status: r.status };
+    return { files: [...new Set(files)].sort(), packages: [...new Set(packages)].sort(), builtins, stdout: r.stdout, status: r.status };
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
@@ -49,6 +51,8 @@ describe('start-up path', { timeout: 120_000 }, () => {
       expect(outside).toEqual([]);
       expect(r.files.filter((f) => f.startsWith('cli/commands/'))).toEqual([]);
       expect(r.packages).toEqual([]);
+      // Built-ins only some commands use are loaded when used (cli/builtin.ts): child_process for git.
+      expect(r.builtins.filter((b) => b === 'node:child_process' || b === 'node:crypto')).toEqual([]);
       // num/ is reached for the UTF-8 check the Io does on every text file it reads.
       expect(r.files).toContain('cli/main.ts');
     });

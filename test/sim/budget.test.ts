@@ -8,6 +8,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { compilePlant, loadPlant } from '../../src/model/index.js';
 import { fileController } from '../../src/tune/index.js';
+import { buildLoop } from '../../src/loop/index.js';
 import {
   checkBudget,
   DEFAULT_BUDGET,
@@ -71,7 +72,7 @@ describe('the bundled plants are far inside the default budget', () => {
       const text = readFileSync(new URL(f, dir), 'utf8');
       const plant = loadPlant(text, f).plant!;
       // The suggest rule list with a 100-sample sweep still fits.
-      expect(plantBudget(plant, compilePlant(plant), text, f, { runs: 30 * 101 })).toEqual([]);
+      expect(plantBudget(plant, buildLoop(plant), text, f, { runs: 30 * 101 })).toEqual([]);
     });
   }
 });
@@ -107,5 +108,36 @@ loop:
     // The step at 1 s reaches the output 20 s later: flat until t = 21 s, moving after.
     expect(y[Math.round(20.5 / 0.5)]).toBe(y[0]);
     expect(y[Math.round(30 / 0.5)]).not.toBe(y[0]);
+  });
+});
+
+describe('one start for the budget and the run', () => {
+  // dx/dt = 0.1 - u x: the fastest mode is u itself, so the step chosen at the settled start
+  // (u = 0.1 / 0.01 = 10, 40 RK4 steps per 1 s sample at h rho = 0.25) is not the step at u = 0
+  // (no mode, one step per sample). The run starts settled at the initial setpoint.
+  const text = `name: mode set by the input
+model:
+  type: ode
+  states: { x: { initial: 0.01 } }
+  input: u
+  derivatives: { x: 0.1 - u*x }
+  output: x
+actuator: { min: 0, max: 100 }
+loop:
+  sample_time: 1 s
+  controller: { structure: pi, form: ideal, kc: 1, ti: 10 s }
+  trial: { duration: 100 s, initial_setpoint: 0.01, events: [ { at: 10 s, setpoint: 0.012 } ] }
+`;
+  const plant = loadPlant(text, 'mode.yaml').plant!;
+  const built = buildLoop(plant);
+  const run = runTrial(built.dynamics, built.controller(), built.config, built.trial);
+  const limits = (steps: number) => ({ ...DEFAULT_BUDGET, integrationSteps: steps });
+
+  it('counts the integration steps the run takes', () => {
+    expect(built.start.how).toBe('settled');
+    expect(run.steps).toBe(100 * 40);
+    expect(plantBudget(plant, built, text, 'mode.yaml', { limits: limits(run.steps) })).toEqual([]);
+    const over = plantBudget(plant, built, text, 'mode.yaml', { limits: limits(run.steps - 1) });
+    expect(over.map((r) => r.message).join('\n')).toMatch(/4000 integration steps/);
   });
 });

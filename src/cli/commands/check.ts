@@ -11,6 +11,7 @@
 import { parseCommandArgs } from '../parse-command.js';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
+import { buildLoop, STREAM_ROWS } from '../../loop/index.js';
 import { compilePlant, formatDiagnostic, loadPlant, plantUnits, type PlantUnits } from '../../model/index.js';
 import { DEFAULT_BUDGET, plantBudget } from '../../sim/index.js';
 import { LIMIT_OPTIONS, refusalLine } from '../budget-check.js';
@@ -24,7 +25,7 @@ import { hasPlantKeysAtTop, listYamlFiles, parseShard, plantFileText, shardOf, t
 import { num, table } from '../format.js';
 import { EncodingError, type Io } from '../io.js';
 import { finiteOrNull, toJson } from '../json.js';
-import { trialPlotSvg } from '../trial-plot.js';
+import type { trialPlotSvg } from '../trial-plot.js';
 import { writeOutput } from '../write-output.js';
 
 export const CHECK_USAGE = `Usage: looprig check FILE|DIR... [options]
@@ -87,8 +88,11 @@ export interface FileOutcome {
   plant: string | null;
   /** The file's units (null for an invalid file). */
   units: PlantUnits | null;
-  /** The verdicts; the nominal trial itself is dropped once its plot (if any) is written. */
-  check: Omit<PlantCheck, 'nominal'> | null;
+  /**
+   * The verdicts: rows and notes. The nominal trial is dropped once its plot (if any) is written,
+   * and the figures map too (the rows carry what is printed): a folder's outcomes are held to the end.
+   */
+  check: Pick<PlantCheck, 'rows' | 'pass' | 'notes'> | null;
   /** Why the file is invalid (already printed to stderr as FILE:LINE:COL lines). */
   errors: string[];
   warnings: string[];
@@ -97,11 +101,17 @@ export interface FileOutcome {
 
 /**
  * Load and check one file (its `text` when already read); diagnostics go to stderr. The file is
- * parsed once, by the loader. The nominal trial is kept only to plot a failing file into `svgDir`,
+ * parsed once, by the loader. The nominal trial is kept only to plot a failing file (`svg`: --svg),
  * right here: nothing of a file's trial outlives its check, so memory stays flat in the number of
  * files.
  */
-function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: string | null, text?: string): FileOutcome {
+/** Where failing files' plots go (--svg) and the plot writer, loaded only then (the SVG code is not on check's start-up path). */
+interface PlotTarget {
+  dir: string;
+  plot: typeof trialPlotSvg;
+}
+
+function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svg: PlotTarget | null, text?: string): FileOutcome {
   const file = entry.path;
   const invalid = (errors: string[]): FileOutcome => {
     for (const e of errors) io.err(`${e}\n`);
@@ -133,25 +143,28 @@ function checkFile(entry: PlantFileEntry, io: Io, noLimits: boolean, svgDir: str
     return invalid(errors);
   }
   for (const w of warnings) io.err(`${w}\n`);
-  // The nominal trial's budget (a worst-case sweep repeats it per corner).
-  const over = plantBudget(loaded.plant, compilePlant(loaded.plant), text, file, { limits: noLimits ? null : DEFAULT_BUDGET });
+  // The nominal trial's budget (a worst-case sweep repeats it per corner), on the loop that runs:
+  // the plant is compiled and its loop built once.
+  const dynamics = compilePlant(loaded.plant);
+  const built = buildLoop(loaded.plant, { dynamics });
+  const over = plantBudget(loaded.plant, built, text, file, { limits: noLimits ? null : DEFAULT_BUDGET, heldRows: STREAM_ROWS });
   if (over.length > 0) return invalid(over.map(refusalLine));
   let check: PlantCheck;
   try {
-    check = checkPlant(loaded.plant);
+    check = checkPlant(loaded.plant, { loop: built });
   } catch (error) {
     // A structure this plant cannot support (e.g. a Smith predictor on an integrating plant).
     if (error instanceof StructureUnavailable) return invalid([`${file}: ${error.message}`]);
     throw error;
   }
-  const { nominal, ...verdicts } = check;
+  const verdicts = { rows: check.rows, pass: check.pass, notes: check.notes };
   const outcome: FileOutcome = { file, status: check.pass ? 'pass' : 'fail', plant: loaded.plant.name, units: plantUnits(loaded.plant), check: verdicts, errors: [], warnings, svg: null };
-  if (svgDir !== null && outcome.status === 'fail') outcome.svg = writePlot(loaded.plant, file, check.rows, nominal, svgDir, io);
+  if (svg !== null && outcome.status === 'fail') outcome.svg = writePlot(loaded.plant, file, check.rows, check.nominal, svg, io);
   return outcome;
 }
 
 /** Write the plot of a failing file's nominal trial into `dir` (created if needed). @returns its path. */
-function writePlot(plant: PlantSpec, file: string, rows: readonly CheckRow[], nominal: PlantCheck['nominal'], dir: string, io: Io): string {
+function writePlot(plant: PlantSpec, file: string, rows: readonly CheckRow[], nominal: PlantCheck['nominal'], { dir, plot }: PlotTarget, io: Io): string {
   try {
     mkdirSync(dir, { recursive: true });
   } catch (error) {
@@ -159,7 +172,7 @@ function writePlot(plant: PlantSpec, file: string, rows: readonly CheckRow[], no
   }
   const failed = rows.filter((r) => r.status !== 'pass').map((r) => r.requirement);
   const path = join(dir, plotName(file));
-  const svg = trialPlotSvg({
+  const svg = plot({
     plant,
     file,
     trace: nominal.result.trace,
@@ -192,6 +205,7 @@ export async function checkCommand(args: readonly string[], io: Io): Promise<num
   // The shard is taken from the list of YAML files before any is read: a shard reads only its own.
   const listed = listYamlFiles(a.paths, io);
   const mine = shardOf(listed, a.shard);
+  const svg: PlotTarget | null = a.svg === null ? null : { dir: a.svg, plot: (await import('../trial-plot.js')).trialPlotSvg };
   const outcomes: FileOutcome[] = [];
   const skipped: string[] = [];
   for (const entry of mine) {
@@ -204,7 +218,7 @@ export async function checkCommand(args: readonly string[], io: Io): Promise<num
       }
       if (found !== '') text = found;
     }
-    outcomes.push(checkFile(entry, io, a.noLimits, a.svg, text));
+    outcomes.push(checkFile(entry, io, a.noLimits, svg, text));
   }
   if (outcomes.length === 0 && (a.shard === null || listed.length === 0)) {
     const why = skipped.length > 0 ? ` (${skipped.length} YAML file${skipped.length === 1 ? '' : 's'} without top-level model and loop skipped)` : '';

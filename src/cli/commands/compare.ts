@@ -9,7 +9,7 @@ import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js
 import { requirementUnitOf } from '../../loop/index.js';
 import { plantUnits, quantityLabel } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
-import { bindingSummary, compareCandidates, DEFAULT_EVALUATIONS, sweepCaseCount, type CandidateReport, type CompareResult } from '../../tune/index.js';
+import { bindingSummary, compareCandidates, DEFAULT_EVALUATIONS, sweepCaseCount, tuningContext, type CandidateReport, type CompareResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { rankedFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -228,12 +228,13 @@ export async function compareCommand(args: readonly string[], io: Io): Promise<n
   // Each candidate's tuning (at most `evaluations` trials), its trial and its sweep; the
   // candidates are the file's list or the default few.
   const sweeps = options.nominal ? 1 : sweepCaseCount(plant, { samples: options.samples, nominal: false }) + 1;
-  enforceFileBudget(loaded, options.file, io, {
+  const built = enforceFileBudget(loaded, options.file, io, {
     noLimits: options.noLimits,
     runs: (plant.compare?.length ?? COMPARE_DEFAULT_CANDIDATES) * (sweeps + options.evaluations),
     given: options.samples > 0 ? { runs: `looprig: compare: --samples ${options.samples}` } : {},
   });
   const result = compareCandidates(plant, {
+    context: tuningContext(plant, built.dynamics),
     robustness: options.nominal ? false : { samples: options.samples },
     msTarget: options.ms,
     evaluations: options.evaluations,

@@ -39,8 +39,8 @@ export async function diagnoseCommand(args: readonly string[], io: Io): Promise<
   // The loader prints its diagnostics (errors: exit 2 through UserError; warnings: stderr).
   const loaded = loadPlantFile(file, io);
   const { plant } = loaded;
-  enforceFileBudget(loaded, file, io, { noLimits: values['no-limits'] === true });
-  const d = diagnosePlant(plant);
+  const built = enforceFileBudget(loaded, file, io, { noLimits: values['no-limits'] === true });
+  const d = diagnosePlant(plant, { dynamics: built.dynamics });
   io.out(values.json ? toJson({ file, ...diagnosisJson(d) }) : formatDiagnosis(d));
   return 0;
 }

@@ -130,7 +130,7 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
   }
   const loaded = loadPlantFile(o.file, io);
   const { plant, text } = loaded;
-  enforceFileBudget(loaded, o.file, io, {
+  const built = enforceFileBudget(loaded, o.file, io, {
     noLimits: o.noLimits,
     runs: o.evaluations,
     given: { runs: `looprig: optimize: --evaluations ${o.evaluations}` },
@@ -142,7 +142,7 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
   }
   const showProgress = io.isTTY && !o.json;
   const t0 = performance.now();
-  const optimizer = createOptimizer(tuningContext(plant), {
+  const optimizer = createOptimizer(tuningContext(plant, built.dynamics), {
     structure,
     msTarget: o.ms ?? undefined,
     cost: { kind: o.cost, outputVariationWeight: o.duWeight },

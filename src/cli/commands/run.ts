@@ -6,9 +6,10 @@ import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { compilePlant, MIN_STEP, plantUnits, withUnit } from '../../model/index.js';
-import { requirementUnitOf } from '../../loop/index.js';
+import { buildLoop, requirementUnitOf, STREAM_ROWS } from '../../loop/index.js';
 import type { ControllerStructure, PlantSpec, Requirements } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
+import type { TrialChunk } from '../../sim/index.js';
 import { UserError } from '../errors.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
@@ -96,7 +97,9 @@ export type TweakWhen = 'asked' | 'within-budget' | 'none';
 export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options.tweak === true ? 'asked' : 'none'): RunReport {
   const loaded = loadPlantFile(options.file, io, options.overrides);
   const plant = withRunOverrides(loaded.plant, options);
+  // Compiled and built once: the budget is worked out on the loop that runs.
   const dynamics = compilePlant(plant);
+  const built = buildLoop(plant, { dynamics });
   const given = {
     ...(options.duration !== null && { duration: `looprig: run: --duration ${num(options.duration)} s` }),
     ...(options.step !== null && { step: `looprig: run: --step ${num(options.step)} s` }),
@@ -104,11 +107,14 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
   // run simulates only: no margins, so a long dead time costs only its (bounded) delay line;
   // the tweak guide adds its runs (at most 11) and Ms.
   const tweakBudget = { frequencyAnalysis: true, runs: TWEAK_RUNS, given };
-  enforceBudget(plant, dynamics, { text: loaded.text, file: options.file }, io, {
+  enforceBudget(plant, built, { text: loaded.text, file: options.file }, io, {
     noLimits: options.noLimits,
-    ...(tweak === 'asked' ? tweakBudget : { frequencyAnalysis: (options.svgFrequency ?? null) !== null, runs: 1, given }),
+    // A trial over STREAM_ROWS rows is streamed (simulate-plant.ts): it holds a chunk and its kept
+    // rows, not its trace (and is run twice: the second pass costs time, not memory). The tweak
+    // guide's runs are held whole.
+    ...(tweak === 'asked' ? tweakBudget : { frequencyAnalysis: (options.svgFrequency ?? null) !== null, runs: 1, given, heldRows: STREAM_ROWS }),
   });
-  const sim = simulatePlant(plant, dynamics);
+  const sim = simulatePlant(plant, dynamics, built);
   const { result, metrics, requirements } = sim;
   const warnings = [...loaded.warnings, ...sim.warnings];
   for (const [key, name] of FREQUENCY_REQUIREMENTS) {
@@ -117,11 +123,11 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
   let guide: TweakGuide | null = null;
   if (tweak === 'asked') guide = runTweak(plant, dynamics, warnings);
   else if (tweak === 'within-budget') {
-    const over = plantBudget(plant, dynamics, loaded.text, options.file, { ...tweakBudget, limits: options.noLimits ? null : DEFAULT_BUDGET });
+    const over = plantBudget(plant, built, loaded.text, options.file, { ...tweakBudget, limits: options.noLimits ? null : DEFAULT_BUDGET });
     if (over.length > 0) warnings.push(`tweak guide left out (its ${TWEAK_RUNS} runs and margins): ${refusalLine(over[0])}`);
     else guide = runTweak(plant, dynamics, warnings);
   }
-  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: guide };
+  return { file: options.file, plant, result, metrics, requirements, warnings, tweak: guide, replay: sim.replay };
 }
 
 /** Most runs of the tweak guide: the gains as they are and ±10 % on kc, ti, td, n and b. */
@@ -171,7 +177,9 @@ export async function runCommand(args: readonly string[], io: Io): Promise<numbe
   // the text shows its table only with --tweak.
   const report = runPlant(options, io, options.tweak === true ? 'asked' : options.json ? 'within-budget' : 'none');
   if (options.csv !== null) {
-    writeOutput(io, options.csv, traceCsvChunks(report.result.trace));
+    // Every sample: a streamed trial is run again for its rows, a chunk at a time.
+    const replay = report.replay ?? null;
+    writeOutput(io, options.csv, replay === null ? traceCsvChunks(report.result.trace) : chunksCsv(report.result.trace.disturbanceNames, replay()));
   }
   if (options.svg !== null) writeRunSvg(report, options.svg, options.overrides.length > 0, io);
   if ((options.svgFrequency ?? null) !== null) writeFrequencySvg(report.plant, compilePlant(report.plant), options.file, options.svgFrequency!, options.overrides.length > 0, io);
@@ -189,7 +197,21 @@ const CSV_CHUNK_ROWS = 4096;
  * sample, as chunks of text (the header first) so a long trace goes to disk a piece at a time.
  */
 export function* traceCsvChunks(trace: Trace, rowsPerChunk: number = CSV_CHUNK_ROWS): Generator<string> {
-  yield `${['t', 'setpoint', 'output', 'measured', 'u', ...trace.disturbanceNames].join(',')}\n`;
+  yield csvHeader(trace.disturbanceNames);
+  yield* csvRows(trace, rowsPerChunk);
+}
+
+/** The CSV of a streamed trial's rows (its replay), as `traceCsvChunks` writes a whole trace. */
+export function* chunksCsv(disturbanceNames: readonly string[], chunks: Iterable<TrialChunk>): Generator<string> {
+  yield csvHeader(disturbanceNames);
+  for (const { chunk } of chunks) yield* csvRows(chunk, CSV_CHUNK_ROWS);
+}
+
+function csvHeader(disturbanceNames: readonly string[]): string {
+  return `${['t', 'setpoint', 'output', 'measured', 'u', ...disturbanceNames].join(',')}\n`;
+}
+
+function* csvRows(trace: Trace, rowsPerChunk: number): Generator<string> {
   for (let start = 0; start < trace.length; start += rowsPerChunk) {
     const end = Math.min(trace.length, start + rowsPerChunk);
     let text = '';

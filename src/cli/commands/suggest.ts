@@ -7,7 +7,7 @@ import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js
 import { MIN_SAMPLE_TIME } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import type { LoopShapingTarget, PoleTarget } from '../../tune/index.js';
-import { caseFigures, caseMs, suggestGains, summarise, sweepCaseCount, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
+import { caseFigures, caseMs, suggestGains, summarise, sweepCaseCount, tuningContext, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
 import { UserError } from '../errors.js';
 import { headlineMetrics, headlineSources, rankedFigureText, stepFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
@@ -341,7 +341,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
   const sweep = { samples: options.samples };
   // Every rule's trial, and its sweep over the uncertainty.
   const cases = sweepCaseCount(plant, { ...sweep, nominal: false }) + 1;
-  enforceFileBudget(loaded, options.file, io, {
+  const built = enforceFileBudget(loaded, options.file, io, {
     noLimits: options.noLimits,
     runs: (TUNING_RULES.length + (options.poles ? 2 : 0) + (options.shaping ? 2 : 0) + (options.maxMs ? 1 : 0)) * cases,
     given: options.samples > 0 ? { runs: `looprig: suggest: --samples ${options.samples}` } : {},
@@ -350,6 +350,7 @@ export async function suggestCommand(args: readonly string[], io: Io): Promise<n
   // rule's sweep is then run by the pool, combined with its nominal case as suggestGains does.
   const parallel = options.jobs > 1 && cases >= MIN_PARALLEL_CASES;
   const result = suggestGains(plant, {
+    context: tuningContext(plant, built.dynamics),
     tauc: options.tauc,
     lambda: options.lambda,
     ultimate: options.relay ? 'relay' : 'model',
