@@ -1,6 +1,6 @@
 /**
  * Start-up benchmark: whole processes of the installed CLI (package.json's bin: the code-split
- * bundle dist/bundle/, scripts/bundle.mjs) against bare `node -e 0`, run in alternation in the
+ * bundle dist/bundle/, src/bundle.mjs) against bare `node -e 0`, run in alternation in the
  * same run (paired), medians. `--help` and `--version` load no command and no core folder
  * (test/cli/startup.test.ts); `check` and `run` on one small plant load what those commands need.
  * Baselines in the same run: the tsc output dist/cli/bin.js unbundled (one ES module per source

@@ -1,5 +1,5 @@
 /**
- * Spawn tests of the installed bin (package.json's bin: the code-split bundle scripts/bundle.mjs
+ * Spawn tests of the installed bin (package.json's bin: the code-split bundle src/bundle.mjs
  * makes from the tsc output), built by test/helpers/build-bin.ts into a folder laid out like the
  * installed package: the test checks the real build output - shebang, chunk resolution, yaml
  * inside the bundle, the plants folder found from import.meta.url, the sweep worker's entry.

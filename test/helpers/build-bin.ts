@@ -17,7 +17,7 @@ export const REPO_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..', 
 
 /**
  * Build into node_modules/.cache/`name`: tsc, then the bundle of the installed command
- * (scripts/bundle.mjs). Returns the path of package.json's bin, dist/bundle/bin.js (throws on a
+ * (src/bundle.mjs). Returns the path of package.json's bin, dist/bundle/bin.js (throws on a
  * build error).
  */
 export function buildBin(name: string): { pkg: string; bin: string } {
@@ -50,8 +50,8 @@ export function buildBin(name: string): { pkg: string; bin: string } {
   });
   const compiled = join(pkg, 'dist', 'cli', 'bin.js');
   if (tsc.status !== 0 || !existsSync(compiled)) throw new Error(`tsc failed (${tsc.status}):\n${tsc.stdout}${tsc.stderr}`);
-  // Then the installed command, as `npm run build` makes it (scripts/bundle.mjs): package.json's bin.
-  const bundle = spawnSync(process.execPath, [join(root, 'scripts', 'bundle.mjs'), pkg], { encoding: 'utf8' });
+  // Then the installed command, as `npm run build` makes it (src/bundle.mjs): package.json's bin.
+  const bundle = spawnSync(process.execPath, [join(root, 'src', 'bundle.mjs'), pkg], { encoding: 'utf8' });
   const bin = join(pkg, 'dist', 'bundle', 'bin.js');
   if (bundle.status !== 0 || !existsSync(bin)) throw new Error(`bundle failed (${bundle.status}):\n${bundle.stdout}${bundle.stderr}`);
   return { pkg, bin };
