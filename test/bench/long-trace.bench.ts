@@ -40,7 +40,7 @@ function measure(file: string, rows: number): { s: number; mb: number } {
 
 export async function run(): Promise<void> {
   for (const [cmd, args] of [['tsc', ['-p', join(root, 'src', 'tsconfig.build.json')]], ['bundle', []]] as const) {
-    const script = cmd === 'tsc' ? join(root, 'node_modules', 'typescript', 'bin', 'tsc') : join(root, 'scripts', 'bundle.mjs');
+    const script = cmd === 'tsc' ? join(root, 'node_modules', 'typescript', 'bin', 'tsc') : join(root, 'src', 'bundle.mjs');
     const b = spawnSync(process.execPath, [script, ...args], { encoding: 'utf8' });
     if (b.status !== 0) throw new Error(`${cmd} failed:\n${b.stdout}${b.stderr}`);
   }

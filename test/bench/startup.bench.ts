@@ -48,7 +48,7 @@ function moduleCount(args: string[]): number {
 export async function run(): Promise<void> {
   const tsc = spawnSync(process.execPath, [join(root, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', join(root, 'src', 'tsconfig.build.json')], { encoding: 'utf8' });
   if (tsc.status !== 0) throw new Error(`build failed:\n${tsc.stdout}${tsc.stderr}`);
-  const bundle = spawnSync(process.execPath, [join(root, 'scripts', 'bundle.mjs')], { encoding: 'utf8' });
+  const bundle = spawnSync(process.execPath, [join(root, 'src', 'bundle.mjs')], { encoding: 'utf8' });
   if (bundle.status !== 0) throw new Error(`bundle failed:\n${bundle.stdout}${bundle.stderr}`);
   const commands = readdirSync(join(root, 'dist', 'cli', 'commands')).filter((f) => f.endsWith('.js'));
   const eagerSource =
