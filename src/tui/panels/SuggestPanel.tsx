@@ -13,7 +13,7 @@ import type { Theme } from '../theme.js';
 import type { SuggestView } from '../tuning-views.js';
 import { gainsText } from './GainsPanel.js';
 import { Heading } from './Heading.js';
-import { Line, fit, type Piece } from './line.js';
+import { Line, ellipsizePieces, fit, type Piece } from './line.js';
 import { wrap } from './wrap.js';
 
 /** A figure in at most `digits` significant digits; '-' for NaN. */
@@ -87,6 +87,9 @@ export function figuresFrom(head: SuggestView['rows'][number]['head'] | null): s
   return from === '' ? '' : `  (figures: ${from})`;
 }
 
+/** Most lines the rules that did not apply take under the table. */
+const SKIPPED_MAX_LINES = 2;
+
 export interface SuggestPanelProps {
   view: SuggestView | null;
   selected: number;
@@ -121,7 +124,10 @@ export function SuggestPanel(p: SuggestPanelProps) {
     if (from !== '') detail.push([{ text: from, color: t.dim }]);
   }
   if (v !== null && v.finished && v.skipped.length > 0) {
-    detail.push([{ text: `not applicable: ${v.skipped.map((k) => `${k.label} (${k.reason})`).join('; ')}`, color: t.dim }]);
+    // The reason is the useful part: wrapped, at most two lines, the second ending at a word.
+    const lines = wrap(`not applicable: ${v.skipped.map((k) => `${k.label} (${k.reason})`).join('; ')}`, p.width);
+    if (lines.length > SKIPPED_MAX_LINES) lines.splice(SKIPPED_MAX_LINES - 1, Infinity, ellipsizePieces([{ text: lines.slice(SKIPPED_MAX_LINES - 1).join(' ') }], p.width)[0].text);
+    for (const text of lines) detail.push([{ text, color: t.dim }]);
   }
   // Under the heading: the table header, the rows, the detail lines, the caution. When lines are
   // short the detail goes first; the caution stays as long as any row is shown, because it is
