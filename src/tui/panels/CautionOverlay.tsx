@@ -11,13 +11,14 @@ export const CAUTION_TEXT: readonly string[] = [
   'Before you use these gains on a real loop',
   'Gains tuned here are a starting point, not a result. The simulation is only as good as the plant file: dead time, valve behaviour, noise and load changes on the equipment will differ from it.',
   'Change gains on the real controller in small steps, with the interlocks active, a manual fallback ready and someone watching the process.',
+  'Local codes, site procedures and licensed engineering practice come first; looprig does not replace them.',
 ];
 
 /** The same caution in few words, for a terminal too small for the whole of it (same order). */
 export const CAUTION_SHORT: readonly string[] = [
   'Before you use these gains',
-  'They are a starting point: the real plant differs from the file.',
-  'Change the real controller in small steps, interlocks on, manual fallback ready, someone watching.',
+  'A starting point only: the real plant differs from the file.',
+  'Small steps on the real controller, interlocks on, manual fallback, someone watching; local codes first.',
 ];
 
 export function CautionOverlay(p: { width: number; height: number; theme: Theme }) {
