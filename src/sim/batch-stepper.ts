@@ -426,6 +426,11 @@ export function batchSource(
     }
   } else {
     sub = ['const $t = $tk + $i * h;'];
+    // With a valve law per step, the plant inputs of the whole sample are worked out first, in a
+    // loop of their own over the steps ($W, step-major): they do not depend on the plant, each
+    // copy's run in the same order as before (the same numbers), and the step loop of the stages
+    // is then free of the valve's chain and of its Math.exp call.
+    const ahead: string[] = [];
     for (let c = 0; c < K; c++) {
       // This copy's held input and valve numbers as locals for the sample (see inputCode).
       const zo = c * widths.z;
@@ -437,7 +442,14 @@ export function batchSource(
         after.push(`Z[${zo + S('xv')}] = ${q(c, 'vxv')};`);
       }
       pre.push(`const ${held.join(', ')};`, `let ${q(c, 'u')} = 0;`);
-      sub.push(`{ ${inputCode(c).join('\n')}\n${q(c, 'u')} = u; }`);
+      if (perStep) {
+        ahead.push(`{ ${inputCode(c).join('\n')}\n$W[$i * ${K} + ${c}] = u; }`);
+        sub.push(`${q(c, 'u')} = $W[$i * ${K} + ${c}];`);
+      } else sub.push(`{ ${inputCode(c).join('\n')}\n${q(c, 'u')} = u; }`);
+    }
+    if (perStep) {
+      setup.push(`const $W = new Float64Array(${K} * n);`);
+      pre.push(`for (let $i = 0; $i < n; $i++) {\n${ahead.join('\n')}\n}`);
     }
     const perCopy: { stages: string[]; update: string }[] = [];
     for (let c = 0; c < K; c++) {
