@@ -56,7 +56,7 @@ function spec(t: string): PlantSpec {
 
 /**
  * The same loop written by hand: PI (clamp), limits, stiction, the characteristic at the stem when
- * the stem moved, lag and characteristic per step (relative to the stem, e^w by its series when small,
+ * the stem moved, lag and characteristic per step (relative to the stem, e^w by its series in Estrin's form when small,
  * as element-laws.ts defines the valve), RK4.
  */
 function handLoop(s: PlantSpec): () => number {
@@ -104,8 +104,9 @@ function handLoop(s: PlantSpec): () => number {
       for (let i = 0; i < n; i++) {
         const dv = xv - xs;
         const w = rga * (xs + dv * lm - xs);
+        const w2 = w * w;
         xv = xs + dv * la;
-        const u = a.min + cb * (w >= -lim && w <= lim ? 1 + w * (1 + w * (0.5 + w * (1 / 6 + w * (1 / 24 + w * (1 / 120 + w / 720))))) : Math.exp(w));
+        const u = a.min + cb * (w >= -lim && w <= lim ? 1 + w + w2 * (0.5 + w * (1 / 6) + w2 * (1 / 24 + w * (1 / 120) + w2 * (1 / 720))) : Math.exp(w));
         const k1 = (K * u - x) / T;
         const k2 = (K * u - (x + 0.5 * h * k1)) / T;
         const k3 = (K * u - (x + 0.5 * h * k2)) / T;
