@@ -426,31 +426,26 @@ export function batchSource(
     }
   } else {
     sub = ['const $t = $tk + $i * h;'];
-    // With a valve law per step, the plant inputs of the whole sample are worked out first, in a
-    // loop of their own over the steps ($W, step-major): they do not depend on the plant, each
-    // copy's run in the same order as before (the same numbers), and the step loop of the stages
-    // is then free of the valve's chain and of its Math.exp call.
-    const ahead: string[] = [];
-    for (let c = 0; c < K; c++) {
-      // This copy's held input and valve numbers as locals for the sample (see inputCode).
-      const zo = c * widths.z;
-      const o = c * widths.p;
-      const held = [`${q(c, 'hold')} = Z[${zo + S(perStep ? 'xs' : 'ui')}]`];
-      if (perStep) {
-        held.push(...stepReads.map((f) => `${q(c, `v${f}`)} = P[${o + F(f)}]`), `${q(c, 'vxs')} = Z[${zo + S('xs')}]`, `${q(c, 'vcb')} = Z[${zo + S('cb')}]`);
-        pre.push(`let ${q(c, 'vxv')} = Z[${zo + S('xv')}];`);
-        after.push(`Z[${zo + S('xv')}] = ${q(c, 'vxv')};`);
-      }
-      pre.push(`const ${held.join(', ')};`, `let ${q(c, 'u')} = 0;`);
-      if (perStep) {
-        ahead.push(`{ ${inputCode(c).join('\n')}\n$W[$i * ${K} + ${c}] = u; }`);
-        sub.push(`${q(c, 'u')} = $W[$i * ${K} + ${c}];`);
-      } else sub.push(`{ ${inputCode(c).join('\n')}\n${q(c, 'u')} = u; }`);
-    }
     if (perStep) {
+      // With a valve law per step, the plant inputs of the whole sample are worked out first, in a
+      // loop of their own over the steps ($W, step-major), each copy's valve numbers in locals: the
+      // inputs do not depend on the plant, each copy's run in the same order as before (the same
+      // numbers), and the step loop of the stages is then free of the valve's chain and of its
+      // Math.exp call. Without one, the loop over the copies above, inside the step loop.
+      const ahead: string[] = [];
+      for (let c = 0; c < K; c++) {
+        const zo = c * widths.z;
+        const o = c * widths.p;
+        const held = [`${q(c, 'hold')} = Z[${zo + S('xs')}]`, ...stepReads.map((f) => `${q(c, `v${f}`)} = P[${o + F(f)}]`), `${q(c, 'vxs')} = Z[${zo + S('xs')}]`, `${q(c, 'vcb')} = Z[${zo + S('cb')}]`];
+        pre.push(`let ${q(c, 'vxv')} = Z[${zo + S('xv')}];`, `const ${held.join(', ')};`);
+        after.push(`Z[${zo + S('xv')}] = ${q(c, 'vxv')};`);
+        ahead.push(`{ ${inputCode(c).join('\n')}\n$W[$i * ${K} + ${c}] = u; }`);
+        sub.push(`$U[${c}] = $W[$i * ${K} + ${c}];`);
+      }
       setup.push(`const $W = new Float64Array(${K} * n);`);
       pre.push(`for (let $i = 0; $i < n; $i++) {\n${ahead.join('\n')}\n}`);
-    }
+    } else sub.push(...input);
+    for (let c = 0; c < K; c++) sub.push(`const ${q(c, 'u')} = $U[${c}];`);
     const perCopy: { stages: string[]; update: string }[] = [];
     for (let c = 0; c < K; c++) {
       perCopy.push(
@@ -488,7 +483,7 @@ export function batchSource(
         after.push(`Z[${c * widths.z + ns + i}] = ${q(c, `x${i}`)};`);
         fin.push(`Number.isFinite(${q(c, `x${i}`)})`);
       }
-      after.push(`Z[${c * widths.z + S('uPlant')}] = ${q(c, 'u')};`);
+      after.push(`Z[${c * widths.z + S('uPlant')}] = $U[${c}];`);
       if (nx > 0) after.push(`if (OUT[${c}] === 0 && !(${fin.join(' && ')})) { OUT[${c}] = k + 1; $alive--; }`);
     }
   }
