@@ -353,31 +353,44 @@ export function batchSource(
     for (let i = 0; i < nx; i++) xs.push(`${q(c, `x${i}`)} = Z[${c * widths.z + ns + i}]`);
     if (xs.length > 0) pre.push(`let ${xs.join(', ')};`);
   }
-  const input: string[] = [`for (let c = 0; c < ${K}; c++) {`, `const o = c * ${widths.p}, zo = c * ${widths.z};`];
   const perStep = valvePerStep(shape.valve, shape.rateLimited);
-  // Held over the sample: the plant input itself, or the stem the per-step valve law shapes.
-  input.push(`let u = Z[zo + ${S(perStep ? 'xs' : 'ui')}];`);
-  if (shape.rateLimited) {
-    // Actuator.fillSteps: the mean of the ramp-then-hold path over step $i.
-    input.push(
-      `const $tr = Z[zo + ${S('rampTime')}];`,
-      `if ($tr !== 0) { const $st = Z[zo + ${S('start')}], $sg = Z[zo + ${S('rampSign')}], $rl = P[o + ${F('rate')}], $en = Z[zo + ${S('end')}]; ` +
-        `const $s = ($i + 1) * h; const $nx = ${actuatorPathIntegral('$s', '$tr', '$st', '$sg', '$rl', '$en')}; ` +
-        `u = ($nx - Z[zo + ${S('prev')}]) / h; Z[zo + ${S('prev')}] = $nx; }`,
-    );
-  }
-  if (perStep) {
-    // Actuator.fillSteps: lag and characteristic of the step.
-    const law = valveStepLaw(shape.valve);
-    const reads = ['amin', 'aspan', 'rga', 'la', 'lm'].filter((f) => law.includes(f)).map((f) => `${f} = P[o + ${F(f as (typeof BATCH_FIELDS)[number])}]`);
-    reads.push(`xs = Z[zo + ${S('xs')}]`, `cb = Z[zo + ${S('cb')}]`);
-    input.push(`{ const ${reads.join(', ')}; let xv = Z[zo + ${S('xv')}];`, law, `Z[zo + ${S('xv')}] = xv; }`);
-  }
-  if (shape.inputDelay) {
-    input.push(pushLine('B[2 * c]', `zo + ${S('ih')}`, 'u'));
-    input.push(readLine('B[2 * c]', `Z[zo + ${S('ih')}]`, `P[o + ${F('inDelay')}]`, 'u'));
-  }
-  input.push('$U[c] = u;', '}');
+  const stepLaw = perStep ? valveStepLaw(shape.valve) : '';
+  const stepReads = ['amin', 'aspan', 'rga', 'la', 'lm'].filter((f) => stepLaw.includes(f)) as (typeof BATCH_FIELDS)[number][];
+  /**
+   * The plant input of one integration step for copy `c`, into `u`: the held value (the plant
+   * input itself, or the stem the per-step valve law shapes), the rate-limit ramp, the valve's lag
+   * and characteristic, the input delay line. `c === null`: inside a loop over the copies, the
+   * valve's numbers read from P and Z every step; a number: that copy written out, its valve
+   * numbers in locals read once per sample (`pre`) and its lag state written back after the
+   * sample (`after`): per step the valve costs only its arithmetic, as the integrator stages do.
+   */
+  const inputCode = (c: number | null): string[] => {
+    const out: string[] = [];
+    const v = (name: string): string => (c === null ? name : q(c, `v${name}`));
+    if (c === null) out.push(`const o = c * ${widths.p}, zo = c * ${widths.z};`, `let u = Z[zo + ${S(perStep ? 'xs' : 'ui')}];`);
+    else out.push(`const o = ${c * widths.p}, zo = ${c * widths.z};`, `let u = ${q(c, 'hold')};`);
+    if (shape.rateLimited) {
+      // Actuator.fillSteps: the mean of the ramp-then-hold path over step $i.
+      out.push(
+        `const $tr = Z[zo + ${S('rampTime')}];`,
+        `if ($tr !== 0) { const $st = Z[zo + ${S('start')}], $sg = Z[zo + ${S('rampSign')}], $rl = P[o + ${F('rate')}], $en = Z[zo + ${S('end')}]; ` +
+          `const $s = ($i + 1) * h; const $nx = ${actuatorPathIntegral('$s', '$tr', '$st', '$sg', '$rl', '$en')}; ` +
+          `u = ($nx - Z[zo + ${S('prev')}]) / h; Z[zo + ${S('prev')}] = $nx; }`,
+      );
+    }
+    if (perStep) {
+      // Actuator.fillSteps: lag and characteristic of the step.
+      const reads = stepReads.map((f) => (c === null ? `${f} = P[o + ${F(f)}]` : `${f} = ${v(f)}`));
+      reads.push(c === null ? `xs = Z[zo + ${S('xs')}]` : `xs = ${v('xs')}`, c === null ? `cb = Z[zo + ${S('cb')}]` : `cb = ${v('cb')}`);
+      out.push(`{ const ${reads.join(', ')}; let xv = ${c === null ? `Z[zo + ${S('xv')}]` : v('xv')};`, stepLaw, `${c === null ? `Z[zo + ${S('xv')}]` : v('xv')} = xv; }`);
+    }
+    if (shape.inputDelay) {
+      out.push(pushLine(`B[2 * ${c ?? 'c'}]`, `zo + ${S('ih')}`, 'u'));
+      out.push(readLine(`B[2 * ${c ?? 'c'}]`, `Z[zo + ${S('ih')}]`, `P[o + ${F('inDelay')}]`, 'u'));
+    }
+    return out;
+  };
+  const input: string[] = [`for (let c = 0; c < ${K}; c++) {`, ...inputCode(null), '$U[c] = u;', '}'];
 
   let sub: string[];
   const after: string[] = [];
@@ -412,10 +425,29 @@ export function batchSource(
       if (nx > 0) after.push(`if (OUT[${c}] === 0) { for (let $j = 0; $j < ${nx}; $j++) if (!Number.isFinite($X${c}[$j])) { OUT[${c}] = k + 1; $alive--; break; } }`);
     }
   } else {
-    sub = ['const $t = $tk + $i * h;', ...input];
+    sub = ['const $t = $tk + $i * h;'];
+    if (perStep) {
+      // With a valve law per step, the plant inputs of the whole sample are worked out first, in a
+      // loop of their own over the steps ($W, step-major), each copy's valve numbers in locals: the
+      // inputs do not depend on the plant, each copy's run in the same order as before (the same
+      // numbers), and the step loop of the stages is then free of the valve's chain and of its
+      // Math.exp call. Without one, the loop over the copies above, inside the step loop.
+      const ahead: string[] = [];
+      for (let c = 0; c < K; c++) {
+        const zo = c * widths.z;
+        const o = c * widths.p;
+        const held = [`${q(c, 'hold')} = Z[${zo + S('xs')}]`, ...stepReads.map((f) => `${q(c, `v${f}`)} = P[${o + F(f)}]`), `${q(c, 'vxs')} = Z[${zo + S('xs')}]`, `${q(c, 'vcb')} = Z[${zo + S('cb')}]`];
+        pre.push(`let ${q(c, 'vxv')} = Z[${zo + S('xv')}];`, `const ${held.join(', ')};`);
+        after.push(`Z[${zo + S('xv')}] = ${q(c, 'vxv')};`);
+        ahead.push(`{ ${inputCode(c).join('\n')}\n$W[$i * ${K} + ${c}] = u; }`);
+        sub.push(`$U[${c}] = $W[$i * ${K} + ${c}];`);
+      }
+      setup.push(`const $W = new Float64Array(${K} * n);`);
+      pre.push(`for (let $i = 0; $i < n; $i++) {\n${ahead.join('\n')}\n}`);
+    } else sub.push(...input);
+    for (let c = 0; c < K; c++) sub.push(`const ${q(c, 'u')} = $U[${c}];`);
     const perCopy: { stages: string[]; update: string }[] = [];
     for (let c = 0; c < K; c++) {
-      sub.push(`const ${q(c, 'u')} = $U[${c}];`);
       perCopy.push(
         integratorStages(integrator, nx, prepared.deriv, {
           x: (i) => q(c, `x${i}`),

@@ -40,7 +40,7 @@ export { eventSchedule, trialRows, sampleIndexAt, SAMPLE_EPS } from './event-sch
 export type { EventSchedule, ScheduledEvent } from './event-schedule.js';
 export type { TrialOptions, StreamedRun, TrialChunk } from './run-trial.js';
 export { loopStart } from './start-state.js';
-export { pidInitLaw, pidUpdateLaw, pidTrackLaw, EXP_SERIES_LIMIT } from './element-laws.js';
+export { pidInitLaw, pidUpdateLaw, pidTrackLaw, EXP_SERIES_LIMIT, valveStepLaw } from './element-laws.js';
 export type { PidNames } from './element-laws.js';
 export { compileElementLaw } from './generate-stepper.js';
 export { decimateMinMax } from './decimate.js';

@@ -5,12 +5,17 @@
  *   only, the same operations per sample and per integration step; no trace), measured in the
  *   same run;
  * - sweep: runTrialBatch over 48 cases of the plant with the valve against the same cases without
- *   stiction, lag and characteristic (the batched sweep's throughput cost of the valve).
+ *   stiction, lag and characteristic (the batched sweep's throughput cost of the valve);
+ * - the bundled plants/sticky-flow-valve.yaml swept the same way (48 gains across its uncertainty
+ *   range): as the file (stiction and lag), with an equal-percentage characteristic added, and
+ *   without its valve; then the same with the model made second order (two states, a fairer
+ *   denominator than one state: the valve's cost per step is the same, the plant's is larger).
  * Rounds interleaved; the figure is the best round, the median beside it (CPU time, see `time`).
  *
  * Run: `npm run bench -- valve`.
  */
-import { pathToFileURL } from 'node:url';
+import { readFileSync } from 'node:fs';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import { buildLoop } from '../../src/loop/index.js';
 import { loadPlant } from '../../src/model/index.js';
 import type { PlantSpec } from '../../src/model/types.js';
@@ -51,7 +56,7 @@ function spec(t: string): PlantSpec {
 
 /**
  * The same loop written by hand: PI (clamp), limits, stiction, the characteristic at the stem when
- * the stem moved, lag and characteristic per step (relative to the stem, e^w by its series when small,
+ * the stem moved, lag and characteristic per step (relative to the stem, e^w by its series in Estrin's form when small,
  * as element-laws.ts defines the valve), RK4.
  */
 function handLoop(s: PlantSpec): () => number {
@@ -99,8 +104,9 @@ function handLoop(s: PlantSpec): () => number {
       for (let i = 0; i < n; i++) {
         const dv = xv - xs;
         const w = rga * (xs + dv * lm - xs);
+        const w2 = w * w;
         xv = xs + dv * la;
-        const u = a.min + cb * (w >= -lim && w <= lim ? 1 + w * (1 + w * (0.5 + w * (1 / 6 + w * (1 / 24 + w * (1 / 120 + w / 720))))) : Math.exp(w));
+        const u = a.min + cb * (w >= -lim && w <= lim ? 1 + w + w2 * (0.5 + w * (1 / 6) + w2 * (1 / 24 + w * (1 / 120) + w2 * (1 / 720))) : Math.exp(w));
         const k1 = (K * u - x) / T;
         const k2 = (K * u - (x + 0.5 * h * k1)) / T;
         const k3 = (K * u - (x + 0.5 * h * k2)) / T;
@@ -144,19 +150,31 @@ export async function run(): Promise<void> {
   const sweepSticky = sweep(loops('  stiction: { static: 1.5, dynamic: 0.7 }\n'));
   void bare;
 
+  // The bundled sticky flow valve: the file's valve, with a characteristic added, without a valve.
+  const file = readFileSync(fileURLToPath(new URL('../../plants/sticky-flow-valve.yaml', import.meta.url)), 'utf8');
+  const noValve = file.replace(/^ {2}stiction:.*\n/m, '').replace(/^ {2}lag:.*\n/m, '');
+  const eqPct = file.replace(/^( {2}lag:.*\n)/m, '$1  characteristic: equal_percentage\n  rangeability: 30\n');
+  const twoStates = (t: string): string => t.replace('type: first_order', 'type: second_order').replace('time_constant: 3 s', 'time_constant: [3 s, 1 s]');
+  if (noValve === file || eqPct === file || twoStates(file) === file) throw new Error('plants/sticky-flow-valve.yaml changed: the bench edits no longer apply');
+  const fileLoops = (t: string) =>
+    Array.from({ length: 48 }, (_, i) => buildLoop(spec(t.replace('gain: 0.4 ', `gain: ${(0.35 + (i * 0.1) / 47).toFixed(4)} `))));
+  const fileSweeps = [file, eqPct, noValve, twoStates(file), twoStates(eqPct), twoStates(noValve)].map((t) => sweep(fileLoops(t)));
+  const tFile: number[][] = fileSweeps.map(() => []);
+
   const rounds = 7;
   const tEngine: number[] = [];
   const tHand: number[] = [];
   const tValve: number[] = [];
   const tBare: number[] = [];
   const tSticky: number[] = [];
-  for (const f of [engine, hand, sweepValve, sweepBare, sweepSticky]) f();
+  for (const f of [engine, hand, sweepValve, sweepBare, sweepSticky, ...fileSweeps]) f();
   for (let r = 0; r < rounds; r++) {
     tEngine.push(time(engine, 20));
     tHand.push(time(hand, 20));
     tValve.push(time(sweepValve, 2));
     tBare.push(time(sweepBare, 2));
     tSticky.push(time(sweepSticky, 2));
+    fileSweeps.forEach((f, i) => tFile[i].push(time(f, 2)));
   }
   const best = (xs: number[]): number => Math.min(...xs);
   const line = (name: string, xs: number[], unit: string): void =>
@@ -171,6 +189,14 @@ export async function run(): Promise<void> {
   line('without them', tBare, 'ms');
   console.log(`  throughput ratio with all three / without: ${(best(tBare) / best(tValve)).toFixed(2)} (1 = no cost)`);
   console.log(`  throughput ratio with stiction only / without: ${(best(tBare) / best(tSticky)).toFixed(2)}`);
+  for (const [at, states] of [[0, 'one state'], [3, 'second order, two states']] as const) {
+    console.log(`batched sweep, 48 cases of plants/sticky-flow-valve.yaml (${states}):`);
+    line('as the file (stiction + lag)', tFile[at], 'ms');
+    line('with equal percentage added', tFile[at + 1], 'ms');
+    line('without the valve', tFile[at + 2], 'ms');
+    console.log(`  throughput ratio file valve / without: ${(best(tFile[at + 2]) / best(tFile[at])).toFixed(2)}`);
+    console.log(`  throughput ratio with all three / without: ${(best(tFile[at + 2]) / best(tFile[at + 1])).toFixed(2)}`);
+  }
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) await run();

@@ -10,7 +10,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { ActuatorSpec } from '../../src/model/types.js';
-import { Actuator, EXP_SERIES_LIMIT, runTrial, Sensor } from '../../src/sim/index.js';
+import { Actuator, EXP_SERIES_LIMIT, runTrial, Sensor, valveStepLaw } from '../../src/sim/index.js';
 import { ConstantController } from './controllers.js';
 import * as H from './hand-plants.js';
 import { loopConfig, QUIET_SENSOR, trial } from './loops.js';
@@ -120,6 +120,35 @@ describe('characteristic and lag (per integration step)', () => {
     });
     expect(series).toBeGreaterThan(20);
     expect(series).toBeLessThan(n - 20);
+  });
+  it('the polynomial the law takes for e^w when |w| <= EXP_SERIES_LIMIT is within 1 ulp of Math.exp', () => {
+    // Reference: Math.exp (V8's port of fdlibm e_exp.c, Sun Microsystems 1993: error < 1 ulp). The
+    // law compiled on its own, characteristic only: amin 0, cb 1, rga 1, stem 0 gives u = e^u.
+    const law = valveStepLaw({ sticky: false, lagged: false, characteristic: 'equal_percentage' });
+    // eslint-disable-next-line @typescript-eslint/no-implied-eval -- our own law text
+    const exp = new Function('u', 'xs', 'amin', 'cb', 'rga', `${law}\nreturn u;`) as (u: number, xs: number, amin: number, cb: number, rga: number) => number;
+    const ulp = (x: number): number => {
+      const b = new Float64Array([x]);
+      const i = new BigInt64Array(b.buffer);
+      i[0] += 1n;
+      return b[0] - x;
+    };
+    let worst = 0;
+    let equal = 0;
+    const N = 200000;
+    for (let j = 0; j < N; j++) {
+      // Magnitudes spread over [2^-46, 1/64] on a log scale and uniformly below 1/64; both signs.
+      const m = j % 2 === 0 ? (EXP_SERIES_LIMIT * (j + 1)) / N : EXP_SERIES_LIMIT * 2 ** ((-40 * j) / N);
+      const w = j % 4 < 2 ? m : -m;
+      const got = exp(w, 0, 0, 1, 1);
+      const want = Math.exp(w);
+      worst = Math.max(worst, Math.abs(got - want) / ulp(want));
+      if (got === want) equal++;
+    }
+    expect(worst).toBeLessThanOrEqual(1);
+    expect(equal / N).toBeGreaterThan(0.5);
+    // Beyond the limit the law calls Math.exp itself.
+    expect(exp(0.5, 0, 0, 1, 1)).toBe(Math.exp(0.5));
   });
   it('quick opening √f and linear f', () => {
     expect(steps({ characteristic: 'quick_opening' }, 0, 25, 1, 1)[0]).toBeCloseTo(50, 12);
