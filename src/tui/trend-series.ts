@@ -62,15 +62,21 @@ export const PV_HOLD = 0.25;
 export const SPREAD_GLYPH = '┆';
 
 /**
- * A process value as ONE line: the middle of each column's lowest and highest sample, held on its
- * row against flicker, with the column filled from lowest to highest only where they lie more
- * than a row apart. Two lines (lowest and highest) doubled every steep part and drew a ripple
- * where a settled value sat on a row boundary.
+ * A signal (process value, controller output, valve command) as ONE line: the middle of each
+ * column's lowest and highest sample, held on its row against flicker, with the column filled
+ * from lowest to highest with `spreadGlyph` only where they lie more than a row apart. Two lines
+ * (lowest and highest) doubled every steep part and drew a ripple where a settled value sat on a
+ * row boundary. A line drawn beside another of the same chart gives its own `spreadGlyph`.
  */
-export function oneLine(mm: { lo: Float64Array; hi: Float64Array }, tag: string, symbols: readonly string[]): ChartSeries {
+export function oneLine(
+  mm: { lo: Float64Array; hi: Float64Array },
+  tag: string,
+  symbols: readonly string[],
+  spreadGlyph: string = SPREAD_GLYPH,
+): ChartSeries {
   const mid = new Float64Array(mm.lo.length);
   for (let k = 0; k < mid.length; k++) mid[k] = (mm.lo[k] + mm.hi[k]) / 2;
-  return { values: mid, tag, symbols, hold: PV_HOLD, spread: { lo: mm.lo, hi: mm.hi, ch: SPREAD_GLYPH } };
+  return { values: mid, tag, symbols, hold: PV_HOLD, spread: { lo: mm.lo, hi: mm.hi, ch: spreadGlyph } };
 }
 
 /**
@@ -90,18 +96,13 @@ export function outputSeries(
   for (const lim of [limits.min, limits.max]) {
     if (Number.isFinite(lim)) out.push({ values: new Float64Array(points).fill(lim), tag: 'limit', symbols: GLYPHS.limit });
   }
-  if (baseline !== null) {
-    const b = chartPoints(baseline.t, baseline.u, baseline.length, t0, t1, points);
-    out.push({ values: b.lo, tag: 'baseline', symbols: GLYPHS.baseline });
-    out.push({ values: b.hi, tag: 'baseline', symbols: GLYPHS.baseline });
-  }
+  // Each signal is ONE line, drawn as the trend draws PV (oneLine): per-column lowest and highest
+  // as two lines doubled every steep part of the output ('╯╯ ╰╰').
+  if (baseline !== null) out.push(oneLine(chartPoints(baseline.t, baseline.u, baseline.length, t0, t1, points), 'baseline', GLYPHS.baseline));
   if ((limits.stiction?.static ?? 0) > 0 || (limits.backlash ?? 0) > 0) {
-    const c = chartPoints(trace.t, trace.uc, trace.length, t0, t1, points);
-    out.push({ values: c.lo, tag: 'sp', symbols: GLYPHS.sp });
-    out.push({ values: c.hi, tag: 'sp', symbols: GLYPHS.sp });
+    // The command's range is filled with its own dashed vertical, so it stays apart from the stem's.
+    out.push(oneLine(chartPoints(trace.t, trace.uc, trace.length, t0, t1, points), 'sp', GLYPHS.sp, GLYPHS.sp[9]));
   }
-  const u = chartPoints(trace.t, trace.u, trace.length, t0, t1, points);
-  out.push({ values: u.lo, tag: 'output', symbols: GLYPHS.output });
-  out.push({ values: u.hi, tag: 'output', symbols: GLYPHS.output });
+  out.push(oneLine(chartPoints(trace.t, trace.u, trace.length, t0, t1, points), 'output', GLYPHS.output));
   return out;
 }

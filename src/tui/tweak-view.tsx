@@ -9,7 +9,9 @@
  */
 import { Box } from 'ink';
 import { useEffect, useRef, useState } from 'react';
-import { TWEAK_FIGURE_HEADS, TWEAK_FIGURES, TWEAK_STEP, tweakChangeText, type TweakGuide } from '../tune/index.js';
+import { requirementUnitOf } from '../loop/index.js';
+import { plantUnits, type PlantUnits } from '../model/index.js';
+import { TWEAK_FIGURE_HEADS, TWEAK_FIGURES, TWEAK_STEP, tweakChangeText, type TweakFigure, type TweakGuide } from '../tune/index.js';
 import type { LoopSetup } from './engine.js';
 import { gainsText } from './panels/GainsPanel.js';
 import { Heading } from './panels/Heading.js';
@@ -60,15 +62,37 @@ export function useTweakGuide(setup: LoopSetup, edit: GainEdit): TweakState {
 /** Width of the first column ('kc +10 %'). */
 const FIRST = 9;
 
+/** The requirement whose figure each column shows (its unit is the column's); travel has none. */
+const FIGURE_REQUIREMENT: Readonly<Record<TweakFigure, string | null>> = {
+  riseTime: 'rise_time',
+  overshootPct: 'overshoot_pct',
+  settlingTime: 'settling_time',
+  iae: 'iae',
+  peakOutput: 'max_output',
+  travel: null,
+  ms: 'max_sensitivity',
+};
+
+/** The unit a column's figures are in ('' = none, or the file gives none): travel is in actuator units as peak u. */
+export function tweakFigureUnit(f: TweakFigure, units: PlantUnits): string {
+  const req = FIGURE_REQUIREMENT[f];
+  return req === null ? (units.actuator ?? '') : requirementUnitOf(req, units);
+}
+
 /**
- * The table's lines: a header, the gains as they are, then +10 % and −10 % for each parameter;
- * each cell an arrow and the signed change. `selected`: the parameter whose rows are marked '>'.
+ * The table's lines: a header, the units of the columns, the gains as they are, then +10 % and
+ * −10 % for each parameter; each cell an arrow and the signed change. The units go on a line of
+ * their own: at 80 columns a cell is 9 wide and 'overshoot %' is not. `selected`: the parameter
+ * whose rows are marked '>'.
  */
-export function tweakTableLines(g: TweakGuide, width: number, selected: string | null): string[] {
+export function tweakTableLines(g: TweakGuide, width: number, selected: string | null, units: PlantUnits): string[] {
   const col = Math.max(4, Math.floor((width - FIRST - 1) / TWEAK_FIGURES.length) - 1);
   const digits = col >= 9 ? 3 : 2;
   const line = (mark: string, first: string, cells: readonly string[]): string => `${mark}${fit(first, FIRST - 1)} ${cells.map((c) => fit(c, col)).join(' ')}`;
+  // A unit too long for its cell is cut visibly ('m3/h·s' to 'm3/…'), never silently into another unit.
+  const unitCell = (u: string): string => (u.length <= col ? u : `${u.slice(0, col - 1)}…`);
   const out = [line(' ', 'change', TWEAK_FIGURES.map((f) => TWEAK_FIGURE_HEADS[f]))];
+  out.push(line(' ', 'unit', TWEAK_FIGURES.map((f) => unitCell(tweakFigureUnit(f, units)))));
   out.push(line(' ', 'as is', TWEAK_FIGURES.map((f) => fig(g.base[f], digits))));
   const pct = 100 * TWEAK_STEP;
   for (const r of g.rows) {
@@ -99,11 +123,11 @@ export function TweakView(p: TweakViewProps) {
   const rows: Piece[][] = [[{ text: `${gainsText(p.edit)}   (selected: ${sel ?? '-'})`, bold: true }]];
   if (s.guide === null) rows.push([{ text: '  simulating ±10 % on each parameter on the full plant…', color: t.dim }]);
   else {
-    const lines = tweakTableLines(s.guide, p.width, sel);
+    const lines = tweakTableLines(s.guide, p.width, sel, plantUnits(p.setup.plant));
     // A guide for the previous gains stays until the new one is ready, dimmed.
     const dim = s.current ? undefined : t.dim;
-    rows.push([{ text: lines[0], color: t.dim }]);
-    for (const l of lines.slice(1)) rows.push([{ text: l, color: dim, bold: l.startsWith('>') }]);
+    for (const l of lines.slice(0, 2)) rows.push([{ text: l, color: t.dim }]);
+    for (const l of lines.slice(2)) rows.push([{ text: l, color: dim, bold: l.startsWith('>') }]);
     const said: string[] = [];
     for (const r of s.guide.rows) for (const c of r.contradictions) said.push(`${r.parameter} +${100 * TWEAK_STEP}%: ${c}`);
     for (const c of said) for (const w of wrap(`unlike the usual chart: ${c}`, p.width)) rows.push([{ text: w, color: t.warn }]);

@@ -5,7 +5,7 @@
 import { Box, Text } from 'ink';
 import { quantityLabel, withUnit, type PlantUnits } from '../../model/index.js';
 import type { Requirements } from '../../model/types.js';
-import { LABEL_WIDTH, pointsForWidth, renderChart } from '../chart.js';
+import { LABEL_WIDTH, pointsForWidth, renderChart, type ChartGrid } from '../chart.js';
 import type { Evaluation } from '../engine.js';
 import type { EnvelopeState } from '../hooks/use-envelope.js';
 import { MIN_TREND, type Layout } from '../layout.js';
@@ -13,7 +13,7 @@ import type { LiveRun } from '../live-run.js';
 import type { MetricRow } from '../metric-rows.js';
 import type { MarginsView, Notice } from '../notices.js';
 import type { ScreenState } from '../screen-state.js';
-import type { Theme } from '../theme.js';
+import { GLYPHS, type Theme } from '../theme.js';
 import { outputSeries, SPREAD_GLYPH, trendSeries } from '../trend-series.js';
 import { hasStripRequirements, stripSteps, VERDICT_MARKS, verdictStrip, type Strip, type StripStep } from '../verdict-strip.js';
 import { ChartPanel } from './ChartPanel.js';
@@ -121,9 +121,10 @@ export function Panels(p: PanelsProps) {
     strip = stripPieces(marked, trendGrid.gutter, theme);
     legend.push(...stripLegend(marked, theme));
   }
+  const outSeries = outputSeries(trace, baselineTrace, t0, t1, points, p.actuator);
   const outputGrid =
     layout.outputRows > 0
-      ? renderChart(outputSeries(trace, baselineTrace, t0, t1, points, p.actuator), {
+      ? renderChart(outSeries, {
           width: w,
           height: layout.outputRows,
           labelWidth: LABEL_WIDTH,
@@ -178,11 +179,7 @@ export function Panels(p: PanelsProps) {
       {outputGrid !== null && (
         <ChartPanel
           title={quantityLabel('Controller output', p.units.actuator)}
-          legend={[
-            { text: '─ u ', color: theme.output },
-            ...(baselineTrace !== null ? [{ text: '· in service ', color: theme.baseline }] : []),
-            { text: '= limits ', color: theme.limit },
-          ]}
+          legend={outputLegend(outputGrid, outSeries.some((x) => x.tag === 'sp'), baselineTrace !== null, theme)}
           grid={outputGrid}
           marks={marks}
           t0={t0}
@@ -195,6 +192,20 @@ export function Panels(p: PanelsProps) {
       {bottom}
     </Box>
   );
+}
+
+/**
+ * The output chart's legend. With a sticky valve the line is the stem and the dashed one the
+ * command; where a column's samples span more than a row it is filled, each line with its own glyph.
+ */
+function outputLegend(grid: ChartGrid, command: boolean, baseline: boolean, theme: Theme): LegendPiece[] {
+  const legend: LegendPiece[] = [{ text: command ? '─ stem ' : '─ u ', color: theme.output }];
+  if (command) legend.push({ text: `${GLYPHS.sp[4]} command `, color: theme.sp });
+  if (grid.spread.has('output')) legend.push({ text: `${SPREAD_GLYPH} ${command ? 'stem' : 'u'} range `, short: `${SPREAD_GLYPH} range `, color: theme.output, drop: 2 });
+  if (grid.spread.has('sp')) legend.push({ text: `${GLYPHS.sp[9]} command range `, short: `${GLYPHS.sp[9]} range `, color: theme.sp, drop: 3 });
+  if (baseline) legend.push({ text: '· in service ', color: theme.baseline, drop: 1 });
+  legend.push({ text: '= limits ', color: theme.limit });
+  return legend;
 }
 
 /** The verdict strip as one chart row: its label in the gutter, '·' where nothing is broken, the letter where a requirement is. */
