@@ -58,6 +58,13 @@ export function trendSeries(inp: TrendInput): ChartSeries[] {
 /** Hysteresis of a process-value line, rows (see ChartSeries.hold). */
 export const PV_HOLD = 0.25;
 
+/**
+ * Hysteresis of a controller-output line, rows. Smaller than PV's: the output chart is a few rows
+ * high with its limits drawn on the edge rows, and a 0.25-row hold kept an output settled at 0.3 of
+ * a 0–1 valve on the 0 row, over the limit line, as if still saturated.
+ */
+export const OUTPUT_HOLD = 0.1;
+
 /** Glyph filling a column whose samples spread over more than one row (noise, a fast swing). */
 export const SPREAD_GLYPH = '┆';
 
@@ -73,10 +80,11 @@ export function oneLine(
   tag: string,
   symbols: readonly string[],
   spreadGlyph: string = SPREAD_GLYPH,
+  hold: number = PV_HOLD,
 ): ChartSeries {
   const mid = new Float64Array(mm.lo.length);
   for (let k = 0; k < mid.length; k++) mid[k] = (mm.lo[k] + mm.hi[k]) / 2;
-  return { values: mid, tag, symbols, hold: PV_HOLD, spread: { lo: mm.lo, hi: mm.hi, ch: spreadGlyph } };
+  return { values: mid, tag, symbols, hold, spread: { lo: mm.lo, hi: mm.hi, ch: spreadGlyph } };
 }
 
 /**
@@ -98,11 +106,11 @@ export function outputSeries(
   }
   // Each signal is ONE line, drawn as the trend draws PV (oneLine): per-column lowest and highest
   // as two lines doubled every steep part of the output ('╯╯ ╰╰').
-  if (baseline !== null) out.push(oneLine(chartPoints(baseline.t, baseline.u, baseline.length, t0, t1, points), 'baseline', GLYPHS.baseline));
+  if (baseline !== null) out.push(oneLine(chartPoints(baseline.t, baseline.u, baseline.length, t0, t1, points), 'baseline', GLYPHS.baseline, SPREAD_GLYPH, OUTPUT_HOLD));
   if ((limits.stiction?.static ?? 0) > 0 || (limits.backlash ?? 0) > 0) {
     // The command's range is filled with its own dashed vertical, so it stays apart from the stem's.
-    out.push(oneLine(chartPoints(trace.t, trace.uc, trace.length, t0, t1, points), 'sp', GLYPHS.sp, GLYPHS.sp[9]));
+    out.push(oneLine(chartPoints(trace.t, trace.uc, trace.length, t0, t1, points), 'sp', GLYPHS.sp, GLYPHS.sp[9], OUTPUT_HOLD));
   }
-  out.push(oneLine(chartPoints(trace.t, trace.u, trace.length, t0, t1, points), 'output', GLYPHS.output));
+  out.push(oneLine(chartPoints(trace.t, trace.u, trace.length, t0, t1, points), 'output', GLYPHS.output, SPREAD_GLYPH, OUTPUT_HOLD));
   return out;
 }

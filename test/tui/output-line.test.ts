@@ -51,6 +51,17 @@ describe('tui output chart: u as one line', () => {
     }
   });
 
+  it('an output settled off its limit is drawn off the limit row (the hold does not keep it on the 0 row)', () => {
+    // The surge tank ends near u = 0.3 after resting at 0: on a 3-row 0–1 chart its nearest row is
+    // the middle one, and drawn on the 0 row it would sit on the limit line as if still saturated.
+    const grid = renderChart(outputSeries(trace, null, 0, 3600, pointsForWidth(80), { min: 0, max: 1 }), { width: 80, height: 3, labelWidth: LABEL_WIDTH });
+    const cols = rowsByColumn(grid, 'output');
+    const end = trace.u[trace.length - 1];
+    expect(end).toBeGreaterThan(0.26);
+    expect(end).toBeLessThan(0.74);
+    expect(cols[cols.length - 1], `u ends at ${end}`).toEqual([1]);
+  });
+
   it('sticky valve: the dashed command and the stem each one line, the command visible where the stem sticks', () => {
     const n = 601;
     const tr = createTrace(n, []);
