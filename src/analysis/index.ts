@@ -22,8 +22,8 @@ export type {
   TrialMetrics,
   RowTime,
 } from './step-metrics.js';
-export { checkRequirements, timeRequirementNames } from './requirements.js';
-export type { RequirementResult, RequirementStatus } from './requirements.js';
+export { checkRequirements, timeRequirementNames, timeFigure, meetsLimit, CHECKED_REQUIREMENTS } from './requirements.js';
+export type { RequirementResult, RequirementStatus, RequirementInfo, LimitKind, RequirementFrequencyFigure } from './requirements.js';
 export { NOT_REACHED, NOT_SETTLED, NO_STEP_REASON, STEP_FIGURE_UNIT, missingWord, stepFigureText, rankedFigureText, headlineSource, headlineSources, STEP_FIGURE_LABEL } from './figure-text.js';
 
 // Operating point, linearisation, poles/zeros, frequency response, margins, low-order models.

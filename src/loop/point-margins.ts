@@ -12,7 +12,7 @@
  * times faster than the first).
  */
 import { closedLoopCheck, effectiveMs, loopExtras, loopMargins, loopMs, plantFrequencyResponse } from '../analysis/index.js';
-import type { Margins, PlantFrequencyResponse } from '../analysis/index.js';
+import type { Margins, PlantFrequencyResponse, RequirementFrequencyFigure } from '../analysis/index.js';
 import type { GainSet, PlantSpec } from '../model/types.js';
 import type { LinearModel } from '../sim/index.js';
 import type { OperatingPoint } from './operating-points.js';
@@ -148,7 +148,7 @@ export function worstMs(prepared: readonly PreparedPoint[], gains: GainSet, spec
 }
 
 /** Frequency-domain figures a requirement or a report can ask for. */
-export type FrequencyFigure = 'gainMargin' | 'phaseMarginDeg' | 'maxSensitivity' | 'maxComplementarySensitivity' | 'bandwidth' | 'dampingRatio';
+export type FrequencyFigure = RequirementFrequencyFigure | 'maxComplementarySensitivity';
 
 /** Which way is worse for each figure. */
 const WORSE: Readonly<Record<FrequencyFigure, 'lower' | 'higher'>> = {

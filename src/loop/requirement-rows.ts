@@ -4,45 +4,15 @@
  * of the loop at its operating points (the worst point, named). `check`, `run`, the screen and the
  * tuning commands print these rows; none of them decides a verdict of its own.
  */
-import type { RequirementResult } from '../analysis/index.js';
+import { CHECKED_REQUIREMENTS, meetsLimit, type LimitKind, type RequirementInfo, type RequirementResult } from '../analysis/index.js';
 import type { PlantUnits } from '../model/index.js';
 import type { Requirements } from '../model/types.js';
 import type { TrialResult } from '../sim/index.js';
 import { worstPoint, type FrequencyFigure, type PointFigures } from './point-margins.js';
 
-/** measured <= limit ('max') or measured >= limit ('min'). */
-export type LimitKind = 'max' | 'min';
-
-/** One requirement looprig checks: file key, kind, unit for printing, domain. */
-export interface RequirementInfo {
-  name: string;
-  key: keyof Requirements;
-  kind: LimitKind;
-  /** Its fixed unit ('' for a ratio, or for a figure in the plant's units: see `of`). */
-  unit: string;
-  domain: 'time' | 'frequency';
-  /**
-   * A figure in the plant's own units: of the measured output (an error), its time integral (IAE:
-   * output unit times seconds), or of the actuator. Its unit is then the file's (`requirementUnit`).
-   */
-  of?: 'output' | 'output_integral' | 'actuator';
-}
-
-/** Every requirement looprig checks, in report order. */
-export const CHECKED_REQUIREMENTS: readonly RequirementInfo[] = [
-  { name: 'overshoot_pct', key: 'overshootPct', kind: 'max', unit: '%', domain: 'time' },
-  { name: 'rise_time', key: 'riseTime', kind: 'max', unit: 's', domain: 'time' },
-  { name: 'settling_time', key: 'settlingTime', kind: 'max', unit: 's', domain: 'time' },
-  { name: 'steady_state_error', key: 'steadyStateError', kind: 'max', unit: '', domain: 'time', of: 'output' },
-  { name: 'iae', key: 'iae', kind: 'max', unit: '', domain: 'time', of: 'output_integral' },
-  { name: 'max_output', key: 'maxOutput', kind: 'max', unit: '', domain: 'time', of: 'actuator' },
-  { name: 'saturated_time', key: 'saturatedTime', kind: 'max', unit: 's', domain: 'time' },
-  { name: 'bandwidth', key: 'bandwidth', kind: 'min', unit: 'rad/s', domain: 'frequency' },
-  { name: 'damping_ratio', key: 'dampingRatio', kind: 'min', unit: '', domain: 'frequency' },
-  { name: 'max_sensitivity', key: 'maxSensitivity', kind: 'max', unit: '', domain: 'frequency' },
-  { name: 'gain_margin', key: 'gainMargin', kind: 'min', unit: '', domain: 'frequency' },
-  { name: 'phase_margin_deg', key: 'phaseMarginDeg', kind: 'min', unit: 'deg', domain: 'frequency' },
-];
+/** The one requirement table and its verdict rule are analysis' (requirements.ts). */
+export { CHECKED_REQUIREMENTS, meetsLimit } from '../analysis/index.js';
+export type { LimitKind, RequirementInfo } from '../analysis/index.js';
 
 /**
  * The unit a requirement's figure is printed with: its fixed unit, or for a figure in the plant's
@@ -61,14 +31,6 @@ export function requirementUnitOf(name: string, units: PlantUnits): string {
   const info = CHECKED_REQUIREMENTS.find((c) => c.name === name);
   return info === undefined ? '' : requirementUnit(info, units);
 }
-
-const FIGURE_OF: Readonly<Record<string, FrequencyFigure>> = {
-  bandwidth: 'bandwidth',
-  damping_ratio: 'dampingRatio',
-  max_sensitivity: 'maxSensitivity',
-  gain_margin: 'gainMargin',
-  phase_margin_deg: 'phaseMarginDeg',
-};
 
 /** A measured figure: NaN = not reached; `available: false` = could not be computed (with the reason in `note`). */
 export interface Figure {
@@ -150,7 +112,7 @@ export function frequencyFigures(source: FrequencySource, wanted: ReadonlySet<st
       else out.set(name, { measured: NaN, available: false, note: `not available for structure ${m.name} (not the plain PID loop)` });
       continue;
     }
-    const figure = FIGURE_OF[name];
+    const figure = CHECKED_REQUIREMENTS.find((c) => c.name === name)?.frequency;
     const pts = source.figures;
     const usable = pts.filter((p) => p.margins !== null);
     if (figure === undefined || usable.length === 0) {
@@ -181,12 +143,6 @@ export function frequencyFigures(source: FrequencySource, wanted: ReadonlySet<st
 }
 
 const fmtPole = (p: { re: number; im: number }): string => (Math.abs(p.im) > 0 ? `${fmt(p.re)} ± ${fmt(Math.abs(p.im))}j` : fmt(p.re));
-
-/** The verdict rule of every requirement: measured <= limit ('max') or >= limit ('min'); NaN never meets one. */
-export function meetsLimit(measured: number, limit: number, kind: LimitKind): boolean {
-  if (Number.isNaN(measured)) return false;
-  return kind === 'max' ? measured <= limit : measured >= limit;
-}
 
 /** The row of one requirement from its figure, its unit the file's where the figure is in the plant's units. */
 export function requirementRow(info: RequirementInfo, scope: RequirementRow['scope'], limit: number, f: Figure, units: PlantUnits): RequirementRow {

@@ -5,7 +5,7 @@
  * commands report them; an edit only re-evaluates the controller factors).
  */
 import { diagnosePlant, type Diagnosis, type Flag } from '../diagnose/index.js';
-import { pointFigures, worstMargins } from '../loop/index.js';
+import { pointFigures, worstMargins, worstPoint } from '../loop/index.js';
 import type { PlantSpec } from '../model/types.js';
 import type { MarginsView, Notice, NoticeSource } from './notices.js';
 
@@ -42,9 +42,20 @@ export function diagnoseSource(plant: PlantSpec): NoticeSource {
     margins: (gains): MarginsView | null => {
       const d = get();
       if (d === null) return null;
-      const m = worstMargins(pointFigures(d.points, gains, plant));
+      // The closed-loop poles cost more than the margins: only when the file asks for damping.
+      const withDamping = plant.loop.requirements.dampingRatio !== undefined;
+      const figures = pointFigures(d.points, gains, plant, withDamping);
+      const m = worstMargins(figures);
       if (m === null) return null;
-      return { gainMargin: m.gainMargin, phaseMarginDeg: m.phaseMarginDeg, maxSensitivity: m.maxSensitivity, closedLoopStable: m.closedLoopStable };
+      return {
+        gainMargin: m.gainMargin,
+        phaseMarginDeg: m.phaseMarginDeg,
+        maxSensitivity: m.maxSensitivity,
+        // The worst point as check's requirement rows take it (loop's worstPoint).
+        bandwidth: worstPoint(figures, 'bandwidth').value,
+        ...(withDamping && { dampingRatio: worstPoint(figures, 'dampingRatio').value }),
+        closedLoopStable: m.closedLoopStable,
+      };
     },
   };
 }

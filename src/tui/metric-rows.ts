@@ -4,8 +4,8 @@
  * come from analysis/ (headlineMetrics: the worst step; checkRequirements) and the notice source
  * (margins); the words for a figure not reached / not settled are analysis' (stepFigureText).
  */
-import { headlineMetrics, stepFigureText, type HeadlineMetrics, type RequirementResult, type StepFigure, type TrialMetrics } from '../analysis/index.js';
-import { meetsLimit, requirementUnitOf } from '../loop/index.js';
+import { headlineMetrics, stepFigureText, timeFigure, type HeadlineMetrics, type RequirementResult, type TrialMetrics } from '../analysis/index.js';
+import { CHECKED_REQUIREMENTS, meetsLimit, requirementUnit, type RequirementInfo } from '../loop/index.js';
 import { NO_UNITS, type PlantUnits } from '../model/index.js';
 import type { Requirements } from '../model/types.js';
 import type { MarginsView } from './notices.js';
@@ -39,34 +39,6 @@ export interface MetricInput {
   diverged: boolean;
 }
 
-interface Def {
-  name: string;
-  label: string;
-  unit: string;
-  /** Requirement key in Requirements. */
-  req: keyof Requirements;
-  /** 'max' = measured must not exceed the limit; 'min' = must reach it. */
-  sense: 'max' | 'min';
-  /** A step figure: its headline (worst step, analysis' headlineMetrics) and its words. */
-  step?: StepFigure;
-  /** The figure of a whole-trial row. */
-  figure?: (m: TrialMetrics) => number;
-  margin?: (g: MarginsView) => number;
-}
-
-const DEFS: readonly Def[] = [
-  { name: 'overshoot_pct', label: 'overshoot', unit: '%', req: 'overshootPct', sense: 'max', step: 'overshootPct' },
-  { name: 'settling_time', label: 'settling', unit: 's', req: 'settlingTime', sense: 'max', step: 'settlingTime' },
-  { name: 'rise_time', label: 'rise time', unit: 's', req: 'riseTime', sense: 'max', step: 'riseTime' },
-  { name: 'steady_state_error', label: 'offset', unit: '', req: 'steadyStateError', sense: 'max', step: 'steadyStateError' },
-  { name: 'iae', label: 'IAE', unit: '', req: 'iae', sense: 'max', figure: (m) => m.overall.iae },
-  { name: 'max_output', label: 'peak |u|', unit: '', req: 'maxOutput', sense: 'max', figure: (m) => m.overall.maxAbsOutput },
-  { name: 'saturated_time', label: 'saturated', unit: 's', req: 'saturatedTime', sense: 'max', figure: (m) => m.overall.saturatedTime },
-  { name: 'max_sensitivity', label: 'Ms', unit: '', req: 'maxSensitivity', sense: 'max', margin: (g) => g.maxSensitivity },
-  { name: 'gain_margin', label: 'GM', unit: '', req: 'gainMargin', sense: 'min', margin: (g) => g.gainMargin },
-  { name: 'phase_margin_deg', label: 'PM', unit: '°', req: 'phaseMarginDeg', sense: 'min', margin: (g) => g.phaseMarginDeg },
-];
-
 /** Figures shown even when the file does not require them, in this order, while rows last. */
 const ALWAYS: readonly string[] = ['overshoot_pct', 'settling_time', 'rise_time', 'iae', 'saturated_time', 'steady_state_error'];
 
@@ -79,40 +51,36 @@ export function formatFigure(v: number, unit: string): string {
   if (!Number.isFinite(v)) return v > 0 ? '∞' : '-∞';
   const a = Math.abs(v);
   const s = a !== 0 && (a >= 1e5 || a < 1e-3) ? v.toExponential(1) : String(Number(v.toPrecision(3)));
-  return unit === '' ? s : unit === '°' ? `${s}°` : `${s} ${unit}`;
+  // A degree sign hugs its number ('deg' is the requirement table's unit of a phase).
+  return unit === '' ? s : unit === '°' || unit === 'deg' ? `${s}°` : `${s} ${unit}`;
 }
 
-/** The unit a row prints: its own, or for a figure in the plant's units (offset, IAE, peak |u|) the file's. */
-function unitOf(def: Def, units: PlantUnits): string {
-  return def.unit !== '' ? def.unit : requirementUnitOf(def.name, units);
-}
-
-function cell(def: Def, inp: MetricInput, head: HeadlineMetrics, limit: number | undefined, units: PlantUnits): MetricCell {
-  const unit = unitOf(def, units);
-  if (def.margin !== undefined) {
+function cell(def: RequirementInfo, inp: MetricInput, head: HeadlineMetrics, limit: number | undefined, units: PlantUnits): MetricCell {
+  const unit = requirementUnit(def, units);
+  if (def.frequency !== undefined) {
     if (inp.margins === null) return { text: 'n/a', status: null };
     if (inp.margins === 'pending') return { text: '…', status: null };
     if (inp.margins.closedLoopStable === false) return { text: 'unstable', status: limit === undefined ? null : 'no' };
-    const measured = def.margin(inp.margins);
+    const measured = inp.margins[def.frequency];
+    // Not computed for this loop (bandwidth and damping of a structure that is not the plain PID loop).
+    if (measured === undefined) return { text: 'n/a', status: limit === undefined ? null : 'n/a' };
     if (limit === undefined) return { text: formatFigure(measured, unit), status: null };
     // The verdict rule check uses (an infinite gain margin meets any lower limit).
-    return { text: formatFigure(measured, unit), status: meetsLimit(measured, limit, def.sense) ? 'ok' : 'no' };
+    return { text: formatFigure(measured, unit), status: meetsLimit(measured, limit, def.kind) ? 'ok' : 'no' };
   }
   const check = inp.checks.find((c) => c.name === def.name);
   let status: MetricCell['status'] = null;
   if (check !== undefined) status = check.status === 'pass' ? 'ok' : check.status === 'fail' ? 'no' : 'n/a';
   // A diverged trial meets no limit, whatever its figures up to the divergence say.
   if (inp.diverged && status === 'ok') status = 'no';
+  // The figure checkRequirements judges (the offset by its magnitude, so it is shown as one).
+  const f = timeFigure(def, inp.metrics, head);
+  if (f === null) return { text: NO_STEP, status };
   if (def.step !== undefined) {
-    const f = head[def.step];
-    // The offset is judged by its magnitude (checkRequirements), so it is shown as one.
-    const v = f === null ? NaN : def.step === 'steadyStateError' ? Math.abs(f.value) : f.value;
-    if (f === null) return { text: NO_STEP, status };
-    const text = stepFigureText(def.step, v, (x) => formatFigure(x, ''), '-', units.output);
-    return withShort({ text, status }, stepFigureText(def.step, v, (x) => formatFigure(x, '')));
+    const text = stepFigureText(def.step, f.value, (x) => formatFigure(x, ''), '-', units.output);
+    return withShort({ text, status }, stepFigureText(def.step, f.value, (x) => formatFigure(x, '')));
   }
-  const v = def.figure!(inp.metrics);
-  return withShort({ text: formatFigure(v, unit), status }, formatFigure(v, def.unit));
+  return withShort({ text: formatFigure(f.value, unit), status }, formatFigure(f.value, def.unit));
 }
 
 /** The cell with its unit-less text when that differs (a figure in the file's units). */
@@ -129,20 +97,20 @@ export function metricRows(req: Requirements, now: MetricInput, base: MetricInpu
   const rows: MetricRow[] = [];
   const headNow = headlineMetrics(now.metrics);
   const headBase = base === null ? null : headlineMetrics(base.metrics);
-  const add = (def: Def): void => {
-    const limit = req[def.req] as number | undefined;
+  const add = (def: RequirementInfo): void => {
+    const limit = req[def.key] as number | undefined;
     rows.push({
       label: def.label,
-      limit: limit === undefined ? '' : `${def.sense === 'max' ? '≤' : '≥'} ${formatFigure(limit, unitOf(def, units))}`,
+      limit: limit === undefined ? '' : `${def.kind === 'max' ? '≤' : '≥'} ${formatFigure(limit, requirementUnit(def, units))}`,
       now: cell(def, now, headNow, limit, units),
       base: base === null || headBase === null ? null : cell(def, base, headBase, limit, units),
     });
   };
-  for (const def of DEFS) if (req[def.req] !== undefined) add(def);
+  for (const def of CHECKED_REQUIREMENTS) if (req[def.key] !== undefined) add(def);
   for (const name of ALWAYS) {
     if (rows.length >= maxRows) break;
-    const def = DEFS.find((d) => d.name === name);
-    if (def !== undefined && req[def.req] === undefined) add(def);
+    const def = CHECKED_REQUIREMENTS.find((d) => d.name === name);
+    if (def !== undefined && req[def.key] === undefined) add(def);
   }
   return rows.slice(0, Math.max(0, maxRows));
 }

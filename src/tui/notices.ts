@@ -18,6 +18,10 @@ export interface MarginsView {
   gainMargin: number;
   phaseMarginDeg: number;
   maxSensitivity: number;
+  /** Bandwidth, rad/s (worst over the operating points); absent when not computed for this loop. */
+  bandwidth?: number;
+  /** Dominant closed-loop damping ratio (worst over the points); absent when not computed (the file does not ask for it). */
+  dampingRatio?: number;
   /** Closed-loop stability; false makes the margins meaningless (shown as 'unstable'). Absent/null = not checked. */
   closedLoopStable?: boolean | null;
 }
