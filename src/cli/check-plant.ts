@@ -5,8 +5,9 @@
  * `requirements.worst_case` is set, the worst of each over the uncertainty box (nominal plus every
  * corner; a seeded sample instead when there are too many uncertain quantities).
  *
- * The verdicts and their definitions live in loop/requirement-rows.ts and loop/point-margins.ts
- * (damping ratio of the dominant closed-loop poles included); this file only runs the cases.
+ * The requirement table is analysis/requirements.ts; the verdicts live in loop/requirement-rows.ts
+ * and loop/point-margins.ts (damping ratio of the dominant closed-loop poles included); this file
+ * only runs the cases.
  */
 import { effectiveMs } from '../analysis/index.js';
 import {

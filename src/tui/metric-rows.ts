@@ -13,8 +13,8 @@ import type { MarginsView } from './notices.js';
 export interface MetricCell {
   text: string;
   /**
-   * The text without the file's unit, for a column too narrow for it (the limit beside it names
-   * the unit); absent when the figure carries no unit of the file.
+   * The text without its unit (the file's, or a bandwidth's rad/s), for a column too narrow for it
+   * (the limit beside it names the unit); absent when the figure carries no such unit.
    */
   short?: string;
   /** 'ok' met, 'no' not met, 'n/a' cannot be evaluated on this trial, null no limit. */
@@ -64,9 +64,10 @@ function cell(def: RequirementInfo, inp: MetricInput, head: HeadlineMetrics, lim
     const measured = inp.margins[def.frequency];
     // Not computed for this loop (bandwidth and damping of a structure that is not the plain PID loop).
     if (measured === undefined) return { text: 'n/a', status: limit === undefined ? null : 'n/a' };
-    if (limit === undefined) return { text: formatFigure(measured, unit), status: null };
     // The verdict rule check uses (an infinite gain margin meets any lower limit).
-    return { text: formatFigure(measured, unit), status: meetsLimit(measured, limit, def.kind) ? 'ok' : 'no' };
+    const status = limit === undefined ? null : meetsLimit(measured, limit, def.kind) ? 'ok' : 'no';
+    // A narrow panel shows the bandwidth without 'rad/s' (the limit beside names it); a degree sign stays.
+    return withShort({ text: formatFigure(measured, unit), status }, formatFigure(measured, unit === 'deg' ? unit : ''));
   }
   const check = inp.checks.find((c) => c.name === def.name);
   let status: MetricCell['status'] = null;

@@ -6,8 +6,8 @@ import { onePositional, parseCommandArgs, timeOption } from '../parse-command.js
 import { headlineMetrics, headlineSources, stepFigureText } from '../../analysis/index.js';
 import type { RequirementResult, StepFigure, TrialMetrics } from '../../analysis/index.js';
 import { compilePlant, MIN_STEP, plantUnits, withUnit } from '../../model/index.js';
-import { buildLoop, requirementUnitOf, STREAM_ROWS } from '../../loop/index.js';
-import type { ControllerStructure, PlantSpec, Requirements } from '../../model/types.js';
+import { askedRequirements, buildLoop, requirementUnitOf, STREAM_ROWS } from '../../loop/index.js';
+import type { ControllerStructure, PlantSpec } from '../../model/types.js';
 import type { Trace, TrialResult } from '../../sim/types.js';
 import type { TrialChunk } from '../../sim/index.js';
 import { UserError } from '../errors.js';
@@ -77,15 +77,6 @@ export function parseRunArgs(args: readonly string[]): RunOptions | 'help' {
   };
 }
 
-/** Requirements that `run` does not evaluate (they need the frequency response). */
-const FREQUENCY_REQUIREMENTS: readonly [keyof Requirements, string][] = [
-  ['maxSensitivity', 'max_sensitivity'],
-  ['gainMargin', 'gain_margin'],
-  ['phaseMarginDeg', 'phase_margin_deg'],
-  ['bandwidth', 'bandwidth'],
-  ['dampingRatio', 'damping_ratio'],
-];
-
 /**
  * When the tweak guide is computed: 'asked' (--tweak: its runs are held to the budget like the
  * trial's, over it is exit 2), 'within-budget' (run --json without --tweak: computed when its runs
@@ -117,8 +108,9 @@ export function runPlant(options: RunOptions, io: Io, tweak: TweakWhen = options
   const sim = simulatePlant(plant, dynamics, built);
   const { result, metrics, requirements } = sim;
   const warnings = [...loaded.warnings, ...sim.warnings];
-  for (const [key, name] of FREQUENCY_REQUIREMENTS) {
-    if (plant.loop.requirements[key] !== undefined) warnings.push(`requirement ${name} is not checked by run (frequency domain)`);
+  // run simulates only: the frequency-domain requirements (the table's) need the frequency response.
+  for (const c of askedRequirements(plant.loop.requirements)) {
+    if (c.domain === 'frequency') warnings.push(`requirement ${c.name} is not checked by run (frequency domain)`);
   }
   let guide: TweakGuide | null = null;
   if (tweak === 'asked') guide = runTweak(plant, dynamics, warnings);

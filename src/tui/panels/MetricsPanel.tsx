@@ -45,13 +45,17 @@ export function metricLines(p: MetricsProps): Piece[][] {
   const full = 12 + limitW + nowW + 4 + (anyBase ? 1 + baseW + 4 : 0);
   const labelW = full <= p.width ? 12 : 10;
   const markW: 3 | 4 = full <= p.width ? 4 : 3;
+  // Narrower still (a bandwidth limit in rad/s at 60 columns): the value column gives up its spare
+  // width before a verdict is cut.
+  const tightest = Math.max(1, ...p.rows.map((r) => shown(r.now).length + 1));
+  const nowCol = Math.min(nowW, Math.max(tightest, p.width - labelW - limitW - markW));
   // Narrower still: the set in service's column goes (its values stay in the gain panel, its line on the trend).
-  const hasBase = anyBase && labelW + limitW + nowW + markW + 1 + baseW + markW <= p.width;
+  const hasBase = anyBase && labelW + limitW + nowCol + markW + 1 + baseW + markW <= p.width;
   const lines: Piece[][] = [
-    [{ text: `${fit('', labelW)}${fit('limit', limitW)}${fit(p.nowLabel, nowW + markW)}${hasBase ? ' in svc' : ''}`, color: t.dim }],
+    [{ text: `${fit('', labelW)}${fit('limit', limitW)}${fit(p.nowLabel, nowCol + markW)}${hasBase ? ' in svc' : ''}`, color: t.dim }],
   ];
   for (const r of p.rows) {
-    const pieces: Piece[] = [{ text: fit(r.label, labelW) }, { text: fit(r.limit, limitW), color: t.dim }, { text: fit(shown(r.now), nowW) }, mark(r.now, t, markW)];
+    const pieces: Piece[] = [{ text: fit(r.label, labelW) }, { text: fit(r.limit, limitW), color: t.dim }, { text: fit(shown(r.now), nowCol) }, mark(r.now, t, markW)];
     if (hasBase && r.base !== null) pieces.push({ text: ' ' + fit(shown(r.base), baseW), color: t.baseline }, mark(r.base, t, markW));
     lines.push(pieces);
   }
