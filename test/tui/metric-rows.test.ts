@@ -52,3 +52,24 @@ describe('metric rows', () => {
     expect(rows.find((r) => r.label === 'settling')!.now.text).toBe('19.5 s');
   });
 });
+
+describe('metric rows: bandwidth and damping', () => {
+  const req = { bandwidth: 0.3, dampingRatio: 0.6, gainMargin: 3 };
+  const base = input(lag(2), () => 1, step, req);
+
+  it('rows for the frequency requirements the file sets, in the table order, with the verdict rule check uses', () => {
+    const margins = { gainMargin: 3.14, phaseMarginDeg: 61.3, maxSensitivity: 1.59, bandwidth: 0.25, dampingRatio: 0.72, closedLoopStable: true };
+    const rows = metricRows(req, { ...base, margins }, null, 3);
+    expect(rows.map((r) => r.label)).toEqual(['bandwidth', 'damping', 'GM']);
+    expect(rows[0]).toMatchObject({ limit: '≥ 0.3 rad/s', now: { text: '0.25 rad/s', short: '0.25', status: 'no' } });
+    expect(rows[1]).toMatchObject({ limit: '≥ 0.6', now: { text: '0.72', status: 'ok' } });
+  });
+
+  it('a loop whose bandwidth and damping are not computed (a structure not the plain PID loop) is n/a, never ok', () => {
+    const margins = { gainMargin: 3.14, phaseMarginDeg: 61.3, maxSensitivity: 1.59, closedLoopStable: true };
+    const rows = metricRows(req, { ...base, margins }, null, 3);
+    expect(rows[0].now).toEqual({ text: 'n/a', status: 'n/a' });
+    expect(rows[1].now).toEqual({ text: 'n/a', status: 'n/a' });
+    expect(rows[2].now.status).toBe('ok');
+  });
+});
