@@ -8,6 +8,7 @@ import { bindingSummary, type CandidateReport, type CompareResult } from '../tun
 import type { ChartSeries } from './chart.js';
 import { chartPoints } from './decimate.js';
 import { GLYPHS } from './theme.js';
+import { oneLine } from './trend-series.js';
 
 /** Most candidates overlaid at once (more would not be told apart in character cells). */
 export const MAX_OVERLAID = 4;
@@ -70,9 +71,11 @@ export function compareSeries(result: CompareResult, selected: number, t0: numbe
   for (const { slot, idx } of drawn) {
     const tr = ran[idx].result!.trace;
     // The true output (no sensor noise) so that overlaid candidates stay readable.
-    const y = chartPoints(tr.t, tr.y, tr.length, t0, t1, points);
-    series.push({ values: y.lo, tag: `c${slot}`, symbols: CANDIDATE_GLYPHS[slot] });
-    series.push({ values: y.hi, tag: `c${slot}`, symbols: CANDIDATE_GLYPHS[slot] });
+    // One line per candidate, as the trend draws PV (oneLine): per-column lowest and highest as
+    // two lines doubled every steep part ('╭╯╯━┛┛'); a column's range is filled with the
+    // candidate's own vertical glyph so overlaid candidates stay apart.
+    const glyphs = CANDIDATE_GLYPHS[slot];
+    series.push(oneLine(chartPoints(tr.t, tr.y, tr.length, t0, t1, points), `c${slot}`, glyphs, glyphs[9]));
   }
   shown.forEach((idx, slot) => legend.push({ name: ran[idx].name, slot, selected: idx === sel }));
   return { series, legend };

@@ -10,6 +10,7 @@ import { compareCandidates } from '../../src/tune/index.js';
 import { compareSeries, compareTable, nextCandidate, overlaid, MAX_OVERLAID } from '../../src/tui/compare-view.js';
 import { ComparePanel, compareLegend, legendRows } from '../../src/tui/panels/ComparePanel.js';
 import { makeTheme } from '../../src/tui/theme.js';
+import { LABEL_WIDTH, pointsForWidth, renderChart } from '../../src/tui/chart.js';
 
 afterEach(() => cleanup());
 
@@ -27,11 +28,19 @@ describe('compare view', () => {
   it('series: the setpoint first and the selected candidate last (on top); legend marks it', () => {
     const { series, legend } = compareSeries(result, 2, 0, 5400, 60);
     expect(series[0].tag).toBe('sp');
-    expect(series).toHaveLength(1 + 2 * 4);
+    // One series per overlaid candidate (drawn as one line, never per-column lowest and highest).
+    expect(series).toHaveLength(1 + 4);
     const selectedSlot = legend.find((e) => e.selected)!.slot;
     expect(series[series.length - 1].tag).toBe(`c${selectedSlot}`);
     expect(legend.map((e) => e.name)).toEqual(result.candidates.map((c) => c.name));
     expect(legend.filter((e) => e.selected).map((e) => e.name)).toEqual(['cascade on jacket']);
+  });
+
+  it('chart: no candidate drawn doubled on its steep parts (two lines per column showed as ╯╯ and ┛┛)', () => {
+    const { series } = compareSeries(result, 0, 0, 5400, pointsForWidth(80));
+    const grid = renderChart(series, { width: 80, height: 12, labelWidth: LABEL_WIDTH });
+    const text = grid.rows.map((spans) => spans.map((x) => x.text).join('')).join('\n');
+    expect(text).not.toMatch(/╯╯|╰╰|╭╭|╮╮|┛┛|┗┗|┏┏|┓┓/);
   });
 
   it('table: header and one line per candidate, the figures of the comparison', () => {
