@@ -29,7 +29,7 @@
  */
 import type { SensorSpec } from '../model/types.js';
 import { delayInSteps, sensorFilterCoefficients, type LinearModel } from '../sim/index.js';
-import { zohDiscretise } from '../num/index.js';
+import { zohDiscretise, zohFractionalDelay } from '../num/index.js';
 import { sampleOnGrid, shiftedSolver, type PlantFrequencyResponse, type RationalEvaluator, type SampledGrid } from './freq-response.js';
 import { originTolerance, type PoleZeroSummary } from './poles-zeros.js';
 
@@ -176,19 +176,7 @@ export function sampledEvaluator(model: LinearModel, h: number, fraction: number
   }
   const g0 = new Float64Array(n);
   const g1 = new Float64Array(n);
-  if (fraction > 0) {
-    const phi1 = new Float64Array(n * n);
-    const gf = new Float64Array(n);
-    zohDiscretise(model.a, model.b, n, (1 - fraction) * h, phi1, g0);
-    zohDiscretise(model.a, model.b, n, fraction * h, phiTmp, gf);
-    for (let i = 0; i < n; i++) {
-      let s = 0;
-      for (let l = 0; l < n; l++) s += phi1[i * n + l] * gf[l];
-      g1[i] = s;
-    }
-  } else {
-    zohDiscretise(model.a, model.b, n, h, phiTmp, g0);
-  }
+  zohFractionalDelay(model.a, model.b, n, h, fraction, phiTmp, g0, g1);
   const br = new Float64Array(n);
   const bi = new Float64Array(n);
   const solver = shiftedSolver(aPsi, n, [g0, g1], model.c);

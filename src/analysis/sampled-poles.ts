@@ -16,7 +16,7 @@ import type { GainSet, SensorSpec } from '../model/types.js';
 import type { LinearModel } from '../sim/types.js';
 import { sensorFilterCoefficients } from '../sim/index.js';
 import { pidCoefficients } from '../control/index.js';
-import { eigenvalues, zohDiscretise } from '../num/index.js';
+import { eigenvalues, zohFractionalDelay } from '../num/index.js';
 
 /** One closed-loop pole of the sampled loop. */
 export interface SampledPole {
@@ -65,17 +65,7 @@ export function sampledClosedLoopPoles(
   const phi = new Float64Array(n * n);
   const g0 = new Float64Array(n);
   const g1 = new Float64Array(n);
-  const phiA = new Float64Array(n * n);
-  const phiB = new Float64Array(n * n);
-  const gb = new Float64Array(n);
-  zohDiscretise(model.a, model.b, n, h, phi, gb);
-  zohDiscretise(model.a, model.b, n, (1 - f) * h, phiA, g0);
-  zohDiscretise(model.a, model.b, n, f * h, phiB, gb);
-  for (let i = 0; i < n; i++) {
-    let s = 0;
-    for (let j = 0; j < n; j++) s += phiA[i * n + j] * gb[j];
-    g1[i] = s;
-  }
+  zohFractionalDelay(model.a, model.b, n, h, f, phi, g0, g1);
   // The measurement filter's and the law's coefficients, as the engine computes them.
   const { pole: a, slope } = sensorFilterCoefficients(sensor.filterTime, h);
   const { ad, bd, bi: ki } = pidCoefficients(g, h);

@@ -11,7 +11,7 @@ export type { NelderMeadOptions, NelderMeadResult } from './nelder-mead.js';
 export { Rng } from './rng.js';
 export { levenbergMarquardt, leastSquaresCovariance } from './levenberg-marquardt.js';
 export type { LevenbergMarquardtOptions, LevenbergMarquardtResult } from './levenberg-marquardt.js';
-export { zohDiscretise } from './zoh.js';
+export { zohDiscretise, zohFractionalDelay } from './zoh.js';
 export { jacobianConditioning } from './jacobian-conditioning.js';
 export type { JacobianConditioning } from './jacobian-conditioning.js';
 export { findEncodingProblem } from './utf8.js';

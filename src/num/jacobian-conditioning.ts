@@ -8,6 +8,7 @@
  * combination of the columns before it, or has no effect at all (a zero column). Naming it turns
  * "the covariance failed" into "delay cannot be told apart from time_constant".
  */
+import { choleskyFactor } from './cholesky.js';
 import { eigenvalues } from './eig.js';
 
 /** Result of `jacobianConditioning`. */
@@ -45,22 +46,11 @@ export function jacobianConditioning(jacobian: Float64Array, m: number, n: numbe
     for (let b = 0; b < k; b++) S[a * k + b] = M[a * k + b] / Math.sqrt(M[a * k + a] * M[b * k + b]);
   }
   // Cholesky in order; the first collapsing pivot names the culprit.
-  const L = Float64Array.from(S);
-  for (let j = 0; j < k; j++) {
-    let s = L[j * k + j];
-    for (let q = 0; q < j; q++) s -= L[j * k + q] * L[j * k + q];
-    if (!(s > PIVOT_FLOOR)) {
-      const partners: number[] = [];
-      for (let a = 0; a < j; a++) if (Math.abs(S[j * k + a]) > 0.9) partners.push(free[a]);
-      return { condition: Infinity, singular: free[j], partners };
-    }
-    const l = Math.sqrt(s);
-    L[j * k + j] = l;
-    for (let i = j + 1; i < k; i++) {
-      let t = L[i * k + j];
-      for (let q = 0; q < j; q++) t -= L[i * k + q] * L[j * k + q];
-      L[i * k + j] = t / l;
-    }
+  const j = choleskyFactor(Float64Array.from(S), k, PIVOT_FLOOR);
+  if (j >= 0) {
+    const partners: number[] = [];
+    for (let a = 0; a < j; a++) if (Math.abs(S[j * k + a]) > 0.9) partners.push(free[a]);
+    return { condition: Infinity, singular: free[j], partners };
   }
   const ev = eigenvalues(S, k);
   let lo = Infinity;

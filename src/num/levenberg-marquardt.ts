@@ -8,6 +8,7 @@
  * Marquardt's method", IMM DTU report 1999: accept → μ ← μ·max(1/3, 1 − (2ρ − 1)³),
  * reject → μ ← μ·ν, ν ← 2ν).
  */
+import { choleskyFactor } from './cholesky.js';
 
 /** Options of `levenbergMarquardt`. */
 export interface LevenbergMarquardtOptions {
@@ -237,18 +238,7 @@ function normalEquations(J: Float64Array, r: Float64Array, m: number, n: number,
 
 /** Solve A x = b in place (b becomes x) for symmetric positive definite A (n × n, destroyed). */
 function choleskySolve(A: Float64Array, b: Float64Array, n: number): boolean {
-  for (let j = 0; j < n; j++) {
-    let s = A[j * n + j];
-    for (let k = 0; k < j; k++) s -= A[j * n + k] * A[j * n + k];
-    if (!(s > 0)) return false;
-    const l = Math.sqrt(s);
-    A[j * n + j] = l;
-    for (let i = j + 1; i < n; i++) {
-      let t = A[i * n + j];
-      for (let k = 0; k < j; k++) t -= A[i * n + k] * A[j * n + k];
-      A[i * n + j] = t / l;
-    }
-  }
+  if (choleskyFactor(A, n) >= 0) return false;
   for (let i = 0; i < n; i++) {
     let s = b[i];
     for (let k = 0; k < i; k++) s -= A[i * n + k] * b[k];

@@ -73,3 +73,37 @@ export function zohDiscretise(
     gamma[i] = E[i * N + n];
   }
 }
+
+/**
+ * Zero-order hold over a step h (s) whose input arrives a fraction f (0 ≤ f < 1) of a step late:
+ * x(k+1) = Φ x(k) + Γ1 u(k−1) + Γ0 u(k), Φ = e^{Ah}, Γ0 = ∫₀^{(1−f)h} e^{As} ds B,
+ * Γ1 = e^{A(1−f)h} ∫₀^{fh} e^{As} ds B (Åström & Wittenmark, Computer-Controlled Systems, 3rd ed.
+ * 1997, sec. 2.3, from memory). Writes Φ (n × n), Γ0 and Γ1 (n); Γ1 is zero when f = 0.
+ */
+export function zohFractionalDelay(
+  a: ArrayLike<number>,
+  b: ArrayLike<number>,
+  n: number,
+  h: number,
+  f: number,
+  phi: Float64Array,
+  gamma0: Float64Array,
+  gamma1: Float64Array,
+): void {
+  const gf = new Float64Array(n);
+  zohDiscretise(a, b, n, h, phi, gf);
+  if (!(f > 0)) {
+    gamma0.set(gf);
+    gamma1.fill(0);
+    return;
+  }
+  const phiA = new Float64Array(n * n);
+  const phiB = new Float64Array(n * n);
+  zohDiscretise(a, b, n, (1 - f) * h, phiA, gamma0);
+  zohDiscretise(a, b, n, f * h, phiB, gf);
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    for (let j = 0; j < n; j++) s += phiA[i * n + j] * gf[j];
+    gamma1[i] = s;
+  }
+}

@@ -1,5 +1,5 @@
 import { describe, it } from 'vitest';
-import { zohDiscretise } from '../../src/num/index.js';
+import { zohDiscretise, zohFractionalDelay } from '../../src/num/index.js';
 import { expectClose } from '../helpers/expect-close.js';
 
 describe('zohDiscretise', () => {
@@ -34,5 +34,24 @@ describe('zohDiscretise', () => {
     expectClose(phi[1], 0);
     expectClose(phi[3], 1);
     expectClose(gam[0], 0);
+  });
+});
+
+describe('zohFractionalDelay', () => {
+  it('scalar lag: Γ0 = b (e^{a(1−f)h} − 1)/a, Γ1 = e^{a(1−f)h} b (e^{afh} − 1)/a, Γ0 + Γ1 = Γ(h)', () => {
+    // Åström & Wittenmark, Computer-Controlled Systems, 3rd ed. 1997, sec. 2.3 (from memory), closed form for a scalar lag.
+    const a = -0.5;
+    const b = 2;
+    const h = 0.3;
+    const phi = new Float64Array(1);
+    const g0 = new Float64Array(1);
+    const g1 = new Float64Array(1);
+    for (const f of [0, 0.25, 0.9]) {
+      zohFractionalDelay([a], [b], 1, h, f, phi, g0, g1);
+      expectClose(phi[0], Math.exp(a * h), { abs: 1e-14 });
+      expectClose(g0[0], (b * (Math.exp(a * (1 - f) * h) - 1)) / a, { abs: 1e-14 });
+      expectClose(g1[0], (Math.exp(a * (1 - f) * h) * b * (Math.exp(a * f * h) - 1)) / a, { abs: 1e-14 });
+      expectClose(g0[0] + g1[0], (b * (Math.exp(a * h) - 1)) / a, { abs: 1e-14 });
+    }
   });
 });
