@@ -122,7 +122,11 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     expect(code).toBe(0);
     for (const [side, rev] of [['before', 'HEAD~3'], ['after', 'HEAD~2']] as const) {
       const { run, check } = await runAndCheck(dir, rev, 'plants/tank.yaml');
-      for (const m of doc.metrics) expect(m[side], `${side} ${m.name}`).toBe(run.metrics[m.name]);
+      expect(doc.metrics.length).toBeGreaterThan(0);
+      for (const m of doc.metrics) {
+        expect(m.name in run.metrics, `run --json has ${m.name}`).toBe(true);
+        expect(m[side], `${side} ${m.name}`).toBe(run.metrics[m.name]);
+      }
       expect(doc.requirements.map((r: any) => [r.name, r.case, r[side].measured, r[side].status])).toEqual(
         check.requirements.map((r: any) => [r.name, r.case, r.measured, r.status]),
       );

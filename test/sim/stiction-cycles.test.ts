@@ -11,25 +11,11 @@ import { buildLoop } from '../../src/loop/index.js';
 import { readFileSync } from 'node:fs';
 import { loadPlant } from '../../src/model/index.js';
 import { runTrial, type TrialResult } from '../../src/sim/index.js';
+import { valveCaseText } from '../helpers/valve-case.js';
 
 /** A plant file: `model` line, controller, actuator extras. */
 function run(model: string, controller: string, valve: string, duration = 3000, min = 0): TrialResult {
-  const text = `name: Stiction case
-model: ${model}
-actuator:
-  min: ${min}
-  max: 100
-${valve}
-loop:
-  sample_time: 0.5 s
-  step: 0.1 s
-  controller: ${controller}
-  trial:
-    duration: ${duration} s
-    initial_setpoint: 50
-    events:
-      - { at: 10 s, setpoint: 55 }
-`;
+  const text = valveCaseText(model, controller, valve, min, duration);
   const r = loadPlant(text, 'case.yaml');
   if (!r.plant) throw new Error(r.diagnostics.map((d) => d.message).join('; '));
   const loop = buildLoop(r.plant);
