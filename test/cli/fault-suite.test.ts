@@ -5,8 +5,8 @@
  *
  * The contract on every case: `main` resolves (never throws), the exit status is 0, 1 or 2, a 2
  * comes with a message on stderr that starts with its position (FILE:LINE:COL, FILE:LINE, FILE)
- * or `looprig:` (an option), no line of stderr is a stack frame or an internal error, and the
- * case ends within PER_CASE_MS.
+ * or `looprig:` (an option), and no line of stderr is a stack frame or an internal error. Speed is
+ * not asserted here (benchmarks measure it); a case that hangs meets the test's timeout.
  */
 import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
@@ -14,8 +14,6 @@ import { describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/index.js';
 import { fakeIo } from './fake-io.js';
 
-/** Per-case wall time, ms: generous for a loaded 2-core machine; the budget keeps cases far below. */
-const PER_CASE_MS = 15_000;
 const SEED = 13;
 
 const PLANT = readFileSync(new URL('../fixtures/plants/fopdt-heater.yaml', import.meta.url), 'utf8');
@@ -28,14 +26,12 @@ const POSITIONED = /^(looprig: |--set |[^\s:]+(:\d+(:\d+)?)?: )/;
 
 async function expectContract(argv: string[], files: Record<string, string>): Promise<void> {
   const io = fakeIo(files);
-  const t0 = performance.now();
   let code: number;
   try {
     code = await main(argv, io);
   } catch (error) {
     throw new Error(`main threw on ${JSON.stringify(argv)}: ${(error as Error).stack}`);
   }
-  const ms = performance.now() - t0;
   const context = `${JSON.stringify(argv)}\n${io.stderr.slice(0, 500)}`;
   expect([0, 1, 2], context).toContain(code);
   expect(io.stderr, context).not.toMatch(/internal error|^\s+at \S|RangeError|TypeError/m);
@@ -44,7 +40,6 @@ async function expectContract(argv: string[], files: Record<string, string>): Pr
     expect(first, context).toBeDefined();
     expect(first, context).toMatch(POSITIONED);
   }
-  expect(ms, context).toBeLessThan(PER_CASE_MS);
 }
 
 /** Numbers at the edges: huge, tiny, negative, zero, non-finite, and plain. */

@@ -3,7 +3,7 @@
  * through `main(argv, fakeIo)`. Before the resource budget and the range checks each of these
  * ran for minutes, took gigabytes, or threw an internal error (RangeError from a typed-array
  * allocation, a PID conversion, a rule formula, the fit). Now: exit 2, a one-line positioned
- * message, in a moment.
+ * message, before the work starts (speed itself is measured by benchmarks, not asserted here).
  */
 import { mkdirSync, mkdtempSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { execFileSync } from 'node:child_process';
@@ -27,9 +27,8 @@ ${sub.step ? `  step: ${sub.step}\n` : ''}  controller: { ${sub.controller ?? 's
 
 async function run(argv: string[], files: Record<string, string> = {}) {
   const io = fakeIo(files);
-  const t0 = performance.now();
   const code = await main(argv, io);
-  return { code, out: io.stdout, err: io.stderr, ms: performance.now() - t0 };
+  return { code, out: io.stdout, err: io.stderr };
 }
 
 /** Exit 2 with one message that starts FILE:LINE:COL (or names the option) and mentions `what`. */
@@ -70,7 +69,6 @@ describe('the resource budget refuses runs that would take minutes or gigabytes'
   it('delay 1e8 s in diagnose: refused at model.delay (the frequency analysis would follow 2e8 phase turns)', async () => {
     const r = await run(['diagnose', 'p.yaml'], { 'p.yaml': plantText({ delay: '1e8' }) });
     expectRefused(r, /^p\.yaml:2:\d+: model\.delay: /, /turns of the loop phase/);
-    expect(r.ms).toBeLessThan(20_000);
   });
 
   it('--no-limits is accepted by every command and does not lift what cannot be allocated', async () => {
@@ -168,11 +166,10 @@ loop:
     expect([0, 1]).toContain(r.code);
   });
 
-  it('50,000 parameters are refused at model.params in a moment', async () => {
+  it('50,000 parameters are refused at model.params before anything is compiled', async () => {
     const params = Array.from({ length: 50_000 }, (_, i) => `p${i}: 1`).join(', ');
     const r = await run(['run', 'p.yaml'], { 'p.yaml': odeText('k').replace('params: { k: 2 }', `params: { k: 2, ${params} }`) });
     expectRefused(r, /^p\.yaml:4:\d+: model\.params has 50001 entries; at most 1000/, /./);
-    expect(r.ms).toBeLessThan(20_000);
   }, 30_000);
 });
 
