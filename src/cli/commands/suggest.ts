@@ -262,7 +262,8 @@ function designJson(s: Suggestion): unknown {
   const d = s.design;
   if (d === null) return null;
   // Loop shaping: what the loop achieves is the row's margins (crossover, phase margin above).
-  if (d.kind === 'ms') return { kind: d.kind, max_ms: d.maxMs };
+  // The Ms limit under the name optimize and compare give theirs (ms_target).
+  if (d.kind === 'ms') return { kind: d.kind, ms_target: d.maxMs };
   if (d.kind === 'shaping') {
     const t = d.target;
     return { kind: d.kind, target: { crossover: t.crossover, phase_margin_deg: 'ms' in t ? null : t.phaseMarginDeg, ms: 'ms' in t ? t.ms : null, ti_td_ratio: t.tiTdRatio } };
