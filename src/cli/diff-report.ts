@@ -9,6 +9,7 @@ import type { GainSet, PlantSpec } from '../model/types.js';
 import { rehearseSwitch, type Rehearsal } from '../tune/index.js';
 import type { CheckRow } from './check-plant.js';
 import { evaluateRevision, type RevisionEvaluation } from './diff-evaluation.js';
+import { num } from './format.js';
 import { plantChanges, type FieldChange } from './plant-changes.js';
 
 /** One side of the comparison. `plant` null: the file does not exist there (added file). */
@@ -82,6 +83,18 @@ function delta(name: string, unit: string, before: number, after: number, note: 
   return { name, unit, before, after, change, note };
 }
 
+/** The setpoint step a step figure comes from, when the trial has more than one ('' otherwise). */
+function stepNote(e: RevisionEvaluation | null, i: number): string {
+  const at = e?.metrics[i].stepAt ?? null;
+  return at !== null && e!.check.nominal.metrics.steps.length > 1 ? `worst step at ${num(at, 6)} s` : '';
+}
+
+/** Two sides' notes: once when they agree, else each with its side. */
+function sidesNote(before: string, after: string): string {
+  if (before === after) return after;
+  return [before ? `before: ${before}` : '', after ? `after: ${after}` : ''].filter((s) => s).join('; ');
+}
+
 function sameGains(a: GainSet, b: GainSet): boolean {
   return (Object.keys(a) as (keyof GainSet)[]).every((k) => Object.is(a[k], b[k]));
 }
@@ -102,11 +115,12 @@ export function diffReport(before: DiffSide, after: DiffSide): DiffReport {
   const a = before.evaluation;
   const b = after.evaluation!;
   const notes: string[] = [];
-  const metrics = b.metrics.map((m, i) => delta(m.name, m.unit, a?.metrics[i].value ?? NaN, m.value, ''));
+  // Each figure says where it comes from: the worst setpoint step (trials with several), the
+  // operating point and frequency (check's note), or why it is not available.
+  const metrics = b.metrics.map((m, i) => delta(m.name, m.unit, a?.metrics[i].value ?? NaN, m.value, sidesNote(stepNote(a, i), stepNote(b, i))));
   const margins = b.margins.map((m, i) => {
     const o = a?.margins[i];
-    const note = [o !== undefined && !o.available ? `before: ${o.note}` : '', !m.available ? `after: ${m.note}` : ''].filter((s) => s).join('; ');
-    return delta(m.name, m.unit, o?.available ? o.value : NaN, m.available ? m.value : NaN, note);
+    return delta(m.name, m.unit, o?.available ? o.value : NaN, m.available ? m.value : NaN, sidesNote(o?.note ?? '', m.note));
   });
 
   const key = (r: CheckRow): string => `${r.requirement}/${r.scope}`;

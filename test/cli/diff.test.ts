@@ -123,6 +123,9 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     for (const [side, rev] of [['before', 'HEAD~3'], ['after', 'HEAD~2']] as const) {
       const { run, check } = await runAndCheck(dir, rev, 'plants/tank.yaml');
       for (const m of doc.metrics) expect(m[side], `${side} ${m.name}`).toBe(run.metrics[m.name]);
+      // A step figure of this two-step trial names the step it comes from, as run --json does.
+      const settling = doc.metrics.find((m: any) => m.name === 'settling_time').note;
+      expect(settling).toContain(`worst step at ${run.metrics.worst_step_at.settling_time} s`);
       expect(doc.requirements.map((r: any) => [r.name, r.case, r[side].measured, r[side].status])).toEqual(
         check.requirements.map((r: any) => [r.name, r.case, r.measured, r.status]),
       );
@@ -131,6 +134,9 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     // gain_margin is a requirement: the margins row and the check row are the same figure.
     const gm = doc.margins.find((m: any) => m.name === 'gain_margin');
     expect(gm.after).toBe(doc.requirements.find((r: any) => r.name === 'gain_margin').after.measured);
+    // ...and says where it was read, as the check row does.
+    expect(gm.note).toContain(doc.requirements.find((r: any) => r.name === 'gain_margin').after.note);
+    expect(gm.note).toMatch(/rad\/s/);
     for (const m of [...doc.metrics, ...doc.margins]) {
       if (m.before !== null && m.after !== null) expect(m.change).toBeCloseTo(m.after - m.before, 12);
     }
