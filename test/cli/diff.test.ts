@@ -208,6 +208,21 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     expect(r.out).toMatch(/iae .*K·s/);
     const svg = r.io.files.get(join(tmp, 'u.svg'))!;
     for (const label of ['process value (K)', 'controller output (%)', 'rehearsal: output (K)', 'rehearsal: controller (%)']) expect(svg).toContain(label);
+    // A label added where there was none: the same figure, its change shown.
+    const added = (await diffJson([join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD'])).doc.metrics.find((m: any) => m.name === 'iae');
+    expect([added.before_unit, added.unit, typeof added.change]).toEqual(['', 'K·s', 'number']);
+  });
+
+  it('a changed output unit: each side with its own unit, no change computed across them', async () => {
+    const d = repo('unit-change', [
+      { files: { 'p.yaml': plantText({ units: true }) } },
+      { files: { 'p.yaml': plantText({ units: true }).replace('output_unit: K', 'output_unit: degC') } },
+    ]);
+    const r = await cli(['diff', join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD']);
+    expect(r.out).toMatch(/iae +\S+ K·s +\S+ degC·s +unit K·s -> degC·s, no change computed/);
+    const { doc } = await diffJson([join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD']);
+    const iae = doc.metrics.find((m: any) => m.name === 'iae');
+    expect([iae.before_unit, iae.unit, iae.change]).toEqual(['K·s', 'degC·s', null]);
   });
 
   it('worst case over the uncertainty box appears when the file asks for it', async () => {
