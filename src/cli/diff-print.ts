@@ -71,7 +71,7 @@ function controllerHeading(r: DiffReport): string {
 }
 
 function figureRows(list: readonly FigureDelta[]): string[][] {
-  return list.map((f) => [f.name, withUnit(f.before, f.unit), withUnit(f.after, f.unit), signed(f.change, f.unit), f.note]);
+  return list.map((f) => [f.name, withUnit(f.before, f.beforeUnit), withUnit(f.after, f.unit), signed(f.change, f.unit), f.note]);
 }
 
 function rehearsalLines(r: DiffReport): string[] {
@@ -158,14 +158,14 @@ export function diffMarkdown(r: DiffReport): string {
     );
   }
   const shown = [...r.metrics, ...r.margins].filter((f) => Number.isFinite(f.before) || Number.isFinite(f.after));
-  out.push(...mdTable(['figure', 'before', 'after', 'change'], shown.map((f) => [f.name, withUnit(f.before, f.unit), withUnit(f.after, f.unit), signed(f.change, f.unit)]), ['l', 'r', 'r', 'r']), '');
+  out.push(...mdTable(['figure', 'before', 'after', 'change'], shown.map((f) => [f.name, withUnit(f.before, f.beforeUnit), withUnit(f.after, f.unit), signed(f.change, f.unit)]), ['l', 'r', 'r', 'r']), '');
   out.push(`**Switch rehearsal:** ${rehearsalLines(r).join('; ')}`, '');
   if (r.notes.length > 0) out.push(...r.notes.map((n) => `- ${n}`), '');
   return `${out.join('\n')}`;
 }
 
 function figureJson(f: FigureDelta): unknown {
-  return { name: f.name, unit: f.unit, before: finiteOrNull(f.before), after: finiteOrNull(f.after), change: finiteOrNull(f.change), note: f.note };
+  return { name: f.name, unit: f.unit, before_unit: f.beforeUnit, before: finiteOrNull(f.before), after: finiteOrNull(f.after), change: finiteOrNull(f.change), note: f.note };
 }
 
 function rowJson(r: CheckRow | null): unknown {

@@ -9,6 +9,7 @@ import type { GainSet, PlantSpec } from '../model/types.js';
 import { rehearseSwitch, type Rehearsal } from '../tune/index.js';
 import type { CheckRow } from './check-plant.js';
 import { evaluateRevision, type RevisionEvaluation } from './diff-evaluation.js';
+import { num } from './format.js';
 import { plantChanges, type FieldChange } from './plant-changes.js';
 
 /** One side of the comparison. `plant` null: the file does not exist there (added file). */
@@ -26,9 +27,11 @@ export interface FigureDelta {
   unit: string;
   before: number;
   after: number;
-  /** after − before (NaN when either is not a finite number). */
+  /** after − before (NaN when either is not a finite number, or the unit changed). */
   change: number;
   note: string;
+  /** The unit of `before` (the old file's, which may differ from `unit`, the new file's). */
+  beforeUnit: string;
 }
 
 /** How a requirement's verdict moved. A failing verdict is 'fail' or 'n/a' (as in check). */
@@ -77,9 +80,25 @@ function verdictChange(before: CheckRow | null, after: CheckRow | null): Verdict
   return failing(before) ? 'newly passes' : 'still passes';
 }
 
-function delta(name: string, unit: string, before: number, after: number, note: string): FigureDelta {
-  const change = Number.isFinite(before) && Number.isFinite(after) ? after - before : NaN;
-  return { name, unit, before, after, change, note };
+function delta(name: string, unit: string, before: number, after: number, note: string, beforeUnit: string = unit): FigureDelta {
+  // Nothing is converted: figures in two different units have no change to show (a label added
+  // to a file that had none is the same figure).
+  const same = beforeUnit === unit || beforeUnit === '' || unit === '';
+  const change = same && Number.isFinite(before) && Number.isFinite(after) ? after - before : NaN;
+  const unitNote = same ? '' : `unit ${beforeUnit || '(none)'} -> ${unit || '(none)'}, no change computed`;
+  return { name, unit, before, after, change, note: [note, unitNote].filter((x) => x).join('; '), beforeUnit };
+}
+
+/** The setpoint step a step figure comes from, when the trial has more than one ('' otherwise). */
+function stepNote(e: RevisionEvaluation | null, i: number): string {
+  const at = e?.metrics[i].stepAt ?? null;
+  return at !== null && e!.check.nominal.metrics.steps.length > 1 ? `worst step at ${num(at, 6)} s` : '';
+}
+
+/** Two sides' notes: once when they agree, else each with its side. */
+function sidesNote(before: string, after: string): string {
+  if (before === after) return after;
+  return [before ? `before: ${before}` : '', after ? `after: ${after}` : ''].filter((s) => s).join('; ');
 }
 
 function sameGains(a: GainSet, b: GainSet): boolean {
@@ -102,11 +121,12 @@ export function diffReport(before: DiffSide, after: DiffSide): DiffReport {
   const a = before.evaluation;
   const b = after.evaluation!;
   const notes: string[] = [];
-  const metrics = b.metrics.map((m, i) => delta(m.name, m.unit, a?.metrics[i].value ?? NaN, m.value, ''));
+  // Each figure says where it comes from: the worst setpoint step (trials with several), the
+  // operating point and frequency (check's note), or why it is not available.
+  const metrics = b.metrics.map((m, i) => delta(m.name, m.unit, a?.metrics[i].value ?? NaN, m.value, sidesNote(stepNote(a, i), stepNote(b, i)), a?.metrics[i].unit ?? m.unit));
   const margins = b.margins.map((m, i) => {
     const o = a?.margins[i];
-    const note = [o !== undefined && !o.available ? `before: ${o.note}` : '', !m.available ? `after: ${m.note}` : ''].filter((s) => s).join('; ');
-    return delta(m.name, m.unit, o?.available ? o.value : NaN, m.available ? m.value : NaN, note);
+    return delta(m.name, m.unit, o?.available ? o.value : NaN, m.available ? m.value : NaN, sidesNote(o?.note ?? '', m.note), o?.unit ?? m.unit);
   });
 
   const key = (r: CheckRow): string => `${r.requirement}/${r.scope}`;

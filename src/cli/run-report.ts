@@ -66,7 +66,7 @@ export function runMetrics(metrics: TrialMetrics, units: PlantUnits = NO_UNITS):
 }
 
 /** Step figures whose source step `run --json` names under `metrics.worst_step_at`. */
-const WORST_STEP_NAMES = ['rise_time', 'overshoot_pct', 'undershoot_pct', 'settling_time', 'steady_state_error'];
+const WORST_STEP_NAMES = ['rise_time', 'overshoot_pct', 'undershoot_pct', 'peak_time', 'settling_time', 'steady_state_error'];
 
 /**
  * `run --json`'s `metrics` object: each figure (null: not reached / not settled / no step), and

@@ -88,7 +88,7 @@ describe('looprig compare', () => {
     // Its internal model is the file's first_order model 0.08 e^{-98 s}/(40 s + 1) with the 2 s
     // sensor filter folded in by the half rule (Skogestad 2003: half of the smaller lag to the
     // time constant, half to the delay): 0.08, 41 s, 99 s.
-    expect(smith?.structure_settings).toMatchObject({ gain: 0.08, timeConstant: 41, delay: 99 });
+    expect(smith?.structure_settings).toMatchObject({ gain: 0.08, time_constant: 41, delay: 99 });
   });
 
   it('the nonlinear surge tank gets a schedule; its level-only outflow is no cascade candidate', async () => {
@@ -96,6 +96,8 @@ describe('looprig compare', () => {
     expect(doc.flags.map((f) => f.kind)).toContain('nonlinear');
     const sched = doc.candidates.find((c) => c.structure === 'scheduled');
     expect(sched?.origin.flags).toEqual(['nonlinear']);
+    // The schedule's rows are written with snake_case keys like the rest of the document.
+    expect(JSON.stringify(sched?.structure_settings)).not.toMatch(/"[a-z]+[A-Z]/);
     expect(doc.candidates.some((c) => c.structure === 'cascade')).toBe(false);
     expect(doc.notes.some((n) => n.includes('measurement outflow is not faster'))).toBe(true);
   });

@@ -127,6 +127,9 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
         expect(m.name in run.metrics, `run --json has ${m.name}`).toBe(true);
         expect(m[side], `${side} ${m.name}`).toBe(run.metrics[m.name]);
       }
+      // A step figure of this two-step trial names the step it comes from, as run --json does.
+      const settling = doc.metrics.find((m: any) => m.name === 'settling_time').note;
+      expect(settling).toContain(`worst step at ${run.metrics.worst_step_at.settling_time} s`);
       expect(doc.requirements.map((r: any) => [r.name, r.case, r[side].measured, r[side].status])).toEqual(
         check.requirements.map((r: any) => [r.name, r.case, r.measured, r.status]),
       );
@@ -135,6 +138,9 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     // gain_margin is a requirement: the margins row and the check row are the same figure.
     const gm = doc.margins.find((m: any) => m.name === 'gain_margin');
     expect(gm.after).toBe(doc.requirements.find((r: any) => r.name === 'gain_margin').after.measured);
+    // ...and says where it was read, as the check row does.
+    expect(gm.note).toContain(doc.requirements.find((r: any) => r.name === 'gain_margin').after.note);
+    expect(gm.note).toMatch(/rad\/s/);
     for (const m of [...doc.metrics, ...doc.margins]) {
       if (m.before !== null && m.after !== null) expect(m.change).toBeCloseTo(m.after - m.before, 12);
     }
@@ -206,6 +212,21 @@ describe('diff between two revisions of a test repository', { timeout: 60_000 },
     expect(r.out).toMatch(/iae .*K·s/);
     const svg = r.io.files.get(join(tmp, 'u.svg'))!;
     for (const label of ['process value (K)', 'controller output (%)', 'rehearsal: output (K)', 'rehearsal: controller (%)']) expect(svg).toContain(label);
+    // A label added where there was none: the same figure, its change shown.
+    const added = (await diffJson([join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD'])).doc.metrics.find((m: any) => m.name === 'iae');
+    expect([added.before_unit, added.unit, typeof added.change]).toEqual(['', 'K·s', 'number']);
+  });
+
+  it('a changed output unit: each side with its own unit, no change computed across them', async () => {
+    const d = repo('unit-change', [
+      { files: { 'p.yaml': plantText({ units: true }) } },
+      { files: { 'p.yaml': plantText({ units: true }).replace('output_unit: K', 'output_unit: degC') } },
+    ]);
+    const r = await cli(['diff', join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD']);
+    expect(r.out).toMatch(/iae +\S+ K·s +\S+ degC·s +unit K·s -> degC·s, no change computed/);
+    const { doc } = await diffJson([join(d, 'p.yaml'), '--from', 'HEAD~1', '--to', 'HEAD']);
+    const iae = doc.metrics.find((m: any) => m.name === 'iae');
+    expect([iae.before_unit, iae.unit, iae.change]).toEqual(['K·s', 'degC·s', null]);
   });
 
   it('worst case over the uncertainty box appears when the file asks for it', async () => {

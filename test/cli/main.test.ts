@@ -149,6 +149,14 @@ describe('looprig run --json', () => {
     expect(Array.isArray(doc.warnings)).toBe(true);
   });
 
+  it("suggest and optimize --json name the file's units once, as run does", async () => {
+    for (const args of [['suggest'], ['optimize', '--evaluations', '5']]) {
+      const r = await run([args[0], plant('mixing-loop-reference.yaml'), '--json', ...args.slice(1)]);
+      expect(r.code, r.err).toBe(0);
+      expect(JSON.parse(r.out).units, args[0]).toEqual({ output: 'g/L', actuator: '%' });
+    }
+  });
+
   it('writes NaN as null: a trial without a setpoint step has null step metrics', async () => {
     const { code, doc } = await runJson(['run', fixture('inverse-response.yaml')]);
     expect(code).toBe(0);

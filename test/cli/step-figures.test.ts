@@ -40,6 +40,9 @@ describe('step figures on every surface', () => {
     expect(doc.metrics.settling_time).toBe(head.settlingTime!.value);
     expect(doc.metrics.worst_step_at.settling_time).toBe(head.settlingTime!.stepAt);
     expect(doc.metrics.overshoot_pct).toBe(head.overshootPct!.value);
+    // peak_time names its step too (the overshoot's), like every step figure.
+    expect(doc.metrics.worst_step_at.peak_time).toBe(head.peakTime!.stepAt);
+    expect(doc.metrics.worst_step_at.peak_time).toBe(doc.metrics.worst_step_at.overshoot_pct);
     // The surge tank's trial has two setpoint steps; the figure says which one it comes from.
     expect(head.settlingTime!.of).toBe(2);
     const text = await cli(['run', file, '--set', `kc=${s.values!.kc}`, '--set', `ti=${s.values!.ti}s`]);

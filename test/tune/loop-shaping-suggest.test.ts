@@ -66,7 +66,7 @@ describe('looprig suggest --crossover --phase-margin', () => {
     const row = JSON.parse(io.stdout).suggestions.find((s: { rule: string }) => s.rule === 'ms-constrained-pi');
     expect(row.label).toBe('Ms-constrained PI');
     expect(Math.abs(row.max_sensitivity / 1.4 - 1)).toBeLessThan(0.01);
-    expect(row.design).toEqual({ kind: 'ms', max_ms: 1.4 });
+    expect(row.design).toEqual({ kind: 'ms', ms_target: 1.4 });
     const bad = fakeIo({ [FILE]: TEXT });
     expect(await main(['suggest', FILE, '--ms', '1'], bad)).toBe(2);
     expect(bad.stderr).toMatch(/--ms must be a number > 1/);

@@ -14,7 +14,7 @@ import { UserError } from '../errors.js';
 import { rankedFigureText } from '../../analysis/index.js';
 import { num, secs, table } from '../format.js';
 import type { Io } from '../io.js';
-import { finiteOrNull, toJson } from '../json.js';
+import { finiteOrNull, snakeKeys, toJson } from '../json.js';
 import { loadPlantFile } from '../load-plant-file.js';
 
 export const COMPARE_USAGE = `Usage: looprig compare FILE [options]
@@ -177,7 +177,8 @@ export function compareJson(file: string, plant: PlantSpec, r: CompareResult): u
         status: w.status,
         unavailable: c.unavailable,
         gains: c.controller ? { kc: w.kc, ti: finiteOrNull(w.ti), td: w.td, b: c.controller.gains.b, c: c.controller.gains.c } : null,
-        structure_settings: ext,
+        // Core extension records are camelCase (timeConstant, antiWindup): snake_case like every key.
+        structure_settings: snakeKeys(ext),
         gains_from: c.gainsFrom,
         detail: w.detail,
         rise_time: finiteOrNull(w.riseTime),

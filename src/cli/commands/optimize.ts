@@ -5,7 +5,7 @@
  */
 import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
-import { controllerEdits, gainNote, savePlantValues } from '../../model/index.js';
+import { controllerEdits, gainNote, plantUnits, savePlantValues } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import { createOptimizer, DEFAULT_EVALUATIONS, tuningContext, valuesInForm, type OptimizeProgress, type OptimizeResult } from '../../tune/index.js';
 import { UserError } from '../errors.js';
@@ -190,6 +190,7 @@ export async function optimizeCommand(args: readonly string[], io: Io): Promise<
     io.out(
       toJson({
         plant: { name: plant.name, file: o.file, form: plant.loop.controller.form },
+        units: plantUnits(plant),
         structure: result.structure,
         cost: { kind: result.cost.kind, output_variation_weight: result.cost.outputVariationWeight, value: finiteOrNull(b.cost) },
         ms_target: result.msTarget,

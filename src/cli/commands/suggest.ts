@@ -4,7 +4,7 @@
  */
 import { countOption, onePositional, parseCommandArgs, timeOption } from '../parse-command.js';
 import { enforceFileBudget, LIMIT_OPTIONS, MAX_COUNTS } from '../budget-check.js';
-import { MIN_SAMPLE_TIME } from '../../model/index.js';
+import { MIN_SAMPLE_TIME, plantUnits } from '../../model/index.js';
 import type { PlantSpec } from '../../model/types.js';
 import type { LoopShapingTarget, PoleTarget } from '../../tune/index.js';
 import { caseFigures, caseMs, suggestGains, summarise, sweepCaseCount, tuningContext, TUNING_RULES, type SuggestResult, type Suggestion } from '../../tune/index.js';
@@ -262,7 +262,8 @@ function designJson(s: Suggestion): unknown {
   const d = s.design;
   if (d === null) return null;
   // Loop shaping: what the loop achieves is the row's margins (crossover, phase margin above).
-  if (d.kind === 'ms') return { kind: d.kind, max_ms: d.maxMs };
+  // The Ms limit under the name optimize and compare give theirs (ms_target).
+  if (d.kind === 'ms') return { kind: d.kind, ms_target: d.maxMs };
   if (d.kind === 'shaping') {
     const t = d.target;
     return { kind: d.kind, target: { crossover: t.crossover, phase_margin_deg: 'ms' in t ? null : t.phaseMarginDeg, ms: 'ms' in t ? t.ms : null, ti_td_ratio: t.tiTdRatio } };
@@ -281,6 +282,8 @@ function designJson(s: Suggestion): unknown {
 function suggestJson(file: string, plant: PlantSpec, r: SuggestResult): unknown {
   return {
     plant: { name: plant.name, file, form: plant.loop.controller.form },
+    // The units of the output and the actuator, once, as run and compare name them.
+    units: plantUnits(plant),
     approximation: r.inputs,
     ultimate_source: r.ultimateSource,
     ultimate_model: r.ultimateModel,
