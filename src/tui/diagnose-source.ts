@@ -55,6 +55,9 @@ export function diagnoseSource(plant: PlantSpec): NoticeSource {
         bandwidth: worstPoint(figures, 'bandwidth').value,
         ...(withDamping && { dampingRatio: worstPoint(figures, 'dampingRatio').value }),
         closedLoopStable: m.closedLoopStable,
+        // Where they were read: the one level when GM, PM and Ms are all worst there.
+        ...(figures.length > 1 &&
+          (m.worstAt.gm === m.worstAt.pm && m.worstAt.pm === m.worstAt.ms ? { level: figures[m.worstAt.ms].point.level } : { points: figures.length })),
       };
     },
   };

@@ -24,6 +24,13 @@ export interface MarginsView {
   dampingRatio?: number;
   /** Closed-loop stability; false makes the margins meaningless (shown as 'unstable'). Absent/null = not checked. */
   closedLoopStable?: boolean | null;
+  /**
+   * The setpoint level GM, PM and Ms were read at, when the trial has more than one operating point
+   * and the three are worst at the same one (check names it the same way); absent otherwise.
+   */
+  level?: number;
+  /** The levels when they are worst at different points: the line then says 'worst of N points'. */
+  points?: number;
 }
 
 export interface NoticeSource {

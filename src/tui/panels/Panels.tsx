@@ -148,12 +148,12 @@ export function Panels(p: PanelsProps) {
             width={layout.metricsWidth}
             height={layout.bottomRows}
             theme={theme}
-            note={layout.marginsInMetrics ? marginsLine(p.margins, theme, layout.metricsWidth) : null}
+            note={layout.marginsInMetrics ? marginsLine(p.margins, theme, layout.metricsWidth, p.units.output) : null}
           />
         )}
         {layout.noticesWidth > 0 && <Separator rows={layout.bottomRows} theme={theme} />}
         {layout.noticesWidth > 0 && (
-          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme, layout.noticesWidth)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
+          <NoticesPanel notices={p.notices} margins={marginsLine(p.margins, theme, layout.noticesWidth, p.units.output)} width={layout.noticesWidth} height={layout.bottomRows} theme={theme} />
         )}
       </Box>
     </Box>
@@ -249,7 +249,7 @@ function envelopeLegend(e: EnvelopeState, unit: string | null): string {
 }
 
 /** The margins of the edited gains as one notices line, or null without a diagnosis. */
-function marginsLine(m: MarginsView | null | 'pending', theme: Theme, width: number): Piece[] | null {
+function marginsLine(m: MarginsView | null | 'pending', theme: Theme, width: number, unit: string | null = null): Piece[] | null {
   if (m === null) return null;
   if (m === 'pending') return [{ text: 'margins …', color: theme.dim }];
   if (m.closedLoopStable === false) return [{ text: 'closed loop UNSTABLE', color: theme.bad, bold: true }];
@@ -257,7 +257,10 @@ function marginsLine(m: MarginsView | null | 'pending', theme: Theme, width: num
   const parts = [`GM ${f(m.gainMargin)}`, `PM ${f(m.phaseMarginDeg, '°')}`, `Ms ${f(m.maxSensitivity)}`];
   // Two spaces between the figures where they fit, one where not: never a cut figure.
   const text = parts.join('  ').length <= width ? parts.join('  ') : parts.join(' ');
-  return [{ text, bold: true }];
+  // Where they were read (the worst operating point), whole or not at all.
+  const at = m.level !== undefined ? `@ level ${Number(m.level.toPrecision(4))}${unit ? ` ${unit}` : ''}` : m.points !== undefined ? `worst of ${m.points} points` : '';
+  const where = at !== '' && text.length + 2 + at.length <= width ? [{ text: `  ${at}`, color: theme.dim }] : [];
+  return [{ text, bold: true }, ...where];
 }
 
 /** One rule over the gain, metrics and notices columns, with a title over each. */
