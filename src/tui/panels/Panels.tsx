@@ -255,12 +255,15 @@ function marginsLine(m: MarginsView | null | 'pending', theme: Theme, width: num
   if (m.closedLoopStable === false) return [{ text: 'closed loop UNSTABLE', color: theme.bad, bold: true }];
   const f = (v: number, unit = ''): string => (Number.isFinite(v) ? `${Number(v.toPrecision(3))}${unit}` : v > 0 ? '∞' : '—');
   const parts = [`GM ${f(m.gainMargin)}`, `PM ${f(m.phaseMarginDeg, '°')}`, `Ms ${f(m.maxSensitivity)}`];
-  // Two spaces between the figures where they fit, one where not: never a cut figure.
-  const text = parts.join('  ').length <= width ? parts.join('  ') : parts.join(' ');
   // Where they were read (the worst operating point), whole or not at all.
   const at = m.level !== undefined ? `@ level ${Number(m.level.toPrecision(4))}${unit ? ` ${unit}` : ''}` : m.points !== undefined ? `worst of ${m.points} points` : '';
-  const where = at !== '' && text.length + 2 + at.length <= width ? [{ text: `  ${at}`, color: theme.dim }] : [];
-  return [{ text, bold: true }, ...where];
+  // Two spaces between the parts where they fit, one where not, the place dropped last: never a cut figure.
+  for (const gap of ['  ', ' ']) {
+    const text = parts.join(gap);
+    if (at !== '' && text.length + gap.length + at.length <= width) return [{ text, bold: true }, { text: `${gap}${at}`, color: theme.dim }];
+  }
+  const text = parts.join('  ').length <= width ? parts.join('  ') : parts.join(' ');
+  return [{ text, bold: true }];
 }
 
 /** One rule over the gain, metrics and notices columns, with a title over each. */
